@@ -1,0 +1,224 @@
+"""Ready-made models: exclusion chains, Ising chains, 2D lattices, and coupling patterns."""
+
+from __future__ import annotations
+
+from typing import Any
+
+import numpy as np
+import scipy.sparse as sps
+import sympy
+
+from .model import Coupling, Model, check_coupling
+from .strings import StringArray, make_string, pauli
+
+
+def _coupling_list(couplings: Any, count: int, what: str, symbol: str = "c") -> list[Coupling]:
+    """Expand ``"uniform"``, ``"symbols"``, a scalar or a sequence into ``count`` couplings."""
+    if isinstance(couplings, str):
+        if couplings == "uniform":
+            return [1] * count
+        if couplings == "symbols":
+            return list(sympy.symbols(f"{symbol}_0:{count}")) if count else []
+        raise ValueError(f"{what}: use 'uniform', 'symbols', a number or a sequence, not {couplings!r}")
+    if np.ndim(couplings) == 0 and not isinstance(couplings, (list, tuple)):
+        return [check_coupling(couplings, what)] * count
+    if isinstance(couplings, np.ndarray) and couplings.dtype.kind in "fc":
+        if not np.all(np.isfinite(couplings)):
+            bad = int(np.nonzero(~np.isfinite(couplings))[0][0])
+            raise ValueError(f"{what}: coupling {bad} is {couplings[bad]!r}, not finite")
+        values = couplings.tolist()
+    else:
+        values = [check_coupling(c, f"{what}: coupling {j}") for j, c in enumerate(couplings)]
+    if len(values) != count:
+        raise ValueError(f"{what}: {len(values)} couplings given, {count} needed")
+    return values
+
+
+def exclusion_chain(
+    n_terms: int,
+    reach: int = 1,
+    states: int = 2,
+    couplings: Any = "uniform",
+) -> Model:
+    """The spin realisation of the exclusion algebra of reach ``p`` on ``M + p`` sites.
+
+    ``H = sum_{j=0}^{M-1} c_j g_j`` with ``g_j = X_j Z_{j+1} ... Z_{j+p}``, so that
+    ``g_j g_k = omega g_k g_j`` for ``j < k <= j + p`` and the strings commute otherwise.
+
+    Parameters
+    ----------
+    n_terms : int
+        M >= 1, the number of terms.
+    reach : int
+        p >= 1.  p = 1, N = 2 is the transverse-field Ising chain up to a basis change.
+    states : int
+        N >= 2.
+    couplings : "uniform", "symbols", number or sequence
+        "uniform" gives every c_j = 1; "symbols" gives sympy symbols ``c_0 ... c_{M-1}``.
+
+    Returns
+    -------
+    Model
+
+    References
+    ----------
+    P. Fendley, J. Phys. A 52, 335002 (2019), arXiv:1901.08078 (N = 2, p = 2);
+    F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622
+    (general p and N).
+
+    Examples
+    --------
+    >>> m = exclusion_chain(4, reach=2)
+    >>> print(m)
+    X0 Z1 Z2 + X1 Z2 Z3 + X2 Z3 Z4 + X3 Z4 Z5
+    """
+    m_terms, p, n = int(n_terms), int(reach), int(states)
+    if m_terms < 1 or p < 1 or n < 2:
+        raise ValueError(f"need n_terms >= 1, reach >= 1, states >= 2; got {n_terms}, {reach}, {states}")
+    values = _coupling_list(couplings, m_terms, "exclusion_chain")
+    n_sites = m_terms + p
+    rows = np.arange(m_terms)
+    x = sps.csr_array((np.ones(m_terms, np.int64), (rows, rows)), shape=(m_terms, n_sites))
+    zr = np.repeat(rows, p)
+    zc = (rows[:, None] + np.arange(1, p + 1)[None, :]).ravel()
+    z = sps.csr_array((np.ones(m_terms * p, np.int64), (zr, zc)), shape=(m_terms, n_sites))
+    arr = StringArray(x, z, np.zeros(m_terms, np.int64), n, range(n_sites))
+    return Model(arr, values)
+
+
+def ising_chain(
+    n_sites: int,
+    field: Any = 1.0,
+    bond: Any = 1.0,
+    boundary: str = "open",
+) -> Model:
+    """Transverse-field Ising chain ``H = - sum_i h_i X_i - sum_i J_i Z_i Z_{i+1}``.
+
+    Terms are interleaved ``X_0, Z_0 Z_1, X_1, Z_1 Z_2, ...`` so that, with open boundaries, the
+    frustration graph is a path in term order.
+
+    Parameters
+    ----------
+    n_sites : int
+        L >= 1.
+    field, bond : number, symbol or sequence
+        ``h_i`` (L values) and ``J_i`` (L - 1 values, or L for periodic boundaries).
+    boundary : "open" or "periodic"
+
+    References
+    ----------
+    P. Pfeuty, Ann. Phys. 57, 79 (1970).
+    """
+    size = int(n_sites)
+    if size < 1:
+        raise ValueError(f"n_sites must be >= 1, got {n_sites}")
+    if boundary not in ("open", "periodic"):
+        raise ValueError(f"boundary must be 'open' or 'periodic', not {boundary!r}")
+    n_bonds = size - 1 if boundary == "open" else size
+    h = _coupling_list(field, size, "ising_chain field", "h")
+    jj = _coupling_list(bond, n_bonds, "ising_chain bond", "J")
+    terms = []
+    for i in range(size):
+        terms.append((-h[i], pauli("X", [i])))
+        if i < size - 1:
+            terms.append((-jj[i], pauli("ZZ", [i, i + 1])))
+    if boundary == "periodic" and size > 1:
+        terms.append((-jj[size - 1], pauli("ZZ", [size - 1, 0])))
+    return Model.from_terms(terms, states=2, sites=range(size))
+
+
+def ising_lattice(rows: int, cols: int, field: Coupling = 1.0, bond: Coupling = 1.0) -> Model:
+    """Transverse-field Ising model on an open ``rows x cols`` square lattice (sites ``(r, c)``).
+
+    ``H = -h sum X_{r,c} - J sum_<ij> Z_i Z_j``.  In 2D its frustration graph has claws, so no
+    free-fermion theorem applies (a standard negative example).
+    """
+    h = check_coupling(field, "field")
+    jb = check_coupling(bond, "bond")
+    terms = []
+    for r in range(rows):
+        for c in range(cols):
+            terms.append((-h, pauli("X", [(r, c)])))
+            if c + 1 < cols:
+                terms.append((-jb, pauli("ZZ", [(r, c), (r, c + 1)])))
+            if r + 1 < rows:
+                terms.append((-jb, pauli("ZZ", [(r, c), (r + 1, c)])))
+    return Model.from_terms(terms, states=2, sites=[(r, c) for r in range(rows) for c in range(cols)])
+
+
+def kitaev_honeycomb(
+    rows: int,
+    cols: int,
+    jx: Coupling = 1.0,
+    jy: Coupling = 1.0,
+    jz: Coupling = 1.0,
+) -> Model:
+    """Kitaev's honeycomb model on an open brick-wall patch of ``rows x cols`` sites.
+
+    Horizontal bonds ``(r, c)-(r, c+1)`` alternate between x links (c even) and y links (c odd);
+    vertical z links join ``(r, c)-(r+1, c)`` when ``r + c`` is even, so every site has at most
+    one bond of each kind.  ``H = sum J_x X X + J_y Y Y + J_z Z Z`` over the links.
+
+    References
+    ----------
+    A. Kitaev, Ann. Phys. 321, 2 (2006), arXiv:cond-mat/0506438.
+    """
+    if rows < 1 or cols < 2:
+        raise ValueError("a honeycomb patch needs rows >= 1 and cols >= 2")
+    cx, cy, cz = (check_coupling(v, name) for v, name in ((jx, "jx"), (jy, "jy"), (jz, "jz")))
+    terms = []
+    for r in range(rows):
+        for c in range(cols - 1):
+            if c % 2 == 0:
+                terms.append((cx, pauli("XX", [(r, c), (r, c + 1)])))
+            else:
+                terms.append((cy, pauli("YY", [(r, c), (r, c + 1)])))
+    for r in range(rows - 1):
+        for c in range(cols):
+            if (r + c) % 2 == 0:
+                terms.append((cz, pauli("ZZ", [(r, c), (r + 1, c)])))
+    return Model.from_terms(terms, states=2, sites=[(r, c) for r in range(rows) for c in range(cols)])
+
+
+def clock_chain(n_sites: int, field: Any = 1.0, bond: Any = 1.0, states: int = 3) -> Model:
+    """Open Z_N clock chain ``H = - sum_i f_i X_i - sum_i J_i Z_i Z_{i+1}^dagger`` (non-Hermitian form).
+
+    Terms interleave as in :func:`ising_chain`; the frustration structure is that of the
+    reach-1 exclusion algebra (Baxter's free-parafermion chain).
+
+    References
+    ----------
+    R. J. Baxter, Phys. Lett. A 140, 155 (1989); P. Fendley, J. Phys. A 47, 075001 (2014).
+    """
+    n = int(states)
+    f = _coupling_list(field, n_sites, "clock_chain field", "f")
+    jj = _coupling_list(bond, n_sites - 1, "clock_chain bond", "J")
+    terms = []
+    for i in range(n_sites):
+        terms.append((-f[i], make_string(n, [(i, 1, 0)])))
+        if i < n_sites - 1:
+            terms.append((-jj[i], make_string(n, [(i, 0, 1), (i + 1, 0, n - 1)])))
+    return Model.from_terms(terms, states=n, sites=range(n_sites))
+
+
+def staggered(n: int, a: Coupling, b: Coupling) -> list[Coupling]:
+    """``[a, b, a, b, ...]`` of length ``n`` (dimerised couplings)."""
+    return [a if j % 2 == 0 else b for j in range(int(n))]
+
+
+def random_couplings(
+    n: int, low: float = 0.5, high: float = 1.5, seed: int | None = None
+) -> np.ndarray:
+    """``n`` couplings drawn uniformly from ``[low, high)`` with a reproducible seed."""
+    if not (np.isfinite(low) and np.isfinite(high)) or high < low:
+        raise ValueError(f"need finite low <= high, got {low}, {high}")
+    return np.random.default_rng(seed).uniform(low, high, int(n))
+
+
+def complex_couplings(
+    n: int, modulus: tuple[float, float] = (0.5, 1.5), seed: int | None = None
+) -> np.ndarray:
+    """``n`` complex couplings with moduli uniform in ``modulus`` and uniform random phases."""
+    rng = np.random.default_rng(seed)
+    r = rng.uniform(modulus[0], modulus[1], int(n))
+    return r * np.exp(2j * np.pi * rng.uniform(0, 1, int(n)))

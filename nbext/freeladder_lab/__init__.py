@@ -1,0 +1,1 @@
+"""freeladder_lab: the notebook side of freeladder (widgets, plots, cell export)."""
