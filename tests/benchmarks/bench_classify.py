@@ -1,0 +1,99 @@
+"""Benchmark: frustration graph, chain recognition and verdicts, as ratios to baselines.
+
+Run with ``python tests/benchmarks/bench_classify.py``.  Every timing is printed next to a
+baseline measured in the same run on the same model:
+
+* ``commutation_matrix`` -- the one sparse product everything starts from;
+* a pairwise Python loop over OpString objects (for the frustration graph);
+* ``networkx.inverse_line_graph`` (for line-graph recognition).
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Callable
+from typing import Any
+
+import networkx as nx
+
+import freeladder as fl
+from freeladder.graph import chain_structure, frustration_adjacency, frustration_graph
+from freeladder.linegraph import line_graph_root
+from freeladder.model import Model
+
+
+def timed(fn: Callable[[], Any], repeat: int = 3) -> tuple[float, Any]:
+    """Best of ``repeat`` wall-clock times, and the last result."""
+    best = float("inf")
+    for _ in range(repeat):
+        t0 = time.perf_counter()
+        out = fn()
+        best = min(best, time.perf_counter() - t0)
+    return best, out
+
+
+def fresh(m: Model) -> Model:
+    """The same model without cached derived data."""
+    return Model(m.strings, m.couplings, m.constant)
+
+
+def row(name: str, seconds: float, base_name: str, base: float) -> None:
+    ratio = seconds / base
+    print(f"{name:<48s} {seconds:9.3f} s   {base_name:<24s} {base:9.3f} s   ratio {ratio:8.2f}")
+
+
+def pairwise_graph(m: Model) -> nx.Graph:
+    strings = [t.string for t in m.terms]
+    g = nx.Graph()
+    for a in range(len(strings)):
+        for b in range(a + 1, len(strings)):
+            if not strings[a].commutes_with(strings[b]):
+                g.add_edge(a, b)
+    return g
+
+
+def main() -> None:
+    # frustration graph against a pairwise loop (small size for the loop), then at scale
+    small = fl.kitaev_honeycomb(12, 12)
+    t_fast, _ = timed(lambda: frustration_graph(fresh(small)))
+    t_loop, _ = timed(lambda: pairwise_graph(small))
+    row(f"frustration_graph, Kitaev patch, {len(small)} terms", t_fast, "pairwise loop", t_loop)
+    big = fl.kitaev_honeycomb(80, 80)
+    t_comm, _ = timed(lambda: big.strings.commutation_matrix())
+    t_graph, _ = timed(lambda: frustration_graph(fresh(big)))
+    row(f"frustration_graph, Kitaev patch, {len(big)} terms", t_graph, "commutation_matrix", t_comm)
+    t_adj, _ = timed(lambda: frustration_adjacency(fresh(big)))
+    row(f"frustration_adjacency, {len(big)} terms", t_adj, "commutation_matrix", t_comm)
+
+    # chain recognition at 10^6 terms
+    chain = fl.exclusion_chain(10**6, reach=2)
+    t_comm, _ = timed(lambda: chain.strings.commutation_matrix(), repeat=1)
+    t_chain, found = timed(lambda: chain_structure(fresh(chain)), repeat=1)
+    assert found is not None and found.reach == 2
+    row("chain_structure, reach-2 chain, 10^6 terms", t_chain, "commutation_matrix", t_comm)
+
+    # line-graph recognition against networkx
+    m = fl.kitaev_honeycomb(30, 30)
+    adj = frustration_adjacency(m)
+    neighbours = [
+        set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist()) for v in range(len(m))
+    ]
+    g = nx.Graph(pairwise_graph(m)) if len(m) < 400 else frustration_graph(m)
+    t_mine, _ = timed(lambda: line_graph_root(neighbours, list(range(len(m)))))
+    t_ref, _ = timed(lambda: nx.inverse_line_graph(g), repeat=1)
+    row(f"line_graph_root, Kitaev patch, {len(m)} terms", t_mine, "nx.inverse_line_graph", t_ref)
+
+    # whole verdicts
+    for name, model in (
+        ("classify, reach-2 chain, 3000 terms", fl.exclusion_chain(3000, reach=2)),
+        ("classify, Z_3 reach-3 chain, 3000 terms", fl.exclusion_chain(3000, reach=3, states=3)),
+        ("classify, Kitaev patch", fl.kitaev_honeycomb(60, 60)),
+        ("classify, 2D Ising 40 x 40 (claw)", fl.ising_lattice(40, 40)),
+    ):
+        t_comm, _ = timed(lambda model=model: model.strings.commutation_matrix())
+        t_v, v = timed(lambda model=model: fl.classify(fresh(model)))
+        row(f"{name} -> {v.kind}", t_v, "commutation_matrix", t_comm)
+
+
+if __name__ == "__main__":
+    main()
