@@ -19,7 +19,9 @@ def _coupling_list(couplings: Any, count: int, what: str, symbol: str = "c") -> 
             return [1] * count
         if couplings == "symbols":
             return list(sympy.symbols(f"{symbol}_0:{count}")) if count else []
-        raise ValueError(f"{what}: use 'uniform', 'symbols', a number or a sequence, not {couplings!r}")
+        raise ValueError(
+            f"{what}: use 'uniform', 'symbols', a number or a sequence, not {couplings!r}"
+        )
     if np.ndim(couplings) == 0 and not isinstance(couplings, (list, tuple)):
         return [check_coupling(couplings, what)] * count
     if isinstance(couplings, np.ndarray) and couplings.dtype.kind in "fc":
@@ -74,7 +76,9 @@ def exclusion_chain(
     """
     m_terms, p, n = int(n_terms), int(reach), int(states)
     if m_terms < 1 or p < 1 or n < 2:
-        raise ValueError(f"need n_terms >= 1, reach >= 1, states >= 2; got {n_terms}, {reach}, {states}")
+        raise ValueError(
+            f"need n_terms >= 1, reach >= 1, states >= 2; got {n_terms}, {reach}, {states}"
+        )
     values = _coupling_list(couplings, m_terms, "exclusion_chain")
     n_sites = m_terms + p
     rows = np.arange(m_terms)
@@ -143,7 +147,9 @@ def ising_lattice(rows: int, cols: int, field: Coupling = 1.0, bond: Coupling = 
                 terms.append((-jb, pauli("ZZ", [(r, c), (r, c + 1)])))
             if r + 1 < rows:
                 terms.append((-jb, pauli("ZZ", [(r, c), (r + 1, c)])))
-    return Model.from_terms(terms, states=2, sites=[(r, c) for r in range(rows) for c in range(cols)])
+    return Model.from_terms(
+        terms, states=2, sites=[(r, c) for r in range(rows) for c in range(cols)]
+    )
 
 
 def kitaev_honeycomb(
@@ -177,11 +183,13 @@ def kitaev_honeycomb(
         for c in range(cols):
             if (r + c) % 2 == 0:
                 terms.append((cz, pauli("ZZ", [(r, c), (r + 1, c)])))
-    return Model.from_terms(terms, states=2, sites=[(r, c) for r in range(rows) for c in range(cols)])
+    return Model.from_terms(
+        terms, states=2, sites=[(r, c) for r in range(rows) for c in range(cols)]
+    )
 
 
 def clock_chain(n_sites: int, field: Any = 1.0, bond: Any = 1.0, states: int = 3) -> Model:
-    """Open Z_N clock chain ``H = - sum_i f_i X_i - sum_i J_i Z_i Z_{i+1}^dagger`` (non-Hermitian form).
+    """Open Z_N clock chain ``H = - sum_i f_i X_i - sum_i J_i Z_i Z_{i+1}^dagger`` (non-Hermitian).
 
     Terms interleave as in :func:`ising_chain`; the frustration structure is that of the
     reach-1 exclusion algebra (Baxter's free-parafermion chain).

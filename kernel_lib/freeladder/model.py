@@ -102,6 +102,9 @@ class Model:
     """
 
     __slots__ = ("strings", "couplings", "constant", "__dict__")
+    strings: StringArray
+    couplings: tuple[Coupling, ...]
+    constant: Coupling
 
     def __init__(self, strings: StringArray, couplings: Sequence[Coupling], constant: Coupling = 0):
         if len(couplings) != len(strings):
@@ -156,7 +159,10 @@ class Model:
         if states is None:
             raise ValueError("a model without terms needs states=N")
         strings = [merged[k][1] for k in order]
-        couplings = [to_python_number(sympy.expand(c)) if isinstance(c, sympy.Basic) else c for c in (merged[k][0] for k in order)]
+        couplings = [
+            to_python_number(sympy.expand(c)) if isinstance(c, sympy.Basic) else c
+            for c in (merged[k][0] for k in order)
+        ]
         if sites is None:
             sites = sorted({s for g in strings for s in g.support})
         else:
@@ -218,14 +224,18 @@ class Model:
         """
         if self.is_symbolic:
             names = ", ".join(sorted(str(s) for s in self.symbols))
-            raise ValueError(f"the model has symbolic couplings ({names}); use m.subs({{...}}) first")
-        vals = np.array([complex(c) for c in self.couplings], dtype=complex)
+            raise ValueError(
+                f"the model has symbolic couplings ({names}); use m.subs({{...}}) first"
+            )
+        vals = np.array([complex(c) for c in self.couplings], dtype=np.complex128)
         if np.all(vals.imag == 0):
             return vals.real.copy()
         return vals
 
-    # -- new models ----------------------------------------------------------------------------------
-    def with_couplings(self, couplings: Sequence[Coupling], constant: Coupling | None = None) -> Model:
+    # -- new models ------------------------------------------------------------------------------
+    def with_couplings(
+        self, couplings: Sequence[Coupling], constant: Coupling | None = None
+    ) -> Model:
         """The same strings with new couplings (one per term)."""
         couplings = list(couplings)
         if len(couplings) != len(self):

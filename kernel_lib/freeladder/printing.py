@@ -2,7 +2,16 @@
 
 Printing lives apart from the mathematics: nothing here changes a model.  The text form is the
 one :func:`freeladder.parse_model` reads, so ``parse_model(str(m), states=m.states)`` gives ``m``
-back.
+back (same strings, equal couplings) whenever the couplings are numbers or sympy expressions
+built from symbols, numbers, ``I``, ``+ - * /``, integer powers, rational powers of numbers and
+phases ``exp(i pi k / N)``, and symbols are named as the syntax allows (see
+:func:`is_plain_name`).  Other sympy functions are printed in sympy's own notation and other
+symbol names between backticks; the parser rejects both with a clear error rather than
+misreading them.
+
+The phase of a string that its letters do not carry (N even, ``X Z`` on one site: the
+normalised string is ``w X Z``) is printed as a power of ``w = exp(i pi / N)``, so the round trip
+stays exact.
 """
 
 from __future__ import annotations
@@ -13,7 +22,29 @@ from typing import Any
 
 import sympy
 
-from .strings import OpString, unit_phase
+from .strings import OpString
+
+_ATOM, _POWER, _PRODUCT, _SUM = 3, 2, 1, 0
+
+RESERVED_NAMES = frozenset({"w", "I", "E", "pi", "j"})
+"""Names the text syntax keeps for itself (``w`` is the phase ``exp(i pi / N)``)."""
+NOT_FINITE_NAMES = frozenset({"nan", "inf", "infinity", "oo", "zoo"})
+"""Names (in any letter case) rejected as non-finite numbers."""
+
+
+def is_plain_name(name: str) -> bool:
+    """True when ``name`` reads back as a coupling name in the text syntax.
+
+    A name is an ASCII identifier that is not reserved, not a non-finite number's name, and
+    not one capital letter followed by a digit (that is an operator, like ``X3``).
+    """
+    if not name or not (name.isascii() and name.isidentifier()):
+        return False
+    if name in RESERVED_NAMES or name.lower() in NOT_FINITE_NAMES or name in ("X", "Y", "Z"):
+        return False
+    if name[0] in "xyz" and name[1:].isdigit():
+        return False  # looks like a lower-case operator
+    return not (name[0].isupper() and len(name) > 1 and name[1].isdigit())
 
 
 def letters_and_factor(g: OpString) -> tuple[str, str, int]:
@@ -22,7 +53,7 @@ def letters_and_factor(g: OpString) -> tuple[str, str, int]:
     text, latex = [], []
     implicit = 0
     for site, a, b in g.factors:
-        label = _label(site)
+        label = site_text(site)
         tex_label = _tex_label(site)
         if n == 2 and a == 1 and b == 1:
             text.append(f"Y{label}")
@@ -38,25 +69,19 @@ def letters_and_factor(g: OpString) -> tuple[str, str, int]:
     return " ".join(text), " ".join(latex), (g.phase - implicit) % (2 * n)
 
 
-def _label(site: Any) -> str:
+def site_text(site: Any) -> str:
+    """A site label as the parser reads it: ``3``, ``(0,1)``, ``(-1)``, ``(5,)``."""
     if isinstance(site, tuple):
-        return "(" + ",".join(str(v) for v in site) + ")"
-    return str(site)
+        inner = ",".join(str(int(v)) for v in site)
+        return f"({inner},)" if len(site) == 1 else f"({inner})"
+    value = int(site)
+    return str(value) if value >= 0 else f"({value})"
 
 
 def _tex_label(site: Any) -> str:
     if isinstance(site, tuple):
         return ",".join(str(v) for v in site)
     return str(site)
-
-
-def _fold(c: Any, exponent: int, n: int) -> Any:
-    k = exponent % (2 * n)
-    if k == 0:
-        return c
-    if isinstance(c, sympy.Basic):
-        return c * sympy.exp(sympy.I * sympy.pi * k / n)
-    return complex(c) * unit_phase(k, n)
 
 
 def _is_negative(c: Any) -> bool:
@@ -67,8 +92,12 @@ def _is_negative(c: Any) -> bool:
     return bool(c < 0)
 
 
-def coefficient_text(c: Any) -> str:
-    """A coefficient in the text syntax: ``3``, ``0.25``, ``3/4``, ``(1+2j)``, ``g``, ``2*g``."""
+def coefficient_text(c: Any, states: int | None = None) -> str:
+    """A coefficient in the text syntax: ``3``, ``0.25``, ``3/4``, ``(1.0+2.0j)``, ``2*g``.
+
+    ``states`` is needed only to print phases ``exp(i pi k / N)`` of sympy expressions as
+    powers of ``w``.
+    """
     if isinstance(c, bool):
         raise TypeError("booleans are not couplings")
     if isinstance(c, int):
@@ -82,18 +111,112 @@ def coefficient_text(c: Any) -> str:
             return repr(c.real)
         return "(" + repr(c.real) + ("+" if c.imag >= 0 else "-") + repr(abs(c.imag)) + "j)"
     if isinstance(c, sympy.Basic):
-        return sympy.sstr(c).replace(" ", "").replace("**", "^")
+        return _expr(c, states)[0]
     return str(c)
+
+
+def _wrap(part: tuple[str, int], level: int) -> str:
+    """The text of ``part``, parenthesised when it binds more loosely than ``level``."""
+    text, prec = part
+    return f"({text})" if prec < level else text
+
+
+def _expr(e: Any, states: int | None) -> tuple[str, int]:
+    """Text and precedence of a sympy expression in the coefficient grammar."""
+    if e.is_Symbol:
+        name = str(e)
+        # a name the parser cannot read is quoted with backticks, which it rejects clearly
+        return (name if is_plain_name(name) else f"`{name}`"), _ATOM
+    if e.is_Integer:
+        return str(int(e)), (_ATOM if e >= 0 else _SUM)
+    if e.is_Rational:
+        return f"{int(e.p)}/{int(e.q)}", (_PRODUCT if e > 0 else _SUM)
+    if e.is_Float:
+        return repr(float(e)), (_ATOM if e >= 0 else _SUM)
+    if e is sympy.I:
+        return "1j", _ATOM
+    phase = _phase_power(e, states)
+    if phase is not None:
+        return ("w" if phase == 1 else f"w^{phase}"), _POWER
+    if e.is_Add:
+        return _sum_text(e, states), _SUM
+    if e.is_Mul:
+        return _product_text(e, states)
+    if e.is_Pow:
+        return _power_text(e, states)
+    return sympy.sstr(e).replace(" ", "").replace("**", "^"), _ATOM
+
+
+def _phase_power(e: Any, states: int | None) -> int | None:
+    """k when ``e = exp(i pi k / N)`` with integer k, else None."""
+    if states is None or not isinstance(e, sympy.exp):
+        return None
+    q = sympy.simplify(e.args[0] / (sympy.I * sympy.pi))
+    if not q.is_Rational:
+        return None
+    k = q * states
+    return int(k) if k.is_Integer else None
+
+
+def _sum_text(e: Any, states: int | None) -> str:
+    out = ""
+    for j, term in enumerate(sympy.Add.make_args(e)):
+        if term.could_extract_minus_sign():
+            body = _wrap(_expr(-term, states), _PRODUCT)
+            out += "-" + body
+        else:
+            body = _wrap(_expr(term, states), _PRODUCT)
+            out += ("" if j == 0 else "+") + body
+    return out
+
+
+def _product_text(e: Any, states: int | None) -> tuple[str, int]:
+    if e.could_extract_minus_sign():
+        return "-" + _wrap(_expr(-e, states), _PRODUCT), _SUM
+    coeff, rest = e.as_coeff_Mul()
+    if rest is sympy.I and (coeff.is_Integer or coeff.is_Float):
+        return _expr(coeff, states)[0] + "j", _ATOM
+    num: list[str] = []
+    den: list[str] = []
+    if coeff != 1:
+        if coeff.is_Rational and not coeff.is_Integer:
+            if coeff.p != 1:
+                num.append(str(int(coeff.p)))
+            den.append(str(int(coeff.q)))
+        else:
+            num.append(_wrap(_expr(coeff, states), _PRODUCT))
+    for f in sympy.Mul.make_args(rest):
+        if f.is_Pow and f.exp.is_Rational and f.exp < 0:
+            den.append(_wrap(_expr(f.base ** (-f.exp), states), _POWER))
+        else:
+            num.append(_wrap(_expr(f, states), _PRODUCT))
+    text = "*".join(num) if num else "1"
+    for d in den:
+        text += "/" + d
+    return text, _PRODUCT
+
+
+def _power_text(e: Any, states: int | None) -> tuple[str, int]:
+    base, expo = e.base, e.exp
+    if expo.is_Integer and expo < 0:
+        return "1/" + _wrap(_expr(base ** (-expo), states), _POWER), _PRODUCT
+    base_text = _wrap(_expr(base, states), _ATOM)
+    if expo.is_Integer:
+        return f"{base_text}^{int(expo)}", _POWER
+    if expo.is_Rational:
+        return f"{base_text}^({int(expo.p)}/{int(expo.q)})", _POWER
+    return f"{base_text}^({sympy.sstr(expo).replace(' ', '').replace('**', '^')})", _POWER
 
 
 def format_terms(terms: Sequence[tuple[Any, OpString]], constant: Any = 0) -> str:
     """The terms ``c_j g_j`` (and a constant) as one line of text syntax."""
     pieces: list[tuple[bool, str]] = []
+    states = terms[0][1].states if terms else None
     if constant != 0:
-        pieces.append(_signed(constant, ""))
+        pieces.append(_signed(constant, 0, "", states))
     for c, g in terms:
         text, _, extra = letters_and_factor(g)
-        pieces.append(_signed(_fold(c, extra, g.states), text))
+        pieces.append(_signed(c, extra, text, g.states))
     if not pieces:
         return "0"
     out = ("-" if pieces[0][0] else "") + pieces[0][1]
@@ -102,12 +225,16 @@ def format_terms(terms: Sequence[tuple[Any, OpString]], constant: Any = 0) -> st
     return out
 
 
-def _signed(c: Any, letters: str) -> tuple[bool, str]:
+def _signed(c: Any, phase: int, letters: str, states: int | None) -> tuple[bool, str]:
+    """Sign and magnitude text of ``c * w^phase * letters``."""
     neg = _is_negative(c)
     mag = -c if neg else c
-    coef = coefficient_text(mag)
+    coef = coefficient_text(mag, states)
     if isinstance(mag, sympy.Basic) and mag.is_Add:
         coef = f"({coef})"
+    if phase:
+        w = "w" if phase == 1 else f"w^{phase}"
+        coef = w if coef == "1" else f"{coef}*{w}"
     if letters and coef in ("1", "1.0"):
         return neg, letters
     return neg, f"{coef} {letters}".strip()
@@ -117,14 +244,25 @@ def format_terms_latex(terms: Sequence[tuple[Any, OpString]], constant: Any = 0)
     """The terms as a LaTeX expression (without surrounding dollars)."""
     pieces = []
     if constant != 0:
-        pieces.append(sympy.latex(sympy.nsimplify(constant) if not isinstance(constant, float) else constant))
+        pieces.append(_latex_number(constant))
     for c, g in terms:
         _, tex, extra = letters_and_factor(g)
-        folded = _fold(c, extra, g.states)
-        coef = sympy.latex(folded) if isinstance(folded, sympy.Basic) else coefficient_text(folded)
+        coef = _latex_number(c)
         if coef in ("1", "1.0"):
             coef = ""
         elif coef in ("-1", "-1.0"):
             coef = "-"
+        elif isinstance(c, sympy.Basic) and c.is_Add:
+            coef = rf"\left({coef}\right)"
+        if extra:
+            coef += rf" e^{{{extra} i \pi / {g.states}}}"
         pieces.append(f"{coef} {tex}".strip())
     return " + ".join(pieces).replace("+ -", "- ") if pieces else "0"
+
+
+def _latex_number(c: Any) -> str:
+    if isinstance(c, sympy.Basic):
+        return sympy.latex(c)
+    if isinstance(c, Fraction):
+        return sympy.latex(sympy.Rational(c.numerator, c.denominator))
+    return coefficient_text(c)

@@ -27,7 +27,7 @@ from __future__ import annotations
 
 import cmath
 import math
-from collections.abc import Hashable, Iterable, Sequence
+from collections.abc import Callable, Hashable, Iterable, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -230,9 +230,7 @@ def _from_dict(states: int, exps: dict[Any, tuple[int, int]], phase: int) -> OpS
     return OpString(states, factors, phase % (2 * states))
 
 
-def make_string(
-    states: int, factors: Iterable[tuple[Any, int, int]], phase: int = 0
-) -> OpString:
+def make_string(states: int, factors: Iterable[tuple[Any, int, int]], phase: int = 0) -> OpString:
     """Build a string from one-site factors ``X_s^a Z_s^b`` given left to right.
 
     Repeated sites are multiplied exactly in the order given, so ``[(0, 0, 1), (0, 1, 0)]``
@@ -273,7 +271,7 @@ def pauli(letters: str | Sequence[str], sites: Sequence[Any] | None = None) -> O
     table = {"I": (0, 0), "X": (1, 0), "Z": (0, 1), "Y": (1, 1)}
     factors = []
     phase = 0
-    for s, ch in zip(sites, letters):
+    for s, ch in zip(sites, letters, strict=True):
         if ch not in table:
             raise ValueError(f"unknown Pauli letter {ch!r}; use I, X, Y or Z")
         a, b = table[ch]
@@ -321,7 +319,10 @@ class StringArray:
     # -- construction ------------------------------------------------------------------------
     @classmethod
     def from_strings(
-        cls, strings: Sequence[OpString], sites: Sequence[Any] | None = None, states: int | None = None
+        cls,
+        strings: Sequence[OpString],
+        sites: Sequence[Any] | None = None,
+        states: int | None = None,
     ) -> StringArray:
         """Pack :class:`OpString` objects; ``sites`` defaults to the sorted union of supports."""
         if states is None:
@@ -338,7 +339,9 @@ class StringArray:
             phases.append(g.phase)
             for s, a, b in g.factors:
                 if s not in col:
-                    raise ValueError(f"string {r} acts on site {s!r}, which is not in the site list")
+                    raise ValueError(
+                        f"string {r} acts on site {s!r}, which is not in the site list"
+                    )
                 rows.append(r)
                 cols.append(col[s])
                 xs.append(a)
@@ -358,7 +361,7 @@ class StringArray:
         exps: dict[Any, list[int]] = {}
         for mat, slot in ((self.x, 0), (self.z, 1)):
             lo, hi = mat.indptr[r], mat.indptr[r + 1]
-            for j, v in zip(mat.indices[lo:hi], mat.data[lo:hi]):
+            for j, v in zip(mat.indices[lo:hi], mat.data[lo:hi], strict=True):
                 exps.setdefault(self.sites[j], [0, 0])[slot] = int(v)
         factors = tuple((s, a, b) for s, (a, b) in sorted(exps.items()))
         return OpString(self.states, factors, int(self.phase[r]))
@@ -386,14 +389,14 @@ class StringArray:
         return self.commutation_with(self)
 
     def commutation_with(self, other: StringArray) -> sps.csr_array:
-        """Sparse ``(n, k)`` matrix of exponents m with ``self[a] other[b] = omega^m other[b] self[a]``."""
+        """Sparse ``(n, k)`` exponents m with ``self[a] other[b] = omega^m other[b] self[a]``."""
         self._check_compatible(other)
         a = self.z @ other.x.T
         b = self.x @ other.z.T
         return _clean(sps.csr_array(a - b), self.states)
 
     def products(self, left: Any, right: Any, other: StringArray | None = None) -> StringArray:
-        """Row-wise products ``self[left[k]] @ other[right[k]]`` for index arrays of equal length."""
+        """Row-wise products ``self[left[k]] @ other[right[k]]`` for equal-length index arrays."""
         other = self if other is None else other
         self._check_compatible(other)
         left = np.asarray(left, dtype=np.int64)
@@ -424,9 +427,9 @@ class StringArray:
         n = self.states
         prod = self.x.multiply(self.z)
         canon = np.asarray(
-            sps.csr_array(((prod.data * (n - 1)) % 2, prod.indices, prod.indptr), shape=prod.shape).sum(
-                axis=1
-            )
+            sps.csr_array(
+                ((prod.data * (n - 1)) % 2, prod.indices, prod.indptr), shape=prod.shape
+            ).sum(axis=1)
         ).ravel() % (2 * n)
         g = StringArray(self.x, self.z, canon, n, self.sites)
         return g, (self.phase - canon) % (2 * n)
@@ -469,6 +472,15 @@ def _negate(mat: sps.csr_array, n: int) -> sps.csr_array:
 def _sum_to_sparse(
     arr: StringArray, coeffs: np.ndarray, sites: Sequence[Any] | None
 ) -> sps.csr_array:
+    """Build ``sum_r coeffs[r] g_r`` directly in CSR form.
+
+    Every distinct X pattern ``a`` contributes exactly one entry to each row ``r``, in column
+    ``c(r) = r - a`` (digit-wise mod N; ``r XOR a`` for N = 2), with value
+    ``sum_t coeffs[t] w^{phase_t} omega^{b_t . c}`` over the terms ``t`` sharing that pattern.
+    Each row therefore holds one entry per pattern: the CSR arrays are filled block of rows by
+    block of rows, with no duplicate summation; only the column order inside each row is sorted
+    at the end.
+    """
     n = arr.states
     if sites is None:
         sites = arr.sites
@@ -479,49 +491,115 @@ def _sum_to_sparse(
     used = np.unique(np.concatenate([arr.x.indices, arr.z.indices])).astype(np.int64)
     for j in used:
         if arr.sites[j] not in col_of:
-            raise ValueError(f"a string acts on site {arr.sites[j]!r}, which is not in the site list")
+            raise ValueError(
+                f"a string acts on site {arr.sites[j]!r}, which is not in the site list"
+            )
     n_sites = len(sites)
     dim = n**n_sites
     if dim > 2**31:
         raise ValueError(f"dimension {n}^{n_sites} = {dim} is too large to build a matrix")
+    if len(arr) == 0:
+        return sps.csr_array((dim, dim), dtype=float)
     # Place value of each used column in the basis index; exponents restricted to used columns.
     pw = np.array([n ** (n_sites - 1 - col_of[arr.sites[j]]) for j in used], dtype=np.int64)
     xd = arr.x[:, used].toarray()
     zd = arr.z[:, used].toarray()
-    basis = np.arange(dim, dtype=np.int64)
     table = np.array([unit_phase(k, n) for k in range(2 * n)], dtype=complex)
-    # Group terms by their X pattern.
+    weights = coeffs * table[arr.phase % (2 * n)]  # coefficient times w^phase, per term
     keys, group = np.unique(xd, axis=0, return_inverse=True)
     group = np.asarray(group).ravel()
-    digits_cache: dict[int, np.ndarray] = {}
-
-    def digits(k: int) -> np.ndarray:
-        if k not in digits_cache:
-            digits_cache[k] = (basis // pw[k]) % n
-        return digits_cache[k]
-
-    blocks_rows, blocks_vals = [], []
-    for gi in range(len(keys)):
-        members = np.nonzero(group == gi)[0]
-        vals = np.zeros(dim, dtype=complex)
-        for r in members:
-            expo = np.full(dim, int(arr.phase[r]), dtype=np.int64)
-            for k in np.nonzero(zd[r])[0]:
-                expo += 2 * int(zd[r, k]) * digits(int(k))
-            vals += coeffs[r] * table[expo % (2 * n)]
-        shift = np.zeros(dim, dtype=np.int64)
-        for k in np.nonzero(keys[gi])[0]:
-            d = digits(int(k))
-            shift += (((d + int(keys[gi][k])) % n) - d) * pw[k]
-        blocks_rows.append(basis + shift)
-        blocks_vals.append(vals)
-    if not blocks_rows:
-        return sps.csr_array((dim, dim), dtype=float)
-    rows = np.concatenate(blocks_rows)
-    cols = np.tile(basis, len(blocks_rows))
-    data = np.concatenate(blocks_vals)
-    if np.all(data.imag == 0):
+    members = [np.nonzero(group == g)[0] for g in range(len(keys))]
+    width = len(keys)
+    index_type = np.int32 if dim * width < 2**31 else np.int64
+    real = n == 2 and bool(np.all(weights.imag == 0))
+    indices = np.empty((dim, width), dtype=index_type)
+    data = np.empty((dim, width), dtype=float if real else complex)
+    block = max(1, min(dim, 2**18 // width))
+    cols = np.empty((width, block), dtype=np.int64)
+    vals = np.empty((width, block), dtype=data.dtype)
+    if n == 2:
+        fill = _pauli_block(keys @ pw, zd @ pw, members, weights.real if real else weights)
+    else:
+        fill = _clock_block(keys, zd, pw, members, weights, n)
+    for start in range(0, dim, block):
+        rows = np.arange(start, min(dim, start + block), dtype=np.int64)
+        size = len(rows)
+        fill(rows, cols[:, :size], vals[:, :size])
+        indices[start : start + size] = cols[:, :size].T
+        data[start : start + size] = vals[:, :size].T
+    if not real and np.all(data.imag == 0):
         data = data.real
-    mat = sps.csr_array((data, (rows, cols)), shape=(dim, dim))
+    indptr = np.arange(0, (dim + 1) * width, width, dtype=index_type)
+    mat = sps.csr_array((data.reshape(-1), indices.reshape(-1), indptr), shape=(dim, dim))
+    mat.sort_indices()
     mat.eliminate_zeros()
     return mat
+
+
+def _parity(x: np.ndarray) -> np.ndarray:
+    """Parity of the number of set bits of each (non-negative) entry."""
+    if hasattr(np, "bitwise_count"):
+        return np.bitwise_count(x) & 1
+    x = x.copy()
+    for s in (32, 16, 8, 4, 2, 1):
+        x ^= x >> s
+    return x & 1
+
+
+BlockFill = Callable[[np.ndarray, np.ndarray, np.ndarray], None]
+
+
+def _pauli_block(
+    a_masks: np.ndarray, b_masks: np.ndarray, members: list[np.ndarray], weights: np.ndarray
+) -> BlockFill:
+    """N = 2: entry ``(r, r ^ a)`` is ``sum_t weight_t (-1)^{popcount(b_t & (r ^ a))}``."""
+    # parity(b & (r ^ a)) = parity(b & a) xor parity(b & r): fold parity(b & a) into the weight.
+    signed = [
+        [
+            (int(b_masks[t]), weights[t] * (-1) ** (bin(int(a) & int(b_masks[t])).count("1") % 2))
+            for t in group
+        ]
+        for a, group in zip(a_masks, members, strict=True)
+    ]
+
+    def fill(rows: np.ndarray, cols: np.ndarray, vals: np.ndarray) -> None:
+        for g, a in enumerate(a_masks):
+            np.bitwise_xor(rows, int(a), out=cols[g])
+            vals[g] = sum(wt for b, wt in signed[g])
+            for b, wt in signed[g]:
+                if b:
+                    vals[g] -= (2 * wt) * _parity(rows & b)
+
+    return fill
+
+
+def _clock_block(
+    keys: np.ndarray,
+    zd: np.ndarray,
+    pw: np.ndarray,
+    members: list[np.ndarray],
+    weights: np.ndarray,
+    n: int,
+) -> BlockFill:
+    """N > 2: entry ``(r, c)`` with digits ``c_k = r_k - a_k`` (mod N) is
+    ``sum_t weight_t omega^{b_t . c}``."""
+    omega_pow = np.array([unit_phase(2 * k, n) for k in range(n)], dtype=complex)
+
+    def fill(rows: np.ndarray, cols: np.ndarray, vals: np.ndarray) -> None:
+        digits = [(rows // pw[k]) % n for k in range(len(pw))]
+        for g, a in enumerate(keys):
+            col = rows.copy()
+            col_digits = list(digits)
+            for k in np.nonzero(a)[0]:
+                shifted = (digits[k] - int(a[k])) % n
+                col += (shifted - digits[k]) * pw[k]
+                col_digits[k] = shifted
+            cols[g] = col
+            vals[g] = 0
+            for t in members[g]:
+                expo = np.zeros(len(rows), dtype=np.int64)
+                for k in np.nonzero(zd[t])[0]:
+                    expo += int(zd[t, k]) * col_digits[k]
+                vals[g] += weights[t] * omega_pow[expo % n]
+
+    return fill
