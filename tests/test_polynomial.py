@@ -1,0 +1,240 @@
+"""The exclusion polynomial: exact coefficients, the general-graph algorithm, evaluation.
+
+References are named beside each check.  "Brute force" means an independent enumeration of
+independent sets with networkx (cliques of the complement graph).
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+import time
+from fractions import Fraction
+
+import networkx as nx
+import numpy as np
+import pytest
+import sympy
+
+import freeladder as fl
+from freeladder.independent import IndependenceGraph
+from freeladder.polynomial import _graph_sums, _Ring
+
+
+def _random_fractions(rng: np.random.Generator, n: int) -> list[Fraction]:
+    num = rng.integers(1, 10, n) * rng.choice([-1, 1], n)
+    return [Fraction(int(a), int(b)) for a, b in zip(num, rng.integers(1, 8, n), strict=True)]
+
+
+def _brute_sums(graph: nx.Graph, weights: list) -> list:
+    """C_s = sum over independent sets of size s of prod w, by enumerating them (networkx)."""
+    sums: dict[int, object] = {0: 1}
+    for clique in nx.enumerate_all_cliques(nx.complement(graph)):
+        sums[len(clique)] = sums.get(len(clique), 0) + math.prod(weights[v] for v in clique)
+    return [sums[s] for s in range(max(sums) + 1)]
+
+
+def _recurrence(weights: list, reach: int) -> list:
+    """Coefficients of P by the chain recurrence P_k = P_{k-1} - y w_k P_{k-p-1}, P_k = 1 (k <= 0)
+    (F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020)), as plain lists."""
+    window = [[1]] * (reach + 1)
+    for w in weights:
+        prev, old = window[0], window[reach]
+        new = list(prev) + [0] * (len(old) + 1 - len(prev))
+        for s, c in enumerate(old):
+            new[s + 1] -= w * c
+        while len(new) > 1 and new[-1] == 0:
+            new.pop()
+        window = [new, *window[:reach]]
+    return window[0]
+
+
+@pytest.mark.parametrize("reach", [1, 2, 3])
+@pytest.mark.parametrize("states", [2, 3])
+def test_chain_coefficients_match_recurrence(reach: int, states: int) -> None:
+    # Reference: the chain recurrence (Alcaraz-Pimenta 2020), re-implemented here on lists.
+    rng = np.random.default_rng(10 * reach + states)
+    cs = _random_fractions(rng, 17)
+    m = fl.exclusion_chain(17, reach=reach, states=states, couplings=cs)
+    poly = fl.exclusion_polynomial(m)
+    assert poly.chain is not None and poly.chain.reach == reach
+    expected = _recurrence([c**states for c in cs], reach)
+    assert list(poly.coefficients) == expected
+    assert poly.degree == (17 + reach) // (reach + 1) == len(expected) - 1
+    assert all(isinstance(c, (int, Fraction)) for c in poly.coefficients)
+    # The same numbers by brute force over the frustration graph (networkx).
+    graph = nx.Graph(fl.frustration_graph(m).to_undirected())
+    brute = _brute_sums(graph, [c**states for c in cs])
+    assert list(poly.weight_sums) == brute
+
+
+def test_general_algorithm_matches_brute_force_on_random_graphs() -> None:
+    # Reference: networkx enumeration of independent sets (cliques of the complement).
+    rng = np.random.default_rng(3)
+    for trial in range(60):
+        n = int(rng.integers(1, 14))
+        graph = nx.gnp_random_graph(n, float(rng.uniform(0.1, 0.8)), seed=trial)
+        weights = _random_fractions(rng, n)
+        g = IndependenceGraph(nx.to_scipy_sparse_array(graph, nodelist=range(n)))
+        got = _graph_sums(_Ring("rational"), g, weights)
+        brute = _brute_sums(graph, weights)
+        while len(brute) > 1 and brute[-1] == 0:
+            brute.pop()
+        assert got == brute, trial
+
+
+def _random_pauli_model(rng: np.random.Generator, n_terms: int, n_sites: int) -> fl.Model:
+    terms, seen = [], set()
+    while len(terms) < n_terms:
+        letters = "".join(rng.choice(list("IXYZ"), n_sites))
+        if set(letters) == {"I"} or letters in seen:
+            continue
+        seen.add(letters)
+        terms.append(
+            (Fraction(int(rng.integers(1, 9)), int(rng.integers(1, 5))), fl.pauli(letters))
+        )
+    return fl.Model.from_terms(terms, states=2, sites=range(n_sites))
+
+
+def test_models_with_general_graphs_match_brute_force() -> None:
+    # Random Pauli-string models give arbitrary frustration graphs; reference: networkx.
+    rng = np.random.default_rng(5)
+    for _ in range(15):
+        m = _random_pauli_model(rng, int(rng.integers(3, 12)), 4)
+        poly = fl.exclusion_polynomial(m)
+        weights = [c**2 for c in m.couplings]
+        assert list(poly.weight_sums) == _brute_sums(fl.frustration_graph(m), weights)
+
+
+def test_complex_couplings_give_rounded_exact_coefficients() -> None:
+    # Reference: networkx brute force in complex floating point (agreement to rounding).
+    cs = list(fl.complex_couplings(9, seed=4))
+    m = fl.exclusion_chain(9, reach=2, couplings=cs)
+    poly = fl.exclusion_polynomial(m)
+    assert poly.kind == "gaussian"
+    graph = nx.Graph(fl.frustration_graph(m))
+    brute = _brute_sums(graph, [complex(c) ** 2 for c in cs])
+    assert np.allclose(poly.weight_sums, brute, rtol=1e-13, atol=0)
+    re, im = poly.exact_parts()
+    assert all(isinstance(v, Fraction) for v in re + im)
+    # Evaluation through the complex recurrence against the brute-force coefficients.
+    for yv in (0.3, 0.2 - 0.5j):
+        ref = sum(c * (-yv) ** s for s, c in enumerate(brute))
+        assert poly(yv) == pytest.approx(ref, rel=1e-12)
+
+
+def test_symbolic_chain_of_four_terms_by_hand() -> None:
+    # Hand expansion (common practice): a path of 4 vertices has independent sets
+    # {}, {j}, {0,2}, {0,3}, {1,3}.
+    c = sympy.symbols("c_0:4")
+    y = sympy.Symbol("y")
+    m = fl.exclusion_chain(4, reach=1, couplings=list(c))
+    poly = fl.exclusion_polynomial(m)
+    w = [v**2 for v in c]
+    hand = 1 - y * sum(w) + y**2 * (w[0] * w[2] + w[0] * w[3] + w[1] * w[3])
+    assert sympy.expand(poly.sympy(y).as_expr() - hand) == 0
+    assert poly.kind == "symbolic" and poly.degree == 2
+    latex = poly._repr_latex_()
+    assert latex.startswith("$P(y) = 1") and "c_{0}^{2}" in latex
+    assert sympy.expand(poly(sympy.Rational(1, 3)) - hand.subs(y, sympy.Rational(1, 3))) == 0
+
+
+def test_float_evaluation_uses_the_recurrence_and_matches_exact_values() -> None:
+    # Reference: exact rational evaluation (Python Fractions) of the same coefficients.
+    cs = fl.random_couplings(40, 0.3, 1.7, seed=2)
+    m = fl.exclusion_chain(40, reach=2, couplings=cs)
+    poly = fl.exclusion_polynomial(m)
+    ys = np.array([0.01, 0.2, 0.7, 1.3, -0.4])
+    got = poly(ys)
+    for yv, value in zip(ys, got, strict=True):
+        exact = sum(c * Fraction(float(yv)) ** s for s, c in enumerate(poly.coefficients))
+        assert value == pytest.approx(float(exact), rel=1e-12, abs=1e-300)
+    assert isinstance(poly(0.2), float)
+    assert poly(Fraction(1, 5)) == sum(
+        c * Fraction(1, 5) ** s for s, c in enumerate(poly.coefficients)
+    )
+
+
+def test_uniform_ising_roots_give_sign_changes_without_overflow() -> None:
+    # Closed form (derived from the recurrence, BACKGROUND section 5; common practice):
+    # uniform N = 2, p = 1 chain of M terms has roots y_k = 1 / (4 cos^2(pi k / (M + 2))).
+    size = 3000
+    poly = fl.exclusion_polynomial(fl.exclusion_chain(size, reach=1))
+    k = np.arange(1, 40)
+    roots = 1 / (4 * np.cos(np.pi * k / (size + 2)) ** 2)
+    below, e_below = poly.evaluate_scaled(roots * (1 - 1e-9))
+    above, e_above = poly.evaluate_scaled(roots * (1 + 1e-9))
+    assert np.all(np.sign(below) != np.sign(above))
+    assert np.all(np.abs(below) >= 0.5) and np.all(np.abs(below) < 1)
+    # Exact check of the scale at one point: P(1/2) with integer recurrence (Fractions).
+    mant, expo = poly.evaluate_scaled(np.array([0.5]))
+    exact = poly(Fraction(1, 2))
+    assert float(mant[0]) * 2.0 ** float(expo[0]) == pytest.approx(float(exact), rel=1e-10)
+
+
+def test_non_chain_evaluation_is_exact_then_rounded() -> None:
+    # Reference: exact Fraction evaluation of the exact coefficients.
+    m = fl.kitaev_honeycomb(2, 4, jx=1, jy=2, jz=3)
+    poly = fl.exclusion_polynomial(m)
+    assert poly.chain is None
+    value = poly(0.3)
+    exact = sum(c * Fraction(0.3) ** s for s, c in enumerate(poly.coefficients))
+    assert value == float(exact)
+    zc = poly(np.array([0.3 + 0.1j]))
+    ref = sum(complex(c) * (0.3 + 0.1j) ** s for s, c in enumerate(poly.coefficients))
+    assert zc[0] == pytest.approx(ref, rel=1e-12)
+
+
+def test_honeycomb_strip_of_hundreds_of_terms_is_fast_and_consistent() -> None:
+    # Exact identities from the definition (common practice): C_1 = sum w_j and
+    # C_2 = ((sum w)^2 - sum w^2) / 2 - sum over edges w_a w_b.
+    m = fl.kitaev_honeycomb(3, 100, jx=1, jy=2, jz=3)
+    assert len(m) > 390
+    start = time.perf_counter()
+    poly = fl.exclusion_polynomial(m)
+    sums = poly.weight_sums
+    elapsed = time.perf_counter() - start
+    assert elapsed < 20, elapsed  # measured 0.5 s on 2 cores
+    w = [c**2 for c in m.couplings]
+    graph = fl.frustration_graph(m)
+    assert sums[1] == sum(w)
+    assert sums[2] == (sum(w) ** 2 - sum(v * v for v in w)) // 2 - sum(
+        w[a] * w[b] for a, b in graph.edges
+    )
+    # Degree = independence number; cross-check with networkx on a small strip.
+    small = fl.kitaev_honeycomb(2, 5)
+    brute = _brute_sums(fl.frustration_graph(small), [1] * len(small))
+    assert list(fl.exclusion_polynomial(small).weight_sums) == brute
+
+
+def test_bad_coupling_is_reported_with_its_term() -> None:
+    m = fl.exclusion_chain(3)
+    bad = fl.Model(m.strings, [1, float("nan"), 1])
+    with pytest.raises(ValueError, match="term 1"):
+        fl.exclusion_polynomial(bad)
+    with pytest.raises(TypeError):
+        fl.exclusion_polynomial("X0 Z1")  # type: ignore[arg-type]
+
+
+def test_uniform_chain_counts_and_large_chain_coefficients() -> None:
+    # Number of independent sets of size s of the p-th power of a path: C(M - p(s-1), s)
+    # (common practice); uniform weights w give C_s = count * w^s.
+    poly = fl.exclusion_polynomial(fl.exclusion_chain(500, reach=3, couplings=2))
+    for s in (0, 1, 7, 125):
+        assert poly.weight_sums[s] == math.comb(500 - 3 * (s - 1), s) * 4**s if s else 1
+    assert poly.degree == 125
+    assert "\\cdots" in poly._repr_latex_() and "ExclusionPolynomial(degree=125" in repr(poly)
+
+
+def test_products_of_small_weights_are_exact() -> None:
+    # Every coefficient of a 2-term commuting model is a product of two weights (by hand).
+    m = fl.Model.from_terms([(Fraction(1, 3), fl.pauli("X")), (Fraction(2, 5), fl.pauli("IX"))])
+    assert fl.exclusion_polynomial(m).coefficients == (
+        1,
+        -Fraction(1, 9) - Fraction(4, 25),
+        Fraction(4, 225),
+    )
+    assert list(itertools.islice(fl.exclusion_polynomial(m).weights, 2)) == [
+        Fraction(1, 9),
+        Fraction(4, 25),
+    ]
