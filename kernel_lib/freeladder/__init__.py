@@ -15,12 +15,80 @@ from .builders import (
     random_couplings,
     staggered,
 )
+from .certify import CertifiedRoots, ChainEnclosures, certified_roots, certify_chain_roots
+from .charges import ChargeStep, ChargeTerm, charge, charge_series, transfer_matrix
+from .ed import ExactSpectrum, exact_spectrum
+from .edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
+from .graph import (
+    ChainStructure,
+    chain_structure,
+    commutation_exponents,
+    frustration_adjacency,
+    frustration_graph,
+)
 from .model import Model, Term
+from .operators import OpSum
+from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
+from .roots import (
+    RealRoots,
+    chain_count_below,
+    chain_inverse_power_sums,
+    chain_real_roots,
+    chain_root_count,
+)
+from .spectrum import FreeSpectrum, Level, LevelTable, free_spectrum
 from .strings import OpString, StringArray, make_string, pauli
+from .syntax import ModelSyntaxError, parse_model
+from .thermo import Thermodynamics, log_partition_function, thermodynamics
+from .verdict import ComponentVerdict, Verdict, classify
+from .verify import Check, Report, verify
 
 __all__ = [
+    "ChainData",
+    "ChainStructure",
+    "CertifiedRoots",
+    "ChainEnclosures",
+    "RealRoots",
+    "certified_roots",
+    "certify_chain_roots",
+    "chain_count_below",
+    "chain_inverse_power_sums",
+    "chain_real_roots",
+    "chain_root_count",
+    "ChargeStep",
+    "ChargeTerm",
+    "ExclusionPolynomial",
+    "charge",
+    "charge_series",
+    "exclusion_polynomial",
+    "transfer_matrix",
+    "ComponentVerdict",
+    "Verdict",
+    "classify",
+    "chain_structure",
+    "commutation_exponents",
+    "frustration_adjacency",
+    "frustration_graph",
+    "ExactSpectrum",
+    "FreeSpectrum",
+    "Level",
+    "LevelTable",
+    "Thermodynamics",
+    "free_spectrum",
+    "log_partition_function",
+    "thermodynamics",
+    "exact_spectrum",
     "Model",
+    "ModelSyntaxError",
     "OpString",
+    "OpSum",
+    "Check",
+    "EdgeMode",
+    "LadderOperators",
+    "Report",
+    "edge_mode",
+    "ladder_operators",
+    "verify",
     "StringArray",
     "Term",
     "clock_chain",
@@ -31,6 +99,7 @@ __all__ = [
     "kitaev_honeycomb",
     "make_string",
     "pauli",
+    "parse_model",
     "random_couplings",
     "staggered",
 ]

@@ -1,0 +1,786 @@
+"""The free spectrum of a model: quasi-energies, many-body levels, ground energy, gap.
+
+Every level of a free model is ``E = constant + sum_k omega^{s_k} eta_k`` with the choices
+``s_k in {0, ..., N-1}`` made independently, ``omega = exp(2 pi i / N)`` and ``eta_k^N = 1/y_k``
+for the roots ``y_k`` of the exclusion polynomial ``P``.  :func:`free_spectrum` finds the
+roots by the cheapest route that fits the model and records how, and how accurately, in
+``FreeSpectrum.provenance``.
+
+References
+----------
+P. Fendley, J. Phys. A 52, 335002 (2019), arXiv:1901.08078 (free fermions in disguise);
+F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622
+(reach-p exclusion chains, any N); S. J. Elman, A. Chapman and S. T. Flammia,
+Commun. Math. Phys. 388, 969 (2021), arXiv:2012.07857 (claw-free frustration graphs);
+R. J. Baxter, Phys. Lett. A 140, 155 (1989); P. Fendley, J. Phys. A 47, 075001 (2014)
+(free parafermions).
+"""
+
+from __future__ import annotations
+
+import heapq
+import html
+import math
+import time
+from collections.abc import Iterator, Mapping, Sequence
+from dataclasses import dataclass
+from types import MappingProxyType
+from typing import Any, overload
+
+import numpy as np
+
+from . import certify, roots
+from .graph import chain_structure, frustration_adjacency
+from .model import Model
+from .polynomial import exclusion_polynomial
+from .roots_complex import aberth_chain_roots, certified_complex_roots
+from .verdict import classify
+
+LEVEL_LIMIT = 2**22
+"""Largest number ``N^S`` of choices that :meth:`FreeSpectrum.levels` lists in full."""
+
+_EXACT_DOS_LIMIT = 2**20
+
+
+@dataclass(frozen=True)
+class Level:
+    """One many-body level ``E = constant + sum_k omega^{occupation[k]} eta_k``.
+
+    Attributes
+    ----------
+    energy : complex or float
+        Real for N = 2 with real quasi-energies.
+    multiplicity : int or None
+        The model's degeneracy (:attr:`FreeSpectrum.degeneracy`); None when the model does not
+        guarantee one.  Distinct choices that happen to give the same energy are listed as
+        separate levels, each with this multiplicity.
+    occupation : tuple of int
+        ``s_k`` per quasi-energy, in the order of :attr:`FreeSpectrum.quasi_energies`.
+        For N = 2, ``s_k = 1`` means ``-eta_k`` (the mode is "filled").
+    """
+
+    energy: complex | float
+    multiplicity: int | None
+    occupation: tuple[int, ...]
+
+
+class LevelTable(Sequence[Level]):
+    """Levels in increasing order of their real part, stored as arrays.
+
+    Attributes
+    ----------
+    energies : ndarray
+        One energy per listed choice.
+    occupations : ndarray of int8, shape (count, S)
+        The choices ``s_k``.
+    multiplicity : int or None
+        The model's degeneracy, shared by every level (see :class:`Level`).
+    """
+
+    def __init__(self, energies: np.ndarray, occupations: np.ndarray, multiplicity: int | None):
+        self.energies = energies
+        self.occupations = occupations
+        self.multiplicity = multiplicity
+        energies.setflags(write=False)
+        occupations.setflags(write=False)
+
+    def __len__(self) -> int:
+        return int(self.energies.shape[0])
+
+    @overload
+    def __getitem__(self, i: int) -> Level: ...
+
+    @overload
+    def __getitem__(self, i: slice) -> LevelTable: ...
+
+    def __getitem__(self, i: int | slice) -> Level | LevelTable:
+        if isinstance(i, slice):
+            return LevelTable(
+                self.energies[i].copy(), self.occupations[i].copy(), self.multiplicity
+            )
+        e = self.energies[i]
+        return Level(e.item(), self.multiplicity, tuple(int(v) for v in self.occupations[i]))
+
+    def __iter__(self) -> Iterator[Level]:
+        return (self[i] for i in range(len(self)))
+
+    def __repr__(self) -> str:
+        shown = ", ".join(f"{_fmt(e)}" for e in self.energies[:6])
+        more = ", ..." if len(self) > 6 else ""
+        return f"LevelTable({len(self)} levels, multiplicity {self.multiplicity}: {shown}{more})"
+
+
+@dataclass(frozen=True)
+class DensityOfStates:
+    """Histogram of the many-body levels (real parts) over given energy bins.
+
+    Attributes
+    ----------
+    edges : ndarray
+        Bin edges as given.
+    fraction : ndarray
+        Fraction of all ``N^S`` choices whose energy falls in each bin (half-open bins
+        ``[edges[i], edges[i+1])``, the last one closed).
+    counts : ndarray of float
+        ``fraction * N^S * degeneracy`` (``inf`` when that overflows; degeneracy 1 when unknown).
+        Exact integers (as floats) for the enumeration.
+    max_shift : float
+        Largest possible distance between a level and the position at which it was counted:
+        0 for the exact enumeration, ``sum_k |eta_k - h m_k|`` for the grid convolution.
+    method : str
+    """
+
+    edges: np.ndarray
+    fraction: np.ndarray
+    counts: np.ndarray
+    max_shift: float
+    method: str
+
+
+class FreeSpectrum:
+    """Quasi-energies of a free model and what follows from them (immutable).
+
+    Attributes
+    ----------
+    roots : ndarray of complex
+        Roots ``y_k`` of the exclusion polynomial, in the order of ``quasi_energies``.
+    quasi_energies : ndarray
+        ``eta_k`` with ``eta_k^N = 1 / y_k``, sorted by ``|eta|``.  For N = 2 and real positive
+        roots, ``eta_k = y_k^{-1/2} > 0`` (float array).  Otherwise the principal N-th root of
+        ``1 / y_k`` (complex array): the set of levels ``{sum_k omega^{s_k} eta_k}`` does not
+        depend on which N-th root is taken, since the choices ``s_k`` run over all of them.
+    error_bounds : ndarray of float
+        Per quasi-energy: bound (or estimate, see ``provenance["bounds"]``) on the distance to
+        the nearest N-th root of the exact ``1 / y_k``.
+    constant : complex or float
+        The model's constant term, included in every level.
+    states : int
+        N.
+    sites : int
+        Number of sites of the model (thermodynamic quantities are per site).
+    dimension : int
+        Hilbert-space dimension ``N^sites``.
+    degeneracy : int or None
+        Multiplicity of every level when the model guarantees one, else None; the reason is
+        ``degeneracy_reason``.
+    complete : bool
+        False when only the ``lowest`` quasi-energies were computed; then quantities that need
+        all of them (ground energy, levels, thermodynamics) raise ``ValueError``.
+    provenance : mapping
+        How the result was obtained and how accurate it is: ``method``, ``path``,
+        ``iterations``, ``guaranteed`` (a theorem covers the model) and ``guarantee`` (which,
+        or why not), ``sum_rules`` (relative residuals of ``sum eta^N = sum c^N`` and
+        ``sum eta^{2N} = (sum c^N)^2 - 2 C_2``), ``max_error_bound``, ``bounds`` (what the
+        error bounds mean), ``seconds``.
+    """
+
+    def __init__(
+        self,
+        roots_y: np.ndarray,
+        quasi_energies: np.ndarray,
+        error_bounds: np.ndarray,
+        constant: complex | float,
+        states: int,
+        sites: int,
+        degeneracy: int | None,
+        degeneracy_reason: str,
+        complete: bool,
+        provenance: Mapping[str, Any],
+    ) -> None:
+        for arr in (roots_y, quasi_energies, error_bounds):
+            arr.setflags(write=False)
+        self.__dict__.update(
+            roots=roots_y,
+            quasi_energies=quasi_energies,
+            error_bounds=error_bounds,
+            constant=constant,
+            states=int(states),
+            sites=int(sites),
+            dimension=int(states) ** int(sites),
+            degeneracy=degeneracy,
+            degeneracy_reason=degeneracy_reason,
+            complete=bool(complete),
+            provenance=MappingProxyType(dict(provenance)),
+        )
+
+    roots: np.ndarray
+    quasi_energies: np.ndarray
+    error_bounds: np.ndarray
+    constant: complex | float
+    states: int
+    sites: int
+    dimension: int
+    degeneracy: int | None
+    degeneracy_reason: str
+    complete: bool
+    provenance: Mapping[str, Any]
+
+    def __setattr__(self, name: str, value: Any) -> None:
+        raise AttributeError("FreeSpectrum is immutable")
+
+    def __len__(self) -> int:
+        return int(self.quasi_energies.shape[0])
+
+    # -- per-mode choices ----------------------------------------------------------------------
+    def _mode_table(self) -> tuple[np.ndarray, np.ndarray]:
+        """``values[k, r]`` = ``omega^{s} eta_k`` for the r-th best choice ``s = rank[k, r]``."""
+        n = self.states
+        omega = np.exp(2j * np.pi * np.arange(n) / n)
+        if n == 2:
+            omega = np.array([1.0, -1.0])
+        vals = self.quasi_energies[:, None] * omega[None, :]
+        rank = np.argsort(vals.real, axis=1, kind="stable")
+        return np.take_along_axis(vals, rank, axis=1), rank
+
+    def _need_complete(self, what: str) -> None:
+        if not self.complete:
+            raise ValueError(
+                f"{what} needs all {self.provenance.get('count', '?')} quasi-energies; this "
+                f"spectrum holds only the lowest {len(self)} (free_spectrum(..., lowest=None))"
+            )
+
+    @property
+    def ground_energy(self) -> complex | float:
+        """The level with the lowest real part: ``constant + sum_k min_s Re(omega^s eta_k)``.
+
+        For ``H = -sum b_j g_j`` with ``b_j > 0`` this is ``constant - sum_k eta_k``
+        (BACKGROUND: P. Fendley 2019; F. C. Alcaraz and R. A. Pimenta 2020).  Each mode is
+        minimised independently.
+        """
+        self._need_complete("the ground energy")
+        vals, _ = self._mode_table()
+        return _scalar(self.constant + vals[:, 0].sum())
+
+    @property
+    def gap(self) -> float:
+        """Lowest excitation above the ground level: ``min_k min_{s != s_0(k)} Re(omega^s eta_k
+        - omega^{s_0(k)} eta_k)``, the real part of the energy needed to change one mode.
+
+        For N = 2 this is ``2 min_k eta_k``, including an exponentially small edge mode when
+        there is one (the bulk gap is then ``2 eta`` of the next mode).  Levels are counted by
+        choice, so the gap is zero when a quasi-energy vanishes; the degeneracy
+        :attr:`degeneracy` is not a gap.  Needs only the lowest quasi-energies for N = 2.
+        """
+        if self.states == 2 and np.isrealobj(self.quasi_energies):
+            return float(2.0 * np.min(self.quasi_energies)) if len(self) else float("nan")
+        vals, _ = self._mode_table()
+        if len(self) == 0:
+            return float("nan")
+        return float(np.min(vals[:, 1].real - vals[:, 0].real))
+
+    def levels(self, k: int | None = 10) -> LevelTable:
+        """The ``k`` lowest many-body levels in increasing order of their real part.
+
+        Best-first search over the choices with a heap: modes are sorted by their cheapest
+        excitation, and each popped choice spawns at most three successors (raise the last
+        changed mode to its next choice, change the next mode too, or move the change to the
+        next mode), so ``k`` levels cost ``O(k (S + log k))`` without listing ``N^S`` of them.
+
+        Parameters
+        ----------
+        k : int or None
+            How many levels; None lists all ``N^S`` (refused above :data:`LEVEL_LIMIT`).
+
+        Raises
+        ------
+        ValueError
+            If ``k < 1``, if all levels are asked for and ``N^S > LEVEL_LIMIT``, or if the
+            spectrum is incomplete.
+
+        Notes
+        -----
+        Each choice is reported separately, with the model's degeneracy as its multiplicity;
+        choices that coincide in energy (for example at special couplings) are not merged.
+        """
+        self._need_complete("levels()")
+        n_modes = len(self)
+        total = float(self.states) ** n_modes
+        if k is None:
+            if total > LEVEL_LIMIT:
+                raise ValueError(
+                    f"all levels means {self.states}^{n_modes} = {total:.3g} choices, more than "
+                    f"the limit {LEVEL_LIMIT}; ask for levels(k) with a number k"
+                )
+            return self._all_levels()
+        k = int(k)
+        if k < 1:
+            raise ValueError(f"levels(k) needs k >= 1, got {k}")
+        k = int(min(k, total))
+        vals, rank = self._mode_table()
+        inc = vals.real - vals[:, :1].real  # increments, ascending per mode, inc[:, 0] = 0
+        order = np.argsort(inc[:, 1], kind="stable") if n_modes else np.zeros(0, dtype=int)
+        base = self.constant + vals[:, 0].sum()
+        out_e = [base]
+        out_occ: list[tuple[tuple[int, int], ...]] = [()]
+        heap: list[tuple[float, int, int, int, tuple[tuple[int, int], ...]]] = []
+        counter = 0
+        if n_modes and self.states > 1:
+            heap.append((float(inc[order[0], 1]), counter, 0, 1, ((0, 1),)))
+        inc_sorted = inc[order]
+        n = self.states
+        while len(out_e) < k and heap:
+            cost, _, i, r, changes = heapq.heappop(heap)
+            out_e.append(cost)
+            out_occ.append(changes)
+            succ = []
+            if r + 1 < n:
+                succ.append(
+                    (
+                        cost - inc_sorted[i, r] + inc_sorted[i, r + 1],
+                        i,
+                        r + 1,
+                        changes[:-1] + ((i, r + 1),),
+                    )
+                )
+            if i + 1 < n_modes:
+                succ.append((cost + inc_sorted[i + 1, 1], i + 1, 1, changes + ((i + 1, 1),)))
+                if r == 1:
+                    succ.append(
+                        (
+                            cost - inc_sorted[i, 1] + inc_sorted[i + 1, 1],
+                            i + 1,
+                            1,
+                            changes[:-1] + ((i + 1, 1),),
+                        )
+                    )
+            for c, ii, rr, ch in succ:
+                counter += 1
+                heapq.heappush(heap, (float(c), counter, ii, rr, ch))
+        occ = np.tile(rank[:, 0].astype(np.int8), (len(out_e), 1))
+        energies = np.empty(len(out_e), dtype=vals.dtype)
+        for row, changes in enumerate(out_occ):
+            for i, r in changes:
+                occ[row, order[i]] = rank[order[i], r]
+            chosen = vals[np.arange(n_modes), _rank_index(rank, occ[row])]
+            energies[row] = self.constant + chosen.sum() if n_modes else base
+        return LevelTable(_maybe_real(energies), occ, self.degeneracy)
+
+    def _all_levels(self) -> LevelTable:
+        n, n_modes = self.states, len(self)
+        omega = np.array([1.0, -1.0]) if n == 2 else np.exp(2j * np.pi * np.arange(n) / n)
+        energies = np.full(1, self.constant, dtype=complex)
+        for eta in self.quasi_energies:
+            energies = (energies[:, None] + eta * omega[None, :]).ravel()
+        occ = np.indices((n,) * n_modes, dtype=np.int8).reshape(n_modes, -1).T
+        sort = np.argsort(energies.real, kind="stable")
+        return LevelTable(
+            _maybe_real(energies[sort]), np.ascontiguousarray(occ[sort]), self.degeneracy
+        )
+
+    def density_of_states(self, bins: Sequence[float] | np.ndarray) -> DensityOfStates:
+        """Histogram of all ``2^S`` levels over ``bins`` (N = 2, real quasi-energies).
+
+        Up to ``2^20`` choices the levels are enumerated exactly.  Beyond, the distribution is
+        the convolution of the per-mode two-point distributions ``(delta(E - eta_k) +
+        delta(E + eta_k)) / 2`` on a uniform grid of spacing ``h`` (a sixteenth of the narrowest
+        bin, coarsened if the grid would exceed ``2^22`` points); each ``eta_k`` is rounded to
+        ``h m_k`` and ``max_shift`` reports how far a level can have moved, so only levels
+        that close to a bin edge can be counted in the neighbouring bin.
+
+        Raises
+        ------
+        ValueError
+            For N > 2, complex quasi-energies, an incomplete spectrum or bad bins.
+        """
+        self._need_complete("density_of_states()")
+        if self.states != 2 or not np.isrealobj(self.quasi_energies):
+            raise ValueError("density_of_states() is for N = 2 with real quasi-energies")
+        edges = np.asarray(bins, dtype=float)
+        if edges.ndim != 1 or edges.shape[0] < 2 or np.any(np.diff(edges) <= 0):
+            raise ValueError("bins must be an increasing 1-d array of at least two edges")
+        eta = self.quasi_energies
+        c = float(np.real(self.constant))
+        log_mult = math.log(self.degeneracy or 1)
+        if 2.0 ** len(eta) <= _EXACT_DOS_LIMIT:
+            energies = np.full(1, c)
+            for e in eta:
+                energies = (energies[:, None] + np.array([e, -e])[None, :]).ravel()
+            counts, _ = np.histogram(energies, bins=edges)
+            frac = counts / energies.shape[0]
+            counts_exact = counts * math.exp(log_mult)
+            return DensityOfStates(edges, frac, counts_exact, 0.0, "exact enumeration")
+        span = 2.0 * float(eta.sum())
+        width = float(np.min(np.diff(edges)))
+        # spacing: each rounding moves a level by <= h / 2, so S h / 2 <= width / 4 if possible;
+        # the grid is capped so that the S passes over it stay below ~2e8 operations.
+        h = max(width / max(16, 2 * len(eta)), span / min(2**22, 2e8 / len(eta)))
+        steps = np.rint(eta / h).astype(np.int64)
+        half = int(steps.sum())
+        dist = np.zeros(2 * half + 1)
+        dist[half] = 1.0
+        reach = 0
+        for m in steps:
+            new = np.zeros_like(dist)
+            lo, hi = half - reach, half + reach + 1
+            new[lo - m : hi - m] += 0.5 * dist[lo:hi]
+            new[lo + m : hi + m] += 0.5 * dist[lo:hi]
+            dist = new
+            reach += int(m)
+        grid = c + h * np.arange(-half, half + 1)
+        frac, _ = np.histogram(grid, bins=edges, weights=dist)
+        with np.errstate(over="ignore"):
+            counts = frac * np.exp(len(eta) * math.log(2.0) + log_mult)
+        shift = float(np.abs(eta - h * steps).sum())
+        return DensityOfStates(edges, frac, counts, shift, f"grid convolution, spacing {h:.3g}")
+
+    # -- display --------------------------------------------------------------------------------
+    def __repr__(self) -> str:
+        eta = ", ".join(_fmt(e) for e in self.quasi_energies[:6])
+        more = ", ..." if len(self) > 6 else ""
+        return (
+            f"FreeSpectrum(N={self.states}, {len(self)} quasi-energies [{eta}{more}], "
+            f"method={self.provenance.get('method')}, "
+            f"max error {self.provenance.get('max_error_bound', float('nan')):.2g})"
+        )
+
+    def _repr_html_(self) -> str:
+        prov = self.provenance
+        rows = []
+        if self.complete:
+            rows.append(("ground energy", _fmt(self.ground_energy)))
+        rows.append(("gap", f"{self.gap:.6g}"))
+        rows.append(
+            (
+                "degeneracy",
+                str(self.degeneracy) if self.degeneracy else f"unknown ({self.degeneracy_reason})",
+            )
+        )
+        rows.append(("method", f"{prov.get('method')}: {prov.get('path')}"))
+        rows.append(("guarantee", str(prov.get("guarantee"))))
+        rows.append(
+            (
+                "largest error bound",
+                f"{prov.get('max_error_bound', float('nan')):.3g} ({prov.get('bounds')})",
+            )
+        )
+        rules = prov.get("sum_rules")
+        if rules:
+            rows.append(
+                (
+                    "sum rules (relative residuals)",
+                    ", ".join(f"{k}: {v:.2g}" for k, v in rules.items()),
+                )
+            )
+        table = "".join(
+            f"<tr><th style='text-align:left'>{html.escape(a)}</th><td>{html.escape(b)}</td></tr>"
+            for a, b in rows
+        )
+        eta = ", ".join(html.escape(_fmt(e)) for e in self.quasi_energies[:12])
+        more = ", ..." if len(self) > 12 else ""
+        return (
+            f"<div><b>Free spectrum</b>: N = {self.states}, {len(self)} quasi-energies"
+            f"{'' if self.complete else ' (lowest only)'}<br>eta = {eta}{more}"
+            f"<table>{table}</table></div>"
+        )
+
+
+def _rank_index(rank: np.ndarray, occ: np.ndarray) -> np.ndarray:
+    """Column of ``vals`` (sorted choices) that holds choice ``occ[k]`` for each mode."""
+    return np.argmax(rank == occ[:, None], axis=1)
+
+
+def _maybe_real(values: np.ndarray) -> np.ndarray:
+    if np.iscomplexobj(values) and np.all(values.imag == 0):
+        return values.real.copy()
+    return values
+
+
+def _scalar(v: Any) -> complex | float:
+    v = complex(v)
+    return v.real if v.imag == 0 else v
+
+
+def _fmt(v: Any) -> str:
+    v = complex(v)
+    if v.imag == 0:
+        return f"{v.real:.6g}"
+    return f"{v.real:.6g}{v.imag:+.6g}j"
+
+
+# -- computing the spectrum ----------------------------------------------------------------------
+def free_spectrum(m: Model, method: str = "auto", lowest: int | None = None) -> FreeSpectrum:
+    """Quasi-energies of ``H = constant + sum_j c_j g_j`` from the roots of its polynomial P.
+
+    Parameters
+    ----------
+    m : Model
+        Numeric couplings (substitute symbols first with ``m.subs``).
+    method : "auto", "fast" or "certified"
+        ``"auto"``: exclusion chains go through the recurrence (real roots by counting and
+        bisection for N = 2 with real couplings, :mod:`freeladder.roots`; Aberth-Ehrlich in
+        the complex plane otherwise, :mod:`freeladder.roots_complex`); any other frustration
+        graph goes through the exact polynomial and certified roots.  ``"fast"``: the
+        recurrence only (chains).  ``"certified"``: rigorous enclosures -- sign changes in
+        ball arithmetic for real chains (:mod:`freeladder.certify`), certified isolation of
+        the roots of the exact polynomial otherwise (python-flint).
+    lowest : int, optional
+        Keep only the ``lowest`` smallest quasi-energies (``|eta|``).  The real chain path
+        then computes only those; the others compute all roots and drop the rest.
+
+    Returns
+    -------
+    FreeSpectrum
+
+    Raises
+    ------
+    ValueError
+        For symbolic couplings, an unknown method, ``method="fast"`` on a model that is not an
+        exclusion chain, ``lowest < 1``, or a model with no terms.
+
+    Notes
+    -----
+    A free spectrum is guaranteed for exclusion chains (any N; Alcaraz-Pimenta 2020) and, for
+    N = 2, for claw-free and even-hole-free frustration graphs (Elman-Chapman-Flammia 2021).
+    For other models the quasi-energies are still computed, ``provenance["guaranteed"]`` is
+    False and ``provenance["guarantee"]`` says why: compare with exact diagonalization.
+
+    References
+    ----------
+    F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622;
+    S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021).
+
+    Examples
+    --------
+    >>> import freeladder as fl
+    >>> sp = fl.free_spectrum(fl.exclusion_chain(4))    # uniform Ising: 2 cos(pi k / 6)
+    >>> [round(float(e), 12) for e in sp.quasi_energies]
+    [1.0, 1.732050807569]
+    """
+    if method not in ("auto", "fast", "certified"):
+        raise ValueError(f"method must be 'auto', 'fast' or 'certified', not {method!r}")
+    if not isinstance(m, Model):
+        raise TypeError(f"free_spectrum needs a Model, got {type(m).__name__}")
+    if len(m) == 0:
+        raise ValueError("the model has no terms, hence no quasi-energies")
+    if lowest is not None and int(lowest) < 1:
+        raise ValueError(f"lowest must be >= 1, got {lowest}")
+    couplings = m.coupling_array()  # raises for symbolic couplings
+    start_time = time.perf_counter()
+    n = m.states
+    chain = chain_structure(m)
+    prov: dict[str, Any] = {}
+    if chain is None and method == "fast":
+        raise ValueError(
+            "method='fast' evaluates the exclusion-chain recurrence, and this model's terms do "
+            "not form an exclusion chain; use method='auto' or 'certified'"
+        )
+    if chain is not None:
+        w = couplings[chain.order] ** n
+        reach = chain.reach
+        guaranteed, guarantee = (
+            True,
+            (f"exclusion chain of reach {reach} (Alcaraz-Pimenta 2020): free spectrum for any N"),
+        )
+        real_path = n == 2 and np.isrealobj(couplings) and bool(np.all(w > 0))
+        if real_path:
+            y, y_err, prov = _real_chain(np.asarray(w, dtype=float), reach, method, lowest)
+            x_err = None
+        else:
+            x, x_err, prov = _complex_chain(np.asarray(w, dtype=complex), reach, n, method, m)
+            y, y_err = None, None
+    else:
+        reach = None
+        guaranteed, guarantee = _general_guarantee(m)
+        x, x_err, prov = _general(m)
+        y, y_err = None, None
+    # -- quasi-energies ------------------------------------------------------------------------
+    if y is not None:
+        assert y_err is not None
+        eta = y ** (-1.0 / n)
+        eta_err = eta * np.expm1(-np.log1p(-np.minimum(y_err / y, 0.5)) / n)
+        eta_err = np.where(y_err < 0.5 * y, eta_err, np.inf)
+        x_vals = 1.0 / y
+        y_vals = y.astype(complex)
+    else:
+        assert x_err is not None
+        eta = _principal_root(x, n)
+        ax = np.abs(x)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            eta_err = np.where(
+                x_err < ax,
+                -(ax ** (1.0 / n)) * np.expm1(np.log1p(-np.minimum(x_err / ax, 1.0)) / n),
+                np.abs(eta) + (ax + x_err) ** (1.0 / n),
+            )
+            y_vals = 1.0 / x
+        x_vals = x
+    sort = np.argsort(np.abs(eta), kind="stable")
+    eta, eta_err, x_vals, y_vals = eta[sort], eta_err[sort], x_vals[sort], y_vals[sort]
+    count = prov.pop("count", len(eta))
+    if lowest is not None:
+        keep = int(lowest)
+        eta, eta_err, x_vals, y_vals = eta[:keep], eta_err[:keep], x_vals[:keep], y_vals[:keep]
+    complete = len(eta) == count
+    if complete:
+        prov["sum_rules"] = _sum_rules(m, couplings, x_vals, chain)
+    prov["count"] = count
+    prov["guaranteed"] = guaranteed
+    prov["guarantee"] = guarantee
+    prov["reach"] = reach
+    prov["max_error_bound"] = float(np.max(eta_err)) if len(eta_err) else 0.0
+    prov["seconds"] = time.perf_counter() - start_time
+    degeneracy, reason = _degeneracy(m, chain, count)
+    constant = _scalar(m.constant) if m.constant != 0 else 0.0
+    return FreeSpectrum(
+        y_vals,
+        eta,
+        eta_err,
+        constant,
+        n,
+        len(m.sites),
+        degeneracy,
+        reason,
+        complete,
+        prov,
+    )
+
+
+def _principal_root(x: np.ndarray, n: int) -> np.ndarray:
+    """Principal ``x^(1/n)``; real and positive when ``x`` is."""
+    if np.isrealobj(x) and np.all(x > 0):
+        return x ** (1.0 / n)
+    return np.power(x.astype(complex), 1.0 / n)
+
+
+def _real_chain(
+    w: np.ndarray, reach: int, method: str, lowest: int | None
+) -> tuple[np.ndarray, np.ndarray, dict[str, Any]]:
+    found = roots.chain_real_roots(w, reach, lowest=lowest)
+    y = np.asarray(found.roots, dtype=float)
+    err = np.asarray(found.errors, dtype=float)
+    prov: dict[str, Any] = {
+        "method": "fast",
+        "path": f"real roots of the chain recurrence ({found.method})",
+        "iterations": int(found.sweeps),
+        "evaluations": int(found.evaluations),
+        "converged": bool(found.converged),
+        "message": found.message,
+        "count": int(found.count),
+        "bounds": "error estimates of the real root finder (not proofs)",
+    }
+    if method == "certified":
+        enc = certify.certify_chain_roots(w, reach, y, err)
+        if not enc.certified:
+            raise ValueError(f"the real chain roots could not be certified: {enc.message}")
+        y = 0.5 * (np.asarray(enc.lower) + np.asarray(enc.upper))
+        err = np.asarray(enc.radius, dtype=float)
+        prov.update(
+            method="certified",
+            path=prov["path"] + "; certified by sign changes in ball arithmetic",
+            bounds=f"rigorous: each interval holds exactly one root ({enc.precision} bits)",
+        )
+    return y, err, prov
+
+
+def _complex_chain(
+    w: np.ndarray, reach: int, n: int, method: str, m: Model
+) -> tuple[np.ndarray, np.ndarray, dict[str, Any]]:
+    if method == "certified":
+        x, x_err, prov = _general(m)
+        prov["path"] = "exact chain polynomial, certified complex roots (python-flint)"
+        return x, x_err, prov
+    found = aberth_chain_roots(w, reach, order=n)
+    prov = {
+        "method": "fast",
+        "path": "Aberth-Ehrlich iteration on the chain recurrence (complex plane)",
+        "iterations": found.iterations,
+        "evaluations": found.evaluations,
+        "start": found.start,
+        "converged": bool(np.all(found.converged)),
+        "isolated": bool(np.all(found.isolated)),
+        "bounds": (
+            "inclusion discs n|W_k| (Weierstrass/Gerschgorin, Braess-Hadeler 1973) with a "
+            "statistical rounding-error estimate: estimates, not proofs"
+        ),
+        "count": len(found.x),
+    }
+    return found.x, found.radius, prov
+
+
+def _general(m: Model) -> tuple[np.ndarray, np.ndarray, dict[str, Any]]:
+    """Roots through the exact polynomial: reciprocal roots ``x = 1 / y`` and radii in x."""
+    poly = exclusion_polynomial(m)
+    re_parts, im_parts = poly.exact_parts()
+    if all(v == 0 for v in im_parts):
+        found = certify.certified_roots(list(re_parts))
+        y = np.repeat(np.asarray(found.midpoints), np.asarray(found.multiplicities))
+        y_rad = np.repeat(np.asarray(found.radii), np.asarray(found.multiplicities))
+        how = f"fmpq_poly.complex_roots, {found.precision} bits"
+    else:
+        y, y_rad = certified_complex_roots(re_parts, im_parts)
+        how = "acb_poly roots of the exact Gaussian-rational polynomial"
+    if np.any(y == 0) or len(y) != poly.degree:
+        raise ValueError(
+            "the exclusion polynomial has a root at y = 0 or lost degree; P(0) must be 1"
+        )
+    x = 1.0 / y
+    ay = np.abs(y)
+    # |1/y - 1/y'| <= r / (|y| (|y| - r)) for |y - y'| <= r < |y|.
+    with np.errstate(divide="ignore"):
+        x_rad = np.where(y_rad < ay, y_rad / (ay * (ay - y_rad)), np.inf)
+    prov = {
+        "method": "certified",
+        "path": f"exact exclusion polynomial ({poly.kind}), certified roots ({how})",
+        "iterations": 0,
+        "bounds": "rigorous isolating balls of the roots of the exact polynomial",
+        "count": poly.degree,
+    }
+    return x, x_rad, prov
+
+
+def _general_guarantee(m: Model) -> tuple[bool, str]:
+    """Whether the single polynomial P is proven to give the spectrum, per component.
+
+    Proven: line graphs of forests (Chapman-Flammia 2020, no cycle symmetries) and claw-free,
+    even-hole-free graphs (Elman-Chapman-Flammia 2021).  With cycles or even holes the model
+    is free only sector by sector (Chapman-Elman-Mann 2023), which one P does not capture.
+    """
+    verdict = classify(m)
+    blockers = []
+    for comp in verdict.components:
+        if comp.kind == "jordan-wigner" and not comp.cycles:
+            continue
+        if comp.kind == "hidden-free" and comp.even_hole_free:
+            continue
+        if comp.kind in ("jordan-wigner", "hidden-free") and comp.chain is not None:
+            continue
+        what = comp.reasons[0] if comp.reasons else comp.kind
+        blockers.append(f"terms {list(comp.terms)[:6]}: {what}")
+    if not blockers:
+        return True, f"{verdict.kind}: " + (verdict.reasons[0] if verdict.reasons else "")
+    return False, (
+        "the free spectrum from one polynomial is not guaranteed (compare with exact "
+        "diagonalization): " + "; ".join(blockers[:3])
+    )
+
+
+def _degeneracy(m: Model, chain: Any, count: int) -> tuple[int | None, str]:
+    if chain is None:
+        return None, "not an exclusion chain: degeneracies need not be uniform across levels"
+    spare = len(m.sites) - count
+    if spare < 0:
+        return None, f"{count} quasi-energies but only {len(m.sites)} sites"
+    return m.states**spare, (
+        f"exclusion chain: every level has multiplicity dim / N^S = {m.states}^{spare}"
+    )
+
+
+def _sum_rules(m: Model, couplings: np.ndarray, x: np.ndarray, chain: Any) -> dict[str, float]:
+    """Relative residuals of ``sum x_k = C_1`` and ``sum x_k^2 = C_1^2 - 2 C_2``."""
+    w = couplings**m.states
+    top = float(np.abs(w).max()) or 1.0
+    w, x = w / top, x / top  # both rules are homogeneous; this avoids overflow
+    c1 = w.sum()
+    if chain is not None:
+        wc = w[chain.order]
+        pairs = sum((wc[:-d] * wc[d:]).sum() for d in range(1, chain.reach + 1) if d < len(wc))
+    else:
+        adj = frustration_adjacency(m)
+        pairs = 0.5 * (w @ (adj.astype(float) @ w))
+    second = (w**2).sum() + 2.0 * pairs  # = C_1^2 - 2 C_2
+    s1, s2 = x.sum(), (x**2).sum()
+    scale1 = max(float(np.abs(x).sum()), 1e-300)
+    scale2 = max(float((np.abs(x) ** 2).sum()), 1e-300)
+    return {
+        "sum eta^N": float(abs(s1 - c1) / scale1),
+        "sum eta^2N": float(abs(s2 - second) / scale2),
+    }

@@ -1,0 +1,545 @@
+"""Checks that a model's free spectrum is what the theorems promise, each with how and how well.
+
+:func:`verify` runs, where they apply:
+
+* **commutation** -- ``[H, Q^(s)] = 0`` for every order s and ``[Q^(r), Q^(s)] = 0``, exactly in
+  the string algebra (:class:`~freeladder.operators.OpSum`, no matrices);
+* **inversion relation** -- ``T(u) T(-u) = P(u^2)`` (N = 2) and
+  ``T(u) T(omega u) ... T(omega^{N-1} u) = P(u^N)`` (clock chains), exactly at a rational u for
+  exact couplings, in floating point at a random u otherwise;
+* **ladder relations** -- ``[H, Psi_{+-k}] = +-2 eta_k Psi_{+-k}`` for small N = 2 systems;
+* **sum rules** -- ``sum eta^N = sum c^N`` and ``sum eta^{2N} = (sum c^N)^2 - 2 C_2``;
+* **exact diagonalization** -- the whole spectrum with multiplicities against the free levels.
+
+For a model outside every theorem the same checks run as a probe: the report says which fail.
+
+References
+----------
+S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021),
+arXiv:2012.07857 (commuting charges, inversion relation, N = 2);
+P. Fendley, J. Phys. A 52, 335002 (2019), arXiv:1901.08078 (transfer matrix, ladder operators);
+F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622 (clock
+chains, general p and N).
+"""
+
+from __future__ import annotations
+
+import html
+import time
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from fractions import Fraction
+from typing import Any
+
+import numpy as np
+import scipy.sparse as sps
+
+from .charges import charge
+from .ed import exact_spectrum
+from .edge import ladder_operators
+from .model import Model
+from .operators import OpSum
+from .polynomial import exclusion_polynomial
+from .spectrum import free_spectrum
+
+ED_AUTO_DIMENSION = 4096
+"""``exact_diagonalization="auto"`` compares with exact diagonalization up to this dimension."""
+
+LADDER_DIMENSION = 1024
+"""Ladder relations are checked with sparse matrices up to this dimension."""
+
+MAX_PAIRS = 2_000_000
+"""Largest ``len(A) * len(B)`` for which an exact product or commutator of two sums is formed."""
+
+FLOAT_RTOL = 1e-9
+"""Relative tolerance of floating-point checks (string algebra and spectra)."""
+
+_ECF = "S. J. Elman, A. Chapman, S. T. Flammia, Commun. Math. Phys. 388, 969 (2021)"
+_FENDLEY = "P. Fendley, J. Phys. A 52, 335002 (2019)"
+_AP = "F. C. Alcaraz, R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020)"
+
+
+@dataclass(frozen=True)
+class Check:
+    """One verification step.
+
+    Attributes
+    ----------
+    name : str
+        What is checked.
+    method : str
+        How: exact string algebra, floating point, sparse matrices, exact diagonalization.
+    tolerance : float
+        0.0 for exact checks; otherwise the threshold ``value`` is compared with.
+    value : float
+        The measured discrepancy (largest coefficient left over, relative deviation ...).
+    passed : bool or None
+        None when the check could not run (see ``detail``).
+    detail : str
+        Sizes, what was skipped and why.
+    reference : str
+        The published statement that is being checked.
+    seconds : float
+        Time taken.
+    """
+
+    name: str
+    method: str
+    tolerance: float
+    value: float
+    passed: bool | None
+    detail: str
+    reference: str = ""
+    seconds: float = 0.0
+
+    @property
+    def status(self) -> str:
+        """``"passed"``, ``"FAILED"`` or ``"not run"``."""
+        return {True: "passed", False: "FAILED", None: "not run"}[self.passed]
+
+
+@dataclass(frozen=True)
+class Report:
+    """The checks run by :func:`verify`.
+
+    Attributes
+    ----------
+    checks : tuple of Check
+    ok : bool
+        True when at least one check ran and none failed.
+    """
+
+    checks: tuple[Check, ...]
+    model_text: str = ""
+    notes: tuple[str, ...] = field(default=())
+
+    @property
+    def ok(self) -> bool:
+        ran = [c for c in self.checks if c.passed is not None]
+        return bool(ran) and all(c.passed for c in ran)
+
+    @property
+    def failed(self) -> tuple[Check, ...]:
+        """The checks that failed."""
+        return tuple(c for c in self.checks if c.passed is False)
+
+    def __getitem__(self, name: str) -> Check:
+        for c in self.checks:
+            if c.name == name:
+                return c
+        raise KeyError(f"no check named {name!r}; checks: {[c.name for c in self.checks]}")
+
+    def __str__(self) -> str:
+        head = (
+            "all checks passed"
+            if self.ok
+            else (f"{len(self.failed)} check(s) FAILED" if self.failed else "no check could run")
+        )
+        lines = [f"verification of {self.model_text}: {head}"]
+        for c in self.checks:
+            tol = "exact" if c.tolerance == 0 else f"tol {c.tolerance:.2g}"
+            measured = "" if c.passed is None else f"; value {c.value:.3g} ({tol})"
+            lines.append(f"  [{c.status}] {c.name}: {c.method}{measured}; {c.detail}")
+        lines.extend(f"  note: {n}" for n in self.notes)
+        return "\n".join(lines)
+
+    def __repr__(self) -> str:
+        return f"Report(ok={self.ok}, checks={len(self.checks)}, failed={len(self.failed)})"
+
+    def _repr_html_(self) -> str:
+        rows = []
+        for c in self.checks:
+            colour = {True: "#1a7f37", False: "#cf222e", None: "#6e7781"}[c.passed]
+            tol = "exact" if c.tolerance == 0 else f"{c.tolerance:.2g}"
+            cells = [
+                f'<td style="color:{colour};font-weight:bold">{c.status}</td>',
+                f"<td>{html.escape(c.name)}</td>",
+                f"<td>{html.escape(c.method)}</td>",
+                f"<td>{'' if c.passed is None else f'{c.value:.3g}'}</td>",
+                f"<td>{'' if c.passed is None else tol}</td>",
+                f"<td>{html.escape(c.detail)}</td>",
+                f"<td><small>{html.escape(c.reference)}</small></td>",
+            ]
+            rows.append("<tr>" + "".join(cells) + "</tr>")
+        head = "".join(
+            f"<th>{h}</th>"
+            for h in ("result", "check", "method", "value", "tolerance", "detail", "reference")
+        )
+        verdict = "all checks passed" if self.ok else f"{len(self.failed)} failed"
+        notes = "".join(f"<p><small>{html.escape(n)}</small></p>" for n in self.notes)
+        return (
+            f"<p><b>Verification</b> of <code>{html.escape(self.model_text)}</code>: {verdict}</p>"
+            f"<table><thead><tr>{head}</tr></thead><tbody>{''.join(rows)}</tbody></table>{notes}"
+        )
+
+
+def _timed(fn: Any, *args: Any) -> Check:
+    """Run one check, timing it; a ValueError (the check cannot apply) becomes "not run"."""
+    start = time.perf_counter()
+    try:
+        check = fn(*args)
+    except ValueError as err:
+        name = (fn.__doc__ or fn.__name__).strip().splitlines()[0]
+        check = Check(name, fn.__name__, 0.0, float("nan"), None, f"could not run: {err}")
+    return Check(**{**check.__dict__, "seconds": time.perf_counter() - start})
+
+
+def _residual(op: OpSum) -> tuple[bool, float]:
+    """(is zero, largest leftover coefficient) with the tolerance rule of OpSum.is_zero."""
+    zero = op.is_zero(None if op.is_exact else FLOAT_RTOL)
+    if len(op) == 0:
+        return True, 0.0
+    if op.is_symbolic:
+        return zero, float("nan")
+    return zero, op.max_abs()
+
+
+def _method(ops: Sequence[OpSum]) -> tuple[str, float]:
+    if all(o.is_exact for o in ops):
+        return "exact string algebra (no matrices)", 0.0
+    return (
+        f"string algebra in floating point; zero when every coefficient <= {FLOAT_RTOL:g} x scale",
+        FLOAT_RTOL,
+    )
+
+
+# -- commutation --------------------------------------------------------------------------------
+def commutation_checks(
+    h: OpSum, charges: Sequence[OpSum], max_pairs: int = MAX_PAIRS
+) -> tuple[Check, Check]:
+    """``[H, Q^(s)] = 0`` for every s, and ``[Q^(r), Q^(s)] = 0`` for 2 <= r < s.
+
+    Parameters
+    ----------
+    h : OpSum
+        The Hamiltonian.
+    charges : sequence of OpSum
+        ``Q^(1), Q^(2), ...`` (``Q^(1)`` is H without its constant).
+    max_pairs : int
+        Pairs of orders with ``len(Q^r) len(Q^s) > max_pairs`` are skipped in the second check
+        and listed in its detail (the pairs of strings that fail to commute are the work).
+
+    Returns
+    -------
+    (Check, Check)
+    """
+    start = time.perf_counter()
+    method, tol = _method([h, *charges])
+    worst, bad = 0.0, []
+    for s, q in enumerate(charges, start=1):
+        zero, val = _residual(h.commutator(q))
+        worst = max(worst, val) if val == val else worst
+        if not zero:
+            bad.append(s)
+    sizes = [len(q) for q in charges]
+    detail = f"orders 1..{len(charges)}, {sum(sizes)} strings in all"
+    if bad:
+        detail += f"; non-zero for s = {bad}"
+    first = Check(
+        "[H, Q(s)] = 0", method, tol, worst, not bad, detail, _ECF, time.perf_counter() - start
+    )
+    start = time.perf_counter()
+    worst, done = 0.0, 0
+    bad_pairs: list[tuple[int, int]] = []
+    skipped: list[tuple[int, int]] = []
+    for r in range(2, len(charges) + 1):
+        for s in range(r + 1, len(charges) + 1):
+            qr, qs = charges[r - 1], charges[s - 1]
+            if len(qr) * len(qs) > max_pairs:
+                skipped.append((r, s))
+                continue
+            zero, val = _residual(qr.commutator(qs))
+            done += 1
+            worst = max(worst, val) if val == val else worst
+            if not zero:
+                bad_pairs.append((r, s))
+    detail = f"{done} pairs of orders checked"
+    if skipped:
+        detail += (
+            f"; {len(skipped)} pairs skipped (more than {max_pairs} string pairs): "
+            + ", ".join(f"({r},{s})" for r, s in skipped[:8])
+            + (" ..." if len(skipped) > 8 else "")
+        )
+    if bad_pairs:
+        detail += f"; non-zero for (r, s) = {bad_pairs[:8]}"
+    passed: bool | None = not bad_pairs if done else None
+    if done == 0 and not skipped:
+        detail = "fewer than two orders beyond H: nothing to check"
+    second = Check(
+        "[Q(r), Q(s)] = 0", method, tol, worst, passed, detail, _ECF, time.perf_counter() - start
+    )
+    return first, second
+
+
+# -- inversion relation -------------------------------------------------------------------------
+def transfer_from_charges(charges: Sequence[OpSum], u: Any, rotation: int = 0) -> OpSum:
+    """``T(omega^k u) = sum_s (-omega^k u)^s Q^(s)`` built exactly from given charges.
+
+    ``rotation`` is k; ``omega^{ks}`` is applied exactly with :meth:`OpSum.rotated`.
+    """
+    first = charges[0]
+    total = OpSum.identity(first.states, first.sites)
+    for s, q in enumerate(charges, start=1):
+        total = total + q.rotated(2 * rotation * s).scaled((-u) ** s)
+    return total
+
+
+def _inversion_name(n: int) -> str:
+    return "T(u) T(-u) = P(u^2)" if n == 2 else "T(u) T(wu) ... T(w^(N-1) u) = P(u^N)"
+
+
+def inversion_check(m: Model, charges: Sequence[OpSum], max_pairs: int = MAX_PAIRS) -> Check:
+    """``prod_{k < N} T(omega^k u) = P(u^N) * 1`` in the string algebra.
+
+    u = 3/7 (exact) for exact couplings, a random float in (0.2, 0.8) otherwise.
+    """
+
+    n = m.states
+    exact = all(q.is_exact for q in charges)
+    u: Any = Fraction(3, 7) if exact else float(np.random.default_rng(7).uniform(0.2, 0.8))
+    name = _inversion_name(n)
+    ref = _ECF if n == 2 else _AP
+    size = 1 + sum(len(q) for q in charges)
+    if size**2 > max_pairs:
+        return Check(
+            name,
+            "string algebra",
+            0.0,
+            float("nan"),
+            None,
+            f"T(u) has up to {size} strings: the product is beyond {max_pairs} pairs",
+            ref,
+        )
+    factors = [transfer_from_charges(charges, u, k) for k in range(n)]
+    prod = factors[0]
+    for f in factors[1:]:
+        if len(prod) * len(f) > max_pairs:
+            return Check(
+                name,
+                "string algebra",
+                0.0,
+                float("nan"),
+                None,
+                f"partial product of {len(prod)} strings times {len(f)}: beyond {max_pairs} pairs",
+                ref,
+            )
+        prod = prod @ f
+    p_val = exclusion_polynomial(m)(u**n)
+    target = OpSum.identity(n, m.sites, p_val)
+    method, tol = _method([prod])
+    zero, val = _residual(prod - target)
+    detail = f"u = {u}; product has {len(prod)} strings; P(u^N) = {p_val}"
+    return Check(name, method, tol, val, zero, detail, ref)
+
+
+# -- ladder relations ---------------------------------------------------------------------------
+def ladder_check(m: Model) -> Check:
+    """``[H, Psi_{+-k}] = +-2 eta_k Psi_{+-k}`` with sparse matrices (N = 2, small systems)."""
+
+    name = "[H, Psi(+-k)] = +-2 eta_k Psi(+-k)"
+    if m.states != 2:
+        return Check(name, "sparse matrices", 0.0, float("nan"), None, "N = 2 only", _FENDLEY)
+    if m.dimension > LADDER_DIMENSION:
+        return Check(
+            name,
+            "sparse matrices",
+            0.0,
+            float("nan"),
+            None,
+            f"dimension {m.dimension} > {LADDER_DIMENSION}",
+            _FENDLEY,
+        )
+    try:
+        lad = ladder_operators(m)
+    except ValueError as err:
+        return Check(name, "sparse matrices", 0.0, float("nan"), None, str(err), _FENDLEY)
+    h = sps.csr_array(m.to_sparse())
+    hnorm = float(abs(h).sum(axis=0).max()) or 1.0
+    worst, vanished = 0.0, 0
+    for eta, plus, minus in zip(lad.quasi_energies, lad.raising, lad.lowering, strict=True):
+        for sign, psi in ((1, plus), (-1, minus)):
+            pnorm = float(abs(psi).sum(axis=0).max()) if psi.nnz else 0.0
+            if pnorm == 0.0:
+                vanished += 1
+                continue
+            resid = h @ psi - psi @ h - sign * 2 * eta * psi
+            rel = float(abs(resid).sum(axis=0).max()) / (pnorm * hnorm) if resid.nnz else 0.0
+            worst = max(worst, rel)
+    tol = FLOAT_RTOL * max(1, len(m))
+    detail = (
+        f"{len(lad.quasi_energies)} modes from edge mode {lad.edge.string} "
+        f"(term {lad.edge.term}); residual 1-norm relative to ||Psi|| ||H||"
+    )
+    if vanished:
+        detail += f"; {vanished} operator(s) vanished identically"
+    passed = worst <= tol and vanished == 0
+    return Check(name, "sparse matrices, floating point", tol, worst, passed, detail, _FENDLEY)
+
+
+# -- sum rules ----------------------------------------------------------------------------------
+def sum_rule_check(m: Model) -> Check:
+    """``sum eta^N = C_1`` and ``sum eta^{2N} = C_1^2 - 2 C_2`` (from the coefficients of P)."""
+
+    name = "sum rules for eta^N and eta^2N"
+    poly = exclusion_polynomial(m)
+    n = m.states
+    sums = [complex(c) for c in poly.weight_sums]
+    c1 = sums[1] if len(sums) > 1 else 0.0
+    c2 = sums[2] if len(sums) > 2 else 0.0
+    sp = free_spectrum(m)
+    eta = np.asarray(sp.quasi_energies, dtype=complex)
+    lhs1, lhs2 = np.sum(eta**n), np.sum(eta ** (2 * n))
+    rhs1, rhs2 = c1, c1 * c1 - 2 * c2
+    scale1 = max(float(np.sum(np.abs(eta) ** n)), abs(rhs1), 1e-300)
+    scale2 = max(float(np.sum(np.abs(eta) ** (2 * n))), abs(rhs2), 1e-300)
+    dev = max(abs(lhs1 - rhs1) / scale1, abs(lhs2 - rhs2) / scale2)
+    tol = FLOAT_RTOL
+    detail = (
+        f"{len(eta)} quasi-energies; sum eta^N = {_num(lhs1)} vs {_num(rhs1)}, "
+        f"sum eta^2N = {_num(lhs2)} vs {_num(rhs2)} (relative deviation)"
+    )
+    ref = "coefficients of P: Newton's identities (common practice)"
+    return Check(name, "floating point vs exact coefficients", tol, dev, dev <= tol, detail, ref)
+
+
+def _num(v: complex) -> str:
+    v = complex(v)
+    return f"{v.real:.10g}" if abs(v.imag) <= 1e-12 * max(1.0, abs(v)) else f"{v:.8g}"
+
+
+# -- exact diagonalization ----------------------------------------------------------------------
+def exact_diagonalization_check(m: Model) -> Check:
+    """Every eigenvalue, with multiplicity, against ``constant + sum_k omega^{s_k} eta_k``."""
+
+    name = "spectrum = exact diagonalization"
+    ed = exact_spectrum(m)
+    sp = free_spectrum(m)
+    table = sp.levels(None)
+    free = np.asarray(table.energies)
+    deg = table.multiplicity
+    if deg is None:
+        if ed.dimension % max(len(free), 1):
+            return Check(
+                name,
+                "exact diagonalization",
+                0.0,
+                float("nan"),
+                False,
+                f"{len(free)} free levels do not divide the dimension {ed.dimension}",
+                "",
+            )
+        deg = ed.dimension // len(free)
+    free_all = np.repeat(free, deg)
+    exact_all = np.asarray(ed.eigenvalues)
+    if len(free_all) != len(exact_all):
+        return Check(
+            name,
+            "exact diagonalization",
+            0.0,
+            float("nan"),
+            False,
+            f"{len(free_all)} free eigenvalues (with multiplicity) vs {len(exact_all)} exact",
+            "",
+        )
+    dev = _multiset_distance(free_all, exact_all)
+    scale = max(1.0, float(np.max(np.abs(exact_all))))
+    bounds = float(np.sum(np.asarray(sp.error_bounds, dtype=float))) if len(free) else 0.0
+    tol = max(FLOAT_RTOL * scale, float(ed.error_estimate) + bounds)
+    detail = (
+        f"dimension {ed.dimension} ({ed.method}); {len(free)} free choices x multiplicity {deg}; "
+        f"largest eigenvalue distance after optimal matching"
+    )
+    ref = "numpy/scipy exact diagonalization (common practice)"
+    return Check(name, "exact diagonalization", tol, dev, dev <= tol, detail, ref)
+
+
+def _multiset_distance(a: np.ndarray, b: np.ndarray) -> float:
+    """Largest distance between two equal-size multisets of numbers under the best matching."""
+    if (
+        np.isrealobj(a)
+        and np.isrealobj(b)
+        or (np.allclose(np.imag(a), 0) and np.allclose(np.imag(b), 0))
+    ):
+        return float(np.max(np.abs(np.sort(np.real(a)) - np.sort(np.real(b))))) if len(a) else 0.0
+    from scipy.optimize import linear_sum_assignment
+
+    cost = np.abs(a[:, None] - b[None, :])
+    rows, cols = linear_sum_assignment(cost)
+    return float(cost[rows, cols].max())
+
+
+# -- the whole report ---------------------------------------------------------------------------
+def verify(
+    m: Model,
+    exact_diagonalization: bool | str = "auto",
+    max_pairs: int = MAX_PAIRS,
+) -> Report:
+    """Run every check that applies to ``m`` and report each with its method and tolerance.
+
+    Parameters
+    ----------
+    m : Model
+    exact_diagonalization : "auto", True or False
+        "auto" compares with exact diagonalization when the dimension is at most
+        :data:`ED_AUTO_DIMENSION`; True forces it (bounded by :func:`freeladder.exact_spectrum`).
+    max_pairs : int
+        Work limit of the exact string-algebra products (see :func:`commutation_checks`).
+
+    Returns
+    -------
+    Report
+        ``report.ok`` is True when at least one check ran and none failed.  For a model with a
+        claw (no theorem applies) the commutation check is expected to fail.
+
+    References
+    ----------
+    S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021);
+    P. Fendley, J. Phys. A 52, 335002 (2019);
+    F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020).
+
+    Examples
+    --------
+    >>> from freeladder import exclusion_chain
+    >>> verify(exclusion_chain(6, reach=2)).ok
+    True
+    """
+
+    if not isinstance(m, Model):
+        raise TypeError(f"verify needs a Model, got {type(m).__name__}")
+    if exact_diagonalization not in ("auto", True, False):
+        raise ValueError(
+            f"exact_diagonalization must be 'auto', True or False, not {exact_diagonalization!r}"
+        )
+    checks: list[Check] = []
+    notes: list[str] = []
+    degree = exclusion_polynomial(m).degree
+    try:
+        charges = [charge(m, s) for s in range(1, degree + 1)]
+    except ValueError as err:  # too many independent sets to list
+        for name in ("[H, Q(s)] = 0", "[Q(r), Q(s)] = 0", _inversion_name(m.states)):
+            checks.append(Check(name, "string algebra", 0.0, float("nan"), None, str(err), _ECF))
+    else:
+        checks.extend(commutation_checks(OpSum.from_model(m), charges, max_pairs))
+        checks.append(_timed(inversion_check, m, charges, max_pairs))
+    numeric = not m.is_symbolic
+    if not numeric:
+        notes.append("symbolic couplings: spectral checks need numbers (use m.subs first)")
+    else:
+        if m.states == 2:
+            checks.append(_timed(ladder_check, m))
+        checks.append(_timed(sum_rule_check, m))
+        run_ed = exact_diagonalization is True or (
+            exact_diagonalization == "auto" and m.dimension <= ED_AUTO_DIMENSION
+        )
+        if run_ed:
+            checks.append(_timed(exact_diagonalization_check, m))
+        elif exact_diagonalization == "auto":
+            notes.append(
+                f"exact diagonalization skipped: dimension {m.dimension} > {ED_AUTO_DIMENSION}"
+            )
+    return Report(tuple(checks), _short(m), tuple(notes))
+
+
+def _short(m: Model) -> str:
+    text = str(m)
+    return text if len(text) <= 120 else text[:117] + "..."

@@ -1,0 +1,82 @@
+"""Rigorous enclosures (freeladder.certify) against mpmath 60-digit roots and python-flint."""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+import mpmath
+import numpy as np
+import pytest
+from test_roots import exact_coefficients, mpmath_roots, random_weights
+
+from freeladder.certify import certified_roots, certify_chain_roots
+from freeladder.roots import chain_real_roots
+
+
+@pytest.mark.parametrize(("reach", "m", "seed"), [(1, 21, 1), (2, 25, 2), (3, 30, 3)])
+def test_enclosures_contain_mpmath_roots(reach, m, seed):
+    w = random_weights(m, seed)
+    ref = mpmath_roots(w, reach)
+    r = chain_real_roots(w, reach)
+    enc = certify_chain_roots(w, reach, r.roots, r.errors)
+    assert enc.certified, enc.message
+    with mpmath.workdps(60):
+        for lo, hi, root in zip(enc.lower, enc.upper, ref, strict=True):
+            assert mpmath.mpf(float(lo)) <= root <= mpmath.mpf(float(hi))
+    assert np.all(enc.radius <= 1e-13 * r.roots)
+
+
+def test_wrong_roots_are_not_certified():
+    w = random_weights(40, 4)
+    r = chain_real_roots(w, 2)
+    shifted = r.roots.copy()
+    shifted[3] = 0.5 * (r.roots[3] + r.roots[4])  # between two roots: no sign change nearby
+    enc = certify_chain_roots(w, 2, shifted, np.full(shifted.size, 1e-14), widenings=1)
+    assert not enc.certified
+    assert not enc.sign_change[3] and enc.sign_change[0]
+
+
+def test_partial_set_is_not_a_full_certificate():
+    w = random_weights(60, 5)
+    top = chain_real_roots(w, 2, lowest=3)
+    enc = certify_chain_roots(w, 2, top.roots, top.errors)
+    assert np.all(enc.sign_change) and not enc.certified
+    assert "odd number" in enc.message
+
+
+def test_certified_roots_against_mpmath():
+    # (y - 1/3)(y - 2)(y^2 + 1): real and complex roots from exact Fraction coefficients.
+    coeffs = [Fraction(2, 3), Fraction(-7, 3), Fraction(4, 3), Fraction(-7, 3), Fraction(1)]
+    got = certified_roots(coeffs)
+    with mpmath.workdps(60):
+        ref = mpmath.polyroots([mpmath.mpf(c.numerator) / c.denominator for c in reversed(coeffs)])
+    for z in ref:
+        dist = np.abs(got.midpoints - complex(z))
+        assert np.min(dist) <= got.radii[np.argmin(dist)] + 1e-300
+    assert np.all(got.radii < 1e-15) and list(got.multiplicities) == [1, 1, 1, 1]
+
+
+def test_certified_roots_of_a_chain_match_the_fast_roots():
+    w = random_weights(60, 6)
+    balls = certified_roots(exact_coefficients(w, 2))
+    r = chain_real_roots(w, 2)
+    np.testing.assert_allclose(np.sort(balls.midpoints.real), r.roots, rtol=1e-14)
+
+
+def test_multiplicity_reported():
+    got = certified_roots([1, -2, 1])  # (1 - y)^2
+    assert list(got.multiplicities) == [2]
+    assert abs(got.midpoints[0] - 1) <= got.radii[0]
+
+
+def test_errors():
+    with pytest.raises(ValueError, match="exact"):
+        certified_roots([1.5, 1])
+    with pytest.raises(ValueError, match="constant"):
+        certified_roots([3])
+    with pytest.raises(ValueError, match="ascending"):
+        certify_chain_roots([1.0, 1.0, 1.0, 1.0], 1, [2.0, 1.0])
+    with pytest.raises(ValueError, match="only 2"):
+        certify_chain_roots([1.0, 1.0, 1.0], 1, [0.1, 0.2, 0.3])
+    with pytest.raises(ValueError, match="complex-root path"):
+        certify_chain_roots([1.0, -1.0], 1, [0.5])

@@ -1,0 +1,154 @@
+"""Verification checks: commuting charges, inversion relation, the whole report.
+
+References: S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021),
+arXiv:2012.07857 -- for N = 2 the charges Q^(s) commute with H and with each other when the
+frustration graph is claw-free, and T(u) T(-u) = P(u^2) when it is also even-hole-free;
+F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020) -- clock exclusion chains.
+The 2D transverse-field Ising patch has claws, so its charges must fail to commute (negative
+control).  Small cases are cross-checked with dense numpy commutators.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+import numpy as np
+import pytest
+
+import freeladder as fl
+from freeladder import OpSum
+from freeladder.verify import Check, Report, commutation_checks, inversion_check
+
+
+def enumerated_charges(m: fl.Model) -> list[OpSum]:
+    """Q^(s), s = 1..alpha, from an explicit enumeration of the independent sets (test-only)."""
+    cm = m.strings.commutation_matrix()
+    n = len(m)
+    adj = [set(cm.indices[cm.indptr[j] : cm.indptr[j + 1]].tolist()) for j in range(n)]
+    coeffs = list(m.couplings)
+    sets = [(j,) for j in range(n)]
+    strings, values = m.strings, coeffs
+    out = []
+    while sets:
+        out.append(OpSum(strings, values))
+        left, right, new_sets, new_values = [], [], [], []
+        for i, subset in enumerate(sets):
+            for j in range(subset[-1] + 1, n):
+                if not adj[j].intersection(subset):
+                    left.append(i)
+                    right.append(j)
+                    new_sets.append((*subset, j))
+                    new_values.append(values[i] * coeffs[j])
+        if not new_sets:
+            break
+        strings = strings.products(left, right, m.strings)
+        sets, values = new_sets, new_values
+    return out
+
+
+def rational(n: int) -> list[Fraction]:
+    return [Fraction(j + 2, j + 1) for j in range(n)]
+
+
+@pytest.mark.parametrize(
+    "model",
+    [
+        fl.exclusion_chain(9, reach=1, couplings=rational(9)),
+        fl.exclusion_chain(10, reach=2, couplings=rational(10)),
+        fl.exclusion_chain(7, reach=1, states=3, couplings=[1, 2, 3, 1, 2, 3, 1]),
+        fl.exclusion_chain(8, reach=2, states=3, couplings=rational(8)),
+        fl.exclusion_chain(9, reach=2, states=2, couplings=fl.random_couplings(9, seed=1)),
+    ],
+    ids=["p1-N2", "p2-N2", "p1-N3", "p2-N3", "p2-N2-float"],
+)
+def test_exclusion_chains_pass(model: fl.Model) -> None:
+    charges = enumerated_charges(model)
+    first, second = commutation_checks(OpSum.from_model(model), charges)
+    assert first.passed and second.passed is not False
+    exact = all(isinstance(c, (int, Fraction)) for c in model.couplings)
+    assert (first.tolerance == 0.0) == exact
+    inv = inversion_check(model, charges)
+    assert inv.passed, inv.detail
+
+
+def test_claw_free_non_chain_commutes() -> None:
+    # Kitaev honeycomb patch: its frustration graph is a line graph (claw-free), not a chain,
+    # and contains a hexagon (an even hole), so the inversion relation need not hold.
+    m = fl.kitaev_honeycomb(2, 4, jx=1, jy=2, jz=Fraction(1, 3))
+    assert fl.chain_structure(m) is None
+    charges = enumerated_charges(m)
+    first, second = commutation_checks(OpSum.from_model(m), charges)
+    assert first.passed and second.passed
+    inv = inversion_check(m, charges)
+    assert inv.passed is False  # a cycle operator is left over: P(u^2) alone is not enough
+
+
+def test_claw_model_fails() -> None:
+    m = fl.ising_lattice(2, 3, field=1, bond=1)
+    charges = enumerated_charges(m)
+    h = OpSum.from_model(m)
+    first, second = commutation_checks(h, charges)
+    assert first.passed is False and second.passed is False
+    assert "non-zero for s = [3" in first.detail
+    # dense cross-check of the failing order with numpy
+    hd = m.to_sparse().toarray()
+    q3 = charges[2].to_sparse().toarray()
+    assert np.linalg.norm(hd @ q3 - q3 @ hd) > 1.0
+    q2 = charges[1].to_sparse().toarray()
+    assert np.allclose(hd @ q2, q2 @ hd) == h.commutator(charges[1]).is_zero()
+
+
+def test_small_charges_match_dense_commutators() -> None:
+    m = fl.exclusion_chain(6, reach=2, couplings=rational(6))
+    charges = enumerated_charges(m)
+    mats = [q.to_sparse().toarray() for q in charges]
+    hd = m.to_sparse().toarray()
+    for q, qd in zip(charges, mats, strict=True):
+        assert np.allclose(hd @ qd, qd @ hd)
+        assert OpSum.from_model(m).commutator(q).is_zero()
+    # a non-charge does not commute: the check can fail
+    bogus = charges[1] + OpSum.from_strings([(1, fl.pauli("Z", [0]))], m.sites, 2)
+    first, _ = commutation_checks(OpSum.from_model(m), [charges[0], bogus])
+    assert first.passed is False
+
+
+def test_report_display() -> None:
+    ok = Check("a", "exact", 0.0, 0.0, True, "fine")
+    bad = Check("b", "float", 1e-9, 0.5, False, "broken <here>")
+    skipped = Check("c", "float", 1e-9, float("nan"), None, "too big")
+    r = Report((ok, bad, skipped), "X0")
+    assert not r.ok and r.failed == (bad,)
+    assert "FAILED" in str(r) and "&lt;here&gt;" in r._repr_html_() and "<table>" in r._repr_html_()
+    assert Report((ok, skipped), "X0").ok
+    assert not Report((skipped,), "X0").ok
+    assert r["b"] is bad
+
+
+def test_verify_end_to_end() -> None:
+    good = fl.verify(fl.exclusion_chain(7, reach=2, couplings=rational(7)))
+    assert good.ok, str(good)
+    names = {c.name for c in good.checks}
+    assert "spectrum = exact diagonalization" in names and "[H, Q(s)] = 0" in names
+    claw = fl.verify(fl.ising_lattice(2, 3, field=1, bond=1))
+    assert not claw.ok
+    assert claw["[H, Q(s)] = 0"].passed is False
+    assert claw["spectrum = exact diagonalization"].passed is False
+
+
+def test_verify_clock_chain_and_symbols() -> None:
+    # Z_3 exclusion chain, reach 1, integer couplings: exact inversion relation with omega u
+    r = fl.verify(fl.exclusion_chain(5, reach=1, states=3, couplings=[1, 2, 3, 2, 1]))
+    assert r.ok, str(r)
+    inv = r["T(u) T(wu) ... T(w^(N-1) u) = P(u^N)"]
+    assert inv.passed and inv.tolerance == 0.0
+    sym = fl.verify(fl.exclusion_chain(4, reach=2, couplings="symbols"))
+    assert sym["[H, Q(s)] = 0"].passed and sym.notes
+    assert all("spectrum" not in c.name for c in sym.checks)
+
+
+def test_verify_larger_chain_is_fast() -> None:
+    # 20-term reach-2 chain: 4 x 10^3 independent sets, exact check of every [H, Q(s)]
+    r = fl.verify(fl.exclusion_chain(20, reach=2, couplings=[1 + j % 3 for j in range(20)]))
+    first = r["[H, Q(s)] = 0"]
+    assert first.passed and first.tolerance == 0.0 and first.seconds < 20
+    assert r["[Q(r), Q(s)] = 0"].passed
