@@ -146,12 +146,16 @@ def test_float_evaluation_uses_the_recurrence_and_matches_exact_values() -> None
     poly = fl.exclusion_polynomial(m)
     ys = np.array([0.01, 0.2, 0.7, 1.3, -0.4])
     got = poly(ys)
+    exact_coefficients = poly.exact_parts()[0]
+    # Float couplings in, float coefficients shown; the exact values stay available.
+    assert all(isinstance(c, float) for c in poly.coefficients)
+    assert [float(c) for c in exact_coefficients] == list(poly.coefficients)
     for yv, value in zip(ys, got, strict=True):
-        exact = sum(c * Fraction(float(yv)) ** s for s, c in enumerate(poly.coefficients))
+        exact = sum(c * Fraction(float(yv)) ** s for s, c in enumerate(exact_coefficients))
         assert value == pytest.approx(float(exact), rel=1e-12, abs=1e-300)
     assert isinstance(poly(0.2), float)
     assert poly(Fraction(1, 5)) == sum(
-        c * Fraction(1, 5) ** s for s, c in enumerate(poly.coefficients)
+        c * Fraction(1, 5) ** s for s, c in enumerate(exact_coefficients)
     )
 
 

@@ -197,8 +197,13 @@ def _fmpq(w: Any) -> flint.fmpq:
     return flint.fmpq(w.numerator, w.denominator)
 
 
-def _public(value: Any) -> Any:
-    """An exact value as the user sees it: int, Fraction, complex or sympy."""
+def _public(value: Any, rounded: bool = False) -> Any:
+    """An exact value as the user sees it: int, Fraction, float, complex or sympy.
+
+    ``rounded`` (the model had float couplings): rationals are shown as their nearest float.
+    """
+    if rounded and isinstance(value, Fraction):
+        return float(value)
     if isinstance(value, tuple):
         re, im = value
         try:
@@ -229,8 +234,9 @@ class ExclusionPolynomial:
     ----------
     coefficients : tuple
         Ascending powers of y, signs included: ``coefficients[s] = (-1)^s C_s``.  Exact: ``int``
-        for integer weights, :class:`fractions.Fraction` for rational or float couplings (a
-        float stands for its exact binary value), ``complex`` for complex couplings (each the
+        for integer weights, :class:`fractions.Fraction` for rational couplings, ``float`` for
+        float couplings (each the rounding of the exact value computed from the couplings'
+        exact binary values, see :meth:`exact_parts`), ``complex`` for complex couplings (each the
         rounding of the exact Gaussian-rational value, see :meth:`exact_parts`), sympy
         expressions for symbolic couplings.
     weight_sums : tuple
@@ -273,7 +279,9 @@ class ExclusionPolynomial:
         kind: str,
         chain: tuple[tuple[Any, ...], int, tuple[int, ...]] | None,
         degree: int | None = None,
+        rounded: bool = False,
     ) -> None:
+        self._rounded = rounded
         self._sums_source = sums
         self._sums: tuple[Any, ...] | None = None
         self._exact_weights = tuple(weights)
@@ -300,7 +308,7 @@ class ExclusionPolynomial:
     @property
     def weight_sums(self) -> tuple[Any, ...]:
         """``C_s``, s = 0 .. degree (exact; see the class docstring for the types)."""
-        return tuple(_public(c) for c in self._exact_sums)
+        return tuple(_public(c, self._rounded) for c in self._exact_sums)
 
     @property
     def coefficients(self) -> tuple[Any, ...]:
@@ -310,7 +318,7 @@ class ExclusionPolynomial:
     @property
     def weights(self) -> tuple[Any, ...]:
         """``c_j^N`` in term order."""
-        return tuple(_public(w) for w in self._exact_weights)
+        return tuple(_public(w, self._rounded) for w in self._exact_weights)
 
     @property
     def chain(self) -> ChainData | None:
@@ -318,7 +326,7 @@ class ExclusionPolynomial:
         if self._chain is None:
             return None
         w, p, order = self._chain
-        return ChainData(tuple(_public(v) for v in w), p, order)
+        return ChainData(tuple(_public(v, self._rounded) for v in w), p, order)
 
     def exact_parts(self) -> tuple[tuple[Fraction, ...], tuple[Fraction, ...]]:
         """Real and imaginary parts of the coefficients as exact Fractions (numeric kinds only).
@@ -679,6 +687,7 @@ def _build(m: Model) -> ExclusionPolynomial:
         except (TypeError, ValueError) as err:
             raise type(err)(f"term {j}: {err}") from None
     ring = _Ring(_kind_of(weights))
+    rounded = any(isinstance(to_python_number(c), float) for c in m.couplings)
     if ring.kind == "integer":
         weights = [int(w) for w in weights]
     chain = chain_structure(m) if len(m) else None
@@ -690,7 +699,7 @@ def _build(m: Model) -> ExclusionPolynomial:
         data: tuple[tuple[Any, ...], int, tuple[int, ...]] | None = (ordered, p, order)
         degree = None if has_zero else (len(order) + p) // (p + 1)
         return ExclusionPolynomial(
-            lambda: _chain_sums(ring, ordered, p), weights, n, ring.kind, data, degree
+            lambda: _chain_sums(ring, ordered, p), weights, n, ring.kind, data, degree, rounded
         )
     sums = _graph_sums(ring, independence_graph(m), weights) if len(m) else [1]
-    return ExclusionPolynomial(lambda: sums, weights, n, ring.kind, None)
+    return ExclusionPolynomial(lambda: sums, weights, n, ring.kind, None, rounded=rounded)
