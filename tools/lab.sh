@@ -1,0 +1,13 @@
+#!/usr/bin/env bash
+# Start JupyterLab on the tour notebook, with the package installed in the repository's .venv.
+# Usage: bash tools/lab.sh [extra jupyter lab arguments...]
+set -euo pipefail
+source "$(dirname "${BASH_SOURCE[0]}")/venv.sh"
+ensure_venv lab
+cd "$ROOT"
+
+args=(--ServerApp.root_dir="$ROOT" --LabApp.default_url=/lab/tree/example_notebooks/tour.ipynb)
+if [ "$(id -u)" -eq 0 ]; then
+    args+=(--allow-root)
+fi
+exec "$VENV/bin/jupyter" lab "${args[@]}" "$@"

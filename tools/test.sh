@@ -1,0 +1,24 @@
+#!/usr/bin/env bash
+# Run every check of the project: ruff (lint and format), mypy, then pytest over tests/.
+# Usage: bash tools/test.sh [pytest arguments...]
+set -euo pipefail
+source "$(dirname "${BASH_SOURCE[0]}")/venv.sh"
+ensure_venv test
+cd "$ROOT"
+
+static=0
+echo "== ruff check";        "$VENV/bin/ruff" check . || static=1
+echo "== ruff format --check"; "$VENV/bin/ruff" format --check . || static=1
+echo "== mypy";              "$VENV/bin/mypy" || static=1
+if [ "$static" -ne 0 ]; then
+    echo "== static checks FAILED (see above); running pytest anyway"
+fi
+
+echo "== pytest"
+pytest_status=0
+"$VENV/bin/python" -m pytest "$@" || pytest_status=$?
+# pytest's summary line stays the last line printed.
+if [ "$pytest_status" -ne 0 ]; then
+    exit "$pytest_status"
+fi
+exit "$static"
