@@ -14,7 +14,7 @@ References
 ----------
 H. Whitney, Amer. J. Math. 54, 150 (1932) (uniqueness of the root graph);
 D. G. Degiorgi and K. Simon, "A dynamic algorithm for line graph recognition", WG 1995,
-Lecture Notes in Computer Science 1017, 37 (1995);
+LNCS 1017, 37 (1995);
 A. Chapman and S. T. Flammia, Quantum 4, 278 (2020), arXiv:2003.05465.
 """
 

@@ -358,7 +358,7 @@ class ExclusionPolynomial:
         if isinstance(y, sympy.Basic) or self.kind == "symbolic":
             if isinstance(y, np.ndarray):
                 raise TypeError("a symbolic polynomial is evaluated at scalars only; subs() first")
-            return self._exact_value(sympy.sympify(y) if not isinstance(y, sympy.Basic) else y)
+            return self._exact_value(_to_sympy(y))
         if isinstance(y, (int, Fraction)) and not isinstance(y, bool):
             if self.kind in ("integer", "rational"):
                 return self._exact_value(y)
@@ -465,8 +465,15 @@ def _to_exact_number(w: Any) -> Any:
 
 
 def _to_sympy(c: Any) -> sympy.Expr:
+    """A number as a sympy value, built explicitly (never by parsing)."""
+    if isinstance(c, np.generic):
+        c = c.item()
     if isinstance(c, sympy.Basic):
         return c  # type: ignore[return-value]
+    if isinstance(c, bool) or not isinstance(c, numbers.Number):
+        raise TypeError(f"{c!r} is not a number or a sympy expression")
+    if isinstance(c, float):
+        return sympy.Float(c)
     if isinstance(c, complex):
         return sympy.Float(c.real) + sympy.I * sympy.Float(c.imag)  # type: ignore[no-any-return]
     if isinstance(c, Fraction):
