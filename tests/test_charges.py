@@ -14,6 +14,7 @@ import networkx as nx
 import numpy as np
 import pytest
 import sympy
+from helpers import random_pauli_model
 
 import freeladder as fl
 
@@ -26,14 +27,8 @@ def _brute_sets(graph: nx.Graph) -> dict[int, list[tuple[int, ...]]]:
 
 
 def _random_pauli_model(rng: np.random.Generator, n_terms: int, n_sites: int) -> fl.Model:
-    terms, seen = [], set()
-    while len(terms) < n_terms:
-        letters = "".join(rng.choice(list("IXYZ"), n_sites))
-        if set(letters) == {"I"} or letters in seen:
-            continue
-        seen.add(letters)
-        terms.append((float(rng.uniform(0.5, 1.5)), fl.pauli(letters)))
-    return fl.Model.from_terms(terms, states=2, sites=range(n_sites))
+    """Random Pauli model with float couplings in [0.5, 1.5)."""
+    return random_pauli_model(rng, n_terms, n_sites, lambda r: float(r.uniform(0.5, 1.5)))
 
 
 def test_path_counts_are_binomials_summing_to_fibonacci() -> None:

@@ -12,22 +12,10 @@ import itertools
 
 import numpy as np
 import pytest
+from helpers import dense_string
 
 import freeladder as fl
 from freeladder.edge import edge_mode
-
-
-def dense_string(g: fl.OpString, sites: list) -> np.ndarray:
-    """Dense matrix of a string: X|s> = |s+1>, Z|s> = omega^s |s>, site 0 most significant."""
-    n = g.states
-    shift = np.roll(np.eye(n), 1, axis=0)
-    clock = np.diag(np.exp(2j * np.pi * np.arange(n) / n))
-    ex = g.exponents()
-    mat = np.array([[1.0 + 0j]])
-    for s in sites:
-        a, b = ex.get(s, (0, 0))
-        mat = np.kron(mat, np.linalg.matrix_power(shift, a) @ np.linalg.matrix_power(clock, b))
-    return np.exp(1j * np.pi * g.phase / n) * mat
 
 
 def dense_terms(m: fl.Model) -> list[np.ndarray]:

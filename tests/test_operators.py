@@ -8,21 +8,10 @@ from fractions import Fraction
 import numpy as np
 import pytest
 import sympy
+from helpers import dense_string
 
 import freeladder as fl
 from freeladder import OpSum, StringArray, make_string
-
-
-def dense_string(g: fl.OpString, sites: list[int]) -> np.ndarray:
-    n = g.states
-    shift = np.roll(np.eye(n), 1, axis=0)  # X|s> = |s+1>
-    clock = np.diag(np.exp(2j * np.pi * np.arange(n) / n))
-    ex = g.exponents()
-    mat = np.array([[1.0 + 0j]])
-    for s in sites:
-        a, b = ex.get(s, (0, 0))
-        mat = np.kron(mat, np.linalg.matrix_power(shift, a) @ np.linalg.matrix_power(clock, b))
-    return np.exp(1j * np.pi * g.phase / n) * mat
 
 
 def dense_sum(pairs: list, sites: list[int]) -> np.ndarray:

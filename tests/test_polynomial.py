@@ -15,6 +15,7 @@ import networkx as nx
 import numpy as np
 import pytest
 import sympy
+from helpers import random_pauli_model
 
 import freeladder as fl
 from freeladder.independent import IndependenceGraph
@@ -84,16 +85,10 @@ def test_general_algorithm_matches_brute_force_on_random_graphs() -> None:
 
 
 def _random_pauli_model(rng: np.random.Generator, n_terms: int, n_sites: int) -> fl.Model:
-    terms, seen = [], set()
-    while len(terms) < n_terms:
-        letters = "".join(rng.choice(list("IXYZ"), n_sites))
-        if set(letters) == {"I"} or letters in seen:
-            continue
-        seen.add(letters)
-        terms.append(
-            (Fraction(int(rng.integers(1, 9)), int(rng.integers(1, 5))), fl.pauli(letters))
-        )
-    return fl.Model.from_terms(terms, states=2, sites=range(n_sites))
+    """Random Pauli model with positive fraction couplings a / b, 1 <= a <= 8, 1 <= b <= 4."""
+    return random_pauli_model(
+        rng, n_terms, n_sites, lambda r: Fraction(int(r.integers(1, 9)), int(r.integers(1, 5)))
+    )
 
 
 def test_models_with_general_graphs_match_brute_force() -> None:
