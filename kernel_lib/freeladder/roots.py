@@ -199,7 +199,12 @@ def _sweep_serial(
     first: np.ndarray,
     second: np.ndarray,
 ) -> None:  # pragma: no cover - compiled
-    """All blocks of ``x`` on one core (small jobs: no thread start-up)."""
+    """All blocks of ``x`` on one core (small jobs: no thread start-up).
+
+    A copy of :func:`_sweep_parallel` on purpose: numba's on-disk cache is keyed by the Python
+    function and not by the ``parallel`` flag, so one body compiled twice would load one
+    machine code for both.
+    """
     for b in range((x.size + _BLOCK - 1) // _BLOCK):
         _block(w, p, x, b, deriv, counts, first, second)
 
