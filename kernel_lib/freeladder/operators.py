@@ -33,6 +33,7 @@ import numpy as np
 import scipy.sparse as sps
 import sympy
 
+from .cyclotomic import power_table
 from .model import Model
 from .printing import format_terms, format_terms_latex
 from .strings import OpString, StringArray, unit_phase
@@ -78,22 +79,11 @@ class _ExactRing:
 
     def __init__(self, states: int) -> None:
         n = states
-        x = sympy.Symbol("x")
-        phi = [
-            int(c) for c in reversed(sympy.Poly(sympy.cyclotomic_poly(2 * n, x), x).all_coeffs())
-        ]
-        d = len(phi) - 1
+        # Row k: w^k as an integer vector of length d (w = exp(i pi / N), a 2N-th root of 1).
+        d = len(power_table(2 * n, 1)[0])
+        red = power_table(2 * n, 2 * n + 2 * d)
         self.states = n
         self.d = d
-        # Row k: x^k mod Phi_{2N} as an integer vector of length d.
-        top = 2 * n + 2 * d
-        red = np.zeros((top, d), dtype=np.int64)
-        cur = np.zeros(d, dtype=np.int64)
-        cur[0] = 1
-        for k in range(top):
-            red[k] = cur
-            carry = cur[-1]
-            cur = np.concatenate([[0], cur[:-1]]) - carry * np.array(phi[:d], dtype=np.int64)
         self._red = red
         self._redmax = int(np.abs(red[: 2 * d - 1]).sum(axis=0).max())
         # Multiplication by w^k (k mod 2N) as d x d integer matrices acting on row vectors.
