@@ -17,7 +17,7 @@ import pytest
 
 import freeladder as fl
 from freeladder import OpSum
-from freeladder.verify import Check, Report, commutation_checks, inversion_check
+from freeladder.verify import Check, Report, charge_pairs_check, hamiltonian_check, inversion_check
 
 
 def enumerated_charges(m: fl.Model) -> list[OpSum]:
@@ -63,10 +63,12 @@ def rational(n: int) -> list[Fraction]:
 )
 def test_exclusion_chains_pass(model: fl.Model) -> None:
     charges = enumerated_charges(model)
-    first, second = commutation_checks(OpSum.from_model(model), charges)
-    assert first.passed and second.passed is not False
+    first = hamiltonian_check(OpSum.from_model(model), charges)
+    second = charge_pairs_check(model, charges)
+    assert first.passed and second.passed, second.detail
     exact = all(isinstance(c, (int, Fraction)) for c in model.couplings)
     assert (first.tolerance == 0.0) == exact
+    assert second.tolerance == 0.0  # the sweep is exact even for float couplings
     inv = inversion_check(model, charges)
     assert inv.passed, inv.detail
 
@@ -77,19 +79,24 @@ def test_claw_free_non_chain_commutes() -> None:
     m = fl.kitaev_honeycomb(2, 4, jx=1, jy=2, jz=Fraction(1, 3))
     assert fl.chain_structure(m) is None
     charges = enumerated_charges(m)
-    first, second = commutation_checks(OpSum.from_model(m), charges)
+    first = hamiltonian_check(OpSum.from_model(m), charges)
+    second = charge_pairs_check(m, charges)
     assert first.passed and second.passed
     inv = inversion_check(m, charges)
     assert inv.passed is False  # a cycle operator is left over: P(u^2) alone is not enough
+    # the sweep names it: the product of the six bond terms around the hexagon, at order u^6
+    assert "(6,)" in inv.detail and "independent" in inv.detail
 
 
 def test_claw_model_fails() -> None:
     m = fl.ising_lattice(2, 3, field=1, bond=1)
     charges = enumerated_charges(m)
     h = OpSum.from_model(m)
-    first, second = commutation_checks(h, charges)
+    first, second = hamiltonian_check(h, charges), charge_pairs_check(m, charges)
     assert first.passed is False and second.passed is False
     assert "non-zero for s = [3" in first.detail
+    # its 13 strings on 6 sites are dependent, so the sweep leaves it to the pairwise route
+    assert "pair by pair" in second.detail and "dependent" in second.detail
     # dense cross-check of the failing order with numpy
     hd = m.to_sparse().toarray()
     q3 = charges[2].to_sparse().toarray()
@@ -108,7 +115,7 @@ def test_small_charges_match_dense_commutators() -> None:
         assert OpSum.from_model(m).commutator(q).is_zero()
     # a non-charge does not commute: the check can fail
     bogus = charges[1] + OpSum.from_strings([(1, fl.pauli("Z", [0]))], m.sites, 2)
-    first, _ = commutation_checks(OpSum.from_model(m), [charges[0], bogus])
+    first = hamiltonian_check(OpSum.from_model(m), [charges[0], bogus])
     assert first.passed is False
 
 
@@ -146,9 +153,19 @@ def test_verify_clock_chain_and_symbols() -> None:
     assert all("spectrum" not in c.name for c in sym.checks)
 
 
-def test_verify_larger_chain_is_fast() -> None:
-    # 20-term reach-2 chain: 4 x 10^3 independent sets, exact check of every [H, Q(s)]
-    r = fl.verify(fl.exclusion_chain(20, reach=2, couplings=[1 + j % 3 for j in range(20)]))
-    first = r["[H, Q(s)] = 0"]
-    assert first.passed and first.tolerance == 0.0 and first.seconds < 20
-    assert r["[Q(r), Q(s)] = 0"].passed
+def test_verify_30_term_chain_is_exact_and_fast() -> None:
+    # 30-term reach-2 chain: 1.25 x 10^5 independent sets, 6 x 10^9 pairs of them.  Every
+    # [H, Q(s)] in the string algebra, every [Q(r), Q(s)] and T(u) T(-u) = P(u^2) by the sweep,
+    # all exact (Alcaraz-Pimenta 2020: these identities hold for every exclusion chain).
+    r = fl.verify(fl.exclusion_chain(30, reach=2, couplings=[1 + j % 3 for j in range(30)]))
+    names = ("[H, Q(s)] = 0", "[Q(r), Q(s)] = 0", "T(u) T(-u) = P(u^2)")
+    for name in names:
+        assert r[name].passed and r[name].tolerance == 0.0, str(r)
+    assert "sweep" in r["[Q(r), Q(s)] = 0"].method
+    assert sum(r[name].seconds for name in names) < 60
+
+
+def test_pairs_of_symbolic_charges_go_pair_by_pair() -> None:
+    m = fl.exclusion_chain(6, reach=1, couplings="symbols")
+    check = charge_pairs_check(m, enumerated_charges(m))
+    assert check.passed and "pair by pair" in check.detail and "symbolic" in check.detail

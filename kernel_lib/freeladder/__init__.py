@@ -38,6 +38,7 @@ from .roots import (
 )
 from .spectrum import FreeSpectrum, Level, LevelTable, free_spectrum
 from .strings import OpString, StringArray, make_string, pauli
+from .sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
 from .verdict import ComponentVerdict, Verdict, classify
@@ -90,6 +91,10 @@ __all__ = [
     "ladder_operators",
     "verify",
     "StringArray",
+    "SweepResult",
+    "Witness",
+    "commutator_sweep",
+    "inversion_sweep",
     "Term",
     "clock_chain",
     "complex_couplings",

@@ -2,11 +2,12 @@
 
 :func:`verify` runs, where they apply:
 
-* **commutation** -- ``[H, Q^(s)] = 0`` for every order s and ``[Q^(r), Q^(s)] = 0``, exactly in
-  the string algebra (:class:`~freeladder.operators.OpSum`, no matrices);
+* **commutation** -- ``[H, Q^(s)] = 0`` for every order s, exactly in the string algebra
+  (:class:`~freeladder.operators.OpSum`, no matrices), and ``[Q^(r), Q^(s)] = 0`` for every pair
+  at once by an exact sweep over the terms (:mod:`freeladder.sweep`);
 * **inversion relation** -- ``T(u) T(-u) = P(u^2)`` (N = 2) and
-  ``T(u) T(omega u) ... T(omega^{N-1} u) = P(u^N)`` (clock chains), exactly at a rational u for
-  exact couplings, in floating point at a random u otherwise;
+  ``T(u) T(omega u) ... T(omega^{N-1} u) = P(u^N)`` (clock chains), for every u, by the same
+  sweep; symbolic couplings fall back to the string algebra at one u;
 * **ladder relations** -- ``[H, Psi_{+-k}] = +-2 eta_k Psi_{+-k}`` for small N = 2 systems;
 * **sum rules** -- ``sum eta^N = sum c^N`` and ``sum eta^{2N} = (sum c^N)^2 - 2 C_2``;
 * **exact diagonalization** -- the whole spectrum with multiplicities against the free levels.
@@ -27,7 +28,7 @@ from __future__ import annotations
 import html
 import time
 from collections.abc import Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from fractions import Fraction
 from typing import Any
 
@@ -41,6 +42,7 @@ from .model import Model
 from .operators import OpSum
 from .polynomial import exclusion_polynomial
 from .spectrum import free_spectrum
+from .sweep import SweepResult, commutator_sweep, inversion_sweep
 
 ED_AUTO_DIMENSION = 4096
 """``exact_diagonalization="auto"`` compares with exact diagonalization up to this dimension."""
@@ -204,24 +206,19 @@ def _method(ops: Sequence[OpSum]) -> tuple[str, float]:
 
 
 # -- commutation --------------------------------------------------------------------------------
-def commutation_checks(
-    h: OpSum, charges: Sequence[OpSum], max_pairs: int = MAX_PAIRS
-) -> tuple[Check, Check]:
-    """``[H, Q^(s)] = 0`` for every s, and ``[Q^(r), Q^(s)] = 0`` for 2 <= r < s.
+def hamiltonian_check(h: OpSum, charges: Sequence[OpSum]) -> Check:
+    """``[H, Q^(s)] = 0`` for every s, pair by pair in the string algebra.
 
     Parameters
     ----------
     h : OpSum
         The Hamiltonian.
     charges : sequence of OpSum
-        ``Q^(1), Q^(2), ...`` (``Q^(1)`` is H without its constant).
-    max_pairs : int
-        Pairs of orders with ``len(Q^r) len(Q^s) > max_pairs`` are skipped in the second check
-        and listed in its detail (the pairs of strings that fail to commute are the work).
+        ``Q^(1), Q^(2), ...``.
 
     Returns
     -------
-    (Check, Check)
+    Check
     """
     start = time.perf_counter()
     method, tol = _method([h, *charges])
@@ -231,14 +228,60 @@ def commutation_checks(
         worst = max(worst, val) if val == val else worst
         if not zero:
             bad.append(s)
-    sizes = [len(q) for q in charges]
-    detail = f"orders 1..{len(charges)}, {sum(sizes)} strings in all"
+    detail = f"orders 1..{len(charges)}, {sum(len(q) for q in charges)} strings in all"
     if bad:
         detail += f"; non-zero for s = {bad}"
-    first = Check(
+    return Check(
         "[H, Q(s)] = 0", method, tol, worst, not bad, detail, _ECF, time.perf_counter() - start
     )
-    start = time.perf_counter()
+
+
+_PAIRS = "[Q(r), Q(s)] = 0"
+_SWEEP = "exact sweep over the terms (word automaton, rational arithmetic; no matrices)"
+
+
+def charge_pairs_check(
+    m: Model, charges: Sequence[OpSum] | None, max_pairs: int = MAX_PAIRS
+) -> Check:
+    """``[Q^(r), Q^(s)] = 0`` for every pair of orders.
+
+    Numeric couplings: decided at once for all pairs by :func:`freeladder.sweep.commutator_sweep`
+    (exact, polynomial in the number of terms).  When the sweep cannot decide (symbolic
+    couplings, a frontier too wide, or a non-zero word of dependent strings) the charges are
+    multiplied pair by pair in the string algebra, for pairs of orders 2 <= r < s with at most
+    ``max_pairs`` pairs of strings (order 1 is H, see :func:`hamiltonian_check`).
+
+    Parameters
+    ----------
+    m : Model
+    charges : sequence of OpSum or None
+        ``Q^(1), Q^(2), ...`` for the pairwise route; None when they are too many to list.
+    max_pairs : int
+        Work limit of the pairwise route.
+
+    Returns
+    -------
+    Check
+    """
+    reason = "symbolic couplings"
+    if not m.is_symbolic:
+        try:
+            res = commutator_sweep(m)
+        except ValueError as err:
+            reason = str(err)
+        else:
+            check = _sweep_check(_PAIRS, res, "pairs (r, s)", _ECF)
+            if check.passed is not None:
+                return check
+            reason = check.detail
+    if charges is None:
+        return Check(_PAIRS, _SWEEP, 0.0, float("nan"), None, reason, _ECF)
+    check = _pairwise_check(charges, max_pairs)
+    return replace(check, detail=f"{check.detail} (sweep: {reason})")
+
+
+def _pairwise_check(charges: Sequence[OpSum], max_pairs: int) -> Check:
+    method, tol = _method(charges)
     worst, done = 0.0, 0
     bad_pairs: list[tuple[int, int]] = []
     skipped: list[tuple[int, int]] = []
@@ -253,7 +296,7 @@ def commutation_checks(
             worst = max(worst, val) if val == val else worst
             if not zero:
                 bad_pairs.append((r, s))
-    detail = f"{done} pairs of orders checked"
+    detail = f"{done} pairs of orders checked pair by pair"
     if skipped:
         detail += (
             f"; {len(skipped)} pairs skipped (more than {max_pairs} string pairs): "
@@ -265,10 +308,39 @@ def commutation_checks(
     passed: bool | None = not bad_pairs if done else None
     if done == 0 and not skipped:
         detail = "fewer than two orders beyond H: nothing to check"
-    second = Check(
-        "[Q(r), Q(s)] = 0", method, tol, worst, passed, detail, _ECF, time.perf_counter() - start
+    return Check(_PAIRS, method, tol, worst, passed, detail, _ECF)
+
+
+def _sweep_check(name: str, res: SweepResult, keys: str, ref: str) -> Check:
+    """A Check from a sweep; ``passed`` is None when the sweep could not decide."""
+    size = (
+        f"{res.points} evaluation points, at most {res.coordinates} coordinates and a forward "
+        f"space of dimension <= {res.rank} per term"
     )
-    return first, second
+    w = res.witness
+    if w is None:
+        return Check(name, _SWEEP, 0.0, 0.0, True, f"every word vanishes; {size}", ref)
+    shown = ", ".join(f"{k}: {_num(c)}" for k, c in sorted(w.coefficients.items())[:6])
+    found = f"the string {w.string} has coefficients {{{shown}}} ({keys})"
+    if res.vanishes is False:
+        return Check(
+            name,
+            _SWEEP,
+            0.0,
+            max(abs(c) for c in w.coefficients.values()),
+            False,
+            f"{found}; the terms' strings are independent, so this is not zero; {size}",
+            ref,
+        )
+    return Check(
+        name,
+        _SWEEP,
+        0.0,
+        float("nan"),
+        None,
+        f"{found}, but the terms' strings are dependent: words may cancel",
+        ref,
+    )
 
 
 # -- inversion relation -------------------------------------------------------------------------
@@ -288,47 +360,47 @@ def _inversion_name(n: int) -> str:
     return "T(u) T(-u) = P(u^2)" if n == 2 else "T(u) T(wu) ... T(w^(N-1) u) = P(u^N)"
 
 
-def inversion_check(m: Model, charges: Sequence[OpSum], max_pairs: int = MAX_PAIRS) -> Check:
-    """``prod_{k < N} T(omega^k u) = P(u^N) * 1`` in the string algebra.
+def inversion_check(m: Model, charges: Sequence[OpSum] | None, max_pairs: int = MAX_PAIRS) -> Check:
+    """``prod_{k < N} T(omega^k u) = P(u^N) * 1`` for every u.
 
-    u = 3/7 (exact) for exact couplings, a random float in (0.2, 0.8) otherwise.
+    Numeric couplings: decided exactly for all u by :func:`freeladder.sweep.inversion_sweep`.
+    Otherwise (or when the sweep cannot decide) the product is formed in the string algebra at
+    u = 3/7 (exact couplings) or a random float u, within ``max_pairs`` pairs of strings.
     """
-
     n = m.states
-    exact = all(q.is_exact for q in charges)
-    u: Any = Fraction(3, 7) if exact else float(np.random.default_rng(7).uniform(0.2, 0.8))
     name = _inversion_name(n)
     ref = _ECF if n == 2 else _AP
+    reason = "symbolic couplings"
+    if not m.is_symbolic:
+        try:
+            res = inversion_sweep(m)
+        except ValueError as err:
+            reason = str(err)
+        else:
+            check = _sweep_check(name, res, "powers of u", ref)
+            if check.passed is not None:
+                return check
+            reason = check.detail
+    if charges is None:
+        return Check(name, _SWEEP, 0.0, float("nan"), None, reason, ref)
+    exact = all(q.is_exact for q in charges)
+    u: Any = Fraction(3, 7) if exact else float(np.random.default_rng(7).uniform(0.2, 0.8))
     size = 1 + sum(len(q) for q in charges)
     if size**2 > max_pairs:
-        return Check(
-            name,
-            "string algebra",
-            0.0,
-            float("nan"),
-            None,
-            f"T(u) has up to {size} strings: the product is beyond {max_pairs} pairs",
-            ref,
-        )
+        detail = f"T(u) has up to {size} strings: the product is beyond {max_pairs} pairs"
+        return Check(name, "string algebra", 0.0, float("nan"), None, f"{detail} ({reason})", ref)
     factors = [transfer_from_charges(charges, u, k) for k in range(n)]
     prod = factors[0]
     for f in factors[1:]:
         if len(prod) * len(f) > max_pairs:
-            return Check(
-                name,
-                "string algebra",
-                0.0,
-                float("nan"),
-                None,
-                f"partial product of {len(prod)} strings times {len(f)}: beyond {max_pairs} pairs",
-                ref,
-            )
+            detail = f"partial product of {len(prod)} strings times {len(f)}: beyond {max_pairs}"
+            return Check(name, "string algebra", 0.0, float("nan"), None, detail, ref)
         prod = prod @ f
     p_val = exclusion_polynomial(m)(u**n)
     target = OpSum.identity(n, m.sites, p_val)
     method, tol = _method([prod])
     zero, val = _residual(prod - target)
-    detail = f"u = {u}; product has {len(prod)} strings; P(u^N) = {p_val}"
+    detail = f"u = {u}; product has {len(prod)} strings; P(u^N) = {p_val} (sweep: {reason})"
     return Check(name, method, tol, val, zero, detail, ref)
 
 
@@ -513,14 +585,18 @@ def verify(
     checks: list[Check] = []
     notes: list[str] = []
     degree = exclusion_polynomial(m).degree
+    charges: list[OpSum] | None
     try:
         charges = [charge(m, s) for s in range(1, degree + 1)]
     except ValueError as err:  # too many independent sets to list
-        for name in ("[H, Q(s)] = 0", "[Q(r), Q(s)] = 0", _inversion_name(m.states)):
-            checks.append(Check(name, "string algebra", 0.0, float("nan"), None, str(err), _ECF))
+        charges = None
+        checks.append(
+            Check("[H, Q(s)] = 0", "string algebra", 0.0, float("nan"), None, str(err), _ECF)
+        )
     else:
-        checks.extend(commutation_checks(OpSum.from_model(m), charges, max_pairs))
-        checks.append(_timed(inversion_check, m, charges, max_pairs))
+        checks.append(_timed(hamiltonian_check, OpSum.from_model(m), charges))
+    checks.append(_timed(charge_pairs_check, m, charges, max_pairs))
+    checks.append(_timed(inversion_check, m, charges, max_pairs))
     numeric = not m.is_symbolic
     if not numeric:
         notes.append("symbolic couplings: spectral checks need numbers (use m.subs first)")
