@@ -39,6 +39,8 @@ EXPECTED_TEXT = [
     "same model as the builder's: True",
     "ChainStructure(M=6, reach=2",
     "all checks passed: True",
+    "all checks passed: True | dimension 4294967296",
+    "charges commute: False",
 ]
 
 if not CHROMIUM.exists():

@@ -190,14 +190,8 @@ def test_large_claw_model_fails_with_checkable_witness() -> None:
     # A 30-term reach-2 chain plus Z10 Z13 Z16, which anticommutes with exactly the three mutually
     # commuting chain terms X10 Z11 Z12, X13 Z14 Z15 and X16 Z17 Z18: a claw.
     m = fl.exclusion_chain(30, reach=2, couplings=[1 + j % 3 for j in range(30)])
-    extra = fl.Model.from_terms(
-        [
-            *((c, g) for c, g in zip(m.couplings, m.strings, strict=True)),
-            (1, fl.pauli("ZZZ", [10, 13, 16])),
-        ],
-        states=2,
-        sites=m.sites,
-    )
+    claw_term = (1, fl.pauli("ZZZ", [10, 13, 16]))
+    extra = fl.Model.from_terms([*m.terms, claw_term], states=2, sites=m.sites)
     res = commutator_sweep(extra)
     assert res.vanishes is False and res.witness is not None
     # Check the lowest reported pair in the string algebra (H with Q(s) is cheap here).

@@ -149,24 +149,28 @@ class Report:
         return f"Report(ok={self.ok}, checks={len(self.checks)}, failed={len(self.failed)})"
 
     def _repr_html_(self) -> str:
+        left = "text-align:left;vertical-align:top"
         rows = []
         for c in self.checks:
             colour = {True: "#1a7f37", False: "#cf222e", None: "#6e7781"}[c.passed]
             tol = "exact" if c.tolerance == 0 else f"{c.tolerance:.2g}"
-            cells = [
-                f'<td style="color:{colour};font-weight:bold">{c.status}</td>',
-                f"<td>{html.escape(c.name)}</td>",
-                f"<td>{html.escape(c.method)}</td>",
-                f"<td>{'' if c.passed is None else f'{c.value:.3g}'}</td>",
-                f"<td>{'' if c.passed is None else tol}</td>",
-                f"<td>{html.escape(c.detail)}</td>",
-                f"<td><small>{html.escape(c.reference)}</small></td>",
+            texts = [
+                html.escape(c.name),
+                html.escape(c.method),
+                "" if c.passed is None else f"{c.value:.3g}",
+                "" if c.passed is None else tol,
+                "&lt;0.01 s" if c.seconds < 0.01 else f"{c.seconds:.2f} s",
+                html.escape(c.detail),
+                f"<small>{html.escape(c.reference)}</small>",
             ]
+            cells = [f'<td style="{left};color:{colour};font-weight:bold">{c.status}</td>']
+            cells.extend(
+                f'<td style="{left}{";white-space:nowrap" if k in (2, 3, 4) else ""}">{t}</td>'
+                for k, t in enumerate(texts)
+            )
             rows.append("<tr>" + "".join(cells) + "</tr>")
-        head = "".join(
-            f"<th>{h}</th>"
-            for h in ("result", "check", "method", "value", "tolerance", "detail", "reference")
-        )
+        names = ("result", "check", "method", "value", "tolerance", "time", "detail", "reference")
+        head = "".join(f'<th style="{left}">{h}</th>' for h in names)
         verdict = "all checks passed" if self.ok else f"{len(self.failed)} failed"
         notes = "".join(f"<p><small>{html.escape(n)}</small></p>" for n in self.notes)
         return (
@@ -476,7 +480,11 @@ def sum_rule_check(m: Model) -> Check:
 
 def _num(v: complex) -> str:
     v = complex(v)
-    return f"{v.real:.10g}" if abs(v.imag) <= 1e-12 * max(1.0, abs(v)) else f"{v:.8g}"
+    if abs(v.imag) <= 1e-12 * max(1.0, abs(v)):
+        return f"{v.real:.10g}"
+    if abs(v.real) <= 1e-12 * abs(v):
+        return f"{v.imag:.10g}i"
+    return f"{v.real:.10g}{v.imag:+.10g}i"
 
 
 # -- exact diagonalization ----------------------------------------------------------------------
