@@ -163,27 +163,40 @@ def test_float_and_complex_couplings_are_exact() -> None:
     assert commutator_sweep(cplx).vanishes and inversion_sweep(cplx).vanishes
 
 
+def dense_inversion_holds(m: fl.Model, u: float) -> bool:
+    """prod_k T(omega^k u) == P(u^N) 1 with dense matrices (P from the library's C_s)."""
+    n = m.states
+    qs = dense_charges(m)
+    omega = np.exp(2j * np.pi / n)
+    prod = np.eye(len(qs[0]), dtype=complex)
+    for k in range(n):
+        prod = prod @ sum((-u * omega**k) ** s * q for s, q in enumerate(qs))
+    sums = fl.exclusion_polynomial(m).weight_sums
+    p = sum((-(u**n)) ** s * complex(c) for s, c in enumerate(sums))
+    return bool(np.allclose(prod, p * np.eye(len(prod)), atol=1e-10))
+
+
 def test_inversion_against_dense() -> None:
-    # T(u) T(-u) against P(u^2) with dense matrices at a random u: holds on a chain, fails on a
-    # hexagon of the Kitaev honeycomb (an even hole leaves a cycle operator), as the sweep says.
-    for m, expected in [
-        (fl.exclusion_chain(6, reach=2, couplings=[1, 2, 3, 2, 1, 3]), True),
-        (fl.kitaev_honeycomb(2, 4, jx=1, jy=2, jz=Fraction(1, 3)), False),
-    ]:
-        qs = dense_charges(m)
-        u = 0.37
-        t_plus = sum((-u) ** s * q for s, q in enumerate(qs))
-        t_minus = sum(u**s * q for s, q in enumerate(qs))
-        p = sum(
-            (-(u**2)) ** s * complex(c)
-            for s, c in enumerate(fl.exclusion_polynomial(m).weight_sums)
-        )
-        dense_ok = np.allclose(t_plus @ t_minus, p * np.eye(len(t_plus)), atol=1e-10)
-        assert dense_ok is expected
+    # Dense matrices at a random u agree with the sweep: the relation holds on exclusion chains
+    # (Alcaraz-Pimenta 2020), fails on a hexagon of the Kitaev honeycomb (an even hole leaves a
+    # cycle operator, Elman-Chapman-Flammia 2021) and on most random clock models.
+    cases = [
+        fl.exclusion_chain(6, reach=2, couplings=[1, 2, 3, 2, 1, 3]),
+        fl.kitaev_honeycomb(2, 4, jx=1, jy=2, jz=Fraction(1, 3)),
+        fl.exclusion_chain(5, reach=1, states=3, couplings=[1, 2, Fraction(1, 2), 3, 1]),
+    ]
+    cases += [random_clock_model(np.random.default_rng(200 + k), 4, 3, 3) for k in range(4)]
+    verdicts = []
+    for m in cases:
         res = inversion_sweep(m)
-        assert res.vanishes is expected
-        if not expected:
-            assert res.witness is not None and res.witness.independent
+        holds = dense_inversion_holds(m, 0.37)
+        if res.vanishes is None:
+            assert res.witness is not None and not res.witness.independent
+        else:
+            assert res.vanishes is holds, str(m)
+        verdicts.append(res.vanishes)
+    assert verdicts[:3] == [True, False, True]
+    assert False in verdicts[3:]
 
 
 def test_large_claw_model_fails_with_checkable_witness() -> None:
