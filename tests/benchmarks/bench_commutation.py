@@ -1,13 +1,16 @@
-"""Benchmark: exact commutation check of the charges in the string algebra vs sparse matrices.
+"""Benchmark: exact check that the charges commute, against sparse matrices.
 
-Reach-2 exclusion chain with integer couplings (N = 2).  For each size the script times
+Reach-2 exclusion chain with integer couplings (N = 2).  For each size the script times, for
+every order s and every pair of orders (r, s):
 
-* exact: ``[H, Q^(s)]`` for every s and ``[Q^(r), Q^(s)]`` for every pair, in the string
-  algebra (freeladder.verify.commutation_checks, no pair budget below the stated one);
-* sparse: the same commutators with scipy.sparse matrices of dimension 2^(M+2),
+* exact: ``[H, Q^(s)]`` in the string algebra (freeladder.verify.hamiltonian_check) and
+  ``[Q^(r), Q^(s)]`` for all pairs at once by the sweep (freeladder.commutator_sweep);
+* pairwise: ``[Q^(r), Q^(s)]`` pair of orders by pair of orders in the string algebra;
+* sparse: the same commutators with scipy.sparse matrices of dimension 2^(M+2);
 
-and prints the ratio at the largest size both can do, then the exact check alone on 30 terms.
-Run:  /work/venv/bin/python tests/benchmarks/bench_commutation.py
+and prints the ratios at each size both can do, then the exact check alone where neither
+baseline can go (at 30 terms the pairs of independent sets number 6 x 10^9).
+Run:  bash tools/bench.sh tests/benchmarks/bench_commutation.py
 """
 
 from __future__ import annotations
@@ -16,45 +19,26 @@ import time
 
 import freeladder as fl
 from freeladder import OpSum
-from freeladder.verify import commutation_checks
+from freeladder.verify import _pairwise_check, hamiltonian_check
 
 
 def charges(m: fl.Model) -> list[OpSum]:
-    """Q^(1..alpha): from fl.charge when the library has it, else by enumeration here."""
-    try:
-        from freeladder.charges import charge
-    except ImportError:
-        charge = None
-    if charge is not None:
-        alpha = fl.exclusion_polynomial(m).degree
-        return [charge(m, s) for s in range(1, alpha + 1)]
-    cm = m.strings.commutation_matrix()
-    n = len(m)
-    adj = [set(cm.indices[cm.indptr[j] : cm.indptr[j + 1]].tolist()) for j in range(n)]
-    coeffs = list(m.couplings)
-    sets, strings, values, out = [(j,) for j in range(n)], m.strings, coeffs, []
-    while sets:
-        out.append(OpSum(strings, values))
-        left, right, new_sets, new_values = [], [], [], []
-        for i, subset in enumerate(sets):
-            for j in range(subset[-1] + 1, n):
-                if not adj[j].intersection(subset):
-                    left.append(i)
-                    right.append(j)
-                    new_sets.append((*subset, j))
-                    new_values.append(values[i] * coeffs[j])
-        if not new_sets:
-            break
-        strings = strings.products(left, right, m.strings)
-        sets, values = new_sets, new_values
-    return out
+    alpha = fl.exclusion_polynomial(m).degree
+    return [fl.charge(m, s) for s in range(1, alpha + 1)]
 
 
-def exact_check(m: fl.Model, qs: list[OpSum], max_pairs: int) -> tuple[float, bool, str]:
+def exact_check(m: fl.Model, qs: list[OpSum]) -> tuple[float, bool]:
     t0 = time.perf_counter()
-    first, second = commutation_checks(OpSum.from_model(m), qs, max_pairs=max_pairs)
-    ok = bool(first.passed) and second.passed is not False
-    return time.perf_counter() - t0, ok, second.detail
+    first = hamiltonian_check(OpSum.from_model(m), qs)
+    second = fl.commutator_sweep(m)
+    return time.perf_counter() - t0, bool(first.passed) and second.vanishes is True
+
+
+def pairwise_check(m: fl.Model, qs: list[OpSum]) -> tuple[float, bool]:
+    t0 = time.perf_counter()
+    first = hamiltonian_check(OpSum.from_model(m), qs)
+    second = _pairwise_check(qs, max_pairs=10**12)
+    return time.perf_counter() - t0, bool(first.passed) and second.passed is not False
 
 
 def sparse_check(m: fl.Model, qs: list[OpSum]) -> tuple[float, bool]:
@@ -71,34 +55,62 @@ def sparse_check(m: fl.Model, qs: list[OpSum]) -> tuple[float, bool]:
     return time.perf_counter() - t0, worst < 1e-9
 
 
+def chain(size: int) -> fl.Model:
+    return fl.exclusion_chain(size, reach=2, couplings=[1 + j % 3 for j in range(size)])
+
+
 def main() -> None:
-    print("reach-2 chain, N = 2, integer couplings; all orders of [H, Q] and [Q, Q]")
-    print(f"{'M':>3} {'sites':>5} {'strings':>8} {'exact s':>9} {'sparse s':>9} {'ratio':>7}")
-    last = None
-    for size in (6, 8, 10, 12, 14):
-        m = fl.exclusion_chain(size, reach=2, couplings=[1 + j % 3 for j in range(size)])
-        qs = charges(m)
-        te, ok_e, _ = exact_check(m, qs, max_pairs=10**12)
-        ts, ok_s = sparse_check(m, qs)
-        assert ok_e and ok_s
-        n_str = sum(len(q) for q in qs)
-        print(f"{size:>3} {size + 2:>5} {n_str:>8} {te:>9.3f} {ts:>9.3f} {ts / te:>7.1f}")
-        last = (size, te, ts)
-    assert last is not None
     print(
-        f"largest size done both ways: M = {last[0]}; sparse / exact time = {last[2] / last[1]:.1f}"
+        "reach-2 chain, N = 2, integer couplings; [H, Q(s)] for all s, [Q(r), Q(s)] for all pairs"
     )
-    m = fl.exclusion_chain(30, reach=2, couplings=[1 + j % 3 for j in range(30)])
-    t0 = time.perf_counter()
-    qs = charges(m)
-    tb = time.perf_counter() - t0
-    for budget in (2_000_000, 20_000_000):
-        te, ok, detail = exact_check(m, qs, max_pairs=budget)
+    print(
+        f"{'M':>3} {'sites':>5} {'strings':>8} {'exact s':>8} {'pairwise s':>10} {'sparse s':>9}"
+        f" {'sparse/exact':>12} {'pairwise/exact':>14}"
+    )
+    for size in (6, 8, 10, 12, 14):
+        m = chain(size)
+        qs = charges(m)
+        te, ok_e = exact_check(m, qs)
+        tp, ok_p = pairwise_check(m, qs)
+        ts, ok_s = sparse_check(m, qs)
+        assert ok_e and ok_p and ok_s
+        n_str = sum(len(q) for q in qs)
         print(
-            f"M = 30 (32 sites, {sum(len(q) for q in qs)} strings; charges built in {tb:.1f} s): "
-            f"exact check {te:.1f} s with pair budget {budget:.0e}, passed={ok}; {detail}"
+            f"{size:>3} {size + 2:>5} {n_str:>8} {te:>8.3f} {tp:>10.3f} {ts:>9.3f}"
+            f" {ts / te:>12.1f} {tp / te:>14.1f}"
         )
-    print("sparse matrices at M = 30 would need dimension 2^32: not attempted")
+    print("largest size all three ran: M = 14 (sparse matrices of dimension 2^16)")
+    for size in (20, 24):
+        m = chain(size)
+        qs = charges(m)
+        te, ok_e = exact_check(m, qs)
+        tp, ok_p = pairwise_check(m, qs)
+        assert ok_e and ok_p
+        print(
+            f"M = {size} ({size + 2} sites, {sum(len(q) for q in qs)} strings): exact {te:.2f} s, "
+            f"pairwise {tp:.2f} s, pairwise/exact = {tp / te:.1f} (sparse: dimension 2^{size + 2})"
+        )
+    for size in (30, 45, 60, 90):
+        m = chain(size)
+        t0 = time.perf_counter()
+        qs = charges(m) if size <= 30 else None
+        tb = time.perf_counter() - t0
+        t0 = time.perf_counter()
+        first = hamiltonian_check(OpSum.from_model(m), qs) if qs is not None else None
+        th = time.perf_counter() - t0
+        t0 = time.perf_counter()
+        res = fl.commutator_sweep(m, max_work=10**6)
+        tw = time.perf_counter() - t0
+        hq = (
+            f"[H, Q(s)] {th:.1f} s (charges built in {tb:.1f} s, passed={first.passed})"
+            if first is not None
+            else "[H, Q(s)] not listed (charges too many to build here)"
+        )
+        print(
+            f"M = {size} ({size + 2} sites): sweep over all pairs {tw:.2f} s, "
+            f"vanishes={res.vanishes}, {res.points} points, {res.coordinates} coordinates; {hq}"
+        )
+    print("pairwise and sparse baselines at M = 30: 6 x 10^9 set pairs / dimension 2^32, not run")
 
 
 if __name__ == "__main__":
