@@ -27,7 +27,7 @@ from __future__ import annotations
 
 import html
 import time
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 from fractions import Fraction
 from typing import Any
@@ -267,17 +267,9 @@ def charge_pairs_check(
     -------
     Check
     """
-    reason = "symbolic couplings"
-    if not m.is_symbolic:
-        try:
-            res = commutator_sweep(m)
-        except ValueError as err:
-            reason = str(err)
-        else:
-            check = _sweep_check(_PAIRS, res, "pairs (r, s)", _ECF)
-            if check.passed is not None:
-                return check
-            reason = check.detail
+    decided, reason = _try_sweep(m, commutator_sweep, _PAIRS, "pairs (r, s)", _ECF)
+    if decided is not None:
+        return decided
     if charges is None:
         return Check(_PAIRS, _SWEEP, 0.0, float("nan"), None, reason, _ECF)
     check = _pairwise_check(charges, max_pairs)
@@ -313,6 +305,20 @@ def _pairwise_check(charges: Sequence[OpSum], max_pairs: int) -> Check:
     if done == 0 and not skipped:
         detail = "fewer than two orders beyond H: nothing to check"
     return Check(_PAIRS, method, tol, worst, passed, detail, _ECF)
+
+
+def _try_sweep(
+    m: Model, sweep: Callable[[Model], SweepResult], name: str, keys: str, ref: str
+) -> tuple[Check | None, str]:
+    """The sweep's Check when it decides; otherwise None and the reason it did not."""
+    if m.is_symbolic:
+        return None, "symbolic couplings"
+    try:
+        res = sweep(m)
+    except ValueError as err:
+        return None, str(err)
+    check = _sweep_check(name, res, keys, ref)
+    return (check, "") if check.passed is not None else (None, check.detail)
 
 
 def _sweep_check(name: str, res: SweepResult, keys: str, ref: str) -> Check:
@@ -374,17 +380,9 @@ def inversion_check(m: Model, charges: Sequence[OpSum] | None, max_pairs: int = 
     n = m.states
     name = _inversion_name(n)
     ref = _ECF if n == 2 else _AP
-    reason = "symbolic couplings"
-    if not m.is_symbolic:
-        try:
-            res = inversion_sweep(m)
-        except ValueError as err:
-            reason = str(err)
-        else:
-            check = _sweep_check(name, res, "powers of u", ref)
-            if check.passed is not None:
-                return check
-            reason = check.detail
+    decided, reason = _try_sweep(m, inversion_sweep, name, "powers of u", ref)
+    if decided is not None:
+        return decided
     if charges is None:
         return Check(name, _SWEEP, 0.0, float("nan"), None, reason, ref)
     exact = all(q.is_exact for q in charges)
