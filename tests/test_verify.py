@@ -169,3 +169,18 @@ def test_pairs_of_symbolic_charges_go_pair_by_pair() -> None:
     m = fl.exclusion_chain(6, reach=1, couplings="symbols")
     check = charge_pairs_check(m, enumerated_charges(m))
     assert check.passed and "pair by pair" in check.detail and "symbolic" in check.detail
+
+
+def test_large_chain_reads_h_off_the_sweep() -> None:
+    # 60 terms: order 5 alone has C(52, 5) = 2598960 products, too many to list, so [H, Q(s)]
+    # is read off the sweep of all pairs (H is Q(1)); Alcaraz-Pimenta 2020 says it holds.
+    r = fl.verify(fl.exclusion_chain(60, reach=2))
+    assert r["[H, Q(s)] = 0"].passed and "covers r = 1" in r["[H, Q(s)] = 0"].detail
+    assert r["[Q(r), Q(s)] = 0"].passed and r["T(u) T(-u) = P(u^2)"].passed
+
+
+def test_skipped_pairs_do_not_pass() -> None:
+    # Symbolic couplings force the pairwise route; a tiny budget skips pairs: not a pass.
+    m = fl.exclusion_chain(8, reach=1, couplings="symbols")
+    check = charge_pairs_check(m, enumerated_charges(m), max_pairs=10)
+    assert check.passed is None and "skipped" in check.detail

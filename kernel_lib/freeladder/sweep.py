@@ -56,7 +56,7 @@ from .model import Model
 from .polynomial import exclusion_polynomial
 from .strings import OpString, make_string, unit_phase
 
-MAX_COORDINATES = 400
+MAX_COORDINATES = 600
 """Largest number of rational coordinates (states times field degree) in one step."""
 
 MAX_WORK = 40_000
