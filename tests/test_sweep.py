@@ -223,3 +223,11 @@ def test_errors_are_clear() -> None:
     wide = fl.ising_lattice(4, 4, field=1, bond=1)
     with pytest.raises(ValueError, match="frontier is too wide"):
         inversion_sweep(wide)
+
+
+def test_progress_is_reported_per_point() -> None:
+    seen: list[tuple[int, int]] = []
+    res = commutator_sweep(
+        fl.exclusion_chain(12, reach=2), progress=lambda a, b: seen.append((a, b))
+    )
+    assert seen == [(k, res.points) for k in range(1, res.points + 1)] and res.points == 6

@@ -38,7 +38,7 @@ Commun. Math. Phys. 388, 969 (2021), arXiv:2012.07857; P. Fendley, J. Phys. A 52
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, replace
 from itertools import combinations
 from typing import Any
@@ -383,6 +383,7 @@ def run(
     points: Sequence[Sequence[int]],
     scalar: dict[Monomial, Element] | None = None,
     max_work: int = MAX_WORK,
+    progress: Callable[[int, int], Any] | None = None,
 ) -> SweepResult:
     """Decide whether ``sum(products) + scalar * 1`` vanishes at every point.
 
@@ -401,6 +402,9 @@ def run(
         (:func:`field_of`).
     max_work : int
         Largest ``len(points) * M``.
+    progress : callable, optional
+        Called after every point as ``progress(points_done, points_total)`` (for a progress
+        bar; the run can be interrupted between points).
 
     Returns
     -------
@@ -427,6 +431,8 @@ def run(
     for done, point in enumerate(points, start=1):
         fwd = _forward(plan, mats, point, scalar)
         top = max(top, fwd.rank)
+        if progress is not None:
+            progress(done, len(points))
         if not fwd.vanishes:
             witness = _witness(plan, fwd, scalar, n_vars)
             verdict = False if witness.independent else None
@@ -538,7 +544,9 @@ def _orders(m: Model) -> int:
     return sum(1 for _ in charge_series(m)) - 1
 
 
-def commutator_sweep(m: Model, max_work: int = MAX_WORK) -> SweepResult:
+def commutator_sweep(
+    m: Model, max_work: int = MAX_WORK, progress: Callable[[int, int], Any] | None = None
+) -> SweepResult:
     """Decide ``[T(u), T(v)] = 0`` exactly, that is ``[Q^(r), Q^(s)] = 0`` for all r and s.
 
     The coefficient of every word is a polynomial of degree at most alpha (the highest order)
@@ -550,7 +558,7 @@ def commutator_sweep(m: Model, max_work: int = MAX_WORK) -> SweepResult:
     ----------
     m : Model
         Numeric couplings (exact or float).
-    max_work : int
+    max_work, progress
         See :func:`run`.
 
     Returns
@@ -571,7 +579,7 @@ def commutator_sweep(m: Model, max_work: int = MAX_WORK) -> SweepResult:
     alpha = _orders(m)
     products = [Product(1, (0, 1), (0, 0)), Product(-1, (1, 0), (0, 0))]
     points = list(combinations(range(1, alpha + 1), 2))
-    result = run(m, products, 2, points, max_work=max_work)
+    result = run(m, products, 2, points, max_work=max_work, progress=progress)
     w = result.witness
     if w is None:
         return result
@@ -582,12 +590,21 @@ def commutator_sweep(m: Model, max_work: int = MAX_WORK) -> SweepResult:
     return replace(result, witness=replace(w, coefficients=pairs))
 
 
-def inversion_sweep(m: Model, max_work: int = MAX_WORK) -> SweepResult:
+def inversion_sweep(
+    m: Model, max_work: int = MAX_WORK, progress: Callable[[int, int], Any] | None = None
+) -> SweepResult:
     """Decide ``T(u) T(omega u) ... T(omega^{N-1} u) = P(u^N) 1`` exactly, for every u.
 
     Both sides are polynomials of degree at most ``N alpha`` in u and agree at u = 0, so
     agreement at ``u = 1 .. N alpha`` proves the identity.  P is the library's
     :func:`~freeladder.exclusion_polynomial`, with its exact coefficients.
+
+    Parameters
+    ----------
+    m : Model
+        Numeric couplings (exact or float).
+    max_work, progress
+        See :func:`run`.
 
     Returns
     -------
@@ -618,4 +635,4 @@ def inversion_sweep(m: Model, max_work: int = MAX_WORK) -> SweepResult:
             scalar[(n * s,)] = value
     products = [Product(1, (0,) * n, tuple(range(n)))]
     points = [(u,) for u in range(1, n * _orders(m) + 1)]
-    return run(m, products, 1, points, scalar=scalar, max_work=max_work)
+    return run(m, products, 1, points, scalar=scalar, max_work=max_work, progress=progress)
