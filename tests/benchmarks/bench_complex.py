@@ -5,7 +5,7 @@ certified roots (python-flint ``acb_poly.roots`` on the exact Gaussian-rational 
 baselines measured in the same run: ``numpy.roots`` on the rounded coefficients, and
 ``mpmath.polyroots`` at 50 digits (at a smaller size, since it is far slower).
 
-Run: ``python tests/benchmarks/bench_complex.py``
+Run: ``bash tools/bench.sh tests/benchmarks/bench_complex.py``
 """
 
 from __future__ import annotations

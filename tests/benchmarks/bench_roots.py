@@ -1,6 +1,7 @@
 """Benchmark of freeladder.roots / freeladder.certify against baselines run in the same process.
 
-Run: python tests/benchmarks/bench_roots.py [--quick]
+Run: bash tools/bench.sh tests/benchmarks/bench_roots.py
+(or, quicker: .venv/bin/python tests/benchmarks/bench_roots.py --quick)
 Prints times and their ratios; the machines are noisy, so compare only within one run.
 """
 

@@ -7,7 +7,7 @@ matrices, summed term by term.  Both are timed in this run, the matrices are che
 the ratios of wall-clock and of CPU time are printed (CPU time is the steadier one on a
 shared machine).  Target: Model.to_sparse at least 10x faster.
 
-Run:  /work/venv/bin/python tests/benchmarks/bench_sparse_build.py
+Run:  bash tools/bench.sh tests/benchmarks/bench_sparse_build.py
 """
 
 from __future__ import annotations
