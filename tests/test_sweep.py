@@ -234,3 +234,10 @@ def test_progress_is_reported_per_point() -> None:
         fl.exclusion_chain(12, reach=2), progress=lambda a, b: seen.append((a, b))
     )
     assert seen == [(k, res.points) for k in range(1, res.points + 1)] and res.points == 6
+
+
+def test_results_print_briefly() -> None:
+    res = commutator_sweep(fl.parse_model("X0 + 2 Z0 Z1 + 3 Z0 Z2 + 5 Z0 Z3"))
+    text = repr(res)
+    assert text.startswith("SweepResult(vanishes=False") and "independent strings" in text
+    assert str(res.witness.string) in text

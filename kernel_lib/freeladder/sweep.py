@@ -98,6 +98,12 @@ class Witness:
     coefficients: dict[tuple[int, ...], complex]
     independent: bool
 
+    def __repr__(self) -> str:
+        shown = ", ".join(f"{k}: {c:.6g}" for k, c in sorted(self.coefficients.items())[:4])
+        more = " ..." if len(self.coefficients) > 4 else ""
+        kind = "independent" if self.independent else "dependent"
+        return f"Witness({self.string}, {{{shown}{more}}}, {kind} strings)"
+
 
 @dataclass(frozen=True)
 class SweepResult:
@@ -126,6 +132,11 @@ class SweepResult:
     rank: int
     order: tuple[int, ...]
     witness: Witness | None = None
+
+    def __repr__(self) -> str:
+        size = f"{self.points} points, {self.coordinates} coordinates, rank <= {self.rank}"
+        found = "" if self.witness is None else f", witness={self.witness!r}"
+        return f"SweepResult(vanishes={self.vanishes}, {size}{found})"
 
 
 def _field_for(m: Model) -> tuple[CyclotomicField, list[Element]]:
