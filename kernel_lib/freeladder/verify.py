@@ -503,31 +503,21 @@ def exact_diagonalization_check(m: Model) -> Check:
     ed = exact_spectrum(m)
     sp = free_spectrum(m)
     table = sp.levels(None)
+
+    def mismatch(detail: str) -> Check:
+        return Check(name, "exact diagonalization", 0.0, float("nan"), False, detail, "")
+
     free = np.asarray(table.energies)
     deg = table.multiplicity
     if deg is None:
         if ed.dimension % max(len(free), 1):
-            return Check(
-                name,
-                "exact diagonalization",
-                0.0,
-                float("nan"),
-                False,
-                f"{len(free)} free levels do not divide the dimension {ed.dimension}",
-                "",
-            )
+            return mismatch(f"{len(free)} free levels do not divide the dimension {ed.dimension}")
         deg = ed.dimension // len(free)
     free_all = np.repeat(free, deg)
     exact_all = np.asarray(ed.eigenvalues)
     if len(free_all) != len(exact_all):
-        return Check(
-            name,
-            "exact diagonalization",
-            0.0,
-            float("nan"),
-            False,
-            f"{len(free_all)} free eigenvalues (with multiplicity) vs {len(exact_all)} exact",
-            "",
+        return mismatch(
+            f"{len(free_all)} free eigenvalues (with multiplicity) vs {len(exact_all)} exact"
         )
     dev = _multiset_distance(free_all, exact_all)
     scale = max(1.0, float(np.max(np.abs(exact_all))))
