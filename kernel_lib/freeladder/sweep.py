@@ -245,14 +245,16 @@ class _Plan:
         d = self.field.d
         n_in, n_out = self.sizes[j], self.sizes[j + 1]
         rows, cols = self.coordinates(n_in), self.coordinates(n_out)
-        blocks: dict[tuple[int, Monomial], list[list[Any]]] = {}
+        blocks: dict[tuple[int, Monomial], dict[tuple[int, int], Any]] = {}
 
         def put(letter: int, mono: Monomial, r0: int, c0: int, weight: Element) -> None:
             mono = mono + (0,) * (n_vars - len(mono))
-            mat = blocks.setdefault((letter, mono), [[0] * cols for _ in range(rows)])
+            entries = blocks.setdefault((letter, mono), {})
             for a, coords in enumerate(self.field.matrix(weight)):
                 for b, val in enumerate(coords):
-                    mat[r0 + a][c0 + b] += val
+                    if val:
+                        key = (r0 + a, c0 + b)
+                        entries[key] = entries.get(key, 0) + val
 
         for p, prod in enumerate(self.products):
             for si, out, letter, chosen, phase in self.steps[j]:
@@ -263,10 +265,11 @@ class _Plan:
                 0, (), len(self.products) * n_in * d, len(self.products) * n_out * d, self.field.one
             )
         out_mats: dict[int, dict[Monomial, fmpq_mat]] = {}
-        for (letter, mono), mat in blocks.items():
-            out_mats.setdefault(letter, {})[mono] = fmpq_mat(
-                rows, cols, [_fmpq(x) for row in mat for x in row]
-            )
+        for (letter, mono), entries in blocks.items():
+            mat = fmpq_mat(rows, cols)
+            for (r, c), val in entries.items():
+                mat[r, c] = _fmpq(val)
+            out_mats.setdefault(letter, {})[mono] = mat
         return out_mats
 
     def initial(self, scalar_value: Element | None) -> fmpq_mat:
