@@ -563,13 +563,15 @@ def verify(
         "auto" compares with exact diagonalization when the dimension is at most
         :data:`ED_AUTO_DIMENSION`; True forces it (bounded by :func:`freeladder.exact_spectrum`).
     max_pairs : int
-        Work limit of the exact string-algebra products (see :func:`commutation_checks`).
+        Work limit of the pairwise string-algebra products (see :func:`charge_pairs_check`),
+        used where the sweep cannot decide.
 
     Returns
     -------
     Report
-        ``report.ok`` is True when at least one check ran and none failed.  For a model with a
-        claw (no theorem applies) the commutation check is expected to fail.
+        ``report.ok`` is True when at least one check ran and none failed; checks that could
+        not run are listed as "not run", with the reason, and do not count.  For a model with
+        a claw (no theorem applies) the commutation check is expected to fail.
 
     References
     ----------
