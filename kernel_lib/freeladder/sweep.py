@@ -139,12 +139,10 @@ class SweepResult:
         return f"SweepResult(vanishes={self.vanishes}, {size}{found})"
 
 
-def _field_for(m: Model) -> tuple[CyclotomicField, list[Element]]:
-    """The field holding omega (and i when a coupling is complex), and the couplings in it."""
+def field_of(m: Model) -> CyclotomicField:
+    """The exact field a sweep over ``m`` works in (omega, and i for complex couplings)."""
     real = all(_is_real(c) for c in m.couplings)
-    order = m.states if real else math.lcm(m.states, 4)
-    field = CyclotomicField(order)
-    return field, [field.from_number(c) for c in m.couplings]
+    return CyclotomicField(m.states if real else math.lcm(m.states, 4))
 
 
 def _is_real(c: Any) -> bool:
@@ -167,7 +165,8 @@ class _Plan:
             raise ValueError("every product needs the same number of factors")
         self.model = m
         self.copies = copies.pop()
-        self.field, self.couplings = _field_for(m)
+        self.field = field_of(m)
+        self.couplings = [self.field.from_number(c) for c in m.couplings]
         self.products = tuple(products)
         self.scalar = scalar
         self.omega = self.field.order // m.states
@@ -452,11 +451,6 @@ def run(
             verdict = False if witness.independent else None
             return SweepResult(verdict, done, width, top, order, witness)
     return SweepResult(True, len(points), width, top, order)
-
-
-def field_of(m: Model) -> CyclotomicField:
-    """The exact field a sweep over ``m`` works in (omega, and i for complex couplings)."""
-    return _field_for(m)[0]
 
 
 # -- witnesses ----------------------------------------------------------------------------------
