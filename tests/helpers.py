@@ -15,7 +15,7 @@ import freeladder as fl
 from freeladder.model import Coupling
 
 
-def dense_string(g: fl.OpString, sites: Sequence[int]) -> np.ndarray:
+def dense_string(g: fl.WeylString, sites: Sequence[int]) -> np.ndarray:
     """Dense matrix of a string: X|s> = |s+1>, Z|s> = omega^s |s>, site 0 most significant."""
     n = g.states
     shift = np.roll(np.eye(n), 1, axis=0)

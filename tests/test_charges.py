@@ -69,7 +69,7 @@ def test_counts_and_sets_match_brute_force_on_random_models() -> None:
             assert sorted(listed) == sorted(brute[st.order])
 
 
-def _dense(g: fl.OpString, sites: tuple) -> np.ndarray:
+def _dense(g: fl.WeylString, sites: tuple) -> np.ndarray:
     return g.to_sparse(sites).toarray()
 
 
@@ -157,7 +157,7 @@ def test_huge_order_is_counted_not_listed() -> None:
         assert len(t.indices) == 600 and len(set(t.indices)) == 600
         # Independent: consecutive chain terms excluded (reach 1).
         assert min(np.diff(t.indices)) >= 2
-        # The product string equals the OpString product of its factors.
+        # The product string equals the WeylString product of its factors.
         expected = m.strings[t.indices[0]]
         for j in t.indices[1:50]:
             expected = expected * m.strings[j]

@@ -32,7 +32,7 @@ from freeladder.verdict import KINDS, classify
 
 
 def undirected(m: Model) -> nx.Graph:
-    """The frustration graph by a plain double loop over OpString objects (reference)."""
+    """The frustration graph by a plain double loop over WeylString objects (reference)."""
     strings = [t.string for t in m.terms]
     g = nx.Graph()
     g.add_nodes_from(range(len(strings)))

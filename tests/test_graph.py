@@ -1,7 +1,7 @@
 """Frustration graph and exclusion-chain recognition.
 
 Reference checks: every edge and exponent is recomputed pair by pair with
-:meth:`OpString.commutation_exponent` (the symplectic form, common practice; D. Gottesman,
+:meth:`WeylString.commutation_exponent` (the symplectic form, common practice; D. Gottesman,
 arXiv:quant-ph/9802007), and chain answers are checked against the defining relations of the
 exclusion algebra (F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020),
 arXiv:2005.14622) directly, never against the recogniser's own intermediate results.
@@ -40,7 +40,7 @@ def random_local_model(n_terms: int, n_sites: int, states: int, width: int, seed
 
 
 def pairwise_exponents(m: Model) -> dict[tuple[int, int], int]:
-    """All non-zero exponents m_ab by a plain double loop over OpString objects."""
+    """All non-zero exponents m_ab by a plain double loop over WeylString objects."""
     strings = [t.string for t in m.terms]
     out = {}
     for a, ga in enumerate(strings):

@@ -1,4 +1,4 @@
-"""OpSum algebra against dense numpy matrices built independently here (common practice:
+"""StringSum algebra against dense numpy matrices built independently here (common practice:
 X|s> = |s+1 mod N>, Z|s> = omega^s |s>, Kronecker products with site 0 most significant)."""
 
 from __future__ import annotations
@@ -11,7 +11,7 @@ import sympy
 from helpers import dense_string
 
 import freeladder as fl
-from freeladder import OpSum, StringArray, make_string
+from freeladder import StringArray, StringSum, make_string
 
 
 def dense_sum(pairs: list, sites: list[int]) -> np.ndarray:
@@ -45,8 +45,8 @@ def test_algebra_matches_dense(states: int, kind: str) -> None:
     for _ in range(4):
         pa = random_pairs(rng, 6, states, kind, sites)
         pb = random_pairs(rng, 5, states, kind, sites)
-        a = OpSum.from_strings(pa, sites, states)
-        b = OpSum.from_strings(pb, sites, states)
+        a = StringSum.from_strings(pa, sites, states)
+        b = StringSum.from_strings(pb, sites, states)
         da, db = dense_sum(pa, sites), dense_sum(pb, sites)
         assert a.is_exact == (kind != "complex")
         np.testing.assert_allclose(a.to_sparse().toarray(), da, atol=1e-12)
@@ -69,9 +69,11 @@ def test_algebra_matches_dense(states: int, kind: str) -> None:
 
 def test_exact_cancellation_and_merging() -> None:
     x, y, z = fl.pauli("X"), fl.pauli("Y"), fl.pauli("Z")
-    ops = OpSum.from_strings([(1, x), (Fraction(1, 2), y), (1, z)], [0], 2)
+    ops = StringSum.from_strings([(1, x), (Fraction(1, 2), y), (1, z)], [0], 2)
     # [X, Y] = 2i Z exactly: coefficient (sympy) 2*I/2 ... check value and exactness
-    comm = OpSum.from_strings([(1, x)], [0], 2).commutator(OpSum.from_strings([(1, y)], [0], 2))
+    comm = StringSum.from_strings([(1, x)], [0], 2).commutator(
+        StringSum.from_strings([(1, y)], [0], 2)
+    )
     assert comm.is_exact and len(comm) == 1
     ((c, g),) = comm.terms
     assert g == z and sympy.simplify(c - 2 * sympy.I) == 0
@@ -79,7 +81,7 @@ def test_exact_cancellation_and_merging() -> None:
     sq = ops @ ops
     assert len(sq) == 1 and sq.coefficients[0] == Fraction(9, 4)
     # repeated strings merge, opposite ones cancel to the empty sum
-    same = OpSum.from_strings([(1, x), (Fraction(1, 3), x), (Fraction(-4, 3), x)], [0], 2)
+    same = StringSum.from_strings([(1, x), (Fraction(1, 3), x), (Fraction(-4, 3), x)], [0], 2)
     assert same.is_zero() and len(same) == 0
 
 
@@ -87,13 +89,13 @@ def test_clock_phases_exact() -> None:
     # N = 3: Z X = omega X Z, so Z X - omega X Z = 0 exactly in the cyclotomic field
     zx = make_string(3, [(0, 0, 1), (0, 1, 0)])
     xz = make_string(3, [(0, 1, 0), (0, 0, 1)])
-    a = OpSum.from_strings([(1, zx)], [0], 3)
-    b = OpSum.from_strings([(1, xz)], [0], 3)
-    omega = OpSum.from_strings([(1, make_string(3, [], 2))], [0], 3)  # w^2 = omega
+    a = StringSum.from_strings([(1, zx)], [0], 3)
+    b = StringSum.from_strings([(1, xz)], [0], 3)
+    omega = StringSum.from_strings([(1, make_string(3, [], 2))], [0], 3)  # w^2 = omega
     assert (a - omega @ b).is_zero()
     assert not (a - b).is_zero()
     # X^3 = 1 exactly
-    xs = OpSum.from_strings([(1, make_string(3, [(0, 1, 0)]))], [0], 3)
+    xs = StringSum.from_strings([(1, make_string(3, [(0, 1, 0)]))], [0], 3)
     cube = xs @ xs @ xs
     assert len(cube) == 1 and cube.coefficients[0] == 1
 
@@ -101,7 +103,7 @@ def test_clock_phases_exact() -> None:
 def test_float_tolerance_is_relative() -> None:
     rng = np.random.default_rng(3)
     m = fl.exclusion_chain(6, reach=2, couplings=rng.uniform(0.5, 1.5, 6) * 1e6)
-    h = OpSum.from_model(m)
+    h = StringSum.from_model(m)
     h2 = h @ h
     # H^2 H - H H^2 cancels only up to rounding; the test is relative to the scale
     resid = (h2 @ h) - (h @ h2)
@@ -112,7 +114,7 @@ def test_float_tolerance_is_relative() -> None:
 
 def test_symbolic_coefficients() -> None:
     m = fl.exclusion_chain(4, reach=1, couplings="symbols")
-    h = OpSum.from_model(m)
+    h = StringSum.from_model(m)
     assert h.is_symbolic
     assert h.commutator(h @ h).is_zero()
     sq = h @ h
@@ -128,14 +130,14 @@ def test_symbolic_coefficients() -> None:
 
 def test_from_model_with_constant_and_errors() -> None:
     m = fl.Model.from_terms([(2, fl.pauli("ZZ")), (Fraction(1, 2), fl.pauli("XI"))], constant=3)
-    h = OpSum.from_model(m)
+    h = StringSum.from_model(m)
     np.testing.assert_allclose(h.to_sparse().toarray(), m.to_sparse().toarray())
     assert "3" in str(h) and h._repr_latex_().startswith("$")
     with pytest.raises(ValueError, match="not finite"):
-        OpSum.from_strings([(float("nan"), fl.pauli("X"))], [0], 2)
+        StringSum.from_strings([(float("nan"), fl.pauli("X"))], [0], 2)
     with pytest.raises(TypeError):
-        OpSum.from_strings([("1", fl.pauli("X"))], [0], 2)
-    other = OpSum.from_strings([(1, fl.pauli("X", [5]))], [5], 2)
+        StringSum.from_strings([("1", fl.pauli("X"))], [0], 2)
+    other = StringSum.from_strings([(1, fl.pauli("X", [5]))], [5], 2)
     with pytest.raises(ValueError, match="site"):
         _ = h + other
 
@@ -143,8 +145,8 @@ def test_from_model_with_constant_and_errors() -> None:
 def test_big_integers_stay_exact() -> None:
     # coefficients beyond int64 switch to Python integers without loss
     big = 3**40
-    a = OpSum.from_strings([(big, fl.pauli("X")), (Fraction(1, big), fl.pauli("Z"))], [0], 2)
+    a = StringSum.from_strings([(big, fl.pauli("X")), (Fraction(1, big), fl.pauli("Z"))], [0], 2)
     sq = a @ a
     assert sq.coefficients == (big**2 + Fraction(1, big**2),)
     arr = StringArray.from_strings([fl.pauli("X")], [0])
-    assert (OpSum(arr, [big]) - OpSum(arr, [big])).is_zero()
+    assert (StringSum(arr, [big]) - StringSum(arr, [big])).is_zero()

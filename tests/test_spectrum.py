@@ -84,7 +84,7 @@ def _majorana_model(n_modes: int, edges: list[tuple[int, int]], seed: int) -> fl
     """
     n_qubits = (n_modes + 1) // 2
 
-    def gamma(a: int) -> fl.OpString:
+    def gamma(a: int) -> fl.WeylString:
         j = a // 2
         letters = "Z" * j + ("X" if a % 2 == 0 else "Y")
         return fl.pauli(letters, list(range(j + 1)))

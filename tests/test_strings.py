@@ -1,4 +1,4 @@
-"""Property tests of OpString / StringArray algebra against dense matrices built here.
+"""Property tests of WeylString / StringArray algebra against dense matrices built here.
 
 Reference (common practice): the one-site shift X|s> = |s+1 mod N> and clock
 Z|s> = omega^s |s>, omega = exp(2 pi i / N), so that Z X = omega X Z; strings are
@@ -15,7 +15,7 @@ import numpy as np
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from freeladder import OpString, StringArray, make_string
+from freeladder import StringArray, WeylString, make_string
 
 N_SITES = 3
 SETTINGS = settings(max_examples=40, deadline=None)
@@ -43,7 +43,7 @@ def embed(n: int, site: Any, op: np.ndarray, sites: list[Any]) -> np.ndarray:
     return out
 
 
-def dense(g: OpString, sites: list[Any]) -> np.ndarray:
+def dense(g: WeylString, sites: list[Any]) -> np.ndarray:
     """Matrix of a string from its exponents."""
     n = g.states
     out = np.exp(1j * np.pi * g.phase / n) * np.eye(n ** len(sites), dtype=complex)
@@ -68,14 +68,14 @@ factor_lists = st.lists(
 
 
 @st.composite
-def string_with_source(draw: Any, n: int) -> tuple[OpString, list, int]:
+def string_with_source(draw: Any, n: int) -> tuple[WeylString, list, int]:
     factors = draw(factor_lists)
     phase = draw(st.integers(-12, 12))
     return make_string(n, factors, phase), factors, phase
 
 
 @st.composite
-def pairs(draw: Any) -> tuple[int, OpString, OpString]:
+def pairs(draw: Any) -> tuple[int, WeylString, WeylString]:
     n = draw(st.integers(2, 5))
     g, _, _ = draw(string_with_source(n))
     h, _, _ = draw(string_with_source(n))
@@ -141,7 +141,7 @@ def test_order_phase_and_normalisation(arg: Any) -> None:
 
 
 @st.composite
-def arrays(draw: Any) -> tuple[int, list[OpString]]:
+def arrays(draw: Any) -> tuple[int, list[WeylString]]:
     n = draw(st.integers(2, 5))
     count = draw(st.integers(1, 6))
     return n, [draw(string_with_source(n))[0] for _ in range(count)]

@@ -213,7 +213,7 @@ def test_large_claw_model_fails_with_checkable_witness() -> None:
     # Check the lowest reported pair in the string algebra (H with Q(s) is cheap here).
     (r, s), coef = min(res.witness.coefficients.items())
     assert r == 1
-    comm = fl.OpSum.from_model(extra).commutator(fl.charge(extra, s))
+    comm = fl.StringSum.from_model(extra).commutator(fl.charge(extra, s))
     found = {str(g): complex(c) for c, g in comm.terms}
     assert abs(found[str(res.witness.string)] - coef) < 1e-9
 

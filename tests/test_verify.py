@@ -16,11 +16,11 @@ import numpy as np
 import pytest
 
 import freeladder as fl
-from freeladder import OpSum
+from freeladder import StringSum
 from freeladder.verify import Check, Report, charge_pairs_check, hamiltonian_check, inversion_check
 
 
-def enumerated_charges(m: fl.Model) -> list[OpSum]:
+def enumerated_charges(m: fl.Model) -> list[StringSum]:
     """Q^(s), s = 1..alpha, from an explicit enumeration of the independent sets (test-only)."""
     cm = m.strings.commutation_matrix()
     n = len(m)
@@ -30,7 +30,7 @@ def enumerated_charges(m: fl.Model) -> list[OpSum]:
     strings, values = m.strings, coeffs
     out = []
     while sets:
-        out.append(OpSum(strings, values))
+        out.append(StringSum(strings, values))
         left, right, new_sets, new_values = [], [], [], []
         for i, subset in enumerate(sets):
             for j in range(subset[-1] + 1, n):
@@ -63,7 +63,7 @@ def rational(n: int) -> list[Fraction]:
 )
 def test_exclusion_chains_pass(model: fl.Model) -> None:
     charges = enumerated_charges(model)
-    first = hamiltonian_check(OpSum.from_model(model), charges)
+    first = hamiltonian_check(StringSum.from_model(model), charges)
     second = charge_pairs_check(model, charges)
     assert first.passed and second.passed, second.detail
     exact = all(isinstance(c, (int, Fraction)) for c in model.couplings)
@@ -79,7 +79,7 @@ def test_claw_free_non_chain_commutes() -> None:
     m = fl.kitaev_honeycomb(2, 4, jx=1, jy=2, jz=Fraction(1, 3))
     assert fl.chain_structure(m) is None
     charges = enumerated_charges(m)
-    first = hamiltonian_check(OpSum.from_model(m), charges)
+    first = hamiltonian_check(StringSum.from_model(m), charges)
     second = charge_pairs_check(m, charges)
     assert first.passed and second.passed
     inv = inversion_check(m, charges)
@@ -91,7 +91,7 @@ def test_claw_free_non_chain_commutes() -> None:
 def test_claw_model_fails() -> None:
     m = fl.ising_lattice(2, 3, field=1, bond=1)
     charges = enumerated_charges(m)
-    h = OpSum.from_model(m)
+    h = StringSum.from_model(m)
     first, second = hamiltonian_check(h, charges), charge_pairs_check(m, charges)
     assert first.passed is False and second.passed is False
     assert "non-zero for s = [3" in first.detail
@@ -112,10 +112,10 @@ def test_small_charges_match_dense_commutators() -> None:
     hd = m.to_sparse().toarray()
     for q, qd in zip(charges, mats, strict=True):
         assert np.allclose(hd @ qd, qd @ hd)
-        assert OpSum.from_model(m).commutator(q).is_zero()
+        assert StringSum.from_model(m).commutator(q).is_zero()
     # a non-charge does not commute: the check can fail
-    bogus = charges[1] + OpSum.from_strings([(1, fl.pauli("Z", [0]))], m.sites, 2)
-    first = hamiltonian_check(OpSum.from_model(m), [charges[0], bogus])
+    bogus = charges[1] + StringSum.from_strings([(1, fl.pauli("Z", [0]))], m.sites, 2)
+    first = hamiltonian_check(StringSum.from_model(m), [charges[0], bogus])
     assert first.passed is False
 
 

@@ -27,7 +27,7 @@ from .graph import (
     frustration_graph,
 )
 from .model import Model, Term
-from .operators import OpSum
+from .operators import StringSum
 from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
 from .roots import (
     RealRoots,
@@ -37,7 +37,7 @@ from .roots import (
     chain_root_count,
 )
 from .spectrum import FreeSpectrum, Level, LevelTable, free_spectrum
-from .strings import OpString, StringArray, make_string, pauli
+from .strings import StringArray, WeylString, make_string, pauli
 from .sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
@@ -81,8 +81,8 @@ __all__ = [
     "exact_spectrum",
     "Model",
     "ModelSyntaxError",
-    "OpString",
-    "OpSum",
+    "WeylString",
+    "StringSum",
     "Check",
     "EdgeMode",
     "LadderOperators",

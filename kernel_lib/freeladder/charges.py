@@ -34,10 +34,10 @@ import sympy
 
 from .graph import chain_structure
 from .model import Model
-from .operators import OpSum
+from .operators import StringSum
 from .polynomial import _graph_sums, _Ring, exclusion_polynomial, independence_graph
 from .printing import format_terms, format_terms_latex
-from .strings import OpString, StringArray
+from .strings import StringArray, WeylString
 
 DEFAULT_LIMIT = 10**6
 """Largest number of products an order may have before listing it raises an error."""
@@ -52,7 +52,7 @@ class ChargeTerm(NamedTuple):
     """The independent set S (term indices, ascending)."""
     coupling: Any
     """``prod_{j in S} c_j`` (exact when the couplings are)."""
-    string: OpString
+    string: WeylString
     """``prod_{j in S} g_j`` with its exact phase."""
 
     def text(self) -> str:
@@ -248,7 +248,7 @@ def _exact_product(values: Any) -> Any:
     return out
 
 
-def charge(m: Model, s: int, limit: int = DEFAULT_LIMIT) -> OpSum:
+def charge(m: Model, s: int, limit: int = DEFAULT_LIMIT) -> StringSum:
     """The charge ``Q^(s) = sum_{|S| = s} prod_{j in S} c_j g_j`` as an exact operator sum.
 
     Parameters
@@ -261,7 +261,7 @@ def charge(m: Model, s: int, limit: int = DEFAULT_LIMIT) -> OpSum:
 
     Returns
     -------
-    OpSum
+    StringSum
         Exact for exact couplings, symbolic for symbolic ones; ``.to_sparse()`` gives the
         matrix for small systems.
 
@@ -282,14 +282,14 @@ def charge(m: Model, s: int, limit: int = DEFAULT_LIMIT) -> OpSum:
         raise ValueError(f"the order of a charge must be >= 0, got {s}")
     counts = _counts(m)
     if s >= len(counts):
-        return OpSum.zero(m.states, m.sites)
+        return StringSum.zero(m.states, m.sites)
     _check_limit(counts[s], limit, s)
     sets = list(independence_graph(m).iter_sets(s))
     strings, couplings = _products(m, sets, s)
-    return OpSum(strings, couplings)
+    return StringSum(strings, couplings)
 
 
-def transfer_matrix(m: Model, u: Any, limit: int = DEFAULT_LIMIT) -> OpSum:
+def transfer_matrix(m: Model, u: Any, limit: int = DEFAULT_LIMIT) -> StringSum:
     """The transfer matrix ``T(u) = sum_s (-u)^s Q^(s)`` as an exact operator sum.
 
     Parameters
@@ -302,7 +302,7 @@ def transfer_matrix(m: Model, u: Any, limit: int = DEFAULT_LIMIT) -> OpSum:
 
     Returns
     -------
-    OpSum
+    StringSum
         ``T(u) T(-u) = P(u^2)`` for N = 2 and ``prod_k T(omega^k u) = P(u^N)`` for chains.
 
     Raises
@@ -330,4 +330,4 @@ def transfer_matrix(m: Model, u: Any, limit: int = DEFAULT_LIMIT) -> OpSum:
         phases.append(strings.phase)
         coefs.extend(factor * c for c in couplings)
     arr = StringArray(sps.vstack(xs), sps.vstack(zs), np.concatenate(phases), m.states, m.sites)
-    return OpSum(arr, coefs)
+    return StringSum(arr, coefs)

@@ -34,7 +34,7 @@ from .clawfree import find_simplicial_clique
 from .graph import chain_structure, frustration_adjacency
 from .model import Model
 from .spectrum import free_spectrum
-from .strings import OpString, StringArray
+from .strings import StringArray, WeylString
 
 MAX_CANDIDATES = 1 << 13
 """Largest number of candidate strings tested at once by :func:`edge_mode`."""
@@ -51,7 +51,7 @@ class EdgeMode:
     ----------
     found : bool
         True when a string was found.
-    string : OpString or None
+    string : WeylString or None
         ``chi``, normalised (``chi^N = 1``).
     term : int or None
         The one term ``g_a`` that ``chi`` fails to commute with.
@@ -66,7 +66,7 @@ class EdgeMode:
     """
 
     found: bool
-    string: OpString | None
+    string: WeylString | None
     term: int | None
     clique: tuple[int, ...]
     exponent: int | None

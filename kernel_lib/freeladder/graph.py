@@ -105,7 +105,7 @@ def frustration_graph(m: Model) -> nx.Graph | nx.DiGraph:
     """The frustration graph of ``m`` as a networkx graph.
 
     One node per term, labelled by the term index, with attributes ``index``, ``string`` (the
-    :class:`~freeladder.OpString`) and ``coupling``.  For N = 2 an undirected :class:`nx.Graph`
+    :class:`~freeladder.WeylString`) and ``coupling``.  For N = 2 an undirected :class:`nx.Graph`
     with an edge between anticommuting terms.  For N > 2 a :class:`nx.DiGraph` with an edge
     ``a -> b`` carrying ``exponent=m`` (``g_a g_b = omega^m g_b g_a``) for every ordered pair that
     fails to commute, so both ``a -> b`` (m) and ``b -> a`` (N - m) are present.

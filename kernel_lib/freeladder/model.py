@@ -17,7 +17,7 @@ import numpy as np
 import sympy
 
 from .printing import format_terms, format_terms_latex
-from .strings import OpString, StringArray, unit_phase
+from .strings import StringArray, WeylString, unit_phase
 
 Coupling = Any
 """int, float, complex, Fraction or a sympy expression."""
@@ -27,7 +27,7 @@ class Term(NamedTuple):
     """One term ``coupling * string`` of a model."""
 
     coupling: Coupling
-    string: OpString
+    string: WeylString
 
 
 def is_symbolic(c: Coupling) -> bool:
@@ -120,7 +120,7 @@ class Model:
     @classmethod
     def from_terms(
         cls,
-        terms: Iterable[tuple[Coupling, OpString]],
+        terms: Iterable[tuple[Coupling, WeylString]],
         states: int | None = None,
         sites: Sequence[Any] | None = None,
         constant: Coupling = 0,
@@ -193,7 +193,7 @@ class Model:
 
     @property
     def terms(self) -> tuple[Term, ...]:
-        """The terms as ``(coupling, OpString)`` pairs."""
+        """The terms as ``(coupling, WeylString)`` pairs."""
         return tuple(Term(c, self.strings[j]) for j, c in enumerate(self.couplings))
 
     def term(self, j: int) -> Term:

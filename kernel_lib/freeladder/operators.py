@@ -1,6 +1,6 @@
 """Exact linear combinations of operator strings: ``sum_r coeff_r * string_r``.
 
-An :class:`OpSum` holds its strings as a :class:`~freeladder.strings.StringArray` whose phases
+A :class:`StringSum` holds its strings as a :class:`~freeladder.strings.StringArray` whose phases
 are all zero (pure products ``prod_j X_j^{a_j} Z_j^{b_j}``) and moves every phase into the
 coefficient.  Coefficients live in one of two rings:
 
@@ -12,7 +12,7 @@ coefficient.  Coefficients live in one of two rings:
 * **numeric** -- as soon as a float or complex number enters, coefficients are complex128.
 
 Equal strings are merged and zero coefficients dropped after every operation, so an exact
-``OpSum`` is zero exactly when it has no terms.
+``StringSum`` is zero exactly when it has no terms.
 
 References
 ----------
@@ -36,7 +36,7 @@ import sympy
 from .cyclotomic import power_table
 from .model import Model
 from .printing import format_terms, format_terms_latex
-from .strings import OpString, StringArray, unit_phase
+from .strings import StringArray, WeylString, unit_phase
 
 Scalar = Any
 """int, Fraction, float, complex or a sympy expression."""
@@ -340,7 +340,7 @@ def is_symbolic_value(v: Any) -> bool:
 
 
 def is_exact_scalar(v: Any) -> bool:
-    """True for int, Fraction and sympy values (which :class:`OpSum` keeps exact)."""
+    """True for int, Fraction and sympy values (which :class:`StringSum` keeps exact)."""
     return (isinstance(v, (int, Fraction, sympy.Basic)) and not isinstance(v, bool)) or (
         isinstance(v, np.integer)
     )
@@ -530,7 +530,7 @@ def _store(arr: StringArray) -> Any:
 
 
 # -- the operator sum ---------------------------------------------------------------------------
-class OpSum:
+class StringSum:
     """An immutable exact linear combination ``sum_r c_r g_r`` of operator strings.
 
     Parameters
@@ -559,7 +559,7 @@ class OpSum:
     --------
     >>> from freeladder import pauli, StringArray
     >>> xz = StringArray.from_strings([pauli("X"), pauli("Z")], [0])
-    >>> a = OpSum(xz, [1, 1])
+    >>> a = StringSum(xz, [1, 1])
     >>> print(a @ a)          # (X + Z)^2 = 2
     2
     >>> a.commutator(a).is_zero()
@@ -597,10 +597,10 @@ class OpSum:
         object.__setattr__(self, "_scale", scale)
 
     def __setattr__(self, name: str, value: Any) -> None:
-        raise AttributeError("OpSum is immutable")
+        raise AttributeError("StringSum is immutable")
 
     @classmethod
-    def _raw(cls, store: Any, coef: Coef, ring: Any, scale: float) -> OpSum:
+    def _raw(cls, store: Any, coef: Coef, ring: Any, scale: float) -> StringSum:
         """Canonicalise ring coefficients without re-checking them."""
         out = cls.__new__(cls)
         out._set(*_canonicalise(store, coef, ring), ring, scale)
@@ -608,7 +608,7 @@ class OpSum:
 
     # -- construction ----------------------------------------------------------------------------
     @classmethod
-    def from_model(cls, model: Model) -> OpSum:
+    def from_model(cls, model: Model) -> StringSum:
         """The Hamiltonian ``constant + sum_j c_j g_j`` of a model."""
         strings = model.strings
         coefs = list(model.couplings)
@@ -618,21 +618,21 @@ class OpSum:
         return cls(strings, coefs)
 
     @classmethod
-    def identity(cls, states: int, sites: Sequence[Any], coefficient: Scalar = 1) -> OpSum:
+    def identity(cls, states: int, sites: Sequence[Any], coefficient: Scalar = 1) -> StringSum:
         """``coefficient * 1`` on the given sites."""
         return cls(_identity_strings(states, sites), [coefficient])
 
     @classmethod
-    def zero(cls, states: int, sites: Sequence[Any]) -> OpSum:
+    def zero(cls, states: int, sites: Sequence[Any]) -> StringSum:
         """The empty sum on the given sites."""
         empty = sps.csr_array((0, len(tuple(sites))), dtype=np.int64)
         return cls(StringArray(empty, empty, np.zeros(0, np.int64), states, sites), [])
 
     @classmethod
     def from_strings(
-        cls, pairs: Iterable[tuple[Scalar, OpString]], sites: Sequence[Any], states: int
-    ) -> OpSum:
-        """From ``(coefficient, OpString)`` pairs on the given sites."""
+        cls, pairs: Iterable[tuple[Scalar, WeylString]], sites: Sequence[Any], states: int
+    ) -> StringSum:
+        """From ``(coefficient, WeylString)`` pairs on the given sites."""
         pairs = list(pairs)
         arr = StringArray.from_strings([g for _, g in pairs], sites, states)
         return cls(arr, [c for c, _ in pairs])
@@ -678,7 +678,7 @@ class OpSum:
         return len(self._store)
 
     @property
-    def terms(self) -> tuple[tuple[Scalar, OpString], ...]:
+    def terms(self) -> tuple[tuple[Scalar, WeylString], ...]:
         """``(coefficient, string)`` pairs, each string in normalised form (``g^N = 1``; Pauli
         strings are products of the letters X, Y, Z) and the coefficients exact when the sum is."""
         g_norm, _ = self.strings.normalized()
@@ -726,9 +726,9 @@ class OpSum:
         return bool(np.max(np.abs(self._coef[0][:, 0])) <= tol)
 
     # -- algebra ---------------------------------------------------------------------------------
-    def _common(self, other: OpSum) -> tuple[Any, Coef, Coef]:
-        if not isinstance(other, OpSum):
-            raise TypeError(f"cannot combine an OpSum with {type(other).__name__}")
+    def _common(self, other: StringSum) -> tuple[Any, Coef, Coef]:
+        if not isinstance(other, StringSum):
+            raise TypeError(f"cannot combine a StringSum with {type(other).__name__}")
         if self.states != other.states:
             raise ValueError(f"N = {self.states} and N = {other.states} sums cannot be combined")
         if self.sites != other.sites:
@@ -737,55 +737,55 @@ class OpSum:
             return self._ring, self._coef, other._coef
         return _numeric_ring(self.states), _as_numeric(self), _as_numeric(other)
 
-    def __add__(self, other: OpSum) -> OpSum:
+    def __add__(self, other: StringSum) -> StringSum:
         ring, a, b = self._common(other)
         store = self._store.concat(other._store)
         scale = 0.0 if ring.exact else _numeric_scale(self) + _numeric_scale(other)
-        return OpSum._raw(store, ring.add(a, b), ring, scale)
+        return StringSum._raw(store, ring.add(a, b), ring, scale)
 
-    def __neg__(self) -> OpSum:
+    def __neg__(self) -> StringSum:
         return self.scaled(-1)
 
-    def __sub__(self, other: OpSum) -> OpSum:
+    def __sub__(self, other: StringSum) -> StringSum:
         return self + (-other)
 
-    def scaled(self, s: Scalar) -> OpSum:
+    def scaled(self, s: Scalar) -> StringSum:
         """``s * self`` for a scalar ``s``."""
         s = _check_scalar(s, "scalar")
         if isinstance(s, np.integer):
             s = int(s)
         if self.is_exact and is_exact_scalar(s):
-            return OpSum._raw(self._store, self._ring.scale(self._coef, s), self._ring, 0.0)
+            return StringSum._raw(self._store, self._ring.scale(self._coef, s), self._ring, 0.0)
         ring = _numeric_ring(self.states)
         coef = ring.scale(_as_numeric(self), s)
-        return OpSum._raw(self._store, coef, ring, _numeric_scale(self) * abs(complex(s)))
+        return StringSum._raw(self._store, coef, ring, _numeric_scale(self) * abs(complex(s)))
 
-    def rotated(self, k: int) -> OpSum:
+    def rotated(self, k: int) -> StringSum:
         """``w^k * self`` exactly, ``w = exp(i pi / N)`` (so ``rotated(2)`` multiplies by omega)."""
         k = int(k)
         if self.is_exact:
             coef = self._ring.phase(self._coef, np.full(len(self), k, dtype=np.int64))
-            return OpSum._raw(self._store, coef, self._ring, 0.0)
+            return StringSum._raw(self._store, coef, self._ring, 0.0)
         ring = _numeric_ring(self.states)
         coef = ring.phase(self._coef, np.full(len(self), k, dtype=np.int64))
-        return OpSum._raw(self._store, coef, ring, self._scale)
+        return StringSum._raw(self._store, coef, ring, self._scale)
 
-    def __mul__(self, other: Any) -> OpSum:
-        if isinstance(other, OpSum):
+    def __mul__(self, other: Any) -> StringSum:
+        if isinstance(other, StringSum):
             return self @ other
         return self.scaled(other)
 
-    def __rmul__(self, other: Any) -> OpSum:
+    def __rmul__(self, other: Any) -> StringSum:
         return self.scaled(other)
 
-    def __matmul__(self, other: OpSum) -> OpSum:
+    def __matmul__(self, other: StringSum) -> StringSum:
         """Operator product over all pairs of terms, merged."""
         ring, a, b = self._common(other)
         left = np.repeat(np.arange(len(self)), len(other))
         right = np.tile(np.arange(len(other)), len(self))
         return _pair_products(self, other, a, b, left, right, ring)
 
-    def commutator(self, other: OpSum) -> OpSum:
+    def commutator(self, other: StringSum) -> StringSum:
         """``[self, other] = self other - other self``, from the non-commuting pairs only.
 
         A pair of strings with ``g_a g_b = omega^m g_b g_a`` contributes
@@ -795,10 +795,10 @@ class OpSum:
         left, right, m = self._store.noncommuting(other._store)
         return _pair_products(self, other, a, b, left, right, ring, m)
 
-    def subs(self, values: Any) -> OpSum:
+    def subs(self, values: Any) -> StringSum:
         """Substitute values for sympy symbols (a mapping, as in ``sympy.Expr.subs``)."""
         pairs = [(_subs(c, values), g) for c, g in self.terms]
-        return OpSum.from_strings(pairs, self.sites, self.states)
+        return StringSum.from_strings(pairs, self.sites, self.states)
 
     # -- matrices and printing -------------------------------------------------------------------
     def to_sparse(self) -> sps.csr_array:
@@ -816,7 +816,7 @@ class OpSum:
         if len(text) > 400:
             text = text[:400] + " ..."
         kind = "exact" if self.is_exact else "float"
-        return f"OpSum(N={self.states}, terms={len(self)}, {kind}: {text})"
+        return f"StringSum(N={self.states}, terms={len(self)}, {kind}: {text})"
 
     def _repr_latex_(self) -> str:
         return "$" + format_terms_latex(self.terms) + "$"
@@ -841,13 +841,13 @@ def _identity_strings(states: int, sites: Sequence[Any]) -> StringArray:
     return StringArray(empty, empty, np.zeros(1, np.int64), states, sites)
 
 
-def _as_numeric(s: OpSum) -> Coef:
+def _as_numeric(s: StringSum) -> Coef:
     if not s.is_exact:
         return s._coef
     return s.values().reshape(-1, 1), 1
 
 
-def _numeric_scale(s: OpSum) -> float:
+def _numeric_scale(s: StringSum) -> float:
     """The scale of ``s`` for float work (the 1-norm of its coefficients when it is exact)."""
     if not s.is_exact:
         return s._scale
@@ -880,8 +880,8 @@ def _canonicalise(store: Any, coef: Coef, ring: Any) -> tuple[Any, Coef]:
 
 
 def _pair_products(
-    opa: OpSum,
-    opb: OpSum,
+    opa: StringSum,
+    opb: StringSum,
     a: Coef,
     b: Coef,
     left: np.ndarray,
@@ -889,16 +889,16 @@ def _pair_products(
     ring: Any,
     m: np.ndarray | None = None,
     chunk: int = 1 << 19,
-) -> OpSum:
+) -> StringSum:
     """``sum_k a[left_k] b[right_k] g_left g_right`` (times ``1 - omega^{-m_k}`` if m is given)."""
-    out: OpSum | None = None
+    out: StringSum | None = None
     for lo in range(0, max(len(left), 1), chunk):
         li, ri = left[lo : lo + chunk], right[lo : lo + chunk]
         prod = opa._store.products(opb._store, li, ri)
         coef = ring.mul((a[0][li], a[1]), (b[0][ri], b[1]))
         if m is not None:
             coef = ring.sub(coef, ring.phase(coef, -2 * m[lo : lo + chunk]))
-        piece = OpSum._raw(prod, coef, ring, 0.0)
+        piece = StringSum._raw(prod, coef, ring, 0.0)
         out = piece if out is None else out + piece
     assert out is not None
     if not ring.exact:

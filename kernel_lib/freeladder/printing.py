@@ -22,7 +22,7 @@ from typing import Any
 
 import sympy
 
-from .strings import OpString
+from .strings import WeylString
 
 _ATOM, _POWER, _PRODUCT, _SUM = 3, 2, 1, 0
 
@@ -47,7 +47,7 @@ def is_plain_name(name: str) -> bool:
     return not (name[0].isupper() and len(name) > 1 and name[1].isdigit())
 
 
-def letters_and_factor(g: OpString) -> tuple[str, str, int]:
+def letters_and_factor(g: WeylString) -> tuple[str, str, int]:
     """The letters of ``g`` (text, LaTeX) and the phase exponent they do not carry themselves."""
     n = g.states
     text, latex = [], []
@@ -208,7 +208,7 @@ def _power_text(e: Any, states: int | None) -> tuple[str, int]:
     return f"{base_text}^({sympy.sstr(expo).replace(' ', '').replace('**', '^')})", _POWER
 
 
-def format_terms(terms: Sequence[tuple[Any, OpString]], constant: Any = 0) -> str:
+def format_terms(terms: Sequence[tuple[Any, WeylString]], constant: Any = 0) -> str:
     """The terms ``c_j g_j`` (and a constant) as one line of text syntax."""
     pieces: list[tuple[bool, str]] = []
     states = terms[0][1].states if terms else None
@@ -240,7 +240,7 @@ def _signed(c: Any, phase: int, letters: str, states: int | None) -> tuple[bool,
     return neg, f"{coef} {letters}".strip()
 
 
-def format_terms_latex(terms: Sequence[tuple[Any, OpString]], constant: Any = 0) -> str:
+def format_terms_latex(terms: Sequence[tuple[Any, WeylString]], constant: Any = 0) -> str:
     """The terms as a LaTeX expression (without surrounding dollars)."""
     pieces = []
     if constant != 0:

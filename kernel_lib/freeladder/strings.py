@@ -10,7 +10,7 @@ with the integer ``phase`` taken modulo 2N.  For N = 2, w = i, so the phases are
 
 Two representations are provided:
 
-* :class:`OpString` -- one immutable string keyed by site labels, for parsing, printing and
+* :class:`WeylString` -- one immutable string keyed by site labels, for parsing, printing and
   small searches;
 * :class:`StringArray` -- many strings on a common list of sites, stored as two sparse integer
   matrices (the X and Z exponents) and a phase vector, so that products and commutation tests
@@ -61,7 +61,7 @@ def canonical_site_phase(a: int, b: int, states: int) -> int:
 
 
 @dataclass(frozen=True)
-class OpString:
+class WeylString:
     """One operator string ``w^phase prod_j X_j^{a_j} Z_j^{b_j}`` keyed by site labels.
 
     Parameters
@@ -101,7 +101,7 @@ class OpString:
         return {s: (a, b) for s, a, b in self.factors}
 
     # -- algebra ---------------------------------------------------------------------------
-    def __mul__(self, other: OpString) -> OpString:
+    def __mul__(self, other: WeylString) -> WeylString:
         """Exact operator product ``self @ other`` (``*`` and ``@`` mean the same here)."""
         _check_same_states(self, other)
         n = self.states
@@ -118,7 +118,7 @@ class OpString:
 
     __matmul__ = __mul__
 
-    def commutation_exponent(self, other: OpString) -> int:
+    def commutation_exponent(self, other: WeylString) -> int:
         """The integer m (mod N) with ``self other = omega^m other self``."""
         _check_same_states(self, other)
         theirs = other.exponents()
@@ -129,11 +129,11 @@ class OpString:
                 m += b1 * a2 - b2 * a1
         return m % self.states
 
-    def commutes_with(self, other: OpString) -> bool:
+    def commutes_with(self, other: WeylString) -> bool:
         """True when the two strings commute."""
         return self.commutation_exponent(other) == 0
 
-    def adjoint(self) -> OpString:
+    def adjoint(self) -> WeylString:
         """Hermitian adjoint: ``(X^a Z^b)^dagger = Z^-b X^-a = omega^{ab} X^-a Z^-b``."""
         n = self.states
         phase = -self.phase
@@ -143,7 +143,7 @@ class OpString:
             out[s] = ((-a) % n, (-b) % n)
         return _from_dict(n, out, phase)
 
-    def __pow__(self, k: int) -> OpString:
+    def __pow__(self, k: int) -> WeylString:
         """Integer power; negative powers use the adjoint (strings are unitary)."""
         base = self if k >= 0 else self.adjoint()
         result = make_string(self.states, [])
@@ -165,18 +165,18 @@ class OpString:
             2 * self.states
         )
 
-    def normalized(self) -> tuple[OpString, int]:
+    def normalized(self) -> tuple[WeylString, int]:
         """Split ``self = w^e * g`` with ``g^N = 1`` in canonical form.
 
         Returns
         -------
-        g : OpString
+        g : WeylString
             The normalised string; for N = 2 it is exactly the product of its Pauli letters.
         e : int
             The leftover phase exponent (units of ``w``), to be moved into the coupling.
         """
         c = self.canonical_phase()
-        g = OpString(self.states, self.factors, c)
+        g = WeylString(self.states, self.factors, c)
         return g, (self.phase - c) % (2 * self.states)
 
     # -- matrices ----------------------------------------------------------------------------
@@ -220,17 +220,17 @@ def _label_text(site: Any) -> str:
     return str(site)
 
 
-def _check_same_states(a: OpString, b: OpString) -> None:
+def _check_same_states(a: WeylString, b: WeylString) -> None:
     if a.states != b.states:
         raise ValueError(f"cannot combine strings with N = {a.states} and N = {b.states}")
 
 
-def _from_dict(states: int, exps: dict[Any, tuple[int, int]], phase: int) -> OpString:
+def _from_dict(states: int, exps: dict[Any, tuple[int, int]], phase: int) -> WeylString:
     factors = tuple((s, a, b) for s, (a, b) in sorted(exps.items()) if (a, b) != (0, 0))
-    return OpString(states, factors, phase % (2 * states))
+    return WeylString(states, factors, phase % (2 * states))
 
 
-def make_string(states: int, factors: Iterable[tuple[Any, int, int]], phase: int = 0) -> OpString:
+def make_string(states: int, factors: Iterable[tuple[Any, int, int]], phase: int = 0) -> WeylString:
     """Build a string from one-site factors ``X_s^a Z_s^b`` given left to right.
 
     Repeated sites are multiplied exactly in the order given, so ``[(0, 0, 1), (0, 1, 0)]``
@@ -253,13 +253,13 @@ def make_string(states: int, factors: Iterable[tuple[Any, int, int]], phase: int
     if int(states) != states or states < 2:
         raise ValueError(f"the number of states per site must be an integer >= 2, got {states!r}")
     states = int(states)
-    result = OpString(states, (), phase % (2 * states))
+    result = WeylString(states, (), phase % (2 * states))
     for s, a, b in factors:
-        result = result * OpString(states, ((s, int(a) % states, int(b) % states),))
+        result = result * WeylString(states, ((s, int(a) % states, int(b) % states),))
     return _from_dict(states, result.exponents(), result.phase)
 
 
-def pauli(letters: str | Sequence[str], sites: Sequence[Any] | None = None) -> OpString:
+def pauli(letters: str | Sequence[str], sites: Sequence[Any] | None = None) -> WeylString:
     """A Pauli string from letters, e.g. ``pauli("XZZ")`` = X0 Z1 Z2 or ``pauli("XY", [3, 7])``.
 
     ``I`` letters are skipped.  The result is Hermitian and squares to one.
@@ -320,11 +320,11 @@ class StringArray:
     @classmethod
     def from_strings(
         cls,
-        strings: Sequence[OpString],
+        strings: Sequence[WeylString],
         sites: Sequence[Any] | None = None,
         states: int | None = None,
     ) -> StringArray:
-        """Pack :class:`OpString` objects; ``sites`` defaults to the sorted union of supports."""
+        """Pack :class:`WeylString` objects; ``sites`` defaults to the sorted union of supports."""
         if states is None:
             if not strings:
                 raise ValueError("states must be given for an empty list of strings")
@@ -354,7 +354,7 @@ class StringArray:
     def __len__(self) -> int:
         return int(self.x.shape[0])
 
-    def __getitem__(self, r: int) -> OpString:
+    def __getitem__(self, r: int) -> WeylString:
         r = int(r)
         if r < 0:
             r += len(self)
@@ -364,7 +364,7 @@ class StringArray:
             for j, v in zip(mat.indices[lo:hi], mat.data[lo:hi], strict=True):
                 exps.setdefault(self.sites[j], [0, 0])[slot] = int(v)
         factors = tuple((s, a, b) for s, (a, b) in sorted(exps.items()))
-        return OpString(self.states, factors, int(self.phase[r]))
+        return WeylString(self.states, factors, int(self.phase[r]))
 
     def __iter__(self) -> Any:
         return (self[r] for r in range(len(self)))
@@ -423,7 +423,7 @@ class StringArray:
 
     def normalized(self) -> tuple[StringArray, np.ndarray]:
         """Split each row as ``w^{e_r} g_r`` with ``g_r^N = 1`` in canonical form; see
-        :meth:`OpString.normalized`."""
+        :meth:`WeylString.normalized`."""
         n = self.states
         prod = self.x.multiply(self.z)
         canon = np.asarray(

@@ -54,7 +54,7 @@ from .cyclotomic import CyclotomicField, Element
 from .graph import chain_structure, commutation_exponents, frustration_adjacency
 from .model import Model
 from .polynomial import exclusion_polynomial
-from .strings import OpString, make_string, unit_phase
+from .strings import WeylString, make_string, unit_phase
 
 MAX_COORDINATES = 600
 """Largest number of rational coordinates (states times field degree) in one step."""
@@ -83,7 +83,7 @@ class Witness:
     ----------
     word : tuple of int
         The exponent of every term, in the model's term order.
-    string : OpString
+    string : WeylString
         The word as a normalised operator string (``g^N = 1``).
     coefficients : dict
         Key -> coefficient of :attr:`string` (rounded to complex); the keys are monomial
@@ -94,7 +94,7 @@ class Witness:
     """
 
     word: tuple[int, ...]
-    string: OpString
+    string: WeylString
     coefficients: dict[tuple[int, ...], complex]
     independent: bool
 
@@ -512,7 +512,7 @@ def _word_polynomial(
     return {k: v for k, v in total.items() if not field.is_zero(v)}
 
 
-def _word_string(plan: _Plan, letters: Sequence[int]) -> tuple[OpString, int]:
+def _word_string(plan: _Plan, letters: Sequence[int]) -> tuple[WeylString, int]:
     """The word ``prod_j g_{v_j}^{n_j}`` (sweep order), normalised, and its phase exponent."""
     m = plan.model
     out = make_string(m.states, [])

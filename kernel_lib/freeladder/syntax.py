@@ -54,7 +54,7 @@ import sympy
 
 from .model import Model
 from .printing import NOT_FINITE_NAMES
-from .strings import OpString, make_string
+from .strings import WeylString, make_string
 
 __all__ = ["ModelSyntaxError", "parse_model"]
 
@@ -325,7 +325,7 @@ class _Parser:
         return t.kind in ("number", "name", "(")
 
     # -- model and terms -----------------------------------------------------------------------
-    def parse(self) -> list[tuple[Any, OpString]]:
+    def parse(self) -> list[tuple[Any, WeylString]]:
         if self.tok.kind == "end":
             raise self.error("empty model: expected at least one term", 0)
         terms = []
@@ -353,7 +353,7 @@ class _Parser:
                 )
             raise self.error(f"unexpected {self._describe(t)} after a term", t.offset)
 
-    def _term(self, sign: int, sign_tok: _Token | None) -> tuple[Any, OpString]:
+    def _term(self, sign: int, sign_tok: _Token | None) -> tuple[Any, WeylString]:
         start = self.tok
         coef = _Coefficient(sympy.Integer(1), 0)
         has_coef = False

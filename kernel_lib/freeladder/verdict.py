@@ -42,7 +42,7 @@ from .graph import (
 from .linegraph import LineGraphRoot, line_graph_root
 from .model import Model
 from .printing import format_terms
-from .strings import OpString
+from .strings import WeylString
 
 KINDS = ("unsolved", "integrable", "hidden-free", "jordan-wigner")
 """The verdict kinds, weakest first."""
@@ -156,7 +156,7 @@ class Verdict:
         """All cycles of the root graph (as terms), over the line-graph components."""
         return tuple(c for comp in self.components for c in comp.cycles)
 
-    def cycle_operators(self) -> list[OpString]:
+    def cycle_operators(self) -> list[WeylString]:
         """The product of the terms around each root cycle, normalised (squares to one).
 
         Each commutes with every term of the model (Chapman and Flammia 2020).

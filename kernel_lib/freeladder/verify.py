@@ -3,7 +3,7 @@
 :func:`verify` runs, where they apply:
 
 * **commutation** -- ``[H, Q^(s)] = 0`` for every order s, exactly in the string algebra
-  (:class:`~freeladder.operators.OpSum`, no matrices), and ``[Q^(r), Q^(s)] = 0`` for every pair
+  (:class:`~freeladder.operators.StringSum`, no matrices), and ``[Q^(r), Q^(s)] = 0`` for every pair
   at once by an exact sweep over the terms (:mod:`freeladder.sweep`);
 * **inversion relation** -- ``T(u) T(-u) = P(u^2)`` (N = 2) and
   ``T(u) T(omega u) ... T(omega^{N-1} u) = P(u^N)`` (clock chains), for every u, by the same
@@ -39,7 +39,7 @@ from .charges import charge
 from .ed import exact_spectrum
 from .edge import ladder_operators
 from .model import Model
-from .operators import OpSum
+from .operators import StringSum
 from .polynomial import exclusion_polynomial
 from .spectrum import free_spectrum
 from .sweep import SweepResult, commutator_sweep, inversion_sweep
@@ -190,8 +190,8 @@ def _timed(fn: Any, *args: Any) -> Check:
     return Check(**{**check.__dict__, "seconds": time.perf_counter() - start})
 
 
-def _residual(op: OpSum) -> tuple[bool, float]:
-    """(is zero, largest leftover coefficient) with the tolerance rule of OpSum.is_zero."""
+def _residual(op: StringSum) -> tuple[bool, float]:
+    """(is zero, largest leftover coefficient) with the tolerance rule of StringSum.is_zero."""
     zero = op.is_zero(None if op.is_exact else FLOAT_RTOL)
     if len(op) == 0:
         return True, 0.0
@@ -200,7 +200,7 @@ def _residual(op: OpSum) -> tuple[bool, float]:
     return zero, op.max_abs()
 
 
-def _method(ops: Sequence[OpSum]) -> tuple[str, float]:
+def _method(ops: Sequence[StringSum]) -> tuple[str, float]:
     if all(o.is_exact for o in ops):
         return "exact string algebra (no matrices)", 0.0
     return (
@@ -210,14 +210,14 @@ def _method(ops: Sequence[OpSum]) -> tuple[str, float]:
 
 
 # -- commutation --------------------------------------------------------------------------------
-def hamiltonian_check(h: OpSum, charges: Sequence[OpSum]) -> Check:
+def hamiltonian_check(h: StringSum, charges: Sequence[StringSum]) -> Check:
     """``[H, Q^(s)] = 0`` for every s, pair by pair in the string algebra.
 
     Parameters
     ----------
-    h : OpSum
+    h : StringSum
         The Hamiltonian.
-    charges : sequence of OpSum
+    charges : sequence of StringSum
         ``Q^(1), Q^(2), ...``.
 
     Returns
@@ -245,7 +245,7 @@ _SWEEP = "exact sweep over the terms (word automaton, rational arithmetic; no ma
 
 
 def charge_pairs_check(
-    m: Model, charges: Sequence[OpSum] | None, max_pairs: int = MAX_PAIRS
+    m: Model, charges: Sequence[StringSum] | None, max_pairs: int = MAX_PAIRS
 ) -> Check:
     """``[Q^(r), Q^(s)] = 0`` for every pair of orders.
 
@@ -258,7 +258,7 @@ def charge_pairs_check(
     Parameters
     ----------
     m : Model
-    charges : sequence of OpSum or None
+    charges : sequence of StringSum or None
         ``Q^(1), Q^(2), ...`` for the pairwise route; None when they are too many to list.
     max_pairs : int
         Work limit of the pairwise route.
@@ -285,7 +285,7 @@ def _hamiltonian_from_pairs(pairs: Check, why: str) -> Check:
     return replace(pairs, name=name, detail=detail, seconds=0.0)
 
 
-def _pairwise_check(charges: Sequence[OpSum], max_pairs: int) -> Check:
+def _pairwise_check(charges: Sequence[StringSum], max_pairs: int) -> Check:
     method, tol = _method(charges)
     worst, done = 0.0, 0
     bad_pairs: list[tuple[int, int]] = []
@@ -366,13 +366,13 @@ def _sweep_check(name: str, res: SweepResult, keys: str, ref: str) -> Check:
 
 
 # -- inversion relation -------------------------------------------------------------------------
-def transfer_from_charges(charges: Sequence[OpSum], u: Any, rotation: int = 0) -> OpSum:
+def transfer_from_charges(charges: Sequence[StringSum], u: Any, rotation: int = 0) -> StringSum:
     """``T(omega^k u) = sum_s (-omega^k u)^s Q^(s)`` built exactly from given charges.
 
-    ``rotation`` is k; ``omega^{ks}`` is applied exactly with :meth:`OpSum.rotated`.
+    ``rotation`` is k; ``omega^{ks}`` is applied exactly with :meth:`StringSum.rotated`.
     """
     first = charges[0]
-    total = OpSum.identity(first.states, first.sites)
+    total = StringSum.identity(first.states, first.sites)
     for s, q in enumerate(charges, start=1):
         total = total + q.rotated(2 * rotation * s).scaled((-u) ** s)
     return total
@@ -382,7 +382,9 @@ def _inversion_name(n: int) -> str:
     return "T(u) T(-u) = P(u^2)" if n == 2 else "T(u) T(wu) ... T(w^(N-1) u) = P(u^N)"
 
 
-def inversion_check(m: Model, charges: Sequence[OpSum] | None, max_pairs: int = MAX_PAIRS) -> Check:
+def inversion_check(
+    m: Model, charges: Sequence[StringSum] | None, max_pairs: int = MAX_PAIRS
+) -> Check:
     """``prod_{k < N} T(omega^k u) = P(u^N) * 1`` for every u.
 
     Numeric couplings: decided exactly for all u by :func:`freeladder.sweep.inversion_sweep`.
@@ -411,7 +413,7 @@ def inversion_check(m: Model, charges: Sequence[OpSum] | None, max_pairs: int = 
             return Check(name, "string algebra", 0.0, float("nan"), None, detail, ref)
         prod = prod @ f
     p_val = exclusion_polynomial(m)(u**n)
-    target = OpSum.identity(n, m.sites, p_val)
+    target = StringSum.identity(n, m.sites, p_val)
     method, tol = _method([prod])
     zero, val = _residual(prod - target)
     detail = f"u = {u}; product has {len(prod)} strings; P(u^N) = {p_val} (sweep: {reason})"
@@ -595,7 +597,7 @@ def verify(
     checks: list[Check] = []
     notes: list[str] = []
     degree = exclusion_polynomial(m).degree
-    charges: list[OpSum] | None
+    charges: list[StringSum] | None
     try:
         charges = [charge(m, s) for s in range(1, degree + 1)]
     except ValueError as err:  # too many independent sets to list
@@ -603,7 +605,7 @@ def verify(
         pairs = _timed(charge_pairs_check, m, charges, max_pairs)
         checks.append(_hamiltonian_from_pairs(pairs, str(err)))
     else:
-        checks.append(_timed(hamiltonian_check, OpSum.from_model(m), charges))
+        checks.append(_timed(hamiltonian_check, StringSum.from_model(m), charges))
         pairs = _timed(charge_pairs_check, m, charges, max_pairs)
     checks.append(pairs)
     checks.append(_timed(inversion_check, m, charges, max_pairs))

@@ -4,7 +4,7 @@ Run with ``python tests/benchmarks/bench_classify.py``.  Every timing is printed
 baseline measured in the same run on the same model:
 
 * ``commutation_matrix`` -- the one sparse product everything starts from;
-* a pairwise Python loop over OpString objects (for the frustration graph);
+* a pairwise Python loop over WeylString objects (for the frustration graph);
 * ``networkx.inverse_line_graph`` (for line-graph recognition).
 """
 

@@ -18,30 +18,30 @@ from __future__ import annotations
 import time
 
 import freeladder as fl
-from freeladder import OpSum
+from freeladder import StringSum
 from freeladder.verify import _pairwise_check, hamiltonian_check
 
 
-def charges(m: fl.Model) -> list[OpSum]:
+def charges(m: fl.Model) -> list[StringSum]:
     alpha = fl.exclusion_polynomial(m).degree
     return [fl.charge(m, s) for s in range(1, alpha + 1)]
 
 
-def exact_check(m: fl.Model, qs: list[OpSum]) -> tuple[float, bool]:
+def exact_check(m: fl.Model, qs: list[StringSum]) -> tuple[float, bool]:
     t0 = time.perf_counter()
-    first = hamiltonian_check(OpSum.from_model(m), qs)
+    first = hamiltonian_check(StringSum.from_model(m), qs)
     second = fl.commutator_sweep(m)
     return time.perf_counter() - t0, bool(first.passed) and second.vanishes is True
 
 
-def pairwise_check(m: fl.Model, qs: list[OpSum]) -> tuple[float, bool]:
+def pairwise_check(m: fl.Model, qs: list[StringSum]) -> tuple[float, bool]:
     t0 = time.perf_counter()
-    first = hamiltonian_check(OpSum.from_model(m), qs)
+    first = hamiltonian_check(StringSum.from_model(m), qs)
     second = _pairwise_check(qs, max_pairs=10**12)
     return time.perf_counter() - t0, bool(first.passed) and second.passed is not False
 
 
-def sparse_check(m: fl.Model, qs: list[OpSum]) -> tuple[float, bool]:
+def sparse_check(m: fl.Model, qs: list[StringSum]) -> tuple[float, bool]:
     t0 = time.perf_counter()
     h = m.to_sparse()
     mats = [q.to_sparse() for q in qs]
@@ -96,7 +96,7 @@ def main() -> None:
         qs = charges(m) if size <= 30 else None
         tb = time.perf_counter() - t0
         t0 = time.perf_counter()
-        first = hamiltonian_check(OpSum.from_model(m), qs) if qs is not None else None
+        first = hamiltonian_check(StringSum.from_model(m), qs) if qs is not None else None
         th = time.perf_counter() - t0
         t0 = time.perf_counter()
         res = fl.commutator_sweep(m, max_work=10**6)
