@@ -34,6 +34,7 @@ from .graph import (
     frustration_adjacency,
     frustration_graph,
 )
+from .majorana import SectorSpectrum, SectorStructure, jordan_wigner_spectrum, sectors
 from .model import Model, Term
 from .operators import StringSum
 from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
@@ -53,6 +54,10 @@ from .verdict import ComponentVerdict, Verdict, classify
 from .verify import Check, Report, verify
 
 __all__ = [
+    "SectorSpectrum",
+    "SectorStructure",
+    "jordan_wigner_spectrum",
+    "sectors",
     "Analysis",
     "analyze",
     "charge_counts",
