@@ -201,3 +201,24 @@ def test_flux_free_honeycomb_torus_approaches_the_bulk_energy():
     # measured here: 2.0e-3 at 4 x 4 cells and 4.4e-5 at 8 x 8
     assert deviations[1] < deviations[0]
     assert deviations[1] < 5e-4
+
+
+@pytest.mark.parametrize(
+    "text",
+    [
+        "0.7 X0 + 1.3 Z0 Z1 + 0.4 X1 + 0.9 Z1 Z2 + 1.1 X2 + 0.6 Z2 Z3 + 0.8 X3",
+        "X0 + 0.6 Z0 + 1.2 Y0 X1 + 0.5 Z0 Z1",
+        "0.8 X0 X1 + 1.1 Y1 Y2 + 0.7 X2 X3 + 1.3 Y3 Y4 + 0.9 X4 X5",
+    ],
+)
+def test_tree_root_graphs_agree_with_the_polynomial_route(text):
+    # a line graph of a tree is claw-free and even-hole-free, so the exclusion polynomial
+    # gives the same quasi-energies (Chapman-Flammia 2020; Elman-Chapman-Flammia 2021)
+    m = fl.parse_model(text)
+    assert not fl.sectors(m).cycle_operators
+    jw = fl.jordan_wigner_spectrum(m)
+    poly = np.sort(np.abs(fl.free_spectrum(m).quasi_energies))
+    for index in range(len(jw.sectors)):
+        nonzero = np.sort(jw.quasi_energies(index))
+        np.testing.assert_allclose(nonzero[-len(poly) :], poly, atol=1e-10)
+        assert np.all(nonzero[: len(nonzero) - len(poly)] < 1e-10)
