@@ -34,6 +34,7 @@ from .graph import (
     frustration_adjacency,
     frustration_graph,
 )
+from .indifference import IndifferenceOrder, indifference_order
 from .majorana import SectorSpectrum, SectorStructure, jordan_wigner_spectrum, sectors
 from .model import Model, Term
 from .operators import StringSum
@@ -54,6 +55,8 @@ from .verdict import ComponentVerdict, Verdict, classify
 from .verify import Check, Report, verify
 
 __all__ = [
+    "IndifferenceOrder",
+    "indifference_order",
     "SectorSpectrum",
     "SectorStructure",
     "jordan_wigner_spectrum",
