@@ -54,7 +54,7 @@ def test_coefficient_kinds() -> None:
     m = parse_model("3 X0 + 0.25 X1 + 3/4 X2 + (1+2j) X3 + 2*g X4 - J_2 X5 + 2.5j X6")
     assert m.couplings == (3, 0.25, Fraction(3, 4), 1 + 2j, 2 * g, -j2, 2.5j)
     assert isinstance(m.couplings[0], int) and isinstance(m.couplings[2], Fraction)
-    m = parse_model("(g+h)^2/2 X0 + 2^-2 Z0 + (g - 1/2) Z1 + 1e-3 X1 * Z2")
+    m = parse_model("(g+h)^2/2 X0 + 2^-2 Z0 + (g - 1/2) Z1 + 1e-3 X1 Z2")
     h = sympy.Symbol("h")
     assert m.couplings[0] == sympy.expand((g + h) ** 2 / 2)
     assert m.couplings[1] == Fraction(1, 4)
@@ -223,7 +223,17 @@ ERRORS = [
     ("g^2^3 X0", 2, "repeated '^'", 4),
     ("g X0 $ Z1", 2, "unexpected character '$'", 6),
     ("2 * * X0", 2, "after '*'", 5),
-    ("X0 * 2", 2, "expected an operator after '*'", 6),
+    ("X0 * 2", 2, "'*' after an operator", 4),
+    ("0.5 X0*Z1", 2, "'*' after an operator", 7),
+    ("(0.5+0j)*X0*Z1", 2, "'*' before the operator X0", 9),
+    ("g*X0", 2, "'*' before the operator X0", 2),
+    ("X٣", 2, "ARABIC-INDIC DIGIT THREE", 2),
+    ("X²", 2, "SUPERSCRIPT TWO", 2),
+    ("0.5 X0²", 2, "digits must be ASCII", 7),
+    ("(((2^1000)^1000)^1000)^1000 X0", 2, "the power is too large", 11),
+    ("((g+h)^40)^40 X0", 2, "more than 1000 terms", 11),
+    ("(" * 200 + "1" + ")" * 200 + " X0", 2, "nested more than 64 deep", 65),
+    ("9" * 1001 + " X0", 2, "more than 1000 digits", 1),
     ("X5 + Z0", 2, "site 5 is not in the given site list", 1),
     ("X0 + Z(0,1)", 2, "mix integers and tuples", 6),
     ("X0 Z(0,1)", 2, "mix integers and tuples", 4),
@@ -256,6 +266,43 @@ def test_error_on_a_later_line() -> None:
     err = info.value
     assert (err.line, err.column) == (2, 9)
     assert str(err).endswith("  + 0.5 Q3 Z1\n        ^")
+
+
+def test_star_form_is_refused_and_shows_the_accepted_form() -> None:
+    # Issue 14: '*' joins coefficients only; the message shows the accepted form of a term.
+    for text in ["(0.5+0j)*X0*Z1", "0.5*X0 Z1", "0.5 X0*Z1", "X0 * Z1", "1j*Y0"]:
+        with pytest.raises(ModelSyntaxError, match="0.5 X0 Z1"):
+            parse_model(text)
+    assert parse_model("0.5 X0 Z1").couplings == (0.5,)
+    assert parse_model("2*g*w X0 Z0", states=3).couplings[0] != 0
+
+
+def test_underscore_names_are_said_to_be_couplings() -> None:
+    # Issue 13: X_0 reads as a coupling name; the message says so and shows X0 Z1.
+    with pytest.raises(ModelSyntaxError) as info:
+        parse_model("X_0 Z_1")
+    assert "'X_0' was read as a coupling name" in str(info.value)
+    assert "X0 Z1" in str(info.value)
+    with pytest.raises(ModelSyntaxError, match="'Z_1' was read as a coupling name"):
+        parse_model("X0 Z_1")
+
+
+def test_limits_are_fast() -> None:
+    # Issue 14: each of these used to recurse too deep or run for minutes.
+    import time
+
+    for text in [
+        "(" * 5000 + "1" + ")" * 5000 + " X0",
+        "-(" * 3000 + "1" + ")" * 3000 + " X0",
+        "(((2^1000)^1000)^1000)^1000 X0",
+        "((1+2j)^1000)^1000 X0",
+        "(a+b+c+d+e+f)^1000 X0",
+        "(a+b)^30*(c+d)^30*(e+f)^30 X0",
+    ]:
+        start = time.perf_counter()
+        with pytest.raises(ModelSyntaxError):
+            parse_model(text)
+        assert time.perf_counter() - start < 1.0, text
 
 
 def test_bad_states_and_types() -> None:

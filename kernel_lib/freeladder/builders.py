@@ -8,7 +8,8 @@ import numpy as np
 import scipy.sparse as sps
 import sympy
 
-from .model import Coupling, Model, check_coupling
+from .model import Coupling, Model
+from .scalars import check_scalar
 from .strings import StringArray, make_string, pauli
 
 
@@ -23,14 +24,14 @@ def _coupling_list(couplings: Any, count: int, what: str, symbol: str = "c") -> 
             f"{what}: use 'uniform', 'symbols', a number or a sequence, not {couplings!r}"
         )
     if np.ndim(couplings) == 0 and not isinstance(couplings, (list, tuple)):
-        return [check_coupling(couplings, what)] * count
+        return [check_scalar(couplings, what)] * count
     if isinstance(couplings, np.ndarray) and couplings.dtype.kind in "fc":
         if not np.all(np.isfinite(couplings)):
             bad = int(np.nonzero(~np.isfinite(couplings))[0][0])
             raise ValueError(f"{what}: coupling {bad} is {couplings[bad]!r}, not finite")
         values = couplings.tolist()
     else:
-        values = [check_coupling(c, f"{what}: coupling {j}") for j, c in enumerate(couplings)]
+        values = [check_scalar(c, f"{what}: coupling {j}") for j, c in enumerate(couplings)]
     if len(values) != count:
         raise ValueError(f"{what}: {len(values)} couplings given, {count} needed")
     return values
@@ -137,8 +138,8 @@ def ising_lattice(rows: int, cols: int, field: Coupling = 1.0, bond: Coupling = 
     ``H = -h sum X_{r,c} - J sum_<ij> Z_i Z_j``.  In 2D its frustration graph has claws, so no
     free-fermion theorem applies (a standard negative example).
     """
-    h = check_coupling(field, "field")
-    jb = check_coupling(bond, "bond")
+    h = check_scalar(field, "field")
+    jb = check_scalar(bond, "bond")
     terms = []
     for r in range(rows):
         for c in range(cols):
@@ -171,7 +172,7 @@ def kitaev_honeycomb(
     """
     if rows < 1 or cols < 2:
         raise ValueError("a honeycomb patch needs rows >= 1 and cols >= 2")
-    cx, cy, cz = (check_coupling(v, name) for v, name in ((jx, "jx"), (jy, "jy"), (jz, "jz")))
+    cx, cy, cz = (check_scalar(v, name) for v, name in ((jx, "jx"), (jy, "jy"), (jz, "jz")))
     terms = []
     for r in range(rows):
         for c in range(cols - 1):
