@@ -343,7 +343,7 @@ class ExclusionPolynomial:
         exponent : numpy.ndarray of int64
         """
         yarr = np.asarray(y)
-        if yarr.dtype == object or self.kind == "symbolic":
+        if yarr.dtype == object or yarr.dtype.kind in "USV" or self.kind == "symbolic":
             raise TypeError("evaluate_scaled needs numeric y and numeric couplings")
         complex_out = np.iscomplexobj(yarr) or self.kind == "gaussian"
         flat = yarr.astype(np.complex128 if complex_out else np.float64).ravel()
