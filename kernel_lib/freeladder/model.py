@@ -242,12 +242,11 @@ class Model:
 
         Raises
         ------
-        KeyError
-            For a name that is not one of the model's symbols.
         TypeError
             For a value that is not a number or a sympy expression.
         ValueError
-            For a value, or a resulting coupling, that is not finite.
+            For a name that is not one of the model's symbols, or a value (or a resulting
+            coupling) that is not finite.
 
         Examples
         --------

@@ -781,12 +781,11 @@ class StringSum:
 
         Raises
         ------
-        KeyError
-            For a name that is not one of the sum's symbols.
         TypeError
             For a value that is not a number or a sympy expression.
         ValueError
-            For a value, or a resulting coefficient, that is not finite.
+            For a name that is not one of the sum's symbols, or a value (or a resulting
+            coefficient) that is not finite.
         """
         terms = self.terms
         symbols: set[Any] = set()

@@ -304,7 +304,7 @@ def substitution_map(values: Mapping[Any, Any], symbols: Iterable[sympy.Symbol])
     TypeError
         For a non-mapping, a key that is neither a sympy symbol nor a name, or a value that is
         not a number or a sympy expression.
-    KeyError
+    ValueError
         For a name that is not among ``symbols``.
     """
     if not isinstance(values, Mapping):
@@ -317,7 +317,7 @@ def substitution_map(values: Mapping[Any, Any], symbols: Iterable[sympy.Symbol])
     for key, val in values.items():
         if isinstance(key, str):
             if key not in by_name:
-                raise KeyError(
+                raise ValueError(
                     f"there is no symbol named {key!r}; the symbols are {sorted(by_name)}"
                 )
             sym = by_name[key]

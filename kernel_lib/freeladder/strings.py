@@ -442,8 +442,8 @@ class StringArray:
             raise ValueError("x, z and phase must describe the same number of strings")
         if xc.shape[1] != len(sites):
             raise ValueError(f"{xc.shape[1]} exponent columns but {len(sites)} sites")
-        for arr in (xc.data, xc.indices, xc.indptr, zc.data, zc.indices, zc.indptr, ph):
-            arr.flags.writeable = False
+        xc, zc = _freeze(xc), _freeze(zc)
+        ph.flags.writeable = False
         for name, value in (("states", n), ("sites", sites), ("x", xc), ("z", zc), ("phase", ph)):
             object.__setattr__(self, name, value)
 
@@ -599,6 +599,38 @@ class StringArray:
         Returns a real matrix when every entry is real.
         """
         return _sum_to_sparse(self, np.asarray(coefficients, dtype=complex), sites)
+
+
+class _FrozenCSR(sps.csr_array):
+    """A CSR array that, once locked, refuses item assignment and new ``data``, ``indices``,
+    ``indptr`` or shape; its buffers are read-only.  Arrays scipy derives from it are new,
+    unlocked objects."""
+
+    _locked = False
+
+    def __setattr__(self, name: str, value: Any) -> None:
+        if self._locked and name in _LOCKED_FIELDS:
+            raise AttributeError(
+                f"the exponents of a StringArray are read-only (cannot set {name!r})"
+            )
+        super().__setattr__(name, value)
+
+    def __setitem__(self, key: Any, value: Any) -> None:
+        if self._locked:
+            raise TypeError("the exponents of a StringArray are read-only")
+        super().__setitem__(key, value)
+
+
+_LOCKED_FIELDS = frozenset({"data", "indices", "indptr", "shape", "_shape", "_locked"})
+
+
+def _freeze(mat: sps.csr_array) -> _FrozenCSR:
+    out = _FrozenCSR((mat.data, mat.indices, mat.indptr), shape=mat.shape, copy=False)
+    out.has_sorted_indices = True
+    for arr in (out.data, out.indices, out.indptr):
+        arr.flags.writeable = False
+    out._locked = True
+    return out
 
 
 def _clean(mat: Any, n: int) -> sps.csr_array:
