@@ -52,7 +52,10 @@ def _check_real(value: Any, name: str) -> float:
     """A finite real number (for ranges of random couplings)."""
     if isinstance(value, (bool, np.bool_)) or not isinstance(value, numbers.Real):
         raise TypeError(f"{name} must be a real number, got {value!r:.60}")
-    x = float(value)
+    try:
+        x = float(value)
+    except OverflowError:
+        raise ValueError(f"{name} must be finite, got a number beyond the float range") from None
     if not math.isfinite(x):
         raise ValueError(f"{name} must be finite, got {value!r}")
     return x

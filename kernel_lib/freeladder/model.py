@@ -47,7 +47,7 @@ def times_phase(c: Coupling, exponent: int, states: int) -> Coupling:
         return -c
     if isinstance(c, sympy.Basic):
         return sympy.nsimplify(c * sympy.exp(sympy.I * sympy.pi * k / states))
-    return complex(c) * unit_phase(k, states)
+    return as_complex(c, "coupling") * unit_phase(k, states)
 
 
 class Model:
@@ -130,13 +130,16 @@ class Model:
             if g.states != states:
                 raise ValueError(f"term {idx}: N = {g.states} but the model has N = {states}")
             g, e = g.normalized()
-            c = times_phase(c, e, states)
+            try:
+                c = times_phase(c, e, states)
+            except ValueError as err:
+                raise ValueError(f"term {idx}: {err}") from None
             if not g.factors:
-                const = const + c
+                const = _merge(const, c, idx)
                 continue
             key = g.factors
             if key in merged:
-                merged[key][0] = merged[key][0] + c
+                merged[key][0] = _merge(merged[key][0], c, idx)
             else:
                 merged[key] = [c, g]
                 order.append(key)
@@ -301,3 +304,15 @@ def _unpack_term(term: Any, idx: int) -> tuple[Coupling, WeylString]:
             f"got {type(g).__name__}"
         )
     return check_scalar(c, f"term {idx}"), g
+
+
+def _merge(a: Coupling, b: Coupling, idx: int) -> Coupling:
+    """``a + b`` for two couplings of one string; an overflow becomes a ValueError."""
+    try:
+        return a + b
+    except OverflowError:
+        raise ValueError(
+            f"term {idx}: its coupling and that of an earlier term with the same string cannot "
+            "be added (an exact integer too large for a float meets a float); give them as "
+            "exact numbers"
+        ) from None

@@ -37,6 +37,7 @@ from .model import Model
 from .printing import format_terms, format_terms_latex
 from .scalars import (
     Scalar,
+    as_complex,
     check_scalar,
     expand_exact,
     is_exact_scalar,
@@ -260,8 +261,8 @@ class _ExactRing:
 
 def _to_complex(v: Any, den: int) -> complex:
     if isinstance(v, sympy.Basic):
-        return complex(v) / den
-    return complex(Fraction(int(v), den))
+        return as_complex(v, "coefficient") / den
+    return as_complex(Fraction(int(v), den), "coefficient")
 
 
 class _NumericRing:
@@ -275,7 +276,8 @@ class _NumericRing:
         self._table = np.array([unit_phase(k, states) for k in range(2 * states)], dtype=complex)
 
     def lift(self, values: Sequence[Scalar]) -> Coef:
-        return np.array([complex(v) for v in values], dtype=complex).reshape(-1, 1), 1
+        out = [as_complex(v, f"coefficient {r}") for r, v in enumerate(values)]
+        return np.array(out, dtype=complex).reshape(-1, 1), 1
 
     def mul(self, a: Coef, b: Coef) -> Coef:
         return a[0] * b[0], 1
@@ -287,7 +289,7 @@ class _NumericRing:
         return a[0] - b[0], 1
 
     def scale(self, a: Coef, s: Scalar) -> Coef:
-        return a[0] * complex(s), 1
+        return a[0] * as_complex(s, "scalar"), 1
 
     def phase(self, a: Coef, k: np.ndarray) -> Coef:
         k = np.asarray(k, dtype=np.int64) % (2 * self.states)
@@ -735,8 +737,13 @@ class StringSum:
         if self.is_exact and is_exact_scalar(s):
             return StringSum._raw(self._store, self._ring.scale(self._coef, s), self._ring, 0.0)
         ring = _numeric_ring(self.states)
-        coef = ring.scale(_as_numeric(self), s)
-        return StringSum._raw(self._store, coef, ring, _numeric_scale(self) * abs(complex(s)))
+        with np.errstate(over="ignore", invalid="ignore"):
+            coef = ring.scale(_as_numeric(self), s)
+        if not np.all(np.isfinite(coef[0])):
+            raise ValueError(f"scaling by {s!r:.40} overflows the floating-point coefficients")
+        return StringSum._raw(
+            self._store, coef, ring, _numeric_scale(self) * abs(as_complex(s, "scalar"))
+        )
 
     def rotated(self, k: int) -> StringSum:
         """``w^k * self`` exactly, ``w = exp(i pi / N)`` (so ``rotated(2)`` multiplies by omega)."""
