@@ -328,3 +328,25 @@ def test_unreadable_symbol_names_are_quoted_not_misread(name: str) -> None:
     assert text == f"`{name}` X0"
     with pytest.raises(ModelSyntaxError, match="backticks"):
         parse_model(text)
+
+
+def test_one_number_format_for_display() -> None:
+    # Issue 14 / 13: float noise is not shown, complex numbers print as a+bi everywhere.
+    from freeladder.printing import format_number
+
+    assert format_number(0.1 + 0.06) == "0.16"  # 0.16000000000000003 in binary
+    assert format_number(1.5 - 2j) == "1.5-2i"
+    assert format_number(2.5j) == "2.5i" and format_number(-1j) == "-i"
+    assert format_number(complex(3, 0)) == "3"
+    assert format_number(Fraction(3, 4)) == "3/4" and format_number(10**30) == str(10**30)
+    assert format_number(np.float64(1e-20)) == "1e-20"
+    assert format_number(sympy.Rational(1, 3)) == "1/3"
+    assert format_number(sympy.sqrt(2)) == "1.41421356237"
+    # the digits shown agree with the value to the stated precision (common practice)
+    for x in (np.pi, -np.e * 1e-7, 6.02214076e23):
+        assert float(format_number(x)) == pytest.approx(x, rel=1e-11)
+    latex = parse_model("0.16000000000000003 X0 + (1-2j) Z0 Z1 - X1")._repr_latex_()
+    assert "0.16 X_{0}" in latex and r"\left(1-2i\right) Z_{0} Z_{1}" in latex
+    assert "0.16000000000000003" not in latex and latex.endswith("- X_{1}$")
+    # the text syntax keeps every digit, so that it reads back exactly
+    assert "0.16000000000000003" in str(parse_model("0.16000000000000003 X0"))

@@ -231,7 +231,7 @@ class Model:
                 f"with_couplings needs a sequence of {len(self)} couplings, "
                 f"got {type(couplings).__name__}"
             )
-        couplings = list(couplings)
+        couplings = couplings.tolist() if isinstance(couplings, np.ndarray) else list(couplings)
         if len(couplings) != len(self):
             raise ValueError(f"{len(couplings)} couplings given for a model of {len(self)} terms")
         const = self.constant if constant is None else constant

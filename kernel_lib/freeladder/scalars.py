@@ -19,6 +19,7 @@ Exact kinds, as the modules that compute exactly use them:
 from __future__ import annotations
 
 import cmath
+import math
 import numbers
 from collections.abc import Iterable, Mapping
 from decimal import Decimal
@@ -93,6 +94,9 @@ def check_scalar(value: Any, where: str, what: str = "coupling") -> Scalar:
     ...
     TypeError: term 0: coupling '2*g' is text; pass a number ...
     """
+    kind = type(value)
+    if kind is int or kind is Fraction or (kind is float and math.isfinite(value)):
+        return value  # the common cases, first
     if isinstance(value, (str, bytes)):
         raise TypeError(
             f"{where}: {what} {_describe(value)} is text; {_HOW} "
