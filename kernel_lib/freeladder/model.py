@@ -2,7 +2,11 @@
 
 ``H = constant + sum_j c_j g_j`` with every ``g_j`` normalised so that ``g_j^N = 1`` (any
 leftover phase of a string is moved into its coupling, exactly).  Couplings may be ``int``,
-``float``, ``complex``, :class:`fractions.Fraction` or sympy expressions.
+``float``, ``complex``, :class:`fractions.Fraction` (a finite ``Decimal`` becomes one), numpy
+scalars or sympy expressions; they are checked where they enter (:mod:`freeladder.scalars`),
+and text is never read as a value.  Exact integers may be arbitrarily large; the
+floating-point numerics (:meth:`Model.coupling_array`, matrices) refuse, by term, a value that
+does not fit a float.
 """
 
 from __future__ import annotations
@@ -66,7 +70,20 @@ class Model:
     -----
     Build models with :meth:`from_terms`, :func:`freeladder.parse_model` or a builder such as
     :func:`freeladder.exclusion_chain`; they normalise the strings and merge repeated strings.
-    The direct constructor trusts its input (used by builders that create large chains).
+    The direct constructor takes the strings as given (normalised, distinct: used by builders
+    that create large chains) and checks only the couplings (see
+    :func:`freeladder.scalars.check_scalar`).
+
+    A model is frozen: setting or deleting an attribute raises AttributeError, and its
+    :class:`~freeladder.strings.StringArray` is frozen too.
+
+    Raises
+    ------
+    TypeError
+        For strings that are not a StringArray, or a coupling that is not a number or a sympy
+        expression (text is never parsed).
+    ValueError
+        For a coupling that is not finite, or as many couplings as strings not given.
     """
 
     __slots__ = ("strings", "couplings", "constant", "__dict__")
@@ -255,7 +272,7 @@ class Model:
         --------
         >>> import freeladder as fl
         >>> print(fl.parse_model("g X0 + 2*g Z0 Z1").subs({"g": 0.5}))
-        0.5 X0 + 1.0 Z0 Z1
+        0.5 X0 + Z0 Z1
         """
         mapping = substitution_map(values, self.symbols)
 
