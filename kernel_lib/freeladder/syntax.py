@@ -78,6 +78,8 @@ _RESERVED = {
     "pi": "write the number itself",
 }
 _MAX_EXPONENT = 1000
+_SHOWN_WIDTH = 120
+"""Longest part of a line an error message shows (a window around the column)."""
 _MAX_DEPTH = 64
 """Deepest nesting of parentheses and signs inside one coefficient."""
 _MAX_DIGITS = 1000
@@ -119,7 +121,13 @@ class ModelSyntaxError(ValueError):
         end = len(text) if end < 0 else end
         column = offset - start + 1
         source = text[start:end]
-        caret = "".join("\t" if ch == "\t" else " " for ch in source[: column - 1]) + "^"
+        before = column - 1
+        if len(source) > _SHOWN_WIDTH:  # show a window of a long line around the column
+            lo = max(0, before - _SHOWN_WIDTH // 2)
+            hi = lo + _SHOWN_WIDTH
+            head, tail = ("..." if lo else ""), ("..." if hi < len(source) else "")
+            source, before = head + source[lo:hi] + tail, before - lo + len(head)
+        caret = "".join("\t" if ch == "\t" else " " for ch in source[:before]) + "^"
         self.text = text
         self.line = line
         self.column = column
