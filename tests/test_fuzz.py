@@ -119,6 +119,8 @@ WILD_VALUES: list[Any] = [
     sympy.oo,
     sympy.exp(1000),
     sympy.Integer(10) ** 400,
+    (sympy.Symbol("a") + sympy.Symbol("b") + 1) ** 500,
+    sympy.Pow(2, 10**6, evaluate=False),
     sympy.Matrix([1, 2]),
     sympy.Eq(sympy.Symbol("g"), 1),
     sympy.true,

@@ -559,7 +559,13 @@ class StringSum:
         else:
             ring = _numeric_ring(strings.states)
             coef = ring.lift(values)
-            scale = float(np.abs(coef[0]).sum())
+            with np.errstate(over="ignore"):
+                scale = float(np.abs(coef[0]).sum())
+            if not np.isfinite(scale):
+                raise ValueError(
+                    "the coefficients' absolute values add up beyond the float range; "
+                    "scale them down (or give them as exact numbers)"
+                )
             self._set(*_canonicalise(_store(strings), coef, ring), ring, scale)
 
     def _set(self, store: Any, coef: Coef, ring: Any, scale: float) -> None:

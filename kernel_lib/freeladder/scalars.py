@@ -30,12 +30,14 @@ import numpy as np
 import sympy
 
 __all__ = [
+    "MAX_EXPANDED_TERMS",
     "Scalar",
     "as_complex",
     "check_scalar",
     "exact_to_sympy",
     "exact_value",
     "expand_exact",
+    "expanded_terms_bound",
     "is_exact_scalar",
     "is_symbolic",
     "substitute",
@@ -47,6 +49,9 @@ __all__ = [
 
 Scalar = Any
 """int, Fraction, float, complex or a sympy expression."""
+
+MAX_EXPANDED_TERMS = 1000
+"""Largest number of terms a symbolic coupling may expand to (estimated before expanding)."""
 
 _NOT_FINITE = (sympy.nan, sympy.zoo, sympy.oo, -sympy.oo)
 _HOW = (
@@ -150,12 +155,49 @@ def _check_sympy(value: sympy.Basic, where: str, what: str) -> Scalar:
         )
     if value.has(*_NOT_FINITE):
         raise ValueError(f"{where}: {what} {value} is not finite")
+    if expanded_terms_bound(value, MAX_EXPANDED_TERMS) > MAX_EXPANDED_TERMS:
+        raise ValueError(
+            f"{where}: {what} {_describe(value)} would expand to more than "
+            f"{MAX_EXPANDED_TERMS} terms; pass a smaller expression"
+        )
     try:
         return to_python_number(value)
     except (OverflowError, ValueError, TypeError) as err:
         raise ValueError(
             f"{where}: {what} {_describe(value)} has no finite value ({err})"
         ) from None
+
+
+def expanded_terms_bound(expr: Any, cap: int) -> int:
+    """An upper estimate of the number of terms of ``sympy.expand(expr)``, at most ``cap + 1``.
+
+    Sums add, products multiply, an integer power ``(a_1 + ... + a_k)^n`` counts
+    ``binomial(n + k - 1, k - 1)`` (the number of its monomials); anything else counts one.
+    Cheap: the expression tree is walked once, nothing is expanded.
+
+    Examples
+    --------
+    >>> g, h = sympy.symbols("g h")
+    >>> expanded_terms_bound((g + h) ** 3 * (g + 1), 1000)
+    8
+    """
+    top = cap + 1
+    if isinstance(expr, sympy.Add):
+        return min(top, sum(expanded_terms_bound(a, cap) for a in expr.args))
+    if isinstance(expr, sympy.Mul):
+        out = 1
+        for a in expr.args:
+            out = min(top, out * expanded_terms_bound(a, cap))
+        return out
+    if isinstance(expr, sympy.Pow) and expr.exp.is_Integer:
+        k = expanded_terms_bound(expr.base, cap)
+        n = abs(int(expr.exp))
+        if k == 1:
+            return 1
+        if n >= top:
+            return top
+        return min(top, math.comb(n + k - 1, k - 1))
+    return 1
 
 
 def is_symbolic(value: Any) -> bool:

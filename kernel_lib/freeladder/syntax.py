@@ -56,7 +56,6 @@ that runs to the end of the line; newlines are ordinary white space.
 from __future__ import annotations
 
 import cmath
-import math
 import unicodedata
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -66,7 +65,7 @@ import sympy
 
 from .model import Model
 from .printing import NOT_FINITE_NAMES
-from .scalars import to_python_number
+from .scalars import MAX_EXPANDED_TERMS, expanded_terms_bound, to_python_number
 from .strings import WeylString, check_sites, check_states, make_string
 
 __all__ = ["ModelSyntaxError", "parse_model"]
@@ -86,8 +85,7 @@ _MAX_DIGITS = 1000
 """Longest number literal, in characters."""
 _MAX_BITS = 1 << 16
 """Largest exact number a power may produce, in bits (about 19 700 decimal digits)."""
-_MAX_TERMS = 1000
-"""Largest number of terms a coefficient may expand to (estimated before expanding)."""
+_MAX_TERMS = MAX_EXPANDED_TERMS
 _DIGITS = frozenset("0123456789")
 _ACCEPTED_FORM = "0.5 X0 Z1"
 
@@ -675,7 +673,7 @@ class _Parser:
 
     def _check_size(self, value: Any, offset: int) -> None:
         """Refuse a coefficient whose expansion would exceed ``_MAX_TERMS`` terms."""
-        if _term_count(value) > _MAX_TERMS:
+        if expanded_terms_bound(value, _MAX_TERMS) > _MAX_TERMS:
             raise self.error(
                 f"the coefficient would expand to more than {_MAX_TERMS} terms; "
                 "write a smaller power or product",
@@ -701,27 +699,6 @@ class _Parser:
             return to_python_number(value)
         except ValueError:
             raise self.error("the coefficient is not finite (overflow)", offset) from None
-
-
-def _term_count(e: Any) -> int:
-    """An upper estimate of the number of terms of ``sympy.expand(e)``, capped above."""
-    cap = _MAX_TERMS + 1
-    if isinstance(e, sympy.Add):
-        return min(cap, sum(_term_count(a) for a in e.args))
-    if isinstance(e, sympy.Mul):
-        out = 1
-        for a in e.args:
-            out = min(cap, out * _term_count(a))
-        return out
-    if isinstance(e, sympy.Pow) and e.exp.is_Integer:
-        k = _term_count(e.base)
-        n = abs(int(e.exp))
-        if k == 1:
-            return 1
-        if n >= cap:
-            return cap
-        return min(cap, math.comb(n + k - 1, k - 1))
-    return 1
 
 
 def _underscore_note(tokens: Sequence[_Token]) -> str:
