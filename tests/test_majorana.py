@@ -157,11 +157,11 @@ def test_errors_say_what_is_wrong():
 def honeycomb_torus(cells: int) -> tuple[fl.Model, list[fl.WeylString]]:
     """Kitaev's honeycomb on a cells x cells torus (unit couplings) and its hexagon strings."""
 
-    def a(x: int, y: int) -> tuple[str, int, int]:
-        return ("A", x % cells, y % cells)
+    def a(x: int, y: int) -> tuple[int, int, int]:
+        return (0, x % cells, y % cells)
 
-    def b(x: int, y: int) -> tuple[str, int, int]:
-        return ("B", x % cells, y % cells)
+    def b(x: int, y: int) -> tuple[int, int, int]:
+        return (1, x % cells, y % cells)
 
     terms = []
     for x in range(cells):

@@ -419,7 +419,9 @@ class StringArray:
     and ``indptr``).
     """
 
-    __slots__ = ("states", "sites", "x", "z", "phase")
+    # __weakref__: values derived from the strings alone are kept in a weak-key store
+    # (freeladder.cache) for as long as the array lives
+    __slots__ = ("states", "sites", "x", "z", "phase", "__weakref__")
     states: int
     sites: tuple[Any, ...]
     x: sps.csr_array
