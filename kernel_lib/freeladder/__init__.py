@@ -18,6 +18,7 @@ from .builders import (
 from .certify import CertifiedRoots, ChainEnclosures, certified_roots, certify_chain_roots
 from .charges import ChargeStep, ChargeTerm, charge, charge_series, transfer_matrix
 from .ed import ExactSpectrum, exact_spectrum
+from .errors import NoTheoremError
 from .edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
 from .graph import (
     ChainStructure,
@@ -36,12 +37,13 @@ from .roots import (
     chain_real_roots,
     chain_root_count,
 )
-from .spectrum import FreeSpectrum, Level, LevelTable, free_spectrum
+from .relations import Relation, Relations, find_relations
+from .spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .strings import StringArray, WeylString, make_string, pauli
 from .sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
-from .verdict import ComponentVerdict, Verdict, classify
+from .verdict import ComponentVerdict, Guarantee, Verdict, classify, guarantee
 from .verify import Check, Report, verify
 
 __all__ = [
@@ -64,8 +66,15 @@ __all__ = [
     "exclusion_polynomial",
     "transfer_matrix",
     "ComponentVerdict",
+    "Guarantee",
+    "NoTheoremError",
+    "Relation",
+    "Relations",
+    "SpectrumProvenance",
     "Verdict",
     "classify",
+    "find_relations",
+    "guarantee",
     "chain_structure",
     "commutation_exponents",
     "frustration_adjacency",
