@@ -18,8 +18,8 @@ from .builders import (
 from .certify import CertifiedRoots, ChainEnclosures, certified_roots, certify_chain_roots
 from .charges import ChargeStep, ChargeTerm, charge, charge_series, transfer_matrix
 from .ed import ExactSpectrum, exact_spectrum
-from .errors import NoTheoremError
 from .edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
+from .errors import NoTheoremError
 from .graph import (
     ChainStructure,
     chain_structure,
@@ -30,6 +30,7 @@ from .graph import (
 from .model import Model, Term
 from .operators import StringSum
 from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
+from .relations import Relation, Relations, find_relations
 from .roots import (
     RealRoots,
     chain_count_below,
@@ -37,7 +38,6 @@ from .roots import (
     chain_real_roots,
     chain_root_count,
 )
-from .relations import Relation, Relations, find_relations
 from .spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .strings import StringArray, WeylString, make_string, pauli
 from .sweep import SweepResult, Witness, commutator_sweep, inversion_sweep

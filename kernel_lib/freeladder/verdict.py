@@ -506,14 +506,26 @@ def _graph_guarantee(m: Model, comp: ComponentVerdict) -> Guarantee:
             f"({ref.CHAPMAN_FLAMMIA_2020}).",
         )
     if comp.kind == "jordan-wigner":
+        even = _even_cycle_block(comp.majorana_pairs or {})
+        if not even:
+            return Guarantee(
+                True,
+                "claw-free and even-hole-free frustration graph",
+                ref.ELMAN_CHAPMAN_FLAMMIA_2021,
+                f"The root graph has {len(comp.cycles)} independent cycle(s), all odd and "
+                "edge-disjoint (every block is an edge or an odd cycle), so the line graph is "
+                "claw-free and even-hole-free: the single polynomial gives the spectrum "
+                f"({ref.ELMAN_CHAPMAN_FLAMMIA_2021}).",
+            )
         return _refusal(
             m,
             ref.CHAPMAN_FLAMMIA_2020,
-            f"The root graph has {len(comp.cycles)} independent cycle(s): the product of the "
-            "terms around each is conserved, and each sector of these symmetries has its own "
-            "quadratic form, which one polynomial does not capture "
-            f"({ref.CHAPMAN_FLAMMIA_2020}). The witness is the first cycle.",
-            comp.cycles[0],
+            f"The root graph has {len(comp.cycles)} independent cycle(s), and the witness terms "
+            "form a block of it that holds an even cycle (an even hole of the frustration "
+            "graph): the products of the terms around the cycles are conserved, and each "
+            "sector of these symmetries has its own quadratic form, which one polynomial does "
+            f"not capture ({ref.CHAPMAN_FLAMMIA_2020}; {ref.CHAPMAN_ELMAN_MANN_2023}).",
+            even,
         )
     if comp.kind == "hidden-free" and comp.even_hole_free:
         return Guarantee(
@@ -562,6 +574,29 @@ def _graph_guarantee(m: Model, comp: ComponentVerdict) -> Guarantee:
             f"known for other clock models ({ref.ALCARAZ_PIMENTA_2020})."
         )
     return _refusal(m, "", why, comp.witness)
+
+
+def _even_cycle_block(pairs: dict[int, tuple[int, int]]) -> tuple[int, ...]:
+    """Terms of a block of the root graph that holds an even cycle, or ``()`` when none does.
+
+    A graph has no even cycle exactly when each block (biconnected component) is an edge or
+    an odd cycle (common practice); an even cycle of the root graph is an even hole of its
+    line graph.
+    """
+    root = nx.Graph()
+    for term, (a, b) in pairs.items():
+        root.add_edge(a, b, term=term)
+    for block in nx.biconnected_component_edges(root):
+        nodes = {v for edge in block for v in edge}
+        if len(block) == 1 or (len(block) == len(nodes) and len(block) % 2 == 1):
+            continue
+        even = [c for c in nx.cycle_basis(root.edge_subgraph(block)) if len(c) % 2 == 0]
+        if even:
+            edges = list(zip(even[0], even[0][1:] + even[0][:1], strict=True))
+        else:  # odd basis cycles sharing a path: the block holds an even cycle
+            edges = list(block)
+        return tuple(sorted(int(root.edges[a, b]["term"]) for a, b in edges))
+    return ()
 
 
 def _refusal(m: Model, reference: str, reason: str, witness: Sequence[int]) -> Guarantee:
