@@ -4,7 +4,10 @@ Every level of a free model is ``E = constant + sum_k omega^{s_k} eta_k`` with t
 ``s_k in {0, ..., N-1}`` made independently, ``omega = exp(2 pi i / N)`` and ``eta_k^N = 1/y_k``
 for the roots ``y_k`` of the exclusion polynomial ``P``.  :func:`free_spectrum` finds the
 roots by the cheapest route that fits the model and records how, and how accurately, in
-``FreeSpectrum.provenance``.
+``FreeSpectrum.provenance`` (a :class:`SpectrumProvenance`).  It refuses with
+:class:`freeladder.errors.NoTheoremError` when no theorem guarantees that the one polynomial
+gives the spectrum (the :class:`freeladder.verdict.Guarantee` on the verdict); with
+``unproven=True`` it returns the numbers marked NOT GUARANTEED.
 
 References
 ----------

@@ -11,6 +11,13 @@ the weakest answer over the components, weakest first:
   even hole, Elman-Chapman-Flammia 2021), or for N > 2 the exclusion algebra of reach p;
 * ``"jordan-wigner"`` -- a line graph (Chapman-Flammia 2020): Majorana bilinears.
 
+Each component, and the whole verdict, carries a :class:`Guarantee`: whether a theorem proves
+that the single exclusion polynomial gives the spectrum (exclusion chains; line graphs of
+forests; claw-free, even-hole-free graphs, line graphs whose root cycles are odd and
+edge-disjoint included), and never when the strings obey a relation that the frustration
+graph does not show (:mod:`freeladder.relations`).  :func:`freeladder.free_spectrum` only
+reads it; :func:`guarantee` decides a single exclusion chain without the full classification.
+
 References
 ----------
 A. Chapman and S. T. Flammia, Quantum 4, 278 (2020), arXiv:2003.05465;
