@@ -224,7 +224,10 @@ def _candidates(rows: np.ndarray, cols: np.ndarray, n_rows: int) -> np.ndarray:
 def _dependencies(
     rows: np.ndarray, cols: np.ndarray, vals: np.ndarray, n_rows: int, p: int
 ) -> list[dict[int, int]]:
-    """Combinations ``{term: coefficient mod p}`` of rows that vanish mod p (a basis)."""
+    """Combinations ``{term: coefficient mod p}`` of rows that vanish mod p (a basis).
+
+    Pivots on the lowest column, dictionaries for odd p, integer bitsets for p = 2.
+    """
     alive = _candidates(rows, cols, n_rows)
     zero_rows = np.flatnonzero(
         np.bincount(rows, minlength=n_rows) == 0
@@ -243,6 +246,8 @@ def _dependencies(
         return out  # echelon form: independent
     bounds = np.r_[starts, rows.size]
     by_lead = np.argsort(leading, kind="stable")
+    if p == 2:
+        return out + _dependencies_gf2(rows, cols, bounds, by_lead)
     pivots: dict[int, tuple[dict[int, int], dict[int, int]]] = {}
     for i in by_lead.tolist():
         lo, hi = int(bounds[i]), int(bounds[i + 1])
@@ -263,6 +268,36 @@ def _dependencies(
             _axpy(combo, -f, pcombo, p)
         else:
             out.append(combo)
+    return out
+
+
+def _dependencies_gf2(
+    rows: np.ndarray, cols: np.ndarray, bounds: np.ndarray, by_lead: np.ndarray
+) -> list[dict[int, int]]:
+    """The same elimination over GF(2), rows and combinations held as Python integer bitsets."""
+    pivots: dict[int, tuple[int, int]] = {}
+    out = []
+    for i in by_lead.tolist():
+        lo, hi = int(bounds[i]), int(bounds[i + 1])
+        row = 0
+        for c in cols[lo:hi].tolist():
+            row |= 1 << c
+        combo = 1 << int(rows[lo])
+        while row:
+            col = (row & -row).bit_length() - 1
+            pivot = pivots.get(col)
+            if pivot is None:
+                pivots[col] = (row, combo)
+                break
+            row ^= pivot[0]
+            combo ^= pivot[1]
+        else:
+            found = {}
+            while combo:
+                low = combo & -combo
+                found[low.bit_length() - 1] = 1
+                combo ^= low
+            out.append(found)
     return out
 
 
