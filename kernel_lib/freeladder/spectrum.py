@@ -486,9 +486,8 @@ class FreeSpectrum:
         """The loud mark of an unguaranteed spectrum ('' when a theorem guarantees it)."""
         if self.provenance.guaranteed:
             return ""
-        return (
-            f"NOT GUARANTEED: these numbers need not be the spectrum ({self.provenance.guarantee})"
-        )
+        reason = self.provenance.guarantee.removeprefix("NOT GUARANTEED: ")
+        return f"NOT GUARANTEED (these numbers need not be the spectrum): {reason}"
 
     def __repr__(self) -> str:
         eta = ", ".join(_fmt(e) for e in self.quasi_energies[:6])
@@ -513,7 +512,7 @@ class FreeSpectrum:
             )
         )
         rows.append(("method", f"{prov.method}: {prov.path}"))
-        rows.append(("guarantee", prov.guarantee))
+        rows.append(("guarantee", prov.guarantee if prov.guaranteed else "NOT GUARANTEED (above)"))
         rows.append(("largest error bound", f"{prov.max_error_bound:.3g} ({prov.bounds})"))
         if prov.sum_rules:
             rows.append(
