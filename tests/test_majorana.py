@@ -222,3 +222,9 @@ def test_tree_root_graphs_agree_with_the_polynomial_route(text):
         nonzero = np.sort(jw.quasi_energies(index))
         np.testing.assert_allclose(nonzero[-len(poly) :], poly, atol=1e-10)
         assert np.all(nonzero[: len(nonzero) - len(poly)] < 1e-10)
+
+
+def test_free_spectrum_refusal_points_to_the_sector_route():
+    m = ladder(3, np.random.default_rng(2))
+    with pytest.raises(fl.NoTheoremError, match="jordan_wigner_spectrum"):
+        fl.free_spectrum(m)

@@ -40,7 +40,7 @@ from .jsonready import json_ready
 from .model import Model
 from .polynomial import exclusion_polynomial
 from .roots_complex import aberth_chain_roots, certified_complex_roots
-from .verdict import Guarantee, guarantee
+from .verdict import Guarantee, classify, guarantee
 
 __all__ = [
     "LEVEL_LIMIT",
@@ -781,7 +781,13 @@ def _refusal_message(m: Model, promise: Guarantee) -> str:
     text += promise.reason
     if promise.witness_text:
         text += f" Witness terms: {promise.witness_text}."
-    text += " Instead: fl.verify(m) probes the model numerically"
+    text += " Instead: "
+    if m.states == 2 and classify(m).kind == "jordan-wigner":
+        text += (
+            "the terms are Majorana bilinears, so fl.jordan_wigner_spectrum(m) solves the model "
+            "exactly, sector by sector of its conserved cycle and parity strings; "
+        )
+    text += "fl.verify(m) probes the model numerically"
     if m.dimension <= DENSE_LIMIT:
         text += f"; fl.exact_spectrum(m) gives the exact levels (dimension {m.dimension})"
     text += "; free_spectrum(m, unproven=True) returns the numbers, marked NOT GUARANTEED."
