@@ -137,3 +137,22 @@ def test_orientation_must_be_consistent():
     chain = fl.exclusion_chain(6, reach=3, states=4)
     found = indifference_order(chain)
     assert found is not None and found.reaches[:3] == (3, 3, 3)
+
+
+def test_verdict_and_spectrum_of_a_variable_range_clock_chain():
+    # the oriented indifference theorem (Mann-Elman-Wood-Chapman 2024) gives the verdict and a
+    # guaranteed spectrum; the levels are checked against numpy's dense eigenvalues
+    rng = np.random.default_rng(21)
+    couplings = rng.uniform(0.6, 1.4, 4)
+    m = variable_range_chain([1, 2, 1, 1], couplings, 3, rng)
+    assert fl.chain_structure(m) is None  # not a fixed-reach exclusion chain
+    verdict = fl.classify(m)
+    assert verdict.kind == "hidden-free"
+    assert verdict.guarantee.proven
+    sp = fl.free_spectrum(m)
+    table = sp.levels(None)
+    free = np.repeat(np.asarray(table.energies), table.multiplicity)
+    exact = np.linalg.eigvals(m.to_sparse().toarray())
+    cost = np.abs(free[:, None] - exact[None, :])
+    rows, cols = linear_sum_assignment(cost)
+    assert cost[rows, cols].max() < 1e-8

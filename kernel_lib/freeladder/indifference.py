@@ -46,7 +46,7 @@ from .graph import commutation_exponents
 from .jsonready import json_ready
 from .model import Model
 
-__all__ = ["IndifferenceOrder", "indifference_order", "umbrella_order"]
+__all__ = ["IndifferenceOrder", "indifference_order", "order_from_exponents", "umbrella_order"]
 
 
 @dataclass(frozen=True)
@@ -245,15 +245,23 @@ def indifference_order(m: Model) -> IndifferenceOrder | None:
 
 
 def _build(m: Model) -> IndifferenceOrder | None:
-    ex = commutation_exponents(m)
-    n = len(m)
-    if n == 0:
+    if len(m) == 0:
         return None
-    order = umbrella_order(ex)
+    return order_from_exponents(commutation_exponents(m), m.states)
+
+
+def order_from_exponents(ex: Any, states: int) -> IndifferenceOrder | None:
+    """:func:`indifference_order` from the sparse matrix of commutation exponents.
+
+    ``ex[a, b] = m`` (mod ``states``) with ``g_a g_b = omega^m g_b g_a``, stored for every pair
+    that fails to commute; terms are numbered by row.
+    """
+    adj = sps.csr_array(ex)
+    adj.sort_indices()
+    n = int(adj.shape[0])
+    order = umbrella_order(adj)
     if order is None:
         return None
-    states = m.states
-    adj = sps.csr_array(ex)
     n_comp, labels = csgraph.connected_components(adj.astype(bool), directed=False)
     final: list[int] = []
     exponent: int | None = None
@@ -285,9 +293,8 @@ def _build(m: Model) -> IndifferenceOrder | None:
     for k, v in enumerate(final):
         nb = pos[adj.indices[adj.indptr[v] : adj.indptr[v + 1]]]
         first.append(int(min(k, nb.min())) if len(nb) else k)
-    return IndifferenceOrder(
-        tuple(final), tuple(first), 1 if states == 2 else int(exponent or 1), states
-    )
+    exponent_out = 1 if states == 2 else int(exponent or 1)
+    return IndifferenceOrder(tuple(final), tuple(first), exponent_out, states)
 
 
 def _neighbours(adj: sps.csr_array, v: int) -> list[tuple[int, int]]:

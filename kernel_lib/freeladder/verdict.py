@@ -47,6 +47,7 @@ from .graph import (
     commutation_exponents,
     frustration_adjacency,
 )
+from .indifference import IndifferenceOrder, order_from_exponents
 from .jsonready import json_ready
 from .linegraph import LineGraphRoot, line_graph_root
 from .model import Model
@@ -182,6 +183,7 @@ class ComponentVerdict:
     even_hole: tuple[int, ...] | None = None
     chain: ChainStructure | None = None
     guarantee: Guarantee = _PENDING
+    indifference: IndifferenceOrder | None = None
 
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready fields (the chain as its order, reach and orientation)."""
@@ -503,6 +505,15 @@ def _graph_guarantee(m: Model, comp: ComponentVerdict) -> Guarantee:
     """The theorem that covers one component from its frustration graph alone, or why none."""
     if comp.chain is not None and comp.kind in ("jordan-wigner", "hidden-free"):
         return _chain_guarantee(comp.chain)
+    if comp.indifference is not None and comp.kind == "hidden-free":
+        return Guarantee(
+            True,
+            "oriented indifference frustration graph",
+            ref.MANN_ELMAN_WOOD_CHAPMAN_2024,
+            "The frustration graph is an oriented indifference graph: the roots of the single "
+            f"independence polynomial give the free-parafermion spectrum "
+            f"({ref.MANN_ELMAN_WOOD_CHAPMAN_2024}).",
+        )
     if comp.kind == "jordan-wigner" and not comp.cycles:
         return Guarantee(
             True,
@@ -784,6 +795,21 @@ def _clock_component(m: Model, terms: list[int], sub: sps.csr_array) -> Componen
     if found is not None:
         chain = ChainStructure(_frozen(idx[found.order]), found.reach, found.orientation, m.states)
         return _with_chain(ComponentVerdict(key, "hidden-free", ()), chain)
+    oriented = order_from_exponents(sub, m.states)
+    if oriented is not None:
+        order = IndifferenceOrder(
+            tuple(int(idx[j]) for j in oriented.order),
+            oriented.first_neighbour,
+            oriented.exponent,
+            m.states,
+        )
+        text = (
+            f"The frustration graph is an oriented indifference graph: in the order "
+            f"{_list(order.order, 12)} every term's neighbours form a contiguous block and every "
+            f"edge points forward with g_a g_b = omega^{order.exponent} g_b g_a, so the spectrum "
+            f"is that of free parafermions ({ref.MANN_ELMAN_WOOD_CHAPMAN_2024})."
+        )
+        return ComponentVerdict(key, "hidden-free", (text,), indifference=order)
     local, why = _clock_obstruction(sub, m.states)
     witness = tuple(int(idx[j]) for j in local)
     text = why.format(*(f"{j} ({_string_text(m, j)})" for j in witness))
