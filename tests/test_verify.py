@@ -16,7 +16,7 @@ import numpy as np
 import pytest
 
 import freeladder as fl
-from freeladder import StringSum
+from freeladder import StringSum, verification
 from freeladder.errors import CheckNotApplicable
 from freeladder.verification import (
     Check,
@@ -192,3 +192,115 @@ def test_skipped_pairs_do_not_pass() -> None:
     # an incomplete check can fail but never pass: it is "not run" (CheckNotApplicable)
     with pytest.raises(CheckNotApplicable, match="skipped"):
         charge_pairs_check(m, enumerated_charges(m), max_pairs=10)
+
+
+def test_a_crash_inside_a_check_is_a_failure_with_traceback(
+    monkeypatch: pytest.MonkeyPatch,
+) -> None:
+    # inject a broadcasting bug into a helper of the sum-rule check: a failure, not "not run"
+    def broken(v: complex) -> str:
+        return str(np.ones(3) + np.ones(4))
+
+    monkeypatch.setattr(verification, "_num", broken)
+    r = fl.verify(fl.exclusion_chain(7, reach=2, couplings=rational(7)))
+    check = r[verification.SUM_RULES]
+    assert check.passed is False and check.status == "FAILED"
+    assert "ValueError" in check.detail and "broadcast" in check.traceback
+    assert "Traceback" in check.traceback and "broken" in check.traceback
+    assert not r.ok and "FAILED" in str(r) and "broadcast" in str(r)
+    # every other check still ran and passed
+    assert all(c.passed for c in r.checks if c is not check)
+
+
+def test_only_check_not_applicable_means_not_run() -> None:
+    def cannot(m: fl.Model) -> Check:
+        raise CheckNotApplicable("needs N = 5")
+
+    def crashes(m: fl.Model) -> Check:
+        raise ZeroDivisionError("bug")
+
+    m = fl.ising_chain(3)
+    skipped = verification._run("my check", cannot, m)
+    assert skipped.passed is None and "needs N = 5" in skipped.detail and not skipped.traceback
+    crashed = verification._run("my check", crashes, m)
+    assert crashed.passed is False and "ZeroDivisionError" in crashed.traceback
+    assert skipped.name == crashed.name == "my check"
+
+
+def test_requested_exact_diagonalization_that_cannot_run_is_not_ok() -> None:
+    m = fl.exclusion_chain(14, reach=1)  # 15 sites: 32768 states, above the dense limit
+    r = fl.verify(m, exact_diagonalization=True)
+    ed = r[verification.EXACT]
+    assert ed.name == "spectrum = exact diagonalization"  # a real name, never a docstring
+    assert ed.passed is None and ed.required and "32768" in ed.detail
+    assert not r.ok and any("asked for" in p for p in r.problems)
+    assert all(c.passed for c in r.checks if c.passed is not None)
+    # the same model without the request: ok, the comparison is listed as not run
+    auto = fl.verify(m)
+    assert auto.ok and auto[verification.EXACT].passed is None
+
+
+def test_nothing_decisive_is_not_ok() -> None:
+    # the 3 x 5 Ising patch has claws (not free); only the sum rules (which test the roots
+    # against the polynomial, not freeness) can run at this size
+    r = fl.verify(fl.ising_lattice(3, 5))
+    assert not r.ok
+    assert any("decisive" in p for p in r.problems)
+    assert all(not (c.passed and c.decisive) for c in r.checks)
+
+
+def test_unproven_spectrum_is_reported_as_probe() -> None:
+    # a Jordan-Wigner ladder with two cycles (Chapman-Flammia 2020): one polynomial does not
+    # give the spectrum; the spectral checks run as probes on the unproven numbers and say so
+    m = fl.parse_model("X0 X1 + Y1 Y2 + X3 X4 + Y4 Y5 + Z0 Z3 + Z1 Z4 + Z2 Z5")
+    r = fl.verify(m)
+    assert "no theorem" in r.verdict and "probe" in r.verdict
+    ed = r[verification.EXACT]
+    assert "(probe)" in ed.method and ed.passed is False  # numpy: the levels differ
+    exact = np.linalg.eigvalsh(m.to_sparse().toarray())
+    free = fl.free_spectrum(m, **_unproven()).levels(None)
+    deg = free.multiplicity or len(exact) // len(free)
+    assert np.max(np.abs(np.sort(np.repeat(free.energies, deg)) - exact)) > 0.1
+    assert not r.ok
+
+
+def _unproven() -> dict[str, bool]:
+    """``unproven=True`` when free_spectrum knows the keyword (it refuses such models then)."""
+    import inspect
+
+    return (
+        {"unproven": True} if "unproven" in inspect.signature(fl.free_spectrum).parameters else {}
+    )
+
+
+def test_report_to_dict_is_json_and_frozen() -> None:
+    import dataclasses
+    import json
+
+    r = fl.verify(fl.exclusion_chain(14, reach=1), exact_diagonalization=True)
+    data = r.to_dict()
+    text = json.dumps(data, allow_nan=False)
+    assert '"not run"' in text and '"passed"' in text
+    assert data["ok"] is False and data["checks"][0]["name"] == "[H, Q(s)] = 0"
+    assert {"name", "method", "tolerance", "value", "status", "seconds", "reference"} <= set(
+        data["checks"][0]
+    )
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        r.checks[0].passed = False  # type: ignore[misc]
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        r.complete = False  # type: ignore[misc]
+    table = str(r).splitlines()
+    header = next(line for line in table if "status" in line)
+    for word in ("check", "method", "tolerance", "value", "time", "reference"):
+        assert word in header
+
+
+def test_keyboard_interrupt_returns_a_partial_report(monkeypatch: pytest.MonkeyPatch) -> None:
+    def interrupted(*args: object) -> Check:
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(verification, "inversion_check", interrupted)
+    r = fl.verify(fl.exclusion_chain(7, reach=2))
+    assert not r.complete and not r.ok
+    assert [c.name for c in r.checks] == ["[H, Q(s)] = 0", "[Q(r), Q(s)] = 0"]
+    assert all(c.passed for c in r.checks) and "interrupted" in str(r)

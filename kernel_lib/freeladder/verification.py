@@ -711,9 +711,8 @@ def ladder_check(m: Model, spectrum: tuple[FreeSpectrum, str] | None = None) -> 
     why = spectrum[1] if spectrum is not None else ""
     try:
         lad = ladder_operators(m)
-    except ValueError as err:
-        method, detail = _probe(why, "sparse matrices", f"no ladder operators: {err}")
-        return Check(LADDER, method, 0.0, float("nan"), False, detail, _FENDLEY)
+    except ValueError as err:  # no edge mode found: the relations cannot be formed
+        raise CheckNotApplicable(f"no ladder operators: {err}") from err
     h = sps.csr_array(m.to_sparse())
     hnorm = float(abs(h).sum(axis=0).max()) or 1.0
     worst, vanished = 0.0, 0
@@ -825,7 +824,9 @@ def exact_diagonalization_check(
         f"{match}"
     )
     method, detail = _probe(why, "exact diagonalization", detail)
-    return Check(EXACT, method, tol, match.distance, match.ok, detail, ref)
+    unmatched = match.unmatched_free or match.unmatched_exact
+    value = float("inf") if unmatched else match.distance
+    return Check(EXACT, method, tol, value, match.ok, detail, ref)
 
 
 # -- the whole report ---------------------------------------------------------------------------
