@@ -26,6 +26,7 @@ from .graph import (
     frustration_adjacency,
     frustration_graph,
 )
+from .matching import LevelMatch, match_levels
 from .model import Model, Term
 from .operators import StringSum
 from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
@@ -42,7 +43,7 @@ from .sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
 from .verdict import ComponentVerdict, Verdict, classify
-from .verify import Check, Report, verify
+from .verification import Check, Report, verify
 
 __all__ = [
     "ChainData",
@@ -90,6 +91,8 @@ __all__ = [
     "edge_mode",
     "ladder_operators",
     "verify",
+    "LevelMatch",
+    "match_levels",
     "StringArray",
     "SweepResult",
     "Witness",
