@@ -304,3 +304,35 @@ def test_keyboard_interrupt_returns_a_partial_report(monkeypatch: pytest.MonkeyP
     assert not r.complete and not r.ok
     assert [c.name for c in r.checks] == ["[H, Q(s)] = 0", "[Q(r), Q(s)] = 0"]
     assert all(c.passed for c in r.checks) and "interrupted" in str(r)
+
+
+def test_long_checks_drive_a_delayed_tqdm_bar(monkeypatch: pytest.MonkeyPatch) -> None:
+    made: list[dict[str, object]] = []
+
+    class FakeBar:
+        def __init__(self, **kwargs: object) -> None:
+            self.n = 0
+            self.closed = False
+            made.append({"kwargs": kwargs, "bar": self})
+
+        def update(self, step: int) -> None:
+            self.n += step
+
+        def close(self) -> None:
+            self.closed = True
+
+    def slow(m: fl.Model, progress: verification._Progress) -> Check:
+        for done in (1, 2, 5):
+            progress(done, 5)
+        return Check("slow", "exact", 0.0, 0.0, True, "fine")
+
+    monkeypatch.setattr(verification, "tqdm", FakeBar)
+    check = verification._shown("slow", slow, fl.ising_chain(2))
+    assert check.passed
+    assert len(made) == 1 and made[0]["kwargs"]["delay"] == 2.0  # shown only after 2 s
+    bar = made[0]["bar"]
+    assert bar.n == 5 and bar.closed  # type: ignore[attr-defined]
+    # the sweeps of a real run report their progress through the same bar
+    made.clear()
+    fl.verify(fl.exclusion_chain(12, reach=2))
+    assert any(m["kwargs"]["desc"] == "[Q(r), Q(s)] = 0" and m["bar"].n > 0 for m in made)  # type: ignore[attr-defined]

@@ -922,16 +922,13 @@ def _commutation(parts: _Parts, max_pairs: int, checks: list[Check]) -> None:
     sweep_first = not m.is_symbolic and parts.sweep_seconds() <= parts.pairwise_seconds()
     listable = sum(parts.counts) <= 10**6
     charges: list[StringSum] | None = None
+    h = StringSum.from_model(m)
     if sweep_first:
-        bar = _Progress(PAIRS)
-        try:
-            pairs = _run(PAIRS, _sweep_pairs, m, bar)
-        finally:
-            bar.close()
+        pairs = _shown(PAIRS, _sweep_pairs, m)
         if pairs.passed is None and listable:  # the sweep could not decide: pair by pair
             charges = parts.charges()
-            h_check = _run(H_CHARGES, hamiltonian_check, StringSum.from_model(m), charges)
-            pairs = _run(PAIRS, pairwise_check, charges, max_pairs, pairs.detail)
+            h_check = _shown(H_CHARGES, hamiltonian_check, h, charges)
+            pairs = _shown(PAIRS, pairwise_check, charges, max_pairs, pairs.detail)
         elif pairs.passed is None:
             h_check = replace(pairs, name=H_CHARGES)
         else:
@@ -941,12 +938,18 @@ def _commutation(parts: _Parts, max_pairs: int, checks: list[Check]) -> None:
         if charges is None:
             h_check = _run(H_CHARGES, _not_listed, parts)
         else:
-            h_check = _run(H_CHARGES, hamiltonian_check, StringSum.from_model(m), charges)
-        pairs = _run(PAIRS, charge_pairs_check, m, charges, max_pairs)
+            h_check = _shown(H_CHARGES, hamiltonian_check, h, charges)
+        pairs = _shown(PAIRS, charge_pairs_check, m, charges, max_pairs)
     checks.extend([h_check, pairs])
-    bar = _Progress(_inversion_name(m.states))
+    name = _inversion_name(m.states)
+    checks.append(_shown(name, inversion_check, m, charges, max_pairs))
+
+
+def _shown(name: str, fn: Callable[..., Check], *args: Any) -> Check:
+    """:func:`_run` with a progress bar (shown after 2 s) passed as the last argument."""
+    bar = _Progress(name)
     try:
-        checks.append(_run(_inversion_name(m.states), inversion_check, m, charges, max_pairs, bar))
+        return _run(name, fn, *args, bar)
     finally:
         bar.close()
 
