@@ -16,6 +16,7 @@ import freeladder as fl
 
 
 def main(sizes: list[int]) -> None:
+    fl.verify(fl.exclusion_chain(8, reach=2))  # warm-up: first imports and caches
     previous = None
     worst = 0.0
     print(f"{'terms':>5} {'seconds':>8} {'ratio':>6}  ok     route of [Q(r), Q(s)] / slowest check")
