@@ -39,7 +39,7 @@ from tqdm.auto import tqdm
 
 from .charges import charge, charge_series
 from .ed import DENSE_LIMIT, exact_spectrum
-from .edge import ladder_operators
+from .edge import components, ladder_operators
 from .errors import CheckNotApplicable, NoTheoremError, TooLargeError
 from .jsonready import json_ready
 from .matching import match_levels
@@ -709,8 +709,11 @@ def ladder_check(m: Model, spectrum: tuple[FreeSpectrum, str] | None = None) -> 
     if m.dimension > LADDER_DIMENSION:
         raise CheckNotApplicable(f"dimension {m.dimension} > {LADDER_DIMENSION}")
     why = spectrum[1] if spectrum is not None else ""
+    etas = None
+    if spectrum is not None and len(components(m)) == 1:
+        etas = spectrum[0].quasi_energies  # one component: the model's own spectrum
     try:
-        lad = ladder_operators(m)
+        lad = ladder_operators(m, etas)
     except ValueError as err:  # no edge mode found: the relations cannot be formed
         raise CheckNotApplicable(f"no ladder operators: {err}") from err
     h = sps.csr_array(m.to_sparse())
