@@ -336,3 +336,24 @@ def test_long_checks_drive_a_delayed_tqdm_bar(monkeypatch: pytest.MonkeyPatch) -
     made.clear()
     fl.verify(fl.exclusion_chain(12, reach=2))
     assert any(m["kwargs"]["desc"] == "[Q(r), Q(s)] = 0" and m["bar"].n > 0 for m in made)  # type: ignore[attr-defined]
+
+
+def test_verify_takes_its_parts_from_one_analysis(monkeypatch: pytest.MonkeyPatch) -> None:
+    import freeladder.analysis as analysis_module
+    import freeladder.edge as edge_module
+
+    calls: list[str] = []
+    real = analysis_module.free_spectrum
+
+    def counted(*args: object, **kwargs: object) -> fl.FreeSpectrum:
+        calls.append("free_spectrum")
+        return real(*args, **kwargs)  # type: ignore[arg-type]
+
+    monkeypatch.setattr(analysis_module, "free_spectrum", counted)
+    monkeypatch.setattr(edge_module, "free_spectrum", counted)
+    a = fl.analyze(fl.exclusion_chain(7, reach=2, couplings=rational(7)))
+    r = fl.verify(a)
+    assert r.ok and calls == ["free_spectrum"]  # once for sum rules, ladder and ED together
+    assert "exact" in repr(a) and "spectrum" in repr(a)  # kept in the analysis for later
+    # a second report from the same analysis computes no spectrum again
+    assert a.report().ok and calls == ["free_spectrum"]

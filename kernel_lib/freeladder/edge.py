@@ -366,7 +366,9 @@ def _etas(values: Any) -> np.ndarray:
     return eta.real if np.allclose(eta.imag, 0) else eta
 
 
-def ladder_operators(m: Model, quasi_energies: Sequence[float] | None = None) -> LadderOperators:
+def ladder_operators(
+    m: Model, quasi_energies: Sequence[complex] | np.ndarray | None = None
+) -> LadderOperators:
     """``Psi_{+-k} = T(-+u_k) chi T(+-u_k)`` with ``u_k = 1 / eta_k`` as sparse matrices.
 
     Each connected component c of the frustration graph is a free system of its own: its modes

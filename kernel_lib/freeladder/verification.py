@@ -37,8 +37,9 @@ import numpy as np
 import scipy.sparse as sps
 from tqdm.auto import tqdm
 
-from .charges import charge, charge_series
-from .ed import DENSE_LIMIT, exact_spectrum
+from .analysis import Analysis, analyze
+from .charges import charge
+from .ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
 from .edge import components, ladder_operators
 from .errors import CheckNotApplicable, NoTheoremError, TooLargeError
 from .jsonready import json_ready
@@ -47,9 +48,8 @@ from .model import Model
 from .operators import StringSum
 from .polynomial import exclusion_polynomial
 from .references import ALCARAZ_PIMENTA_2020, ELMAN_CHAPMAN_FLAMMIA_2021, FENDLEY_2019
-from .spectrum import FreeSpectrum, free_spectrum
+from .spectrum import FreeSpectrum
 from .sweep import SweepResult, commutator_sweep, inversion_sweep
-from .verdict import classify
 
 __all__ = [
     "ED_AUTO_DIMENSION",
@@ -337,29 +337,27 @@ class _Progress:
 
 
 class _Parts:
-    """What several checks share, each computed once: the spectrum, the charges, the counts."""
+    """What several checks share, from one :class:`~freeladder.analysis.Analysis` (each part
+    computed once, and kept there for later calls), plus the listed charges."""
 
-    def __init__(self, m: Model) -> None:
-        self.model = m
+    def __init__(self, analysis: Analysis) -> None:
+        self.analysis = analysis
+        self.model = analysis.model
         self._spectrum: tuple[FreeSpectrum, str] | None = None
         self._charges: list[StringSum] | None = None
-        self._counts: list[int] | None = None
 
     @property
     def counts(self) -> list[int]:
         """Number of independent sets of each order 0..alpha (counted, not listed)."""
-        if self._counts is None:
-            self._counts = [step.count for step in charge_series(self.model)]
-        return self._counts
+        return list(self.analysis.charge_counts)
 
     def spectrum(self) -> tuple[FreeSpectrum, str]:
         """The free spectrum and, when no theorem guarantees it, why (empty when one does)."""
         if self._spectrum is None:
-            m = self.model
             try:
-                sp, why = free_spectrum(m), ""
+                sp, why = self.analysis.spectrum(), ""
             except NoTheoremError as err:
-                sp, why = free_spectrum(m, unproven=True), str(err)  # type: ignore[call-arg,unused-ignore]
+                sp, why = self.analysis.spectrum(unproven=True), str(err)
             prov = sp.provenance
             guaranteed = (
                 prov.get("guaranteed")
@@ -749,7 +747,7 @@ def sum_rule_check(m: Model, spectrum: tuple[FreeSpectrum, str] | None = None) -
     """
     if m.is_symbolic:
         raise CheckNotApplicable("symbolic couplings")
-    sp, why = spectrum if spectrum is not None else _Parts(m).spectrum()
+    sp, why = spectrum if spectrum is not None else _Parts(analyze(m)).spectrum()
     poly = exclusion_polynomial(m)
     n = m.states
     sums = [complex(c) for c in poly.weight_sums]
@@ -781,7 +779,9 @@ def _num(v: complex) -> str:
 
 
 def exact_diagonalization_check(
-    m: Model, spectrum: tuple[FreeSpectrum, str] | None = None
+    m: Model,
+    spectrum: tuple[FreeSpectrum, str] | None = None,
+    exact: ExactSpectrum | None = None,
 ) -> Check:
     """Every eigenvalue, with multiplicity, against ``constant + sum_k omega^{s_k} eta_k``.
 
@@ -801,10 +801,10 @@ def exact_diagonalization_check(
             f"{ED_AUTO_DIMENSION}, the largest diagonalised densely"
         )
     try:
-        ed = exact_spectrum(m)
+        ed = exact if exact is not None else exact_spectrum(m)
     except TooLargeError as err:
         raise CheckNotApplicable(str(err)) from err
-    sp, why = spectrum if spectrum is not None else _Parts(m).spectrum()
+    sp, why = spectrum if spectrum is not None else _Parts(analyze(m)).spectrum()
     table = sp.levels(None)
     free = np.asarray(table.energies)
     deg = table.multiplicity
@@ -833,9 +833,9 @@ def exact_diagonalization_check(
 
 
 # -- the whole report ---------------------------------------------------------------------------
-def _verdict_text(m: Model, why: str | None) -> str:
+def _verdict_text(analysis: Analysis, why: str | None) -> str:
     """The verdict line of the report: the kind, and whether the spectrum is guaranteed."""
-    kind = classify(m).kind
+    kind = analysis.verdict.kind
     if why is None:
         return f"{kind} (no spectrum computed)"
     if why:
@@ -847,7 +847,7 @@ def _verdict_text(m: Model, why: str | None) -> str:
 
 
 def verify(
-    m: Model,
+    m: Model | Analysis,
     exact_diagonalization: bool | str = "auto",
     max_pairs: int = MAX_PAIRS,
 ) -> Report:
@@ -855,7 +855,10 @@ def verify(
 
     Parameters
     ----------
-    m : Model
+    m : Model or Analysis
+        With an :class:`~freeladder.analysis.Analysis` (:func:`freeladder.analyze`) the verdict,
+        the spectrum, the charge counts and the exact spectrum are taken from it, computed once
+        and kept there; a Model is analysed first.
     exact_diagonalization : "auto", True or False
         "auto" compares with exact diagonalization when the dimension is at most
         :data:`ED_AUTO_DIMENSION`; True asks for it (the report is not ok when it cannot run);
@@ -894,13 +897,15 @@ def verify(
     >>> verify(exclusion_chain(6, reach=2)).ok
     True
     """
-    if not isinstance(m, Model):
-        raise TypeError(f"verify needs a Model, got {type(m).__name__}")
+    if not isinstance(m, (Model, Analysis)):
+        raise TypeError(f"verify needs a Model or an Analysis, got {type(m).__name__}")
     if exact_diagonalization not in ("auto", True, False):
         raise ValueError(
             f"exact_diagonalization must be 'auto', True or False, not {exact_diagonalization!r}"
         )
-    parts = _Parts(m)
+    analysis = analyze(m)
+    m = analysis.model
+    parts = _Parts(analysis)
     checks: list[Check] = []
     notes: list[str] = []
     complete = True
@@ -916,7 +921,8 @@ def verify(
             "interrupted (KeyboardInterrupt): the checks after the last one listed did not run"
         )
     why = parts._spectrum[1] if parts._spectrum is not None else None
-    return Report(tuple(checks), _short(m), tuple(notes), _verdict_text(m, why), complete)
+    verdict = _verdict_text(analysis, why)
+    return Report(tuple(checks), _short(m), tuple(notes), verdict, complete)
 
 
 def _commutation(parts: _Parts, max_pairs: int, checks: list[Check]) -> None:
@@ -980,13 +986,7 @@ def _spectral(parts: _Parts, exact_diagonalization: bool | str, checks: list[Che
         exact_diagonalization == "auto" and m.dimension <= ED_AUTO_DIMENSION
     ):
         checks.append(
-            _run(
-                EXACT,
-                exact_diagonalization_check,
-                m,
-                spectrum,
-                required=exact_diagonalization is True,
-            )
+            _run(EXACT, _exact_check, parts, spectrum, required=exact_diagonalization is True)
         )
     elif exact_diagonalization == "auto":
         checks.append(
@@ -1000,6 +1000,18 @@ def _spectral(parts: _Parts, exact_diagonalization: bool | str, checks: list[Che
                 "compared automatically",
             )
         )
+
+
+def _exact_check(parts: _Parts, spectrum: tuple[FreeSpectrum, str]) -> Check:
+    """The exact-diagonalization check with the analysis's exact spectrum (computed once)."""
+    m = parts.model
+    if m.dimension > ED_AUTO_DIMENSION:
+        return exact_diagonalization_check(m, spectrum)  # refuses with the reason
+    try:
+        exact = parts.analysis.exact
+    except TooLargeError as err:
+        raise CheckNotApplicable(str(err)) from err
+    return exact_diagonalization_check(m, spectrum, exact)
 
 
 def _short(m: Model) -> str:
