@@ -176,6 +176,9 @@ class Report:
     complete : bool
         False when the run was interrupted (KeyboardInterrupt): the checks listed are those that
         finished.
+    guaranteed : bool or None
+        Whether a theorem guarantees the free spectrum that the spectral checks tested (None:
+        no spectrum was computed, e.g. symbolic couplings).
     """
 
     checks: tuple[Check, ...]
@@ -183,11 +186,14 @@ class Report:
     notes: tuple[str, ...] = field(default=())
     verdict: str = ""
     complete: bool = True
+    guaranteed: bool | None = None
 
     @property
     def ok(self) -> bool:
         """True when the run is complete, no check failed, every check the caller asked for ran,
-        and at least one decisive check (one that can fail for a model that is not free) passed.
+        and at least one decisive check (one that can fail for a model that is not free) passed;
+        for a spectrum no theorem guarantees, the comparison with exact diagonalization must be
+        among them (the identities of the charges do not prove the spectrum without a theorem).
         Checks that cannot apply ("not run") do not count either way."""
         return not self.problems
 
@@ -205,6 +211,11 @@ class Report:
         )
         if not any(c.passed and c.decisive for c in self.checks):
             out.append("no decisive check ran (none that could fail for a model that is not free)")
+        if self.guaranteed is False and not any(c.passed and c.name == EXACT for c in self.checks):
+            out.append(
+                "no theorem guarantees the free spectrum and exact diagonalization did not "
+                "confirm it"
+            )
         return tuple(out)
 
     @property
@@ -227,6 +238,7 @@ class Report:
                 "complete": self.complete,
                 "model": self.model_text,
                 "verdict": self.verdict,
+                "guaranteed": self.guaranteed,
                 "checks": [c.to_dict() for c in self.checks],
                 "notes": self.notes,
             }
@@ -922,7 +934,8 @@ def verify(
         )
     why = parts._spectrum[1] if parts._spectrum is not None else None
     verdict = _verdict_text(analysis, why)
-    return Report(tuple(checks), _short(m), tuple(notes), verdict, complete)
+    guaranteed = None if why is None else not why
+    return Report(tuple(checks), _short(m), tuple(notes), verdict, complete, guaranteed)
 
 
 def _commutation(parts: _Parts, max_pairs: int, checks: list[Check]) -> None:
