@@ -2,17 +2,24 @@
 
 :func:`verify` runs, where they apply:
 
-* **commutation** -- ``[H, Q^(s)] = 0`` for every order s, exactly in the string algebra
-  (:class:`~freeladder.operators.StringSum`, no matrices), and ``[Q^(r), Q^(s)] = 0`` for every pair
-  at once by an exact sweep over the terms (:mod:`freeladder.sweep`);
+* **commutation** -- ``[H, Q^(s)] = 0`` and ``[Q^(r), Q^(s)] = 0`` for every order, either all
+  at once by an exact sweep over the terms (:mod:`freeladder.sweep`; ``[H, Q^(s)]`` is its
+  r = 1 row) or pair by pair in the exact string algebra
+  (:class:`~freeladder.operators.StringSum`, no matrices), whichever is estimated cheaper;
 * **inversion relation** -- ``T(u) T(-u) = P(u^2)`` (N = 2) and
-  ``T(u) T(omega u) ... T(omega^{N-1} u) = P(u^N)`` (clock chains), for every u, by the same
+  ``T(u) T(omega u) ... T(omega^{N-1} u) = P(u^N)`` (clock chains), for every u, by the
   sweep; symbolic couplings fall back to the string algebra at one u;
-* **ladder relations** -- ``[H, Psi_{+-k}] = +-2 eta_k Psi_{+-k}`` for small N = 2 systems;
-* **sum rules** -- ``sum eta^N = sum c^N`` and ``sum eta^{2N} = (sum c^N)^2 - 2 C_2``;
-* **exact diagonalization** -- the whole spectrum with multiplicities against the free levels.
+* **ladder relations** -- ``[H, Psi_{+-k}] = +-2 eta_k Psi_{+-k}`` for small N = 2 systems, one
+  edge mode per connected component of the frustration graph;
+* **sum rules** -- ``sum eta^N = sum c^N`` and ``sum eta^{2N} = (sum c^N)^2 - 2 C_2`` (they test
+  the roots against the polynomial, so they are not decisive on their own);
+* **exact diagonalization** -- the whole spectrum with multiplicities against the free levels
+  (:func:`freeladder.match_levels`).
 
-For a model outside every theorem the same checks run as a probe: the report says which fail.
+A check that cannot apply raises :class:`~freeladder.errors.CheckNotApplicable` and is listed
+as "not run" with the reason; any other exception is a failure of that check, its traceback kept.
+For a model no theorem covers, the spectral checks test the unproven numbers as a probe and the
+report says so.  :attr:`Report.ok` and :attr:`Report.problems` say what "ok" requires.
 
 References
 ----------
@@ -63,6 +70,7 @@ __all__ = [
     "hamiltonian_check",
     "inversion_check",
     "ladder_check",
+    "pairwise_check",
     "sum_rule_check",
     "transfer_from_charges",
     "verify",
