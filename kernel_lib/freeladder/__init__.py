@@ -34,6 +34,7 @@ from .graph import (
     frustration_adjacency,
     frustration_graph,
 )
+from .majorana import SectorSpectrum, SectorStructure, jordan_wigner_spectrum, sectors
 from .matching import LevelMatch, match_levels
 from .model import Model, Term
 from .operators import StringSum
@@ -54,6 +55,10 @@ from .verdict import ComponentVerdict, Verdict, classify
 from .verification import Check, Report, verify
 
 __all__ = [
+    "SectorSpectrum",
+    "SectorStructure",
+    "jordan_wigner_spectrum",
+    "sectors",
     "Analysis",
     "analyze",
     "charge_counts",
