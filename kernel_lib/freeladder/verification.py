@@ -274,10 +274,15 @@ class Report:
         if self.verdict:
             lines.append(f"verdict: {self.verdict}")
         rows = [_COLUMNS] + [self._cells(c) for c in self.checks]
-        clipped = [tuple(t if len(t) <= 48 else t[:45] + "..." for t in r) for r in rows]
+        # the last column (reference) is printed whole; the others are clipped to align
+        clipped = [
+            tuple(t if len(t) <= 48 or k == len(r) - 1 else t[:45] + "..." for k, t in enumerate(r))
+            for r in rows
+        ]
         widths = [max(len(r[k]) for r in clipped) for k in range(len(_COLUMNS))]
         for r in clipped:
-            lines.append("  " + "  ".join(t.ljust(w) for t, w in zip(r, widths, strict=True)))
+            cells = [t.ljust(w) for t, w in zip(r, widths, strict=True)]
+            lines.append(("  " + "  ".join(cells)).rstrip())
         for c in self.checks:
             lines.append(f"  {c.name} ({c.status}): {c.detail}")
             if c.traceback:
