@@ -37,6 +37,7 @@ from .graph import (
 )
 from .indifference import IndifferenceOrder, indifference_order
 from .majorana import SectorSpectrum, SectorStructure, jordan_wigner_spectrum, sectors
+from .matching import LevelMatch, match_levels
 from .model import Model, Term
 from .operators import StringSum
 from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
@@ -54,7 +55,7 @@ from .sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
 from .verdict import ComponentVerdict, Guarantee, Verdict, classify, guarantee
-from .verify import Check, Report, verify
+from .verification import Check, Report, verify
 
 __all__ = [
     "IndifferenceOrder",
@@ -118,6 +119,8 @@ __all__ = [
     "edge_mode",
     "ladder_operators",
     "verify",
+    "LevelMatch",
+    "match_levels",
     "StringArray",
     "SweepResult",
     "Witness",

@@ -240,7 +240,7 @@ class FreeSpectrum:
         ``1 / y_k`` (complex array): the set of levels ``{sum_k omega^{s_k} eta_k}`` does not
         depend on which N-th root is taken, since the choices ``s_k`` run over all of them.
     error_bounds : ndarray of float
-        Per quasi-energy: bound (or estimate, see ``provenance["bounds"]``) on the distance to
+        Per quasi-energy: bound (or estimate, see ``provenance.bounds``) on the distance to
         the nearest N-th root of the exact ``1 / y_k``.
     constant : complex or float
         The model's constant term, included in every level.
