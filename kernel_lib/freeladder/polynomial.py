@@ -27,7 +27,9 @@ from __future__ import annotations
 
 import math
 import numbers
+import threading
 from collections.abc import Callable, Sequence
+from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any, NamedTuple
 
@@ -35,9 +37,23 @@ import flint
 import numpy as np
 import sympy
 
+from .errors import TooLargeError
 from .graph import chain_structure, frustration_adjacency
 from .independent import Algebra, IndependenceGraph
+from .jsonready import json_ready
 from .model import Model, to_python_number
+
+__all__ = [
+    "MAX_ROOT_DEGREE",
+    "ChainData",
+    "ExclusionPolynomial",
+    "PolynomialRoots",
+    "SumRules",
+    "exclusion_polynomial",
+    "independence_graph",
+    "power_sum_targets",
+    "sum_rules",
+]
 
 _CACHE_KEY = "_freeladder_polynomial"
 _BIG = 2.0**256
@@ -203,7 +219,7 @@ def _public(value: Any, rounded: bool = False) -> Any:
     ``rounded`` (the model had float couplings): rationals are shown as their nearest float.
     """
     if rounded and isinstance(value, Fraction):
-        return float(value)
+        return _as_float(value)  # +-inf beyond the float range; exact_parts() keeps it
     if isinstance(value, tuple):
         re, im = value
         try:
@@ -225,6 +241,12 @@ class ChainData(NamedTuple):
     """p."""
     order: tuple[int, ...]
     """Term indices in chain order."""
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: weights (numbers), reach, order."""
+        return json_ready(  # type: ignore[no-any-return]
+            {"weights": self.weights, "reach": self.reach, "order": self.order}
+        )
 
 
 class ExclusionPolynomial:
@@ -271,6 +293,17 @@ class ExclusionPolynomial:
     S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021).
     """
 
+    _rounded: bool
+    _sums_source: Callable[[], Sequence[Any]]
+    _sums: tuple[Any, ...] | None
+    _lock: threading.Lock
+    _exact_weights: tuple[Any, ...]
+    _states: int
+    _kind: str
+    _chain: tuple[tuple[Any, ...], int, tuple[int, ...]] | None
+    _degree: int | None
+    _truncated_at: int | None
+
     def __init__(
         self,
         sums: Callable[[], Sequence[Any]],
@@ -280,29 +313,62 @@ class ExclusionPolynomial:
         chain: tuple[tuple[Any, ...], int, tuple[int, ...]] | None,
         degree: int | None = None,
         rounded: bool = False,
+        truncated_at: int | None = None,
     ) -> None:
-        self._rounded = rounded
-        self._sums_source = sums
-        self._sums: tuple[Any, ...] | None = None
-        self._exact_weights = tuple(weights)
-        self.states = int(states)
-        self.kind = kind
-        self._chain = chain
-        self._degree = degree
+        put = object.__setattr__
+        put(self, "_rounded", bool(rounded))
+        put(self, "_sums_source", sums)
+        put(self, "_sums", None)
+        put(self, "_lock", threading.Lock())
+        put(self, "_exact_weights", tuple(weights))
+        put(self, "_states", int(states))
+        put(self, "_kind", str(kind))
+        put(self, "_chain", chain)
+        put(self, "_degree", degree)
+        put(self, "_truncated_at", truncated_at)
+
+    def __setattr__(self, name: str, value: Any) -> None:
+        raise AttributeError(
+            f"ExclusionPolynomial is immutable (cannot set {name!r}); build a new model instead"
+        )
+
+    def __delattr__(self, name: str) -> None:
+        raise AttributeError(f"ExclusionPolynomial is immutable (cannot delete {name!r})")
+
+    @property
+    def states(self) -> int:
+        """N."""
+        return self._states
+
+    @property
+    def kind(self) -> str:
+        """The exact arithmetic used: "integer", "rational", "gaussian" or "symbolic"."""
+        return self._kind
+
+    @property
+    def truncated_at(self) -> int | None:
+        """s for a partial polynomial made by :meth:`truncated`, None for the full ``P``."""
+        return self._truncated_at
 
     @property
     def _exact_sums(self) -> tuple[Any, ...]:
-        # Computed on first use: a chain is evaluated through its recurrence without them.
+        # Computed on first use (a chain is evaluated through its recurrence without them),
+        # once, under a lock, and stored as a tuple: nothing outside can change it.
         if self._sums is None:
-            self._sums = tuple(self._sums_source())
+            with self._lock:
+                if self._sums is None:
+                    object.__setattr__(self, "_sums", tuple(self._sums_source()))
+        assert self._sums is not None
         return self._sums
 
     @property
     def degree(self) -> int:
         """Degree of P: the independence number of the frustration graph when no weight is 0."""
-        if self._degree is None:
-            self._degree = len(self._exact_sums) - 1
-        return self._degree
+        degree = self._degree
+        if degree is None:
+            degree = len(self._exact_sums) - 1
+            object.__setattr__(self, "_degree", degree)
+        return degree
 
     # -- exact data ------------------------------------------------------------------------------
     @property
@@ -351,6 +417,128 @@ class ExclusionPolynomial:
         y = sympy.Symbol("y") if symbol is None else symbol
         coeffs = [_to_sympy(c) for c in self.coefficients]
         return sympy.Poly.from_list(coeffs[::-1], y)
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: degree, coefficients (numbers and exact text), kind, states ...
+
+        ``coefficients`` are numbers (``[re, im]`` for complex, ``None`` beyond the float
+        range), ``exact_coefficients`` the exact values as text (``"3/4"``, ``"1/2 + 3*I"``,
+        sympy text for symbolic ones), both in ascending powers of y, signs included.
+        """
+        exact = [c if s % 2 == 0 else _negate(c) for s, c in enumerate(self._exact_sums)]
+        chain = self._chain
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "degree": self.degree,
+                "kind": self.kind,
+                "states": self.states,
+                "coefficients": [_as_number(c) for c in exact],
+                "exact_coefficients": [sympy.sstr(_exact_to_sympy(c)) for c in exact],
+                "truncated_at": self.truncated_at,
+                "chain_reach": None if chain is None else chain[1],
+            }
+        )
+
+    # -- partial polynomials and their roots ------------------------------------------------------
+    def truncated(self, order: int) -> ExclusionPolynomial:
+        """The partial polynomial ``P_s(y) = sum_{r <= s} (-y)^r C_r``, s = ``order``.
+
+        Adding the orders one by one shows how the roots of ``P_s`` approach those of ``P``;
+        for ``order >= degree`` the partial polynomial is ``P`` itself (this object).
+
+        Parameters
+        ----------
+        order : int
+            s >= 0.
+
+        Returns
+        -------
+        ExclusionPolynomial
+            Frozen, with the same weights, N and kind; ``truncated_at == order``; no chain data
+            (the recurrence gives only the full polynomial).
+
+        Raises
+        ------
+        TypeError, ValueError
+            For a non-integer or negative order.
+
+        Examples
+        --------
+        >>> import freeladder as fl
+        >>> P = fl.exclusion_polynomial(fl.exclusion_chain(5, reach=1))
+        >>> P.coefficients, P.truncated(1).coefficients
+        ((1, -5, 6, -1), (1, -5))
+        >>> P.truncated(7) is P
+        True
+        """
+        if isinstance(order, bool) or not isinstance(order, numbers.Integral):
+            raise TypeError(f"the order of a partial polynomial is an integer, got {order!r}")
+        s = int(order)
+        if s < 0:
+            raise ValueError(f"the order of a partial polynomial must be >= 0, got {s}")
+        if s >= self.degree:
+            return self
+        head = self._exact_sums[: s + 1]
+        while len(head) > 1 and head[-1] == 0:
+            head = head[:-1]
+        return ExclusionPolynomial(
+            lambda: head,
+            self._exact_weights,
+            self.states,
+            self.kind,
+            None,
+            rounded=self._rounded,
+            truncated_at=s,
+        )
+
+    def roots(self, tolerance: float = 1e-12) -> PolynomialRoots:
+        """All complex roots of this polynomial, certified (balls of python-flint / Arb).
+
+        Meant for polynomials of moderate degree, such as the partial polynomials of
+        :meth:`truncated` shown order by order.  Spectra of long chains come from
+        :func:`freeladder.free_spectrum`, which never expands the coefficients.
+
+        Parameters
+        ----------
+        tolerance : float
+            Requested absolute accuracy of each root (Gaussian kind); the rational kinds are
+            isolated to about 15 significant digits.
+
+        Returns
+        -------
+        PolynomialRoots
+            Values, certified radii, multiplicities.
+
+        Raises
+        ------
+        TypeError
+            For symbolic coefficients (substitute numbers first).
+        TooLargeError
+            Above :data:`MAX_ROOT_DEGREE`.
+        ValueError
+            When the Gaussian-rational root isolation fails (multiple roots).
+
+        Notes
+        -----
+        Expanded coefficients are useless in floating point beyond a few dozen terms (numpy's
+        companion-matrix roots of a 90-term chain polynomial are off by 8e-2); here the exact
+        coefficients enter ball arithmetic, so each root comes with a proven radius.  Integer
+        and rational coefficients use ``fmpq_poly.complex_roots`` (multiplicities included);
+        Gaussian rationals ``acb_poly.roots`` on the exact dyadic values, which needs
+        squarefree input.
+
+        References
+        ----------
+        F. Johansson, IEEE Trans. Comput. 66, 1281 (2017) (Arb ball arithmetic).
+
+        Examples
+        --------
+        >>> import freeladder as fl
+        >>> r = fl.exclusion_polynomial(fl.exclusion_chain(3, reach=1)).roots()  # 1 - 3y + y^2
+        >>> [round(float(v.real), 11) for v in r.values], r.multiplicities
+        ([0.38196601125, 2.61803398875], (1, 1))
+        """
+        return _certified_roots(self, float(tolerance))
 
     # -- evaluation ------------------------------------------------------------------------------
     def __call__(self, y: Any) -> Any:
@@ -464,6 +652,29 @@ def _to_exact_number(w: Any) -> Any:
     return w
 
 
+def _negate(c: Any) -> Any:
+    """``-c`` for the exact values of :func:`_exact` (Gaussian rationals are pairs)."""
+    if isinstance(c, tuple):
+        return (-c[0], -c[1])
+    return -c
+
+
+def _as_number(c: Any) -> Any:
+    """An exact value as a float or complex (inf beyond the float range); sympy stays."""
+    if isinstance(c, sympy.Basic):
+        return c
+    if isinstance(c, tuple):
+        return complex(_as_float(c[0]), _as_float(c[1]))
+    return c if isinstance(c, int) and abs(c) < 2**53 else _as_float(c)
+
+
+def _as_float(c: Any) -> float:
+    try:
+        return float(c)
+    except OverflowError:
+        return math.inf if c > 0 else -math.inf
+
+
 def _to_sympy(c: Any) -> sympy.Expr:
     """A number as a sympy value, built explicitly (never by parsing)."""
     if isinstance(c, np.generic):
@@ -573,6 +784,293 @@ def _chain_scaled(
     frac_exp = np.frexp(np.abs(value))[1].astype(np.int64)
     frac_exp[value == 0] = 0
     return value * np.ldexp(1.0, -frac_exp), expo + frac_exp
+
+
+# -- roots of moderate degree ----------------------------------------------------------------------
+MAX_ROOT_DEGREE = 120
+"""Largest degree :meth:`ExclusionPolynomial.roots` accepts (about 0.5 s at degree 100)."""
+
+
+@dataclass(frozen=True)
+class PolynomialRoots:
+    """Certified complex roots of a polynomial of moderate degree (immutable).
+
+    Attributes
+    ----------
+    values : numpy.ndarray of complex (read-only)
+        The distinct roots, midpoints of their balls, sorted by real then imaginary part.
+    error_bounds : numpy.ndarray of float (read-only)
+        Proven bounds on ``|value - root|`` (radius of the real part plus radius of the
+        imaginary part of each ball).
+    multiplicities : tuple of int
+    degree : int
+    rigorous : bool
+        Always True here: each ball is proven to hold exactly one distinct root.
+    method : str
+    message : str
+    """
+
+    values: np.ndarray
+    error_bounds: np.ndarray
+    multiplicities: tuple[int, ...]
+    degree: int
+    rigorous: bool
+    method: str
+    message: str
+
+    def __post_init__(self) -> None:
+        for name in ("values", "error_bounds"):
+            arr = np.array(getattr(self, name))
+            arr.setflags(write=False)
+            object.__setattr__(self, name, arr)
+        object.__setattr__(self, "multiplicities", tuple(int(k) for k in self.multiplicities))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields (complex values as ``[re, im]``)."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "values": self.values.astype(complex),
+                "error_bounds": self.error_bounds,
+                "multiplicities": self.multiplicities,
+                "degree": self.degree,
+                "rigorous": self.rigorous,
+                "method": self.method,
+                "message": self.message,
+            }
+        )
+
+    def __repr__(self) -> str:
+        shown = ", ".join(f"{complex(v):.6g}" for v in self.values[:6])
+        more = ", ..." if len(self.values) > 6 else ""
+        return (
+            f"PolynomialRoots(degree={self.degree}, {len(self.values)} distinct: [{shown}{more}], "
+            f"max error bound {float(np.max(self.error_bounds, initial=0.0)):.2g})"
+        )
+
+
+def _certified_roots(poly: ExclusionPolynomial, tolerance: float) -> PolynomialRoots:
+    if poly.kind == "symbolic":
+        raise TypeError(
+            "the roots of a symbolic polynomial need numbers: substitute the couplings first "
+            "(Model.subs)"
+        )
+    if poly.degree > MAX_ROOT_DEGREE:
+        raise TooLargeError(
+            f"degree {poly.degree} exceeds MAX_ROOT_DEGREE = {MAX_ROOT_DEGREE} for expanded "
+            "coefficients; use truncated(s) with a smaller s, or freeladder.free_spectrum, "
+            "which evaluates the chain recurrence instead"
+        )
+    re, im = poly.exact_parts()
+    if poly.degree == 0:
+        empty = np.zeros(0)
+        return PolynomialRoots(empty.astype(complex), empty, (), 0, True, "constant", "no roots")
+    balls: list[Any]  # (ball, multiplicity) pairs
+    if poly.kind != "gaussian":
+        balls = list(flint.fmpq_poly([_fmpq(c) for c in re]).complex_roots())
+        method = "python-flint fmpq_poly.complex_roots (Arb balls)"
+    else:
+        bits = max(
+            max(abs(c.numerator).bit_length(), c.denominator.bit_length()) for c in (*re, *im)
+        )
+        old = flint.ctx.prec
+        try:
+            flint.ctx.prec = max(old, bits + 64)
+            coefficients = [
+                flint.acb(flint.arb(_fmpq(a)), flint.arb(_fmpq(b)))
+                for a, b in zip(re, im, strict=True)
+            ]
+            try:
+                found: list[Any] = flint.acb_poly(coefficients).roots(tol=tolerance)
+            except ValueError as err:
+                raise ValueError(
+                    f"the roots of this degree-{poly.degree} Gaussian-rational polynomial could "
+                    f"not be isolated ({err}); multiple roots are not supported for complex "
+                    "couplings"
+                ) from None
+        finally:
+            flint.ctx.prec = old
+        balls = [(ball, 1) for ball in found]
+        method = "python-flint acb_poly.roots (Arb balls)"
+    values = np.array([complex(float(b.real.mid()), float(b.imag.mid())) for b, _ in balls])
+    radii = np.array([float(b.real.rad()) + float(b.imag.rad()) for b, _ in balls])
+    mult = [int(k) for _, k in balls]
+    order = np.lexsort((values.imag, values.real))
+    return PolynomialRoots(
+        values[order],
+        radii[order],
+        tuple(mult[i] for i in order),
+        poly.degree,
+        True,
+        method,
+        f"{len(values)} distinct roots, each isolated in a proven ball",
+    )
+
+
+# -- sum rules -----------------------------------------------------------------------------------
+@dataclass(frozen=True)
+class SumRules:
+    """The sum rules ``sum eta^N = C_1`` and ``sum eta^{2N} = C_1^2 - 2 C_2`` for given values.
+
+    Attributes
+    ----------
+    targets : tuple of two sympy numbers (or expressions)
+        The exact right-hand sides ``C_1`` and ``C_1^2 - 2 C_2``.
+    sums : tuple of two complex
+        ``sum eta_k^N`` and ``sum eta_k^{2N}`` over the given quasi-energies (floating point).
+    residuals : tuple of two float
+        ``|sum - target| / max(sum |eta_k|^{jN}, |target|)`` for j = 1, 2 (relative; computed
+        with every quantity divided by a common power of two, so nothing overflows).
+    count : int
+        Number of quasi-energies given.
+    """
+
+    targets: tuple[Any, Any]
+    sums: tuple[complex, complex]
+    residuals: tuple[float, float]
+    count: int
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields; the exact targets also as text."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "targets": self.targets,
+                "exact_targets": [sympy.sstr(t) for t in self.targets],
+                "sums": self.sums,
+                "residuals": self.residuals,
+                "count": self.count,
+            }
+        )
+
+
+def _exact_targets(poly: ExclusionPolynomial) -> tuple[Any, Any]:
+    """``C_1`` and ``C_1^2 - 2 C_2`` exactly, in the internal exact form.
+
+    For a full chain polynomial, from the weights in O(p M): ``C_1^2 - 2 C_2 = sum w^2 +
+    2 sum_{0<d<=p} sum_k w_k w_{k+d}`` (the pairs that are not independent); otherwise from
+    the coefficients ``C_1, C_2``.
+    """
+    if poly._chain is not None and poly.truncated_at is None:
+        w, p, _ = poly._chain
+        c1: Any = 0
+        for v in w:
+            c1 = _plus(c1, v)
+        second: Any = 0
+        for k, v in enumerate(w):
+            second = _plus(second, _times(v, v))
+            for d in range(1, p + 1):
+                if k + d < len(w):
+                    second = _plus(second, _times(2, _times(v, w[k + d])))
+        return c1, second
+    sums = poly._exact_sums
+    c1 = sums[1] if len(sums) > 1 else 0
+    c2 = sums[2] if len(sums) > 2 else 0
+    return c1, _plus(_times(c1, c1), _times(-2, c2))
+
+
+def _plus(a: Any, b: Any) -> Any:
+    """Exact sum of two values of :func:`_exact`."""
+    if isinstance(a, tuple) or isinstance(b, tuple):
+        ar, ai = a if isinstance(a, tuple) else (a, 0)
+        br, bi = b if isinstance(b, tuple) else (b, 0)
+        return (Fraction(ar + br), Fraction(ai + bi)) if ai + bi != 0 else Fraction(ar + br)
+    total = a + b
+    return sympy.expand(total) if isinstance(total, sympy.Basic) else total
+
+
+def power_sum_targets(poly: ExclusionPolynomial) -> tuple[Any, Any]:
+    """The exact sums ``sum_k 1/y_k = C_1`` and ``sum_k 1/y_k^2 = C_1^2 - 2 C_2``.
+
+    With ``eta_k^N = 1 / y_k`` these are the sum rules ``sum eta^N`` and ``sum eta^{2N}``
+    that the quasi-energies of a free spectrum obey (Newton's identities applied to
+    ``P(y) = prod_k (1 - y / y_k)``; common practice).
+
+    Parameters
+    ----------
+    poly : ExclusionPolynomial
+        Full or partial; any kind (symbolic targets are sympy expressions).
+
+    Returns
+    -------
+    tuple of two sympy values
+        Exact.  For chains computed from the weights in O(p M), without the coefficients.
+
+    Examples
+    --------
+    >>> import freeladder as fl
+    >>> power_sum_targets(fl.exclusion_polynomial(fl.exclusion_chain(4, reach=1)))
+    (4, 10)
+    """
+    if not isinstance(poly, ExclusionPolynomial):
+        raise TypeError(f"expected an ExclusionPolynomial, got {type(poly).__name__}")
+    t1, t2 = _exact_targets(poly)
+    return _exact_to_sympy(t1), _exact_to_sympy(t2)
+
+
+def sum_rules(poly: ExclusionPolynomial, quasi_energies: Any) -> SumRules:
+    """Check given quasi-energies against the sum rules of ``poly``.
+
+    Parameters
+    ----------
+    poly : ExclusionPolynomial
+        Numeric couplings.
+    quasi_energies : array_like of complex
+        All eta_k (``eta_k^N = 1 / y_k``), e.g. ``free_spectrum(m).quasi_energies``.
+
+    Returns
+    -------
+    SumRules
+        Exact targets, the floating-point sums and their relative residuals.
+
+    Raises
+    ------
+    TypeError
+        For symbolic couplings.
+
+    Notes
+    -----
+    ``sum eta^N = C_1`` and ``sum eta^{2N} = C_1^2 - 2 C_2`` are Newton's identities for the
+    reciprocal roots of ``P`` (common practice).  Both sides are divided by ``2^{je}``
+    (``2^e`` about the largest weight) before rounding, so couplings near the float range
+    neither overflow nor underflow.
+
+    Examples
+    --------
+    >>> import numpy as np, freeladder as fl
+    >>> P = fl.exclusion_polynomial(fl.exclusion_chain(3, reach=1))   # 1 - 3y + y^2
+    >>> eta = 1 / np.sqrt(np.array([(3 - 5**0.5) / 2, (3 + 5**0.5) / 2]))
+    >>> r = sum_rules(P, eta)
+    >>> r.targets, max(r.residuals) < 1e-15
+    ((3, 7), True)
+    """
+    if not isinstance(poly, ExclusionPolynomial):
+        raise TypeError(f"expected an ExclusionPolynomial, got {type(poly).__name__}")
+    if poly.kind == "symbolic":
+        raise TypeError("sum rules are checked numerically; substitute the couplings first")
+    eta = np.asarray(quasi_energies, dtype=complex).ravel()
+    t1, t2 = _exact_targets(poly)
+    n = poly.states
+    parts = [
+        Fraction(v) for w in poly._exact_weights for v in (w if isinstance(w, tuple) else (w,))
+    ]
+    top = max((abs(v) for v in parts), default=Fraction(0))
+    e = 0 if top == 0 else top.numerator.bit_length() - top.denominator.bit_length()
+    with np.errstate(over="ignore", under="ignore"):
+        x = (eta * np.exp2(-e / n)) ** n  # eta^N / 2^e
+    sums, residuals = [], []
+    for j, target in ((1, t1), (2, t2)):
+        want = complex(_as_number(_times(target, Fraction(1, 2) ** (j * e))))
+        got = complex((x**j).sum())
+        size = max(float((np.abs(x) ** j).sum()), abs(want), 1e-300)
+        residuals.append(float(abs(got - want) / size))
+        with np.errstate(over="ignore"):
+            factor = float(np.exp2(float(j * e)))  # inf beyond the float range
+        sums.append(complex(got.real and got.real * factor, got.imag and got.imag * factor))
+    return SumRules(
+        (_exact_to_sympy(t1), _exact_to_sympy(t2)),
+        (sums[0], sums[1]),
+        (residuals[0], residuals[1]),
+        int(eta.size),
+    )
 
 
 # -- construction --------------------------------------------------------------------------------
