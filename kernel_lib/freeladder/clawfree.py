@@ -20,9 +20,24 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import Any
 
 import networkx as nx
 import numpy as np
+
+from .jsonready import json_ready
+
+__all__ = [
+    "EXACT_HOLE_BUDGET",
+    "EXACT_HOLE_LIMIT",
+    "HOLE_SEARCH_BUDGET",
+    "HoleSearch",
+    "find_claw",
+    "find_even_hole",
+    "find_simplicial_clique",
+    "is_chordal",
+    "is_clique",
+]
 
 EXACT_HOLE_LIMIT = 400
 """Components up to this many vertices get the large even-hole search budget."""
@@ -115,16 +130,6 @@ def _prune_to_simplicial(adjacency: Sequence[set[int]], clique: set[int]) -> set
     return clique
 
 
-def is_simplicial_clique(adjacency: Sequence[set[int]], clique: Sequence[int]) -> bool:
-    """Check the definition directly: a non-empty clique K with every ``N(v) \\ K`` a clique."""
-    k = set(clique)
-    return (
-        bool(k)
-        and is_clique(adjacency, k)
-        and all(is_clique(adjacency, adjacency[v] - k) for v in k)
-    )
-
-
 def is_chordal(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> bool:
     """True when the component has no hole (induced cycle of length >= 4).
 
@@ -187,6 +192,12 @@ class HoleSearch:
     decided: bool
     hole: tuple[int, ...] | None
     reason: str
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields."""
+        return json_ready(  # type: ignore[no-any-return]
+            {"decided": self.decided, "hole": self.hole, "reason": self.reason}
+        )
 
 
 def find_even_hole(

@@ -31,10 +31,22 @@ import scipy.sparse.csgraph as csgraph
 
 from .charges import transfer_matrix
 from .clawfree import find_simplicial_clique
+from .frozen import readonly_array, readonly_sparse
 from .graph import chain_structure, frustration_adjacency
+from .jsonready import json_ready
 from .model import Model
 from .spectrum import free_spectrum
 from .strings import StringArray, WeylString
+
+__all__ = [
+    "LADDER_MAX_DIMENSION",
+    "MAX_CANDIDATES",
+    "EdgeMode",
+    "LadderOperators",
+    "edge_mode",
+    "ladder_operators",
+    "simplicial_cliques",
+]
 
 MAX_CANDIDATES = 1 << 13
 """Largest number of candidate strings tested at once by :func:`edge_mode`."""
@@ -84,6 +96,21 @@ class EdgeMode:
 
     def _repr_html_(self) -> str:
         return f"<p>{html.escape(str(self))}</p><p><small>{html.escape(self.reason)}</small></p>"
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields (the string as text)."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "found": self.found,
+                "string": None if self.string is None else str(self.string),
+                "term": self.term,
+                "clique": self.clique,
+                "exponent": self.exponent,
+                "reason": self.reason,
+                "tried": self.tried,
+                "sites_searched": self.sites_searched,
+            }
+        )
 
 
 def simplicial_cliques(m: Model) -> list[tuple[int, ...]]:
@@ -237,16 +264,36 @@ class LadderOperators:
     ----------
     quasi_energies : numpy.ndarray
         eta_k > 0 used for ``u_k = 1 / eta_k``.
-    raising, lowering : list of scipy.sparse.csr_array
+    raising, lowering : tuple of scipy.sparse.csr_array (read-only arrays)
         ``Psi_{+k} = T(-u_k) chi T(u_k)`` and ``Psi_{-k} = T(u_k) chi T(-u_k)``.
     edge : EdgeMode
         The edge mode ``chi`` they are built from.
     """
 
     quasi_energies: np.ndarray
-    raising: list[sps.csr_array]
-    lowering: list[sps.csr_array]
+    raising: tuple[sps.csr_array, ...]
+    lowering: tuple[sps.csr_array, ...]
     edge: EdgeMode
+
+    def __post_init__(self) -> None:  # frozen: read-only arrays and matrices, tuples
+        object.__setattr__(self, "quasi_energies", readonly_array(self.quasi_energies))
+        for name in ("raising", "lowering"):
+            object.__setattr__(self, name, tuple(readonly_sparse(a) for a in getattr(self, name)))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready summary: quasi-energies, edge mode, dimension, non-zeros per operator.
+
+        The matrices themselves are not included (use :attr:`raising`, :attr:`lowering`).
+        """
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "quasi_energies": self.quasi_energies,
+                "edge": self.edge,
+                "dimension": self.raising[0].shape[0] if self.raising else None,
+                "raising_nonzeros": [a.nnz for a in self.raising],
+                "lowering_nonzeros": [a.nnz for a in self.lowering],
+            }
+        )
 
     def __repr__(self) -> str:
         etas = ", ".join(f"{v:.6g}" for v in self.quasi_energies[:6])
@@ -304,4 +351,4 @@ def ladder_operators(m: Model, quasi_energies: Sequence[float] | None = None) ->
         t_minus = transfer_matrix(m, -u).to_sparse()
         raising.append(sps.csr_array(t_minus @ chi @ t_plus))
         lowering.append(sps.csr_array(t_plus @ chi @ t_minus))
-    return LadderOperators(np.asarray(eta), raising, lowering, edge)
+    return LadderOperators(np.asarray(eta), tuple(raising), tuple(lowering), edge)

@@ -51,6 +51,7 @@ __all__ = [
     "SumRules",
     "exclusion_polynomial",
     "independence_graph",
+    "independent_set_counts",
     "power_sum_targets",
     "sum_rules",
 ]
@@ -990,9 +991,13 @@ def _integer_chain_targets(w: Sequence[Any], p: int) -> tuple[Any, Any] | None:
     s1 = (sum(a), sum(b))
     sr = sum(x * x for x in a) - sum(x * x for x in b)
     si = 2 * sum(x * y for x, y in zip(a, b, strict=True))
-    for d in range(1, p + 1):
-        sr += 2 * (sum(x * y for x, y in zip(a, a[d:])) - sum(x * y for x, y in zip(b, b[d:])))
-        si += 2 * (sum(x * y for x, y in zip(a, b[d:])) + sum(x * y for x, y in zip(b, a[d:])))
+    for d in range(1, p + 1):  # pairs (k, k + d): zip stops at the shorter, on purpose
+
+        def dot(u: list[int], v: list[int], shift: int = d) -> int:
+            return sum(x * y for x, y in zip(u, v[shift:], strict=False))
+
+        sr += 2 * (dot(a, a) - dot(b, b))
+        si += 2 * (dot(a, b) + dot(b, a))
 
     def value(re_num: int, im_num: int, scale: int) -> Any:
         r, i = Fraction(re_num, scale), Fraction(im_num, scale)
@@ -1160,6 +1165,19 @@ def _graph_sums(ring: _Ring, graph: IndependenceGraph, weights: Sequence[Any]) -
         lambda q, a: mono[q] * a,
     )
     return ring.exact_coefficients(graph.evaluate(algebra))
+
+
+def independent_set_counts(graph: IndependenceGraph) -> tuple[int, ...]:
+    """Number of independent sets of each size 0 .. alpha (the unit-weight polynomial).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> independent_set_counts(IndependenceGraph(np.eye(4, k=1) + np.eye(4, k=-1)))  # path
+    (1, 4, 3)
+    """
+    counts = _graph_sums(_Ring("integer"), graph, [1] * graph.size) if graph.size else [1]
+    return tuple(int(c) for c in counts)
 
 
 def independence_graph(m: Model) -> IndependenceGraph:
