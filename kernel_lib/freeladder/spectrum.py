@@ -612,7 +612,7 @@ def free_spectrum(m: Model, method: str = "auto", lowest: int | None = None) -> 
     complete = len(eta) == count
     if complete:
         rules = sum_rules(exclusion_polynomial(m), eta).residuals
-        prov["sum_rules"] = {"sum eta^N": rules[0], "sum eta^2N": rules[1]}
+        prov["sum_rules"] = MappingProxyType({"sum eta^N": rules[0], "sum eta^2N": rules[1]})
     prov["count"] = count
     prov["guaranteed"] = guaranteed
     prov["guarantee"] = guarantee
