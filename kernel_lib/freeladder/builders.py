@@ -11,6 +11,17 @@ import sympy
 from .model import Coupling, Model, check_coupling
 from .strings import StringArray, make_string, pauli
 
+__all__ = [
+    "clock_chain",
+    "complex_couplings",
+    "exclusion_chain",
+    "ising_chain",
+    "ising_lattice",
+    "kitaev_honeycomb",
+    "random_couplings",
+    "staggered",
+]
+
 
 def _coupling_list(couplings: Any, count: int, what: str, symbol: str = "c") -> list[Coupling]:
     """Expand ``"uniform"``, ``"symbols"``, a scalar or a sequence into ``count`` couplings."""

@@ -23,6 +23,8 @@ from typing import Any
 import numpy as np
 import sympy
 
+__all__ = ["CyclotomicField", "Element", "power_table"]
+
 
 @functools.lru_cache(maxsize=32)
 def power_table(order: int, count: int) -> np.ndarray:

@@ -32,6 +32,15 @@ import scipy.sparse.csgraph as csgraph
 
 from .model import Model
 
+__all__ = [
+    "ChainStructure",
+    "chain_from_exponents",
+    "chain_structure",
+    "commutation_exponents",
+    "frustration_adjacency",
+    "frustration_graph",
+]
+
 _CACHE_PREFIX = "_freeladder_graph_"
 
 

@@ -19,6 +19,16 @@ import sympy
 from .printing import format_terms, format_terms_latex
 from .strings import StringArray, WeylString, unit_phase
 
+__all__ = [
+    "Coupling",
+    "Model",
+    "Term",
+    "check_coupling",
+    "is_symbolic",
+    "times_phase",
+    "to_python_number",
+]
+
 Coupling = Any
 """int, float, complex, Fraction or a sympy expression."""
 

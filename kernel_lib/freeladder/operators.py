@@ -38,6 +38,16 @@ from .model import Model
 from .printing import format_terms, format_terms_latex
 from .strings import StringArray, WeylString, unit_phase
 
+__all__ = [
+    "PAIR_CHUNK",
+    "Coef",
+    "Scalar",
+    "StringSum",
+    "is_exact_scalar",
+    "is_symbolic_value",
+    "string_keys",
+]
+
 Scalar = Any
 """int, Fraction, float, complex or a sympy expression."""
 

@@ -24,6 +24,17 @@ import sympy
 
 from .strings import WeylString
 
+__all__ = [
+    "NOT_FINITE_NAMES",
+    "RESERVED_NAMES",
+    "coefficient_text",
+    "format_terms",
+    "format_terms_latex",
+    "is_plain_name",
+    "letters_and_factor",
+    "site_text",
+]
+
 _ATOM, _POWER, _PRODUCT, _SUM = 3, 2, 1, 0
 
 RESERVED_NAMES = frozenset({"w", "I", "E", "pi", "j"})

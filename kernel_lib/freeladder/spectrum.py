@@ -36,6 +36,8 @@ from .polynomial import exclusion_polynomial, sum_rules
 from .roots_complex import aberth_chain_roots, certified_complex_roots
 from .verdict import classify
 
+__all__ = ["LEVEL_LIMIT", "DensityOfStates", "FreeSpectrum", "Level", "LevelTable", "free_spectrum"]
+
 LEVEL_LIMIT = 2**22
 """Largest number ``N^S`` of choices that :meth:`FreeSpectrum.levels` lists in full."""
 

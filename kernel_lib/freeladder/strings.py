@@ -34,6 +34,17 @@ from typing import Any
 import numpy as np
 import scipy.sparse as sps
 
+__all__ = [
+    "BlockFill",
+    "SiteLabel",
+    "StringArray",
+    "WeylString",
+    "canonical_site_phase",
+    "make_string",
+    "pauli",
+    "unit_phase",
+]
+
 SiteLabel = Hashable
 """A site label: an int, or a tuple of ints for lattices.  Labels of one model must sort."""
 

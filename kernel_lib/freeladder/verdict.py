@@ -44,6 +44,8 @@ from .model import Model
 from .printing import format_terms
 from .strings import WeylString
 
+__all__ = ["KINDS", "ComponentVerdict", "Verdict", "classify"]
+
 KINDS = ("unsolved", "integrable", "hidden-free", "jordan-wigner")
 """The verdict kinds, weakest first."""
 

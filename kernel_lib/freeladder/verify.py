@@ -44,6 +44,23 @@ from .polynomial import exclusion_polynomial, sum_rules
 from .spectrum import free_spectrum
 from .sweep import SweepResult, commutator_sweep, inversion_sweep
 
+__all__ = [
+    "ED_AUTO_DIMENSION",
+    "FLOAT_RTOL",
+    "LADDER_DIMENSION",
+    "MAX_PAIRS",
+    "Check",
+    "Report",
+    "charge_pairs_check",
+    "exact_diagonalization_check",
+    "hamiltonian_check",
+    "inversion_check",
+    "ladder_check",
+    "sum_rule_check",
+    "transfer_from_charges",
+    "verify",
+]
+
 ED_AUTO_DIMENSION = 4096
 """``exact_diagonalization="auto"`` compares with exact diagonalization up to this dimension."""
 
