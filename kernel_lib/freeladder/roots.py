@@ -2,20 +2,19 @@
 
 API (plain functions on numpy arrays; no Model needed)
 -----------------------------------------------------
-``chain_real_roots(weights, reach, lowest=None, *, rtol=..., progress=None) -> RealRoots``
+``chain_real_roots(weights, reach, lowest=None, *, rtol=..., max_sweeps=..., progress=None)``
     All roots (or, with ``lowest=k``, the k LARGEST roots y, i.e. the k smallest
     quasi-energies eta = y**(-1/N)) of ``P_M(y)``, where
     ``P_k = P_{k-1} - y w_k P_{k-p-1}``, ``P_k = 1`` for ``k <= 0``, for real positive
     weights ``w_k`` (N = 2 real couplings: ``w = c**2``).  Raises ``ValueError`` naming the
     first offending index for weights that are not finite and > 0 (use the complex path in
     ``spectrum.py`` for those).
-``RealRoots`` (frozen dataclass)
+``RealRoots`` (frozen dataclass, returned by ``chain_real_roots``)
     ``roots``: float64 array, ascending; ``errors``: per-root absolute error estimates
-    (not proofs; ``certify.certify_chain_roots`` turns them into proofs);
-    ``iterations``: sweeps over the chain; ``method``: text; ``count``: number of roots of the
-    whole polynomial (``S``); ``indices``: 0-based positions of ``roots`` among all ``S``
-    roots in ascending order; ``residual_counts_ok``: bool, the count check at the ends of
-    each enclosure passed.
+    (not proofs; ``certify.certify_chain_roots`` turns them into proofs); ``indices``: 0-based
+    positions of ``roots`` among all ``S`` roots in ascending order; ``count``: ``S``;
+    ``sweeps``: passes over the chain; ``evaluations``: points evaluated; ``converged``;
+    ``method``; ``message``.
 ``chain_count_below(weights, reach, y) -> int64 array``
     Number of negative ratios ``P_k(y) / P_{k-1}(y)`` along the recurrence, for each y
     (the number of roots below y, see Notes).
