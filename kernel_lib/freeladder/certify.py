@@ -42,7 +42,7 @@ from typing import Any
 import flint
 import numpy as np
 
-from .roots import _check_chain, chain_root_count
+from .roots import chain_root_count, check_chain_weights
 
 __all__ = ["CertifiedRoots", "ChainEnclosures", "certified_roots", "certify_chain_roots"]
 
@@ -180,7 +180,7 @@ def certify_chain_roots(
     >>> enc.certified, bool(enc.lower[0] <= 0.5 <= enc.upper[0])
     (True, True)
     """
-    w, p = _check_chain(weights, reach)
+    w, p = check_chain_weights(weights, reach)
     y = np.asarray(roots, dtype=np.float64).ravel()
     if y.size == 0 or not np.all(np.isfinite(y)) or np.any(y <= 0):
         raise ValueError("roots must be a non-empty array of finite positive numbers")

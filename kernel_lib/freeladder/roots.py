@@ -95,6 +95,7 @@ __all__ = [
     "chain_inverse_power_sums",
     "chain_real_roots",
     "chain_root_count",
+    "check_chain_weights",
 ]
 
 _TINY = 2.0**-300
@@ -208,7 +209,7 @@ def _sweep_serial(
         _block(w, p, x, b, deriv, counts, first, second)
 
 
-def _check_chain(weights: Any, reach: Any) -> tuple[np.ndarray, int]:
+def check_chain_weights(weights: Any, reach: Any) -> tuple[np.ndarray, int]:
     """Validate real positive weights and the reach; return a contiguous float64 copy."""
     if isinstance(reach, bool) or int(reach) != reach or int(reach) < 1:
         raise ValueError(f"reach must be an integer >= 1, got {reach!r}")
@@ -289,7 +290,7 @@ def chain_count_below(weights: Any, reach: int, y: Any) -> np.ndarray:
     >>> int(chain_count_below([1.0, 1.0], 1, 1.0))  # P_2 = 1 - 2y, root 1/2
     1
     """
-    w, p = _check_chain(weights, reach)
+    w, p = check_chain_weights(weights, reach)
     y_arr = np.asarray(y, dtype=np.float64)
     if not np.all(np.isfinite(y_arr)):
         raise ValueError("evaluation points must be finite")
@@ -308,7 +309,7 @@ def chain_inverse_power_sums(weights: Any, reach: int) -> tuple[float, float]:
     independent terms).  Both follow from ``P(y) = prod (1 - y / y_k)`` (Newton's identities).
     For N = 2 they are ``sum eta**2`` and ``sum eta**4``.
     """
-    w, p = _check_chain(weights, reach)
+    w, p = check_chain_weights(weights, reach)
     c1 = float(np.sum(w))
     near = sum(float(np.dot(w[:-d], w[d:])) for d in range(1, min(p, w.size - 1) + 1))
     c2 = 0.5 * (c1 * c1 - float(np.dot(w, w))) - near
@@ -432,7 +433,7 @@ def chain_real_roots(
     >>> np.allclose(r.roots, 1 / (4 * np.cos(np.pi * np.array([1, 2]) / 5) ** 2))
     True
     """
-    w, p = _check_chain(weights, reach)
+    w, p = check_chain_weights(weights, reach)
     total = chain_root_count(w.size, p)
     if lowest is None:
         first = 0
