@@ -6,6 +6,8 @@ independent sets with networkx (cliques of the complement graph).
 
 from __future__ import annotations
 
+import concurrent.futures
+import copy
 import itertools
 import json
 import math
@@ -261,6 +263,20 @@ def test_polynomial_is_frozen_and_the_cached_object_stays_intact() -> None:
         poly._sums = (1,)  # type: ignore[misc]
     assert fl.exclusion_polynomial(m) is poly and poly.states == 2
     assert isinstance(poly.coefficients, tuple) and isinstance(poly.weights, tuple)
+    assert copy.deepcopy(poly) is poly
+
+
+def test_lazy_coefficients_are_computed_once_under_threads() -> None:
+    # The chain coefficients are computed on first use; concurrent first uses share one result.
+    m = fl.exclusion_chain(300, reach=2, couplings=fl.random_couplings(300, 0.3, 1.7, seed=8))
+    poly = fl.exclusion_polynomial(m)
+    with concurrent.futures.ThreadPoolExecutor(4) as pool:
+        results = list(pool.map(lambda _: poly.weight_sums, range(8)))
+    assert all(r == results[0] for r in results) and len(results[0]) == poly.degree + 1
+    # Reference: the brute-force recurrence on lists (Alcaraz-Pimenta 2020), re-implemented above.
+    assert list(poly.coefficients[:4]) == [
+        float(c) for c in _recurrence([Fraction(c) ** 2 for c in m.couplings], 2)[:4]
+    ]
 
 
 def test_polynomial_to_dict_is_strict_json_with_exact_text() -> None:

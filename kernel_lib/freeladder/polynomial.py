@@ -10,6 +10,11 @@ For an exclusion chain of reach p (terms in chain order, weights ``w_k = c_k^N``
 which is how chains are computed and evaluated here; any other frustration graph goes through
 the exact deletion / simplicial-clique recursion of :mod:`freeladder.independent`.
 
+Also here: the partial polynomials ``P_s(y) = sum_{r <= s} (-y)^r C_r`` and their certified
+roots (:meth:`ExclusionPolynomial.truncated`, :meth:`ExclusionPolynomial.roots`), and the sum
+rules ``sum eta^N = C_1``, ``sum eta^{2N} = C_1^2 - 2 C_2`` (:func:`power_sum_targets`,
+:func:`sum_rules`), the one place every check of them calls.
+
 Arithmetic is exact and chosen from the weights: integers, rationals (a float coupling stands
 for its exact binary value), Gaussian rationals (complex couplings; reported as rounded complex
 numbers) or sympy expressions (symbolic couplings).
@@ -276,9 +281,15 @@ class ExclusionPolynomial:
         can evaluate ``P`` through the recurrence ``P_k = P_{k-1} - y w_k P_{k-p-1}``.
     kind : str
         "integer", "rational", "gaussian" or "symbolic": the exact arithmetic used.
+    truncated_at : int or None
+        s for the partial polynomial ``P_s`` of :meth:`truncated`; None for ``P`` itself.
 
     Notes
     -----
+    Frozen: setting or deleting any attribute raises AttributeError (the object is cached on
+    its model and shared by every later call); the lazily computed coefficients are stored
+    once, under a lock, as a tuple.  :meth:`to_dict` gives the JSON-ready fields,
+    :meth:`truncated` the partial polynomials and :meth:`roots` their certified roots.
     For chains the coefficients are computed on first use (O(M S) exact operations on numbers
     that, for float couplings, grow to about 100 S bits); evaluation never needs them.
     Calling ``P(y)`` evaluates: exactly for exact ``y`` (int, Fraction, sympy) and exact
@@ -335,6 +346,12 @@ class ExclusionPolynomial:
 
     def __delattr__(self, name: str) -> None:
         raise AttributeError(f"ExclusionPolynomial is immutable (cannot delete {name!r})")
+
+    def __copy__(self) -> ExclusionPolynomial:
+        return self  # immutable: a copy is the object itself
+
+    def __deepcopy__(self, memo: dict[int, Any]) -> ExclusionPolynomial:
+        return self
 
     @property
     def states(self) -> int:
