@@ -293,6 +293,12 @@ def test_polynomial_to_dict_is_strict_json_with_exact_text() -> None:
     dg = json.loads(json.dumps(gauss.to_dict(), allow_nan=False))
     assert dg["kind"] == "gaussian"
     assert dg["coefficients"] == [[c.real, c.imag] for c in map(complex, gauss.coefficients)]
+    # Symbolic coefficients: text in both lists (sympy's printer), still strict JSON.
+    a, b, c = sympy.symbols("a b c")
+    sym = fl.exclusion_polynomial(fl.exclusion_chain(3, reach=1, couplings=[a, b, c]))
+    ds = json.loads(json.dumps(sym.to_dict(), allow_nan=False))
+    assert ds["kind"] == "symbolic" and ds["exact_coefficients"][2] == "a**2*c**2"
+    assert sympy.expand(sym.weight_sums[1] - (a**2 + b**2 + c**2)) == 0
     # Beyond the float range: numbers become null, the exact text stays.
     huge = fl.exclusion_polynomial(fl.exclusion_chain(6, reach=1, couplings=[1e200] * 6))
     dh = json.loads(json.dumps(huge.to_dict(), allow_nan=False))
