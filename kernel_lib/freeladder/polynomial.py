@@ -1263,6 +1263,10 @@ def _build(m: Model) -> ExclusionPolynomial:
     n = m.states
     weights = []
     for j, c in enumerate(m.couplings):
+        if type(c) is float and math.isfinite(c):  # fast path: long chains of float couplings
+            num, den = c.as_integer_ratio()
+            weights.append(Fraction(num**n, den**n))
+            continue
         try:
             weights.append(_power(_exact(c), n))
         except (TypeError, ValueError) as err:
