@@ -1261,7 +1261,7 @@ def exclusion_polynomial(m: Model) -> ExclusionPolynomial:
 
 def _build(m: Model) -> ExclusionPolynomial:
     n = m.states
-    weights = []
+    weights: list[Any] = []
     for j, c in enumerate(m.couplings):
         if type(c) is float and math.isfinite(c):  # fast path: long chains of float couplings
             num, den = c.as_integer_ratio()
