@@ -43,6 +43,7 @@ import numpy as np
 import sympy
 
 from .errors import TooLargeError
+from .frozen import readonly_array
 from .graph import chain_structure, frustration_adjacency
 from .independent import Algebra, IndependenceGraph
 from .jsonready import json_ready
@@ -818,8 +819,8 @@ class PolynomialRoots:
     values : numpy.ndarray of complex (read-only)
         The distinct roots, midpoints of their balls, sorted by real then imaginary part.
     error_bounds : numpy.ndarray of float (read-only)
-        Proven bounds on ``|value - root|`` (radius of the real part plus radius of the
-        imaginary part of each ball).
+        Proven bounds on ``|value - root|``: radius of the real part plus radius of the
+        imaginary part of each ball, plus the rounding of the midpoint to float64.
     multiplicities : tuple of int
     degree : int
     rigorous : bool
@@ -837,10 +838,8 @@ class PolynomialRoots:
     message: str
 
     def __post_init__(self) -> None:
-        for name in ("values", "error_bounds"):
-            arr = np.array(getattr(self, name))
-            arr.setflags(write=False)
-            object.__setattr__(self, name, arr)
+        object.__setattr__(self, "values", readonly_array(self.values, dtype=complex))
+        object.__setattr__(self, "error_bounds", readonly_array(self.error_bounds, dtype=float))
         object.__setattr__(self, "multiplicities", tuple(int(k) for k in self.multiplicities))
 
     def to_dict(self) -> dict[str, Any]:
@@ -910,7 +909,12 @@ def _certified_roots(poly: ExclusionPolynomial, tolerance: float) -> PolynomialR
         balls = [(ball, 1) for ball in found]
         method = "python-flint acb_poly.roots (Arb balls)"
     values = np.array([complex(float(b.real.mid()), float(b.imag.mid())) for b, _ in balls])
-    radii = np.array([float(b.real.rad()) + float(b.imag.rad()) for b, _ in balls])
+    # Ball radii, plus the rounding of each midpoint to float64, rounded up once more.
+    eps = float(np.finfo(np.float64).eps)
+    radii = np.array([float(b.real.rad()) + float(b.imag.rad()) for b, _ in balls]) + eps * (
+        np.abs(values.real) + np.abs(values.imag)
+    )
+    radii = radii * (1 + 4 * eps)
     mult = [int(k) for _, k in balls]
     order = np.lexsort((values.imag, values.real))
     return PolynomialRoots(
