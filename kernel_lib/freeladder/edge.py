@@ -35,7 +35,9 @@ import scipy.sparse.csgraph as csgraph
 from .charges import transfer_matrix
 from .clawfree import find_simplicial_clique
 from .errors import NoTheoremError
+from .frozen import readonly_array, readonly_sparse
 from .graph import chain_structure, frustration_adjacency
+from .jsonready import json_ready
 from .model import Model
 from .spectrum import free_spectrum
 from .strings import StringArray, WeylString
@@ -101,6 +103,21 @@ class EdgeMode:
 
     def _repr_html_(self) -> str:
         return f"<p>{html.escape(str(self))}</p><p><small>{html.escape(self.reason)}</small></p>"
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields (the string as text)."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "found": self.found,
+                "string": None if self.string is None else str(self.string),
+                "term": self.term,
+                "clique": self.clique,
+                "exponent": self.exponent,
+                "reason": self.reason,
+                "tried": self.tried,
+                "sites_searched": self.sites_searched,
+            }
+        )
 
 
 def components(m: Model) -> list[tuple[int, ...]]:
@@ -332,6 +349,28 @@ class LadderOperators:
     def edge(self) -> EdgeMode:
         """The edge mode of the first component."""
         return self.edges[0]
+
+    def __post_init__(self) -> None:  # frozen: read-only arrays and matrices, tuples
+        object.__setattr__(self, "quasi_energies", readonly_array(self.quasi_energies))
+        object.__setattr__(self, "component", readonly_array(self.component))
+        for name in ("raising", "lowering"):
+            object.__setattr__(self, name, tuple(readonly_sparse(a) for a in getattr(self, name)))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready summary: quasi-energies, edge mode, dimension, non-zeros per operator.
+
+        The matrices themselves are not included (use :attr:`raising`, :attr:`lowering`).
+        """
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "quasi_energies": self.quasi_energies,
+                "edges": self.edges,
+                "component": self.component,
+                "dimension": self.raising[0].shape[0] if self.raising else None,
+                "raising_nonzeros": [a.nnz for a in self.raising],
+                "lowering_nonzeros": [a.nnz for a in self.lowering],
+            }
+        )
 
     def __repr__(self) -> str:
         etas = ", ".join(f"{v:.6g}" for v in self.quasi_energies[:6])
