@@ -25,6 +25,14 @@ from .charges import (
     charge_series,
     transfer_matrix,
 )
+from .disorder import (
+    LogGapStatistics,
+    disorder_couplings,
+    disordered_chain_gap,
+    interleave,
+    log_gap_statistics,
+    periodic_couplings,
+)
 from .ed import ExactSpectrum, exact_spectrum
 from .edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
 from .graph import (
@@ -43,6 +51,16 @@ from .roots import (
     chain_inverse_power_sums,
     chain_real_roots,
     chain_root_count,
+)
+from .scaling import (
+    EnergyDensity,
+    GapScaling,
+    MixedResidueWarning,
+    PowerLawFit,
+    energy_density,
+    gap_scaling,
+    power_law_fit,
+    smallest_quasi_energy,
 )
 from .spectrum import FreeSpectrum, Level, LevelTable, free_spectrum
 from .strings import StringArray, WeylString, make_string, pauli
@@ -118,5 +136,24 @@ __all__ = [
     "parse_model",
     "random_couplings",
     "staggered",
+    "EnergyDensity",
+    "GapScaling",
+    "LogGapStatistics",
+    "MixedResidueWarning",
+    "PowerLawFit",
+    "disorder_couplings",
+    "disordered_chain_gap",
+    "energy_density",
+    "gap_scaling",
+    "interleave",
+    "log_gap_statistics",
+    "periodic_couplings",
+    "power_law_fit",
+    "smallest_quasi_energy",
+    "sweep",
 ]
 __version__ = "0.1.0"
+
+# Bound after every import: ``fl.sweep`` is the grid runner (freeladder.grid), while the module
+# freeladder.sweep (exact commutator sweeps) stays importable by its full name.
+from .grid import sweep  # noqa: E402
