@@ -57,6 +57,7 @@ from .scaling import (
     GapScaling,
     MixedResidueWarning,
     PowerLawFit,
+    chain_quasi_energy,
     energy_density,
     gap_scaling,
     power_law_fit,
@@ -150,6 +151,7 @@ __all__ = [
     "periodic_couplings",
     "power_law_fit",
     "smallest_quasi_energy",
+    "chain_quasi_energy",
     "sweep",
 ]
 __version__ = "0.1.0"

@@ -27,7 +27,7 @@ import pandas as pd
 from .builders import exclusion_chain
 from .jsonready import json_ready
 from .model import Coupling
-from .scaling import PowerLawFit, power_law_fit, smallest_quasi_energy
+from .scaling import PowerLawFit, chain_quasi_energy, power_law_fit, smallest_quasi_energy
 
 __all__ = [
     "LogGapStatistics",
@@ -177,7 +177,9 @@ def disordered_chain_gap(
     """One disorder realisation: the smallest quasi-energy of a random exclusion chain.
 
     The couplings come from :func:`disorder_couplings` (same parameters); the value from
-    :func:`freeladder.scaling.smallest_quasi_energy`.  With ``reach=1, states=2`` and
+    :func:`freeladder.chain_quasi_energy` on the couplings in chain order (the chain polynomial
+    needs no Model), or from :func:`freeladder.free_spectrum` of the built chain when the
+    weights ``c_j^N`` have several phases.  With ``reach=1, states=2`` and
     ``n_terms = 2 L - 1`` this is the random transverse-field Ising chain of ``L`` sites with
     fields and bonds from one distribution (see :func:`interleave`).
 
@@ -207,8 +209,11 @@ def disordered_chain_gap(
         width=width,
         rng=rng,
     )
-    m = exclusion_chain(n_terms, reach=reach, states=states, couplings=c)
-    gap, bound, _ = smallest_quasi_energy(m)
+    got = chain_quasi_energy(c, reach, states)
+    if got is None:
+        m = exclusion_chain(n_terms, reach=reach, states=states, couplings=c)
+        got = smallest_quasi_energy(m)
+    gap, bound, _ = got
     return {"gap": gap, "log_gap": float(np.log(gap)), "gap_error": bound}
 
 

@@ -44,6 +44,7 @@ __all__ = [
     "PowerLawFit",
     "energy_density",
     "gap_scaling",
+    "chain_quasi_energy",
     "power_law_fit",
     "smallest_quasi_energy",
 ]
@@ -218,7 +219,7 @@ def power_law_fit(
     when that exceeds 1; without errors, the covariance scaled by the residual variance.  The
     systematic error is the largest change of the exponent between the fit and two variants
     that probe the finite-size corrections: the same form without the smallest size (when at
-    least ``parameters + 1`` sizes remain), and the plain power law on the largest half of the
+    least as many sizes as parameters remain), and the plain power law on the largest half of the
     sizes (at least 2; only when a correction was asked for).  The reported ``error`` is
     ``sqrt(statistical^2 + systematic^2)``; it is ``inf`` when there are no spare degrees of
     freedom for the covariance.  With fewer sizes than parameters plus one the correction is
@@ -265,7 +266,7 @@ def power_law_fit(
     exponent = float(params[1])
     statistical = float(math.sqrt(cov[1, 1])) if np.isfinite(cov[1, 1]) else math.inf
     variants: dict[str, float] = {}
-    if x.size - 1 >= n_par + 1:
+    if x.size - 1 >= n_par:
         sub = _single_fit(x[1:], y[1:], None if sig is None else sig[1:], form)[0]
         variants["without the smallest size"] = float(sub[1])
     if form != "none" and (y > 0).all():
@@ -310,15 +311,52 @@ def _residue(m: Model) -> tuple[int | None, int | None]:
     return chain.reach, len(m) % (chain.reach + 1)
 
 
+def chain_quasi_energy(
+    couplings: Sequence[complex] | np.ndarray, reach: int, states: int = 2
+) -> tuple[float, float, str] | None:
+    """``(|eta_1|, error bound, route)`` of the exclusion chain with these couplings, in order.
+
+    When the weights ``w_j = c_j^N`` share one phase ``e^{i theta}`` (real couplings for
+    N = 2, uniform couplings for any N) the chain polynomial is ``P(y) = P_|w|(e^{i theta} y)``:
+    its roots are those of the real chain with weights ``|w_j|`` turned by ``e^{-i theta}``, so
+    ``|eta_1| = y_max^{-1/N}`` with ``y_max`` the largest real root, found alone by
+    :func:`freeladder.chain_real_roots` (``lowest=1``).  Returns None for weights of several
+    phases (then use :func:`freeladder.free_spectrum`).
+
+    Raises
+    ------
+    ArithmeticError
+        When the root finder reports no convergence (the value would be unreliable).
+
+    References
+    ----------
+    F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622
+    (the chain polynomial depends on the couplings only through ``c_j^N``).
+    """
+    n = int(states)
+    w = np.asarray(couplings, dtype=complex) ** n
+    modulus = np.abs(w)
+    if not (np.all(modulus > 0) and np.all(np.isfinite(modulus))):
+        return None
+    phase = w / modulus
+    if not np.all(np.abs(phase - phase[0]) <= _PHASE_TOL):
+        return None
+    found = chain_real_roots(modulus, int(reach), lowest=1)
+    if not found.converged:
+        raise ArithmeticError(
+            f"the largest root of a chain of {w.size} terms did not converge: {found.message}"
+        )
+    y, dy = float(found.roots[-1]), float(found.errors[-1])
+    eta = y ** (-1.0 / n)
+    return eta, eta * dy / (n * y), "largest real root of the chain recurrence"
+
+
 def smallest_quasi_energy(m: Model) -> tuple[float, float, str]:
     """``(|eta_1|, error bound, route)``: the smallest quasi-energy modulus of a model.
 
-    For an exclusion chain whose weights ``w_j = c_j^N`` share one phase ``e^{i theta}``
-    (real couplings for N = 2, uniform couplings for any N) the polynomial is
-    ``P(y) = P_|w|(e^{i theta} y)``: its roots are those of the real chain with weights
-    ``|w_j|`` turned by ``e^{-i theta}``, so ``|eta_1| = y_max^{-1/N}`` with ``y_max`` the
-    largest real root, found alone by :func:`freeladder.chain_real_roots` (``lowest=1``).
-    Any other model goes through :func:`freeladder.free_spectrum` with ``lowest=1``.
+    Exclusion chains whose weights ``c_j^N`` share one phase go through
+    :func:`chain_quasi_energy` (the largest real root alone); any other model through
+    :func:`freeladder.free_spectrum` with ``lowest=1``.
 
     Raises
     ------
@@ -327,21 +365,9 @@ def smallest_quasi_energy(m: Model) -> tuple[float, float, str]:
     """
     chain = chain_structure(m)
     if chain is not None:
-        n = m.states
-        w = np.asarray(m.coupling_array()[chain.order], dtype=complex) ** n
-        modulus = np.abs(w)
-        if np.all(modulus > 0) and np.all(np.isfinite(modulus)):
-            phase = w / modulus
-            if np.all(np.abs(phase - phase[0]) <= _PHASE_TOL):
-                found = chain_real_roots(modulus, chain.reach, lowest=1)
-                if not found.converged:
-                    raise ArithmeticError(
-                        f"the largest root of a chain of {len(m)} terms did not converge: "
-                        f"{found.message}"
-                    )
-                y, dy = float(found.roots[-1]), float(found.errors[-1])
-                eta = y ** (-1.0 / n)
-                return eta, eta * dy / (n * y), "largest real root of the chain recurrence"
+        got = chain_quasi_energy(m.coupling_array()[chain.order], chain.reach, m.states)
+        if got is not None:
+            return got
     sp = free_spectrum(m, lowest=1)
     bound = float(sp.error_bounds[0])
     if not sp.provenance.get("converged", True) or not math.isfinite(bound):
