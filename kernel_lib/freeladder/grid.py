@@ -31,10 +31,12 @@ import pandas as pd
 
 __all__ = ["sweep"]
 
-_RESERVED = ("stream",)
+_RESERVED = ("stream", "realisation")
 
 
-def _points(grid: Mapping[str, Sequence[Any]]) -> tuple[list[str], list[dict[str, Any]]]:
+def _points(
+    grid: Mapping[str, Sequence[Any]], repeat: int
+) -> tuple[list[str], list[dict[str, Any]], list[int | None]]:
     if not isinstance(grid, Mapping) or not grid:
         raise ValueError("grid must be a non-empty dict of {name: list of values}")
     keys = [str(k) for k in grid]
@@ -50,7 +52,14 @@ def _points(grid: Mapping[str, Sequence[Any]]) -> tuple[list[str], list[dict[str
     for k in keys:
         if k in _RESERVED:
             raise ValueError(f"grid key {k!r} is reserved for the table")
-    return keys, [dict(zip(keys, combo, strict=True)) for combo in itertools.product(*values)]
+    if isinstance(repeat, bool) or int(repeat) != repeat or repeat < 1:
+        raise ValueError(f"repeat must be a positive integer, got {repeat!r}")
+    points, labels = [], []
+    for combo in itertools.product(*values):
+        for r in range(int(repeat)):
+            points.append(dict(zip(keys, combo, strict=True)))
+            labels.append(r if repeat > 1 else None)
+    return keys, points, labels
 
 
 def _random_keyword(function: Callable[..., Any]) -> str | None:
@@ -103,10 +112,15 @@ def _batches(items: list[Any], workers: int) -> list[list[Any]]:
     return [items[i : i + size] for i in range(0, len(items), size)]
 
 
-def _columns(keys: list[str], done: dict[int, Any], points: list[dict[str, Any]]) -> pd.DataFrame:
+def _columns(
+    keys: list[str], done: dict[int, Any], points: list[dict[str, Any]], labels: list[int | None]
+) -> pd.DataFrame:
     rows = []
     for i in sorted(done):
         row = dict(points[i])
+        row["stream"] = i
+        if labels[i] is not None:
+            row["realisation"] = labels[i]
         result = done[i]
         if isinstance(result, Mapping):
             for name, value in result.items():
@@ -118,7 +132,7 @@ def _columns(keys: list[str], done: dict[int, Any], points: list[dict[str, Any]]
         else:
             row["result"] = result
         rows.append(row)
-    return pd.DataFrame(rows, columns=None if rows else keys)
+    return pd.DataFrame(rows, columns=None if rows else [*keys, "stream"])
 
 
 def _is_dask_client(executor: Any) -> bool:
@@ -131,6 +145,7 @@ def sweep(
     executor: Any = None,
     seed: int | np.random.SeedSequence | None = None,
     progress: bool = True,
+    repeat: int = 1,
 ) -> pd.DataFrame:
     """``function(**point)`` over the Cartesian product of ``grid``, as a pandas DataFrame.
 
@@ -155,12 +170,16 @@ def sweep(
         fresh entropy, kept in ``df.attrs["seed"]`` so that the run can be repeated.
     progress : bool
         Show a progress bar (tqdm.auto).
+    repeat : int
+        Evaluate every grid point this many times, each with its own random stream (disorder
+        realisations); the table then has a column ``realisation`` (0 .. repeat - 1).
 
     Returns
     -------
     pandas.DataFrame
-        One row per finished point, in grid order: the grid keys, ``stream`` (the point's
-        index, the spawn key of its random stream) and the results.  ``df.attrs`` holds
+        One row per finished evaluation, in grid order: the grid keys, ``stream`` (the
+        evaluation's index, the spawn key of its random stream), ``realisation`` (with
+        ``repeat > 1``) and the results.  ``df.attrs`` holds
         ``complete`` (False after an interrupt), ``points`` (how many were asked for),
         ``seed`` (the root entropy, or None when the function takes no random stream),
         ``executor`` (text) and ``seconds``.
@@ -192,7 +211,7 @@ def sweep(
 
     if not callable(function):
         raise ValueError(f"function must be callable, got {type(function).__name__}")
-    keys, points = _points(grid)
+    keys, points, labels = _points(grid, repeat)
     keyword = _random_keyword(function)
     streams: list[np.random.SeedSequence | None]
     entropy: Any = None
@@ -230,9 +249,7 @@ def sweep(
             )
     finally:
         bar.close()
-    df = _columns(keys, done, points)
-    if "stream" not in df.columns:
-        df.insert(len(keys), "stream", sorted(done))
+    df = _columns(keys, done, points, labels)
     df.attrs.update(
         complete=complete,
         points=len(points),
@@ -268,9 +285,11 @@ def _run_pool(
     else:
         pool = executor
         workers = getattr(executor, "_max_workers", os.cpu_count() or 1)
-    futures = [pool.submit(_call_batch, function, b, keyword) for b in _batches(items, workers)]
+    futures: list[cf.Future[Any]] = []
     complete = True
     try:
+        for b in _batches(items, workers):
+            futures.append(pool.submit(_call_batch, function, b, keyword))
         _collect(cf.as_completed(futures), done, bar)
     except KeyboardInterrupt:
         complete = False
