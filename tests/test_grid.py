@@ -121,6 +121,8 @@ def test_errors_name_the_grid_point() -> None:
         fl.sweep(_add, {"a": [], "b": [1]}, progress=False)
     with pytest.raises(ValueError, match="executor"):
         fl.sweep(_add, {"a": [1], "b": [1]}, executor=3, progress=False)
+    with pytest.raises(ValueError, match="executor"):
+        fl.sweep(_add, {"a": [1], "b": [1]}, executor="process", progress=False)
     with pytest.raises(ValueError, match="reserved"):
         fl.sweep(_add, {"stream": [1], "b": [1]}, progress=False)
 

@@ -238,7 +238,7 @@ def sweep(
                     bar.update(1)
             except KeyboardInterrupt:
                 complete = False
-        elif _is_dask_client(executor) or isinstance(executor, str) and executor != "processes":
+        elif _is_dask_client(executor) or isinstance(executor, str) and ":" in executor:
             described, complete = _run_dask(executor, function, items, keyword, done, bar)
         elif executor == "processes" or isinstance(executor, cf.Executor):
             described, complete = _run_pool(executor, function, items, keyword, done, bar)

@@ -533,7 +533,9 @@ def gap_scaling(
     >>> abs(r.z - 1) < 3 * r.z_error + 1e-6
     True
     """
-    if not (residue in ("auto", "pooled") or (isinstance(residue, int) and residue >= 0)):
+    if isinstance(residue, bool) or not (
+        residue in ("auto", "pooled") or (isinstance(residue, int) and residue >= 0)
+    ):
         raise ValueError(f"residue must be 'auto', 'pooled' or an int >= 0, not {residue!r}")
     from tqdm.auto import tqdm
 
@@ -726,7 +728,9 @@ def energy_density(
     (rounding errors are far below the misfit); the statistical error of ``e_inf`` comes from
     the residual variance, the systematic error is the largest change of ``e_inf`` when
     dropping the ``1 / L^2`` term (fit on the largest half of the sizes) or the smallest size;
-    ``error = sqrt(statistical^2 + systematic^2)``.
+    ``error = sqrt(statistical^2 + systematic^2)``.  For N > 2 the complete spectrum comes from
+    the complex root finder, whose cost grows like the square of the number of terms: keep to a
+    few thousand terms there.
 
     References
     ----------
