@@ -20,12 +20,12 @@ import scipy.sparse as sps
 
 import freeladder as fl
 from freeladder import certify, roots, roots_complex
+from freeladder.charge_sweep import commutator_sweep
 from freeladder.charges import charge_series
 from freeladder.clawfree import find_even_hole
 from freeladder.edge import edge_mode, ladder_operators
 from freeladder.linegraph import line_graph_root
 from freeladder.polynomial import sum_rules
-from freeladder.sweep import commutator_sweep
 from freeladder.thermo import thermodynamics
 
 

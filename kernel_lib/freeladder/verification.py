@@ -45,6 +45,7 @@ import scipy.sparse as sps
 from tqdm.auto import tqdm
 
 from .analysis import Analysis, analyze
+from .charge_sweep import SweepResult, commutator_sweep, inversion_sweep
 from .charges import charge
 from .ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
 from .edge import components, ladder_operators
@@ -56,7 +57,6 @@ from .operators import StringSum
 from .polynomial import exclusion_polynomial
 from .references import ALCARAZ_PIMENTA_2020, ELMAN_CHAPMAN_FLAMMIA_2021, FENDLEY_2019
 from .spectrum import FreeSpectrum
-from .sweep import SweepResult, commutator_sweep, inversion_sweep
 
 __all__ = [
     "ED_AUTO_DIMENSION",
