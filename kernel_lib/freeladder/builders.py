@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 import numbers
+from collections.abc import Sequence
 from typing import Any
 
 import numpy as np
@@ -99,7 +100,7 @@ def _coupling_list(couplings: Any, count: int, what: str, symbol: str = "c") -> 
 
 def exclusion_chain(
     n_terms: int,
-    reach: int = 1,
+    reach: int | Sequence[int] = 1,
     states: int = 2,
     couplings: Any = "uniform",
 ) -> Model:
@@ -112,8 +113,11 @@ def exclusion_chain(
     ----------
     n_terms : int
         M >= 1, the number of terms.
-    reach : int
-        p >= 1.  p = 1, N = 2 is the transverse-field Ising chain up to a basis change.
+    reach : int or sequence of int
+        p >= 1.  p = 1, N = 2 is the transverse-field Ising chain up to a basis change.  A
+        sequence gives each term its own reach ``p_j`` (a variable-range chain); when the ends
+        ``j + p_j`` never decrease, the frustration graph is an oriented indifference graph and
+        the spectrum is free (Mann-Elman-Wood-Chapman 2024; Alcaraz 2025).
     states : int
         N >= 2.
     couplings : "uniform", "symbols", number or sequence
@@ -127,24 +131,47 @@ def exclusion_chain(
     ----------
     P. Fendley, J. Phys. A 52, 335002 (2019), arXiv:1901.08078 (N = 2, p = 2);
     F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622
-    (general p and N).
+    (general p and N); F. C. Alcaraz, arXiv:2512.08011 (2025) (variable range);
+    R. L. Mann, S. J. Elman, D. R. Wood and A. Chapman, arXiv:2408.09684 (2024).
 
     Examples
     --------
     >>> m = exclusion_chain(4, reach=2)
     >>> print(m)
     X0 Z1 Z2 + X1 Z2 Z3 + X2 Z3 Z4 + X3 Z4 Z5
+    >>> print(exclusion_chain(3, reach=[1, 2, 1], states=3))
+    X0 Z1 + X1 Z2 Z3 + X2 Z3
     """
     m_terms = _check_count(n_terms, "exclusion_chain: n_terms")
-    p = _check_count(reach, "exclusion_chain: reach", 1, max(1, MAX_BUILD_TERMS // m_terms))
+    if isinstance(reach, (int, np.integer)) and not isinstance(reach, bool):
+        p = _check_count(reach, "exclusion_chain: reach", 1, max(1, MAX_BUILD_TERMS // m_terms))
+        reaches = np.full(m_terms, p, dtype=np.int64)
+    else:
+        if isinstance(reach, (str, bytes)) or not isinstance(reach, (Sequence, np.ndarray)):
+            raise TypeError(
+                f"exclusion_chain: reach must be an integer or a sequence of integers, "
+                f"got {reach!r:.60}"
+            )
+        if len(reach) != m_terms:
+            raise ValueError(f"exclusion_chain: {len(reach)} reaches for {m_terms} terms")
+        reaches = np.array(
+            [_check_count(r, f"exclusion_chain: reach[{j}]", 1) for j, r in enumerate(reach)],
+            dtype=np.int64,
+        )
+        if int(reaches.sum()) > MAX_BUILD_TERMS:
+            raise ValueError(
+                f"exclusion_chain: {int(reaches.sum())} operator factors exceed the limit "
+                f"{MAX_BUILD_TERMS}"
+            )
     n = check_states(states, "exclusion_chain")
     values = _coupling_list(couplings, m_terms, "exclusion_chain")
-    n_sites = m_terms + p
     rows = np.arange(m_terms)
+    n_sites = int((rows + reaches).max()) + 1
     x = sps.csr_array((np.ones(m_terms, np.int64), (rows, rows)), shape=(m_terms, n_sites))
-    zr = np.repeat(rows, p)
-    zc = (rows[:, None] + np.arange(1, p + 1)[None, :]).ravel()
-    z = sps.csr_array((np.ones(m_terms * p, np.int64), (zr, zc)), shape=(m_terms, n_sites))
+    zr = np.repeat(rows, reaches)
+    offsets = np.arange(len(zr)) - np.repeat(np.cumsum(reaches) - reaches, reaches) + 1
+    zc = zr + offsets
+    z = sps.csr_array((np.ones(len(zr), np.int64), (zr, zc)), shape=(m_terms, n_sites))
     arr = StringArray(x, z, np.zeros(m_terms, np.int64), n, range(n_sites))
     return Model(arr, values)
 
