@@ -10,9 +10,11 @@ from .builders import (
     clock_chain,
     complex_couplings,
     exclusion_chain,
+    honeycomb_hexagons,
     ising_chain,
     ising_lattice,
     kitaev_honeycomb,
+    kitaev_torus,
     random_couplings,
     staggered,
 )
@@ -78,6 +80,8 @@ from .verdict import ComponentVerdict, Guarantee, Verdict, classify, guarantee
 from .verification import Check, Report, verify
 
 __all__ = [
+    "honeycomb_hexagons",
+    "kitaev_torus",
     "IndifferenceOrder",
     "indifference_order",
     "SectorSpectrum",

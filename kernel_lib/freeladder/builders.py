@@ -13,9 +13,11 @@ import sympy
 
 from .model import Coupling, Model
 from .scalars import check_scalar
-from .strings import StringArray, check_states, make_string, pauli
+from .strings import StringArray, WeylString, check_states, make_string, pauli
 
 __all__ = [
+    "honeycomb_hexagons",
+    "kitaev_torus",
     "MAX_BUILD_TERMS",
     "clock_chain",
     "complex_couplings",
@@ -276,6 +278,64 @@ def kitaev_honeycomb(
     return Model.from_terms(
         terms, states=2, sites=[(r, c) for r in range(rows) for c in range(cols)]
     )
+
+
+def kitaev_torus(
+    cells_x: int, cells_y: int, jx: Coupling = 1.0, jy: Coupling = 1.0, jz: Coupling = 1.0
+) -> Model:
+    """Kitaev's honeycomb model on a torus of ``cells_x x cells_y`` unit cells (2 sites each).
+
+    Sites are ``(s, x, y)``: ``s = 0`` (sublattice A) or 1 (B) in cell ``(x, y)``, periodic in
+    both directions.  Each B site has one bond of each kind: ``Z Z`` to A in its own cell,
+    ``X X`` to A in cell ``(x + 1, y)`` and ``Y Y`` to A in cell ``(x, y + 1)``;
+    ``H = sum J_x X X + J_y Y Y + J_z Z Z`` over the ``3 cells_x cells_y`` bonds.  Its hexagons'
+    conserved strings are :func:`honeycomb_hexagons`.
+
+    References
+    ----------
+    A. Kitaev, Ann. Phys. 321, 2 (2006), arXiv:cond-mat/0506438.
+
+    Examples
+    --------
+    >>> m = kitaev_torus(2, 2)
+    >>> len(m), len(m.sites)
+    (12, 8)
+    """
+    nx_ = _check_count(cells_x, "kitaev_torus: cells_x", 1)
+    ny_ = _check_count(cells_y, "kitaev_torus: cells_y", 1)
+    cx, cy, cz = (check_scalar(v, name) for v, name in ((jx, "jx"), (jy, "jy"), (jz, "jz")))
+    terms = []
+    for x in range(nx_):
+        for y in range(ny_):
+            b = (1, x, y)
+            terms.append((cz, pauli("ZZ", [(0, x, y), b])))
+            terms.append((cx, pauli("XX", [b, (0, (x + 1) % nx_, y)])))
+            terms.append((cy, pauli("YY", [b, (0, x, (y + 1) % ny_)])))
+    sites = [(s, x, y) for s in (0, 1) for x in range(nx_) for y in range(ny_)]
+    return Model.from_terms(terms, states=2, sites=sites)
+
+
+def honeycomb_hexagons(cells_x: int, cells_y: int) -> tuple[WeylString, ...]:
+    """The conserved string of each hexagon of :func:`kitaev_torus` (the product of its six
+    bond terms, normalised), one per unit cell.
+
+    Examples
+    --------
+    >>> len(honeycomb_hexagons(3, 3))
+    9
+    """
+    nx_ = _check_count(cells_x, "honeycomb_hexagons: cells_x", 1)
+    ny_ = _check_count(cells_y, "honeycomb_hexagons: cells_y", 1)
+    out = []
+    for x in range(nx_):
+        for y in range(ny_):
+            xp, ym = (x + 1) % nx_, (y - 1) % ny_
+            ring = [(0, x, y), (1, x, y), (0, xp, y), (1, xp, ym), (0, xp, ym), (1, x, ym)]
+            product = make_string(2, [])
+            for k, letter in enumerate("ZXYZXY"):  # the bond kinds around the hexagon
+                product = product * pauli(letter * 2, [ring[k], ring[(k + 1) % 6]])
+            out.append(product.normalized()[0])
+    return tuple(out)
 
 
 def clock_chain(n_sites: int, field: Any = 1.0, bond: Any = 1.0, states: int = 3) -> Model:
