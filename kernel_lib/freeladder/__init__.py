@@ -15,7 +15,7 @@ from .builders import (
     random_couplings,
     staggered,
 )
-from .certify import CertifiedRoots, ChainEnclosures, certified_roots, certify_chain_roots
+from .certify import certified_roots, certify_chain_roots
 from .charges import ChargeStep, ChargeTerm, charge, charge_series, transfer_matrix
 from .ed import ExactSpectrum, exact_spectrum
 from .edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
@@ -29,8 +29,9 @@ from .graph import (
 from .model import Model, Term
 from .operators import StringSum
 from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
+from .root_methods import ROOT_METHODS, RootMethod
+from .root_result import RootResult
 from .roots import (
-    RealRoots,
     chain_count_below,
     chain_inverse_power_sums,
     chain_real_roots,
@@ -47,9 +48,9 @@ from .verify import Check, Report, verify
 __all__ = [
     "ChainData",
     "ChainStructure",
-    "CertifiedRoots",
-    "ChainEnclosures",
-    "RealRoots",
+    "ROOT_METHODS",
+    "RootMethod",
+    "RootResult",
     "certified_roots",
     "certify_chain_roots",
     "chain_count_below",

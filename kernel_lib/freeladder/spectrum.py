@@ -29,11 +29,9 @@ from typing import Any, overload
 
 import numpy as np
 
-from . import certify, roots
+from . import root_methods
 from .graph import chain_structure, frustration_adjacency
 from .model import Model
-from .polynomial import exclusion_polynomial
-from .roots_complex import aberth_chain_roots, certified_complex_roots
 from .verdict import classify
 
 LEVEL_LIMIT = 2**22
@@ -565,44 +563,27 @@ def free_spectrum(m: Model, method: str = "auto", lowest: int | None = None) -> 
             "not form an exclusion chain; use method='auto' or 'certified'"
         )
     if chain is not None:
-        w = couplings[chain.order] ** n
         reach = chain.reach
         guaranteed, guarantee = (
             True,
             (f"exclusion chain of reach {reach} (Alcaraz-Pimenta 2020): free spectrum for any N"),
         )
-        real_path = n == 2 and np.isrealobj(couplings) and bool(np.all(w > 0))
-        if real_path:
-            y, y_err, prov = _real_chain(np.asarray(w, dtype=float), reach, method, lowest)
-            x_err = None
+        if method == "certified" and not (n == 2 and np.isrealobj(couplings)):
+            found = root_methods.solve_general(m)
         else:
-            x, x_err, prov = _complex_chain(np.asarray(w, dtype=complex), reach, n, method, m)
-            y, y_err = None, None
+            found = root_methods.solve_chain(couplings[chain.order], reach, n, method, lowest)
     else:
         reach = None
         guaranteed, guarantee = _general_guarantee(m)
-        x, x_err, prov = _general(m)
-        y, y_err = None, None
-    # -- quasi-energies ------------------------------------------------------------------------
-    if y is not None:
-        assert y_err is not None
-        eta = y ** (-1.0 / n)
-        eta_err = eta * np.expm1(-np.log1p(-np.minimum(y_err / y, 0.5)) / n)
-        eta_err = np.where(y_err < 0.5 * y, eta_err, np.inf)
-        x_vals = 1.0 / y
-        y_vals = y.astype(complex)
-    else:
-        assert x_err is not None
-        eta = _principal_root(x, n)
-        ax = np.abs(x)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            eta_err = np.where(
-                x_err < ax,
-                -(ax ** (1.0 / n)) * np.expm1(np.log1p(-np.minimum(x_err / ax, 1.0)) / n),
-                np.abs(eta) + (ax + x_err) ** (1.0 / n),
-            )
-            y_vals = 1.0 / x
-        x_vals = x
+        found = root_methods.solve_general(m)
+    prov = root_methods.provenance(found)
+    # -- quasi-energies (root_result scales back without overflow) -----------------------------
+    eta, eta_err = found.quasi_energies(n)
+    true = found.true_values()[0]
+    with np.errstate(divide="ignore", over="ignore", under="ignore"):
+        y_vals = np.asarray(true if found.variable == "y" else 1.0 / true, dtype=complex)
+        x_scaled = found.values if found.variable == "x" else 1.0 / found.values
+    x_vals = x_scaled * 2.0 ** (found.weight_log2 % n)  # x / unit**N, unit as below
     sort = np.argsort(np.abs(eta), kind="stable")
     eta, eta_err, x_vals, y_vals = eta[sort], eta_err[sort], x_vals[sort], y_vals[sort]
     count = prov.pop("count", len(eta))
@@ -611,7 +592,8 @@ def free_spectrum(m: Model, method: str = "auto", lowest: int | None = None) -> 
         eta, eta_err, x_vals, y_vals = eta[:keep], eta_err[:keep], x_vals[:keep], y_vals[:keep]
     complete = len(eta) == count
     if complete:
-        prov["sum_rules"] = _sum_rules(m, couplings, x_vals, chain)
+        unit = 2.0 ** (found.weight_log2 // n)  # both rules are homogeneous in c and x
+        prov["sum_rules"] = _sum_rules(m, couplings / unit, x_vals, chain)
     prov["count"] = count
     prov["guaranteed"] = guaranteed
     prov["guarantee"] = guarantee
@@ -632,99 +614,6 @@ def free_spectrum(m: Model, method: str = "auto", lowest: int | None = None) -> 
         complete,
         prov,
     )
-
-
-def _principal_root(x: np.ndarray, n: int) -> np.ndarray:
-    """Principal ``x^(1/n)``; real and positive when ``x`` is."""
-    if np.isrealobj(x) and np.all(x > 0):
-        return x ** (1.0 / n)
-    return np.power(x.astype(complex), 1.0 / n)
-
-
-def _real_chain(
-    w: np.ndarray, reach: int, method: str, lowest: int | None
-) -> tuple[np.ndarray, np.ndarray, dict[str, Any]]:
-    found = roots.chain_real_roots(w, reach, lowest=lowest)
-    y = np.asarray(found.roots, dtype=float)
-    err = np.asarray(found.errors, dtype=float)
-    prov: dict[str, Any] = {
-        "method": "fast",
-        "path": f"real roots of the chain recurrence ({found.method})",
-        "iterations": int(found.sweeps),
-        "evaluations": int(found.evaluations),
-        "converged": bool(found.converged),
-        "message": found.message,
-        "count": int(found.count),
-        "bounds": "error estimates of the real root finder (not proofs)",
-    }
-    if method == "certified":
-        enc = certify.certify_chain_roots(w, reach, y, err)
-        if not enc.certified:
-            raise ValueError(f"the real chain roots could not be certified: {enc.message}")
-        y = 0.5 * (np.asarray(enc.lower) + np.asarray(enc.upper))
-        err = np.asarray(enc.radius, dtype=float)
-        prov.update(
-            method="certified",
-            path=prov["path"] + "; certified by sign changes in ball arithmetic",
-            bounds=f"rigorous: each interval holds exactly one root ({enc.precision} bits)",
-        )
-    return y, err, prov
-
-
-def _complex_chain(
-    w: np.ndarray, reach: int, n: int, method: str, m: Model
-) -> tuple[np.ndarray, np.ndarray, dict[str, Any]]:
-    if method == "certified":
-        x, x_err, prov = _general(m)
-        prov["path"] = "exact chain polynomial, certified complex roots (python-flint)"
-        return x, x_err, prov
-    found = aberth_chain_roots(w, reach, order=n)
-    prov = {
-        "method": "fast",
-        "path": "Aberth-Ehrlich iteration on the chain recurrence (complex plane)",
-        "iterations": found.iterations,
-        "evaluations": found.evaluations,
-        "start": found.start,
-        "converged": bool(np.all(found.converged)),
-        "isolated": bool(np.all(found.isolated)),
-        "bounds": (
-            "inclusion discs n|W_k| (Weierstrass/Gerschgorin, Braess-Hadeler 1973) with a "
-            "statistical rounding-error estimate: estimates, not proofs"
-        ),
-        "count": len(found.x),
-    }
-    return found.x, found.radius, prov
-
-
-def _general(m: Model) -> tuple[np.ndarray, np.ndarray, dict[str, Any]]:
-    """Roots through the exact polynomial: reciprocal roots ``x = 1 / y`` and radii in x."""
-    poly = exclusion_polynomial(m)
-    re_parts, im_parts = poly.exact_parts()
-    if all(v == 0 for v in im_parts):
-        found = certify.certified_roots(list(re_parts))
-        y = np.repeat(np.asarray(found.midpoints), np.asarray(found.multiplicities))
-        y_rad = np.repeat(np.asarray(found.radii), np.asarray(found.multiplicities))
-        how = f"fmpq_poly.complex_roots, {found.precision} bits"
-    else:
-        y, y_rad = certified_complex_roots(re_parts, im_parts)
-        how = "acb_poly roots of the exact Gaussian-rational polynomial"
-    if np.any(y == 0) or len(y) != poly.degree:
-        raise ValueError(
-            "the exclusion polynomial has a root at y = 0 or lost degree; P(0) must be 1"
-        )
-    x = 1.0 / y
-    ay = np.abs(y)
-    # |1/y - 1/y'| <= r / (|y| (|y| - r)) for |y - y'| <= r < |y|.
-    with np.errstate(divide="ignore"):
-        x_rad = np.where(y_rad < ay, y_rad / (ay * (ay - y_rad)), np.inf)
-    prov = {
-        "method": "certified",
-        "path": f"exact exclusion polynomial ({poly.kind}), certified roots ({how})",
-        "iterations": 0,
-        "bounds": "rigorous isolating balls of the roots of the exact polynomial",
-        "count": poly.degree,
-    }
-    return x, x_rad, prov
 
 
 def _general_guarantee(m: Model) -> tuple[bool, str]:
