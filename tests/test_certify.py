@@ -18,29 +18,33 @@ def test_enclosures_contain_mpmath_roots(reach, m, seed):
     w = random_weights(m, seed)
     ref = mpmath_roots(w, reach)
     r = chain_real_roots(w, reach)
-    enc = certify_chain_roots(w, reach, r.roots, r.errors)
-    assert enc.certified, enc.message
+    enc = certify_chain_roots(w, reach, r.values, r.error_bounds)
+    assert enc.rigorous, enc.message
+    lower, upper = enc.details["lower"], enc.details["upper"]
     with mpmath.workdps(60):
-        for lo, hi, root in zip(enc.lower, enc.upper, ref, strict=True):
+        for lo, hi, root, mid, rad in zip(
+            lower, upper, ref, enc.values, enc.error_bounds, strict=True
+        ):
             assert mpmath.mpf(float(lo)) <= root <= mpmath.mpf(float(hi))
-    assert np.all(enc.radius <= 1e-13 * r.roots)
+            assert abs(mpmath.mpf(float(mid)) - root) <= mpmath.mpf(float(rad))
+    assert np.all(enc.error_bounds <= 1e-13 * r.values)
 
 
 def test_wrong_roots_are_not_certified():
     w = random_weights(40, 4)
     r = chain_real_roots(w, 2)
-    shifted = r.roots.copy()
-    shifted[3] = 0.5 * (r.roots[3] + r.roots[4])  # between two roots: no sign change nearby
+    shifted = r.values.copy()
+    shifted[3] = 0.5 * (r.values[3] + r.values[4])  # between two roots: no sign change nearby
     enc = certify_chain_roots(w, 2, shifted, np.full(shifted.size, 1e-14), widenings=1)
-    assert not enc.certified
-    assert not enc.sign_change[3] and enc.sign_change[0]
+    assert not enc.rigorous and "NOT certified" in enc.message
+    assert not enc.details["sign_change"][3] and enc.details["sign_change"][0]
 
 
 def test_partial_set_is_not_a_full_certificate():
     w = random_weights(60, 5)
     top = chain_real_roots(w, 2, lowest=3)
-    enc = certify_chain_roots(w, 2, top.roots, top.errors)
-    assert np.all(enc.sign_change) and not enc.certified
+    enc = certify_chain_roots(w, 2, top.values, top.error_bounds)
+    assert np.all(enc.details["sign_change"]) and not enc.rigorous
     assert "odd number" in enc.message
 
 
@@ -51,22 +55,23 @@ def test_certified_roots_against_mpmath():
     with mpmath.workdps(60):
         ref = mpmath.polyroots([mpmath.mpf(c.numerator) / c.denominator for c in reversed(coeffs)])
     for z in ref:
-        dist = np.abs(got.midpoints - complex(z))
-        assert np.min(dist) <= got.radii[np.argmin(dist)] + 1e-300
-    assert np.all(got.radii < 1e-15) and list(got.multiplicities) == [1, 1, 1, 1]
+        dist = np.abs(got.values - complex(z))
+        assert np.min(dist) <= got.error_bounds[np.argmin(dist)] + 1e-300
+    assert np.all(got.error_bounds < 1e-15)
+    assert list(got.details["multiplicities"]) == [1, 1, 1, 1]
 
 
 def test_certified_roots_of_a_chain_match_the_fast_roots():
     w = random_weights(60, 6)
     balls = certified_roots(exact_coefficients(w, 2))
     r = chain_real_roots(w, 2)
-    np.testing.assert_allclose(np.sort(balls.midpoints.real), r.roots, rtol=1e-14)
+    np.testing.assert_allclose(np.sort(balls.values.real), r.values, rtol=1e-14)
 
 
 def test_multiplicity_reported():
     got = certified_roots([1, -2, 1])  # (1 - y)^2
-    assert list(got.multiplicities) == [2]
-    assert abs(got.midpoints[0] - 1) <= got.radii[0]
+    assert list(got.details["multiplicities"]) == [2, 2] and got.count == 2
+    assert np.all(np.abs(got.values - 1) <= got.error_bounds)
 
 
 def test_errors():

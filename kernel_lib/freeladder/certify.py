@@ -21,20 +21,23 @@ positive products).  If ``S`` pairwise disjoint intervals each show a certified 
 
     r_k = 1 - y w_k / (r_{k-1} r_{k-2} ... r_{k-p}),      r_k = 1 for k <= 0,
 
-evaluated in interval arithmetic at FIXED working precision: float64 with every result
-rounded outward by one unit in the last place (round-to-nearest is off by at most half a
-unit, so each interval provably holds the exact value), in compiled code (numba), over all
-end points at once, O(M) per end point.  For reach 1 each step is a monotone function of one
-interval, so the enclosure is tight and stays at rounding level along any chain (the
-ratios contract): this certifies 10^5-term chains.  For reach p >= 2 the p previous ratios
-are enclosed by a box that forgets their correlation (the wrapping effect), and the width
-was measured to grow by about 1.26 per step on random reach-2 chains, so most end points of
-long chains stay undecided there.  Undecided end points go to the linear recurrence
-``P_k = P_{k-1} - y w_k P_{k-p-1}`` in python-flint arb balls, doubling the precision from 64
-bits up to ``max_precision`` (the precision needed grows with M: this part does not scale);
-if still undecided the interval is widened (by 4, never past 0.45 of the distance to a
-neighbour) and tested again; an interval that never shows a sign change is reported, never
-passed.  Nothing here uses the root-count property of ``roots.chain_count_below``.
+evaluated in interval arithmetic at FIXED working precision: float64, each ``1 / r_k`` kept
+as a sign and a magnitude interval, every bound rounded outward by ``2**-51`` relative
+(round-to-nearest is off by at most ``2**-53``, so each interval provably holds the exact
+value; magnitudes below ``2**-960`` count as undecided, away from underflow), in compiled
+code (numba) over 64 end points per pass, O(M) per end point.  For reach 1 each step is a
+monotone function of one interval, so the enclosure stays at rounding level wherever the
+exact ratio map contracts; an end point too close to the root (closer than the rounding
+error amplified along the chain) stays undecided, and widening the interval decides it.
+For reach p >= 2 the p previous ratios are enclosed by a box that forgets their correlation
+(the wrapping effect): the width was measured to grow by about 1.26 per step on random
+reach-2 chains, so most end points of long chains stay undecided in float64.  Those go to
+the linear recurrence ``P_k = P_{k-1} - y w_k P_{k-p-1}`` in python-flint arb balls,
+doubling the precision from 64 bits up to ``max_precision`` (the precision needed grows with
+M: this part does not scale).  Still undecided (for reach 1 at once), an interval is widened
+(by 4, never past 0.45 of the distance to a neighbour) and tested again; an interval that
+never shows a sign change is reported, never passed.  Nothing here uses the root-count
+property of ``roots.chain_count_below``.
 The weights may be given as intervals (``weight_bounds``), so that the rounding of
 ``w = c^N`` from the couplings is covered too.
 
@@ -60,53 +63,70 @@ from .roots import chain_root_count, check_chain_weights
 __all__ = ["certified_roots", "certify_chain_roots"]
 
 _EPS = float(np.finfo(np.float64).eps)
-_ARB_STEPS = 2e6  # reach 1: ball steps per precision round at most (about 10 s in Python)
 
 
-@njit(cache=True, inline="always")
-def _dn(v: float) -> float:  # pragma: no cover - compiled
-    """A float below the exact value that ``v`` rounds (to nearest).
+_DOWN = 1.0 - 2.0**-51  # v * _DOWN rounds below the exact value that v approximates
+_UP = 1.0 + 2.0**-51
+_SMALL = 2.0**-960  # magnitudes below this count as undecided (far from underflow)
+_LANES = 64  # points that share one pass over the chain
 
-    ``|exact - v| <= 2**-53 |v|`` (no underflow), and ``RN(v - 2**-51 |v|)`` lies below
-    ``v - 2**-53 |v|`` (its own rounding error is at most ``2**-53 |v|``).  Tiny values are
-    sent to -inf/+inf so that the interval counts as undecided.
+
+@njit(cache=True, boundscheck=False, error_model="numpy")
+def _interval_block(
+    wlo: np.ndarray, whi: np.ndarray, p: int, ys: np.ndarray, start: int, out: np.ndarray
+) -> None:  # pragma: no cover - compiled
+    """Signs of ``P_M`` at ``ys[start:start + _LANES]`` for every weight vector in the box.
+
+    Each ratio ``r_k`` is an interval that excludes 0 (else the point is undecided), so each
+    ``1 / r_k`` is kept as a sign and a magnitude interval ``[lo, hi]``, ``lo > 0``.  For a
+    positive float v that approximates x to within ``2**-53`` relative (one rounding to
+    nearest), ``RN(v (1 - 2**-51)) < x < RN(v (1 + 2**-51))``; all bounds are rounded that way.
     """
-    return v - abs(v) * 2.0**-51 if abs(v) > 2.0**-960 else -np.inf
-
-
-@njit(cache=True, inline="always")
-def _up(v: float) -> float:  # pragma: no cover - compiled
-    """A float above the exact value that ``v`` rounds (see :func:`_dn`)."""
-    return v + abs(v) * 2.0**-51 if abs(v) > 2.0**-960 else np.inf
-
-
-@njit(cache=True, inline="always")
-def _imul(alo: float, ahi: float, blo: float, bhi: float) -> tuple[float, float]:
-    """Outward-rounded product of the intervals [alo, ahi] and [blo, bhi]."""  # noqa: D401
-    p1, p2, p3, p4 = alo * blo, alo * bhi, ahi * blo, ahi * bhi
-    return _dn(min(min(p1, p2), min(p3, p4))), _up(max(max(p1, p2), max(p3, p4)))
-
-
-@njit(cache=True, boundscheck=False)
-def _interval_sign(
-    wlo: np.ndarray, whi: np.ndarray, p: int, y: float
-) -> int:  # pragma: no cover - compiled
-    """Sign of ``P_M(y)`` for every weight vector in the box, or 0 when undecided."""
-    inv_lo = np.ones(p)
-    inv_hi = np.ones(p)
-    negative = 0
+    n = min(_LANES, ys.size - start)
+    y = np.empty(_LANES)
+    for j in range(_LANES):
+        y[j] = ys[start + min(j, n - 1)]
+    sgn = np.ones((p, _LANES))
+    mlo = np.ones((p, _LANES))
+    mhi = np.ones((p, _LANES))
+    negative = np.zeros(_LANES)
+    bad = np.zeros(_LANES)
     for k in range(wlo.size):
-        slo, shi = _dn(y * wlo[k]), _up(y * whi[k])
-        for i in range(p):
-            slo, shi = _imul(slo, shi, inv_lo[i], inv_hi[i])
-        rlo, rhi = _dn(1.0 - shi), _up(1.0 - slo)
-        if not (rlo <= rhi) or (rlo <= 0.0 <= rhi) or not (abs(rlo) < np.inf > abs(rhi)):
-            return 0
-        if rhi < 0.0:
-            negative += 1
+        a_lo, a_hi = wlo[k], whi[k]
         slot = k % p
-        inv_lo[slot], inv_hi[slot] = _dn(1.0 / rhi), _up(1.0 / rlo)
-    return -1 if negative % 2 else 1
+        for j in range(_LANES):
+            # |s| = y w / |r_{k-1} ... r_{k-p}|; a result below _SMALL may be subnormal (only
+            # absolutely accurate): clamp the lower bound to 0 and the upper bound to _SMALL.
+            s_sign = 1.0
+            s_lo = y[j] * a_lo * _DOWN
+            s_hi = max(y[j] * a_hi * _UP, _SMALL)
+            for i in range(p):
+                s_sign *= sgn[i, j]
+                s_lo = s_lo * mlo[i, j] * _DOWN if s_lo >= _SMALL else 0.0
+                s_hi = max(s_hi * mhi[i, j] * _UP, _SMALL)
+            s_lo = s_lo if s_lo >= _SMALL else 0.0
+            if s_sign > 0.0:
+                r_lo, r_hi = 1.0 - s_hi, 1.0 - s_lo
+            else:
+                r_lo, r_hi = 1.0 + s_lo, 1.0 + s_hi
+            # outward rounding of the difference / sum (sign-aware)
+            r_lo = r_lo * _DOWN if r_lo > 0.0 else r_lo * _UP
+            r_hi = r_hi * _UP if r_hi > 0.0 else r_hi * _DOWN
+            small = min(abs(r_lo), abs(r_hi))
+            large = max(abs(r_lo), abs(r_hi))
+            ok = (r_lo > 0.0 or r_hi < 0.0) and small > _SMALL and large < 1.0 / _SMALL
+            if not ok:
+                bad[j] = 1.0
+                small, large = 1.0, 1.0
+            negative[j] += 1.0 if r_hi < 0.0 else 0.0
+            sgn[slot, j] = 1.0 if r_lo > 0.0 else -1.0
+            mlo[slot, j] = (1.0 / large) * _DOWN
+            mhi[slot, j] = (1.0 / small) * _UP
+    for j in range(n):
+        if bad[j] != 0.0:
+            out[start + j] = 0
+        else:
+            out[start + j] = -1 if int(negative[j]) % 2 else 1
 
 
 @njit(cache=True, parallel=True)
@@ -114,8 +134,8 @@ def _interval_signs(
     wlo: np.ndarray, whi: np.ndarray, p: int, ys: np.ndarray
 ) -> np.ndarray:  # pragma: no cover - compiled
     out = np.zeros(ys.size, dtype=np.int64)
-    for i in prange(ys.size):
-        out[i] = _interval_sign(wlo, whi, p, ys[i])
+    for b in prange((ys.size + _LANES - 1) // _LANES):
+        _interval_block(wlo, whi, p, ys, b * _LANES, out)
     return out
 
 
@@ -155,8 +175,8 @@ def _signs(
     prec = 64
     while prec <= max_precision:
         todo = np.nonzero(signs == 0)[0]
-        if todo.size == 0 or (p == 1 and todo.size * wlo.size > _ARB_STEPS):
-            break  # reach 1: widening decides them faster than the Python loop
+        if todo.size == 0 or p == 1:
+            break  # reach 1: widening decides them much faster than the Python loop
         precision = prec
         signs[todo] = _arb_signs(wlo, whi, p, ys[todo], prec)
         prec *= 2
@@ -404,7 +424,7 @@ def _isolate(factor: Any, precision: int, max_precision: int) -> tuple[list[Any]
         while True:
             flint.ctx.prec = prec
             try:
-                return list(flint.acb_poly(factor).roots(maxprec=prec)), prec
+                return list(flint.acb_poly(factor).roots(tol=2.0**-precision, maxprec=prec)), prec
             except ValueError as exc:
                 if 2 * prec > max_precision:
                     raise ValueError(
