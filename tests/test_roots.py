@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import dataclasses
+import json
+import time
 from fractions import Fraction
 
 import mpmath
@@ -9,7 +12,10 @@ import numpy as np
 import pytest
 import scipy.linalg
 
+import freeladder as fl
 from freeladder.certify import certified_roots, certify_chain_roots
+from freeladder.root_methods import ROOT_METHODS, choose_method, solve_chain, solve_general
+from freeladder.root_result import RootResult
 from freeladder.roots import (
     chain_count_below,
     chain_inverse_power_sums,
@@ -186,3 +192,100 @@ def test_progress_and_interrupt_leave_nothing_broken():
         chain_real_roots(w, 2, progress=stop)
     again = chain_real_roots(w, 2)
     np.testing.assert_array_equal(again.values, r.values)
+
+
+# -- one result protocol, scale invariance, no hang ---------------------------------------------
+
+
+def test_root_result_is_frozen_and_json_ready():
+    r = chain_real_roots(random_weights(40, 11), 2)
+    assert isinstance(r, RootResult) and r.variable == "y" and r.method == "chain-count"
+    assert not r.rigorous and "estimate" in r.summary() and "estimate" in repr(r)
+    assert r.count == chain_root_count(40, 2) == r.values.size
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        r.values = np.zeros(3)  # type: ignore[misc]
+    with pytest.raises(ValueError):
+        r.values[0] = 1.0
+    with pytest.raises(TypeError):
+        r.details["x"] = 1  # type: ignore[index]
+    text = json.dumps(r.to_dict(), allow_nan=False)
+    assert '"bound_kind": "estimate (not a proof)"' in text
+
+
+def test_method_table_routes_and_labels():
+    # Every entry returns a RootResult carrying its own key; only rigorous entries say so.
+    c = np.random.default_rng(3).uniform(0.3, 1.7, 24)
+    for key in ("chain-count", "chain-certified"):
+        found = solve_chain(c, 2, 2, key)
+        assert found.method == key and found.rigorous == ROOT_METHODS[key].rigorous
+    found = solve_chain(c * np.exp(0.3j), 2, 3, "auto")
+    assert found.method == "chain-aberth" and not found.rigorous and found.variable == "x"
+    general = solve_general(fl.exclusion_chain(6, 2, couplings=list(c[:6])))
+    assert general.method == "exact-certified" and general.rigorous
+    with pytest.raises(ValueError, match="does not apply"):
+        solve_chain(c * np.exp(0.3j), 2, 3, "chain-count")
+    with pytest.raises(ValueError, match="does not apply"):
+        choose_method("real chain", "no-such-method")
+
+
+def _mpmath_eta(c: np.ndarray, reach: int) -> np.ndarray:
+    """Quasi-energies y^(-1/2) from mpmath.polyroots at 60 digits on the exact weights c**2."""
+    coeffs = exact_coefficients_from_couplings(c, reach)
+    with mpmath.workdps(60):
+        mp = [mpmath.mpf(v.numerator) / v.denominator for v in reversed(coeffs)]
+        found = mpmath.polyroots(mp, maxsteps=400, extraprec=240)
+        return np.array(sorted(float(mpmath.re(z) ** -0.5) for z in found))
+
+
+def exact_coefficients_from_couplings(c: np.ndarray, reach: int) -> list[Fraction]:
+    """Exact coefficients of P_M for weights c_j**2 (squares taken exactly)."""
+    hist = [[Fraction(1)] for _ in range(reach + 1)]
+    for cj in c:
+        wk = Fraction(float(cj)) ** 2
+        a, b = hist[-1], hist[0]
+        new = a + [Fraction(0)] * (len(b) + 1 - len(a))
+        for i, coef in enumerate(b):
+            new[i + 1] -= wk * coef
+        hist = hist[1:] + [new]
+    return hist[-1]
+
+
+@pytest.mark.parametrize("reach", [1, 2])
+def test_spectrum_is_scale_invariant(reach):
+    # Couplings c, 1e75 c and 1e-200 c: the quasi-energies scale exactly (eta is homogeneous of
+    # degree 1 in the couplings); reference: mpmath.polyroots at 60 digits on the exact
+    # polynomial of c (the scaled floats differ from c times the scale by one rounding each).
+    c = np.random.default_rng(40 + reach).uniform(0.3, 1.7, 30)
+    ref = _mpmath_eta(c, reach)
+    for scale in (1.0, 1e75, 1e-200):
+        for method in ("fast", "certified"):
+            sp = fl.free_spectrum(fl.exclusion_chain(30, reach, couplings=list(c * scale)), method)
+            eta = np.asarray(sp.quasi_energies) / scale
+            np.testing.assert_allclose(eta, ref, rtol=1e-12)
+            assert np.all(np.isfinite(sp.error_bounds))
+            assert np.all(sp.error_bounds / sp.quasi_energies < 1e-9)
+            found = sp.provenance["roots"]
+            assert isinstance(found, RootResult) and found.converged
+            if method == "fast":
+                assert "estimate" in sp.provenance["bounds"] and not found.rigorous
+            else:
+                assert found.rigorous
+                # the proved bounds hold against the 60-digit reference, up to the one
+                # rounding of c * scale (relative 2**-53 per coupling)
+                err = np.abs(eta - ref) - 1e-14 * ref
+                assert np.all(err <= np.asarray(sp.error_bounds) / scale)
+
+
+def test_tiny_bonds_do_not_hang():
+    # Previously free_spectrum never returned on this model (certified isolation without a
+    # precision limit).  Now a bounded search ends with a clear error within seconds.
+    start = time.perf_counter()
+    with pytest.raises(ValueError, match="could not be isolated|not guaranteed|theorem"):
+        fl.free_spectrum(fl.ising_lattice(2, 2, bond=1e-200))
+    assert time.perf_counter() - start < 60
+
+
+def test_couplings_beyond_the_weight_range_are_refused():
+    # c**2 of 1e-200 next to 1 is below float64 range: a clear message, not wrong numbers.
+    with pytest.raises(ValueError, match="coupling 1 .*smaller than the largest"):
+        solve_chain(np.array([1.0, 1e-200, 1.0]), 1, 2)

@@ -139,15 +139,31 @@ def _interval_signs(
     return out
 
 
-def _arb_signs(wlo: np.ndarray, whi: np.ndarray, p: int, ys: np.ndarray, prec: int) -> np.ndarray:
-    """Signs of ``P_M`` at ``ys`` from the linear recurrence in arb balls at ``prec`` bits."""
+def _arb_signs(
+    wlo: np.ndarray,
+    whi: np.ndarray,
+    p: int,
+    ys: np.ndarray,
+    prec: int,
+    power_of: tuple[np.ndarray, int] | None,
+) -> np.ndarray:
+    """Signs of ``P_M`` at ``ys`` from the linear recurrence in arb balls at ``prec`` bits.
+
+    The weights are the balls ``c_j**N`` when ``power_of = (c, N)`` is given (exact binary
+    floats c), else balls holding ``[wlo, whi]``.
+    """
     saved = flint.ctx.prec
     flint.ctx.prec = prec
     try:
-        wa = [
-            flint.arb(float(lo)) if lo == hi else flint.arb(float(lo)).union(flint.arb(float(hi)))
-            for lo, hi in zip(wlo, whi, strict=True)
-        ]
+        if power_of is not None:
+            wa = [flint.arb(float(cj)) ** int(power_of[1]) for cj in power_of[0]]
+        else:
+            wa = [
+                flint.arb(float(lo))
+                if lo == hi
+                else flint.arb(float(lo)).union(flint.arb(float(hi)))
+                for lo, hi in zip(wlo, whi, strict=True)
+            ]
         out = np.zeros(ys.size, dtype=np.int64)
         for i, y in enumerate(ys):
             ya = flint.arb(float(y))
@@ -164,7 +180,12 @@ def _arb_signs(wlo: np.ndarray, whi: np.ndarray, p: int, ys: np.ndarray, prec: i
 
 
 def _signs(
-    wlo: np.ndarray, whi: np.ndarray, p: int, ys: np.ndarray, max_precision: int
+    wlo: np.ndarray,
+    whi: np.ndarray,
+    p: int,
+    ys: np.ndarray,
+    max_precision: int,
+    power_of: tuple[np.ndarray, int] | None,
 ) -> tuple[np.ndarray, int]:
     """Certified signs of ``P_M`` at ``ys``: float64 intervals on the ratios, then arb.
 
@@ -178,7 +199,7 @@ def _signs(
         if todo.size == 0 or p == 1:
             break  # reach 1: widening decides them much faster than the Python loop
         precision = prec
-        signs[todo] = _arb_signs(wlo, whi, p, ys[todo], prec)
+        signs[todo] = _arb_signs(wlo, whi, p, ys[todo], prec, power_of)
         prec *= 2
     return signs, precision
 
@@ -204,6 +225,7 @@ def certify_chain_roots(
     errors: Any = None,
     *,
     weight_bounds: tuple[Any, Any] | None = None,
+    power_of: tuple[Any, int] | None = None,
     indices: Any = None,
     widenings: int = 10,
     max_precision: int = 4096,
@@ -223,6 +245,9 @@ def certify_chain_roots(
         Error estimates; the first intervals have half-width ``max(8 * error, 64 eps y)``.
     weight_bounds : (array, array), optional
         Lower and upper ends of an interval holding each exact weight (e.g. ``c**2`` rounded).
+    power_of : (array, int), optional
+        ``(c, N)``: the exact weights are ``c_j**N`` of these binary floats (``weight_bounds``
+        must hold them); the arb stage then uses them exactly instead of the bounds.
     indices : array_like of int, optional
         Position of each given root among all S (ascending); by default the largest ones.
     widenings : int
@@ -257,6 +282,11 @@ def certify_chain_roots(
     """
     w, p = check_chain_weights(weights, reach)
     wlo, whi = _weight_box(w, weight_bounds)
+    if power_of is not None:
+        base = np.ascontiguousarray(power_of[0], dtype=np.float64)
+        if base.shape != w.shape or not np.all(np.isfinite(base)):
+            raise ValueError("power_of must hold one finite coupling per weight")
+        power_of = (base, int(power_of[1]))
     y = np.asarray(roots, dtype=np.float64).ravel()
     if y.size == 0 or not np.all(np.isfinite(y)) or np.any(y <= 0):
         raise ValueError("roots must be a non-empty array of finite positive numbers")
@@ -278,7 +308,7 @@ def certify_chain_roots(
     for attempt in range(widenings + 1):
         lower[todo], upper[todo] = y[todo] - half[todo], y[todo] + half[todo]
         ends = np.concatenate([lower[todo], upper[todo]])
-        signs, used = _signs(wlo, whi, p, ends, max_precision)
+        signs, used = _signs(wlo, whi, p, ends, max_precision, power_of)
         precision, evaluations, rounds = (
             max(precision, used),
             evaluations + 2 * todo.size,

@@ -15,8 +15,9 @@ name                applies to     rigorous  how
 =================== ============== ========= ==================================================
 
 Scale invariance: before a chain method runs, the couplings are divided by the power of two
-nearest their largest magnitude (an exact operation), so relative accuracy does not depend on
-their overall scale; the result records it in ``weight_log2``.
+just above their largest magnitude (an exact operation), so relative accuracy does not depend
+on their overall scale.  The result is scaled back (exactly) when float64 holds the true
+roots; otherwise it stays scaled and records the scale in ``weight_log2``.
 
 References
 ----------
@@ -68,7 +69,8 @@ class RootMethod:
         The method's error bounds are proofs (when it reports success).
     description : str
     solve : callable
-        Chain methods: ``solve(weights, reach, states, lowest, weight_bounds)``;
+        Chain methods: ``solve(weights, reach, states, lowest, couplings)`` with the scaled
+        couplings whose N-th powers the weights are (for the certificate);
         ``exact-certified``: ``solve(model)``.
     """
 
@@ -79,17 +81,26 @@ class RootMethod:
     solve: Callable[..., RootResult]
 
 
-def _count(w: np.ndarray, reach: int, states: int, lowest: int | None, bounds: Any) -> RootResult:
+def _count(w: np.ndarray, reach: int, states: int, lowest: int | None, c: Any) -> RootResult:
     return chain_real_roots(w, reach, lowest=lowest)
 
 
-def _certified(
-    w: np.ndarray, reach: int, states: int, lowest: int | None, bounds: Any
-) -> RootResult:
-    """All roots (the proof needs all S intervals), certified; then the ``lowest`` kept."""
+def _certified(w: np.ndarray, reach: int, states: int, lowest: int | None, c: Any) -> RootResult:
+    """All roots (the proof needs all S intervals), certified; then the ``lowest`` kept.
+
+    With the couplings ``c`` given, the proof covers the exact weights ``c**N`` (one rounding
+    away from ``w``: the float stage takes one ulp around each, the arb stage the exact power).
+    """
     found = chain_real_roots(w, reach)
+    bounds = None if c is None else (np.nextafter(w, 0.0), np.nextafter(w, np.inf))
     enc = certify_chain_roots(
-        w, reach, found.values, found.error_bounds, weight_bounds=bounds, indices=found.indices
+        w,
+        reach,
+        found.values,
+        found.error_bounds,
+        indices=found.indices,
+        weight_bounds=bounds,
+        power_of=None if c is None else (c, states),
     )
     keep = slice(None) if lowest is None else slice(max(0, enc.count - int(lowest)), None)
     details = {k: (v[keep] if isinstance(v, np.ndarray) else v) for k, v in enc.details.items()}
@@ -105,7 +116,7 @@ def _certified(
     )
 
 
-def _aberth(w: np.ndarray, reach: int, states: int, lowest: int | None, bounds: Any) -> RootResult:
+def _aberth(w: np.ndarray, reach: int, states: int, lowest: int | None, c: Any) -> RootResult:
     return aberth_chain_roots(w, reach, order=states)
 
 
@@ -194,8 +205,10 @@ def choose_method(kind: Literal["real chain", "complex chain", "any graph"], met
     return key
 
 
-def scaled_weights(couplings: Any, states: int) -> tuple[np.ndarray, int]:
-    """Weights ``(c / 2**e)**N`` and ``N e``, with ``2**e`` nearest above ``max |c|``.
+def scaled_weights(couplings: Any, states: int) -> tuple[np.ndarray, np.ndarray, int]:
+    """Scaled couplings ``c / 2**e`` (exact), weights ``(c / 2**e)**N`` and ``N e``.
+
+    ``2**e`` is the power of two just above ``max |c|``.
 
     The division by a power of two is exact; the weights' largest magnitude lies in
     ``[2**-N, 1)``.  Raises ``ValueError`` when a non-zero coupling's weight falls below the
@@ -224,14 +237,7 @@ def scaled_weights(couplings: Any, states: int) -> tuple[np.ndarray, int]:
             f"float64 can hold in its weight c^{states} relative to the others; its effect on "
             "the quasi-energies is below float precision -- remove the term or rescale it"
         )
-    return w, int(states) * e
-
-
-def _weight_box(w: np.ndarray, states: int) -> tuple[np.ndarray, np.ndarray] | None:
-    """Intervals holding the exact weights ``c**2`` (one rounding: one ulp outward)."""
-    if states != 2:
-        return None
-    return np.nextafter(w, 0.0), np.nextafter(w, np.inf)
+    return cs, w, int(states) * e
 
 
 def solve_chain(
@@ -242,22 +248,39 @@ def solve_chain(
     Real positive weights (N = 2, real couplings) take a real-chain method, anything else
     the complex-chain one; ``method`` is ``"auto"``, ``"fast"``, ``"certified"`` or a key of
     :data:`ROOT_METHODS`.  The couplings are scaled first (see :func:`scaled_weights`); the
-    result's ``weight_log2`` records it.  ``exact-certified`` needs the model: use
+    result is in true units unless they over- or underflow (then ``weight_log2`` says how
+    it is scaled).  ``exact-certified`` needs the model: use
     :func:`solve_general` for it.
     """
     c = np.asarray(couplings)
-    w, weight_log2 = scaled_weights(c, states)
+    cs, w, weight_log2 = scaled_weights(c, states)
     real = int(states) == 2 and not np.iscomplexobj(c) and bool(np.all(w > 0))
     key = choose_method("real chain" if real else "complex chain", method)
     if key == "exact-certified":
         raise ValueError("method 'exact-certified' needs the model: call solve_general(model)")
     if real:
-        found = ROOT_METHODS[key].solve(
-            np.asarray(w, dtype=float), reach, states, lowest, _weight_box(w, states)
-        )
+        found = ROOT_METHODS[key].solve(np.asarray(w, dtype=float), reach, states, lowest, cs)
     else:
         found = ROOT_METHODS[key].solve(np.asarray(w, dtype=complex), reach, states, lowest, None)
-    return dataclasses.replace(found, weight_log2=found.weight_log2 + weight_log2)
+    found = dataclasses.replace(found, weight_log2=found.weight_log2 + weight_log2)
+    return _unscaled(found)
+
+
+def _unscaled(found: RootResult) -> RootResult:
+    """The result in true units (``weight_log2 = 0``) when float64 holds it without loss."""
+    if found.weight_log2 == 0:
+        return found
+    values, bounds = found.true_values()
+    tiny = np.finfo(np.float64).tiny
+    lossless = (
+        np.all(np.isfinite(values))
+        and np.all(np.isfinite(bounds))
+        and np.all(np.abs(values) >= tiny)
+        and np.all((bounds >= tiny) | (found.error_bounds == 0))
+    )
+    if not lossless:
+        return found
+    return dataclasses.replace(found, values=values, error_bounds=bounds, weight_log2=0)
 
 
 def solve_general(m: Model, method: str = "auto") -> RootResult:

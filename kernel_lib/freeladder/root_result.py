@@ -120,11 +120,12 @@ class RootResult:
     def true_values(self) -> tuple[np.ndarray, np.ndarray]:
         """``values`` and ``error_bounds`` scaled back (may over- or underflow in float64)."""
         e = -self.weight_log2 if self.variable == "y" else self.weight_log2
-        if np.iscomplexobj(self.values):
-            v = np.ldexp(self.values.real, e) + 1j * np.ldexp(self.values.imag, e)
-        else:
-            v = np.ldexp(self.values, e)
-        return v, np.ldexp(self.error_bounds, e)
+        with np.errstate(over="ignore", under="ignore"):
+            if np.iscomplexobj(self.values):
+                v = np.ldexp(self.values.real, e) + 1j * np.ldexp(self.values.imag, e)
+            else:
+                v = np.ldexp(self.values, e)
+            return v, np.ldexp(self.error_bounds, e)
 
     def quasi_energies(self, states: int) -> tuple[np.ndarray, np.ndarray]:
         """``eta`` with ``eta^N = x`` (principal root) and a bound of the same kind on each.
