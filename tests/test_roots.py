@@ -289,3 +289,12 @@ def test_couplings_beyond_the_weight_range_are_refused():
     # c**2 of 1e-200 next to 1 is below float64 range: a clear message, not wrong numbers.
     with pytest.raises(ValueError, match="coupling 1 .*smaller than the largest"):
         solve_chain(np.array([1.0, 1e-200, 1.0]), 1, 2)
+
+
+def test_free_spectrum_text_says_estimate_or_proved():
+    m = fl.exclusion_chain(12, 2, couplings=list(np.random.default_rng(4).uniform(0.3, 1.7, 12)))
+    fast = fl.free_spectrum(m)
+    assert "estimate" in repr(fast) and "estimate" in fast._repr_html_()
+    assert not fast.provenance["rigorous"]
+    cert = fl.free_spectrum(m, method="certified")
+    assert "proved bound" in repr(cert) and cert.provenance["rigorous"]

@@ -428,7 +428,8 @@ class FreeSpectrum:
         return (
             f"FreeSpectrum(N={self.states}, {len(self)} quasi-energies [{eta}{more}], "
             f"method={self.provenance.get('method')}, "
-            f"max error {self.provenance.get('max_error_bound', float('nan')):.2g})"
+            f"max error {self.provenance.get('max_error_bound', float('nan')):.2g}"
+            f" ({'proved bound' if self.provenance.get('rigorous') else 'estimate'}))"
         )
 
     def _repr_html_(self) -> str:
