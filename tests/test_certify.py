@@ -146,3 +146,20 @@ def test_fast_bounds_print_as_estimates():
     assert "estimate" in r.summary() and "estimate" in r.to_dict()["bound_kind"]
     enc = certify_chain_roots(random_weights(50, 8), 1, r.values, r.error_bounds)
     assert enc.rigorous and "proved bound" in enc.summary()
+
+
+def test_failed_certificate_is_an_error_not_a_pass(monkeypatch):
+    # Force every interval to fail (no widening, intervals far too narrow by a wrong estimate
+    # of zero): the certified route must raise, never return the fast numbers as proved.
+    import freeladder.root_methods as rm
+
+    real = rm.certify_chain_roots
+
+    def narrow(*args, **kwargs):
+        kwargs["widenings"] = 0
+        args = (*args[:2], args[2] * (1 + 1e-6), *args[3:])  # shifted roots: no sign change
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(rm, "certify_chain_roots", narrow)
+    with pytest.raises(ValueError, match="could not be certified"):
+        solve_chain(np.random.default_rng(1).uniform(0.3, 1.7, 30), 1, 2, "certified")

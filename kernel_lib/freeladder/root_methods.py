@@ -249,7 +249,8 @@ def solve_chain(
     the complex-chain one; ``method`` is ``"auto"``, ``"fast"``, ``"certified"`` or a key of
     :data:`ROOT_METHODS`.  The couplings are scaled first (see :func:`scaled_weights`); the
     result is in true units unless they over- or underflow (then ``weight_log2`` says how
-    it is scaled).  ``exact-certified`` needs the model: use
+    it is scaled).  Raises ``ValueError`` when a rigorous method cannot prove its bounds
+    (never a silent pass).  ``exact-certified`` needs the model: use
     :func:`solve_general` for it.
     """
     c = np.asarray(couplings)
@@ -262,6 +263,8 @@ def solve_chain(
         found = ROOT_METHODS[key].solve(np.asarray(w, dtype=float), reach, states, lowest, cs)
     else:
         found = ROOT_METHODS[key].solve(np.asarray(w, dtype=complex), reach, states, lowest, None)
+    if ROOT_METHODS[key].rigorous and not found.rigorous:
+        raise ValueError(f"the chain roots could not be certified ({key}): {found.message}")
     found = dataclasses.replace(found, weight_log2=found.weight_log2 + weight_log2)
     return _unscaled(found)
 
