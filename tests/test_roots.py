@@ -298,3 +298,19 @@ def test_free_spectrum_text_says_estimate_or_proved():
     assert not fast.provenance["rigorous"]
     cert = fl.free_spectrum(m, method="certified")
     assert "proved bound" in repr(cert) and cert.provenance["rigorous"]
+
+
+def test_unconverged_roots_raise_by_default(monkeypatch):
+    # One sweep cannot converge 500 roots: solve_chain (the route of free_spectrum) raises
+    # instead of returning quasi-energies with unbounded errors; on request it returns them
+    # marked converged=False.
+    import functools
+
+    import freeladder.root_methods as rm
+
+    monkeypatch.setattr(rm, "chain_real_roots", functools.partial(chain_real_roots, max_sweeps=1))
+    c = np.random.default_rng(2).uniform(0.3, 1.7, 1000)
+    with pytest.raises(ArithmeticError, match="did not converge"):
+        solve_chain(c, 1, 2)
+    found = solve_chain(c, 1, 2, allow_unconverged=True)
+    assert not found.converged and "not converged" in found.message

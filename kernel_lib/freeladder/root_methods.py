@@ -241,7 +241,13 @@ def scaled_weights(couplings: Any, states: int) -> tuple[np.ndarray, np.ndarray,
 
 
 def solve_chain(
-    couplings: Any, reach: int, states: int, method: str = "auto", lowest: int | None = None
+    couplings: Any,
+    reach: int,
+    states: int,
+    method: str = "auto",
+    lowest: int | None = None,
+    *,
+    allow_unconverged: bool = False,
 ) -> RootResult:
     """Roots of an exclusion chain's polynomial from its couplings in chain order.
 
@@ -250,8 +256,9 @@ def solve_chain(
     :data:`ROOT_METHODS`.  The couplings are scaled first (see :func:`scaled_weights`); the
     result is in true units unless they over- or underflow (then ``weight_log2`` says how
     it is scaled).  Raises ``ValueError`` when a rigorous method cannot prove its bounds
-    (never a silent pass).  ``exact-certified`` needs the model: use
-    :func:`solve_general` for it.
+    (never a silent pass), and ``ArithmeticError`` when the roots did not converge unless
+    ``allow_unconverged`` (a non-converged quasi-energy is hard to miss).
+    ``exact-certified`` needs the model: use :func:`solve_general` for it.
     """
     c = np.asarray(couplings)
     cs, w, weight_log2 = scaled_weights(c, states)
@@ -265,6 +272,12 @@ def solve_chain(
         found = ROOT_METHODS[key].solve(np.asarray(w, dtype=complex), reach, states, lowest, None)
     if ROOT_METHODS[key].rigorous and not found.rigorous:
         raise ValueError(f"the chain roots could not be certified ({key}): {found.message}")
+    if not found.converged and not allow_unconverged:
+        raise ArithmeticError(
+            f"the chain roots did not converge ({key}): {found.message}; no quasi-energy is "
+            "returned rather than one with an unbounded error (allow_unconverged=True returns "
+            "the result, marked converged=False)"
+        )
     found = dataclasses.replace(found, weight_log2=found.weight_log2 + weight_log2)
     return _unscaled(found)
 
