@@ -264,10 +264,10 @@ def test_spectrum_is_scale_invariant(reach):
             np.testing.assert_allclose(eta, ref, rtol=1e-12)
             assert np.all(np.isfinite(sp.error_bounds))
             assert np.all(sp.error_bounds / sp.quasi_energies < 1e-9)
-            found = sp.provenance["roots"]
+            found = sp.provenance.finder["roots"]
             assert isinstance(found, RootResult) and found.converged
             if method == "fast":
-                assert "estimate" in sp.provenance["bounds"] and not found.rigorous
+                assert "estimate" in sp.provenance.bounds and not found.rigorous
             else:
                 assert found.rigorous
                 # the proved bounds hold against the 60-digit reference, up to the one
@@ -295,9 +295,9 @@ def test_free_spectrum_text_says_estimate_or_proved():
     m = fl.exclusion_chain(12, 2, couplings=list(np.random.default_rng(4).uniform(0.3, 1.7, 12)))
     fast = fl.free_spectrum(m)
     assert "estimate" in repr(fast) and "estimate" in fast._repr_html_()
-    assert not fast.provenance["rigorous"]
+    assert not fast.provenance.finder["rigorous"]
     cert = fl.free_spectrum(m, method="certified")
-    assert "proved bound" in repr(cert) and cert.provenance["rigorous"]
+    assert "proved bound" in repr(cert) and cert.provenance.finder["rigorous"]
 
 
 def test_unconverged_roots_raise_by_default(monkeypatch):
