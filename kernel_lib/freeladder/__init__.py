@@ -43,6 +43,7 @@ from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
 from .verdict import ComponentVerdict, Verdict, classify
 from .verify import Check, Report, verify
+from .worked import Cell, WorkedCalculation, worked_calculation
 
 __all__ = [
     "ChainData",
@@ -107,5 +108,8 @@ __all__ = [
     "parse_model",
     "random_couplings",
     "staggered",
+    "Cell",
+    "WorkedCalculation",
+    "worked_calculation",
 ]
 __version__ = "0.1.0"
