@@ -122,8 +122,10 @@ def send_cells(
     marker : str
         The model id of the widget that asks: the cells go below the notebook cell showing it.
     on_reply : callable
-        Called exactly once with an :class:`InsertReply`: the plugin's answer, or status
-        "no answer" after ``timeout`` seconds or when the front end has no handler.
+        Called with an :class:`InsertReply`: the plugin's answer, or status "no answer" when
+        the front end closes the comm unanswered or after ``timeout`` seconds.  An answer that
+        arrives after the timeout is still passed on (a second call), so that a slow front end
+        that did insert the cells is not reported as missing.
     timeout : float
         Seconds to wait.
 
@@ -137,31 +139,35 @@ def send_cells(
     from comm import create_comm
 
     answered = False
+    timed_out = False
 
-    def finish(reply: InsertReply) -> None:
+    def answer(reply: InsertReply) -> None:
         nonlocal answered
-        if answered:
-            return
-        answered = True
-        on_reply(reply)
+        if not answered:
+            answered = True
+            on_reply(reply)
+
+    def give_up() -> None:
+        nonlocal timed_out
+        if not answered:
+            timed_out = True
+            on_reply(InsertReply("no answer", reason=f"no answer within {timeout:g} s"))
 
     payload = {
         "cells": [{"kind": c.kind, "source": c.source} for c in cells],
         "marker": str(marker),
     }
     channel = create_comm(target_name=COMM_TARGET, data=payload)
-    channel.on_msg(lambda msg: finish(InsertReply.from_data(msg["content"]["data"])))
+    channel.on_msg(lambda msg: answer(InsertReply.from_data(msg["content"]["data"])))
     channel.on_close(
-        lambda msg: finish(
-            InsertReply("no answer", reason="the front end closed the comm without answering")
+        lambda msg: (
+            None
+            if timed_out
+            else answer(
+                InsertReply("no answer", reason="the front end has no handler for the cells")
+            )
         )
     )
-
-    def give_up() -> None:
-        if not answered:
-            finish(InsertReply("no answer", reason=f"no answer within {timeout:g} s"))
-            channel.close()
-
     _later(timeout, give_up)
 
 
@@ -223,13 +229,22 @@ class ExportPanel(widgets.VBox):
         self._timeout = float(timeout)
         self._cache: tuple[fl.Model, fl.WorkedCalculation] | None = None
         self.insert_button = widgets.Button(
-            description="insert cells below", icon="plus", tooltip="insert the worked cells"
+            description="insert cells below",
+            icon="plus",
+            tooltip="insert the worked cells",
+            layout=widgets.Layout(width="auto"),
         )
         self.save_button = widgets.Button(
-            description="save as notebook", icon="save", tooltip="write a new notebook file"
+            description="save as notebook",
+            icon="save",
+            tooltip="write a new notebook file",
+            layout=widgets.Layout(width="auto"),
         )
         self.text_button = widgets.Button(
-            description="copy text", icon="file-text", tooltip="show the cells' text to copy"
+            description="copy text",
+            icon="file-text",
+            tooltip="show the cells' text to copy",
+            layout=widgets.Layout(width="auto"),
         )
         self.status = widgets.HTML("")
         self.text = widgets.Textarea(
