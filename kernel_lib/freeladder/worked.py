@@ -582,7 +582,8 @@ def _check_cells(f: _Facts) -> list[Cell]:
     rows = ["| check | method | tolerance | value | result |", "| --- | --- | --- | --- | --- |"]
     for c in r.checks:
         tol = "exact" if c.tolerance == 0 else f"{c.tolerance:.2g}"
-        rows.append(f"| {c.name} | {c.method} | {tol} | {c.value:.3g} | {c.status} |")
+        name, method = (t.replace("|", "\\|") for t in (c.name, c.method))
+        rows.append(f"| {name} | {method} | {tol} | {c.value:.3g} | {c.status} |")
     sources = sorted({c.reference for c in r.checks if c.reference})
     notes = "\n".join(f"* {n}" for n in r.notes)
     md = (
