@@ -145,7 +145,24 @@ def test_cells_pass_as_exported_and_fail_when_a_coupling_changes(
                 code = nbformat.v4.new_code_cell(source)
                 code.metadata["section"] = [name, variant]
                 nb.cells.append(code)
+    # In the same kernel: the panel's insert with nothing answering the comm (nbclient has no
+    # front-end half) reports the missing extension once its timeout passed on the event loop.
+    for source in (
+        "from freeladder_lab.export import ExportPanel\n"
+        "panel = ExportPanel(lambda: m, timeout=0.5)\n"
+        "panel.insert()",
+        "import asyncio\nawait asyncio.sleep(2)",
+        'assert "No notebook extension answered" in panel.status.value, panel.status.value',
+    ):
+        code = nbformat.v4.new_code_cell(source)
+        code.metadata["section"] = ["panel", "timeout"]
+        nb.cells.append(code)
     _run_notebook(nb, kernel_dirs, tmp_path, allow_errors=True)
+    panel_cells = [c for c in nb.cells if c.metadata["section"] == ["panel", "timeout"]]
+    assert all(c.execution_count for c in panel_cells)
+    assert not [o for c in panel_cells for o in c.outputs if o.output_type == "error"], [
+        c.outputs for c in panel_cells
+    ]
     for name in MODELS:
         for variant in ("exported", "altered"):
             section = [c for c in nb.cells if c.metadata["section"] == [name, variant]]
