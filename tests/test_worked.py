@@ -299,6 +299,8 @@ def test_steps_select_cells_and_dicts_are_json_ready() -> None:
     wc = fl.worked_calculation(fl.ising_chain(3), steps=["verdict"])
     assert [_step_of(c.source) for c in wc if c.kind == "code"] == ["model", "verdict"]
     json.dumps(wc.to_dicts(), allow_nan=False)
+    d = json.loads(json.dumps(wc.to_dict(), allow_nan=False))
+    assert d["guaranteed"] is True and d["cells"] == wc.to_dicts()
 
 
 # -- the panel's fallbacks (no browser: nothing answers the comm) ---------------------------------

@@ -27,6 +27,7 @@ from . import references as refs
 from .charges import charge_series, transfer_matrix
 from .errors import NoTheoremError
 from .graph import frustration_graph
+from .jsonready import json_ready
 from .model import Model
 from .polynomial import exclusion_polynomial
 from .spectrum import FreeSpectrum, free_spectrum
@@ -114,6 +115,12 @@ class WorkedCalculation(Sequence[Cell]):
     def to_dicts(self) -> list[dict[str, str]]:
         """The cells as ``{"kind": ..., "source": ...}`` dictionaries (JSON-ready)."""
         return [{"kind": c.kind, "source": c.source} for c in self.cells]
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: ``cells`` (as :meth:`to_dicts`), ``model_text``, ``guaranteed``."""
+        return json_ready(
+            {"cells": self.to_dicts(), "model_text": self.model_text, "guaranteed": self.guaranteed}
+        )
 
     def to_notebook(self, path: str | Path, overwrite: bool = False) -> Path:
         """Write the cells as a Jupyter notebook (nbformat 4) with a python3 kernelspec.
