@@ -79,6 +79,7 @@ from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
 from .verdict import ComponentVerdict, Guarantee, Verdict, classify, guarantee
 from .verification import Check, Report, verify
+from .worked import Cell, WorkedCalculation, worked_calculation
 
 __all__ = [
     "honeycomb_hexagons",
@@ -179,5 +180,8 @@ __all__ = [
     "smallest_quasi_energy",
     "chain_quasi_energy",
     "sweep",
+    "Cell",
+    "WorkedCalculation",
+    "worked_calculation",
 ]
 __version__ = "0.1.0"
