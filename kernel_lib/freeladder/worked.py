@@ -32,7 +32,7 @@ from .model import Model
 from .polynomial import exclusion_polynomial
 from .spectrum import FreeSpectrum, free_spectrum
 from .verdict import classify
-from .verify import Report, verify
+from .verification import Report, verify
 
 __all__ = ["STEPS", "Cell", "WorkedCalculation", "worked_calculation"]
 
