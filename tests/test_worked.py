@@ -273,7 +273,7 @@ def test_model_without_theorem_asserts_no_spectrum(tmp_path: Path) -> None:
     text = "\n".join(c.source for c in wc)
     assert "No theorem guarantees" in text
     assert "expected_eta" not in text and "expected_levels" not in text
-    assert 'assert sp.provenance.guaranteed' not in text
+    assert "assert sp.provenance.guaranteed" not in text
     assert "assert not sp.provenance" in text  # stated as not guaranteed, if numbers come back
     assert "No spectrum is claimed" in wc.to_latex()
     script = tmp_path / "claw.py"
