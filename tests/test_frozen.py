@@ -15,6 +15,7 @@ from types import MappingProxyType
 from typing import Any
 
 import numpy as np
+import pandas as pd
 import pytest
 import scipy.sparse as sps
 
@@ -24,8 +25,10 @@ from freeladder.charge_sweep import commutator_sweep
 from freeladder.charges import charge_series
 from freeladder.clawfree import find_even_hole
 from freeladder.edge import edge_mode, ladder_operators
+from freeladder.indifference import indifference_order
 from freeladder.linegraph import line_graph_root
 from freeladder.polynomial import sum_rules
+from freeladder.relations import find_relations
 from freeladder.thermo import thermodynamics
 
 
@@ -41,8 +44,28 @@ def _claw() -> fl.Model:
     return fl.parse_model("X0 + 2 Z0 Z1 + 3 Z0 Z2 + 5 Z0 Z3")
 
 
+def _ladder() -> fl.Model:
+    # two legs of three sites, ZZ rungs, leg bonds alternating XX / YY: a line graph with two
+    # independent cycles (a Jordan-Wigner model that needs its sectors)
+    return fl.parse_model(
+        "Z0 Z1 + 0.8 Z2 Z3 + 1.2 Z4 Z5 + 0.9 X0 X2 + 1.1 Y1 Y3 + 0.7 Y2 Y4 + 1.3 X3 X5"
+    )
+
+
+def _dependent() -> fl.Model:
+    # the three ZZ terms multiply to the identity: one relation among the strings
+    return fl.parse_model("Z0 Z1 + X1 + Z1 Z2 + X2 + Z0 Z2")
+
+
 def _path_adjacency(n: int) -> list[set[int]]:
     return [{v for v in (u - 1, u + 1) if 0 <= v < n} for u in range(n)]
+
+
+def _claw_adjacency() -> list[set[int]]:
+    return [{1, 2, 3}, {0}, {0}, {0}]
+
+
+_SIZES = np.array([8.0, 16.0, 32.0, 64.0])
 
 
 def _cycle_adjacency(n: int) -> list[set[int]]:
@@ -147,6 +170,35 @@ CASES: list[tuple[str, Callable[[], Any], list[str] | None, str | None]] = [
         None,
         "graph.py / linegraph.py owner",
     ),
+    ("NotALineGraph", lambda: line_graph_root(_claw_adjacency(), [0, 1, 2, 3]), None, None),
+    # -- the analysis and the newer result types ---------------------------------------------------
+    ("Analysis", lambda: fl.analyze(_ising()), ["model"], None),
+    ("SpectrumProvenance", lambda: fl.free_spectrum(_ising()).provenance, None, None),
+    ("Guarantee", lambda: fl.classify(_ising()).guarantee, None, None),
+    ("SectorStructure", lambda: fl.sectors(_ladder()), None, None),
+    ("SectorSpectrum", lambda: fl.jordan_wigner_spectrum(_ladder()), None, None),
+    (
+        "IndifferenceOrder",
+        lambda: indifference_order(fl.exclusion_chain(6, reach=3, states=4)),
+        None,
+        None,
+    ),
+    (
+        "PowerLawFit",
+        lambda: fl.power_law_fit(_SIZES, 3 / _SIZES),
+        None,
+        None,
+    ),
+    ("GapScaling", lambda: fl.gap_scaling(fl.ising_chain, [8, 16, 32, 64]), None, None),
+    ("EnergyDensity", lambda: fl.energy_density(fl.ising_chain, [8, 16, 32, 64]), None, None),
+    (
+        "LevelMatch",
+        lambda: fl.match_levels(fl.free_spectrum(_ising()).levels(), fl.exact_spectrum(_ising())),
+        None,
+        None,
+    ),
+    ("Relations", lambda: find_relations(_dependent()), None, None),
+    ("Relation", lambda: find_relations(_dependent()).relations[0], None, None),
 ]
 
 
@@ -186,6 +238,8 @@ def _assert_read_only(value: Any, where: str, depth: int = 0) -> None:
             arr = getattr(value, part, None)
             if arr is not None:
                 assert not arr.flags.writeable, f"{where}.{part}: writable sparse array"
+    elif isinstance(value, (pd.DataFrame, pd.Series)):
+        raise AssertionError(f"{where}: a pandas {type(value).__name__} can be changed in place")
     elif isinstance(value, (list, set, dict, bytearray)):
         raise AssertionError(f"{where}: mutable {type(value).__name__}")
     elif isinstance(value, Mapping):
@@ -197,6 +251,11 @@ def _assert_read_only(value: Any, where: str, depth: int = 0) -> None:
     elif isinstance(value, tuple):
         for i, v in enumerate(value[:20]):
             _assert_read_only(v, f"{where}[{i}]", depth + 1)
+    elif dataclasses.is_dataclass(value) and not isinstance(value, type):
+        # records held inside a result (per-sector levels, per-component verdicts) too
+        assert type(value).__dataclass_params__.frozen, f"{where}: not a frozen dataclass"  # type: ignore[attr-defined]
+        for f in dataclasses.fields(value):
+            _assert_read_only(getattr(value, f.name), f"{where}.{f.name}", depth + 1)
 
 
 @pytest.mark.parametrize(("build", "fields"), _params())
