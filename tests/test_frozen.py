@@ -2,8 +2,7 @@
 
 For each result type: setting any public field (or a new attribute) raises AttributeError;
 array fields are read-only, mapping fields are read-only views, no field is a list, dict or set;
-and ``json.dumps(obj.to_dict(), allow_nan=False)`` works.  Cases for types that other branches
-make frozen are marked xfail (strict=False) until those branches land.
+and ``json.dumps(obj.to_dict(), allow_nan=False)`` works.
 """
 
 from __future__ import annotations
@@ -148,22 +147,22 @@ CASES: list[tuple[str, Callable[[], Any], list[str] | None, str | None]] = [
     ("Report", lambda: fl.verify(_ising()), None, "verify"),
     ("Check", lambda: fl.verify(_ising()).checks[0], None, "verify"),
     ("ChainStructure", lambda: fl.chain_structure(_chain()), None, "graph.py / linegraph.py owner"),
-    ("RealRoots", lambda: roots.chain_real_roots([1.0, 0.5, 1.5, 0.7], 1), None, "roots"),
+    ("RootResult-count", lambda: roots.chain_real_roots([1.0, 0.5, 1.5, 0.7], 1), None, None),
     (
-        "ComplexChainRoots",
+        "RootResult-aberth",
         lambda: roots_complex.aberth_chain_roots([1.0, 0.5j + 1, 1.5, 0.7], 1),
         None,
-        "roots",
+        None,
     ),
     (
-        "ChainEnclosures",
+        "RootResult-certified",
         lambda: certify.certify_chain_roots(
-            [1.0, 0.5, 1.5, 0.7], 1, roots.chain_real_roots([1.0, 0.5, 1.5, 0.7], 1).roots
+            [1.0, 0.5, 1.5, 0.7], 1, roots.chain_real_roots([1.0, 0.5, 1.5, 0.7], 1).values
         ),
         None,
-        "roots",
+        None,
     ),
-    ("CertifiedRoots", lambda: certify.certified_roots([1, -3, 1]), None, "roots"),
+    ("RootResult-exact", lambda: certify.certified_roots([1, -3, 1]), None, None),
     (
         "LineGraphRoot",
         lambda: line_graph_root(_path_adjacency(4), [0, 1, 2, 3]),
@@ -215,13 +214,8 @@ def _log_gap_statistics() -> Any:
 
 def _params() -> list[Any]:
     out = []
-    for name, build, fields, branch in CASES:
-        marks = []
-        if branch in ("roots", "disorder.py owner"):
-            marks.append(
-                pytest.mark.xfail(strict=False, reason=f"lands with branch of the {branch} helper")
-            )
-        out.append(pytest.param(build, fields, id=name, marks=marks))
+    for name, build, fields, _owner in CASES:
+        out.append(pytest.param(build, fields, id=name))
     return out
 
 

@@ -17,7 +17,7 @@ randomness, ``-ln(gap) ~ L^(1/2)`` at criticality); F. Igloi and C. Monthus, Phy
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -25,6 +25,7 @@ import numpy as np
 import pandas as pd
 
 from .builders import exclusion_chain
+from .frozen import readonly_array, readonly_mapping
 from .jsonready import json_ready
 from .model import Coupling
 from .scaling import PowerLawFit, chain_quasi_energy, power_law_fit, smallest_quasi_energy
@@ -223,16 +224,31 @@ class LogGapStatistics:
 
     Attributes
     ----------
-    table : pandas.DataFrame
-        One row per size: ``size``, ``count``, ``mean`` (of ``-ln gap``), ``stderr`` (standard
-        error of the mean, ``width / sqrt(count)``), ``width`` (standard deviation of
-        ``ln gap``, ``ddof=1``), ``median`` (of ``-ln gap``).
-    histograms : dict
-        ``{size: (edges, counts)}`` of ``-ln gap`` per size (``numpy.histogram``).
+    columns : mapping of str to numpy.ndarray
+        Read-only columns, one entry per size: ``size``, ``count``, ``mean`` (of ``-ln gap``),
+        ``stderr`` (standard error of the mean, ``width / sqrt(count)``), ``width`` (standard
+        deviation of ``ln gap``, ``ddof=1``), ``median`` (of ``-ln gap``).  :attr:`table` gives
+        them as a new pandas DataFrame.
+    histograms : mapping
+        ``{size: (edges, counts)}`` of ``-ln gap`` per size (``numpy.histogram``), read-only.
     """
 
-    table: pd.DataFrame
-    histograms: dict[int, tuple[np.ndarray, np.ndarray]]
+    columns: Mapping[str, np.ndarray]
+    histograms: Mapping[int, tuple[np.ndarray, np.ndarray]]
+
+    def __post_init__(self) -> None:  # frozen: read-only arrays in read-only mappings
+        cols = {k: readonly_array(np.asarray(v)) for k, v in self.columns.items()}
+        hist = {
+            int(k): (readonly_array(np.asarray(e)), readonly_array(np.asarray(c)))
+            for k, (e, c) in self.histograms.items()
+        }
+        object.__setattr__(self, "columns", readonly_mapping(cols))
+        object.__setattr__(self, "histograms", readonly_mapping(hist))
+
+    @property
+    def table(self) -> pd.DataFrame:
+        """The columns as a new pandas DataFrame (changing it changes nothing here)."""
+        return pd.DataFrame({k: np.array(v) for k, v in self.columns.items()})
 
     def exponent(self, statistic: str = "mean", correction: str = "offset") -> PowerLawFit:
         """Fit ``statistic ~ A size^psi (+ correction)`` by :func:`freeladder.power_law_fit`.
@@ -335,4 +351,5 @@ def log_gap_statistics(
         )
         counts, edges = np.histogram(v, bins=bins)  # type: ignore[arg-type]
         histograms[int(key)] = (edges, counts)  # type: ignore[call-overload]
-    return LogGapStatistics(pd.DataFrame(rows), histograms)
+    frame = pd.DataFrame(rows)
+    return LogGapStatistics({k: frame[k].to_numpy() for k in frame.columns}, histograms)
