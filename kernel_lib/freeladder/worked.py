@@ -608,7 +608,11 @@ def _check_cells(f: _Facts) -> list[Cell]:
         "print(report)\n"
         "statuses = {check.name: check.status for check in report.checks}\n"
         f"assert statuses == {json.dumps(statuses, indent=1)}, statuses\n"
-        + ("assert report.ok" if r.ok else "assert not report.ok")
+        + (
+            'assert report.ok, report.problems\nprint("all checks passed")'
+            if r.ok
+            else "assert not report.ok"
+        )
     )
     return [Cell("markdown", md), Cell("code", code)]
 
