@@ -15,7 +15,7 @@ import numpy as np
 import freeladder as fl
 
 from .adapter import Refusal
-from .style import ACCENT, INK, SECOND, complex_plane, escape, number_text, origin_guides
+from .style import ACCENT, INK, SECOND, TICKS, complex_plane, escape, number_text, origin_guides
 
 __all__ = ["RUNGS", "LadderPanel"]
 
@@ -50,7 +50,7 @@ class LadderPanel(widgets.VBox):
             text=[],
             scales={"x": sx, "y": sy},
             colors=[INK],
-            font_size=11,
+            default_size=11,
             x_offset=4,
             align="start",
         )
@@ -60,11 +60,11 @@ class LadderPanel(widgets.VBox):
             text=[],
             scales={"x": sx, "y": sy},
             colors=[INK],
-            font_size=11,
+            default_size=11,
             x_offset=4,
             align="start",
         )
-        ay = bq.Axis(scale=sy, orientation="vertical", label="energy E", grid_lines="none")
+        ay = bq.Axis(scale=sy, side="left", label="energy E", grid_lines="none", tick_format=TICKS)
         self.rung_figure = bq.Figure(
             marks=[self.rungs, self.exact_rungs, self.degeneracy, self.exact_labels],
             axes=[ay],

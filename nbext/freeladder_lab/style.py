@@ -14,6 +14,7 @@ __all__ = [
     "INK",
     "MUTED",
     "SECOND",
+    "TICKS",
     "WARN",
     "complex_plane",
     "origin_guides",
@@ -28,6 +29,9 @@ ACCENT = "#1d6e73"  # the main series (roots, rungs)
 SECOND = "#b5651d"  # comparisons and highlights (exact diagonalization, witness)
 MUTED = "#9aa7ad"  # guides (axes through the origin, earlier orders)
 WARN = "#8c2d19"  # refusals and failures (always with words as well)
+
+#: Axis tick format (set explicitly: bqplot's automatic one fails on an empty domain).
+TICKS = ".3~g"
 
 _SECTION_CSS = (
     "border-top: 3px solid {c}; padding: 4px 0 2px 0; margin: 10px 0 4px 0;"
@@ -75,11 +79,19 @@ def complex_plane(
     :func:`origin_guides` when the data range changes).
     """
     sx, sy = bq.LinearScale(), bq.LinearScale()
-    ax = bq.Axis(scale=sx, label=x_label, grid_lines="none", num_ticks=5)
-    ay = bq.Axis(scale=sy, label=y_label, orientation="vertical", grid_lines="none", num_ticks=5)
+    ax = bq.Axis(scale=sx, label=x_label, grid_lines="none", num_ticks=5, tick_format=TICKS)
+    ay = bq.Axis(
+        scale=sy,
+        label=y_label,
+        side="left",
+        grid_lines="none",
+        num_ticks=5,
+        tick_format=TICKS,
+    )
+    # the guides start over [-1, 1] so that the scales never see an empty or single-point domain
     guides = bq.Lines(
-        x=np.zeros((2, 2)),
-        y=np.zeros((2, 2)),
+        x=np.array([[-1.0, 1.0], [0.0, 0.0]]),
+        y=np.array([[0.0, 0.0], [-1.0, 1.0]]),
         scales={"x": sx, "y": sy},
         colors=[MUTED],
         stroke_width=1,
@@ -97,16 +109,22 @@ def complex_plane(
 
 
 def origin_guides(guides: bq.Lines, points: np.ndarray) -> None:
-    """Stretch the dashed guides through the origin over the range of ``points``."""
+    """Stretch the dashed guides through the origin over the range of ``points``.
+
+    Each axis spans at least a third of the other, so that rounding-level imaginary parts of
+    real numbers stay on the real axis instead of being blown up to fill the plot.
+    """
     z = np.concatenate([np.asarray(points, complex).ravel(), [0j]])
-    re_lo, re_hi = _padded(z.real)
-    im_lo, im_hi = _padded(z.imag)
+    re_lo, re_hi = float(np.min(z.real)), float(np.max(z.real))
+    im_lo, im_hi = float(np.min(z.imag)), float(np.max(z.imag))
+    size = max(re_hi - re_lo, im_hi - im_lo, 1e-300)
+    re_lo, re_hi = _widened(re_lo, re_hi, size / 3)
+    im_lo, im_hi = _widened(im_lo, im_hi, size / 3)
     with guides.hold_sync():
         guides.x = np.array([[re_lo, re_hi], [0.0, 0.0]])
         guides.y = np.array([[0.0, 0.0], [im_lo, im_hi]])
 
 
-def _padded(v: np.ndarray) -> tuple[float, float]:
-    lo, hi = float(np.min(v)), float(np.max(v))
-    span = hi - lo or max(abs(hi), 1.0)
-    return lo - 0.08 * span, hi + 0.08 * span
+def _widened(lo: float, hi: float, least: float) -> tuple[float, float]:
+    mid, half = (lo + hi) / 2, max(hi - lo, least) / 2
+    return mid - 1.1 * half, mid + 1.1 * half

@@ -37,6 +37,7 @@ class VerdictPanel(widgets.HBox):
     def __init__(self) -> None:
         self.summary = widgets.HTML(layout=widgets.Layout(width="42%", padding="0 12px 0 0"))
         sx, sy = bq.LinearScale(), bq.LinearScale()
+        self._scales = (sx, sy)
         self.edges = bq.Lines(
             x=np.zeros((0, 2)),
             y=np.zeros((0, 2)),
@@ -84,7 +85,7 @@ class VerdictPanel(widgets.HBox):
             text=[],
             scales={"x": sx, "y": sy},
             colors=[INK],
-            font_size=11,
+            default_size=11,
             x_offset=7,
             y_offset=-7,
         )
@@ -120,6 +121,7 @@ class VerdictPanel(widgets.HBox):
             self.edges.x = pos[pairs, 0] if len(pairs) else np.zeros((0, 2))
             self.edges.y = pos[pairs, 1] if len(pairs) else np.zeros((0, 2))
             self.vertices.x, self.vertices.y = pos[:, 0], pos[:, 1]
+            _frame(self._scales, pos, labelled=small)
             self.vertices.names = [f"{j}: {t}" for j, t in enumerate(names)]
             self.vertices.default_size = 48 if small else 14
             self.witness.x, self.witness.y = pos[witness, 0], pos[witness, 1]
@@ -160,3 +162,12 @@ def _summary_html(v: fl.Verdict, n_terms: int) -> str:
         f'<ul style="margin:4px 0 4px 16px; padding:0; font-size:12.5px; line-height:1.35;">'
         f"{reasons}</ul>{more}"
     )
+
+
+def _frame(scales: tuple[bq.LinearScale, bq.LinearScale], pos: np.ndarray, labelled: bool) -> None:
+    """Fix the scales around the vertices, with room on the right for the term labels."""
+    lo, hi = pos.min(axis=0), pos.max(axis=0)
+    span = np.maximum(hi - lo, 1e-9)
+    right = 0.22 if labelled else 0.04
+    scales[0].min, scales[0].max = float(lo[0] - 0.04 * span[0]), float(hi[0] + right * span[0])
+    scales[1].min, scales[1].max = float(lo[1] - 0.08 * span[1]), float(hi[1] + 0.1 * span[1])
