@@ -33,7 +33,7 @@ from freeladder.verify import Check, hamiltonian_check
 
 __all__ = [
     "CLAW_FREE_KINDS",
-    "COMMUTATOR_PRODUCT_LIMIT",
+    "COMMUTATOR_WORK_LIMIT",
     "ED_OVERLAY_DIMENSION",
     "PARTIAL_DEGREE_LIMIT",
     "Analysis",
@@ -52,8 +52,9 @@ __all__ = [
 ED_OVERLAY_DIMENSION = 1024
 #: Largest degree of P for which the partial polynomials P_s are expanded and their roots drawn.
 PARTIAL_DEGREE_LIMIT = 60
-#: Largest number of products for which [H, Q^(s)] is checked order by order in the series view.
-COMMUTATOR_PRODUCT_LIMIT = 2000
+#: Largest (products of order s) x (terms) for which [H, Q^(s)] is checked in the series view
+#: (the string-algebra commutator forms about that many products).
+COMMUTATOR_WORK_LIMIT = 50_000
 #: Verdicts the library gives only to claw-free frustration graphs (N = 2).
 CLAW_FREE_KINDS = ("jordan-wigner", "hidden-free", "integrable")
 
@@ -196,14 +197,15 @@ def partial_roots(a: Analysis, s: int) -> np.ndarray | None:
 def order_commutes(a: Analysis, s: int) -> Check | None:
     """``[H, Q^(s)] = 0`` for the one order s, in the library's exact string algebra.
 
-    None when order s has more than :data:`COMMUTATOR_PRODUCT_LIMIT` products (the checks
-    panel's sweep decides all orders at once without listing them).
+    None when the products of order s times the number of terms exceed
+    :data:`COMMUTATOR_WORK_LIMIT` (the checks panel's sweep decides all orders at once without
+    listing them).
     """
     counts = a.charge_counts
-    if s < 1 or s >= len(counts) or counts[s] > COMMUTATOR_PRODUCT_LIMIT:
+    if s < 1 or s >= len(counts) or counts[s] * len(a.model) > COMMUTATOR_WORK_LIMIT:
         return None
     h = StringSum.from_model(a.model)
-    return hamiltonian_check(h, [fl.charge(a.model, s, limit=COMMUTATOR_PRODUCT_LIMIT)])
+    return hamiltonian_check(h, [fl.charge(a.model, s, limit=counts[s])])
 
 
 def real_roots_reason(a: Analysis) -> str | None:

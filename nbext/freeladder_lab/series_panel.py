@@ -36,7 +36,15 @@ from .style import (
     status_words,
 )
 
-__all__ = ["LATEX_PRODUCTS", "PAGE", "OrderView", "SeriesPanel"]
+__all__ = [
+    "AUTO_LIST_TERMS",
+    "LATEX_PRODUCTS",
+    "MAX_PAGES",
+    "PAGE",
+    "OrderView",
+    "SeriesPanel",
+    "order_view",
+]
 
 #: Orders with at most this many products are written out in LaTeX.
 LATEX_PRODUCTS = 12
@@ -44,6 +52,8 @@ LATEX_PRODUCTS = 12
 PAGE = 20
 #: Pages beyond this are not listed (each page lists the products before it).
 MAX_PAGES = 50
+#: Models with at most this many terms list the products of an order without being asked.
+AUTO_LIST_TERMS = 300
 
 
 @dataclass(frozen=True)
@@ -60,16 +70,27 @@ class OrderView:
     target: np.ndarray | None
 
 
-def order_view(a: Analysis, s: int, page: int) -> OrderView:
-    """Collect everything the panel shows for order ``s`` (page ``page`` of the product list)."""
+def order_view(a: Analysis, s: int, page: int, listed: bool = True) -> OrderView:
+    """Collect everything the panel shows for order ``s``.
+
+    The products are written out in LaTeX when there are few; otherwise page ``page`` of the
+    text list is shown when ``listed`` (enumerating them can take seconds on long chains).
+    """
     counts = a.charge_counts
     step = a.charge_series()[s]
     alpha = len(counts) - 1
+    if step.count <= LATEX_PRODUCTS or listed:
+        products = _products_html(step, page)
+    else:
+        products = (
+            f"<div>The {step.count} products of Q<sup>({s})</sup> are counted, not listed; "
+            "press <i>list the products</i> to page through them.</div>"
+        )
     return OrderView(
         analysis=a,
         order=s,
         count=counts[s],
-        products_html=_products_html(step, page),
+        products_html=products,
         commutes=order_commutes(a, s),
         partial=partial_coefficients(a, s),
         roots=partial_roots(a, s),
@@ -179,6 +200,13 @@ class SeriesPanel(widgets.HBox):
             style={"description_width": "initial"},
             layout=widgets.Layout(width="140px"),
         )
+        self.listed = widgets.ToggleButton(
+            True,
+            description="list the products",
+            tooltip="page through the products of this order (slow for long chains)",
+            icon="list",
+            layout=widgets.Layout(width="170px"),
+        )
         self.count = widgets.HTML()
         self.products = widgets.HTMLMath()
         self.commutes = widgets.HTML()
@@ -221,7 +249,7 @@ class SeriesPanel(widgets.HBox):
                 self.count,
                 self.commutes,
                 self.products,
-                self.page,
+                widgets.HBox([self.listed, self.page]),
                 self.transfer,
                 self.polynomial,
             ],
@@ -231,6 +259,7 @@ class SeriesPanel(widgets.HBox):
         super().__init__([left, right])
         self.order.observe(lambda change: self.show_order(), "value")
         self.page.observe(lambda change: self.show_order(), "value")
+        self.listed.observe(lambda change: self.show_order(), "value")
 
     @property
     def alpha(self) -> int:
@@ -238,13 +267,20 @@ class SeriesPanel(widgets.HBox):
         return int(self.order.max)
 
     def show(self, a: Analysis) -> None:
-        """A new model: the order control spans 0..alpha(G) and starts at alpha."""
+        """A new model: the order control spans 0..alpha(G).
+
+        It starts at alpha, where P_s = P, when the partial polynomials are drawn; for larger
+        models (whose highest orders take long to list) at order 1, Q^(1) = H.
+        """
         self._analysis = a
         alpha = len(a.charge_counts) - 1
+        start = alpha if alpha <= PARTIAL_DEGREE_LIMIT else min(1, alpha)
         with self.order.hold_trait_notifications():
             self.order.max = alpha
             self.play.max = alpha
-            self.order.value = alpha
+            self.order.value = start
+            self.page.value = 0
+            self.listed.value = len(a.model) <= AUTO_LIST_TERMS
         self.show_order()
 
     def show_order(self) -> None:
@@ -256,7 +292,8 @@ class SeriesPanel(widgets.HBox):
         pages = min(MAX_PAGES, max(0, (a.charge_counts[s] - 1) // PAGE))
         self.page.max = pages
         page = min(int(self.page.value), pages)
-        self._submit(f"order {s}", lambda: order_view(a, s, page), self._apply)
+        listed = bool(self.listed.value)
+        self._submit(f"order {s}", lambda: order_view(a, s, page, listed), self._apply)
 
     def _apply(self, view: OrderView) -> None:
         if view.analysis is not self._analysis:
@@ -267,7 +304,9 @@ class SeriesPanel(widgets.HBox):
             f"<b>order {s}</b> of {len(total) - 1}: {_plural(count, 'product')} of {s} mutually "
             "commuting terms (counted exactly, not listed)"
         )
-        self.page.layout.display = "none" if count <= LATEX_PRODUCTS else ""
+        few = count <= LATEX_PRODUCTS
+        self.page.layout.display = "none" if few or not self.listed.value else ""
+        self.listed.layout.display = "none" if few else ""
         self.products.value = view.products_html
         c = view.commutes
         if s == 0:
