@@ -69,6 +69,7 @@ def measure(size: int) -> list[tuple[str, float, float]]:
     library_new = best(lambda: library_work(analyze(fresh["m"])), new_model)
 
     base = wb.model
+    assert base is not None
     seeds = iter(range(100, 200))
 
     def new_couplings() -> None:
