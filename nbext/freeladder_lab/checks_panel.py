@@ -14,6 +14,16 @@ from .style import INK, WARN, escape, status_words
 __all__ = ["ChecksPanel", "report_html"]
 
 _HEAD = ("check", "method", "tolerance", "value", "result", "time", "reference")
+# short columns stay on one line; the method and reference wrap in a smaller font
+_WRAP = (
+    "",
+    " font-size:11.5px;",
+    " white-space:nowrap;",
+    " white-space:nowrap;",
+    " white-space:nowrap;",
+    " white-space:nowrap;",
+    " font-size:11.5px;",
+)
 
 
 class ChecksPanel(widgets.VBox):
@@ -68,7 +78,10 @@ def report_html(report: fl.Report) -> str:
         )
         rows.append(
             "<tr style='border-top:1px solid #d6dde0'>"
-            + "".join(f"<td style='padding:2px 8px; vertical-align:top'>{x}</td>" for x in cells)
+            + "".join(
+                f"<td style='padding:2px 8px; vertical-align:top;{_WRAP[k]}'>{x}</td>"
+                for k, x in enumerate(cells)
+            )
             + "</tr>"
             + f"<tr><td></td><td colspan='6' style='padding:0 8px 4px 8px; font-size:11.5px;"
             f" color:#4f5d64'>{escape(c.detail)}</td></tr>"

@@ -104,7 +104,7 @@ class InputPanel(widgets.VBox):
         )
         right = widgets.VBox(
             [
-                widgets.HTML("<b>Or build from a family</b>"),
+                widgets.HTML("<b>Or build from a family</b> (replaces the model)"),
                 self.family,
                 self.size,
                 self.reach,

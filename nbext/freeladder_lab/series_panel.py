@@ -159,7 +159,10 @@ def _polynomial_latex(s: int, coeffs: tuple[Any, ...] | None, degree: int) -> st
             parts.append(f"+ {text}\\,{mono}")
     if len(parts) > 9:
         parts = parts[:5] + ["+ \\cdots"] + parts[-3:]
-    return f"$$P_{{{s}}}(y) = {' '.join(parts)}$$"
+    per_line = 2 if any(isinstance(c, complex) and c.imag for c in coeffs) else 4
+    lines = [" ".join(parts[i : i + per_line]) for i in range(0, len(parts), per_line)]
+    body = " \\\\ &\\quad ".join(lines)
+    return f"$$\\begin{{aligned}} P_{{{s}}}(y) &= {body} \\end{{aligned}}$$"
 
 
 class SeriesPanel(widgets.HBox):
@@ -253,7 +256,7 @@ class SeriesPanel(widgets.HBox):
                 self.transfer,
                 self.polynomial,
             ],
-            layout=widgets.Layout(width="52%", padding="0 12px 0 0"),
+            layout=widgets.Layout(width="52%", padding="0 12px 0 0", overflow="auto"),
         )
         right = widgets.VBox([self.figure, self.legend], layout=widgets.Layout(width="48%"))
         super().__init__([left, right])

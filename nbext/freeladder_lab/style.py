@@ -56,7 +56,7 @@ def escape(text: Any) -> str:
 
 def number_text(v: Any, digits: int = 6) -> str:
     """A number in at most ``digits`` significant figures, ``a + bi`` when complex."""
-    z = complex(v)
+    z = complex(v) + 0.0  # adding 0.0 turns a negative zero into zero
     if z.imag == 0 or abs(z.imag) <= 1e-15 * max(1.0, abs(z.real)):
         return f"{z.real:.{digits}g}"
     sign = "-" if z.imag < 0 else "+"
@@ -79,14 +79,14 @@ def complex_plane(
     :func:`origin_guides` when the data range changes).
     """
     sx, sy = bq.LinearScale(), bq.LinearScale()
-    ax = bq.Axis(scale=sx, label=x_label, grid_lines="none", num_ticks=5, tick_format=TICKS)
+    ax = bq.Axis(scale=sx, label=x_label, grid_lines="none", tick_format=TICKS)
     ay = bq.Axis(
         scale=sy,
         label=y_label,
         side="left",
         grid_lines="none",
-        num_ticks=5,
         tick_format=TICKS,
+        label_offset="50px",
     )
     # the guides start over [-1, 1] so that the scales never see an empty or single-point domain
     guides = bq.Lines(
@@ -101,7 +101,7 @@ def complex_plane(
         marks=[guides],
         axes=[ax, ay],
         title=title,
-        fig_margin={"top": 36, "bottom": 44, "left": 58, "right": 16},
+        fig_margin={"top": 36, "bottom": 44, "left": 66, "right": 16},
         layout=widgets.Layout(width="100%", height=height),
         title_style={"font-size": "14px"},
     )
