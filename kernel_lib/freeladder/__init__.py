@@ -5,6 +5,7 @@ free spectrum, build the conserved charges and the exclusion polynomial, find it
 stated error bounds, and compare with exact diagonalization.
 """
 
+from .analysis import Analysis, analyze
 from .builders import (
     clock_chain,
     complex_couplings,
@@ -16,7 +17,14 @@ from .builders import (
     staggered,
 )
 from .certify import CertifiedRoots, ChainEnclosures, certified_roots, certify_chain_roots
-from .charges import ChargeStep, ChargeTerm, charge, charge_series, transfer_matrix
+from .charges import (
+    ChargeStep,
+    ChargeTerm,
+    charge,
+    charge_counts,
+    charge_series,
+    transfer_matrix,
+)
 from .ed import ExactSpectrum, exact_spectrum
 from .edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
 from .graph import (
@@ -26,6 +34,7 @@ from .graph import (
     frustration_adjacency,
     frustration_graph,
 )
+from .majorana import SectorSpectrum, SectorStructure, jordan_wigner_spectrum, sectors
 from .model import Model, Term
 from .operators import StringSum
 from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
@@ -45,6 +54,13 @@ from .verdict import ComponentVerdict, Verdict, classify
 from .verify import Check, Report, verify
 
 __all__ = [
+    "SectorSpectrum",
+    "SectorStructure",
+    "jordan_wigner_spectrum",
+    "sectors",
+    "Analysis",
+    "analyze",
+    "charge_counts",
     "ChainData",
     "ChainStructure",
     "CertifiedRoots",

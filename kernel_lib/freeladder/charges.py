@@ -32,6 +32,7 @@ import numpy as np
 import scipy.sparse as sps
 import sympy
 
+from .cache import structure_store
 from .graph import chain_structure
 from .model import Model
 from .operators import StringSum
@@ -70,9 +71,19 @@ def _check_model(m: Any) -> Model:
     return m
 
 
-def _counts(m: Model) -> tuple[int, ...]:
-    """Number of independent sets of each size 0 .. alpha (cached on the model)."""
-    store = m.__dict__
+def charge_counts(m: Model) -> tuple[int, ...]:
+    """Number of independent sets of each size ``0 .. alpha(G)``: the products in each charge.
+
+    Counted, never listed (binomials for exclusion chains, the independence polynomial with
+    unit weights otherwise); kept with the model's strings, so a coupling change reuses it.
+
+    Examples
+    --------
+    >>> import freeladder as fl
+    >>> charge_counts(fl.exclusion_chain(5))  # a path: 1 + 5 + 6 + 1 = 13 = Fibonacci F(7)
+    (1, 5, 6, 1)
+    """
+    store = structure_store(m.strings)
     if _COUNTS_KEY not in store:
         chain = chain_structure(m) if len(m) else None
         if chain is not None:
@@ -210,7 +221,7 @@ def charge_series(m: Model, limit: int = DEFAULT_LIMIT) -> Iterator[ChargeStep]:
     [1, 5, 6, 1]
     """
     m = _check_model(m)
-    for s, count in enumerate(_counts(m)):
+    for s, count in enumerate(charge_counts(m)):
         yield ChargeStep(s, count, int(limit), m)
 
 
@@ -280,7 +291,7 @@ def charge(m: Model, s: int, limit: int = DEFAULT_LIMIT) -> StringSum:
     s = int(s)
     if s < 0:
         raise ValueError(f"the order of a charge must be >= 0, got {s}")
-    counts = _counts(m)
+    counts = charge_counts(m)
     if s >= len(counts):
         return StringSum.zero(m.states, m.sites)
     _check_limit(counts[s], limit, s)
@@ -316,7 +327,7 @@ def transfer_matrix(m: Model, u: Any, limit: int = DEFAULT_LIMIT) -> StringSum:
     F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622.
     """
     m = _check_model(m)
-    counts = _counts(m)
+    counts = charge_counts(m)
     _check_limit(sum(counts), limit, None)
     graph = independence_graph(m)
     xs, zs, phases = [], [], []

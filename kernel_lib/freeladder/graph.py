@@ -30,22 +30,13 @@ import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
 
+from .cache import cached, structure_store
 from .model import Model
-
-_CACHE_PREFIX = "_freeladder_graph_"
 
 
 def _cached(m: Model, key: str, build: Any) -> Any:
-    """Compute ``build(m)`` once per model.
-
-    Models are immutable, so a derived value stored in the instance ``__dict__`` stays valid
-    for the life of the model (``Model.__setattr__`` is blocked, the dictionary is not).
-    """
-    slot = _CACHE_PREFIX + key
-    store = m.__dict__
-    if slot not in store:
-        store[slot] = build(m)
-    return store[slot]
+    """Compute ``build(m)`` once per list of strings (these values ignore the couplings)."""
+    return cached(structure_store(m.strings), "graph:" + key, lambda: build(m))
 
 
 def _check_model(m: Any) -> Model:

@@ -35,6 +35,7 @@ import flint
 import numpy as np
 import sympy
 
+from .cache import model_store, structure_store
 from .graph import chain_structure, frustration_adjacency
 from .independent import Algebra, IndependenceGraph
 from .model import Model, to_python_number
@@ -629,7 +630,7 @@ def independence_graph(m: Model) -> IndependenceGraph:
     Chains use their chain order (every subproblem is then a suffix of the chain); other
     graphs the reverse Cuthill-McKee order.
     """
-    store = m.__dict__
+    store = structure_store(m.strings)
     key = _CACHE_KEY + "_graph"
     if key not in store:
         chain = chain_structure(m) if len(m) else None
@@ -679,7 +680,7 @@ def exclusion_polynomial(m: Model) -> ExclusionPolynomial:
     """
     if not isinstance(m, Model):
         raise TypeError(f"expected a freeladder Model, got {type(m).__name__}")
-    store = m.__dict__
+    store = model_store(m)
     if _CACHE_KEY not in store:
         store[_CACHE_KEY] = _build(m)
     return store[_CACHE_KEY]  # type: ignore[no-any-return]

@@ -1,0 +1,74 @@
+"""fl.analyze: one computation per part, coupling-independent parts shared across couplings."""
+
+from __future__ import annotations
+
+import networkx as nx
+import numpy as np
+import pytest
+
+import freeladder as fl
+from freeladder.cache import structure_store
+
+
+def test_parts_agree_with_the_library_functions():
+    m = fl.exclusion_chain(9, reach=2, couplings=fl.staggered(9, 1.0, 0.6))
+    a = fl.analyze(m)
+    assert a.verdict.kind == fl.classify(m).kind
+    assert a.polynomial.coefficients == fl.exclusion_polynomial(m).coefficients
+    np.testing.assert_allclose(a.spectrum().quasi_energies, fl.free_spectrum(m).quasi_energies)
+    assert a.charge_counts == tuple(step.count for step in fl.charge_series(m))
+    assert a.independence_number == len(a.charge_counts) - 1
+    assert nx.is_isomorphic(a.graph, fl.frustration_graph(m))
+    # the exact reference: numpy dense diagonalization through fl.exact_spectrum
+    assert a.exact is not None
+    assert abs(a.exact.levels[0] - a.spectrum().ground_energy) < 1e-9
+
+
+def test_each_part_is_computed_once(monkeypatch):
+    m = fl.exclusion_chain(7, reach=1)
+    a = fl.analyze(m)
+    first = a.spectrum()
+    assert a.spectrum() is first
+    assert fl.analyze(m).spectrum() is first  # a second analysis of the same model shares it
+    assert a.verdict is a.verdict
+
+
+def test_coupling_change_reuses_structure_and_recomputes_values():
+    m = fl.exclusion_chain(8, reach=2)
+    a = fl.analyze(m)
+    _ = a.verdict, a.charge_counts, a.spectrum()
+    shared = dict(structure_store(m.strings))
+    assert shared, "structure parts are kept with the strings"
+    b = a.with_couplings(fl.staggered(8, 1.0, 0.3))
+    assert b.model.strings is m.strings
+    assert b.verdict.model is b.model  # the witness text prints the new couplings
+    assert b.verdict.kind == a.verdict.kind
+    for key, value in shared.items():
+        assert structure_store(b.model.strings)[key] is value
+    # values that depend on the couplings are new, and right (numpy dense reference)
+    h = b.model.to_sparse().toarray()
+    assert abs(np.linalg.eigvalsh(h)[0] - b.spectrum().ground_energy) < 1e-9
+    assert b.spectrum().ground_energy != pytest.approx(a.spectrum().ground_energy)
+
+
+def test_failures_are_raised_again_not_hidden():
+    m = fl.parse_model("g X0 + Z0 Z1 + X1")
+    a = fl.analyze(m)
+    with pytest.raises(ValueError, match="symbolic"):
+        a.spectrum()
+    with pytest.raises(ValueError, match="symbolic"):
+        a.spectrum()
+    assert a.exact is None  # symbolic couplings: no numbers to diagonalize
+    d = a.to_dict()
+    assert d["spectrum"]["error"] == "ValueError"
+
+
+def test_analysis_is_immutable_and_json_ready():
+    import json
+
+    a = fl.analyze(fl.exclusion_chain(5))
+    with pytest.raises(AttributeError):
+        a.model = fl.exclusion_chain(4)  # type: ignore[misc]
+    text = json.dumps(a.to_dict(), allow_nan=False)
+    assert '"terms": 5' in text
+    assert fl.analyze(a) is a

@@ -1,0 +1,81 @@
+"""The command line: ``freeladder report`` on good and malformed input (run as a subprocess)."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+
+import numpy as np
+
+import freeladder as fl
+
+ISING = "X0 + 0.5 Z0 Z1 + X1 + 0.5 Z1 Z2 + X2"
+
+
+def run(*args: str) -> subprocess.CompletedProcess[str]:
+    return subprocess.run(
+        [sys.executable, "-m", "freeladder", *args],
+        capture_output=True,
+        text=True,
+        timeout=300,
+        check=False,
+    )
+
+
+def test_report_json_matches_exact_diagonalization():
+    done = run("report", ISING, "--json")
+    assert done.returncode == 0, done.stderr
+    data = json.loads(done.stdout)
+    for key in ("verdict", "quasi_energies", "ground_energy", "gap", "checks"):
+        assert key in data
+    # reference: numpy dense diagonalization of the same Hamiltonian (common practice)
+    h = fl.parse_model(ISING).to_sparse().toarray()
+    levels = np.linalg.eigvalsh(h)
+    assert abs(data["ground_energy"] - levels[0]) < 1e-10
+    assert abs(data["gap"] - (levels[1] - levels[0])) < 1e-10
+    assert data["ok"] is True
+    assert all(c["status"] in ("passed", "not run") for c in data["checks"])
+    assert any(c["status"] == "passed" for c in data["checks"])
+
+
+def test_report_text_and_model_file(tmp_path):
+    path = tmp_path / "chain.txt"
+    path.write_text(ISING + "\n", encoding="utf-8")
+    done = run("report", str(path), "--no-checks")
+    assert done.returncode == 0, done.stderr
+    assert "verdict: jordan-wigner" in done.stdout
+    assert "ground energy:" in done.stdout
+
+
+def test_clock_model_gives_complex_numbers_as_pairs():
+    text = "X0 Z1 + X1 Z2 + X2 Z3"
+    done = run("report", text, "--states", "3", "--json", "--no-checks")
+    assert done.returncode == 0, done.stderr
+    data = json.loads(done.stdout)
+    eta = data["quasi_energies"]
+    assert eta and all(isinstance(e, list) and len(e) == 2 for e in eta)
+    # reference: every free level is an eigenvalue of the dense matrix (numpy); the ground
+    # energy of a Z3 chain with unit couplings is -sum eta (BACKGROUND section 8)
+    h = fl.parse_model(text, states=3).to_sparse().toarray()
+    exact = np.linalg.eigvals(h)
+    e0 = (
+        complex(*data["ground_energy"])
+        if isinstance(data["ground_energy"], list)
+        else data["ground_energy"]
+    )
+    assert np.min(np.abs(exact - e0)) < 1e-9
+
+
+def test_malformed_text_exits_2_with_caret_and_no_traceback():
+    done = run("report", "0.5 X0 Q1 + Z2")
+    assert done.returncode == 2
+    assert "Traceback" not in done.stderr
+    assert "^" in done.stderr and "column" in done.stderr
+    assert done.stdout == ""
+
+
+def test_bad_options_exit_2():
+    done = run("report", "X0", "--states", "one")
+    assert done.returncode == 2
+    assert "Traceback" not in done.stderr
