@@ -1,12 +1,13 @@
 """Where the Workbench gets its numbers: the one module between the widgets and ``freeladder``.
 
-Every number the Workbench shows comes through here from the kernel library.  The panels never
-call ``freeladder`` themselves; they read an :class:`Analysis` and the few helpers below.
+Every number the Workbench shows comes through here from the kernel library.  The Workbench
+holds a :class:`freeladder.Analysis` (``fl.analyze(model)``: each part computed once, the
+coupling-independent ones shared by every model with the same strings); the panels read it and
+the few helpers below.
 
-:class:`Analysis` is a stand-in with the interface of the library's ``fl.analyze(model)`` (the
-coupling-independent parts -- graph, verdict, charge counts -- are computed once and shared by
-:meth:`Analysis.with_couplings`).  When the library's own ``Analysis`` is available, replacing
-:func:`analyze` by it is the whole switch.
+Two helpers compute what the library does not expose yet: the partial polynomial ``P_s`` is P's
+coefficients truncated after order s, and its roots come from numpy's companion-matrix
+eigenvalues (an estimate, drawn only to show the roots settling as orders are added).
 
 References
 ----------
@@ -18,10 +19,9 @@ roots of claw-free independence polynomials).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from functools import cached_property
+from itertools import islice
 from typing import Any
 
-import networkx as nx
 import numpy as np
 
 import freeladder as fl
@@ -36,9 +36,10 @@ __all__ = [
     "COMMUTATOR_WORK_LIMIT",
     "ED_OVERLAY_DIMENSION",
     "PARTIAL_DEGREE_LIMIT",
-    "Analysis",
     "Refusal",
     "analyze",
+    "charge_step",
+    "exact_overlay",
     "order_commutes",
     "partial_coefficients",
     "partial_roots",
@@ -59,91 +60,21 @@ COMMUTATOR_WORK_LIMIT = 50_000
 CLAW_FREE_KINDS = ("jordan-wigner", "hidden-free", "integrable")
 
 
-class Analysis:
-    """Every part of one model's derivation, computed lazily and once.
-
-    Parameters
-    ----------
-    model : freeladder.Model
-        A model with numeric couplings.
-    """
-
-    def __init__(self, model: fl.Model, _shared: Analysis | None = None) -> None:
-        self.model = model
-        if _shared is not None:
-            # coupling-independent parts: the strings are the same
-            for name in ("graph", "verdict", "chain", "charge_counts"):
-                if name in _shared.__dict__:
-                    self.__dict__[name] = _shared.__dict__[name]
-
-    @cached_property
-    def graph(self) -> nx.Graph:
-        """The frustration graph (networkx)."""
-        return fl.frustration_graph(self.model)
-
-    @cached_property
-    def verdict(self) -> fl.Verdict:
-        """Which theorem applies, why, and the witness when one is blocked."""
-        return fl.classify(self.model)
-
-    @cached_property
-    def chain(self) -> fl.ChainStructure | None:
-        """The exclusion-chain order of the terms, when they form one."""
-        return fl.chain_structure(self.model)
-
-    @cached_property
-    def charge_counts(self) -> tuple[int, ...]:
-        """Number of products of each order s = 0 .. alpha(G) (counted, never listed)."""
-        return tuple(step.count for step in fl.charge_series(self.model))
-
-    @cached_property
-    def polynomial(self) -> fl.ExclusionPolynomial:
-        """The exclusion polynomial P(y)."""
-        return fl.exclusion_polynomial(self.model)
-
-    def charge_series(self) -> list[fl.ChargeStep]:
-        """The charge series, one :class:`freeladder.ChargeStep` per order."""
-        return list(fl.charge_series(self.model))
-
-    def spectrum(self, unproven: bool = False) -> fl.FreeSpectrum:
-        """The free spectrum; raises :class:`NoTheoremError` unless a theorem guarantees it.
-
-        With ``unproven=True`` the numbers come back even without a theorem (marked).
-        """
-        return _spectrum(self.model, unproven)
-
-    @cached_property
-    def exact(self) -> fl.ExactSpectrum | None:
-        """Exact diagonalization for small dimensions, None above the overlay limit."""
-        if self.model.dimension > ED_OVERLAY_DIMENSION or self.model.is_symbolic:
-            return None
-        return fl.exact_spectrum(self.model)
-
-    def report(self, **verify_kwargs: Any) -> fl.Report:
-        """The ``verify`` report."""
-        return fl.verify(self.model, **verify_kwargs)
-
-    def with_couplings(self, couplings: Any) -> Analysis:
-        """The same strings with new couplings, reusing graph, verdict and counts."""
-        return Analysis(self.model.with_couplings(couplings), _shared=self)
+def analyze(model: fl.Model) -> fl.Analysis:
+    """The library's analysis of ``model`` (parts computed lazily, once; structure shared)."""
+    return fl.analyze(model)
 
 
-def analyze(model: fl.Model) -> Analysis:
-    """Start the derivation of ``model`` (nothing is computed until asked for)."""
-    return Analysis(model)
+def exact_overlay(a: fl.Analysis) -> fl.ExactSpectrum | None:
+    """Exact diagonalization for the ladder's overlay, None above :data:`ED_OVERLAY_DIMENSION`."""
+    if a.model.dimension > ED_OVERLAY_DIMENSION or a.model.is_symbolic:
+        return None
+    return a.exact
 
 
-def _spectrum(model: fl.Model, unproven: bool) -> fl.FreeSpectrum:
-    try:
-        sp = fl.free_spectrum(model)
-    except NoTheoremError:
-        if not unproven:
-            raise
-        return fl.free_spectrum(model, unproven=True)  # type: ignore[call-arg]
-    if not sp.provenance.get("guaranteed", True) and not unproven:
-        # the library of today returns these numbers marked; the Workbench refuses them
-        raise NoTheoremError(str(sp.provenance.get("guarantee", "no theorem applies")))
-    return sp
+def charge_step(a: fl.Analysis, s: int) -> fl.ChargeStep:
+    """The charge series' step of order ``s``."""
+    return next(islice(a.charge_series(), s, None))
 
 
 @dataclass(frozen=True)
@@ -153,12 +84,22 @@ class Refusal:
     reason: str
 
 
-def spectrum_or_refusal(a: Analysis, unproven: bool) -> fl.FreeSpectrum | Refusal:
-    """The spectrum, or the library's stated reason for refusing it."""
+def spectrum_or_refusal(a: fl.Analysis, unproven: bool) -> fl.FreeSpectrum | Refusal:
+    """The spectrum, or the library's stated reason for refusing it.
+
+    With ``unproven`` the numbers come back even when no theorem covers the model (marked by
+    their provenance).  A spectrum whose provenance says it is not guaranteed is refused here
+    too, unless ``unproven``.
+    """
     try:
-        return a.spectrum(unproven=unproven)
+        sp = a.spectrum()
     except NoTheoremError as exc:
-        return Refusal(str(exc))
+        if not unproven:
+            return Refusal(str(exc))
+        return a.spectrum(unproven=True)
+    if not unproven and not sp.provenance.get("guaranteed", True):
+        return Refusal(str(sp.provenance.get("guarantee", "no theorem covers this model")))
+    return sp
 
 
 def term_labels(model: fl.Model) -> list[str]:
@@ -166,7 +107,7 @@ def term_labels(model: fl.Model) -> list[str]:
     return [format_terms([(1, t.string)]) for t in model.terms]
 
 
-def partial_coefficients(a: Analysis, s: int) -> tuple[Any, ...] | None:
+def partial_coefficients(a: fl.Analysis, s: int) -> tuple[Any, ...] | None:
     """Coefficients of ``P_s(y) = sum_{r <= s} (-y)^r C_r`` (constant first), or None.
 
     ``P_s`` is P truncated after order s: the charges up to order s contribute ``C_r``.  None
@@ -178,7 +119,7 @@ def partial_coefficients(a: Analysis, s: int) -> tuple[Any, ...] | None:
     return tuple(a.polynomial.coefficients[: s + 1])
 
 
-def partial_roots(a: Analysis, s: int) -> np.ndarray | None:
+def partial_roots(a: fl.Analysis, s: int) -> np.ndarray | None:
     """Roots of ``P_s`` by numpy's companion-matrix eigenvalues (a numerical estimate).
 
     Returns an empty array for s = 0 (no roots) and None when the coefficients are not
@@ -194,7 +135,7 @@ def partial_roots(a: Analysis, s: int) -> np.ndarray | None:
     return np.asarray(np.roots(values[: nonzero[-1] + 1][::-1]), dtype=complex)
 
 
-def order_commutes(a: Analysis, s: int) -> Check | None:
+def order_commutes(a: fl.Analysis, s: int) -> Check | None:
     """``[H, Q^(s)] = 0`` for the one order s, in the library's exact string algebra.
 
     None when the products of order s times the number of terms exceed
@@ -208,7 +149,7 @@ def order_commutes(a: Analysis, s: int) -> Check | None:
     return hamiltonian_check(h, [fl.charge(a.model, s, limit=counts[s])])
 
 
-def real_roots_reason(a: Analysis) -> str | None:
+def real_roots_reason(a: fl.Analysis) -> str | None:
     """Why every root of P is real and positive, or None when no theorem says so.
 
     For N = 2 and real couplings the weights ``c_j^2`` are positive, and the independence

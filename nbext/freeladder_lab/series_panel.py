@@ -20,7 +20,7 @@ import freeladder as fl
 
 from .adapter import (
     PARTIAL_DEGREE_LIMIT,
-    Analysis,
+    charge_step,
     order_commutes,
     partial_coefficients,
     partial_roots,
@@ -60,7 +60,7 @@ AUTO_LIST_TERMS = 300
 class OrderView:
     """What the series panel shows for one order s (all numbers from the library)."""
 
-    analysis: Analysis
+    analysis: fl.Analysis
     order: int
     count: int
     products_html: str
@@ -70,14 +70,14 @@ class OrderView:
     target: np.ndarray | None
 
 
-def order_view(a: Analysis, s: int, page: int, listed: bool = True) -> OrderView:
+def order_view(a: fl.Analysis, s: int, page: int, listed: bool = True) -> OrderView:
     """Collect everything the panel shows for order ``s``.
 
     The products are written out in LaTeX when there are few; otherwise page ``page`` of the
     text list is shown when ``listed`` (enumerating them can take seconds on long chains).
     """
     counts = a.charge_counts
-    step = a.charge_series()[s]
+    step = charge_step(a, s)
     alpha = len(counts) - 1
     if step.count <= LATEX_PRODUCTS or listed:
         products = _products_html(step, page)
@@ -176,7 +176,7 @@ class SeriesPanel(widgets.HBox):
 
     def __init__(self, submit: Callable[[str, Callable[[], Any], Callable[[Any], Any]], Any]):
         self._submit = submit
-        self._analysis: Analysis | None = None
+        self._analysis: fl.fl.Analysis | None = None
         self.order = widgets.IntSlider(
             0,
             min=0,
@@ -269,7 +269,7 @@ class SeriesPanel(widgets.HBox):
         """The highest order alpha(G) of the model on screen."""
         return int(self.order.max)
 
-    def show(self, a: Analysis) -> None:
+    def show(self, a: fl.Analysis) -> None:
         """A new model: the order control spans 0..alpha(G).
 
         It starts at alpha, where P_s = P, when the partial polynomials are drawn; for larger

@@ -10,7 +10,7 @@ import numpy as np
 
 import freeladder as fl
 
-from .adapter import Analysis, term_labels
+from .adapter import term_labels
 from .graph_layout import SMALL_GRAPH, graph_layout
 from .style import ACCENT, INK, SECOND, escape
 
@@ -96,16 +96,16 @@ class VerdictPanel(widgets.HBox):
             layout=widgets.Layout(width="58%", height="320px"),
             title_style={"font-size": "13px"},
         )
-        self._drawn_for: Any = None  # the graph object whose layout is on screen
+        self._drawn_for: Any = None  # the strings whose graph is on screen
         super().__init__([self.summary, self.figure])
 
-    def show(self, a: Analysis) -> None:
-        """Show the verdict of ``a`` and draw its graph (the layout only when the graph changed)."""
+    def show(self, a: fl.Analysis) -> None:
+        """Show the verdict of ``a`` and draw its graph (laid out only when the strings changed)."""
         v = a.verdict
         self.summary.value = _summary_html(v, len(a.model))
+        if a.model.strings is self._drawn_for:
+            return  # same strings, same graph: keep the layout
         graph = a.graph
-        if graph is self._drawn_for:
-            return
         chain = a.chain
         pos = graph_layout(
             graph, None if chain is None else list(chain.order), 1 if chain is None else chain.reach
@@ -139,7 +139,7 @@ class VerdictPanel(widgets.HBox):
                 f"frustration graph: {len(names)} terms, {len(pairs)} non-commuting pairs "
                 f"({layout_name})"
             )
-        self._drawn_for = graph
+        self._drawn_for = a.model.strings
 
 
 def _summary_html(v: fl.Verdict, n_terms: int) -> str:

@@ -23,7 +23,13 @@ import traitlets
 
 import freeladder as fl
 
-from .adapter import Analysis, Refusal, analyze, real_roots_reason, spectrum_or_refusal
+from .adapter import (
+    Refusal,
+    analyze,
+    exact_overlay,
+    real_roots_reason,
+    spectrum_or_refusal,
+)
 from .checks_panel import ChecksPanel
 from .input_panel import InputPanel
 from .ladder_panel import LadderPanel
@@ -40,15 +46,15 @@ __all__ = ["Workbench"]
 class _Derived:
     """Everything the panels draw for one model, gathered in the worker."""
 
-    analysis: Analysis
+    analysis: fl.Analysis
     spectrum: fl.FreeSpectrum | Refusal
     exact: fl.ExactSpectrum | None
     real_reason: str | None
 
 
-def _derive(a: Analysis, unproven: bool) -> _Derived:
+def _derive(a: fl.Analysis, unproven: bool) -> _Derived:
     a.verdict, a.graph, a.chain, a.charge_counts  # noqa: B018 -- computed here, off the UI
-    return _Derived(a, spectrum_or_refusal(a, unproven), a.exact, real_roots_reason(a))
+    return _Derived(a, spectrum_or_refusal(a, unproven), exact_overlay(a), real_roots_reason(a))
 
 
 class Workbench(widgets.VBox):
@@ -69,7 +75,7 @@ class Workbench(widgets.VBox):
     ----------
     model : Model
         The model as given (its couplings may be symbols; sliders set their values).
-    analysis : Analysis
+    analysis : freeladder.Analysis
         The analysis of the numeric model on screen.
 
     Examples
@@ -81,7 +87,7 @@ class Workbench(widgets.VBox):
     """
 
     model = traitlets.Instance(fl.Model, allow_none=True)
-    analysis = traitlets.Instance(Analysis, allow_none=True)
+    analysis = traitlets.Instance(fl.Analysis, allow_none=True)
 
     def __init__(
         self, model: fl.Model | str | None = None, *, states: int = 2, synchronous: bool = False
@@ -203,15 +209,11 @@ class Workbench(widgets.VBox):
         if self.model is None:
             return
         numeric = self._numeric()
-        prev = self.analysis
         unproven = bool(self.roots.unproven.value)
 
         def compute() -> _Derived:
-            if prev is not None and prev.model.strings is numeric.strings:
-                a = prev.with_couplings(numeric.couplings)  # graph and verdict reused
-            else:
-                a = analyze(numeric)
-            return _derive(a, unproven)
+            # same strings as before: the library reuses graph, verdict and counts
+            return _derive(analyze(numeric), unproven)
 
         self._lanes["model"].submit("analysing the model", compute, self._show)
 
@@ -224,7 +226,7 @@ class Workbench(widgets.VBox):
         self.ladder.show(d.spectrum, d.exact, d.analysis.model.states)
         self.series.show(d.analysis)
 
-    def _show_report(self, a: Analysis) -> Any:
+    def _show_report(self, a: fl.Analysis) -> Any:
         def apply(report: fl.Report) -> None:
             if a is self.analysis:
                 self.checks.show(report)
