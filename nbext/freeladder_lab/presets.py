@@ -32,7 +32,9 @@ FAMILIES: dict[str, Family] = {
     "2D: Ising on a square patch (no theorem)": Family(
         "lattice", "rows = cols", (2, 6, 3), False, False
     ),
-    "2D: honeycomb patch (Jordan-Wigner)": Family("honeycomb", "columns", (2, 10, 4), False, False),
+    "2D: honeycomb strip, two columns (Jordan-Wigner)": Family(
+        "honeycomb", "rows", (2, 12, 4), False, False
+    ),
 }
 
 
@@ -68,7 +70,7 @@ def build(name: str, size: int, reach: int, states: int) -> fl.Model:
     if kind == "lattice":
         return fl.ising_lattice(size, size)
     if kind == "honeycomb":
-        return fl.kitaev_honeycomb(2, size)
+        return fl.kitaev_honeycomb(size, 2)
     raise ValueError(f"unknown family {name!r}")
 
 
