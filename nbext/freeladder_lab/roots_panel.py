@@ -126,7 +126,7 @@ class RootsPanel(widgets.VBox):
         with self.root_figure.hold_sync():
             self.roots.x, self.roots.y = roots.real, roots.imag
             self.roots.names = [
-                f"y_{k} = {number_text(y)}; eta_{k} = {number_text(e)} +- {b:.2g}{tag}"
+                f"y_{k} = {number_text(y)}; eta_{k} = {number_text(e)} ± {b:.2g}{tag}"
                 for k, (y, e, b) in enumerate(zip(roots, eta, bounds, strict=True))
             ]
             self.roots.marker = "circle" if guaranteed else "triangle-down"
@@ -139,7 +139,7 @@ class RootsPanel(widgets.VBox):
         with self.eta_figure.hold_sync():
             self.eta.x, self.eta.y = eta.real, eta.imag
             self.eta.names = [
-                f"eta_{k} = {number_text(e)} +- {b:.2g}{tag}"
+                f"eta_{k} = {number_text(e)} ± {b:.2g}{tag}"
                 for k, (e, b) in enumerate(zip(eta, bounds, strict=True))
             ]
             self.eta.marker = "diamond" if guaranteed else "triangle-down"
