@@ -303,9 +303,16 @@ class SeriesPanel(widgets.HBox):
             return
         s, count = view.order, view.count
         total = self._analysis.charge_counts
+        what = (
+            "the identity, Q<sup>(0)</sup> = 1"
+            if s == 0
+            else "one term each: Q<sup>(1)</sup> is H"
+            if s == 1
+            else f"{s} mutually commuting terms each"
+        )
         self.count.value = (
-            f"<b>order {s}</b> of {len(total) - 1}: {_plural(count, 'product')} of {s} mutually "
-            "commuting terms (counted exactly, not listed)"
+            f"<b>order {s}</b> of {len(total) - 1}: {_plural(count, 'product')} ({what}; "
+            "counted exactly, never listed to count them)"
         )
         few = count <= LATEX_PRODUCTS
         self.page.layout.display = "none" if few or not self.listed.value else ""

@@ -117,7 +117,7 @@ def origin_guides(guides: bq.Lines, points: np.ndarray) -> None:
     z = np.concatenate([np.asarray(points, complex).ravel(), [0j]])
     re_lo, re_hi = float(np.min(z.real)), float(np.max(z.real))
     im_lo, im_hi = float(np.min(z.imag)), float(np.max(z.imag))
-    size = max(re_hi - re_lo, im_hi - im_lo, 1e-300)
+    size = max(re_hi - re_lo, im_hi - im_lo) or 1.0
     re_lo, re_hi = _widened(re_lo, re_hi, size / 3)
     im_lo, im_hi = _widened(im_lo, im_hi, size / 3)
     with guides.hold_sync():
