@@ -186,6 +186,16 @@ def test_size_couplings_and_text_update_the_marks(monkeypatch: pytest.MonkeyPatc
     _assert_roots_shown(wb, fl.free_spectrum(fl.parse_model(text)))
 
 
+def test_states_control_reads_the_typed_text_again() -> None:
+    text = "X0 Z1 + 0.5 X1 Z2 + 0.8 X2 Z3"  # a reach-1 chain for every N (Alcaraz-Pimenta 2020)
+    wb = Workbench(text, states=3, synchronous=True)
+    assert wb.model.states == 3
+    _assert_roots_shown(wb, fl.free_spectrum(fl.parse_model(text, states=3)))
+    wb.input.states.value = 4
+    assert wb.model.states == 4
+    _assert_roots_shown(wb, fl.free_spectrum(fl.parse_model(text, states=4)))
+
+
 def test_per_term_table_and_symbol_sliders() -> None:
     wb = Workbench(synchronous=True)
     wb.input.size.value = 5

@@ -42,6 +42,8 @@ class InputPanel(widgets.VBox):
         Called when a symbol slider moved (the numeric model changed, the model did not).
     synchronous : bool
         Parse at once on every edit instead of after a pause in typing.
+    states : int
+        The initial N (for typed text and the families that take it).
     """
 
     def __init__(
@@ -49,6 +51,7 @@ class InputPanel(widgets.VBox):
         on_model: Callable[[fl.Model, bool], Any],
         on_values: Callable[[], Any],
         synchronous: bool = False,
+        states: int = 2,
     ) -> None:
         self._on_model = on_model
         self._on_values = on_values
@@ -73,7 +76,7 @@ class InputPanel(widgets.VBox):
         lo, hi, default = FAMILIES[self.family.value].size_range
         self.size = _labelled(widgets.IntSlider(default, min=lo, max=hi), "terms M")
         self.reach = _labelled(widgets.IntSlider(2, min=1, max=6), "reach p")
-        self.states = _labelled(widgets.IntSlider(2, min=2, max=8), "states N")
+        self.states = _labelled(widgets.IntSlider(states, min=2, max=8), "states N")
         self.pattern = _labelled(
             widgets.Dropdown(
                 options=[
@@ -119,8 +122,9 @@ class InputPanel(widgets.VBox):
 
         self.text.observe(self._typed, "value")
         self.family.observe(self._family_changed, "value")
-        for w in (self.size, self.reach, self.states):
+        for w in (self.size, self.reach):
             w.observe(self._structure_changed, "value")
+        self.states.observe(self._states_changed, "value")
         self.pattern.observe(self._pattern_changed, "value")
         for w in (self.a, self.b, self.low, self.high, self.seed, self.complex_phase):
             w.observe(self._couplings_changed, "value")
@@ -217,6 +221,15 @@ class InputPanel(widgets.VBox):
 
     def _structure_changed(self, change: dict) -> None:
         if not self._quiet:
+            self.build_family()
+
+    def _states_changed(self, change: dict) -> None:
+        """N changed: read the typed text again with the new N, or rebuild the family."""
+        if self._quiet:
+            return
+        if self._base is None and self.text.value.strip():
+            self.parse_now()
+        else:
             self.build_family()
 
     def _pattern_changed(self, change: dict) -> None:

@@ -116,8 +116,7 @@ class Workbench(widgets.VBox):
         }
         self.cancel.on_click(lambda _: self._cancel())
 
-        self.input = InputPanel(self._model_from_input, self._recompute, synchronous)
-        self.input.states.value = states
+        self.input = InputPanel(self._model_from_input, self._recompute, synchronous, states)
         self.verdict = VerdictPanel()
         self.series = SeriesPanel(self._lanes["order"].submit)
         self.roots = RootsPanel()
