@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from fractions import Fraction
 from typing import Any
 
 import numpy as np
@@ -145,3 +146,48 @@ def test_coupling_patterns_and_errors() -> None:
         fl.exclusion_chain(3, couplings=[1, 2])
     with pytest.raises(ValueError):
         fl.exclusion_chain(0)
+
+
+def test_sizes_and_values_are_checked_at_the_door() -> None:
+    # Issue 14, item 14: each of these used to be accepted and then fail later with another
+    # exception type (MemoryError, OverflowError) or a hang.
+    from decimal import Decimal
+
+    with pytest.raises(ValueError, match="n_terms must be between 1 and"):
+        fl.exclusion_chain(10**12)
+    with pytest.raises(TypeError, match="n_terms must be an integer"):
+        fl.exclusion_chain(4.0)  # type: ignore[arg-type]
+    with pytest.raises(ValueError, match="states per site"):
+        fl.exclusion_chain(4, states=1)
+    with pytest.raises(ValueError, match="not finite"):
+        fl.exclusion_chain(3, couplings=[1, Decimal("NaN"), 1])
+    with pytest.raises(TypeError, match="is text"):
+        fl.exclusion_chain(3, couplings=["1", "2", "3"])
+    with pytest.raises(ValueError, match="rows must be between"):
+        fl.ising_lattice(0, 3)
+    with pytest.raises(ValueError, match="cols"):
+        fl.ising_lattice(10**6, 10**6)
+    with pytest.raises(TypeError, match="is text"):
+        fl.ising_lattice(2, 2, bond="1e-200")  # type: ignore[arg-type]
+    with pytest.raises(ValueError, match="cols"):
+        fl.kitaev_honeycomb(2, 1)
+    with pytest.raises(ValueError, match="n_sites"):
+        fl.clock_chain(0)
+    with pytest.raises(ValueError, match="low <= high"):
+        fl.random_couplings(3, 2.0, 1.0)
+    with pytest.raises(ValueError, match="finite"):
+        fl.random_couplings(3, 0.0, float("inf"))
+    with pytest.raises(ValueError, match="0 <= low <= high"):
+        fl.complex_couplings(3, (-1.0, 1.0))
+    with pytest.raises(TypeError, match="seed"):
+        fl.random_couplings(3, seed=1.5)  # type: ignore[arg-type]
+    # Exact values are kept exact: a finite Decimal is the fraction it writes, a huge integer
+    # stays an int (the exact polynomial takes it; floating-point numerics refuse it by name).
+    m = fl.exclusion_chain(3, couplings=[1, Decimal("0.1"), 10**400])
+    assert m.couplings[1] == Fraction(1, 10) and m.couplings[2] == 10**400
+    # P(y) = 1 - y sum_j c_j^2 + ... for N = 2 (Alcaraz-Pimenta 2020, weights c_j^N)
+    assert fl.exclusion_polynomial(m).coefficients[1] == -(1 + Fraction(1, 100) + 10**800)
+    with pytest.raises(ValueError, match="term 2: .* too large for floating-point"):
+        m.coupling_array()
+    # A tiny bond is a valid coupling: construction succeeds and keeps it.
+    assert -1e-200 in fl.ising_lattice(2, 2, bond=1e-200).couplings

@@ -152,3 +152,79 @@ def test_errors_say_what_is_wrong():
         fl.jordan_wigner_spectrum(m, sector=(1,))
     with pytest.raises(ValueError, match="sector must be"):
         fl.jordan_wigner_spectrum(m, sector="lowest")
+
+
+def honeycomb_torus(cells: int) -> tuple[fl.Model, list[fl.WeylString]]:
+    """Kitaev's honeycomb on a cells x cells torus (unit couplings) and its hexagon strings."""
+
+    def a(x: int, y: int) -> tuple[int, int, int]:
+        return (0, x % cells, y % cells)
+
+    def b(x: int, y: int) -> tuple[int, int, int]:
+        return (1, x % cells, y % cells)
+
+    terms = []
+    for x in range(cells):
+        for y in range(cells):
+            terms.append((1.0, fl.pauli("ZZ", [a(x, y), b(x, y)])))
+            terms.append((1.0, fl.pauli("XX", [b(x, y), a(x + 1, y)])))
+            terms.append((1.0, fl.pauli("YY", [b(x, y), a(x, y + 1)])))
+    hexagons = []
+    for x in range(cells):
+        for y in range(cells):
+            ring = [a(x, y), b(x, y), a(x + 1, y), b(x + 1, y - 1), a(x + 1, y - 1), b(x, y - 1)]
+            prod = fl.make_string(2, [])
+            for k, letter in enumerate("ZXYZXY"):  # the bond kinds around the hexagon
+                prod = prod * fl.pauli(letter * 2, [ring[k], ring[(k + 1) % 6]])
+            hexagons.append(prod.normalized()[0])
+    return fl.Model.from_terms(terms), hexagons
+
+
+def test_flux_free_honeycomb_torus_approaches_the_bulk_energy():
+    # Kitaev 2006: in the flux-free sector the Majorana band is +-|f(q)|, f = 2 (1 + e^{iq1} +
+    # e^{iq2}) at unit couplings, so the energy per site is -(1/2) <|1 + e^{iq1} + e^{iq2}|>
+    # over the Brillouin zone (about -0.787, from memory); the integral below is the reference.
+    q = np.linspace(0.0, 2 * np.pi, 1201)[:-1]
+    q1, q2 = np.meshgrid(q, q)
+    bulk = -0.5 * float(np.mean(np.abs(1 + np.exp(1j * q1) + np.exp(1j * q2))))
+    assert bulk == pytest.approx(-0.787, abs=1e-3)
+    deviations = []
+    for cells in (4, 8):
+        m, hexagons = honeycomb_torus(cells)
+        best = np.inf
+        # the two translation-invariant flux patterns; the flux-free one is the lower
+        # (E. H. Lieb, Phys. Rev. Lett. 73, 2158 (1994))
+        for value in (1, -1):
+            sp = fl.jordan_wigner_spectrum(m, sector={h: value for h in hexagons})
+            best = min(best, sp.ground_energy / len(m.sites))
+        deviations.append(abs(best - bulk))
+    # measured here: 2.0e-3 at 4 x 4 cells and 4.4e-5 at 8 x 8
+    assert deviations[1] < deviations[0]
+    assert deviations[1] < 5e-4
+
+
+@pytest.mark.parametrize(
+    "text",
+    [
+        "0.7 X0 + 1.3 Z0 Z1 + 0.4 X1 + 0.9 Z1 Z2 + 1.1 X2 + 0.6 Z2 Z3 + 0.8 X3",
+        "X0 + 0.6 Z0 + 1.2 Y0 X1 + 0.5 Z0 Z1",
+        "0.8 X0 X1 + 1.1 Y1 Y2 + 0.7 X2 X3 + 1.3 Y3 Y4 + 0.9 X4 X5",
+    ],
+)
+def test_tree_root_graphs_agree_with_the_polynomial_route(text):
+    # a line graph of a tree is claw-free and even-hole-free, so the exclusion polynomial
+    # gives the same quasi-energies (Chapman-Flammia 2020; Elman-Chapman-Flammia 2021)
+    m = fl.parse_model(text)
+    assert not fl.sectors(m).cycle_operators
+    jw = fl.jordan_wigner_spectrum(m)
+    poly = np.sort(np.abs(fl.free_spectrum(m).quasi_energies))
+    for index in range(len(jw.sectors)):
+        nonzero = np.sort(jw.quasi_energies(index))
+        np.testing.assert_allclose(nonzero[-len(poly) :], poly, atol=1e-10)
+        assert np.all(nonzero[: len(nonzero) - len(poly)] < 1e-10)
+
+
+def test_free_spectrum_refusal_points_to_the_sector_route():
+    m = ladder(3, np.random.default_rng(2))
+    with pytest.raises(fl.NoTheoremError, match="jordan_wigner_spectrum"):
+        fl.free_spectrum(m)

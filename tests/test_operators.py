@@ -4,6 +4,7 @@ X|s> = |s+1 mod N>, Z|s> = omega^s |s>, Kronecker products with site 0 most sign
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Any
 
 import numpy as np
 import pytest
@@ -150,3 +151,52 @@ def test_big_integers_stay_exact() -> None:
     assert sq.coefficients == (big**2 + Fraction(1, big**2),)
     arr = StringArray.from_strings([fl.pauli("X")], [0])
     assert (StringSum(arr, [big]) - StringSum(arr, [big])).is_zero()
+
+
+def test_values_are_never_parsed_as_code(tmp_path: Any) -> None:
+    # Issue 14, item 12: a string substituted for a symbol reached sympy's parser and ran.
+    marker = tmp_path / "ran"
+    payload = f"__import__('pathlib').Path({str(marker)!r}).touch()"
+    m = fl.parse_model("g X0 + h Z0 Z1")
+    g = sympy.Symbol("g")
+    h = StringSum.from_model(m)
+    attempts = [
+        lambda: m.subs({"g": payload}),
+        lambda: m.subs({g: payload}),
+        lambda: m.subs({payload: 1}),
+        lambda: m.with_couplings([payload, 1]),
+        lambda: fl.Model.from_terms([(payload, fl.pauli("X"))]),
+        lambda: fl.Model.from_terms([(1, fl.pauli("X"))], constant=payload),
+        lambda: h.subs({"g": payload}),
+        lambda: h.subs({payload: 1}),
+        lambda: h.scaled(payload),
+        lambda: StringSum.from_strings([(payload, fl.pauli("X"))], [0], 2),
+        lambda: fl.exclusion_chain(2, couplings=payload),
+        lambda: fl.ising_chain(2, field=payload),
+        lambda: fl.staggered(3, payload, 1),
+        lambda: fl.exclusion_polynomial(m.subs({"g": 1, "h": 2}))(payload),
+    ]
+    for j, attempt in enumerate(attempts):
+        with pytest.raises((TypeError, ValueError)) as info:
+            attempt()
+        assert str(info.value), j
+        assert not marker.exists(), j
+    with pytest.raises(TypeError, match="pass a number"):
+        m.subs({"g": "2"})
+    with pytest.raises(ValueError, match="no symbol named 'k'"):
+        m.subs({"k": 1})
+    # Numbers and sympy values work, exactly where they are exact.
+    from decimal import Decimal
+
+    done = m.subs({"g": Decimal("0.25"), sympy.Symbol("h"): sympy.Rational(1, 3)})
+    assert done.couplings == (Fraction(1, 4), Fraction(1, 3))
+    assert sorted(h.subs({"g": np.float64(0.5), "h": 2}).coefficients) == [0.5, 2.0]
+
+
+def test_string_sums_are_frozen() -> None:
+    h = StringSum.from_model(fl.parse_model("X0 + 0.5 Z0 Z1"))
+    for name in ("_coef", "_store", "strings", "new"):
+        with pytest.raises(AttributeError):
+            setattr(h, name, None)
+    with pytest.raises(ValueError):
+        h.strings.phase[0] = 1

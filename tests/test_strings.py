@@ -12,6 +12,7 @@ from __future__ import annotations
 from typing import Any
 
 import numpy as np
+import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -220,3 +221,67 @@ def test_to_sparse_cancellation_leaves_no_explicit_zeros() -> None:
     assert mat.nnz == 2 and np.all(mat.data != 0)
     ref = np.kron(shift(2), np.eye(2) + clock(2))
     np.testing.assert_allclose(mat.toarray(), ref, atol=1e-15)
+
+
+# -- frozen objects and checked input (issue 14, items 14 and 16) --------------------------------
+def _mutations(m: Any) -> list[Any]:
+    arr = m.strings
+    return [
+        lambda: setattr(m, "couplings", (5,)),
+        lambda: setattr(m, "strings", arr),
+        lambda: setattr(m, "constant", 1),
+        lambda: delattr(m, "couplings"),
+        lambda: setattr(arr, "states", 3),
+        lambda: setattr(arr, "sites", (0, 1, 2)),
+        lambda: setattr(arr, "phase", arr.phase),
+        lambda: delattr(arr, "x"),
+        lambda: arr.phase.__setitem__(0, 1),
+        lambda: arr.x.data.__setitem__(0, 2),
+        lambda: arr.z.indices.__setitem__(0, 0),
+        lambda: arr.x.indptr.__setitem__(0, 1),
+        lambda: setattr(arr.x, "data", arr.x.data.copy()),
+        lambda: setattr(arr.z, "indices", arr.z.indices.copy()),
+        lambda: setattr(arr.z, "indptr", arr.z.indptr.copy()),
+        lambda: arr.x.__setitem__((0, 1), 1),
+        lambda: arr.x.resize((5, 5)),
+        lambda: setattr(arr[0], "states", 3),
+        lambda: setattr(arr[0], "phase", 1),
+    ]
+
+
+def test_models_and_string_arrays_are_frozen() -> None:
+    import freeladder as fl
+
+    m = fl.parse_model("g X0 Z1 + 0.5 Z0 Z1 + X1")
+    before = (str(m), m.states, m.strings.phase.tolist(), m.strings.x.toarray().tolist())
+    for j, mutate in enumerate(_mutations(m)):
+        with pytest.raises((AttributeError, TypeError, ValueError)) as info:
+            mutate()
+        assert str(info.value), j
+    # Nothing changed, and derived arrays are ordinary writable arrays again.
+    assert (str(m), m.states, m.strings.phase.tolist(), m.strings.x.toarray().tolist()) == before
+    taken = m.strings.x[[0, 1]]
+    taken.data[0] = 0  # a new array, not the model's
+
+
+def test_states_sites_and_exponents_are_checked() -> None:
+    for bad in (1, 0, -3, 65, 10**9):
+        with pytest.raises(ValueError, match="states per site"):
+            make_string(bad, [(0, 1, 0)])
+    for bad_type in (2.0, "3", None, True):
+        with pytest.raises(TypeError, match="states per site"):
+            make_string(bad_type, [(0, 1, 0)])  # type: ignore[arg-type]
+    for site in ("a", 1.5, None, (), (1, "x"), [0, 1], True):
+        with pytest.raises(TypeError, match="site label"):
+            make_string(2, [(site, 1, 0)])
+    with pytest.raises(ValueError, match="mix integers and tuples"):
+        make_string(2, [(0, 1, 0), ((0, 1), 0, 1)])
+    with pytest.raises(TypeError, match="exponent"):
+        make_string(3, [(0, 1.5, 0)])
+    with pytest.raises(TypeError, match="triple"):
+        make_string(2, [(0, 1)])
+    with pytest.raises(ValueError, match="more than once"):
+        StringArray.from_strings([make_string(2, [(0, 1, 0)])], [0, 1, 0])
+    # numpy integers are accepted and become Python ints
+    g = make_string(np.int64(3), [(np.int64(4), np.int64(1), 2)])
+    assert g.states == 3 and type(g.factors[0][0]) is int

@@ -54,7 +54,7 @@ def test_coefficient_kinds() -> None:
     m = parse_model("3 X0 + 0.25 X1 + 3/4 X2 + (1+2j) X3 + 2*g X4 - J_2 X5 + 2.5j X6")
     assert m.couplings == (3, 0.25, Fraction(3, 4), 1 + 2j, 2 * g, -j2, 2.5j)
     assert isinstance(m.couplings[0], int) and isinstance(m.couplings[2], Fraction)
-    m = parse_model("(g+h)^2/2 X0 + 2^-2 Z0 + (g - 1/2) Z1 + 1e-3 X1 * Z2")
+    m = parse_model("(g+h)^2/2 X0 + 2^-2 Z0 + (g - 1/2) Z1 + 1e-3 X1 Z2")
     h = sympy.Symbol("h")
     assert m.couplings[0] == sympy.expand((g + h) ** 2 / 2)
     assert m.couplings[1] == Fraction(1, 4)
@@ -223,7 +223,17 @@ ERRORS = [
     ("g^2^3 X0", 2, "repeated '^'", 4),
     ("g X0 $ Z1", 2, "unexpected character '$'", 6),
     ("2 * * X0", 2, "after '*'", 5),
-    ("X0 * 2", 2, "expected an operator after '*'", 6),
+    ("X0 * 2", 2, "'*' after an operator", 4),
+    ("0.5 X0*Z1", 2, "'*' after an operator", 7),
+    ("(0.5+0j)*X0*Z1", 2, "'*' before the operator X0", 9),
+    ("g*X0", 2, "'*' before the operator X0", 2),
+    ("X٣", 2, "ARABIC-INDIC DIGIT THREE", 2),
+    ("X²", 2, "SUPERSCRIPT TWO", 2),
+    ("0.5 X0²", 2, "digits must be ASCII", 7),
+    ("(((2^1000)^1000)^1000)^1000 X0", 2, "the power is too large", 11),
+    ("((g+h)^40)^40 X0", 2, "more than 1000 terms", 11),
+    ("(" * 200 + "1" + ")" * 200 + " X0", 2, "nested more than 64 deep", 65),
+    ("9" * 1001 + " X0", 2, "more than 1000 digits", 1),
     ("X5 + Z0", 2, "site 5 is not in the given site list", 1),
     ("X0 + Z(0,1)", 2, "mix integers and tuples", 6),
     ("X0 Z(0,1)", 2, "mix integers and tuples", 4),
@@ -245,8 +255,12 @@ def test_errors_say_what_and_where(text: str, states: int, words: str, column: i
     lines = str(err).split("\n")
     # message, then the offending line, then a caret under the column
     source_line = text.split("\n")[err.line - 1]
-    assert lines[-2] == source_line
-    assert lines[-1] == " " * (column - 1) + "^"
+    if len(source_line) <= 120:
+        assert lines[-2] == source_line
+        assert lines[-1] == " " * (column - 1) + "^"
+    else:  # a long line is shown as a window around the column
+        assert len(lines[-2]) <= 126 and lines[-2].startswith(("...", source_line[:10]))
+        assert lines[-2][len(lines[-1]) - 1] == source_line[column - 1]
 
 
 def test_error_on_a_later_line() -> None:
@@ -256,6 +270,43 @@ def test_error_on_a_later_line() -> None:
     err = info.value
     assert (err.line, err.column) == (2, 9)
     assert str(err).endswith("  + 0.5 Q3 Z1\n        ^")
+
+
+def test_star_form_is_refused_and_shows_the_accepted_form() -> None:
+    # Issue 14: '*' joins coefficients only; the message shows the accepted form of a term.
+    for text in ["(0.5+0j)*X0*Z1", "0.5*X0 Z1", "0.5 X0*Z1", "X0 * Z1", "1j*Y0"]:
+        with pytest.raises(ModelSyntaxError, match="0.5 X0 Z1"):
+            parse_model(text)
+    assert parse_model("0.5 X0 Z1").couplings == (0.5,)
+    assert parse_model("2*g*w X0 Z0", states=3).couplings[0] != 0
+
+
+def test_underscore_names_are_said_to_be_couplings() -> None:
+    # Issue 13: X_0 reads as a coupling name; the message says so and shows X0 Z1.
+    with pytest.raises(ModelSyntaxError) as info:
+        parse_model("X_0 Z_1")
+    assert "'X_0' was read as a coupling name" in str(info.value)
+    assert "X0 Z1" in str(info.value)
+    with pytest.raises(ModelSyntaxError, match="'Z_1' was read as a coupling name"):
+        parse_model("X0 Z_1")
+
+
+def test_limits_are_fast() -> None:
+    # Issue 14: each of these used to recurse too deep or run for minutes.
+    import time
+
+    for text in [
+        "(" * 5000 + "1" + ")" * 5000 + " X0",
+        "-(" * 3000 + "1" + ")" * 3000 + " X0",
+        "(((2^1000)^1000)^1000)^1000 X0",
+        "((1+2j)^1000)^1000 X0",
+        "(a+b+c+d+e+f)^1000 X0",
+        "(a+b)^30*(c+d)^30*(e+f)^30 X0",
+    ]:
+        start = time.perf_counter()
+        with pytest.raises(ModelSyntaxError):
+            parse_model(text)
+        assert time.perf_counter() - start < 1.0, text
 
 
 def test_bad_states_and_types() -> None:
@@ -281,3 +332,25 @@ def test_unreadable_symbol_names_are_quoted_not_misread(name: str) -> None:
     assert text == f"`{name}` X0"
     with pytest.raises(ModelSyntaxError, match="backticks"):
         parse_model(text)
+
+
+def test_one_number_format_for_display() -> None:
+    # Issue 14 / 13: float noise is not shown, complex numbers print as a+bi everywhere.
+    from freeladder.printing import format_number
+
+    assert format_number(0.1 + 0.06) == "0.16"  # 0.16000000000000003 in binary
+    assert format_number(1.5 - 2j) == "1.5-2i"
+    assert format_number(2.5j) == "2.5i" and format_number(-1j) == "-i"
+    assert format_number(complex(3, 0)) == "3"
+    assert format_number(Fraction(3, 4)) == "3/4" and format_number(10**30) == str(10**30)
+    assert format_number(np.float64(1e-20)) == "1e-20"
+    assert format_number(sympy.Rational(1, 3)) == "1/3"
+    assert format_number(sympy.sqrt(2)) == "1.41421356237"
+    # the digits shown agree with the value to the stated precision (common practice)
+    for x in (np.pi, -np.e * 1e-7, 6.02214076e23):
+        assert float(format_number(x)) == pytest.approx(x, rel=1e-11)
+    latex = parse_model("0.16000000000000003 X0 + (1-2j) Z0 Z1 - X1")._repr_latex_()
+    assert "0.16 X_{0}" in latex and r"\left(1-2i\right) Z_{0} Z_{1}" in latex
+    assert "0.16000000000000003" not in latex and latex.endswith("- X_{1}$")
+    # the text syntax keeps every digit, so that it reads back exactly
+    assert "0.16000000000000003" in str(parse_model("0.16000000000000003 X0"))

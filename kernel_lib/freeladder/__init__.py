@@ -27,6 +27,7 @@ from .charges import (
 )
 from .ed import ExactSpectrum, exact_spectrum
 from .edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
+from .errors import NoTheoremError
 from .graph import (
     ChainStructure,
     chain_structure,
@@ -34,10 +35,12 @@ from .graph import (
     frustration_adjacency,
     frustration_graph,
 )
+from .indifference import IndifferenceOrder, indifference_order
 from .majorana import SectorSpectrum, SectorStructure, jordan_wigner_spectrum, sectors
 from .model import Model, Term
 from .operators import StringSum
 from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
+from .relations import Relation, Relations, find_relations
 from .roots import (
     RealRoots,
     chain_count_below,
@@ -45,15 +48,17 @@ from .roots import (
     chain_real_roots,
     chain_root_count,
 )
-from .spectrum import FreeSpectrum, Level, LevelTable, free_spectrum
+from .spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .strings import StringArray, WeylString, make_string, pauli
 from .sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
-from .verdict import ComponentVerdict, Verdict, classify
+from .verdict import ComponentVerdict, Guarantee, Verdict, classify, guarantee
 from .verify import Check, Report, verify
 
 __all__ = [
+    "IndifferenceOrder",
+    "indifference_order",
     "SectorSpectrum",
     "SectorStructure",
     "jordan_wigner_spectrum",
@@ -80,8 +85,15 @@ __all__ = [
     "exclusion_polynomial",
     "transfer_matrix",
     "ComponentVerdict",
+    "Guarantee",
+    "NoTheoremError",
+    "Relation",
+    "Relations",
+    "SpectrumProvenance",
     "Verdict",
     "classify",
+    "find_relations",
+    "guarantee",
     "chain_structure",
     "commutation_exponents",
     "frustration_adjacency",

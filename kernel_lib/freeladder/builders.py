@@ -2,18 +2,75 @@
 
 from __future__ import annotations
 
+import math
+import numbers
 from typing import Any
 
 import numpy as np
 import scipy.sparse as sps
 import sympy
 
-from .model import Coupling, Model, check_coupling
-from .strings import StringArray, make_string, pauli
+from .model import Coupling, Model
+from .scalars import check_scalar
+from .strings import StringArray, check_states, make_string, pauli
+
+__all__ = [
+    "MAX_BUILD_TERMS",
+    "clock_chain",
+    "complex_couplings",
+    "exclusion_chain",
+    "ising_chain",
+    "ising_lattice",
+    "kitaev_honeycomb",
+    "random_couplings",
+    "staggered",
+]
+
+MAX_BUILD_TERMS = 2_000_000
+"""Largest number of terms (or sites) a builder makes; larger requests are refused at once."""
+
+
+def _check_count(value: Any, name: str, low: int = 1, high: int = MAX_BUILD_TERMS) -> int:
+    """An integer size argument in ``[low, high]``.
+
+    Raises
+    ------
+    TypeError
+        For a value that is not an integer (text, floats, booleans ...).
+    ValueError
+        For a value outside ``[low, high]``.
+    """
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)):
+        raise TypeError(f"{name} must be an integer, got {value!r:.60}")
+    n = int(value)
+    if not low <= n <= high:
+        raise ValueError(f"{name} must be between {low} and {high}, got {n}")
+    return n
+
+
+def _check_real(value: Any, name: str) -> float:
+    """A finite real number (for ranges of random couplings)."""
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, numbers.Real):
+        raise TypeError(f"{name} must be a real number, got {value!r:.60}")
+    try:
+        x = float(value)
+    except OverflowError:
+        raise ValueError(f"{name} must be finite, got a number beyond the float range") from None
+    if not math.isfinite(x):
+        raise ValueError(f"{name} must be finite, got {value!r}")
+    return x
+
+
+def _check_seed(seed: Any) -> int | None:
+    if seed is None:
+        return None
+    return _check_count(seed, "seed", 0, 2**63 - 1)
 
 
 def _coupling_list(couplings: Any, count: int, what: str, symbol: str = "c") -> list[Coupling]:
     """Expand ``"uniform"``, ``"symbols"``, a scalar or a sequence into ``count`` couplings."""
+    if isinstance(couplings, bytes):
+        raise TypeError(f"{what}: couplings given as bytes; pass numbers or 'uniform'")
     if isinstance(couplings, str):
         if couplings == "uniform":
             return [1] * count
@@ -22,15 +79,19 @@ def _coupling_list(couplings: Any, count: int, what: str, symbol: str = "c") -> 
         raise ValueError(
             f"{what}: use 'uniform', 'symbols', a number or a sequence, not {couplings!r}"
         )
-    if np.ndim(couplings) == 0 and not isinstance(couplings, (list, tuple)):
-        return [check_coupling(couplings, what)] * count
+    if isinstance(couplings, np.ndarray) and couplings.ndim == 0:
+        couplings = couplings.item()
+    if isinstance(couplings, np.ndarray) and couplings.ndim != 1:
+        raise ValueError(f"{what}: couplings must be one-dimensional, got shape {couplings.shape}")
+    if not isinstance(couplings, (list, tuple, range, np.ndarray)):
+        return [check_scalar(couplings, what)] * count
     if isinstance(couplings, np.ndarray) and couplings.dtype.kind in "fc":
         if not np.all(np.isfinite(couplings)):
             bad = int(np.nonzero(~np.isfinite(couplings))[0][0])
             raise ValueError(f"{what}: coupling {bad} is {couplings[bad]!r}, not finite")
         values = couplings.tolist()
     else:
-        values = [check_coupling(c, f"{what}: coupling {j}") for j, c in enumerate(couplings)]
+        values = [check_scalar(c, f"{what}: term {j}") for j, c in enumerate(couplings)]
     if len(values) != count:
         raise ValueError(f"{what}: {len(values)} couplings given, {count} needed")
     return values
@@ -74,11 +135,9 @@ def exclusion_chain(
     >>> print(m)
     X0 Z1 Z2 + X1 Z2 Z3 + X2 Z3 Z4 + X3 Z4 Z5
     """
-    m_terms, p, n = int(n_terms), int(reach), int(states)
-    if m_terms < 1 or p < 1 or n < 2:
-        raise ValueError(
-            f"need n_terms >= 1, reach >= 1, states >= 2; got {n_terms}, {reach}, {states}"
-        )
+    m_terms = _check_count(n_terms, "exclusion_chain: n_terms")
+    p = _check_count(reach, "exclusion_chain: reach", 1, max(1, MAX_BUILD_TERMS // m_terms))
+    n = check_states(states, "exclusion_chain")
     values = _coupling_list(couplings, m_terms, "exclusion_chain")
     n_sites = m_terms + p
     rows = np.arange(m_terms)
@@ -113,9 +172,7 @@ def ising_chain(
     ----------
     P. Pfeuty, Ann. Phys. 57, 79 (1970).
     """
-    size = int(n_sites)
-    if size < 1:
-        raise ValueError(f"n_sites must be >= 1, got {n_sites}")
+    size = _check_count(n_sites, "ising_chain: n_sites")
     if boundary not in ("open", "periodic"):
         raise ValueError(f"boundary must be 'open' or 'periodic', not {boundary!r}")
     n_bonds = size - 1 if boundary == "open" else size
@@ -137,8 +194,10 @@ def ising_lattice(rows: int, cols: int, field: Coupling = 1.0, bond: Coupling = 
     ``H = -h sum X_{r,c} - J sum_<ij> Z_i Z_j``.  In 2D its frustration graph has claws, so no
     free-fermion theorem applies (a standard negative example).
     """
-    h = check_coupling(field, "field")
-    jb = check_coupling(bond, "bond")
+    rows = _check_count(rows, "ising_lattice: rows")
+    cols = _check_count(cols, "ising_lattice: cols", 1, MAX_BUILD_TERMS // rows)
+    h = check_scalar(field, "ising_lattice: field")
+    jb = check_scalar(bond, "ising_lattice: bond")
     terms = []
     for r in range(rows):
         for c in range(cols):
@@ -169,9 +228,13 @@ def kitaev_honeycomb(
     ----------
     A. Kitaev, Ann. Phys. 321, 2 (2006), arXiv:cond-mat/0506438.
     """
-    if rows < 1 or cols < 2:
-        raise ValueError("a honeycomb patch needs rows >= 1 and cols >= 2")
-    cx, cy, cz = (check_coupling(v, name) for v, name in ((jx, "jx"), (jy, "jy"), (jz, "jz")))
+    rows = _check_count(rows, "kitaev_honeycomb: rows")
+    cols = _check_count(cols, "kitaev_honeycomb: cols (a patch needs 2 or more)", 2)
+    _check_count(rows * cols, "kitaev_honeycomb: rows * cols")
+    cx, cy, cz = (
+        check_scalar(v, f"kitaev_honeycomb: {name}")
+        for v, name in ((jx, "jx"), (jy, "jy"), (jz, "jz"))
+    )
     terms = []
     for r in range(rows):
         for c in range(cols - 1):
@@ -198,7 +261,8 @@ def clock_chain(n_sites: int, field: Any = 1.0, bond: Any = 1.0, states: int = 3
     ----------
     R. J. Baxter, Phys. Lett. A 140, 155 (1989); P. Fendley, J. Phys. A 47, 075001 (2014).
     """
-    n = int(states)
+    n = check_states(states, "clock_chain")
+    n_sites = _check_count(n_sites, "clock_chain: n_sites")
     f = _coupling_list(field, n_sites, "clock_chain field", "f")
     jj = _coupling_list(bond, n_sites - 1, "clock_chain bond", "J")
     terms = []
@@ -211,22 +275,35 @@ def clock_chain(n_sites: int, field: Any = 1.0, bond: Any = 1.0, states: int = 3
 
 def staggered(n: int, a: Coupling, b: Coupling) -> list[Coupling]:
     """``[a, b, a, b, ...]`` of length ``n`` (dimerised couplings)."""
-    return [a if j % 2 == 0 else b for j in range(int(n))]
+    n = _check_count(n, "staggered: n", 0)
+    a, b = check_scalar(a, "staggered: a"), check_scalar(b, "staggered: b")
+    return [a if j % 2 == 0 else b for j in range(n)]
 
 
 def random_couplings(
     n: int, low: float = 0.5, high: float = 1.5, seed: int | None = None
 ) -> np.ndarray:
     """``n`` couplings drawn uniformly from ``[low, high)`` with a reproducible seed."""
-    if not (np.isfinite(low) and np.isfinite(high)) or high < low:
-        raise ValueError(f"need finite low <= high, got {low}, {high}")
-    return np.random.default_rng(seed).uniform(low, high, int(n))
+    n = _check_count(n, "random_couplings: n", 0)
+    lo, hi = _check_real(low, "random_couplings: low"), _check_real(high, "random_couplings: high")
+    if hi < lo:
+        raise ValueError(f"random_couplings: need low <= high, got {low}, {high}")
+    return np.random.default_rng(_check_seed(seed)).uniform(lo, hi, n)
 
 
 def complex_couplings(
     n: int, modulus: tuple[float, float] = (0.5, 1.5), seed: int | None = None
 ) -> np.ndarray:
     """``n`` complex couplings with moduli uniform in ``modulus`` and uniform random phases."""
-    rng = np.random.default_rng(seed)
-    r = rng.uniform(modulus[0], modulus[1], int(n))
-    return r * np.exp(2j * np.pi * rng.uniform(0, 1, int(n)))
+    n = _check_count(n, "complex_couplings: n", 0)
+    if isinstance(modulus, (str, bytes)) or np.ndim(modulus) != 1 or len(modulus) != 2:
+        raise TypeError(
+            f"complex_couplings: modulus must be a pair (low, high), got {modulus!r:.60}"
+        )
+    lo = _check_real(modulus[0], "complex_couplings: modulus[0]")
+    hi = _check_real(modulus[1], "complex_couplings: modulus[1]")
+    if not 0 <= lo <= hi:
+        raise ValueError(f"complex_couplings: need 0 <= low <= high, got {lo}, {hi}")
+    rng = np.random.default_rng(_check_seed(seed))
+    r = rng.uniform(lo, hi, n)
+    return r * np.exp(2j * np.pi * rng.uniform(0, 1, n))

@@ -24,6 +24,15 @@ from dataclasses import dataclass
 import networkx as nx
 import numpy as np
 
+__all__ = [
+    "HoleSearch",
+    "find_claw",
+    "find_even_hole",
+    "find_simplicial_clique",
+    "is_chordal",
+    "is_clique",
+]
+
 EXACT_HOLE_LIMIT = 400
 """Components up to this many vertices get the large even-hole search budget."""
 
@@ -113,16 +122,6 @@ def _prune_to_simplicial(adjacency: Sequence[set[int]], clique: set[int]) -> set
             return clique
         clique = clique - bad
     return clique
-
-
-def is_simplicial_clique(adjacency: Sequence[set[int]], clique: Sequence[int]) -> bool:
-    """Check the definition directly: a non-empty clique K with every ``N(v) \\ K`` a clique."""
-    k = set(clique)
-    return (
-        bool(k)
-        and is_clique(adjacency, k)
-        and all(is_clique(adjacency, adjacency[v] - k) for v in k)
-    )
 
 
 def is_chordal(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> bool:

@@ -16,12 +16,15 @@ from __future__ import annotations
 import cmath
 import functools
 import math
-import numbers
 from fractions import Fraction
 from typing import Any
 
 import numpy as np
 import sympy
+
+from .scalars import exact_value
+
+__all__ = ["CyclotomicField", "Element", "power_table"]
 
 
 @functools.lru_cache(maxsize=32)
@@ -122,26 +125,24 @@ class CyclotomicField:
 
         Raises
         ------
+        TypeError
+            For a value that is not a number or a sympy expression.
         ValueError
             For symbols, irrational or non-finite numbers, or a complex number when 4 does not
             divide the order (no i in the field).
         """
-        if isinstance(c, sympy.Basic):
-            if c.free_symbols:
+        value = exact_value(c)
+        if isinstance(value, sympy.Basic):
+            if value.free_symbols:
                 raise ValueError(f"{c} has symbols")
-            re, im = c.as_real_imag()
+            re, im = value.as_real_imag()
             if not (re.is_Rational and im.is_Rational):
                 raise ValueError(f"{c} is not a (Gaussian) rational number")
             parts = (Fraction(int(re.p), int(re.q)), Fraction(int(im.p), int(im.q)))
-        elif isinstance(c, (Fraction, numbers.Integral)):
-            parts = (Fraction(c), Fraction(0))
-        elif isinstance(c, numbers.Complex):
-            z = complex(c)
-            if not (math.isfinite(z.real) and math.isfinite(z.imag)):
-                raise ValueError(f"{c!r} is not finite")
-            parts = (Fraction(z.real), Fraction(z.imag))
+        elif isinstance(value, tuple):
+            parts = value
         else:
-            raise ValueError(f"{c!r} is not a number")
+            parts = (Fraction(value), Fraction(0))
         out = self.rational(parts[0])
         if parts[1]:
             if self.order % 4:

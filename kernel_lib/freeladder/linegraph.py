@@ -26,6 +26,8 @@ from dataclasses import dataclass
 
 import networkx as nx
 
+__all__ = ["LineGraphRoot", "NotALineGraph", "line_graph_root"]
+
 _WHITNEY_SIZE = 5
 """Root graphs with at least this many vertices are unique (Whitney 1932)."""
 

@@ -33,7 +33,7 @@ from __future__ import annotations
 
 import bisect
 import itertools
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -96,9 +96,6 @@ class SectorStructure:
     relations : tuple of (tuple of int, int)
         Products of generators (cycle operators first, then parities, by index) that equal
         ``+-1`` times the identity, with that sign: they constrain the labels.
-    sectors : tuple of tuple of int
-        Every consistent assignment of eigenvalues ``+-1`` to the generators (cycles, then
-        parities); each is a joint eigenspace of dimension ``2^(L - rank)``.
     rank : int
         The number of independent generators over GF(2).
     site_labels : tuple
@@ -109,7 +106,6 @@ class SectorStructure:
     cycle_operators: tuple[WeylString, ...]
     parity_operators: tuple[WeylString, ...]
     relations: tuple[tuple[tuple[int, ...], int], ...]
-    sectors: tuple[tuple[int, ...], ...]
     rank: int
     site_labels: tuple[Any, ...]
     _closing: tuple[tuple[int, complex], ...] = field(repr=False)
@@ -117,15 +113,52 @@ class SectorStructure:
     _components: tuple[_Component, ...] = field(repr=False)
 
     @property
-    def count(self) -> int:
-        """Number of consistent sectors."""
-        return len(self.sectors)
+    def generators(self) -> tuple[WeylString, ...]:
+        """The cycle operators, then the parity operators: a label gives each an eigenvalue."""
+        return (*self.cycle_operators, *self.parity_operators)
 
     @property
-    def cycle_sectors(self) -> tuple[tuple[int, ...], ...]:
-        """The distinct consistent assignments of the cycle operators alone."""
-        c = len(self.cycle_operators)
-        return tuple(sorted({s[:c] for s in self.sectors}, reverse=True))
+    def count(self) -> int:
+        """Number of consistent sectors, ``2^rank``."""
+        return int(2**self.rank)
+
+    @property
+    def sectors(self) -> tuple[tuple[int, ...], ...]:
+        """Every consistent label: eigenvalues ``+-1`` of the generators, each a joint
+        eigenspace of dimension ``2^(L - rank)``.
+
+        Raises
+        ------
+        ValueError
+            When there are more than ``2^16`` of them.
+        """
+        return self.labels_where({})
+
+    def labels_where(self, values: Mapping[WeylString, int]) -> tuple[tuple[int, ...], ...]:
+        """Every consistent label in which each given conserved string has the given value.
+
+        Parameters
+        ----------
+        values : mapping
+            Conserved strings (any products of the generators, e.g. plaquette operators) to
+            their eigenvalues +-1.
+
+        Raises
+        ------
+        ValueError
+            For a string that is not a product of the generators, values that contradict each
+            other or the relations, or more than ``2^16`` labels.
+        """
+        gens = self.generators
+        col = {s: j for j, s in enumerate(self.site_labels)}
+        equations = [(_mask(members), sign) for members, sign in self.relations]
+        basis = _gf2_basis(gens, col) if values else {}
+        for string, value in values.items():
+            if value not in (1, -1):
+                raise ValueError(f"the value of {string} must be +1 or -1, not {value!r}")
+            members, zeta = _express(string, gens, col, basis)
+            equations.append((_mask(members), value * zeta))
+        return _solve_signs(equations, len(gens))
 
     def sector_of(self, vector: Any, atol: float = 1e-8) -> tuple[int, ...]:
         """Eigenvalues of the generators on a state (an exact eigenvector or a basis state).
@@ -235,6 +268,91 @@ def _relations(
     return relations, len(basis)
 
 
+def _mask(members: Sequence[int]) -> int:
+    out = 0
+    for k in members:
+        out |= 1 << k
+    return out
+
+
+def _gf2_basis(gens: Sequence[WeylString], col: dict[Any, int]) -> dict[int, tuple[int, int]]:
+    """Echelon basis of the generators over GF(2): pivot bit -> (vector, combination mask)."""
+    basis: dict[int, tuple[int, int]] = {}
+    for k, gen in enumerate(gens):
+        vec, combo = _gf2_vector(gen, col), 1 << k
+        while vec:
+            pivot = vec.bit_length() - 1
+            if pivot not in basis:
+                basis[pivot] = (vec, combo)
+                break
+            vec, combo = vec ^ basis[pivot][0], combo ^ basis[pivot][1]
+    return basis
+
+
+def _express(
+    string: WeylString,
+    gens: Sequence[WeylString],
+    col: dict[Any, int],
+    basis: dict[int, tuple[int, int]],
+) -> tuple[tuple[int, ...], int]:
+    """Generators whose product is ``zeta * string`` (zeta = +-1), by elimination over GF(2)."""
+    if not isinstance(string, WeylString) or string.states != 2:
+        raise TypeError(f"expected a Pauli string (WeylString with N = 2), got {string!r}")
+    g, _ = string.normalized()
+    try:
+        target = _gf2_vector(g, col)
+    except KeyError as err:
+        raise ValueError(f"{string} acts on site {err.args[0]!r}, not in the model") from None
+    combo = 0
+    while target:
+        pivot = target.bit_length() - 1
+        if pivot not in basis:
+            raise ValueError(f"{string} is not a product of the conserved cycle/parity strings")
+        target, combo = target ^ basis[pivot][0], combo ^ basis[pivot][1]
+    members = tuple(k for k in range(len(gens)) if combo >> k & 1)
+    prod, phase = _ordered_product([gens[k] for k in members])
+    if prod.factors != g.factors or abs(phase.imag) > 1e-12:
+        raise AssertionError("a product of commuting Hermitian strings has a non-real phase")
+    return members, 1 if phase.real > 0 else -1
+
+
+def _solve_signs(equations: Sequence[tuple[int, int]], n: int) -> tuple[tuple[int, ...], ...]:
+    """All ``a in {+-1}^n`` with ``prod_{k in mask} a_k = sign`` for every (mask, sign)."""
+    pivots: dict[int, tuple[int, int]] = {}  # pivot bit -> (mask, parity bit)
+    for mask, sign in equations:
+        bit = 0 if sign == 1 else 1
+        while mask:
+            p = mask.bit_length() - 1
+            if p not in pivots:
+                pivots[p] = (mask, bit)
+                break
+            mask, bit = mask ^ pivots[p][0], bit ^ pivots[p][1]
+        if mask == 0 and bit:
+            raise ValueError("the requested values contradict each other or the relations")
+    free = [k for k in range(n) if k not in pivots]
+    if len(free) > MAX_SECTOR_GENERATORS:
+        raise ValueError(
+            f"2^{len(free)} labels are consistent: more than 2^{MAX_SECTOR_GENERATORS} to list; "
+            "fix more conserved strings (labels_where) to narrow them down"
+        )
+    out = []
+    for choice in itertools.product((0, 1), repeat=len(free)):
+        x = dict(zip(free, choice, strict=True))
+        for p in sorted(pivots):  # lower pivots first: each row's other bits are below it
+            mask, bit = pivots[p]
+            rest = mask & ~(1 << p)
+            val = bit
+            k = 0
+            while rest:
+                if rest & 1:
+                    val ^= x[k]
+                rest >>= 1
+                k += 1
+            x[p] = val
+        out.append(tuple(-1 if x[k] else 1 for k in range(n)))
+    return tuple(sorted(out, reverse=True))
+
+
 def sectors(m: Model) -> SectorStructure:
     """The conserved cycle and parity strings of a Jordan-Wigner model, and its sectors.
 
@@ -276,8 +394,9 @@ def sectors(m: Model) -> SectorStructure:
     comps: list[_Component] = []
     for nodes in sorted(nx.connected_components(root), key=min):
         sub = root.subgraph(nodes)
-        tree = nx.minimum_spanning_tree(sub)  # deterministic: BFS-like on sorted nodes
-        parent = dict(nx.bfs_predecessors(tree, min(nodes)))
+        parent = dict(nx.bfs_predecessors(sub, min(nodes)))  # short fundamental cycles
+        tree = nx.Graph([(v, u) for v, u in parent.items()])
+        tree.add_nodes_from(nodes)
         depth = {min(nodes): 0}
         for v in nx.bfs_tree(tree, min(nodes)):
             if v in parent:
@@ -316,20 +435,11 @@ def sectors(m: Model) -> SectorStructure:
     gens = [*cycle_ops, *parity_ops]
     col = {s: j for j, s in enumerate(m.sites)}
     relations, rank = _relations(gens, col)
-    if len(gens) > MAX_SECTOR_GENERATORS + len(relations):
-        labels: tuple[tuple[int, ...], ...] = ()
-    else:
-        labels = tuple(
-            a
-            for a in itertools.product((1, -1), repeat=len(gens))
-            if all(np.prod([a[i] for i in k]) == s for k, s in relations)
-        )
     return SectorStructure(
         pairs,
         tuple(cycle_ops),
         tuple(parity_ops),
         tuple(relations),
-        labels,
         rank,
         tuple(m.sites),
         tuple(closing),
@@ -495,12 +605,13 @@ def jordan_wigner_spectrum(m: Model, sector: str | Sequence[int] = "all") -> Sec
     ----------
     m : Model
         Real couplings; the frustration graph must be a line graph.
-    sector : "all", "ground" or a sequence of +-1
+    sector : "all", "ground", a sequence of +-1, or a mapping
         "all": every consistent sector (their union, with multiplicities, is the whole
         spectrum).  "ground": every sector is solved and the one holding the lowest level is
         kept (a search; refused beyond 2^16 sectors).  A sequence: eigenvalues of the cycle
         operators (:attr:`SectorStructure.cycle_operators`, in order); every consistent parity
-        assignment is kept.
+        assignment is kept.  A mapping: conserved strings (e.g. plaquettes) to their values;
+        every consistent completion is kept (:meth:`SectorStructure.labels_where`).
 
     Returns
     -------
@@ -528,23 +639,18 @@ def jordan_wigner_spectrum(m: Model, sector: str | Sequence[int] = "all") -> Sec
     couplings = m.coupling_array()
     if np.iscomplexobj(couplings):
         raise ValueError("the Jordan-Wigner route here needs real couplings")
-    if not struct.sectors:
-        raise ValueError(
-            f"{len(struct.cycle_operators) + len(struct.parity_operators)} sector generators: "
-            f"more than 2^{MAX_SECTOR_GENERATORS} sectors to enumerate; pass one cycle label"
-        )
     n_cycles = len(struct.cycle_operators)
     if isinstance(sector, str):
         if sector not in ("all", "ground"):
             raise ValueError(f"sector must be 'all', 'ground' or a tuple of +-1, not {sector!r}")
         labels = struct.sectors
+    elif isinstance(sector, Mapping):
+        labels = struct.labels_where(sector)
     else:
         want = tuple(int(s) for s in sector)
         if len(want) != n_cycles or any(s not in (1, -1) for s in want):
             raise ValueError(f"a sector label is {n_cycles} values +-1 (one per cycle operator)")
-        labels = tuple(a for a in struct.sectors if a[:n_cycles] == want)
-        if not labels:
-            raise ValueError(f"the cycle label {want} is not consistent with the relations")
+        labels = struct.labels_where(dict(zip(struct.cycle_operators, want, strict=True)))
     dim = 2 ** len(m.sites)
     solved = [_solve_sector(struct, couplings, label, dim) for label in labels]
     if sector == "ground":

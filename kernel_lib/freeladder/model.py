@@ -2,22 +2,34 @@
 
 ``H = constant + sum_j c_j g_j`` with every ``g_j`` normalised so that ``g_j^N = 1`` (any
 leftover phase of a string is moved into its coupling, exactly).  Couplings may be ``int``,
-``float``, ``complex``, :class:`fractions.Fraction` or sympy expressions.
+``float``, ``complex``, :class:`fractions.Fraction` (a finite ``Decimal`` becomes one), numpy
+scalars or sympy expressions; they are checked where they enter (:mod:`freeladder.scalars`),
+and text is never read as a value.  Exact integers may be arbitrarily large; the
+floating-point numerics (:meth:`Model.coupling_array`, matrices) refuse, by term, a value that
+does not fit a float.
 """
 
 from __future__ import annotations
 
 import functools
-import numbers
 from collections.abc import Iterable, Mapping, Sequence
-from fractions import Fraction
 from typing import Any, NamedTuple
 
 import numpy as np
 import sympy
 
 from .printing import format_terms, format_terms_latex
-from .strings import StringArray, WeylString, unit_phase
+from .scalars import (
+    as_complex,
+    check_scalar,
+    expand_exact,
+    substitute,
+    substitution_map,
+    to_python_number,
+)
+from .strings import StringArray, WeylString, check_states, unit_phase
+
+__all__ = ["Coupling", "Model", "Term", "times_phase"]
 
 Coupling = Any
 """int, float, complex, Fraction or a sympy expression."""
@@ -30,46 +42,6 @@ class Term(NamedTuple):
     string: WeylString
 
 
-def is_symbolic(c: Coupling) -> bool:
-    """True for a sympy expression that still has free symbols."""
-    return isinstance(c, sympy.Basic) and bool(c.free_symbols)
-
-
-def to_python_number(c: Coupling) -> Coupling:
-    """Turn a symbol-free sympy value into int, Fraction, float or complex; leave others alone."""
-    if not isinstance(c, sympy.Basic) or c.free_symbols:
-        return c
-    if c.is_Integer:
-        return int(c)
-    if c.is_Rational:
-        return Fraction(int(c.p), int(c.q))  # type: ignore[attr-defined]
-    value = complex(c.evalf(30))
-    return value.real if value.imag == 0 else value
-
-
-def check_coupling(c: Coupling, where: str) -> Coupling:
-    """Validate one coupling: a finite number or a sympy expression.
-
-    Raises
-    ------
-    TypeError
-        For values of another type (strings, lists, None ...).
-    ValueError
-        For NaN or infinite values.
-    """
-    if isinstance(c, bool) or not isinstance(c, (numbers.Number, sympy.Basic)):
-        raise TypeError(f"{where}: coupling {c!r} is not a number or a sympy expression")
-    if isinstance(c, sympy.Basic):
-        if c.has(sympy.nan, sympy.zoo, sympy.oo, -sympy.oo):
-            raise ValueError(f"{where}: coupling {c} is not finite")
-        return to_python_number(c)
-    if isinstance(c, np.generic):
-        c = c.item()
-    if isinstance(c, (float, complex)) and not np.isfinite(c):
-        raise ValueError(f"{where}: coupling {c!r} is not finite")
-    return c
-
-
 def times_phase(c: Coupling, exponent: int, states: int) -> Coupling:
     """Exactly multiply a coupling by ``w**exponent``, ``w = exp(i pi / states)``."""
     k = exponent % (2 * states)
@@ -79,7 +51,7 @@ def times_phase(c: Coupling, exponent: int, states: int) -> Coupling:
         return -c
     if isinstance(c, sympy.Basic):
         return sympy.nsimplify(c * sympy.exp(sympy.I * sympy.pi * k / states))
-    return complex(c) * unit_phase(k, states)
+    return as_complex(c, "coupling") * unit_phase(k, states)
 
 
 class Model:
@@ -98,7 +70,20 @@ class Model:
     -----
     Build models with :meth:`from_terms`, :func:`freeladder.parse_model` or a builder such as
     :func:`freeladder.exclusion_chain`; they normalise the strings and merge repeated strings.
-    The direct constructor trusts its input (used by builders that create large chains).
+    The direct constructor takes the strings as given (normalised, distinct: used by builders
+    that create large chains) and checks only the couplings (see
+    :func:`freeladder.scalars.check_scalar`).
+
+    A model is frozen: setting or deleting an attribute raises AttributeError, and its
+    :class:`~freeladder.strings.StringArray` is frozen too.
+
+    Raises
+    ------
+    TypeError
+        For strings that are not a StringArray, or a coupling that is not a number or a sympy
+        expression (text is never parsed).
+    ValueError
+        For a coupling that is not finite, or as many couplings as strings not given.
     """
 
     __slots__ = ("strings", "couplings", "constant", "__dict__")
@@ -107,14 +92,23 @@ class Model:
     constant: Coupling
 
     def __init__(self, strings: StringArray, couplings: Sequence[Coupling], constant: Coupling = 0):
-        if len(couplings) != len(strings):
-            raise ValueError(f"{len(couplings)} couplings for {len(strings)} strings")
+        if not isinstance(strings, StringArray):
+            raise TypeError(f"Model needs a StringArray of strings, got {type(strings).__name__}")
+        checked = tuple(check_scalar(c, f"term {j}") for j, c in enumerate(couplings))
+        if len(checked) != len(strings):
+            raise ValueError(f"{len(checked)} couplings for {len(strings)} strings")
         object.__setattr__(self, "strings", strings)
-        object.__setattr__(self, "couplings", tuple(couplings))
-        object.__setattr__(self, "constant", constant)
+        object.__setattr__(self, "couplings", checked)
+        object.__setattr__(self, "constant", check_scalar(constant, "constant"))
 
     def __setattr__(self, name: str, value: Any) -> None:
-        raise AttributeError("Model is immutable; use with_couplings() or subs()")
+        raise AttributeError(
+            f"Model is immutable (cannot set {name!r}); build a new one with with_couplings() "
+            "or subs()"
+        )
+
+    def __delattr__(self, name: str) -> None:
+        raise AttributeError(f"Model is immutable (cannot delete {name!r})")
 
     # -- construction -----------------------------------------------------------------------------
     @classmethod
@@ -138,37 +132,38 @@ class Model:
         """
         merged: dict[tuple, list] = {}
         order: list[tuple] = []
-        const = check_coupling(constant, "constant")
-        for idx, (c, g) in enumerate(terms):
-            c = check_coupling(c, f"term {idx}")
+        const = check_scalar(constant, "constant")
+        if states is not None:
+            states = check_states(states)
+        if isinstance(terms, (str, bytes)) or not isinstance(terms, Iterable):
+            raise TypeError(
+                "from_terms needs an iterable of (coupling, WeylString) pairs, "
+                f"got {type(terms).__name__} (use parse_model for text)"
+            )
+        for idx, term in enumerate(terms):
+            c, g = _unpack_term(term, idx)
             if states is None:
                 states = g.states
             if g.states != states:
                 raise ValueError(f"term {idx}: N = {g.states} but the model has N = {states}")
             g, e = g.normalized()
-            c = times_phase(c, e, states)
+            try:
+                c = times_phase(c, e, states)
+            except ValueError as err:
+                raise ValueError(f"term {idx}: {err}") from None
             if not g.factors:
-                const = const + c
+                const = _merge(const, c, idx)
                 continue
             key = g.factors
             if key in merged:
-                merged[key][0] = merged[key][0] + c
+                merged[key][0] = _merge(merged[key][0], c, idx)
             else:
                 merged[key] = [c, g]
                 order.append(key)
         if states is None:
             raise ValueError("a model without terms needs states=N")
         strings = [merged[k][1] for k in order]
-        couplings = [
-            to_python_number(sympy.expand(c)) if isinstance(c, sympy.Basic) else c
-            for c in (merged[k][0] for k in order)
-        ]
-        if sites is None:
-            sites = sorted({s for g in strings for s in g.support})
-        else:
-            sites = list(sites)
-            if len(set(sites)) != len(sites):
-                raise ValueError("the site list has repeated labels")
+        couplings = [expand_exact(merged[k][0]) for k in order]
         arr = StringArray.from_strings(strings, sites, states)
         return cls(arr, couplings, to_python_number(const))
 
@@ -227,7 +222,10 @@ class Model:
             raise ValueError(
                 f"the model has symbolic couplings ({names}); use m.subs({{...}}) first"
             )
-        vals = np.array([complex(c) for c in self.couplings], dtype=np.complex128)
+        vals = np.array(
+            [as_complex(c, f"term {j}") for j, c in enumerate(self.couplings)],
+            dtype=np.complex128,
+        )
         if np.all(vals.imag == 0):
             return vals.real.copy()
         return vals
@@ -236,36 +234,63 @@ class Model:
     def with_couplings(
         self, couplings: Sequence[Coupling], constant: Coupling | None = None
     ) -> Model:
-        """The same strings with new couplings (one per term)."""
-        couplings = list(couplings)
+        """The same strings with new couplings (one per term).
+
+        Raises
+        ------
+        TypeError
+            For a value that is not a number or a sympy expression (text included).
+        ValueError
+            For the wrong number of couplings or a value that is not finite.
+        """
+        if isinstance(couplings, (str, bytes)) or np.ndim(couplings) != 1:
+            raise TypeError(
+                f"with_couplings needs a sequence of {len(self)} couplings, "
+                f"got {type(couplings).__name__}"
+            )
+        couplings = couplings.tolist() if isinstance(couplings, np.ndarray) else list(couplings)
         if len(couplings) != len(self):
             raise ValueError(f"{len(couplings)} couplings given for a model of {len(self)} terms")
-        checked = [check_coupling(c, f"term {j}") for j, c in enumerate(couplings)]
-        const = self.constant if constant is None else check_coupling(constant, "constant")
-        return Model(self.strings, checked, const)
+        const = self.constant if constant is None else constant
+        return Model(self.strings, couplings, const)
 
     def subs(self, values: Mapping[Any, Any]) -> Model:
-        """Substitute values for symbols (keys may be sympy symbols or their names)."""
-        mapping = {}
-        by_name = {str(s): s for s in self.symbols}
-        for k, v in values.items():
-            key = by_name.get(k, k) if isinstance(k, str) else k
-            if isinstance(k, str) and k not in by_name:
-                raise KeyError(f"the model has no symbol named {k!r}; it has {sorted(by_name)}")
-            mapping[key] = v
+        """Substitute numbers or sympy expressions for symbols.
 
-        def sub(c: Coupling) -> Coupling:
-            if isinstance(c, sympy.Basic):
-                return c.subs(mapping)
-            return c
+        Keys are sympy symbols or their names; values are numbers or sympy expressions (text is
+        rejected: it is never parsed).
 
-        return self.with_couplings([sub(c) for c in self.couplings], sub(self.constant))
+        Raises
+        ------
+        TypeError
+            For a value that is not a number or a sympy expression.
+        ValueError
+            For a name that is not one of the model's symbols, or a value (or a resulting
+            coupling) that is not finite.
+
+        Examples
+        --------
+        >>> import freeladder as fl
+        >>> print(fl.parse_model("g X0 + 2*g Z0 Z1").subs({"g": 0.5}))
+        0.5 X0 + Z0 Z1
+        """
+        mapping = substitution_map(values, self.symbols)
+
+        def sub(j: int, c: Coupling) -> Coupling:
+            try:
+                return substitute(c, mapping)
+            except ValueError as err:
+                where = "constant" if j < 0 else f"term {j}"
+                raise ValueError(f"{where}: {err}") from None
+
+        new = [sub(j, c) for j, c in enumerate(self.couplings)]
+        return self.with_couplings(new, sub(-1, self.constant))
 
     # -- matrices and printing ---------------------------------------------------------------------
     def to_sparse(self) -> Any:
         """The Hamiltonian as a scipy.sparse matrix on :attr:`sites` (numeric couplings only)."""
         mat = self.strings.to_sparse(self.coupling_array())
-        c = complex(to_python_number(self.constant)) if self.constant != 0 else 0
+        c = as_complex(self.constant, "constant") if self.constant != 0 else 0
         if c != 0:
             import scipy.sparse as sps
 
@@ -283,3 +308,28 @@ class Model:
 
     def _repr_latex_(self) -> str:
         return "$" + format_terms_latex(self.terms, self.constant) + "$"
+
+
+def _unpack_term(term: Any, idx: int) -> tuple[Coupling, WeylString]:
+    """One ``(coupling, WeylString)`` pair, checked."""
+    if not isinstance(term, (tuple, list)) or len(term) != 2:
+        raise TypeError(f"term {idx}: expected a (coupling, WeylString) pair, got {term!r:.80}")
+    c, g = term
+    if not isinstance(g, WeylString):
+        raise TypeError(
+            f"term {idx}: the string must be a WeylString (see make_string, pauli), "
+            f"got {type(g).__name__}"
+        )
+    return check_scalar(c, f"term {idx}"), g
+
+
+def _merge(a: Coupling, b: Coupling, idx: int) -> Coupling:
+    """``a + b`` for two couplings of one string; an overflow becomes a ValueError."""
+    try:
+        return a + b
+    except OverflowError:
+        raise ValueError(
+            f"term {idx}: its coupling and that of an earlier term with the same string cannot "
+            "be added (an exact integer too large for a float meets a float); give them as "
+            "exact numbers"
+        ) from None

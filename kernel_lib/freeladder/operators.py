@@ -24,8 +24,7 @@ from __future__ import annotations
 
 import functools
 import math
-import numbers
-from collections.abc import Iterable, Sequence
+from collections.abc import Iterable, Mapping, Sequence
 from fractions import Fraction
 from typing import Any
 
@@ -36,10 +35,20 @@ import sympy
 from .cyclotomic import power_table
 from .model import Model
 from .printing import format_terms, format_terms_latex
+from .scalars import (
+    Scalar,
+    as_complex,
+    check_scalar,
+    expand_exact,
+    is_exact_scalar,
+    is_symbolic,
+    substitute,
+    substitution_map,
+    to_sympy,
+)
 from .strings import StringArray, WeylString, unit_phase
 
-Scalar = Any
-"""int, Fraction, float, complex or a sympy expression."""
+__all__ = ["PAIR_CHUNK", "StringSum", "string_keys"]
 
 _EPS = float(np.finfo(float).eps)
 
@@ -97,7 +106,7 @@ class _ExactRing:
         if any(isinstance(v, sympy.Basic) for v in values):
             num = np.zeros((n, self.d), dtype=object)
             num[:] = 0
-            num[:, 0] = [_to_sympy(v) if isinstance(v, Fraction) else v for v in values]
+            num[:, 0] = [to_sympy(v) if isinstance(v, Fraction) else v for v in values]
             return num, 1
         den = 1
         for v in values:
@@ -146,7 +155,7 @@ class _ExactRing:
     def scale(self, a: Coef, s: Scalar) -> Coef:
         num, den = a
         if isinstance(s, sympy.Basic) or _is_sympy_array(num):
-            return num.astype(object) * (_to_sympy(s) / den), 1
+            return num.astype(object) * (to_sympy(s) / den), 1
         s = Fraction(s)
         if num.dtype != object:
             num = _widen(num, _maxabs(num) * abs(s.numerator))
@@ -181,7 +190,7 @@ class _ExactRing:
     def nonzero(self, a: Coef) -> np.ndarray:
         num, _ = a
         if _is_sympy_array(num):
-            num[:] = np.vectorize(_expand_sympy, otypes=[object])(num)
+            num[:] = np.vectorize(expand_exact, otypes=[object])(num)
             mask = np.asarray(np.asarray(num != 0, dtype=bool).reshape(num.shape).any(axis=1))
             # A symbolic coefficient may hold i or roots of unity itself; combine and recheck.
             for r in np.nonzero(mask)[0]:
@@ -217,7 +226,7 @@ class _ExactRing:
     # reading out
     def values(self, a: Coef) -> np.ndarray:
         num, den = a
-        if num.size and num.dtype == object and any(is_symbolic_value(v) for v in num.flat):
+        if num.size and num.dtype == object and any(is_symbolic(v) for v in num.flat):
             raise ValueError("the operator sum has symbolic coefficients; substitute values first")
         if num.dtype == object:
             flt = np.array([[_to_complex(v, den) for v in row] for row in num], dtype=complex)
@@ -236,7 +245,7 @@ class _ExactRing:
         n = self.states
         return sympy.expand(
             sum(
-                _to_sympy(self.component(v, den))
+                to_sympy(self.component(v, den))
                 * sympy.exp(sympy.I * sympy.pi * sympy.Rational(k, n))
                 for k, v in enumerate(row)
                 if v != 0
@@ -252,8 +261,8 @@ class _ExactRing:
 
 def _to_complex(v: Any, den: int) -> complex:
     if isinstance(v, sympy.Basic):
-        return complex(v) / den
-    return complex(Fraction(int(v), den))
+        return as_complex(v, "coefficient") / den
+    return as_complex(Fraction(int(v), den), "coefficient")
 
 
 class _NumericRing:
@@ -267,7 +276,8 @@ class _NumericRing:
         self._table = np.array([unit_phase(k, states) for k in range(2 * states)], dtype=complex)
 
     def lift(self, values: Sequence[Scalar]) -> Coef:
-        return np.array([complex(v) for v in values], dtype=complex).reshape(-1, 1), 1
+        out = [as_complex(v, f"coefficient {r}") for r, v in enumerate(values)]
+        return np.array(out, dtype=complex).reshape(-1, 1), 1
 
     def mul(self, a: Coef, b: Coef) -> Coef:
         return a[0] * b[0], 1
@@ -279,7 +289,7 @@ class _NumericRing:
         return a[0] - b[0], 1
 
     def scale(self, a: Coef, s: Scalar) -> Coef:
-        return a[0] * complex(s), 1
+        return a[0] * as_complex(s, "scalar"), 1
 
     def phase(self, a: Coef, k: np.ndarray) -> Coef:
         k = np.asarray(k, dtype=np.int64) % (2 * self.states)
@@ -310,52 +320,6 @@ def _exact_ring(states: int) -> _ExactRing:
 @functools.lru_cache(maxsize=16)
 def _numeric_ring(states: int) -> _NumericRing:
     return _NumericRing(states)
-
-
-def _expand_sympy(v: Any) -> Any:
-    if isinstance(v, sympy.Basic):
-        e = sympy.expand(v)
-        if not e.free_symbols:
-            if e.is_Integer:
-                return int(e)
-            if e.is_Rational:
-                return Fraction(int(e.p), int(e.q))  # type: ignore[attr-defined]
-        return e
-    return v
-
-
-def _to_sympy(v: Any) -> Any:
-    if isinstance(v, Fraction):
-        return sympy.Rational(v.numerator, v.denominator)
-    if isinstance(v, sympy.Basic):
-        return v
-    if isinstance(v, int):
-        return sympy.Integer(v)
-    return sympy.Float(v) if isinstance(v, float) else sympy.nsimplify(v)
-
-
-def is_symbolic_value(v: Any) -> bool:
-    """True for a sympy expression with free symbols."""
-    return isinstance(v, sympy.Basic) and bool(v.free_symbols)
-
-
-def is_exact_scalar(v: Any) -> bool:
-    """True for int, Fraction and sympy values (which :class:`StringSum` keeps exact)."""
-    return (isinstance(v, (int, Fraction, sympy.Basic)) and not isinstance(v, bool)) or (
-        isinstance(v, np.integer)
-    )
-
-
-def _check_scalar(v: Any, where: str) -> Any:
-    if isinstance(v, bool) or not isinstance(v, (numbers.Number, sympy.Basic)):
-        raise TypeError(f"{where}: {v!r} is not a number or a sympy expression")
-    if isinstance(v, np.generic):
-        v = v.item()
-    if isinstance(v, (float, complex)) and not np.isfinite(v):
-        raise ValueError(f"{where}: coefficient {v!r} is not finite")
-    if isinstance(v, sympy.Basic) and v.has(sympy.nan, sympy.zoo, sympy.oo, -sympy.oo):
-        raise ValueError(f"{where}: coefficient {v} is not finite")
-    return v
 
 
 # -- merging equal strings ----------------------------------------------------------------------
@@ -575,7 +539,16 @@ class StringSum:
     _scale: float
 
     def __init__(self, strings: StringArray, coefficients: Sequence[Scalar]) -> None:
-        values = [_check_scalar(c, f"coefficient {r}") for r, c in enumerate(coefficients)]
+        if not isinstance(strings, StringArray):
+            raise TypeError(f"StringSum needs a StringArray, got {type(strings).__name__}")
+        if isinstance(coefficients, (str, bytes)) or np.ndim(coefficients) != 1:
+            raise TypeError(
+                f"StringSum needs a sequence of {len(strings)} coefficients, "
+                f"got {type(coefficients).__name__}"
+            )
+        values = [
+            check_scalar(c, f"coefficient {r}", "coefficient") for r, c in enumerate(coefficients)
+        ]
         if len(values) != len(strings):
             raise ValueError(f"{len(values)} coefficients for {len(strings)} strings")
         values = [int(v) if isinstance(v, np.integer) else v for v in values]
@@ -586,7 +559,13 @@ class StringSum:
         else:
             ring = _numeric_ring(strings.states)
             coef = ring.lift(values)
-            scale = float(np.abs(coef[0]).sum())
+            with np.errstate(over="ignore"):
+                scale = float(np.abs(coef[0]).sum())
+            if not np.isfinite(scale):
+                raise ValueError(
+                    "the coefficients' absolute values add up beyond the float range; "
+                    "scale them down (or give them as exact numbers)"
+                )
             self._set(*_canonicalise(_store(strings), coef, ring), ring, scale)
 
     def _set(self, store: Any, coef: Coef, ring: Any, scale: float) -> None:
@@ -633,7 +612,14 @@ class StringSum:
         cls, pairs: Iterable[tuple[Scalar, WeylString]], sites: Sequence[Any], states: int
     ) -> StringSum:
         """From ``(coefficient, WeylString)`` pairs on the given sites."""
+        if isinstance(pairs, (str, bytes)) or not isinstance(pairs, Iterable):
+            raise TypeError("from_strings needs (coefficient, WeylString) pairs")
         pairs = list(pairs)
+        for j, pair in enumerate(pairs):
+            if not isinstance(pair, (tuple, list)) or len(pair) != 2:
+                raise TypeError(f"pair {j}: expected (coefficient, WeylString), got {pair!r:.60}")
+            if not isinstance(pair[1], WeylString):
+                raise TypeError(f"pair {j}: {type(pair[1]).__name__} is not a WeylString")
         arr = StringArray.from_strings([g for _, g in pairs], sites, states)
         return cls(arr, [c for c, _ in pairs])
 
@@ -665,7 +651,7 @@ class StringSum:
     def is_symbolic(self) -> bool:
         """True when some coefficient has free sympy symbols."""
         num = self._coef[0]
-        return num.dtype == object and any(is_symbolic_value(v) for v in num.flat)
+        return num.dtype == object and any(is_symbolic(v) for v in num.flat)
 
     @property
     def scale(self) -> float:
@@ -751,14 +737,19 @@ class StringSum:
 
     def scaled(self, s: Scalar) -> StringSum:
         """``s * self`` for a scalar ``s``."""
-        s = _check_scalar(s, "scalar")
+        s = check_scalar(s, "scalar", "scalar")
         if isinstance(s, np.integer):
             s = int(s)
         if self.is_exact and is_exact_scalar(s):
             return StringSum._raw(self._store, self._ring.scale(self._coef, s), self._ring, 0.0)
         ring = _numeric_ring(self.states)
-        coef = ring.scale(_as_numeric(self), s)
-        return StringSum._raw(self._store, coef, ring, _numeric_scale(self) * abs(complex(s)))
+        with np.errstate(over="ignore", invalid="ignore"):
+            coef = ring.scale(_as_numeric(self), s)
+        if not np.all(np.isfinite(coef[0])):
+            raise ValueError(f"scaling by {s!r:.40} overflows the floating-point coefficients")
+        return StringSum._raw(
+            self._store, coef, ring, _numeric_scale(self) * abs(as_complex(s, "scalar"))
+        )
 
     def rotated(self, k: int) -> StringSum:
         """``w^k * self`` exactly, ``w = exp(i pi / N)`` (so ``rotated(2)`` multiplies by omega)."""
@@ -795,9 +786,27 @@ class StringSum:
         left, right, m = self._store.noncommuting(other._store)
         return _pair_products(self, other, a, b, left, right, ring, m)
 
-    def subs(self, values: Any) -> StringSum:
-        """Substitute values for sympy symbols (a mapping, as in ``sympy.Expr.subs``)."""
-        pairs = [(_subs(c, values), g) for c, g in self.terms]
+    def subs(self, values: Mapping[Any, Any]) -> StringSum:
+        """Substitute numbers or sympy expressions for symbols.
+
+        Keys are sympy symbols or their names; values are numbers or sympy expressions (text is
+        rejected: it is never parsed).
+
+        Raises
+        ------
+        TypeError
+            For a value that is not a number or a sympy expression.
+        ValueError
+            For a name that is not one of the sum's symbols, or a value (or a resulting
+            coefficient) that is not finite.
+        """
+        terms = self.terms
+        symbols: set[Any] = set()
+        for c, _ in terms:
+            if isinstance(c, sympy.Basic):
+                symbols |= c.free_symbols
+        mapping = substitution_map(values, symbols)
+        pairs = [(substitute(c, mapping), g) for c, g in terms]
         return StringSum.from_strings(pairs, self.sites, self.states)
 
     # -- matrices and printing -------------------------------------------------------------------
@@ -820,20 +829,6 @@ class StringSum:
 
     def _repr_latex_(self) -> str:
         return "$" + format_terms_latex(self.terms) + "$"
-
-
-def _subs(c: Scalar, values: Any) -> Scalar:
-    if not isinstance(c, sympy.Basic):
-        return c
-    out = sympy.expand(c.subs(values))
-    if out.free_symbols:
-        return out
-    if out.is_Integer:
-        return int(out)
-    if out.is_Rational:
-        return Fraction(int(out.p), int(out.q))  # type: ignore[attr-defined]
-    v = complex(out)
-    return v.real if v.imag == 0 else v
 
 
 def _identity_strings(states: int, sites: Sequence[Any]) -> StringArray:

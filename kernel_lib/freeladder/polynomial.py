@@ -26,7 +26,6 @@ arXiv:2012.07857 (P for claw-free frustration graphs).
 from __future__ import annotations
 
 import math
-import numbers
 from collections.abc import Callable, Sequence
 from fractions import Fraction
 from typing import Any, NamedTuple
@@ -38,7 +37,8 @@ import sympy
 from .cache import model_store, structure_store
 from .graph import chain_structure, frustration_adjacency
 from .independent import Algebra, IndependenceGraph
-from .model import Model, to_python_number
+from .model import Model
+from .scalars import exact_to_sympy, exact_value, to_fmpq, to_python_number, to_sympy
 
 _CACHE_KEY = "_freeladder_polynomial"
 _BIG = 2.0**256
@@ -88,32 +88,8 @@ class _SymPoly:
         return _SymPoly([sympy.expand(v) for v in out])
 
 
-def _exact(c: Any) -> Any:
-    """A coupling as an exact value: int, Fraction, (Fraction, Fraction) or sympy expression."""
-    if isinstance(c, np.generic):
-        c = c.item()
-    c = to_python_number(c)
-    if isinstance(c, sympy.Basic):
-        return c
-    if isinstance(c, bool) or not isinstance(c, numbers.Number):
-        raise TypeError(f"coupling {c!r} is not a number or a sympy expression")
-    if isinstance(c, complex):
-        if not (math.isfinite(c.real) and math.isfinite(c.imag)):
-            raise ValueError(f"coupling {c!r} is not finite")
-        if c.imag != 0:
-            return (Fraction(c.real), Fraction(c.imag))
-        c = c.real
-    if isinstance(c, float):
-        if not math.isfinite(c):
-            raise ValueError(f"coupling {c!r} is not finite")
-        return Fraction(c)
-    if isinstance(c, (int, Fraction)):
-        return c
-    return Fraction(c)  # type: ignore[arg-type]
-
-
 def _power(c: Any, n: int) -> Any:
-    """``c**n`` exactly, for the exact values of :func:`_exact`."""
+    """``c**n`` exactly, for the exact values of :func:`~freeladder.scalars.exact_value`."""
     if isinstance(c, tuple):
         re, im = Fraction(1), Fraction(0)
         for _ in range(n):
@@ -145,11 +121,11 @@ class _Ring:
         if k == "integer":
             return flint.fmpz_poly([int(w)])
         if k == "rational":
-            return flint.fmpq_poly([_fmpq(w)])
+            return flint.fmpq_poly([to_fmpq(w)])
         if k == "gaussian":
             re, im = w if isinstance(w, tuple) else (w, 0)
-            return _GaussPoly(flint.fmpq_poly([_fmpq(re)]), flint.fmpq_poly([_fmpq(im)]))
-        return _SymPoly([_exact_to_sympy(w)])
+            return _GaussPoly(flint.fmpq_poly([to_fmpq(re)]), flint.fmpq_poly([to_fmpq(im)]))
+        return _SymPoly([exact_to_sympy(w)])
 
     def monomial(self, w: Any) -> Any:
         """The polynomial ``w x``."""
@@ -157,11 +133,11 @@ class _Ring:
         if k == "integer":
             return flint.fmpz_poly([0, int(w)])
         if k == "rational":
-            return flint.fmpq_poly([0, _fmpq(w)])
+            return flint.fmpq_poly([0, to_fmpq(w)])
         if k == "gaussian":
             re, im = w if isinstance(w, tuple) else (w, 0)
-            return _GaussPoly(flint.fmpq_poly([0, _fmpq(re)]), flint.fmpq_poly([0, _fmpq(im)]))
-        return _SymPoly([sympy.Integer(0), _exact_to_sympy(w)])
+            return _GaussPoly(flint.fmpq_poly([0, to_fmpq(re)]), flint.fmpq_poly([0, to_fmpq(im)]))
+        return _SymPoly([sympy.Integer(0), exact_to_sympy(w)])
 
     def exact_coefficients(self, poly: Any) -> list[Any]:
         """Ascending coefficients as int, Fraction, (Fraction, Fraction) or sympy values."""
@@ -181,21 +157,6 @@ class _Ring:
         while len(out) > 1 and out[-1] == 0:
             out.pop()
         return out
-
-
-def _exact_to_sympy(w: Any) -> sympy.Expr:
-    """An exact value of :func:`_exact` as a sympy number (or the expression itself)."""
-    if isinstance(w, sympy.Basic):
-        return w  # type: ignore[return-value]
-    if isinstance(w, tuple):
-        return _exact_to_sympy(w[0]) + sympy.I * _exact_to_sympy(w[1])  # type: ignore[no-any-return]
-    w = Fraction(w)
-    return sympy.Rational(w.numerator, w.denominator)
-
-
-def _fmpq(w: Any) -> flint.fmpq:
-    w = Fraction(w)
-    return flint.fmpq(w.numerator, w.denominator)
 
 
 def _public(value: Any, rounded: bool = False) -> Any:
@@ -350,7 +311,7 @@ class ExclusionPolynomial:
     def sympy(self, symbol: sympy.Symbol | None = None) -> sympy.Poly:
         """``P`` as a sympy ``Poly`` in ``symbol`` (default ``y``); complex floats become Floats."""
         y = sympy.Symbol("y") if symbol is None else symbol
-        coeffs = [_to_sympy(c) for c in self.coefficients]
+        coeffs = [to_sympy(c) for c in self.coefficients]
         return sympy.Poly.from_list(coeffs[::-1], y)
 
     # -- evaluation ------------------------------------------------------------------------------
@@ -359,7 +320,7 @@ class ExclusionPolynomial:
         if isinstance(y, sympy.Basic) or self.kind == "symbolic":
             if isinstance(y, np.ndarray):
                 raise TypeError("a symbolic polynomial is evaluated at scalars only; subs() first")
-            return self._exact_value(_to_sympy(y))
+            return self._exact_value(to_sympy(y))
         if isinstance(y, (int, Fraction)) and not isinstance(y, bool):
             if self.kind in ("integer", "rational"):
                 return self._exact_value(y)
@@ -383,7 +344,7 @@ class ExclusionPolynomial:
         exponent : numpy.ndarray of int64
         """
         yarr = np.asarray(y)
-        if yarr.dtype == object or self.kind == "symbolic":
+        if yarr.dtype == object or yarr.dtype.kind in "USV" or self.kind == "symbolic":
             raise TypeError("evaluate_scaled needs numeric y and numeric couplings")
         complex_out = np.iscomplexobj(yarr) or self.kind == "gaussian"
         flat = yarr.astype(np.complex128 if complex_out else np.float64).ravel()
@@ -465,23 +426,6 @@ def _to_exact_number(w: Any) -> Any:
     return w
 
 
-def _to_sympy(c: Any) -> sympy.Expr:
-    """A number as a sympy value, built explicitly (never by parsing)."""
-    if isinstance(c, np.generic):
-        c = c.item()
-    if isinstance(c, sympy.Basic):
-        return c  # type: ignore[return-value]
-    if isinstance(c, bool) or not isinstance(c, numbers.Number):
-        raise TypeError(f"{c!r} is not a number or a sympy expression")
-    if isinstance(c, float):
-        return sympy.Float(c)
-    if isinstance(c, complex):
-        return sympy.Float(c.real) + sympy.I * sympy.Float(c.imag)  # type: ignore[no-any-return]
-    if isinstance(c, Fraction):
-        return sympy.Rational(c.numerator, c.denominator)
-    return sympy.Integer(c)
-
-
 def _short_text(c: Any) -> str:
     """A coefficient for display: exact when short, about 6 digits (marked ``~``) when long."""
     if isinstance(c, sympy.Basic):
@@ -523,7 +467,7 @@ def _latex_number(c: Any) -> str:
         if not e10:
             return r"\approx " + mant
         return rf"\approx {mant} \times 10^{{{int(e10)}}}"
-    return sympy.latex(_to_sympy(c))
+    return sympy.latex(to_sympy(c))
 
 
 def _split(vr: Fraction, vi: Fraction, complex_out: bool) -> tuple[complex | float, int]:
@@ -691,7 +635,7 @@ def _build(m: Model) -> ExclusionPolynomial:
     weights = []
     for j, c in enumerate(m.couplings):
         try:
-            weights.append(_power(_exact(c), n))
+            weights.append(_power(exact_value(c), n))
         except (TypeError, ValueError) as err:
             raise type(err)(f"term {j}: {err}") from None
     ring = _Ring(_kind_of(weights))

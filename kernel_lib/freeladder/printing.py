@@ -16,6 +16,7 @@ stays exact.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from fractions import Fraction
 from typing import Any
@@ -23,6 +24,18 @@ from typing import Any
 import sympy
 
 from .strings import WeylString
+
+__all__ = [
+    "NOT_FINITE_NAMES",
+    "RESERVED_NAMES",
+    "coefficient_text",
+    "format_number",
+    "format_terms",
+    "format_terms_latex",
+    "is_plain_name",
+    "letters_and_factor",
+    "site_text",
+]
 
 _ATOM, _POWER, _PRODUCT, _SUM = 3, 2, 1, 0
 
@@ -240,6 +253,61 @@ def _signed(c: Any, phase: int, letters: str, states: int | None) -> tuple[bool,
     return neg, f"{coef} {letters}".strip()
 
 
+def _real_text(x: float, digits: int) -> str:
+    if x == 0:
+        return "0"
+    if not math.isfinite(x):
+        return str(x)
+    text = f"{x:.{digits}g}"
+    return text.replace("e+", "e")
+
+
+def format_number(value: Any, digits: int = 12) -> str:
+    """One number format for display: reals to ``digits`` significant digits, complex ``a+bi``.
+
+    Integers and fractions print exactly; floats print with at most ``digits`` significant
+    digits, so rounding noise disappears (``0.16`` for ``0.16000000000000003``); a complex
+    number prints as ``a+bi`` (``1.5-2i``, ``2i``, ``-i``), its real form when the imaginary
+    part is zero.  Symbol-free sympy numbers print as the Python number they equal; expressions
+    with symbols print in sympy's notation with floats rounded the same way.  This is the format
+    for reading; the text syntax (:func:`format_terms`) keeps every digit so that it reads back
+    exactly.
+
+    Examples
+    --------
+    >>> format_number(0.1 + 0.06)
+    '0.16'
+    >>> format_number(1.5 - 2j), format_number(1j), format_number(Fraction(3, 4))
+    ('1.5-2i', 'i', '3/4')
+    """
+    if isinstance(value, bool):
+        return str(value)
+    if isinstance(value, sympy.Basic):
+        if value.free_symbols or not value.is_number:
+            return sympy.sstr(value, full_prec=False)
+        if value.is_Integer:
+            return str(int(value))
+        if value.is_Rational:
+            value = Fraction(int(value.p), int(value.q))  # type: ignore[attr-defined]
+        else:
+            value = complex(value.evalf(digits + 3))
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, Fraction):
+        return str(value.numerator) if value.denominator == 1 else str(value)
+    if hasattr(value, "item") and not isinstance(value, (float, complex)):
+        value = value.item()  # numpy scalars
+    z = complex(value)
+    if z.imag == 0:
+        return _real_text(z.real, digits)
+    imag = _real_text(abs(z.imag), digits)
+    imag = "i" if imag == "1" else imag + "i"
+    sign = "-" if z.imag < 0 else "+"
+    if z.real == 0:
+        return imag if sign == "+" else "-" + imag
+    return _real_text(z.real, digits) + sign + imag
+
+
 def format_terms_latex(terms: Sequence[tuple[Any, WeylString]], constant: Any = 0) -> str:
     """The terms as a LaTeX expression (without surrounding dollars)."""
     pieces = []
@@ -252,17 +320,25 @@ def format_terms_latex(terms: Sequence[tuple[Any, WeylString]], constant: Any = 
             coef = ""
         elif coef in ("-1", "-1.0"):
             coef = "-"
-        elif isinstance(c, sympy.Basic) and c.is_Add:
+        elif (isinstance(c, sympy.Basic) and c.is_Add) or _is_complex_sum(c):
             coef = rf"\left({coef}\right)"
         if extra:
             coef += rf" e^{{{extra} i \pi / {g.states}}}"
-        pieces.append(f"{coef} {tex}".strip())
+        pieces.append(f"-{tex}" if coef == "-" else f"{coef} {tex}".strip())
     return " + ".join(pieces).replace("+ -", "- ") if pieces else "0"
+
+
+def _is_complex_sum(c: Any) -> bool:
+    return isinstance(c, complex) and c.real != 0 and c.imag != 0
 
 
 def _latex_number(c: Any) -> str:
     if isinstance(c, sympy.Basic):
-        return sympy.latex(c)
+        return sympy.latex(c, full_prec=False)
     if isinstance(c, Fraction):
         return sympy.latex(sympy.Rational(c.numerator, c.denominator))
-    return coefficient_text(c)
+    text = format_number(c)
+    if "e" in text:
+        mant, _, e10 = text.partition("e")
+        return rf"{mant} \times 10^{{{int(e10)}}}"
+    return text

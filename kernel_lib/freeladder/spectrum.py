@@ -4,7 +4,10 @@ Every level of a free model is ``E = constant + sum_k omega^{s_k} eta_k`` with t
 ``s_k in {0, ..., N-1}`` made independently, ``omega = exp(2 pi i / N)`` and ``eta_k^N = 1/y_k``
 for the roots ``y_k`` of the exclusion polynomial ``P``.  :func:`free_spectrum` finds the
 roots by the cheapest route that fits the model and records how, and how accurately, in
-``FreeSpectrum.provenance``.
+``FreeSpectrum.provenance`` (a :class:`SpectrumProvenance`).  It refuses with
+:class:`freeladder.errors.NoTheoremError` when no theorem guarantees that the one polynomial
+gives the spectrum (the :class:`freeladder.verdict.Guarantee` on the verdict); with
+``unproven=True`` it returns the numbers marked NOT GUARANTEED.
 
 References
 ----------
@@ -23,18 +26,31 @@ import html
 import math
 import time
 from collections.abc import Iterator, Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Any, overload
 
 import numpy as np
 
 from . import certify, roots
-from .graph import chain_structure, frustration_adjacency
+from .ed import DENSE_LIMIT
+from .errors import NoTheoremError
+from .graph import ChainStructure, chain_structure, frustration_adjacency
+from .jsonready import json_ready
 from .model import Model
 from .polynomial import exclusion_polynomial
 from .roots_complex import aberth_chain_roots, certified_complex_roots
-from .verdict import classify
+from .verdict import Guarantee, classify, guarantee
+
+__all__ = [
+    "LEVEL_LIMIT",
+    "DensityOfStates",
+    "FreeSpectrum",
+    "Level",
+    "LevelTable",
+    "SpectrumProvenance",
+    "free_spectrum",
+]
 
 LEVEL_LIMIT = 2**22
 """Largest number ``N^S`` of choices that :meth:`FreeSpectrum.levels` lists in full."""
@@ -111,6 +127,80 @@ class LevelTable(Sequence[Level]):
 
 
 @dataclass(frozen=True)
+class SpectrumProvenance:
+    """How a :class:`FreeSpectrum` was obtained, how accurate it is, and what backs it.
+
+    Attributes
+    ----------
+    method : str
+        ``"fast"`` or ``"certified"``.
+    path : str
+        The route taken (which polynomial, which root finder).
+    bounds : str
+        What the error bounds mean (rigorous enclosures or estimates).
+    guaranteed : bool
+        True when a theorem proves that the single polynomial gives the spectrum.
+    guarantee : str
+        The guarantee in words (``"proven: ..."`` or ``"NOT GUARANTEED: ..."``), from the
+        verdict (:class:`freeladder.verdict.Guarantee`).
+    theorem, reference : str
+        The theorem that applies and where it is published (empty when none applies).
+    reach : int or None
+        The reach p of an exclusion chain, else None.
+    count : int
+        Number of quasi-energies of the model (S), also when only the lowest were kept.
+    max_error_bound : float
+        The largest of the per-quasi-energy error bounds.
+    sum_rules : mapping or None
+        Relative residuals of ``sum eta^N = sum c^N`` and ``sum eta^{2N} = (sum c^N)^2 -
+        2 C_2`` (None when only the lowest quasi-energies were kept).
+    seconds : float
+        Wall-clock time of :func:`free_spectrum`.
+    finder : mapping
+        Details reported by the root finder (iterations, evaluations, convergence, ...).
+    """
+
+    method: str
+    path: str
+    bounds: str
+    guaranteed: bool
+    guarantee: str
+    theorem: str
+    reference: str
+    reach: int | None
+    count: int
+    max_error_bound: float
+    sum_rules: Mapping[str, float] | None
+    seconds: float
+    finder: Mapping[str, Any] = field(default_factory=dict)
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "finder", MappingProxyType(dict(self.finder)))
+        if self.sum_rules is not None:
+            object.__setattr__(self, "sum_rules", MappingProxyType(dict(self.sum_rules)))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields."""
+        return json_ready(
+            {
+                "method": self.method,
+                "path": self.path,
+                "bounds": self.bounds,
+                "guaranteed": self.guaranteed,
+                "guarantee": self.guarantee,
+                "theorem": self.theorem,
+                "reference": self.reference,
+                "reach": self.reach,
+                "count": self.count,
+                "max_error_bound": self.max_error_bound,
+                "sum_rules": dict(self.sum_rules) if self.sum_rules is not None else None,
+                "seconds": self.seconds,
+                "finder": dict(self.finder),
+            }
+        )
+
+
+@dataclass(frozen=True)
 class DensityOfStates:
     """Histogram of the many-body levels (real parts) over given energy bins.
 
@@ -161,17 +251,15 @@ class FreeSpectrum:
     dimension : int
         Hilbert-space dimension ``N^sites``.
     degeneracy : int or None
-        Multiplicity of every level when the model guarantees one, else None; the reason is
-        ``degeneracy_reason``.
+        Multiplicity ``N^(L - S)`` of every level when a theorem guarantees the spectrum (see
+        :func:`free_spectrum`, Notes), else None; the reason is ``degeneracy_reason``.
     complete : bool
         False when only the ``lowest`` quasi-energies were computed; then quantities that need
         all of them (ground energy, levels, thermodynamics) raise ``ValueError``.
-    provenance : mapping
-        How the result was obtained and how accurate it is: ``method``, ``path``,
-        ``iterations``, ``guaranteed`` (a theorem covers the model) and ``guarantee`` (which,
-        or why not), ``sum_rules`` (relative residuals of ``sum eta^N = sum c^N`` and
-        ``sum eta^{2N} = (sum c^N)^2 - 2 C_2``), ``max_error_bound``, ``bounds`` (what the
-        error bounds mean), ``seconds``.
+    provenance : SpectrumProvenance
+        How the result was obtained, how accurate it is, and whether a theorem guarantees it
+        (``provenance.guaranteed``).  A spectrum that is not guaranteed (returned only with
+        ``free_spectrum(..., unproven=True)``) says NOT GUARANTEED wherever it prints.
     """
 
     def __init__(
@@ -185,7 +273,7 @@ class FreeSpectrum:
         degeneracy: int | None,
         degeneracy_reason: str,
         complete: bool,
-        provenance: Mapping[str, Any],
+        provenance: SpectrumProvenance,
     ) -> None:
         for arr in (roots_y, quasi_energies, error_bounds):
             arr.setflags(write=False)
@@ -200,7 +288,7 @@ class FreeSpectrum:
             degeneracy=degeneracy,
             degeneracy_reason=degeneracy_reason,
             complete=bool(complete),
-            provenance=MappingProxyType(dict(provenance)),
+            provenance=provenance,
         )
 
     roots: np.ndarray
@@ -213,7 +301,12 @@ class FreeSpectrum:
     degeneracy: int | None
     degeneracy_reason: str
     complete: bool
-    provenance: Mapping[str, Any]
+    provenance: SpectrumProvenance
+
+    @property
+    def guaranteed(self) -> bool:
+        """True when a theorem proves that the single polynomial gives the spectrum."""
+        return self.provenance.guaranteed
 
     def __setattr__(self, name: str, value: Any) -> None:
         raise AttributeError("FreeSpectrum is immutable")
@@ -235,7 +328,7 @@ class FreeSpectrum:
     def _need_complete(self, what: str) -> None:
         if not self.complete:
             raise ValueError(
-                f"{what} needs all {self.provenance.get('count', '?')} quasi-energies; this "
+                f"{what} needs all {self.provenance.count} quasi-energies; this "
                 f"spectrum holds only the lowest {len(self)} (free_spectrum(..., lowest=None))"
             )
 
@@ -293,67 +386,32 @@ class FreeSpectrum:
         choices that coincide in energy (for example at special couplings) are not merged.
         """
         self._need_complete("levels()")
-        n_modes = len(self)
-        total = float(self.states) ** n_modes
         if k is None:
-            if total > LEVEL_LIMIT:
-                raise ValueError(
-                    f"all levels means {self.states}^{n_modes} = {total:.3g} choices, more than "
-                    f"the limit {LEVEL_LIMIT}; ask for levels(k) with a number k"
-                )
+            self._check_all_levels()
             return self._all_levels()
         k = int(k)
         if k < 1:
             raise ValueError(f"levels(k) needs k >= 1, got {k}")
-        k = int(min(k, total))
+        count = int(min(k, float(self.states) ** len(self)))
         vals, rank = self._mode_table()
         inc = vals.real - vals[:, :1].real  # increments, ascending per mode, inc[:, 0] = 0
-        order = np.argsort(inc[:, 1], kind="stable") if n_modes else np.zeros(0, dtype=int)
-        base = self.constant + vals[:, 0].sum()
-        out_e = [base]
-        out_occ: list[tuple[tuple[int, int], ...]] = [()]
-        heap: list[tuple[float, int, int, int, tuple[tuple[int, int], ...]]] = []
-        counter = 0
-        if n_modes and self.states > 1:
-            heap.append((float(inc[order[0], 1]), counter, 0, 1, ((0, 1),)))
-        inc_sorted = inc[order]
-        n = self.states
-        while len(out_e) < k and heap:
-            cost, _, i, r, changes = heapq.heappop(heap)
-            out_e.append(cost)
-            out_occ.append(changes)
-            succ = []
-            if r + 1 < n:
-                succ.append(
-                    (
-                        cost - inc_sorted[i, r] + inc_sorted[i, r + 1],
-                        i,
-                        r + 1,
-                        changes[:-1] + ((i, r + 1),),
-                    )
-                )
-            if i + 1 < n_modes:
-                succ.append((cost + inc_sorted[i + 1, 1], i + 1, 1, changes + ((i + 1, 1),)))
-                if r == 1:
-                    succ.append(
-                        (
-                            cost - inc_sorted[i, 1] + inc_sorted[i + 1, 1],
-                            i + 1,
-                            1,
-                            changes[:-1] + ((i + 1, 1),),
-                        )
-                    )
-            for c, ii, rr, ch in succ:
-                counter += 1
-                heapq.heappush(heap, (float(c), counter, ii, rr, ch))
-        occ = np.tile(rank[:, 0].astype(np.int8), (len(out_e), 1))
-        energies = np.empty(len(out_e), dtype=vals.dtype)
-        for row, changes in enumerate(out_occ):
-            for i, r in changes:
+        order, costs, changes = _lowest_choices(inc, count)
+        occ = np.tile(rank[:, 0].astype(np.int8), (len(costs), 1))
+        energies = np.empty(len(costs), dtype=vals.dtype)
+        for row, picked in enumerate(changes):
+            for i, r in picked:
                 occ[row, order[i]] = rank[order[i], r]
-            chosen = vals[np.arange(n_modes), _rank_index(rank, occ[row])]
-            energies[row] = self.constant + chosen.sum() if n_modes else base
+            chosen = vals[np.arange(len(self)), _rank_index(rank, occ[row])]
+            energies[row] = self.constant + chosen.sum()
         return LevelTable(_maybe_real(energies), occ, self.degeneracy)
+
+    def _check_all_levels(self) -> None:
+        total = float(self.states) ** len(self)
+        if total > LEVEL_LIMIT:
+            raise ValueError(
+                f"all levels means {self.states}^{len(self)} = {total:.3g} choices, more than "
+                f"the limit {LEVEL_LIMIT}; ask for levels(k) with a number k"
+            )
 
     def _all_levels(self) -> LevelTable:
         n, n_modes = self.states, len(self)
@@ -424,16 +482,24 @@ class FreeSpectrum:
         return DensityOfStates(edges, frac, counts, shift, f"grid convolution, spacing {h:.3g}")
 
     # -- display --------------------------------------------------------------------------------
+    def _warning(self) -> str:
+        """The loud mark of an unguaranteed spectrum ('' when a theorem guarantees it)."""
+        if self.provenance.guaranteed:
+            return ""
+        reason = self.provenance.guarantee.removeprefix("NOT GUARANTEED: ")
+        return f"NOT GUARANTEED (these numbers need not be the spectrum): {reason}"
+
     def __repr__(self) -> str:
         eta = ", ".join(_fmt(e) for e in self.quasi_energies[:6])
         more = ", ..." if len(self) > 6 else ""
+        mark = "" if self.guaranteed else "NOT GUARANTEED, "
         return (
-            f"FreeSpectrum(N={self.states}, {len(self)} quasi-energies [{eta}{more}], "
-            f"method={self.provenance.get('method')}, "
-            f"max error {self.provenance.get('max_error_bound', float('nan')):.2g})"
+            f"FreeSpectrum({mark}N={self.states}, {len(self)} quasi-energies [{eta}{more}], "
+            f"method={self.provenance.method}, "
+            f"max error {self.provenance.max_error_bound:.2g})"
         )
 
-    def _repr_html_(self) -> str:
+    def _summary_rows(self) -> list[tuple[str, str]]:
         prov = self.provenance
         rows = []
         if self.complete:
@@ -445,33 +511,112 @@ class FreeSpectrum:
                 str(self.degeneracy) if self.degeneracy else f"unknown ({self.degeneracy_reason})",
             )
         )
-        rows.append(("method", f"{prov.get('method')}: {prov.get('path')}"))
-        rows.append(("guarantee", str(prov.get("guarantee"))))
-        rows.append(
-            (
-                "largest error bound",
-                f"{prov.get('max_error_bound', float('nan')):.3g} ({prov.get('bounds')})",
-            )
-        )
-        rules = prov.get("sum_rules")
-        if rules:
+        rows.append(("method", f"{prov.method}: {prov.path}"))
+        rows.append(("guarantee", prov.guarantee if prov.guaranteed else "NOT GUARANTEED (above)"))
+        rows.append(("largest error bound", f"{prov.max_error_bound:.3g} ({prov.bounds})"))
+        if prov.sum_rules:
             rows.append(
                 (
                     "sum rules (relative residuals)",
-                    ", ".join(f"{k}: {v:.2g}" for k, v in rules.items()),
+                    ", ".join(f"{k}: {v:.2g}" for k, v in prov.sum_rules.items()),
                 )
             )
+        return rows
+
+    def __str__(self) -> str:
+        eta = ", ".join(_fmt(e) for e in self.quasi_energies[:12])
+        more = ", ..." if len(self) > 12 else ""
+        lines = []
+        if not self.guaranteed:
+            lines.append(self._warning())
+        lines.append(
+            f"Free spectrum: N = {self.states}, {len(self)} quasi-energies"
+            f"{'' if self.complete else ' (lowest only)'}: eta = {eta}{more}"
+        )
+        lines += [f"  {a}: {b}" for a, b in self._summary_rows()]
+        return "\n".join(lines)
+
+    def _repr_html_(self) -> str:
         table = "".join(
             f"<tr><th style='text-align:left'>{html.escape(a)}</th><td>{html.escape(b)}</td></tr>"
-            for a, b in rows
+            for a, b in self._summary_rows()
         )
         eta = ", ".join(html.escape(_fmt(e)) for e in self.quasi_energies[:12])
         more = ", ..." if len(self) > 12 else ""
+        warning = ""
+        if not self.guaranteed:
+            warning = (
+                f"<p style='color:#b00020;font-weight:bold'>{html.escape(self._warning())}</p>"
+            )
         return (
-            f"<div><b>Free spectrum</b>: N = {self.states}, {len(self)} quasi-energies"
+            f"<div>{warning}<b>Free spectrum</b>: N = {self.states}, {len(self)} quasi-energies"
             f"{'' if self.complete else ' (lowest only)'}<br>eta = {eta}{more}"
             f"<table>{table}</table></div>"
         )
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: quasi-energies, error bounds, roots, ground energy, gap (when
+        defined), degeneracy, guaranteed (with the NOT GUARANTEED warning when not), provenance.
+        """
+        gap = self.gap if len(self) else None
+        return json_ready(
+            {
+                "guaranteed": self.guaranteed,
+                "warning": self._warning() or None,
+                "states": self.states,
+                "sites": self.sites,
+                "quasi_energies": self.quasi_energies,
+                "error_bounds": self.error_bounds,
+                "roots": self.roots,
+                "constant": self.constant,
+                "complete": self.complete,
+                "ground_energy": self.ground_energy if self.complete else None,
+                "gap": gap,
+                "degeneracy": self.degeneracy,
+                "degeneracy_reason": self.degeneracy_reason,
+                "provenance": self.provenance,
+            }
+        )
+
+
+def _lowest_choices(
+    inc: np.ndarray, count: int
+) -> tuple[np.ndarray, list[float], list[tuple[tuple[int, int], ...]]]:
+    """The ``count`` cheapest choices by best-first search over per-mode increments.
+
+    ``inc[k, r]`` is the cost of putting mode k on its r-th best choice (``inc[:, 0] = 0``,
+    ascending along r).  Modes are sorted by their cheapest excitation (``order``); a choice
+    is the tuple of ``(sorted mode, rank)`` changes from the ground choice, and each popped
+    choice spawns at most three successors: raise the last changed mode to its next rank,
+    change the next mode too, or move a single-rank change on to the next mode.  Every choice
+    is reached exactly once, in increasing cost.  Returns ``order``, the costs and the changes.
+    """
+    n_modes, n = inc.shape
+    order = np.argsort(inc[:, 1], kind="stable") if n_modes and n > 1 else np.arange(n_modes)
+    inc_sorted = inc[order]
+    costs: list[float] = [0.0]
+    changes: list[tuple[tuple[int, int], ...]] = [()]
+    heap: list[tuple[float, int, int, int, tuple[tuple[int, int], ...]]] = []
+    counter = 0
+    if n_modes and n > 1:
+        heap.append((float(inc_sorted[0, 1]), counter, 0, 1, ((0, 1),)))
+    while len(costs) < count and heap:
+        cost, _, i, r, picked = heapq.heappop(heap)
+        costs.append(cost)
+        changes.append(picked)
+        succ = []
+        if r + 1 < n:
+            raised = cost - inc_sorted[i, r] + inc_sorted[i, r + 1]
+            succ.append((raised, i, r + 1, picked[:-1] + ((i, r + 1),)))
+        if i + 1 < n_modes:
+            succ.append((cost + inc_sorted[i + 1, 1], i + 1, 1, picked + ((i + 1, 1),)))
+            if r == 1:
+                moved = cost - inc_sorted[i, 1] + inc_sorted[i + 1, 1]
+                succ.append((moved, i + 1, 1, picked[:-1] + ((i + 1, 1),)))
+        for c, ii, rr, ch in succ:
+            counter += 1
+            heapq.heappush(heap, (float(c), counter, ii, rr, ch))
+    return order, costs, changes
 
 
 def _rank_index(rank: np.ndarray, occ: np.ndarray) -> np.ndarray:
@@ -498,7 +643,13 @@ def _fmt(v: Any) -> str:
 
 
 # -- computing the spectrum ----------------------------------------------------------------------
-def free_spectrum(m: Model, method: str = "auto", lowest: int | None = None) -> FreeSpectrum:
+def free_spectrum(
+    m: Model,
+    method: str = "auto",
+    lowest: int | None = None,
+    *,
+    unproven: bool = False,
+) -> FreeSpectrum:
     """Quasi-energies of ``H = constant + sum_j c_j g_j`` from the roots of its polynomial P.
 
     Parameters
@@ -516,6 +667,9 @@ def free_spectrum(m: Model, method: str = "auto", lowest: int | None = None) -> 
     lowest : int, optional
         Keep only the ``lowest`` smallest quasi-energies (``|eta|``).  The real chain path
         then computes only those; the others compute all roots and drop the rest.
+    unproven : bool, default False
+        Return the numbers even when no theorem guarantees that the single polynomial gives
+        the spectrum; the result then says NOT GUARANTEED wherever it prints.
 
     Returns
     -------
@@ -523,20 +677,34 @@ def free_spectrum(m: Model, method: str = "auto", lowest: int | None = None) -> 
 
     Raises
     ------
+    NoTheoremError
+        When no theorem guarantees that the single polynomial gives the spectrum (see
+        :class:`freeladder.verdict.Guarantee`) and ``unproven`` is False.  The message names
+        the reason, the witness terms and what to do instead.
     ValueError
         For symbolic couplings, an unknown method, ``method="fast"`` on a model that is not an
         exclusion chain, ``lowest < 1``, or a model with no terms.
 
     Notes
     -----
-    A free spectrum is guaranteed for exclusion chains (any N; Alcaraz-Pimenta 2020) and, for
-    N = 2, for claw-free and even-hole-free frustration graphs (Elman-Chapman-Flammia 2021).
-    For other models the quasi-energies are still computed, ``provenance["guaranteed"]`` is
-    False and ``provenance["guarantee"]`` says why: compare with exact diagonalization.
+    The guarantee is :func:`freeladder.verdict.guarantee` (the one on the verdict): exclusion
+    chains (any N; Alcaraz-Pimenta 2020), line graphs of forests (Chapman-Flammia 2020) and,
+    for N = 2, claw-free, even-hole-free frustration graphs (Elman-Chapman-Flammia 2021), in
+    each case with no product of terms equal to a multiple of the identity
+    (:func:`freeladder.relations.find_relations`).  Refused: unsolved and integrable verdicts,
+    line graphs with cycles, even holes or an undecided even-hole search, and relations among
+    the strings.
+
+    Guaranteed spectra carry the multiplicity ``N^(L - S)`` of every level (L sites, S
+    quasi-energies): with independent strings, every product of terms that is not a multiple
+    of the identity is traceless, so each symmetry sector appears equally often.  This was
+    checked against dense exact diagonalization on hundreds of random models
+    (``tests/test_guarantee.py``).
 
     References
     ----------
     F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622;
+    A. Chapman and S. T. Flammia, Quantum 4, 278 (2020);
     S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021).
 
     Examples
@@ -546,6 +714,56 @@ def free_spectrum(m: Model, method: str = "auto", lowest: int | None = None) -> 
     >>> [round(float(e), 12) for e in sp.quasi_energies]
     [1.0, 1.732050807569]
     """
+    couplings = _checked_request(m, method, lowest)
+    start_time = time.perf_counter()
+    n = m.states
+    chain = chain_structure(m)
+    if chain is None and method == "fast":
+        raise ValueError(
+            "method='fast' evaluates the exclusion-chain recurrence, and this model's terms do "
+            "not form an exclusion chain; use method='auto' or 'certified'"
+        )
+    promise = guarantee(m)
+    if not promise.proven and not unproven:
+        raise NoTheoremError(_refusal_message(m, promise))
+    y, y_err, x, x_err, prov = _find_roots(m, couplings, chain, method, lowest)
+    if y is not None:
+        assert y_err is not None
+        eta, eta_err, x_vals, y_vals = _from_real_roots(y, y_err, n)
+    else:
+        assert x is not None and x_err is not None
+        eta, eta_err, x_vals, y_vals = _from_reciprocal_roots(x, x_err, n)
+    sort = np.argsort(np.abs(eta), kind="stable")
+    eta, eta_err, x_vals, y_vals = eta[sort], eta_err[sort], x_vals[sort], y_vals[sort]
+    count = int(prov.pop("count", len(eta)))
+    if lowest is not None:
+        keep = int(lowest)
+        eta, eta_err, x_vals, y_vals = eta[:keep], eta_err[:keep], x_vals[:keep], y_vals[:keep]
+    complete = len(eta) == count
+    degeneracy, reason = _degeneracy(m, promise.proven, count)
+    provenance = SpectrumProvenance(
+        method=str(prov.pop("method")),
+        path=str(prov.pop("path")),
+        bounds=str(prov.pop("bounds")),
+        guaranteed=promise.proven,
+        guarantee=str(promise),
+        theorem=promise.theorem,
+        reference=promise.reference,
+        reach=None if chain is None else int(chain.reach),
+        count=count,
+        max_error_bound=float(np.max(eta_err)) if len(eta_err) else 0.0,
+        sum_rules=_sum_rules(m, couplings, x_vals, chain) if complete else None,
+        seconds=time.perf_counter() - start_time,
+        finder=prov,
+    )
+    constant = _scalar(m.constant) if m.constant != 0 else 0.0
+    return FreeSpectrum(
+        y_vals, eta, eta_err, constant, n, len(m.sites), degeneracy, reason, complete, provenance
+    )
+
+
+def _checked_request(m: Model, method: str, lowest: int | None) -> np.ndarray:
+    """Validate the arguments of :func:`free_spectrum`; the numeric couplings."""
     if method not in ("auto", "fast", "certified"):
         raise ValueError(f"method must be 'auto', 'fast' or 'certified', not {method!r}")
     if not isinstance(m, Model):
@@ -554,84 +772,74 @@ def free_spectrum(m: Model, method: str = "auto", lowest: int | None = None) -> 
         raise ValueError("the model has no terms, hence no quasi-energies")
     if lowest is not None and int(lowest) < 1:
         raise ValueError(f"lowest must be >= 1, got {lowest}")
-    couplings = m.coupling_array()  # raises for symbolic couplings
-    start_time = time.perf_counter()
+    return m.coupling_array()  # raises for symbolic couplings
+
+
+def _refusal_message(m: Model, promise: Guarantee) -> str:
+    """Why free_spectrum refuses, and what to do instead."""
+    text = "no theorem guarantees that the single exclusion polynomial gives this spectrum. "
+    text += promise.reason
+    if promise.witness_text:
+        text += f" Witness terms: {promise.witness_text}."
+    text += " Instead: "
+    if m.states == 2 and classify(m).kind == "jordan-wigner":
+        text += (
+            "the terms are Majorana bilinears, so fl.jordan_wigner_spectrum(m) solves the model "
+            "exactly, sector by sector of its conserved cycle and parity strings; "
+        )
+    text += "fl.verify(m) probes the model numerically"
+    if m.dimension <= DENSE_LIMIT:
+        text += f"; fl.exact_spectrum(m) gives the exact levels (dimension {m.dimension})"
+    text += "; free_spectrum(m, unproven=True) returns the numbers, marked NOT GUARANTEED."
+    return text
+
+
+def _find_roots(
+    m: Model,
+    couplings: np.ndarray,
+    chain: ChainStructure | None,
+    method: str,
+    lowest: int | None,
+) -> tuple[
+    np.ndarray | None, np.ndarray | None, np.ndarray | None, np.ndarray | None, dict[str, Any]
+]:
+    """Roots ``y`` (real chains) or reciprocal roots ``x = 1/y`` with their error radii."""
     n = m.states
-    chain = chain_structure(m)
-    prov: dict[str, Any] = {}
-    if chain is None and method == "fast":
-        raise ValueError(
-            "method='fast' evaluates the exclusion-chain recurrence, and this model's terms do "
-            "not form an exclusion chain; use method='auto' or 'certified'"
-        )
-    if chain is not None:
-        w = couplings[chain.order] ** n
-        reach = chain.reach
-        guaranteed, guarantee = (
-            True,
-            (f"exclusion chain of reach {reach} (Alcaraz-Pimenta 2020): free spectrum for any N"),
-        )
-        real_path = n == 2 and np.isrealobj(couplings) and bool(np.all(w > 0))
-        if real_path:
-            y, y_err, prov = _real_chain(np.asarray(w, dtype=float), reach, method, lowest)
-            x_err = None
-        else:
-            x, x_err, prov = _complex_chain(np.asarray(w, dtype=complex), reach, n, method, m)
-            y, y_err = None, None
-    else:
-        reach = None
-        guaranteed, guarantee = _general_guarantee(m)
+    if chain is None:
         x, x_err, prov = _general(m)
-        y, y_err = None, None
-    # -- quasi-energies ------------------------------------------------------------------------
-    if y is not None:
-        assert y_err is not None
-        eta = y ** (-1.0 / n)
-        eta_err = eta * np.expm1(-np.log1p(-np.minimum(y_err / y, 0.5)) / n)
-        eta_err = np.where(y_err < 0.5 * y, eta_err, np.inf)
-        x_vals = 1.0 / y
-        y_vals = y.astype(complex)
-    else:
-        assert x_err is not None
-        eta = _principal_root(x, n)
-        ax = np.abs(x)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            eta_err = np.where(
-                x_err < ax,
-                -(ax ** (1.0 / n)) * np.expm1(np.log1p(-np.minimum(x_err / ax, 1.0)) / n),
-                np.abs(eta) + (ax + x_err) ** (1.0 / n),
-            )
-            y_vals = 1.0 / x
-        x_vals = x
-    sort = np.argsort(np.abs(eta), kind="stable")
-    eta, eta_err, x_vals, y_vals = eta[sort], eta_err[sort], x_vals[sort], y_vals[sort]
-    count = prov.pop("count", len(eta))
-    if lowest is not None:
-        keep = int(lowest)
-        eta, eta_err, x_vals, y_vals = eta[:keep], eta_err[:keep], x_vals[:keep], y_vals[:keep]
-    complete = len(eta) == count
-    if complete:
-        prov["sum_rules"] = _sum_rules(m, couplings, x_vals, chain)
-    prov["count"] = count
-    prov["guaranteed"] = guaranteed
-    prov["guarantee"] = guarantee
-    prov["reach"] = reach
-    prov["max_error_bound"] = float(np.max(eta_err)) if len(eta_err) else 0.0
-    prov["seconds"] = time.perf_counter() - start_time
-    degeneracy, reason = _degeneracy(m, chain, count)
-    constant = _scalar(m.constant) if m.constant != 0 else 0.0
-    return FreeSpectrum(
-        y_vals,
-        eta,
-        eta_err,
-        constant,
-        n,
-        len(m.sites),
-        degeneracy,
-        reason,
-        complete,
-        prov,
-    )
+        return None, None, x, x_err, prov
+    w = couplings[chain.order] ** n
+    if n == 2 and np.isrealobj(couplings) and bool(np.all(w > 0)):
+        y, y_err, prov = _real_chain(np.asarray(w, dtype=float), chain.reach, method, lowest)
+        return y, y_err, None, None, prov
+    x, x_err, prov = _complex_chain(np.asarray(w, dtype=complex), chain.reach, n, method, m)
+    return None, None, x, x_err, prov
+
+
+def _from_real_roots(
+    y: np.ndarray, y_err: np.ndarray, n: int
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Quasi-energies ``y^(-1/n)`` and their error bounds; also ``x = 1/y`` and complex ``y``."""
+    eta = y ** (-1.0 / n)
+    eta_err = eta * np.expm1(-np.log1p(-np.minimum(y_err / y, 0.5)) / n)
+    eta_err = np.where(y_err < 0.5 * y, eta_err, np.inf)
+    return eta, eta_err, 1.0 / y, y.astype(complex)
+
+
+def _from_reciprocal_roots(
+    x: np.ndarray, x_err: np.ndarray, n: int
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Quasi-energies ``x^(1/n)`` (principal root) and their error bounds; also ``x``, ``y``."""
+    eta = _principal_root(x, n)
+    ax = np.abs(x)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        eta_err = np.where(
+            x_err < ax,
+            -(ax ** (1.0 / n)) * np.expm1(np.log1p(-np.minimum(x_err / ax, 1.0)) / n),
+            np.abs(eta) + (ax + x_err) ** (1.0 / n),
+        )
+        y_vals = 1.0 / x
+    return eta, eta_err, x, y_vals
 
 
 def _principal_root(x: np.ndarray, n: int) -> np.ndarray:
@@ -727,40 +935,16 @@ def _general(m: Model) -> tuple[np.ndarray, np.ndarray, dict[str, Any]]:
     return x, x_rad, prov
 
 
-def _general_guarantee(m: Model) -> tuple[bool, str]:
-    """Whether the single polynomial P is proven to give the spectrum, per component.
-
-    Proven: line graphs of forests (Chapman-Flammia 2020, no cycle symmetries) and claw-free,
-    even-hole-free graphs (Elman-Chapman-Flammia 2021).  With cycles or even holes the model
-    is free only sector by sector (Chapman-Elman-Mann 2023), which one P does not capture.
-    """
-    verdict = classify(m)
-    blockers = []
-    for comp in verdict.components:
-        if comp.kind == "jordan-wigner" and not comp.cycles:
-            continue
-        if comp.kind == "hidden-free" and comp.even_hole_free:
-            continue
-        if comp.kind in ("jordan-wigner", "hidden-free") and comp.chain is not None:
-            continue
-        what = comp.reasons[0] if comp.reasons else comp.kind
-        blockers.append(f"terms {list(comp.terms)[:6]}: {what}")
-    if not blockers:
-        return True, f"{verdict.kind}: " + (verdict.reasons[0] if verdict.reasons else "")
-    return False, (
-        "the free spectrum from one polynomial is not guaranteed (compare with exact "
-        "diagonalization): " + "; ".join(blockers[:3])
-    )
-
-
-def _degeneracy(m: Model, chain: Any, count: int) -> tuple[int | None, str]:
-    if chain is None:
-        return None, "not an exclusion chain: degeneracies need not be uniform across levels"
+def _degeneracy(m: Model, proven: bool, count: int) -> tuple[int | None, str]:
+    """Multiplicity ``N^(L - S)`` of every level of a guaranteed spectrum (see free_spectrum)."""
+    if not proven:
+        return None, "no theorem covers the model: degeneracies need not be uniform"
     spare = len(m.sites) - count
     if spare < 0:
         return None, f"{count} quasi-energies but only {len(m.sites)} sites"
     return m.states**spare, (
-        f"exclusion chain: every level has multiplicity dim / N^S = {m.states}^{spare}"
+        f"independent strings under a free-spectrum theorem: every level has multiplicity "
+        f"dim / N^S = {m.states}^{spare}"
     )
 
 

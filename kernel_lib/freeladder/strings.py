@@ -34,8 +34,101 @@ from typing import Any
 import numpy as np
 import scipy.sparse as sps
 
+__all__ = [
+    "MAX_STATES",
+    "SiteLabel",
+    "StringArray",
+    "WeylString",
+    "canonical_site_phase",
+    "check_site",
+    "check_sites",
+    "check_states",
+    "make_string",
+    "pauli",
+    "unit_phase",
+]
+
+MAX_STATES = 64
+"""Largest number of states per site N accepted (the exact phase algebra has ``phi(2N)``
+coordinates per coefficient)."""
+
 SiteLabel = Hashable
 """A site label: an int, or a tuple of ints for lattices.  Labels of one model must sort."""
+
+
+def check_states(states: Any, where: str = "states") -> int:
+    """N as an int, checked: an integer with ``2 <= N <= MAX_STATES``.
+
+    Raises
+    ------
+    TypeError
+        For a value that is not an integer (text, floats, booleans ...).
+    ValueError
+        For N < 2 or N > :data:`MAX_STATES`.
+    """
+    if isinstance(states, (bool, np.bool_)) or not isinstance(states, (int, np.integer)):
+        raise TypeError(
+            f"{where}: the number of states per site must be an integer >= 2, got {states!r:.60}"
+        )
+    n = int(states)
+    if not 2 <= n <= MAX_STATES:
+        raise ValueError(
+            f"{where}: the number of states per site must be an integer >= 2 "
+            f"(at most {MAX_STATES}), got {n}"
+        )
+    return n
+
+
+def check_site(label: Any, where: str = "site") -> int | tuple[int, ...]:
+    """A site label, checked: an int or a non-empty tuple of ints (numpy ints become ints).
+
+    Raises
+    ------
+    TypeError
+        For any other label (text, floats, booleans, lists ...).
+    """
+    if isinstance(label, (int, np.integer)) and not isinstance(label, (bool, np.bool_)):
+        return int(label)
+    if isinstance(label, tuple) and label:
+        parts = []
+        for v in label:
+            if isinstance(v, (bool, np.bool_)) or not isinstance(v, (int, np.integer)):
+                break
+            parts.append(int(v))
+        else:
+            return tuple(parts)
+    raise TypeError(
+        f"{where}: site label {label!r:.60} is not an integer or a tuple of integers "
+        "(as in 3 or (0, 1))"
+    )
+
+
+def check_sites(labels: Any, where: str = "sites") -> tuple[Any, ...]:
+    """A site list, checked: labels as :func:`check_site`, all of one kind, no repeats.
+
+    Raises
+    ------
+    TypeError
+        For a bad label or a list that is not a sequence.
+    ValueError
+        For repeated labels or labels that mix integers and tuples.
+    """
+    if isinstance(labels, (str, bytes)) or not isinstance(labels, Iterable):
+        raise TypeError(f"{where}: expected a sequence of site labels, got {labels!r:.60}")
+    out = tuple(check_site(v, f"{where}[{j}]") for j, v in enumerate(labels))
+    if len({isinstance(v, tuple) for v in out}) > 1:
+        raise ValueError(f"{where}: site labels mix integers and tuples; label all sites one way")
+    if len(set(out)) != len(out):
+        seen: set[Any] = set()
+        twice = next(v for v in out if v in seen or seen.add(v))  # type: ignore[func-returns-value]
+        raise ValueError(f"{where}: the site list has the label {twice!r} more than once")
+    return out
+
+
+def _check_exponent(value: Any, where: str) -> int:
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)):
+        raise TypeError(f"{where}: exponent {value!r:.60} is not an integer")
+    return int(value)
 
 
 def unit_phase(exponent: int, states: int) -> complex:
@@ -247,15 +340,27 @@ def make_string(states: int, factors: Iterable[tuple[Any, int, int]], phase: int
 
     Raises
     ------
+    TypeError
+        For a site label, exponent or phase of the wrong type, or factors that are not triples.
     ValueError
-        If ``states < 2``.
+        For N outside ``2 .. MAX_STATES`` or site labels that mix integers and tuples.
     """
-    if int(states) != states or states < 2:
-        raise ValueError(f"the number of states per site must be an integer >= 2, got {states!r}")
-    states = int(states)
-    result = WeylString(states, (), phase % (2 * states))
-    for s, a, b in factors:
-        result = result * WeylString(states, ((s, int(a) % states, int(b) % states),))
+    states = check_states(states)
+    result = WeylString(states, (), _check_exponent(phase, "phase") % (2 * states))
+    if isinstance(factors, (str, bytes)) or not isinstance(factors, Iterable):
+        raise TypeError(f"factors must be (site, a, b) triples, got {factors!r:.60}")
+    kinds: set[bool] = set()
+    for j, factor in enumerate(factors):
+        if not isinstance(factor, (tuple, list)) or len(factor) != 3:
+            raise TypeError(f"factor {j}: expected a (site, a, b) triple, got {factor!r:.60}")
+        s, a, b = factor
+        s = check_site(s, f"factor {j}")
+        kinds.add(isinstance(s, tuple))
+        if len(kinds) > 1:
+            raise ValueError(f"factor {j}: site labels mix integers and tuples")
+        a = _check_exponent(a, f"factor {j}") % states
+        b = _check_exponent(b, f"factor {j}") % states
+        result = result * WeylString(states, ((s, a, b),))
     return _from_dict(states, result.exponents(), result.phase)
 
 
@@ -263,9 +368,20 @@ def pauli(letters: str | Sequence[str], sites: Sequence[Any] | None = None) -> W
     """A Pauli string from letters, e.g. ``pauli("XZZ")`` = X0 Z1 Z2 or ``pauli("XY", [3, 7])``.
 
     ``I`` letters are skipped.  The result is Hermitian and squares to one.
+
+    Raises
+    ------
+    TypeError
+        For letters that are not text or a sequence of one-letter strings, or bad site labels.
+    ValueError
+        For an unknown letter, or as many sites as letters not given.
     """
+    if not isinstance(letters, (str, Sequence)) or isinstance(letters, bytes):
+        raise TypeError(f"pauli needs letters such as 'XZZ', got {type(letters).__name__}")
     letters = list(letters)
-    sites = list(range(len(letters))) if sites is None else list(sites)
+    if not all(isinstance(ch, str) for ch in letters):
+        raise TypeError("pauli needs letters such as 'XZZ' or ['X', 'Z', 'Z']")
+    sites = list(range(len(letters))) if sites is None else list(check_sites(sites))
     if len(sites) != len(letters):
         raise ValueError(f"{len(letters)} letters but {len(sites)} sites")
     table = {"I": (0, 0), "X": (1, 0), "Z": (0, 1), "Y": (1, 1)}
@@ -295,7 +411,22 @@ class StringArray:
     states : int
         N >= 2.
     sites : sequence of site labels, length L
+
+    Notes
+    -----
+    Instances are frozen: attributes cannot be set, and the exponent and phase arrays are
+    read-only (``flags.writeable`` is False; for the sparse matrices on ``data``, ``indices``
+    and ``indptr``).
     """
+
+    # __weakref__: values derived from the strings alone are kept in a weak-key store
+    # (freeladder.cache) for as long as the array lives
+    __slots__ = ("states", "sites", "x", "z", "phase", "__weakref__")
+    states: int
+    sites: tuple[Any, ...]
+    x: sps.csr_array
+    z: sps.csr_array
+    phase: np.ndarray
 
     def __init__(
         self,
@@ -305,16 +436,26 @@ class StringArray:
         states: int,
         sites: Sequence[Any],
     ) -> None:
-        self.states = int(states)
-        self.sites = tuple(sites)
-        n = self.states
-        self.x = _clean(x, n)
-        self.z = _clean(z, n)
-        self.phase = np.asarray(phase, dtype=np.int64) % (2 * n)
-        if self.x.shape != self.z.shape or self.x.shape[0] != self.phase.shape[0]:
+        n = check_states(states)
+        sites = check_sites(sites)
+        xc, zc = _clean(x, n), _clean(z, n)
+        ph = np.array(phase, dtype=np.int64).reshape(-1) % (2 * n)
+        if xc.shape != zc.shape or xc.shape[0] != ph.shape[0]:
             raise ValueError("x, z and phase must describe the same number of strings")
-        if self.x.shape[1] != len(self.sites):
-            raise ValueError(f"{self.x.shape[1]} exponent columns but {len(self.sites)} sites")
+        if xc.shape[1] != len(sites):
+            raise ValueError(f"{xc.shape[1]} exponent columns but {len(sites)} sites")
+        xc, zc = _freeze(xc), _freeze(zc)
+        ph.flags.writeable = False
+        for name, value in (("states", n), ("sites", sites), ("x", xc), ("z", zc), ("phase", ph)):
+            object.__setattr__(self, name, value)
+
+    def __setattr__(self, name: str, value: Any) -> None:
+        raise AttributeError(
+            f"StringArray is immutable (cannot set {name!r}); build a new one instead"
+        )
+
+    def __delattr__(self, name: str) -> None:
+        raise AttributeError(f"StringArray is immutable (cannot delete {name!r})")
 
     # -- construction ------------------------------------------------------------------------
     @classmethod
@@ -329,8 +470,15 @@ class StringArray:
             if not strings:
                 raise ValueError("states must be given for an empty list of strings")
             states = strings[0].states
+        states = check_states(states)
         if sites is None:
-            sites = sorted({s for g in strings for s in g.support})
+            try:
+                sites = sorted({s for g in strings for s in g.support})
+            except TypeError:
+                raise ValueError(
+                    "site labels mix integers and tuples; label all sites one way"
+                ) from None
+        sites = check_sites(sites)
         col = {s: j for j, s in enumerate(sites)}
         rows, cols, xs, zs, phases = [], [], [], [], []
         for r, g in enumerate(strings):
@@ -453,6 +601,38 @@ class StringArray:
         Returns a real matrix when every entry is real.
         """
         return _sum_to_sparse(self, np.asarray(coefficients, dtype=complex), sites)
+
+
+class _FrozenCSR(sps.csr_array):
+    """A CSR array that, once locked, refuses item assignment and new ``data``, ``indices``,
+    ``indptr`` or shape; its buffers are read-only.  Arrays scipy derives from it are new,
+    unlocked objects."""
+
+    _locked = False
+
+    def __setattr__(self, name: str, value: Any) -> None:
+        if self._locked and name in _LOCKED_FIELDS:
+            raise AttributeError(
+                f"the exponents of a StringArray are read-only (cannot set {name!r})"
+            )
+        super().__setattr__(name, value)
+
+    def __setitem__(self, key: Any, value: Any) -> None:
+        if self._locked:
+            raise TypeError("the exponents of a StringArray are read-only")
+        super().__setitem__(key, value)
+
+
+_LOCKED_FIELDS = frozenset({"data", "indices", "indptr", "shape", "_shape", "_locked"})
+
+
+def _freeze(mat: sps.csr_array) -> _FrozenCSR:
+    out = _FrozenCSR((mat.data, mat.indices, mat.indptr), shape=mat.shape, copy=False)
+    out.has_sorted_indices = True
+    for arr in (out.data, out.indices, out.indptr):
+        arr.flags.writeable = False
+    out._locked = True
+    return out
 
 
 def _clean(mat: Any, n: int) -> sps.csr_array:

@@ -54,6 +54,7 @@ from .cyclotomic import CyclotomicField, Element
 from .graph import chain_structure, commutation_exponents, frustration_adjacency
 from .model import Model
 from .polynomial import exclusion_polynomial
+from .scalars import to_fmpq
 from .strings import WeylString, make_string, unit_phase
 
 MAX_COORDINATES = 600
@@ -267,7 +268,7 @@ class _Plan:
         for (letter, mono), entries in blocks.items():
             mat = fmpq_mat(rows, cols)
             for (r, c), val in entries.items():
-                mat[r, c] = _fmpq(val)
+                mat[r, c] = to_fmpq(val)
             out_mats.setdefault(letter, {})[mono] = mat
         return out_mats
 
@@ -277,7 +278,7 @@ class _Plan:
             entries.extend(self.field.rational(prod.sign))
         if scalar_value is not None:
             entries.extend(scalar_value)
-        return fmpq_mat(1, len(entries), [_fmpq(x) for x in entries])
+        return fmpq_mat(1, len(entries), [to_fmpq(x) for x in entries])
 
     def readout(self) -> fmpq_mat:
         """Sum of the blocks' final values, coordinate by coordinate."""
@@ -286,10 +287,6 @@ class _Plan:
         return fmpq_mat(
             blocks * d, d, [int(r % d == c) for r in range(blocks * d) for c in range(d)]
         )
-
-
-def _fmpq(x: Any) -> fmpq:
-    return fmpq(x.numerator, x.denominator) if hasattr(x, "denominator") else fmpq(int(x))
 
 
 def _last_neighbour(ex: sps.csr_array, pos: np.ndarray) -> np.ndarray:

@@ -6,7 +6,7 @@ optional)::
 
     model     := [sign] term {sign term}
     sign      := "+" | "-"
-    term      := coefficient {["*"] factor}  |  factor {["*"] factor}
+    term      := coefficient factor {factor}  |  factor {factor}  |  coefficient
     factor    := OPERATOR ["^" integer]             X3, Z4^2, Y0, X(0,1)
     coefficient := power {("*" | "/") power}       2*g, 3/4, g*w^2
     power     := atom ["^" exponent]
@@ -32,6 +32,17 @@ How the tokens are told apart:
   ``0.5j``); ``(1+2j)`` is an ordinary parenthesised sum.  Integers and fractions stay exact
   (``3/4`` is ``Fraction(3, 4)``); ``2j`` is exactly ``2 i``.
 * Juxtaposed coefficients are not multiplied (``2 g X0`` is an error: write ``2*g X0``).
+* ``*`` multiplies coefficients only.  The operators of a term stand side by side, separated by
+  white space, and the coefficient is separated from them by white space too: ``0.5 X0 Z1``.
+  ``0.5*X0*Z1``, ``0.5 X0*Z1`` and ``0.5*X0`` are errors whose message shows that form.  (A
+  ``*`` before or between operators would let text printed by other programs' operator classes
+  pass unread; our syntax does not take that form.)
+* Only ASCII characters are read: digits are ``0-9`` (``X٣`` and ``X²`` are errors; powers are
+  written ``X0^2``).
+* Limits, each reported with the line and column: parentheses and signs nest at most 64 deep
+  in one coefficient, number literals have at most 1000 digits, exponents are at most 1000 in
+  absolute value, an exact number produced by a power has at most 2^16 bits, and a coefficient
+  may not expand to more than 1000 terms.
 * ``w`` is the phase ``exp(i pi / N)`` (``w^2 = omega``).  As a factor of the whole coefficient
   (``g*w^3 X0 Z0``) it is kept as an exact phase of the operator string; inside parentheses it is
   the exact sympy number ``exp(i pi / N)``.  Printing uses it for strings whose normalisation
@@ -45,16 +56,17 @@ that runs to the end of the line; newlines are ordinary white space.
 from __future__ import annotations
 
 import cmath
+import unicodedata
 from collections.abc import Sequence
 from dataclasses import dataclass
-from fractions import Fraction
 from typing import Any
 
 import sympy
 
 from .model import Model
 from .printing import NOT_FINITE_NAMES
-from .strings import WeylString, make_string
+from .scalars import MAX_EXPANDED_TERMS, expanded_terms_bound, to_python_number
+from .strings import WeylString, check_sites, check_states, make_string
 
 __all__ = ["ModelSyntaxError", "parse_model"]
 
@@ -65,6 +77,25 @@ _RESERVED = {
     "pi": "write the number itself",
 }
 _MAX_EXPONENT = 1000
+_SHOWN_WIDTH = 120
+"""Longest part of a line an error message shows (a window around the column)."""
+_MAX_DEPTH = 64
+"""Deepest nesting of parentheses and signs inside one coefficient."""
+_MAX_DIGITS = 1000
+"""Longest number literal, in characters."""
+_MAX_BITS = 1 << 16
+"""Largest exact number a power may produce, in bits (about 19 700 decimal digits)."""
+_MAX_TERMS = MAX_EXPANDED_TERMS
+_DIGITS = frozenset("0123456789")
+_ACCEPTED_FORM = "0.5 X0 Z1"
+
+
+def _is_digit(ch: str) -> bool:
+    return ch in _DIGITS
+
+
+def _all_digits(text: str) -> bool:
+    return bool(text) and all(ch in _DIGITS for ch in text)
 
 
 class ModelSyntaxError(ValueError):
@@ -88,7 +119,13 @@ class ModelSyntaxError(ValueError):
         end = len(text) if end < 0 else end
         column = offset - start + 1
         source = text[start:end]
-        caret = "".join("\t" if ch == "\t" else " " for ch in source[: column - 1]) + "^"
+        before = column - 1
+        if len(source) > _SHOWN_WIDTH:  # show a window of a long line around the column
+            lo = max(0, before - _SHOWN_WIDTH // 2)
+            hi = lo + _SHOWN_WIDTH
+            head, tail = ("..." if lo else ""), ("..." if hi < len(source) else "")
+            source, before = head + source[lo:hi] + tail, before - lo + len(head)
+        caret = "".join("\t" if ch == "\t" else " " for ch in source[:before]) + "^"
         self.text = text
         self.line = line
         self.column = column
@@ -126,9 +163,9 @@ class _Tokenizer:
                 return out
             ch = text[self.pos]
             nxt = text[self.pos + 1] if self.pos + 1 < len(text) else ""
-            if ch.isascii() and ch.isupper() and (nxt.isdigit() or nxt == "("):
+            if ch.isascii() and ch.isupper() and (_is_digit(nxt) or nxt == "("):
                 out.append(self._operator())
-            elif ch.isdigit() or (ch == "." and nxt.isdigit()):
+            elif _is_digit(ch) or (ch == "." and _is_digit(nxt)):
                 out.append(self._number())
             elif ch.isascii() and (ch.isalpha() or ch == "_"):
                 out.append(self._name())
@@ -145,8 +182,18 @@ class _Tokenizer:
                 raise self.error(
                     "unexpected ',' (commas only separate the parts of a site label)", self.pos
                 )
+            elif not ch.isascii():
+                raise self._non_ascii(self.pos)
             else:
                 raise self.error(f"unexpected character {ch!r}", self.pos)
+
+    def _non_ascii(self, at: int) -> ModelSyntaxError:
+        ch = self.text[at]
+        name = unicodedata.name(ch, f"U+{ord(ch):04X}")
+        hint = "the text syntax reads ASCII characters only"
+        if ch.isdigit() or ch.isnumeric():
+            hint = "digits must be ASCII 0-9 (powers are written with '^', as in X0^2 or g^2)"
+        return self.error(f"unexpected character {ch!r} ({name}): {hint}", at)
 
     def _skip_space(self) -> None:
         text = self.text
@@ -162,12 +209,16 @@ class _Tokenizer:
 
     def _digits(self) -> str:
         start = self.pos
-        while self.pos < len(self.text) and self.text[self.pos].isdigit():
+        while self.pos < len(self.text) and _is_digit(self.text[self.pos]):
             self.pos += 1
+        if self.pos - start > _MAX_DIGITS:
+            raise self.error(f"number with more than {_MAX_DIGITS} digits", start)
         return self.text[start : self.pos]
 
     def _no_run_on(self, what: str, start: int) -> None:
         """Raise when a token is glued to a following letter, digit or dot."""
+        if self.pos < len(self.text) and not self.text[self.pos].isascii():
+            raise self._non_ascii(self.pos)
         if self.pos < len(self.text) and (
             _is_name_char(self.text[self.pos]) or self.text[self.pos] == "."
         ):
@@ -269,13 +320,15 @@ class _Tokenizer:
         ):
             self.pos += 1
         name = self.text[start : self.pos]
+        if self.pos < len(self.text) and not self.text[self.pos].isascii():
+            raise self._non_ascii(self.pos)
         if name in ("X", "Y", "Z"):
             raise self.error(
                 f"missing site after operator {name}: write the site label right after the letter, "
                 f"as in {name}3 or {name}(0,1)",
                 start,
             )
-        if name[0] in "xyz" and name[1:].isdigit():
+        if name[0] in "xyz" and _all_digits(name[1:]):
             raise self.error(
                 f"{name!r} looks like a lower-case operator: operators are upper case "
                 f"({name[0].upper()}{name[1:]}); name a coupling differently, "
@@ -303,6 +356,7 @@ class _Parser:
         self.site_kinds: dict[bool, int] = {}
         self.tokens = _Tokenizer(text).tokens()
         self.i = 0
+        self.depth = 0
         self.w = sympy.exp(sympy.I * sympy.pi / states)
 
     # -- helpers ---------------------------------------------------------------------------------
@@ -348,13 +402,15 @@ class _Parser:
             if t.kind in ("number", "name", "("):
                 raise self.error(
                     f"unexpected {self._describe(t)} after the operators of a term: a coefficient "
-                    "goes before the operators, and terms are joined with '+' or '-'",
+                    "goes before the operators, and terms are joined with '+' or '-'"
+                    + _underscore_note([t]),
                     t.offset,
                 )
             raise self.error(f"unexpected {self._describe(t)} after a term", t.offset)
 
     def _term(self, sign: int, sign_tok: _Token | None) -> tuple[Any, WeylString]:
         start = self.tok
+        start_i = self.i
         coef = _Coefficient(sympy.Integer(1), 0)
         has_coef = False
         if self._starts_atom(start):
@@ -364,16 +420,12 @@ class _Parser:
         extra_phase = 0
         while True:
             t = self.tok
-            if t.kind == "*" and (has_coef or factors):
-                star = self.advance()
-                if self.tok.kind != "operator":
-                    if self.tok.kind == "end":
-                        raise self.error("dangling '*': expected an operator after it", star.offset)
-                    raise self.error(
-                        f"expected an operator after '*', found {self._describe(self.tok)}",
-                        self.tok.offset,
-                    )
-                continue
+            if t.kind == "*" and factors:
+                raise self.error(
+                    "'*' after an operator: the operators of a term are written side by side, "
+                    f"separated by spaces, as in {_ACCEPTED_FORM}",
+                    t.offset,
+                )
             if t.kind != "operator":
                 break
             site, a, b, y = self._factor()
@@ -399,7 +451,8 @@ class _Parser:
             t = self.tok
             raise self.error(
                 f"expected '*' or an operator before {self._describe(t)} "
-                "(coefficients are multiplied with '*')",
+                "(coefficients are multiplied with '*')"
+                + _underscore_note(self.tokens[start_i : self.i + 1]),
                 t.offset,
             )
         value = self._finish_value(sign * coef.value, start.offset)
@@ -437,7 +490,7 @@ class _Parser:
             self.advance()
             sign = -1
         t = self.tok
-        if t.kind != "number" or not t.text.isdigit():
+        if t.kind != "number" or not _all_digits(t.text):
             raise self.error(
                 f"expected an integer for {what} after '^', found {self._describe(t)}",
                 t.offset if t.kind != "end" else caret.offset,
@@ -468,12 +521,17 @@ class _Parser:
                 factor = self._power()
                 if op == "*":
                     value = value * factor
+                    self._check_size(value, t.offset)
                 else:
                     value = self._divide(value, factor, op_tok)
             if self.tok.kind in ("*", "/"):
                 nxt = self.tokens[self.i + 1]
                 if self.tok.kind == "*" and nxt.kind == "operator":
-                    return _Coefficient(value, phase)
+                    raise self.error(
+                        f"'*' before the operator {nxt.text}: a coefficient and the operators of "
+                        f"a term are separated by a space, not '*', as in {_ACCEPTED_FORM}",
+                        self.tok.offset,
+                    )
                 op_tok = self.advance()
                 op = op_tok.kind
                 if not self._starts_atom(self.tok):
@@ -503,7 +561,9 @@ class _Parser:
         expo = self._exponent(caret)
         if base == 0 and expo < 0:
             raise self.error("division by zero: zero to a negative power", caret.offset)
+        self._check_power(base, expo, caret.offset)
         result = base**expo
+        self._check_size(result, caret.offset)
         if self.tok.kind == "^":
             raise self.error("repeated '^': use parentheses, as in (a^2)^3", self.tok.offset)
         return result
@@ -543,7 +603,9 @@ class _Parser:
             return sympy.Symbol(t.text)
         if t.kind == "(":
             self.advance()
+            self._nest(t.offset)
             value = self._sum()
+            self.depth -= 1
             if self.tok.kind != ")":
                 if self.tok.kind in ("end", "operator"):
                     raise self.error("unbalanced parentheses: this '(' is never closed", t.offset)
@@ -578,18 +640,49 @@ class _Parser:
             op = self.advance()
             rhs = self._unary()
             value = value * rhs if op.kind == "*" else self._divide(value, rhs, op)
+            self._check_size(value, op.offset)
         return value
 
     def _unary(self) -> Any:
         if self.tok.kind in ("+", "-"):
             op = self.advance()
+            self._nest(op.offset)
             value = self._unary()
+            self.depth -= 1
             return -value if op.kind == "-" else value
         return self._power()
 
+    def _nest(self, offset: int) -> None:
+        self.depth += 1
+        if self.depth > _MAX_DEPTH:
+            raise self.error(
+                f"parentheses and signs nested more than {_MAX_DEPTH} deep in one coefficient",
+                offset,
+            )
+
+    def _check_power(self, base: Any, expo: Any, offset: int) -> None:
+        """Refuse a power of an exact number whose result would exceed ``_MAX_BITS`` bits."""
+        if isinstance(base, sympy.Rational) and base not in (0, 1, -1):
+            bits = max(int(base.p).bit_length(), int(base.q).bit_length())
+            if bits * abs(float(expo)) > _MAX_BITS:
+                raise self.error(
+                    f"the power is too large: about 2^{bits * abs(float(expo)):.0f}; exact "
+                    f"numbers in a coefficient are limited to {_MAX_BITS} bits",
+                    offset,
+                )
+
+    def _check_size(self, value: Any, offset: int) -> None:
+        """Refuse a coefficient whose expansion would exceed ``_MAX_TERMS`` terms."""
+        if expanded_terms_bound(value, _MAX_TERMS) > _MAX_TERMS:
+            raise self.error(
+                f"the coefficient would expand to more than {_MAX_TERMS} terms; "
+                "write a smaller power or product",
+                offset,
+            )
+
     def _number_value(self, t: _Token) -> Any:
         body = t.text[:-1] if t.text.endswith("j") else t.text
-        if body.isdigit():
+        if _all_digits(body):
             value: Any = sympy.Integer(int(body))
         else:
             as_float = float(body)
@@ -602,16 +695,28 @@ class _Parser:
         """A symbol-free value as int, Fraction, float or complex; check it is finite."""
         if value.has(sympy.nan, sympy.zoo, sympy.oo, -sympy.oo):
             raise self.error("the coefficient is not finite", offset)
-        if value.free_symbols:
-            return value
-        if value.is_Integer:
-            return int(value)
-        if value.is_Rational:
-            return Fraction(int(value.p), int(value.q))
-        number = complex(value)
-        if not cmath.isfinite(number):
-            raise self.error("the coefficient is not finite (overflow)", offset)
-        return number.real if number.imag == 0 else number
+        try:
+            return to_python_number(value)
+        except ValueError:
+            raise self.error("the coefficient is not finite (overflow)", offset) from None
+
+
+def _underscore_note(tokens: Sequence[_Token]) -> str:
+    """A note for names such as ``X_0`` that look like operators written with an underscore."""
+    for t in tokens:
+        text = t.text
+        if (
+            t.kind == "name"
+            and len(text) > 2
+            and text[0] in "XYZ"
+            and text[1] == "_"
+            and _all_digits(text[2:])
+        ):
+            return (
+                f"; {text!r} was read as a coupling name: an operator is its letter followed "
+                f"directly by the site, as in {text[0]}{text[2:]} (for example X0 Z1)"
+            )
+    return ""
 
 
 def parse_model(text: str, states: int = 2, sites: Sequence[Any] | None = None) -> Model:
@@ -651,9 +756,7 @@ def parse_model(text: str, states: int = 2, sites: Sequence[Any] | None = None) 
     """
     if not isinstance(text, str):
         raise TypeError(f"parse_model needs a str, got {type(text).__name__}")
-    if isinstance(states, bool) or int(states) != states or states < 2:
-        raise ValueError(f"the number of states per site must be an integer >= 2, got {states!r}")
-    n = int(states)
-    site_list = None if sites is None else list(sites)
+    n = check_states(states)
+    site_list = None if sites is None else list(check_sites(sites))
     parsed = _Parser(text, n, None if site_list is None else set(site_list)).parse()
     return Model.from_terms(parsed, states=n, sites=site_list)

@@ -11,6 +11,13 @@ the weakest answer over the components, weakest first:
   even hole, Elman-Chapman-Flammia 2021), or for N > 2 the exclusion algebra of reach p;
 * ``"jordan-wigner"`` -- a line graph (Chapman-Flammia 2020): Majorana bilinears.
 
+Each component, and the whole verdict, carries a :class:`Guarantee`: whether a theorem proves
+that the single exclusion polynomial gives the spectrum (exclusion chains; line graphs of
+forests; claw-free, even-hole-free graphs, line graphs whose root cycles are odd and
+edge-disjoint included), and never when the strings obey a relation that the frustration
+graph does not show (:mod:`freeladder.relations`).  :func:`freeladder.free_spectrum` only
+reads it; :func:`guarantee` decides a single exclusion chain without the full classification.
+
 References
 ----------
 A. Chapman and S. T. Flammia, Quantum 4, 278 (2020), arXiv:2003.05465;
@@ -23,14 +30,15 @@ from __future__ import annotations
 
 import html
 from collections.abc import Sequence
-from dataclasses import dataclass, field
-from typing import Any
+from dataclasses import dataclass, field, replace
+from typing import Any, Literal
 
 import networkx as nx
 import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
 
+from . import references as ref
 from .clawfree import find_claw, find_even_hole, find_simplicial_clique
 from .graph import (
     ChainStructure,
@@ -39,27 +47,95 @@ from .graph import (
     commutation_exponents,
     frustration_adjacency,
 )
+from .indifference import IndifferenceOrder, order_from_exponents
+from .jsonready import json_ready
 from .linegraph import LineGraphRoot, line_graph_root
 from .model import Model
 from .printing import format_terms
+from .relations import Relation, Relations, find_relations
 from .strings import WeylString
 
-KINDS = ("unsolved", "integrable", "hidden-free", "jordan-wigner")
+__all__ = [
+    "KINDS",
+    "ComponentVerdict",
+    "Guarantee",
+    "Verdict",
+    "VerdictKind",
+    "classify",
+    "guarantee",
+]
+
+VerdictKind = Literal["unsolved", "integrable", "hidden-free", "jordan-wigner"]
+"""The verdict kinds."""
+
+KINDS: tuple[VerdictKind, ...] = ("unsolved", "integrable", "hidden-free", "jordan-wigner")
 """The verdict kinds, weakest first."""
 
-_CF = "A. Chapman and S. T. Flammia, Quantum 4, 278 (2020)"
-_ECF = "S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021)"
-_CEM = "A. Chapman, S. J. Elman and R. L. Mann, arXiv:2305.15625 (2023)"
-_AP = "F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020)"
-_CLOCK = (
-    f"R. J. Baxter, Phys. Lett. A 140, 155 (1989); P. Fendley, J. Phys. A 47, 075001 (2014); {_AP}"
-)
-_FERMION_CHAIN = f"P. Fendley, J. Phys. A 52, 335002 (2019); {_AP}"
+_CLOCK = f"{ref.BAXTER_1989}; {ref.FENDLEY_2014}; {ref.ALCARAZ_PIMENTA_2020}"
+_FERMION_CHAIN = f"{ref.FENDLEY_2019}; {ref.ALCARAZ_PIMENTA_2020}"
 _NO_CLOCK_THEOREM = (
     "Beyond the exclusion algebra, no graph theorem is known for clock models; "
     "use fl.verify to probe numerically."
 )
 _SHOWN_COMPONENTS = 4
+_SHOWN_WITNESS = 12
+
+
+@dataclass(frozen=True)
+class Guarantee:
+    """Whether a theorem proves that the single exclusion polynomial gives the spectrum.
+
+    When ``proven`` is True, every many-body level is ``constant + sum_k omega^{s_k} eta_k`` with
+    independent choices ``s_k`` and ``eta_k^N = 1 / y_k`` over the roots ``y_k`` of the one
+    polynomial P, each level with the multiplicity ``dim / N^S`` (see
+    :func:`freeladder.free_spectrum`).
+
+    Attributes
+    ----------
+    proven : bool
+    theorem : str
+        The theorem that applies (empty when none does).
+    reference : str
+        Where it is published (from :mod:`freeladder.references`); for a refusal, the paper
+        that explains what would be needed.
+    reason : str
+        One or two sentences: what is proven, or why nothing is.
+    witness : tuple of int
+        Terms that block the theorem (a claw, an even hole, a root-graph cycle, the terms of a
+        relation); empty when proven.
+    witness_text : str
+        The witness terms in the model's text syntax (``"[j] term; ..."``).
+    """
+
+    proven: bool
+    theorem: str
+    reference: str
+    reason: str
+    witness: tuple[int, ...] = ()
+    witness_text: str = ""
+
+    def __str__(self) -> str:
+        head = "proven" if self.proven else "NOT GUARANTEED"
+        text = f"{head}: {self.reason}"
+        if self.witness_text:
+            text += f" Witness terms: {self.witness_text}"
+        return text
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields."""
+        return json_ready(
+            {
+                "proven": self.proven,
+                "theorem": self.theorem,
+                "reference": self.reference,
+                "reason": self.reason,
+                "witness": self.witness,
+                "witness_text": self.witness_text,
+            }
+        )
+
+
+_PENDING = Guarantee(False, "", "", "not examined yet")
 
 
 @dataclass(frozen=True)
@@ -91,10 +167,13 @@ class ComponentVerdict:
     chain : ChainStructure or None
         For N > 2 chain components (indices of the whole model), and for any single-component
         model that is a chain.
+    guarantee : Guarantee
+        Whether the single polynomial is proven to give this component's spectrum, taking
+        into account the relations among the strings that touch the component.
     """
 
     terms: tuple[int, ...]
-    kind: str
+    kind: VerdictKind
     reasons: tuple[str, ...]
     witness: tuple[int, ...] = ()
     majorana_pairs: dict[int, tuple[int, int]] | None = None
@@ -103,6 +182,33 @@ class ComponentVerdict:
     even_hole_free: bool | None = None
     even_hole: tuple[int, ...] | None = None
     chain: ChainStructure | None = None
+    guarantee: Guarantee = _PENDING
+    indifference: IndifferenceOrder | None = None
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields (the chain as its order, reach and orientation)."""
+        chain = None
+        if self.chain is not None:
+            chain = {
+                "order": self.chain.order,
+                "reach": self.chain.reach,
+                "orientation": self.chain.orientation,
+            }
+        return json_ready(
+            {
+                "terms": self.terms,
+                "kind": self.kind,
+                "reasons": self.reasons,
+                "witness": self.witness,
+                "majorana_pairs": self.majorana_pairs,
+                "cycles": self.cycles,
+                "simplicial_clique": self.simplicial_clique,
+                "even_hole_free": self.even_hole_free,
+                "even_hole": self.even_hole,
+                "chain": chain,
+                "guarantee": self.guarantee,
+            }
+        )
 
 
 @dataclass(frozen=True)
@@ -114,20 +220,44 @@ class Verdict:
     kind : str
         The weakest kind over the components (see :data:`KINDS`).
     reasons : tuple of str
-        A summary sentence, then the reasons of the components that decide the kind.
+        A summary sentence, then the reasons of the components that decide the kind, then a
+        sentence on the relations among the strings when there are any.
     witness : tuple of int
-        The witness of the first component of the weakest kind (empty when nothing blocks).
+        The witness of the first component of the weakest kind; when that is empty, the terms
+        of the first relation among the strings (empty when nothing blocks).
     components : tuple of ComponentVerdict
         One entry per connected component, ordered by smallest term index.
+    guarantee : Guarantee
+        Whether the single polynomial is proven to give the spectrum of the whole model: only
+        when every component is proven.  :func:`freeladder.free_spectrum` reads it.
+    relations : Relations
+        A basis of the products of terms that are multiples of the identity
+        (:func:`freeladder.relations.find_relations`); relations may join several components.
     model : Model
         The model classified (used for printing the witness terms).
     """
 
-    kind: str
+    kind: VerdictKind
     reasons: tuple[str, ...]
     witness: tuple[int, ...]
     components: tuple[ComponentVerdict, ...]
+    guarantee: Guarantee
+    relations: Relations
     model: Model = field(repr=False)
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: kind, reasons, witness, components, guarantee, relations."""
+        return json_ready(
+            {
+                "kind": self.kind,
+                "reasons": self.reasons,
+                "witness": self.witness,
+                "witness_text": self.witness_text(),
+                "components": self.components,
+                "guarantee": self.guarantee,
+                "relations": self.relations,
+            }
+        )
 
     # -- structure gathered over components ----------------------------------------------------
     @property
@@ -200,6 +330,7 @@ class Verdict:
         lines += [f"  - {r}" for r in self.reasons]
         if self.witness:
             lines.append(f"  witness: {self.witness_text()}")
+        lines.append(f"  single polynomial gives the spectrum: {self.guarantee}")
         return "\n".join(lines)
 
     def _repr_markdown_(self) -> str:
@@ -212,6 +343,7 @@ class Verdict:
             lines.append("Witness terms:")
             lines.append("")
             lines += [f"* `[{j}]` `{_term_text(self.model, j)}`" for j in self.witness]
+        lines += ["", f"Single polynomial gives the spectrum: {self.guarantee}"]
         return "\n".join(lines)
 
     def _repr_html_(self) -> str:
@@ -228,6 +360,11 @@ class Verdict:
                 for j in self.witness
             )
             parts.append(f"<table><tr><th>term</th><th>witness</th></tr>{rows}</table>")
+        head = "proven" if self.guarantee.proven else "NOT GUARANTEED"
+        parts.append(
+            f"<p>Single polynomial gives the spectrum: <b>{head}</b>: "
+            f"{esc(self.guarantee.reason)}</p>"
+        )
         parts.append("</div>")
         return "".join(parts)
 
@@ -277,7 +414,10 @@ def classify(m: Model) -> Verdict:
     n_terms = len(m)
     if n_terms == 0:
         empty = ("The model has no terms: nothing to solve.",)
-        return Verdict("jordan-wigner", empty, (), (), m)
+        none = Guarantee(
+            True, "no terms", "", "The model has no terms: its spectrum is the constant."
+        )
+        return Verdict("jordan-wigner", empty, (), (), none, find_relations(m), m)
     n_comp, labels = csgraph.connected_components(adj, directed=False)
     order = np.argsort(labels, kind="stable")
     # components in label order, each with its terms ascending
@@ -306,7 +446,241 @@ def classify(m: Model) -> Verdict:
             comps.append(_clock_component(m, [int(v) for v in g], block))
             start += len(g)
         comps.sort(key=lambda c: c.terms[0])
-    return _combine(m, comps)
+    return _combine(m, comps, find_relations(m))
+
+
+def guarantee(m: Model) -> Guarantee:
+    """Whether a theorem proves that the single exclusion polynomial gives ``m``'s spectrum.
+
+    The same value as ``classify(m).guarantee``; a model that is one exclusion chain is
+    decided from its chain structure and the relations among its strings alone, without the
+    rest of the classification (linear time).
+
+    Parameters
+    ----------
+    m : Model
+
+    Returns
+    -------
+    Guarantee
+
+    References
+    ----------
+    F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020);
+    A. Chapman and S. T. Flammia, Quantum 4, 278 (2020);
+    S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021).
+
+    Examples
+    --------
+    >>> from freeladder import parse_model
+    >>> guarantee(parse_model("X0 + Z0 Z1 + X1")).proven
+    True
+    >>> guarantee(parse_model("Z0 Z1 + X1 + Z1 Z2 + X2 + Z0 Z2")).proven
+    False
+    """
+    if not isinstance(m, Model):
+        raise TypeError(f"guarantee needs a freeladder Model, got {type(m).__name__}")
+    chain = chain_structure(m) if len(m) else None
+    if chain is None:
+        return classify(m).guarantee
+    relations = find_relations(m)
+    return _with_relation(m, _chain_guarantee(chain), relations.relations[:1])
+
+
+# -- guarantees ---------------------------------------------------------------------------
+
+
+def _chain_guarantee(chain: ChainStructure) -> Guarantee:
+    reference = _FERMION_CHAIN if chain.states == 2 else _CLOCK
+    return Guarantee(
+        True,
+        f"exclusion algebra of reach {chain.reach}",
+        reference,
+        f"The terms form the exclusion algebra of reach {chain.reach}: the roots of the single "
+        f"exclusion polynomial give the free spectrum ({reference}).",
+    )
+
+
+def _graph_guarantee(m: Model, comp: ComponentVerdict) -> Guarantee:
+    """The theorem that covers one component from its frustration graph alone, or why none."""
+    if comp.chain is not None and comp.kind in ("jordan-wigner", "hidden-free"):
+        return _chain_guarantee(comp.chain)
+    if comp.indifference is not None and comp.kind == "hidden-free":
+        return Guarantee(
+            True,
+            "oriented indifference frustration graph",
+            ref.MANN_ELMAN_WOOD_CHAPMAN_2024,
+            "The frustration graph is an oriented indifference graph: the roots of the single "
+            f"independence polynomial give the free-parafermion spectrum "
+            f"({ref.MANN_ELMAN_WOOD_CHAPMAN_2024}).",
+        )
+    if comp.kind == "jordan-wigner" and not comp.cycles:
+        return Guarantee(
+            True,
+            "line graph of a forest (Jordan-Wigner map)",
+            ref.CHAPMAN_FLAMMIA_2020,
+            "The frustration graph is the line graph of a forest: the terms are Majorana "
+            "bilinears with no cycle symmetry, and the single polynomial gives the spectrum "
+            f"({ref.CHAPMAN_FLAMMIA_2020}).",
+        )
+    if comp.kind == "jordan-wigner":
+        even = _even_cycle_block(comp.majorana_pairs or {})
+        if not even:
+            return Guarantee(
+                True,
+                "claw-free and even-hole-free frustration graph",
+                ref.ELMAN_CHAPMAN_FLAMMIA_2021,
+                f"The root graph has {len(comp.cycles)} independent cycle(s), all odd and "
+                "edge-disjoint (every block is an edge or an odd cycle), so the line graph is "
+                "claw-free and even-hole-free: the single polynomial gives the spectrum "
+                f"({ref.ELMAN_CHAPMAN_FLAMMIA_2021}).",
+            )
+        return _refusal(
+            m,
+            ref.CHAPMAN_FLAMMIA_2020,
+            f"The root graph has {len(comp.cycles)} independent cycle(s), and the witness terms "
+            "form a block of it that holds an even cycle (an even hole of the frustration "
+            "graph): the products of the terms around the cycles are conserved, and each "
+            "sector of these symmetries has its own quadratic form, which one polynomial does "
+            f"not capture ({ref.CHAPMAN_FLAMMIA_2020}; {ref.CHAPMAN_ELMAN_MANN_2023}).",
+            even,
+        )
+    if comp.kind == "hidden-free" and comp.even_hole_free:
+        return Guarantee(
+            True,
+            "claw-free and even-hole-free frustration graph",
+            ref.ELMAN_CHAPMAN_FLAMMIA_2021,
+            "The frustration graph is claw-free and even-hole-free with a simplicial clique: "
+            f"the single polynomial gives the spectrum ({ref.ELMAN_CHAPMAN_FLAMMIA_2021}).",
+        )
+    if comp.kind == "hidden-free" and comp.even_hole is not None:
+        return _refusal(
+            m,
+            ref.CHAPMAN_ELMAN_MANN_2023,
+            "The frustration graph is claw-free with a simplicial clique but has an even hole: "
+            "the model is free in each symmetry sector, and the sectors may need different "
+            f"polynomials ({ref.CHAPMAN_ELMAN_MANN_2023}).",
+            comp.even_hole,
+        )
+    if comp.kind == "hidden-free":
+        return _refusal(
+            m,
+            ref.ELMAN_CHAPMAN_FLAMMIA_2021,
+            "The frustration graph is claw-free with a simplicial clique, but whether it has an "
+            "even hole was not decided, so the even-hole-free theorem "
+            f"({ref.ELMAN_CHAPMAN_FLAMMIA_2021}) cannot be applied.",
+            (),
+        )
+    if comp.kind == "integrable":
+        return _refusal(
+            m,
+            ref.ELMAN_CHAPMAN_FLAMMIA_2021,
+            "The frustration graph is claw-free but has no simplicial clique: the charges "
+            "commute, but no theorem says that one polynomial gives the spectrum "
+            f"({ref.ELMAN_CHAPMAN_FLAMMIA_2021}; {ref.CHAPMAN_ELMAN_MANN_2023}).",
+            (),
+        )
+    if m.states == 2:
+        why = (
+            "The frustration graph has a claw (one term failing to commute with three mutually "
+            "commuting terms): no free-fermion theorem applies "
+            f"({ref.ELMAN_CHAPMAN_FLAMMIA_2021}; {ref.CHAPMAN_ELMAN_MANN_2023})."
+        )
+    else:
+        why = (
+            "The terms do not form the exclusion algebra of any reach, and no graph theorem is "
+            f"known for other clock models ({ref.ALCARAZ_PIMENTA_2020})."
+        )
+    return _refusal(m, "", why, comp.witness)
+
+
+def _even_cycle_block(pairs: dict[int, tuple[int, int]]) -> tuple[int, ...]:
+    """Terms of a block of the root graph that holds an even cycle, or ``()`` when none does.
+
+    A graph has no even cycle exactly when each block (biconnected component) is an edge or
+    an odd cycle (common practice); an even cycle of the root graph is an even hole of its
+    line graph.
+    """
+    root = nx.Graph()
+    for term, (a, b) in pairs.items():
+        root.add_edge(a, b, term=term)
+    for block in nx.biconnected_component_edges(root):
+        nodes = {v for edge in block for v in edge}
+        if len(block) == 1 or (len(block) == len(nodes) and len(block) % 2 == 1):
+            continue
+        even = [c for c in nx.cycle_basis(root.edge_subgraph(block)) if len(c) % 2 == 0]
+        if even:
+            edges = list(zip(even[0], even[0][1:] + even[0][:1], strict=True))
+        else:  # odd basis cycles sharing a path: the block holds an even cycle
+            edges = list(block)
+        return tuple(sorted(int(root.edges[a, b]["term"]) for a, b in edges))
+    return ()
+
+
+def _refusal(m: Model, reference: str, reason: str, witness: Sequence[int]) -> Guarantee:
+    terms = tuple(int(j) for j in witness)
+    return Guarantee(False, "", reference, reason, terms, _witness_text(m, terms))
+
+
+def _with_relation(m: Model, base: Guarantee, touching: Sequence[Relation]) -> Guarantee:
+    """``base``, unless a relation among the strings touches the component."""
+    if not base.proven or not touching:
+        return base
+    rel = touching[0]
+    return _refusal(
+        m,
+        base.reference,
+        f"The terms {_list(rel.terms)} multiply to a multiple of the identity, "
+        f"{rel.text(m)}: a relation the frustration graph does not show. The theorem "
+        f"({base.theorem}) assumes none; the relation fixes a symmetry sector and removes "
+        "levels the single polynomial predicts, so the free spectrum is not guaranteed.",
+        rel.terms,
+    )
+
+
+def _witness_text(m: Model, terms: tuple[int, ...]) -> str:
+    text = "; ".join(f"[{j}] {_term_text(m, j)}" for j in terms[:_SHOWN_WITNESS])
+    return text + ("; ..." if len(terms) > _SHOWN_WITNESS else "")
+
+
+def _with_guarantees(
+    m: Model, comps: Sequence[ComponentVerdict], relations: Relations
+) -> list[ComponentVerdict]:
+    """Each component with its guarantee; a relation counts for every component it touches."""
+    where = np.empty(len(m), dtype=np.int64)
+    for i, comp in enumerate(comps):
+        where[list(comp.terms)] = i
+    touching: dict[int, list[Relation]] = {}
+    for rel in relations:
+        for i in sorted(set(where[list(rel.terms)].tolist())):
+            touching.setdefault(i, []).append(rel)
+    return [
+        replace(c, guarantee=_with_relation(m, _graph_guarantee(m, c), touching.get(i, [])))
+        for i, c in enumerate(comps)
+    ]
+
+
+def _whole_guarantee(comps: Sequence[ComponentVerdict]) -> Guarantee:
+    blocking = [c for c in comps if not c.guarantee.proven]
+    if blocking:
+        first = blocking[0].guarantee
+        if len(comps) == 1:
+            return first
+        prefix = f"Component with terms {_list(blocking[0].terms, 8)}: "
+        return replace(first, reason=prefix + first.reason)
+    theorems = list(dict.fromkeys(c.guarantee.theorem for c in comps))
+    references = list(dict.fromkeys(c.guarantee.reference for c in comps))
+    if len(comps) == 1:
+        return comps[0].guarantee
+    return Guarantee(
+        True,
+        "; ".join(theorems),
+        "; ".join(references),
+        f"Each of the {len(comps)} commuting components is covered ({'; '.join(theorems)}), "
+        "and no product of terms is a multiple of the identity: the single polynomial "
+        "(the product of the components' polynomials) gives the spectrum "
+        f"({'; '.join(references)}).",
+    )
 
 
 # -- N = 2 --------------------------------------------------------------
@@ -323,7 +697,7 @@ def _pauli_component(
         f"It is not a line graph: term {root.term} ({_string_text(m, root.term)}) and its "
         f"non-commuting partners among the terms placed before it ({_list(root.partners)}) "
         "admit no pair of Majorana modes, so no Jordan-Wigner-type map exists "
-        f"({_CF})."
+        f"({ref.CHAPMAN_FLAMMIA_2020})."
     )
     claw = find_claw(adjacency, terms)
     if claw is not None:
@@ -332,22 +706,24 @@ def _pauli_component(
             f"Term {centre} ({_string_text(m, centre)}) fails to commute with terms "
             f"{_list(leaves)} ({'; '.join(_string_text(m, j) for j in leaves)}), which commute "
             "with each other: a claw. The frustration graph is not claw-free, so neither "
-            f"free-fermion theorem applies ({_ECF}; {_CEM})."
+            f"free-fermion theorem applies ({ref.ELMAN_CHAPMAN_FLAMMIA_2021}; "
+            f"{ref.CHAPMAN_ELMAN_MANN_2023})."
         )
         return ComponentVerdict(key, "unsolved", (not_line, text), tuple(claw)), first_mode
     clique = find_simplicial_clique(adjacency, terms)
     if clique is None:
         text = (
             "The frustration graph is claw-free, so the charges Q^(s) commute with each other and "
-            f"with H ({_ECF}); but it has no simplicial clique (every maximal clique was pruned "
-            f"to nothing), so a free spectrum is not guaranteed ({_CEM})."
+            f"with H ({ref.ELMAN_CHAPMAN_FLAMMIA_2021}); but it has no simplicial clique "
+            "(every maximal clique was pruned to nothing), so a free spectrum is not guaranteed "
+            f"({ref.CHAPMAN_ELMAN_MANN_2023})."
         )
         return ComponentVerdict(key, "integrable", (not_line, text)), first_mode
     reasons = [
         not_line,
         f"It is claw-free and has the simplicial clique {{{_list(clique)}}} (for each of these "
         "terms, its other non-commuting partners all fail to commute with each other), so the "
-        f"model is free in each symmetry sector ({_CEM}).",
+        f"model is free in each symmetry sector ({ref.CHAPMAN_ELMAN_MANN_2023}).",
     ]
     holes = find_even_hole(adjacency, terms)
     witness: tuple[int, ...] = ()
@@ -355,13 +731,14 @@ def _pauli_component(
         witness = holes.hole
         reasons.append(
             f"It has the even hole {_list(holes.hole)} ({holes.reason}), so the even-hole-free "
-            f"theorem ({_ECF}) does not apply directly: symmetry sectors may be needed."
+            f"theorem ({ref.ELMAN_CHAPMAN_FLAMMIA_2021}) does not apply directly: symmetry "
+            "sectors may be needed."
         )
         free = False
     elif holes.decided:
         reasons.append(
             f"It is also even-hole-free ({holes.reason}), so no symmetry sectors are needed "
-            f"({_ECF})."
+            f"({ref.ELMAN_CHAPMAN_FLAMMIA_2021})."
         )
         free = True
     else:
@@ -387,13 +764,13 @@ def _jordan_wigner(
     reasons = [
         f"The frustration graph is the line graph of a root graph with {root.n_modes} vertices "
         f"and {len(pairs)} edge{'s' if len(pairs) != 1 else ''}: each term is a Majorana "
-        f"bilinear i gamma_a gamma_b on the two ends of its edge ({_CF})."
+        f"bilinear i gamma_a gamma_b on the two ends of its edge ({ref.CHAPMAN_FLAMMIA_2020})."
     ]
     if cycles:
         reasons.append(
             f"The root graph has {len(cycles)} independent cycle{'s' if len(cycles) != 1 else ''}; "
             "the product of the terms around each commutes with H, and each sector of these "
-            f"symmetries has its own quadratic form ({_CF})."
+            f"symmetries has its own quadratic form ({ref.CHAPMAN_FLAMMIA_2020})."
         )
     return ComponentVerdict(key, "jordan-wigner", tuple(reasons), (), pairs, cycles)
 
@@ -418,6 +795,21 @@ def _clock_component(m: Model, terms: list[int], sub: sps.csr_array) -> Componen
     if found is not None:
         chain = ChainStructure(_frozen(idx[found.order]), found.reach, found.orientation, m.states)
         return _with_chain(ComponentVerdict(key, "hidden-free", ()), chain)
+    oriented = order_from_exponents(sub, m.states)
+    if oriented is not None:
+        order = IndifferenceOrder(
+            tuple(int(idx[j]) for j in oriented.order),
+            oriented.first_neighbour,
+            oriented.exponent,
+            m.states,
+        )
+        text = (
+            f"The frustration graph is an oriented indifference graph: in the order "
+            f"{_list(order.order, 12)} every term's neighbours form a contiguous block and every "
+            f"edge points forward with g_a g_b = omega^{order.exponent} g_b g_a, so the spectrum "
+            f"is that of free parafermions ({ref.MANN_ELMAN_WOOD_CHAPMAN_2024})."
+        )
+        return ComponentVerdict(key, "hidden-free", (text,), indifference=order)
     local, why = _clock_obstruction(sub, m.states)
     witness = tuple(int(idx[j]) for j in local)
     text = why.format(*(f"{j} ({_string_text(m, j)})" for j in witness))
@@ -515,7 +907,8 @@ def _clock_obstruction(ex: sps.csr_array, n: int) -> tuple[tuple[int, ...], str]
 # -- combining and printing --------------------------------------------------------------
 
 
-def _combine(m: Model, comps: Sequence[ComponentVerdict]) -> Verdict:
+def _combine(m: Model, comps: Sequence[ComponentVerdict], relations: Relations) -> Verdict:
+    comps = _with_guarantees(m, comps, relations)
     rank = {k: i for i, k in enumerate(KINDS)}
     kind = min((c.kind for c in comps), key=rank.__getitem__)
     deciding = [c for c in comps if c.kind == kind]
@@ -535,7 +928,18 @@ def _combine(m: Model, comps: Sequence[ComponentVerdict]) -> Verdict:
     if len(deciding) > _SHOWN_COMPONENTS:
         reasons.append(f"... and {len(deciding) - _SHOWN_COMPONENTS} more components of this kind.")
     witness = next((c.witness for c in deciding if c.witness), ())
-    return Verdict(kind, tuple(reasons), tuple(witness), tuple(comps), m)
+    if relations.count:
+        first = relations.relations[0]
+        reasons.append(
+            f"The strings obey {relations.count} independent relation"
+            f"{'s' if relations.count != 1 else ''} (products of terms that are a multiple of "
+            f"the identity), for example {first.text(m)}. The theorems assume none, so a "
+            "relation removes the guarantee of every component it touches."
+        )
+        witness = witness or first.terms
+    return Verdict(
+        kind, tuple(reasons), tuple(witness), tuple(comps), _whole_guarantee(comps), relations, m
+    )
 
 
 def _frozen(order: np.ndarray) -> np.ndarray:

@@ -1,0 +1,158 @@
+"""Indifference orderings: recognition against brute force, and free parafermions on them.
+
+References: R. L. Mann, S. J. Elman, D. R. Wood and A. Chapman, arXiv:2408.09684 (2024) (an
+oriented indifference frustration graph gives a free-parafermion spectrum from the independence
+polynomial); F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020) (exclusion
+chains); F. S. Roberts (1969) (indifference graphs).
+"""
+
+from __future__ import annotations
+
+import itertools
+
+import networkx as nx
+import numpy as np
+import pytest
+from scipy.optimize import linear_sum_assignment
+
+import freeladder as fl
+from freeladder.indifference import indifference_order, umbrella_order
+
+
+def brute_force_has_umbrella(g: nx.Graph) -> bool:
+    nodes = list(g.nodes)
+    for perm in itertools.permutations(nodes):
+        pos = {v: i for i, v in enumerate(perm)}
+        if all(
+            max(pos[w] for w in [v, *g[v]]) - min(pos[w] for w in [v, *g[v]]) == g.degree(v)
+            for v in nodes
+        ):
+            return True
+    return False
+
+
+def test_recognition_agrees_with_brute_force_on_small_graphs():
+    rng = np.random.default_rng(5)
+    seen = {True: 0, False: 0}
+    for _ in range(250):
+        n = int(rng.integers(2, 8))
+        g = nx.gnp_random_graph(n, float(rng.uniform(0.2, 0.8)), seed=int(rng.integers(1 << 30)))
+        adj = nx.to_scipy_sparse_array(g, nodelist=range(n))
+        found = umbrella_order(adj)
+        truth = brute_force_has_umbrella(g)
+        assert (found is not None) == truth
+        seen[truth] += 1
+        if found is not None:
+            assert sorted(found) == list(range(n))
+    assert seen[True] > 20 and seen[False] > 20
+
+
+def test_random_unit_interval_graphs_are_recognised():
+    rng = np.random.default_rng(8)
+    for _ in range(20):
+        n = 300
+        x = np.sort(rng.uniform(0, n / 4, n))
+        label = rng.permutation(n)
+        g = nx.Graph()
+        g.add_nodes_from(range(n))
+        for i in range(n):
+            for j in range(i + 1, n):
+                if x[j] - x[i] > 1:
+                    break
+                g.add_edge(int(label[i]), int(label[j]))
+        order = umbrella_order(nx.to_scipy_sparse_array(g, nodelist=range(n)))
+        assert order is not None
+
+
+def variable_range_chain(reaches, couplings, states, rng):
+    """g_j = X_j Z_{j+1} ... Z_{j + p_j}, ends j + p_j non-decreasing; shuffled terms and sites."""
+    size = len(reaches)
+    sites = list(rng.permutation(size + max(reaches)))
+    terms = []
+    for j, p in enumerate(reaches):
+        factors = [(sites[j], 1, 0)] + [(sites[j + d], 0, 1) for d in range(1, p + 1)]
+        terms.append((couplings[j], fl.make_string(states, factors)))
+    shuffled = [terms[k] for k in rng.permutation(size)]
+    return fl.Model.from_terms(shuffled, states=states)
+
+
+@pytest.mark.parametrize("states", [3, 4, 5])
+def test_variable_range_clock_chains_have_the_free_parafermion_spectrum(states):
+    rng = np.random.default_rng(states)
+    omega = np.exp(2j * np.pi / states)
+    for reaches in ([1, 2, 1], [2, 1, 1], [1, 1, 2, 1]):
+        ends = [j + p for j, p in enumerate(reaches)]
+        if ends != sorted(ends):
+            continue
+        size = len(reaches)
+        sites = size + max(reaches)
+        if states**sites > 1100:
+            continue
+        couplings = rng.uniform(0.5, 1.5, size) * np.exp(1j * rng.uniform(-0.5, 0.5, size))
+        m = variable_range_chain(reaches, couplings, states, rng)
+        found = indifference_order(m)
+        assert found is not None
+        # the recurrence P_k = P_{k-1} - y w_k P_{l(k)-1} along the order, evaluated exactly
+        # with numpy polynomials, against the independence polynomial from networkx
+        w = [complex(m.couplings[j]) ** states for j in found.order]
+        polys = [np.array([1.0 + 0j])]
+        for k in range(size):
+            back = polys[found.first_neighbour[k]]
+            step = np.zeros(max(len(polys[-1]), len(back) + 1), dtype=complex)
+            step[: len(polys[-1])] += polys[-1]
+            step[1 : len(back) + 1] -= w[k] * back
+            polys.append(step)
+        coeffs = polys[-1]
+        g = nx.Graph(fl.frustration_graph(m).to_undirected())
+        for s in range(1, len(coeffs)):
+            total = sum(
+                np.prod([complex(m.couplings[j]) ** states for j in c])
+                for c in itertools.combinations(g.nodes, s)
+                if not any(g.has_edge(a, b) for a, b in itertools.combinations(c, 2))
+            )
+            assert abs(coeffs[s] - (-1) ** s * total) < 1e-12
+        # free levels sum_k omega^{s_k} eta_k, eta_k^N = 1 / y_k, each dim / N^S times,
+        # against numpy's eigenvalues of the dense non-Hermitian matrix
+        y = np.roots(coeffs[::-1])
+        eta = (1 / y) ** (1 / states)
+        levels = [
+            sum(omega**sk * e for sk, e in zip(choice, eta, strict=True))
+            for choice in itertools.product(range(states), repeat=len(eta))
+        ]
+        free = np.repeat(levels, m.dimension // states ** len(eta))
+        exact = np.linalg.eigvals(m.to_sparse().toarray())
+        cost = np.abs(free[:, None] - exact[None, :])
+        rows, cols = linear_sum_assignment(cost)
+        assert cost[rows, cols].max() < 1e-8
+
+
+def test_orientation_must_be_consistent():
+    # a triangle of Z3 strings whose orientation is cyclic cannot point forward everywhere
+    x, z = (1, 0), (0, 1)
+    a = fl.make_string(3, [(0, *x), (1, *z)])  # X0 Z1
+    b = fl.make_string(3, [(1, *x), (2, *z)])  # X1 Z2
+    c = fl.make_string(3, [(2, *x), (0, *z)])  # X2 Z0: closes a ring
+    ring = fl.Model.from_terms([(1, a), (1, b), (1, c)], states=3)
+    assert indifference_order(ring) is None
+    chain = fl.exclusion_chain(6, reach=3, states=4)
+    found = indifference_order(chain)
+    assert found is not None and found.reaches[:3] == (3, 3, 3)
+
+
+def test_verdict_and_spectrum_of_a_variable_range_clock_chain():
+    # the oriented indifference theorem (Mann-Elman-Wood-Chapman 2024) gives the verdict and a
+    # guaranteed spectrum; the levels are checked against numpy's dense eigenvalues
+    rng = np.random.default_rng(21)
+    couplings = rng.uniform(0.6, 1.4, 4)
+    m = variable_range_chain([1, 2, 1, 1], couplings, 3, rng)
+    assert fl.chain_structure(m) is None  # not a fixed-reach exclusion chain
+    verdict = fl.classify(m)
+    assert verdict.kind == "hidden-free"
+    assert verdict.guarantee.proven
+    sp = fl.free_spectrum(m)
+    table = sp.levels(None)
+    free = np.repeat(np.asarray(table.energies), table.multiplicity)
+    exact = np.linalg.eigvals(m.to_sparse().toarray())
+    cost = np.abs(free[:, None] - exact[None, :])
+    rows, cols = linear_sum_assignment(cost)
+    assert cost[rows, cols].max() < 1e-8
