@@ -87,19 +87,15 @@ class Refusal:
 def spectrum_or_refusal(a: fl.Analysis, unproven: bool) -> fl.FreeSpectrum | Refusal:
     """The spectrum, or the library's stated reason for refusing it.
 
-    With ``unproven`` the numbers come back even when no theorem covers the model (marked by
-    their provenance).  A spectrum whose provenance says it is not guaranteed is refused here
-    too, unless ``unproven``.
+    With ``unproven`` the numbers come back even when no theorem covers the model (marked:
+    ``provenance.guaranteed`` is False).
     """
     try:
-        sp = a.spectrum()
+        return a.spectrum()
     except NoTheoremError as exc:
         if not unproven:
             return Refusal(str(exc))
         return a.spectrum(unproven=True)
-    if not unproven and not sp.provenance.get("guaranteed", True):
-        return Refusal(str(sp.provenance.get("guarantee", "no theorem covers this model")))
-    return sp
 
 
 def term_labels(model: fl.Model) -> list[str]:

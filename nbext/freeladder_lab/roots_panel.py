@@ -110,7 +110,7 @@ class RootsPanel(widgets.VBox):
             self.summary.value = ""
             self._clear()
             return
-        guaranteed = bool(spectrum.provenance.get("guaranteed", True))
+        guaranteed = bool(spectrum.provenance.guaranteed)
         self.refusal.value = (
             ""
             if guaranteed
@@ -175,7 +175,8 @@ def _summary(spectrum: fl.FreeSpectrum, real_reason: str | None, bounds: np.ndar
         f"<table style='border-collapse:collapse'><tr><th>k</th><th style='text-align:left'>"
         f"eta_k</th><th style='text-align:left'>bound</th></tr>{rows}{tail}</table>"
         f"<div style='max-width:60%'><div><b>{len(spectrum.quasi_energies)}</b> quasi-energies "
-        f"by <code>{escape(prov.get('method', ''))}</code>: {escape(prov.get('path', ''))}</div>"
-        f"<div>bounds: {escape(prov.get('bounds', ''))}</div>"
-        f"<div>theorem: {escape(prov.get('guarantee', ''))}</div>{real}</div></div>"
+        f"by <code>{escape(prov.method)}</code>: {escape(prov.path)}</div>"
+        f"<div>bounds: {escape(prov.bounds)}</div>"
+        f"<div>theorem: {escape(prov.guarantee)}"
+        f"{' (' + escape(prov.reference) + ')' if prov.reference else ''}</div>{real}</div></div>"
     )
