@@ -284,6 +284,16 @@ def test_an_exception_is_shown_with_its_traceback(monkeypatch: pytest.MonkeyPatc
     np.testing.assert_array_equal(_xy(wb.roots.roots), roots)  # last result kept
 
 
+def test_background_mode_fills_the_marks_and_clears_the_busy_line() -> None:
+    m = fl.exclusion_chain(7, reach=1, couplings=fl.random_couplings(7, seed=9))
+    wb = Workbench(m)  # work runs in background threads
+    wb.wait(60)
+    _assert_roots_shown(wb, fl.free_spectrum(m))
+    assert wb.busy.value == ""
+    assert wb.cancel.layout.display == "none"
+    assert wb.series.roots.x is not None and len(wb.series.roots.x) == wb.series.alpha
+
+
 def test_worker_newer_request_supersedes_older() -> None:
     applied: list[str] = []
     busy: list[bool] = []
