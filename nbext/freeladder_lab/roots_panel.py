@@ -177,6 +177,5 @@ def _summary(spectrum: fl.FreeSpectrum, real_reason: str | None, bounds: np.ndar
         f"<div style='max-width:60%'><div><b>{len(spectrum.quasi_energies)}</b> quasi-energies "
         f"by <code>{escape(prov.method)}</code>: {escape(prov.path)}</div>"
         f"<div>bounds: {escape(prov.bounds)}</div>"
-        f"<div>theorem: {escape(prov.guarantee)}"
-        f"{' (' + escape(prov.reference) + ')' if prov.reference else ''}</div>{real}</div></div>"
+        f"<div>theorem: {escape(prov.guarantee)}</div>{real}</div></div>"
     )
