@@ -227,6 +227,10 @@ def test_bad_text_keeps_the_model_and_shows_the_caret() -> None:
     source, caret = pre.group(1).split("\n")
     assert caret.index("^") == caught.value.column - 1
     assert wb.input.text.value == bad  # the user's text is kept
+    wb.set_text("2.5")  # parses, but a constant alone is no model to analyse
+    assert wb.model is before
+    assert "no operator terms" in wb.input.message.value
+    assert wb.error.value == ""
 
 
 def test_order_control_counts_and_last_partial_polynomial() -> None:

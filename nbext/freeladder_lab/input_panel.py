@@ -163,6 +163,9 @@ class InputPanel(widgets.VBox):
         except ValueError as exc:
             self.show_problem(str(exc))
             return
+        if len(model) == 0:
+            self.show_problem("the text has no operator terms (a constant alone has no spectrum)")
+            return
         self.message.value = ""
         self._base = None
         self._on_model(model, False)
