@@ -9,6 +9,8 @@ import pytest
 from scipy.optimize import brentq, linear_sum_assignment
 
 import freeladder as fl
+from freeladder.errors import TooLargeError
+from freeladder.matching import match_levels
 
 _PAULI = {
     "I": np.eye(2),
@@ -212,14 +214,25 @@ def test_refuses_symbolic_models() -> None:
 
 def test_refuses_dense_solve_when_too_large() -> None:
     m = fl.ising_chain(13)
-    with pytest.raises(ValueError, match=r"dimension 8192 .*pass k="):
+    with pytest.raises(TooLargeError, match=r"dimension 8192 .*pass k=1\.\.") as info:
         fl.exact_spectrum(m)
+    # the suggestion must succeed: the largest k it names, and a small one
+    top = int(str(info.value).split("k=1..")[1].split()[0])
+    assert top >= 5
+    assert fl.exact_spectrum(m, k=5).eigenvalues.shape == (5,)
 
 
 def test_refuses_when_memory_is_short() -> None:
     m = fl.ising_chain(40)
-    with pytest.raises(ValueError, match=r"dimension 1099511627776 .*GiB.*available"):
+    with pytest.raises(TooLargeError, match=r"dimension 1099511627776 .*too large") as info:
         fl.exact_spectrum(m, k=2)
+    assert "pass k" not in str(info.value)
+    # without k: refused as well, and k is not suggested, since it would be refused too
+    with pytest.raises(TooLargeError) as info:
+        fl.exact_spectrum(m)
+    assert "pass k" not in str(info.value) and "too large for exact diagonalization" in str(
+        info.value
+    )
 
 
 def test_bad_arguments() -> None:
@@ -251,3 +264,64 @@ def test_result_is_immutable() -> None:
         ed.eigenvalues[0] = 0.0
     with pytest.raises(AttributeError):
         ed.method = "x"  # type: ignore[misc]
+
+
+# -- free levels against exact levels (match_levels) ---------------------------------------------
+@pytest.mark.parametrize("lam", [0.5, 1.0, 2.5])
+def test_match_levels_ising_against_numpy(lam: float) -> None:
+    # free levels of the open Ising chain (Pfeuty 1970) against numpy's dense eigenvalues
+    n_sites = 6
+    m = fl.ising_chain(n_sites, field=1.0, bond=lam)
+    ed = fl.exact_spectrum(m)
+    np.testing.assert_allclose(
+        ed.eigenvalues, all_sums(pfeuty_quasi_energies(lam, n_sites)), atol=1e-9
+    )
+    result = match_levels(fl.free_spectrum(m).levels(None), ed)
+    assert result.ok and result.matched == 2**n_sites and result.distance < 1e-9
+    assert not result.unmatched_free and not result.unmatched_exact
+    # the same levels given as values + multiplicities, grouped by hand
+    values, counts = np.unique(
+        np.round(all_sums(pfeuty_quasi_energies(lam, n_sites)), 9), return_counts=True
+    )
+    assert match_levels((values, counts), ed, tol=1e-8).ok
+
+
+def test_match_levels_reports_what_is_missing() -> None:
+    m = fl.ising_chain(4, field=1.0, bond=0.7)
+    ed = fl.exact_spectrum(m)
+    free = np.sort(all_sums(pfeuty_quasi_energies(0.7, 4)))
+    # one level moved: one unmatched level on each side, the report names both
+    moved = free.copy()
+    moved[-1] += 0.25
+    r = match_levels((moved, 1), ed, tol=1e-8)
+    assert not r.ok and r.matched == 15
+    assert len(r.unmatched_free) == 1 and abs(r.unmatched_free[0][0] - moved[-1]) < 1e-12
+    assert len(r.unmatched_exact) == 1 and abs(r.unmatched_exact[0][0] - free[-1]) < 1e-8
+    # wrong multiplicity: twice each level is 32 against 16
+    r2 = match_levels((free, 2), ed, tol=1e-8)
+    assert not r2.ok and r2.matched == 16 and sum(c for _, c in r2.unmatched_free) == 16
+    import json
+
+    assert json.loads(json.dumps(r.to_dict(), allow_nan=False))["ok"] is False
+    with pytest.raises(AttributeError):
+        r.ok = True  # type: ignore[misc]
+
+
+@pytest.mark.parametrize("states", [3, 4])
+def test_match_levels_clock_chain_complex(states: int) -> None:
+    # complex levels: the free clock chain against numpy.linalg.eigvals of the dense matrix
+    rng = np.random.default_rng(10 + states)
+    n_sites = 4 if states == 3 else 3
+    f, jj = rng.uniform(0.5, 1.5, n_sites), rng.uniform(0.5, 1.5, n_sites - 1)
+    m = fl.clock_chain(n_sites, field=f, bond=jj, states=states)
+    ed = fl.exact_spectrum(m)
+    _assert_same_multiset(
+        ed.eigenvalues, np.linalg.eigvals(_clock_dense(states, n_sites, f, jj)), 1e-8
+    )
+    table = fl.free_spectrum(m).levels(None)
+    r = match_levels(table, ed)
+    assert r.ok and r.matched == states**n_sites, str(r)
+    # a rotated level (omega times one value) is caught
+    vals = np.array(table.energies, dtype=complex)
+    vals[0] *= np.exp(2j * np.pi / states) if abs(vals[0]) > 0.1 else 2
+    assert not match_levels((vals, table.multiplicity), ed).ok

@@ -154,32 +154,6 @@ def test_errors_say_what_is_wrong():
         fl.jordan_wigner_spectrum(m, sector="lowest")
 
 
-def honeycomb_torus(cells: int) -> tuple[fl.Model, list[fl.WeylString]]:
-    """Kitaev's honeycomb on a cells x cells torus (unit couplings) and its hexagon strings."""
-
-    def a(x: int, y: int) -> tuple[int, int, int]:
-        return (0, x % cells, y % cells)
-
-    def b(x: int, y: int) -> tuple[int, int, int]:
-        return (1, x % cells, y % cells)
-
-    terms = []
-    for x in range(cells):
-        for y in range(cells):
-            terms.append((1.0, fl.pauli("ZZ", [a(x, y), b(x, y)])))
-            terms.append((1.0, fl.pauli("XX", [b(x, y), a(x + 1, y)])))
-            terms.append((1.0, fl.pauli("YY", [b(x, y), a(x, y + 1)])))
-    hexagons = []
-    for x in range(cells):
-        for y in range(cells):
-            ring = [a(x, y), b(x, y), a(x + 1, y), b(x + 1, y - 1), a(x + 1, y - 1), b(x, y - 1)]
-            prod = fl.make_string(2, [])
-            for k, letter in enumerate("ZXYZXY"):  # the bond kinds around the hexagon
-                prod = prod * fl.pauli(letter * 2, [ring[k], ring[(k + 1) % 6]])
-            hexagons.append(prod.normalized()[0])
-    return fl.Model.from_terms(terms), hexagons
-
-
 def test_flux_free_honeycomb_torus_approaches_the_bulk_energy():
     # Kitaev 2006: in the flux-free sector the Majorana band is +-|f(q)|, f = 2 (1 + e^{iq1} +
     # e^{iq2}) at unit couplings, so the energy per site is -(1/2) <|1 + e^{iq1} + e^{iq2}|>
@@ -190,7 +164,7 @@ def test_flux_free_honeycomb_torus_approaches_the_bulk_energy():
     assert bulk == pytest.approx(-0.787, abs=1e-3)
     deviations = []
     for cells in (4, 8):
-        m, hexagons = honeycomb_torus(cells)
+        m, hexagons = fl.kitaev_torus(cells, cells), fl.honeycomb_hexagons(cells, cells)
         best = np.inf
         # the two translation-invariant flux patterns; the flux-free one is the lower
         # (E. H. Lieb, Phys. Rev. Lett. 73, 2158 (1994))

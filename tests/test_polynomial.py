@@ -6,7 +6,10 @@ independent sets with networkx (cliques of the complement graph).
 
 from __future__ import annotations
 
+import concurrent.futures
+import copy
 import itertools
+import json
 import math
 import time
 from fractions import Fraction
@@ -18,8 +21,15 @@ import sympy
 from helpers import random_pauli_model
 
 import freeladder as fl
+from freeladder.errors import TooLargeError
 from freeladder.independent import IndependenceGraph
-from freeladder.polynomial import _graph_sums, _Ring
+from freeladder.polynomial import (
+    MAX_ROOT_DEGREE,
+    _graph_sums,
+    _Ring,
+    power_sum_targets,
+    sum_rules,
+)
 
 
 def _random_fractions(rng: np.random.Generator, n: int) -> list[Fraction]:
@@ -236,3 +246,181 @@ def test_products_of_small_weights_are_exact() -> None:
         Fraction(1, 9),
         Fraction(4, 25),
     ]
+
+
+# -- frozen polynomial, partial polynomials, roots, sum rules ---------------------------------
+def test_polynomial_is_frozen_and_the_cached_object_stays_intact() -> None:
+    # Regression (issue 14, item 6): P.states = 7 used to change the object every later call saw.
+    m = fl.exclusion_chain(6, reach=1, couplings=[1, 2, 3, 4, 5, 6])
+    poly = fl.exclusion_polynomial(m)
+    for name, value in (("states", 7), ("kind", "integer"), ("degree", 1), ("new", 0)):
+        with pytest.raises(AttributeError, match="immutable"):
+            setattr(poly, name, value)
+    with pytest.raises(AttributeError, match="immutable"):
+        del poly.states
+    with pytest.raises(AttributeError):
+        poly._sums = (1,)  # type: ignore[misc]
+    assert fl.exclusion_polynomial(m) is poly and poly.states == 2
+    assert isinstance(poly.coefficients, tuple) and isinstance(poly.weights, tuple)
+    assert copy.deepcopy(poly) is poly
+
+
+def test_lazy_coefficients_are_computed_once_under_threads() -> None:
+    # The chain coefficients are computed on first use; concurrent first uses share one result.
+    m = fl.exclusion_chain(300, reach=2, couplings=fl.random_couplings(300, 0.3, 1.7, seed=8))
+    poly = fl.exclusion_polynomial(m)
+    with concurrent.futures.ThreadPoolExecutor(4) as pool:
+        results = list(pool.map(lambda _: poly.weight_sums, range(8)))
+    assert all(r == results[0] for r in results) and len(results[0]) == poly.degree + 1
+    # Reference: the brute-force recurrence on lists (Alcaraz-Pimenta 2020), re-implemented above.
+    assert list(poly.coefficients[:4]) == [
+        float(c) for c in _recurrence([Fraction(c) ** 2 for c in m.couplings], 2)[:4]
+    ]
+
+
+def test_polynomial_to_dict_is_strict_json_with_exact_text() -> None:
+    cs = [Fraction(1, 3), Fraction(2, 5), Fraction(3, 7), Fraction(1, 2)]
+    poly = fl.exclusion_polynomial(fl.exclusion_chain(4, reach=1, couplings=cs))
+    d = json.loads(json.dumps(poly.to_dict(), allow_nan=False))
+    assert d["degree"] == poly.degree == 2 and d["kind"] == "rational" and d["states"] == 2
+    # The exact text parses back (with Fraction, not with any evaluator) to the coefficients.
+    assert [Fraction(t) for t in d["exact_coefficients"]] == list(poly.coefficients)
+    assert d["coefficients"] == pytest.approx([float(c) for c in poly.coefficients], rel=1e-15)
+    gauss = fl.exclusion_polynomial(
+        fl.exclusion_chain(5, reach=1, couplings=[1, 1 + 1j, 2, 0.5 - 1j, 3])
+    )
+    dg = json.loads(json.dumps(gauss.to_dict(), allow_nan=False))
+    assert dg["kind"] == "gaussian"
+    assert dg["coefficients"] == [[c.real, c.imag] for c in map(complex, gauss.coefficients)]
+    # Symbolic coefficients: text in both lists (sympy's printer), still strict JSON.
+    a, b, c = sympy.symbols("a b c")
+    sym = fl.exclusion_polynomial(fl.exclusion_chain(3, reach=1, couplings=[a, b, c]))
+    ds = json.loads(json.dumps(sym.to_dict(), allow_nan=False))
+    assert ds["kind"] == "symbolic" and ds["exact_coefficients"][2] == "a**2*c**2"
+    assert sympy.expand(sym.weight_sums[1] - (a**2 + b**2 + c**2)) == 0
+    # Beyond the float range: numbers become null, the exact text stays.
+    huge = fl.exclusion_polynomial(fl.exclusion_chain(6, reach=1, couplings=[1e200] * 6))
+    dh = json.loads(json.dumps(huge.to_dict(), allow_nan=False))
+    assert dh["coefficients"][2] is None and len(dh["exact_coefficients"][2]) > 700
+
+
+@pytest.mark.parametrize("trial", range(6))
+def test_partial_polynomials_against_sympy(trial: int) -> None:
+    # Reference: sympy truncation of the full polynomial, and sympy's nroots (50 digits).
+    rng = np.random.default_rng(100 + trial)
+    if trial % 2:
+        m = _random_pauli_model(rng, int(rng.integers(5, 10)), 4)
+    else:
+        m = fl.exclusion_chain(11, reach=trial % 3 + 1, couplings=_random_fractions(rng, 11))
+    poly = fl.exclusion_polynomial(m)
+    y = sympy.Symbol("y")
+    full = poly.sympy(y).as_expr()
+    partials = [poly.truncated(s) for s in range(poly.degree + 1)]
+    assert partials[-1] is poly  # the last partial polynomial is P itself
+    for s, part in enumerate(partials):
+        want = sum(full.coeff(y, r) * y**r for r in range(s + 1))
+        assert sympy.expand(part.sympy(y).as_expr() - want) == 0
+        assert part.truncated_at == (None if s == poly.degree else s)
+        if s == 0:
+            assert len(part.roots().values) == 0
+            continue
+        roots = part.roots()
+        ref = sympy.Poly(want, y).nroots(n=50, maxsteps=200)
+        want_roots = [complex(r) for r in ref]
+        assert sum(roots.multiplicities) == len(want_roots) == part.degree
+        for v, k in zip(roots.values, roots.multiplicities, strict=True):
+            near = [b for b in want_roots if abs(complex(v) - b) <= 1e-9 * max(1.0, abs(v))]
+            assert len(near) == k  # multiplicity = number of reference roots at this value
+        # The certified radii hold against the 50-digit roots.
+        for v, r in zip(roots.values, roots.error_bounds, strict=True):
+            assert min(abs(complex(v) - b) for b in want_roots) <= r + 1e-300
+        json.dumps(roots.to_dict(), allow_nan=False)
+    with pytest.raises(ValueError, match=">= 0"):
+        poly.truncated(-1)
+    with pytest.raises(TypeError):
+        poly.truncated(1.5)  # type: ignore[arg-type]
+
+
+def test_roots_of_gaussian_partial_polynomials_against_numpy_and_sympy() -> None:
+    # Reference: sympy nroots at 40 digits of the exact Gaussian-rational coefficients.
+    m = fl.exclusion_chain(9, reach=1, couplings=list(fl.complex_couplings(9, seed=3)))
+    poly = fl.exclusion_polynomial(m)
+    y = sympy.Symbol("y")
+    re, im = poly.exact_parts()
+    for s in (2, 3, poly.degree):
+        expr = sum(
+            (
+                sympy.Rational(a.numerator, a.denominator)
+                + sympy.I * sympy.Rational(b.numerator, b.denominator)
+            )
+            * y**r
+            for r, (a, b) in enumerate(zip(re[: s + 1], im[: s + 1], strict=True))
+        )
+        ref = [complex(r) for r in sympy.Poly(expr, y).nroots(n=40, maxsteps=200)]
+        got = poly.truncated(s).roots()
+        assert got.rigorous and len(got.values) == s
+        for v, r in zip(got.values, got.error_bounds, strict=True):
+            assert min(abs(complex(v) - b) for b in ref) <= max(r, 1e-14 * abs(v))
+
+
+def test_roots_refuse_symbolic_and_too_large_degree() -> None:
+    sym = fl.exclusion_polynomial(fl.exclusion_chain(3, reach=1, couplings=sympy.symbols("a:3")))
+    with pytest.raises(TypeError, match="substitute"):
+        sym.roots()
+    big = fl.exclusion_polynomial(fl.exclusion_chain(2 * MAX_ROOT_DEGREE + 4, reach=1))
+    with pytest.raises(TooLargeError, match="MAX_ROOT_DEGREE"):
+        big.roots()
+    assert big.truncated(5).roots().degree == 5
+
+
+def _sympy_targets(poly: fl.ExclusionPolynomial) -> tuple[sympy.Expr, sympy.Expr]:
+    """sum 1/y_k and sum 1/y_k^2 over the roots of P, by sympy's exact root sums (RootSum)."""
+    y, x = sympy.symbols("y x")
+    p = poly.sympy(y)
+    # Reciprocal polynomial: its roots are x_k = 1/y_k.
+    rec = sympy.Poly(sympy.expand(x ** p.degree() * p.as_expr().subs(y, 1 / x)), x)
+    first = sympy.RootSum(rec, sympy.Lambda(x, x))
+    second = sympy.RootSum(rec, sympy.Lambda(x, x**2))
+    return sympy.nsimplify(first), sympy.nsimplify(second)
+
+
+@pytest.mark.parametrize("trial", range(8))
+def test_sum_rule_targets_against_sympy_root_sums(trial: int) -> None:
+    # Reference: sympy.RootSum over the reciprocal polynomial (exact symmetric functions).
+    rng = np.random.default_rng(200 + trial)
+    if trial % 2:
+        m = _random_pauli_model(rng, int(rng.integers(3, 8)), 3)
+    else:
+        m = fl.exclusion_chain(
+            8, reach=trial % 3 + 1, states=2 + trial % 4 // 2, couplings=_random_fractions(rng, 8)
+        )
+    poly = fl.exclusion_polynomial(m)
+    t1, t2 = power_sum_targets(poly)
+    r1, r2 = _sympy_targets(poly)
+    assert sympy.simplify(t1 - r1) == 0 and sympy.simplify(t2 - r2) == 0
+    # The quasi-energies of the 50-digit roots satisfy the rules to rounding.
+    y = sympy.Symbol("y")
+    roots = [complex(r) for r in poly.sympy(y).nroots(n=50, maxsteps=200)]
+    n = poly.states
+    eta = [(1 / r) ** (1 / n) for r in roots]
+    rules = sum_rules(poly, eta)
+    assert rules.count == len(roots) and max(rules.residuals) < 1e-13
+    assert rules.targets == (t1, t2)
+    json.dumps(rules.to_dict(), allow_nan=False)
+    # A wrong quasi-energy is caught.
+    bad = sum_rules(poly, [eta[0] * 1.01, *eta[1:]])
+    assert max(bad.residuals) > 1e-4
+
+
+def test_sum_rules_do_not_overflow_for_huge_couplings() -> None:
+    # Chain weights 1e300^2 exceed the float range; the rules are scaled by a power of two.
+    m = fl.exclusion_chain(5, reach=1, couplings=[1e300, 2e300, 1.5e300, 3e300, 1e300])
+    poly = fl.exclusion_polynomial(m)
+    unit = fl.exclusion_polynomial(
+        fl.exclusion_chain(5, reach=1, couplings=[1.0, 2.0, 1.5, 3.0, 1.0])
+    )
+    y = sympy.Symbol("y")
+    eta = np.array([(1 / complex(r)) ** 0.5 for r in unit.sympy(y).nroots(n=30)]) * 1e300
+    rules = sum_rules(poly, eta)
+    assert max(rules.residuals) < 1e-13
+    assert json.loads(json.dumps(rules.to_dict(), allow_nan=False))["sums"][0] == [None, 0.0]

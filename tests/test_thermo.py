@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import json
+
 import numpy as np
 import pytest
 from scipy.special import logsumexp
@@ -67,3 +69,21 @@ def test_thermodynamics_refuses_what_it_cannot_do() -> None:
         thermodynamics(sp, 1.0)
     with pytest.raises(ValueError, match="> 0"):
         thermodynamics(free_spectrum(fl.ising_chain(4)), [1.0, -2.0])
+
+
+def test_thermodynamics_is_frozen_and_exports_the_same_numbers() -> None:
+    # Reference for the numbers: dense eigenvalues (numpy), as in the tests above.
+    m = fl.exclusion_chain(6, reach=1, couplings=fl.random_couplings(6, seed=5))
+    sp = free_spectrum(m)
+    t = np.array([0.3, 1.0, 4.0])
+    th = thermodynamics(sp, t)
+    ev = np.linalg.eigvalsh(m.to_sparse().toarray())
+    d = json.loads(json.dumps(th.to_dict(), allow_nan=False))
+    assert np.allclose(d["free_energy"], _ed_free_energy(ev, t, sp.sites), rtol=1e-12)
+    assert d["temperature"] == t.tolist() and d["sites"] == sp.sites
+    with pytest.raises(ValueError, match="read-only"):
+        th.energy[0] = 0.0
+    with pytest.raises(AttributeError):
+        th.sites = 3  # type: ignore[misc]
+    t[0] = 99.0  # the caller's array is copied, not shared
+    assert th.temperature[0] == 0.3

@@ -10,13 +10,16 @@ from .builders import (
     clock_chain,
     complex_couplings,
     exclusion_chain,
+    honeycomb_hexagons,
     ising_chain,
     ising_lattice,
     kitaev_honeycomb,
+    kitaev_torus,
     random_couplings,
     staggered,
 )
 from .certify import CertifiedRoots, ChainEnclosures, certified_roots, certify_chain_roots
+from .charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .charges import (
     ChargeStep,
     ChargeTerm,
@@ -24,6 +27,14 @@ from .charges import (
     charge_counts,
     charge_series,
     transfer_matrix,
+)
+from .disorder import (
+    LogGapStatistics,
+    disorder_couplings,
+    disordered_chain_gap,
+    interleave,
+    log_gap_statistics,
+    periodic_couplings,
 )
 from .ed import ExactSpectrum, exact_spectrum
 from .edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
@@ -35,8 +46,10 @@ from .graph import (
     frustration_adjacency,
     frustration_graph,
 )
+from .grid import sweep
 from .indifference import IndifferenceOrder, indifference_order
 from .majorana import SectorSpectrum, SectorStructure, jordan_wigner_spectrum, sectors
+from .matching import LevelMatch, match_levels
 from .model import Model, Term
 from .operators import StringSum
 from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
@@ -48,15 +61,27 @@ from .roots import (
     chain_real_roots,
     chain_root_count,
 )
+from .scaling import (
+    EnergyDensity,
+    GapScaling,
+    MixedResidueWarning,
+    PowerLawFit,
+    chain_quasi_energy,
+    energy_density,
+    gap_scaling,
+    power_law_fit,
+    smallest_quasi_energy,
+)
 from .spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .strings import StringArray, WeylString, make_string, pauli
-from .sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
 from .verdict import ComponentVerdict, Guarantee, Verdict, classify, guarantee
-from .verify import Check, Report, verify
+from .verification import Check, Report, verify
 
 __all__ = [
+    "honeycomb_hexagons",
+    "kitaev_torus",
     "IndifferenceOrder",
     "indifference_order",
     "SectorSpectrum",
@@ -118,6 +143,8 @@ __all__ = [
     "edge_mode",
     "ladder_operators",
     "verify",
+    "LevelMatch",
+    "match_levels",
     "StringArray",
     "SweepResult",
     "Witness",
@@ -135,5 +162,21 @@ __all__ = [
     "parse_model",
     "random_couplings",
     "staggered",
+    "EnergyDensity",
+    "GapScaling",
+    "LogGapStatistics",
+    "MixedResidueWarning",
+    "PowerLawFit",
+    "disorder_couplings",
+    "disordered_chain_gap",
+    "energy_density",
+    "gap_scaling",
+    "interleave",
+    "log_gap_statistics",
+    "periodic_couplings",
+    "power_law_fit",
+    "smallest_quasi_energy",
+    "chain_quasi_energy",
+    "sweep",
 ]
 __version__ = "0.1.0"

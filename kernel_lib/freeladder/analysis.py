@@ -156,10 +156,10 @@ class Analysis:
 
     def report(self, **options: Any) -> Any:
         """The :func:`freeladder.verify` report, kept per set of options."""
-        from .verify import verify  # verify builds on the parts above
+        from .verification import verify  # verify builds on the parts above
 
         key = "report:" + repr(sorted(options.items()))
-        return self._part(key, lambda: verify(self.model, **options))
+        return self._part(key, lambda: verify(self, **options))
 
     # -- new couplings ----------------------------------------------------------------------------
     def with_couplings(

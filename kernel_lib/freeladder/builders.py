@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 import numbers
+from collections.abc import Sequence
 from typing import Any
 
 import numpy as np
@@ -12,9 +13,11 @@ import sympy
 
 from .model import Coupling, Model
 from .scalars import check_scalar
-from .strings import StringArray, check_states, make_string, pauli
+from .strings import StringArray, WeylString, check_states, make_string, pauli
 
 __all__ = [
+    "honeycomb_hexagons",
+    "kitaev_torus",
     "MAX_BUILD_TERMS",
     "clock_chain",
     "complex_couplings",
@@ -99,7 +102,7 @@ def _coupling_list(couplings: Any, count: int, what: str, symbol: str = "c") -> 
 
 def exclusion_chain(
     n_terms: int,
-    reach: int = 1,
+    reach: int | Sequence[int] = 1,
     states: int = 2,
     couplings: Any = "uniform",
 ) -> Model:
@@ -112,8 +115,11 @@ def exclusion_chain(
     ----------
     n_terms : int
         M >= 1, the number of terms.
-    reach : int
-        p >= 1.  p = 1, N = 2 is the transverse-field Ising chain up to a basis change.
+    reach : int or sequence of int
+        p >= 1.  p = 1, N = 2 is the transverse-field Ising chain up to a basis change.  A
+        sequence gives each term its own reach ``p_j`` (a variable-range chain); when the ends
+        ``j + p_j`` never decrease, the frustration graph is an oriented indifference graph and
+        the spectrum is free (Mann-Elman-Wood-Chapman 2024; Alcaraz 2025).
     states : int
         N >= 2.
     couplings : "uniform", "symbols", number or sequence
@@ -127,24 +133,47 @@ def exclusion_chain(
     ----------
     P. Fendley, J. Phys. A 52, 335002 (2019), arXiv:1901.08078 (N = 2, p = 2);
     F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622
-    (general p and N).
+    (general p and N); F. C. Alcaraz, arXiv:2512.08011 (2025) (variable range);
+    R. L. Mann, S. J. Elman, D. R. Wood and A. Chapman, arXiv:2408.09684 (2024).
 
     Examples
     --------
     >>> m = exclusion_chain(4, reach=2)
     >>> print(m)
     X0 Z1 Z2 + X1 Z2 Z3 + X2 Z3 Z4 + X3 Z4 Z5
+    >>> print(exclusion_chain(3, reach=[1, 2, 1], states=3))
+    X0 Z1 + X1 Z2 Z3 + X2 Z3
     """
     m_terms = _check_count(n_terms, "exclusion_chain: n_terms")
-    p = _check_count(reach, "exclusion_chain: reach", 1, max(1, MAX_BUILD_TERMS // m_terms))
+    if isinstance(reach, (int, np.integer)) and not isinstance(reach, bool):
+        p = _check_count(reach, "exclusion_chain: reach", 1, max(1, MAX_BUILD_TERMS // m_terms))
+        reaches = np.full(m_terms, p, dtype=np.int64)
+    else:
+        if isinstance(reach, (str, bytes)) or not isinstance(reach, (Sequence, np.ndarray)):
+            raise TypeError(
+                f"exclusion_chain: reach must be an integer or a sequence of integers, "
+                f"got {reach!r:.60}"
+            )
+        if len(reach) != m_terms:
+            raise ValueError(f"exclusion_chain: {len(reach)} reaches for {m_terms} terms")
+        reaches = np.array(
+            [_check_count(r, f"exclusion_chain: reach[{j}]", 1) for j, r in enumerate(reach)],
+            dtype=np.int64,
+        )
+        if int(reaches.sum()) > MAX_BUILD_TERMS:
+            raise ValueError(
+                f"exclusion_chain: {int(reaches.sum())} operator factors exceed the limit "
+                f"{MAX_BUILD_TERMS}"
+            )
     n = check_states(states, "exclusion_chain")
     values = _coupling_list(couplings, m_terms, "exclusion_chain")
-    n_sites = m_terms + p
     rows = np.arange(m_terms)
+    n_sites = int((rows + reaches).max()) + 1
     x = sps.csr_array((np.ones(m_terms, np.int64), (rows, rows)), shape=(m_terms, n_sites))
-    zr = np.repeat(rows, p)
-    zc = (rows[:, None] + np.arange(1, p + 1)[None, :]).ravel()
-    z = sps.csr_array((np.ones(m_terms * p, np.int64), (zr, zc)), shape=(m_terms, n_sites))
+    zr = np.repeat(rows, reaches)
+    offsets = np.arange(len(zr)) - np.repeat(np.cumsum(reaches) - reaches, reaches) + 1
+    zc = zr + offsets
+    z = sps.csr_array((np.ones(len(zr), np.int64), (zr, zc)), shape=(m_terms, n_sites))
     arr = StringArray(x, z, np.zeros(m_terms, np.int64), n, range(n_sites))
     return Model(arr, values)
 
@@ -249,6 +278,64 @@ def kitaev_honeycomb(
     return Model.from_terms(
         terms, states=2, sites=[(r, c) for r in range(rows) for c in range(cols)]
     )
+
+
+def kitaev_torus(
+    cells_x: int, cells_y: int, jx: Coupling = 1.0, jy: Coupling = 1.0, jz: Coupling = 1.0
+) -> Model:
+    """Kitaev's honeycomb model on a torus of ``cells_x x cells_y`` unit cells (2 sites each).
+
+    Sites are ``(s, x, y)``: ``s = 0`` (sublattice A) or 1 (B) in cell ``(x, y)``, periodic in
+    both directions.  Each B site has one bond of each kind: ``Z Z`` to A in its own cell,
+    ``X X`` to A in cell ``(x + 1, y)`` and ``Y Y`` to A in cell ``(x, y + 1)``;
+    ``H = sum J_x X X + J_y Y Y + J_z Z Z`` over the ``3 cells_x cells_y`` bonds.  Its hexagons'
+    conserved strings are :func:`honeycomb_hexagons`.
+
+    References
+    ----------
+    A. Kitaev, Ann. Phys. 321, 2 (2006), arXiv:cond-mat/0506438.
+
+    Examples
+    --------
+    >>> m = kitaev_torus(2, 2)
+    >>> len(m), len(m.sites)
+    (12, 8)
+    """
+    nx_ = _check_count(cells_x, "kitaev_torus: cells_x", 1)
+    ny_ = _check_count(cells_y, "kitaev_torus: cells_y", 1)
+    cx, cy, cz = (check_scalar(v, name) for v, name in ((jx, "jx"), (jy, "jy"), (jz, "jz")))
+    terms = []
+    for x in range(nx_):
+        for y in range(ny_):
+            b = (1, x, y)
+            terms.append((cz, pauli("ZZ", [(0, x, y), b])))
+            terms.append((cx, pauli("XX", [b, (0, (x + 1) % nx_, y)])))
+            terms.append((cy, pauli("YY", [b, (0, x, (y + 1) % ny_)])))
+    sites = [(s, x, y) for s in (0, 1) for x in range(nx_) for y in range(ny_)]
+    return Model.from_terms(terms, states=2, sites=sites)
+
+
+def honeycomb_hexagons(cells_x: int, cells_y: int) -> tuple[WeylString, ...]:
+    """The conserved string of each hexagon of :func:`kitaev_torus` (the product of its six
+    bond terms, normalised), one per unit cell.
+
+    Examples
+    --------
+    >>> len(honeycomb_hexagons(3, 3))
+    9
+    """
+    nx_ = _check_count(cells_x, "honeycomb_hexagons: cells_x", 1)
+    ny_ = _check_count(cells_y, "honeycomb_hexagons: cells_y", 1)
+    out = []
+    for x in range(nx_):
+        for y in range(ny_):
+            xp, ym = (x + 1) % nx_, (y - 1) % ny_
+            ring = [(0, x, y), (1, x, y), (0, xp, y), (1, xp, ym), (0, xp, ym), (1, x, ym)]
+            product = make_string(2, [])
+            for k, letter in enumerate("ZXYZXY"):  # the bond kinds around the hexagon
+                product = product * pauli(letter * 2, [ring[k], ring[(k + 1) % 6]])
+            out.append(product.normalized()[0])
+    return tuple(out)
 
 
 def clock_chain(n_sites: int, field: Any = 1.0, bond: Any = 1.0, states: int = 3) -> Model:

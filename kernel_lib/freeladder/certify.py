@@ -2,14 +2,14 @@
 
 API
 ---
-``certify_chain_roots(weights, reach, roots, errors=None) -> ChainEnclosures``
+``certify_chain_roots(weights, reach, roots, errors=None, *, max_precision, widenings)``
     Proves that each interval ``[lower_k, upper_k]`` around ``roots[k]`` holds exactly one root
     of the chain polynomial ``P_M`` (weights taken exactly as the given binary floats), by
     certified sign changes of ``P_M`` evaluated through the recurrence in arb balls plus the
-    known root count ``S``.  Fields: ``lower``, ``upper`` (float64 arrays, outward-rounded),
-    ``radius`` (``(upper - lower) / 2``), ``precision`` (bits used), ``certified`` (bool),
-    ``message``.
-``certified_roots(coefficients) -> CertifiedRoots``
+    known root count ``S``; returns ``ChainEnclosures`` with fields ``lower``, ``upper``
+    (float64 arrays, outward-rounded), ``radius`` (``(upper - lower) / 2``), ``sign_change``
+    (bool per interval), ``certified`` (bool), ``precision`` (bits used), ``message``.
+``certified_roots(coefficients, *, precision=106) -> CertifiedRoots``
     All complex roots of an exact coefficient list (int / Fraction / fmpq; constant term
     first), as isolating balls from ``fmpq_poly.complex_roots``; fields ``midpoints``
     (complex128), ``radii`` (float64 upper bounds), ``multiplicities``, ``precision``.
@@ -42,7 +42,7 @@ from typing import Any
 import flint
 import numpy as np
 
-from .roots import _check_chain, chain_root_count
+from .roots import chain_root_count, check_chain_weights
 
 __all__ = ["CertifiedRoots", "ChainEnclosures", "certified_roots", "certify_chain_roots"]
 
@@ -180,7 +180,7 @@ def certify_chain_roots(
     >>> enc.certified, bool(enc.lower[0] <= 0.5 <= enc.upper[0])
     (True, True)
     """
-    w, p = _check_chain(weights, reach)
+    w, p = check_chain_weights(weights, reach)
     y = np.asarray(roots, dtype=np.float64).ravel()
     if y.size == 0 or not np.all(np.isfinite(y)) or np.any(y <= 0):
         raise ValueError("roots must be a non-empty array of finite positive numbers")

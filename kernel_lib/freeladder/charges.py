@@ -34,11 +34,21 @@ import sympy
 
 from .cache import structure_store
 from .graph import chain_structure
+from .jsonready import json_ready
 from .model import Model
 from .operators import StringSum
-from .polynomial import _graph_sums, _Ring, exclusion_polynomial, independence_graph
+from .polynomial import exclusion_polynomial, independence_graph, independent_set_counts
 from .printing import format_terms, format_terms_latex
 from .strings import StringArray, WeylString
+
+__all__ = [
+    "DEFAULT_LIMIT",
+    "ChargeStep",
+    "ChargeTerm",
+    "charge",
+    "charge_series",
+    "transfer_matrix",
+]
 
 DEFAULT_LIMIT = 10**6
 """Largest number of products an order may have before listing it raises an error."""
@@ -63,6 +73,17 @@ class ChargeTerm(NamedTuple):
     def latex(self) -> str:
         """The product in LaTeX (no dollars)."""
         return format_terms_latex([(self.coupling, self.string)])
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: indices, coupling (number, or text when symbolic), string, text."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "indices": self.indices,
+                "coupling": self.coupling,
+                "string": str(self.string),
+                "text": self.text(),
+            }
+        )
 
 
 def _check_model(m: Any) -> Model:
@@ -91,7 +112,7 @@ def charge_counts(m: Model) -> tuple[int, ...]:
             top = (size + p) // (p + 1)
             counts = [math.comb(size - p * (s - 1), s) if s else 1 for s in range(top + 1)]
         elif len(m):
-            counts = _graph_sums(_Ring("integer"), independence_graph(m), [1] * len(m))
+            counts = list(independent_set_counts(independence_graph(m)))
         else:
             counts = [1]
         store[_COUNTS_KEY] = tuple(int(c) for c in counts)
@@ -100,7 +121,7 @@ def charge_counts(m: Model) -> tuple[int, ...]:
 
 @dataclass(frozen=True)
 class ChargeStep:
-    """One order s of the charge series: counted at once, listed only on request.
+    """One order s of the charge series: counted at once, listed only on request (frozen).
 
     Attributes
     ----------
@@ -176,6 +197,23 @@ class ChargeStep:
 
     def __str__(self) -> str:
         return self.text()
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: order, count, limit and ``C_s`` (number and text).
+
+        ``coefficient`` reads the exclusion polynomial (computed once per model); the products
+        themselves are not listed (use :attr:`terms` or :meth:`head`).
+        """
+        c = self.coefficient
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "order": self.order,
+                "count": self.count,
+                "limit": self.limit,
+                "coefficient": c,
+                "coefficient_text": str(c),
+            }
+        )
 
 
 def _check_limit(count: int, limit: int, order: int | None) -> None:

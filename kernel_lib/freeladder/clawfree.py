@@ -20,11 +20,17 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import Any
 
 import networkx as nx
 import numpy as np
 
+from .jsonready import json_ready
+
 __all__ = [
+    "EXACT_HOLE_BUDGET",
+    "EXACT_HOLE_LIMIT",
+    "HOLE_SEARCH_BUDGET",
     "HoleSearch",
     "find_claw",
     "find_even_hole",
@@ -186,6 +192,12 @@ class HoleSearch:
     decided: bool
     hole: tuple[int, ...] | None
     reason: str
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields."""
+        return json_ready(  # type: ignore[no-any-return]
+            {"decided": self.decided, "hole": self.hole, "reason": self.reason}
+        )
 
 
 def find_even_hole(

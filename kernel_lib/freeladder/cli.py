@@ -98,6 +98,7 @@ def report_data(m: Model, checks: bool = True) -> dict[str, Any]:
     if checks:
         report = a.report()
         out["ok"] = bool(report.ok)
+        out["problems"] = list(report.problems)
         out["checks"] = [_check_data(c) for c in report.checks]
     return json_ready(out)  # type: ignore[no-any-return]
 
@@ -115,6 +116,7 @@ def _check_data(check: Any) -> dict[str, Any]:
         "method": check.method,
         "status": check.status,
         "value": check.value,
+        "passed": check.passed,
         "tolerance": check.tolerance,
         "detail": check.detail,
     }
@@ -157,7 +159,9 @@ def _print_report(data: dict[str, Any], out: TextIO) -> None:
         width = max(len(c["name"]) for c in data["checks"])
         for c in data["checks"]:
             w(f"  {c['status']:<8} {c['name']:<{width}}  {c['method']}\n")
-        w(f"all checks that ran passed: {'yes' if data['ok'] else 'NO'}\n")
+        w(f"verified: {'yes' if data['ok'] else 'NO'}\n")
+        for problem in data.get("problems", []):
+            w(f"  - {problem}\n")
 
 
 def _export(m: Model, kind: str, path: str, force: bool) -> str:

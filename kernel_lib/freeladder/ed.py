@@ -24,12 +24,16 @@ import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.linalg as spla
 
+from .errors import TooLargeError
 from .model import Model
 
-__all__ = ["DENSE_LIMIT", "ExactSpectrum", "exact_spectrum"]
+__all__ = ["DENSE_LIMIT", "SPARSE_LIMIT", "ExactSpectrum", "exact_spectrum"]
 
 DENSE_LIMIT = 4096
 """Largest dimension diagonalised densely."""
+
+SPARSE_LIMIT = 2**31
+"""Largest dimension the sparse solver handles (32-bit sparse indices)."""
 
 _EPS = float(np.finfo(float).eps)
 
@@ -174,10 +178,12 @@ def exact_spectrum(
     Raises
     ------
     ValueError
-        If the couplings are symbolic (substitute values with ``m.subs`` first); if ``k`` is
-        None and the dimension exceeds :data:`DENSE_LIMIT`; if ``k`` is not in ``1..dim``
-        (``1..dim - 2`` for the sparse solvers); or if the estimated memory exceeds what is
-        available.
+        If the couplings are symbolic (substitute values with ``m.subs`` first) or ``k`` is not
+        in ``1..dim`` (``1..dim - 2`` for the sparse solvers).
+    TooLargeError
+        (a ValueError) If ``k`` is None and the dimension exceeds :data:`DENSE_LIMIT`, the
+        dimension exceeds :data:`SPARSE_LIMIT`, or the estimated memory exceeds what is
+        available.  The message suggests a ``k`` only when that request would succeed.
 
     Notes
     -----
@@ -199,6 +205,39 @@ def exact_spectrum(
     >>> ed.dimension, ed.method, int(ed.multiplicities.sum())
     (8, 'dense-hermitian', 8)
     """
+    k = _validate(m, k, tol, solver)
+    dense = solver == "dense" or (solver == "auto" and m.dimension <= DENSE_LIMIT)
+    _check_size(m, k, dense, solver)
+    mat = m.to_sparse()
+    scale_h = float(abs(mat).max()) if mat.nnz else 0.0
+    diff = mat - mat.conj().T
+    hermitian = (float(abs(diff).max()) if diff.nnz else 0.0) <= 1e-12 * max(scale_h, 1e-300)
+    if dense:
+        vals, error, method = _dense_solve(mat, hermitian)
+        if k is not None:
+            vals = vals[:k]
+    else:
+        assert k is not None
+        vals, error, method = _sparse_lowest(mat, k, hermitian)
+    scale = max(1.0, float(np.abs(vals).max())) if len(vals) else 1.0
+    levels, mult = _cluster(vals, tol * scale)
+    for arr in (levels, mult, vals):
+        arr.setflags(write=False)  # the result is immutable, like every freeladder object
+    return ExactSpectrum(
+        levels=levels,
+        multiplicities=mult,
+        eigenvalues=vals,
+        method=method,
+        tolerance=tol * scale,
+        dimension=m.dimension,
+        complete=len(vals) == m.dimension,
+        hermitian=hermitian,
+        error_estimate=float(error),
+    )
+
+
+def _validate(m: Model, k: int | None, tol: float, solver: str) -> int | None:
+    """Check the arguments of :func:`exact_spectrum`; ``k`` as an int (or None)."""
     if not isinstance(m, Model):
         raise TypeError(f"exact_spectrum needs a Model, got {type(m).__name__}")
     if m.is_symbolic:
@@ -218,62 +257,84 @@ def exact_spectrum(
         raise ValueError(f"solver must be 'auto', 'dense' or 'sparse', not {solver!r}")
     if solver == "sparse" and k is None:
         raise ValueError("the sparse solver needs k, the number of lowest eigenvalues wanted")
-    dense = solver == "dense" or (solver == "auto" and dim <= DENSE_LIMIT)
-    per_row = _row_count(m)
-    sparse_bytes = 64.0 * dim * per_row  # build temporaries (rows, cols, complex data) and CSR
-    if solver == "auto" and not dense and k is None:
-        raise ValueError(
-            f"dimension {dim} is too large for a full dense solve (limit {DENSE_LIMIT}; it would "
-            f"need about {_gib(3 * 16.0 * dim**2)}); pass k=... to get the k lowest eigenvalues "
-            "from the sparse solver"
-        )
+    return k
+
+
+def _dense_bytes(dim: int, per_row: int) -> float:
+    return 3 * 16.0 * dim**2 + _sparse_matrix_bytes(dim, per_row)
+
+
+def _sparse_matrix_bytes(dim: int, per_row: int) -> float:
+    return 64.0 * dim * per_row  # build temporaries (rows, cols, complex data) and CSR
+
+
+def _sparse_bytes(dim: int, per_row: int, k: int) -> float:
+    return _sparse_matrix_bytes(dim, per_row) + 16.0 * dim * (2 * k + 40)  # Lanczos basis
+
+
+def _largest_sparse_k(dim: int, per_row: int, have: float) -> int:
+    """Largest k whose sparse solve fits in ``have`` bytes (0 when even k = 1 does not)."""
+    if dim > SPARSE_LIMIT or dim < 3:
+        return 0
+    spare = have - _sparse_bytes(dim, per_row, 0)
+    return int(max(0, min(dim - 2, spare // (32.0 * dim))))
+
+
+def _check_size(m: Model, k: int | None, dense: bool, solver: str) -> None:
+    """Refuse, with :class:`TooLargeError`, a solve beyond the limits or the memory available.
+
+    The message suggests only a request that would pass these same limits.
+    """
+    dim, per_row, have = m.dimension, _row_count(m), float(available_memory())
+    top_k = _largest_sparse_k(dim, per_row, have)
     if not dense and k is not None and k > dim - 2:
         raise ValueError(f"the sparse solvers return at most dim - 2 = {dim - 2} eigenvalues")
-    lanczos_bytes = 16.0 * dim * (2 * (k or 1) + 40)
-    need = 3 * 16.0 * dim**2 + sparse_bytes if dense else sparse_bytes + lanczos_bytes
-    have = available_memory()
-    if need > have or dim > 2**31:
-        raise ValueError(
-            f"dimension {dim} with about {per_row} non-zeros per row needs about {_gib(need)}, "
-            f"but only {_gib(have)} is available: the model is too large for exact "
-            "diagonalization"
+    if k is None and not dense:
+        why = (
+            f"dimension {dim} is too large for a full dense solve (limit {DENSE_LIMIT}; it would "
+            f"need about {_gib(_dense_bytes(dim, per_row))})"
         )
-    mat = m.to_sparse()
-    scale_h = float(abs(mat).max()) if mat.nnz else 0.0
-    diff = mat - mat.conj().T
-    hermitian = (float(abs(diff).max()) if diff.nnz else 0.0) <= 1e-12 * max(scale_h, 1e-300)
-    if dense:
-        h = mat.toarray()
-        if hermitian:
-            h = (h + h.conj().T) / 2
-            vals = np.linalg.eigvalsh(h)
-            method = "dense-hermitian"
-        else:
-            vals = np.linalg.eigvals(h)
-            method = "dense-general"
-        norm1 = float(np.abs(h).sum(axis=0).max()) if dim else 0.0
-        error = dim * _EPS * norm1
-        vals = _sorted(vals, hermitian)
-        if k is not None:
-            vals = vals[:k]
+    elif dense:
+        need = _dense_bytes(dim, per_row)
+        if need <= have:
+            return
+        why = (
+            f"dimension {dim} needs about {_gib(need)} for a dense solve, but only "
+            f"{_gib(have)} is available"
+        )
     else:
         assert k is not None
-        vals, error, method = _sparse_lowest(mat, k, hermitian)
-    scale = max(1.0, float(np.abs(vals).max())) if len(vals) else 1.0
-    levels, mult = _cluster(vals, tol * scale)
-    for arr in (levels, mult, vals):
-        arr.setflags(write=False)  # the result is immutable, like every freeladder object
-    return ExactSpectrum(
-        levels=levels,
-        multiplicities=mult,
-        eigenvalues=vals,
-        method=method,
-        tolerance=tol * scale,
-        dimension=dim,
-        complete=len(vals) == dim,
-        hermitian=hermitian,
-        error_estimate=float(error),
-    )
+        need = _sparse_bytes(dim, per_row, k)
+        if dim <= SPARSE_LIMIT and need <= have:
+            return
+        why = (
+            f"dimension {dim} with about {per_row} non-zeros per row needs about {_gib(need)} "
+            f"for the {k} lowest eigenvalues, but only {_gib(have)} is available"
+            if dim <= SPARSE_LIMIT
+            else f"dimension {dim} is above {SPARSE_LIMIT}, the largest the sparse solver indexes"
+        )
+    if top_k >= 1:
+        hint = f"; pass k=1..{top_k} for the lowest eigenvalues from the sparse solver"
+    else:
+        hint = (
+            "; even the lowest eigenvalue is beyond exact diagonalization here (sparse limit "
+            f"dimension {SPARSE_LIMIT}, {_gib(have)} of memory available): the model is too "
+            "large for exact diagonalization"
+        )
+    raise TooLargeError(why + hint)
+
+
+def _dense_solve(mat: sps.sparray, hermitian: bool) -> tuple[np.ndarray, float, str]:
+    """All eigenvalues by LAPACK, with the backward-error estimate ``dim eps ||H||_1``."""
+    h = mat.toarray()
+    if hermitian:
+        vals = np.linalg.eigvalsh((h + h.conj().T) / 2)
+        method = "dense-hermitian"
+    else:
+        vals = np.linalg.eigvals(h)
+        method = "dense-general"
+    norm1 = float(np.abs(h).sum(axis=0).max()) if h.size else 0.0
+    return _sorted(vals, hermitian), h.shape[0] * _EPS * norm1, method
 
 
 def _sparse_lowest(mat: sps.sparray, k: int, hermitian: bool) -> tuple[np.ndarray, float, str]:

@@ -33,6 +33,15 @@ import scipy.sparse.csgraph as csgraph
 from .cache import cached, structure_store
 from .model import Model
 
+__all__ = [
+    "ChainStructure",
+    "chain_from_exponents",
+    "chain_structure",
+    "commutation_exponents",
+    "frustration_adjacency",
+    "frustration_graph",
+]
+
 
 def _cached(m: Model, key: str, build: Any) -> Any:
     """Compute ``build(m)`` once per list of strings (these values ignore the couplings)."""

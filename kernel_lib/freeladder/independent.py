@@ -42,6 +42,8 @@ import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
 
+__all__ = ["Algebra", "IndependenceGraph"]
+
 V = TypeVar("V")
 
 
@@ -90,6 +92,8 @@ def _bits(mask: int) -> Iterator[int]:
 class IndependenceGraph:
     """A graph prepared for independent-set work: bit-set neighbourhoods in a fixed vertex order.
 
+    Immutable once built (it is cached on models); only its private memo tables grow.
+
     Parameters
     ----------
     adjacency : scipy.sparse array or numpy array, shape (M, M)
@@ -114,6 +118,14 @@ class IndependenceGraph:
     [(0, 2), (0, 3), (1, 3)]
     """
 
+    order: tuple[int, ...]
+    size: int
+    full: int
+    _open: tuple[int, ...]
+    _closed: tuple[int, ...]
+    _memo: dict[int, tuple[Algebra[Any], dict[int, Any]]]
+    _plans: dict[int, tuple[str, Any, tuple[int, ...]]]
+
     def __init__(self, adjacency: Any, order: Sequence[int] | np.ndarray | None = None) -> None:
         adj = sps.csr_array(adjacency, dtype=bool)
         adj = sps.csr_array(adj + adj.T, dtype=bool)
@@ -128,21 +140,24 @@ class IndependenceGraph:
             perm = np.asarray(order, dtype=np.int64)
             if perm.shape != (n,) or not np.array_equal(np.sort(perm), np.arange(n)):
                 raise ValueError(f"order must be a permutation of range({n})")
-        self.order: tuple[int, ...] = tuple(int(v) for v in perm)
-        position = np.empty(n, dtype=np.int64)
-        position[np.asarray(self.order, dtype=np.int64)] = np.arange(n)
+        put = object.__setattr__  # the graph is frozen; only its memo tables grow
+        put(self, "order", tuple(int(v) for v in perm))
         permuted = sps.csr_array(adj[perm][:, perm])
-        self._open: list[int] = []
+        opened: list[int] = []
         for q in range(n):
             nb = 0
             for r in permuted.indices[permuted.indptr[q] : permuted.indptr[q + 1]]:
                 nb |= 1 << int(r)
-            self._open.append(nb)
-        self._closed = [nb | (1 << q) for q, nb in enumerate(self._open)]
-        self.size = n
-        self.full: int = (1 << n) - 1
-        self._memo: dict[int, tuple[Algebra[Any], dict[int, Any]]] = {}
-        self._plans: dict[int, tuple[str, Any, tuple[int, ...]]] = {}
+            opened.append(nb)
+        put(self, "_open", tuple(opened))
+        put(self, "_closed", tuple(nb | (1 << q) for q, nb in enumerate(opened)))
+        put(self, "size", n)
+        put(self, "full", (1 << n) - 1)
+        put(self, "_memo", {})
+        put(self, "_plans", {})
+
+    def __setattr__(self, name: str, value: Any) -> None:
+        raise AttributeError(f"IndependenceGraph is immutable (cannot set {name!r})")
 
     # -- the recursion ----------------------------------------------------------------------------
     def _component(self, start: int, mask: int) -> int:

@@ -48,7 +48,14 @@ from .scalars import (
 )
 from .strings import StringArray, WeylString, unit_phase
 
-__all__ = ["PAIR_CHUNK", "StringSum", "string_keys"]
+__all__ = [
+    "PAIR_CHUNK",
+    "Coef",
+    "Scalar",
+    "StringSum",
+    "string_keys",
+]
+
 
 _EPS = float(np.finfo(float).eps)
 

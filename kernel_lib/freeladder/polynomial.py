@@ -10,6 +10,11 @@ For an exclusion chain of reach p (terms in chain order, weights ``w_k = c_k^N``
 which is how chains are computed and evaluated here; any other frustration graph goes through
 the exact deletion / simplicial-clique recursion of :mod:`freeladder.independent`.
 
+Also here: the partial polynomials ``P_s(y) = sum_{r <= s} (-y)^r C_r`` and their certified
+roots (:meth:`ExclusionPolynomial.truncated`, :meth:`ExclusionPolynomial.roots`), and the sum
+rules ``sum eta^N = C_1``, ``sum eta^{2N} = C_1^2 - 2 C_2`` (:func:`power_sum_targets`,
+:func:`sum_rules`), the one place every check of them calls.
+
 Arithmetic is exact and chosen from the weights: integers, rationals (a float coupling stands
 for its exact binary value), Gaussian rationals (complex couplings; reported as rounded complex
 numbers) or sympy expressions (symbolic couplings).
@@ -26,7 +31,10 @@ arXiv:2012.07857 (P for claw-free frustration graphs).
 from __future__ import annotations
 
 import math
+import numbers
+import threading
 from collections.abc import Callable, Sequence
+from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any, NamedTuple
 
@@ -35,10 +43,26 @@ import numpy as np
 import sympy
 
 from .cache import model_store, structure_store
+from .errors import TooLargeError
+from .frozen import readonly_array
 from .graph import chain_structure, frustration_adjacency
 from .independent import Algebra, IndependenceGraph
+from .jsonready import json_ready
 from .model import Model
 from .scalars import exact_to_sympy, exact_value, to_fmpq, to_python_number, to_sympy
+
+__all__ = [
+    "MAX_ROOT_DEGREE",
+    "ChainData",
+    "ExclusionPolynomial",
+    "PolynomialRoots",
+    "SumRules",
+    "exclusion_polynomial",
+    "independence_graph",
+    "independent_set_counts",
+    "power_sum_targets",
+    "sum_rules",
+]
 
 _CACHE_KEY = "_freeladder_polynomial"
 _BIG = 2.0**256
@@ -165,7 +189,7 @@ def _public(value: Any, rounded: bool = False) -> Any:
     ``rounded`` (the model had float couplings): rationals are shown as their nearest float.
     """
     if rounded and isinstance(value, Fraction):
-        return float(value)
+        return _as_float(value)  # +-inf beyond the float range; exact_parts() keeps it
     if isinstance(value, tuple):
         re, im = value
         try:
@@ -187,6 +211,12 @@ class ChainData(NamedTuple):
     """p."""
     order: tuple[int, ...]
     """Term indices in chain order."""
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: weights (numbers), reach, order."""
+        return json_ready(  # type: ignore[no-any-return]
+            {"weights": self.weights, "reach": self.reach, "order": self.order}
+        )
 
 
 class ExclusionPolynomial:
@@ -215,9 +245,15 @@ class ExclusionPolynomial:
         can evaluate ``P`` through the recurrence ``P_k = P_{k-1} - y w_k P_{k-p-1}``.
     kind : str
         "integer", "rational", "gaussian" or "symbolic": the exact arithmetic used.
+    truncated_at : int or None
+        s for the partial polynomial ``P_s`` of :meth:`truncated`; None for ``P`` itself.
 
     Notes
     -----
+    Frozen: setting or deleting any attribute raises AttributeError (the object is cached on
+    its model and shared by every later call); the lazily computed coefficients are stored
+    once, under a lock, as a tuple.  :meth:`to_dict` gives the JSON-ready fields,
+    :meth:`truncated` the partial polynomials and :meth:`roots` their certified roots.
     For chains the coefficients are computed on first use (O(M S) exact operations on numbers
     that, for float couplings, grow to about 100 S bits); evaluation never needs them.
     Calling ``P(y)`` evaluates: exactly for exact ``y`` (int, Fraction, sympy) and exact
@@ -233,6 +269,17 @@ class ExclusionPolynomial:
     S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021).
     """
 
+    _rounded: bool
+    _sums_source: Callable[[], Sequence[Any]]
+    _sums: tuple[Any, ...] | None
+    _lock: threading.Lock
+    _exact_weights: tuple[Any, ...]
+    _states: int
+    _kind: str
+    _chain: tuple[tuple[Any, ...], int, tuple[int, ...]] | None
+    _degree: int | None
+    _truncated_at: int | None
+
     def __init__(
         self,
         sums: Callable[[], Sequence[Any]],
@@ -242,29 +289,68 @@ class ExclusionPolynomial:
         chain: tuple[tuple[Any, ...], int, tuple[int, ...]] | None,
         degree: int | None = None,
         rounded: bool = False,
+        truncated_at: int | None = None,
     ) -> None:
-        self._rounded = rounded
-        self._sums_source = sums
-        self._sums: tuple[Any, ...] | None = None
-        self._exact_weights = tuple(weights)
-        self.states = int(states)
-        self.kind = kind
-        self._chain = chain
-        self._degree = degree
+        put = object.__setattr__
+        put(self, "_rounded", bool(rounded))
+        put(self, "_sums_source", sums)
+        put(self, "_sums", None)
+        put(self, "_lock", threading.Lock())
+        put(self, "_exact_weights", tuple(weights))
+        put(self, "_states", int(states))
+        put(self, "_kind", str(kind))
+        put(self, "_chain", chain)
+        put(self, "_degree", degree)
+        put(self, "_truncated_at", truncated_at)
+
+    def __setattr__(self, name: str, value: Any) -> None:
+        raise AttributeError(
+            f"ExclusionPolynomial is immutable (cannot set {name!r}); build a new model instead"
+        )
+
+    def __delattr__(self, name: str) -> None:
+        raise AttributeError(f"ExclusionPolynomial is immutable (cannot delete {name!r})")
+
+    def __copy__(self) -> ExclusionPolynomial:
+        return self  # immutable: a copy is the object itself
+
+    def __deepcopy__(self, memo: dict[int, Any]) -> ExclusionPolynomial:
+        return self
+
+    @property
+    def states(self) -> int:
+        """N."""
+        return self._states
+
+    @property
+    def kind(self) -> str:
+        """The exact arithmetic used: "integer", "rational", "gaussian" or "symbolic"."""
+        return self._kind
+
+    @property
+    def truncated_at(self) -> int | None:
+        """s for a partial polynomial made by :meth:`truncated`, None for the full ``P``."""
+        return self._truncated_at
 
     @property
     def _exact_sums(self) -> tuple[Any, ...]:
-        # Computed on first use: a chain is evaluated through its recurrence without them.
+        # Computed on first use (a chain is evaluated through its recurrence without them),
+        # once, under a lock, and stored as a tuple: nothing outside can change it.
         if self._sums is None:
-            self._sums = tuple(self._sums_source())
+            with self._lock:
+                if self._sums is None:
+                    object.__setattr__(self, "_sums", tuple(self._sums_source()))
+        assert self._sums is not None
         return self._sums
 
     @property
     def degree(self) -> int:
         """Degree of P: the independence number of the frustration graph when no weight is 0."""
-        if self._degree is None:
-            self._degree = len(self._exact_sums) - 1
-        return self._degree
+        degree = self._degree
+        if degree is None:
+            degree = len(self._exact_sums) - 1
+            object.__setattr__(self, "_degree", degree)
+        return degree
 
     # -- exact data ------------------------------------------------------------------------------
     @property
@@ -313,6 +399,128 @@ class ExclusionPolynomial:
         y = sympy.Symbol("y") if symbol is None else symbol
         coeffs = [to_sympy(c) for c in self.coefficients]
         return sympy.Poly.from_list(coeffs[::-1], y)
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: degree, coefficients (numbers and exact text), kind, states ...
+
+        ``coefficients`` are numbers (``[re, im]`` for complex, ``None`` beyond the float
+        range), ``exact_coefficients`` the exact values as text (``"3/4"``, ``"1/2 + 3*I"``,
+        sympy text for symbolic ones), both in ascending powers of y, signs included.
+        """
+        exact = [c if s % 2 == 0 else _negate(c) for s, c in enumerate(self._exact_sums)]
+        chain = self._chain
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "degree": self.degree,
+                "kind": self.kind,
+                "states": self.states,
+                "coefficients": [_as_number(c) for c in exact],
+                "exact_coefficients": [sympy.sstr(exact_to_sympy(c)) for c in exact],
+                "truncated_at": self.truncated_at,
+                "chain_reach": None if chain is None else chain[1],
+            }
+        )
+
+    # -- partial polynomials and their roots ------------------------------------------------------
+    def truncated(self, order: int) -> ExclusionPolynomial:
+        """The partial polynomial ``P_s(y) = sum_{r <= s} (-y)^r C_r``, s = ``order``.
+
+        Adding the orders one by one shows how the roots of ``P_s`` approach those of ``P``;
+        for ``order >= degree`` the partial polynomial is ``P`` itself (this object).
+
+        Parameters
+        ----------
+        order : int
+            s >= 0.
+
+        Returns
+        -------
+        ExclusionPolynomial
+            Frozen, with the same weights, N and kind; ``truncated_at == order``; no chain data
+            (the recurrence gives only the full polynomial).
+
+        Raises
+        ------
+        TypeError, ValueError
+            For a non-integer or negative order.
+
+        Examples
+        --------
+        >>> import freeladder as fl
+        >>> P = fl.exclusion_polynomial(fl.exclusion_chain(5, reach=1))
+        >>> P.coefficients, P.truncated(1).coefficients
+        ((1, -5, 6, -1), (1, -5))
+        >>> P.truncated(7) is P
+        True
+        """
+        if isinstance(order, bool) or not isinstance(order, numbers.Integral):
+            raise TypeError(f"the order of a partial polynomial is an integer, got {order!r}")
+        s = int(order)
+        if s < 0:
+            raise ValueError(f"the order of a partial polynomial must be >= 0, got {s}")
+        if s >= self.degree:
+            return self
+        head = self._exact_sums[: s + 1]
+        while len(head) > 1 and head[-1] == 0:
+            head = head[:-1]
+        return ExclusionPolynomial(
+            lambda: head,
+            self._exact_weights,
+            self.states,
+            self.kind,
+            None,
+            rounded=self._rounded,
+            truncated_at=s,
+        )
+
+    def roots(self, tolerance: float = 1e-12) -> PolynomialRoots:
+        """All complex roots of this polynomial, certified (balls of python-flint / Arb).
+
+        Meant for polynomials of moderate degree, such as the partial polynomials of
+        :meth:`truncated` shown order by order.  Spectra of long chains come from
+        :func:`freeladder.free_spectrum`, which never expands the coefficients.
+
+        Parameters
+        ----------
+        tolerance : float
+            Requested absolute accuracy of each root (Gaussian kind); the rational kinds are
+            isolated to about 15 significant digits.
+
+        Returns
+        -------
+        PolynomialRoots
+            Values, certified radii, multiplicities.
+
+        Raises
+        ------
+        TypeError
+            For symbolic coefficients (substitute numbers first).
+        TooLargeError
+            Above :data:`MAX_ROOT_DEGREE`.
+        ValueError
+            When the Gaussian-rational root isolation fails (multiple roots).
+
+        Notes
+        -----
+        Expanded coefficients are useless in floating point beyond a few dozen terms (numpy's
+        companion-matrix roots of a 90-term chain polynomial are off by 8e-2); here the exact
+        coefficients enter ball arithmetic, so each root comes with a proven radius.  Integer
+        and rational coefficients use ``fmpq_poly.complex_roots`` (multiplicities included);
+        Gaussian rationals ``acb_poly.roots`` on the exact dyadic values, which needs
+        squarefree input.
+
+        References
+        ----------
+        F. Johansson, IEEE Trans. Comput. 66, 1281 (2017) (Arb ball arithmetic).
+
+        Examples
+        --------
+        >>> import freeladder as fl
+        >>> r = fl.exclusion_polynomial(fl.exclusion_chain(3, reach=1)).roots()  # 1 - 3y + y^2
+        >>> [round(float(v.real), 11) for v in r.values], r.multiplicities
+        ([0.38196601125, 2.61803398875], (1, 1))
+        """
+        return _certified_roots(self, float(tolerance))
 
     # -- evaluation ------------------------------------------------------------------------------
     def __call__(self, y: Any) -> Any:
@@ -426,6 +634,29 @@ def _to_exact_number(w: Any) -> Any:
     return w
 
 
+def _negate(c: Any) -> Any:
+    """``-c`` for the exact values of :func:`_exact` (Gaussian rationals are pairs)."""
+    if isinstance(c, tuple):
+        return (-c[0], -c[1])
+    return -c
+
+
+def _as_number(c: Any) -> Any:
+    """An exact value as a float or complex (inf beyond the float range); sympy stays."""
+    if isinstance(c, sympy.Basic):
+        return c
+    if isinstance(c, tuple):
+        return complex(_as_float(c[0]), _as_float(c[1]))
+    return c if isinstance(c, int) and abs(c) < 2**53 else _as_float(c)
+
+
+def _as_float(c: Any) -> float:
+    try:
+        return float(c)
+    except OverflowError:
+        return math.inf if c > 0 else -math.inf
+
+
 def _short_text(c: Any) -> str:
     """A coefficient for display: exact when short, about 6 digits (marked ``~``) when long."""
     if isinstance(c, sympy.Basic):
@@ -520,6 +751,341 @@ def _chain_scaled(
     return value * np.ldexp(1.0, -frac_exp), expo + frac_exp
 
 
+# -- roots of moderate degree ----------------------------------------------------------------------
+MAX_ROOT_DEGREE = 120
+"""Largest degree :meth:`ExclusionPolynomial.roots` accepts (about 0.5 s at degree 100)."""
+
+
+@dataclass(frozen=True)
+class PolynomialRoots:
+    """Certified complex roots of a polynomial of moderate degree (immutable).
+
+    Attributes
+    ----------
+    values : numpy.ndarray of complex (read-only)
+        The distinct roots, midpoints of their balls, sorted by real then imaginary part.
+    error_bounds : numpy.ndarray of float (read-only)
+        Proven bounds on ``|value - root|``: radius of the real part plus radius of the
+        imaginary part of each ball, plus the rounding of the midpoint to float64.
+    multiplicities : tuple of int
+    degree : int
+    rigorous : bool
+        Always True here: each ball is proven to hold exactly one distinct root.
+    method : str
+    message : str
+    """
+
+    values: np.ndarray
+    error_bounds: np.ndarray
+    multiplicities: tuple[int, ...]
+    degree: int
+    rigorous: bool
+    method: str
+    message: str
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "values", readonly_array(self.values, dtype=complex))
+        object.__setattr__(self, "error_bounds", readonly_array(self.error_bounds, dtype=float))
+        object.__setattr__(self, "multiplicities", tuple(int(k) for k in self.multiplicities))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields (complex values as ``[re, im]``)."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "values": self.values.astype(complex),
+                "error_bounds": self.error_bounds,
+                "multiplicities": self.multiplicities,
+                "degree": self.degree,
+                "rigorous": self.rigorous,
+                "method": self.method,
+                "message": self.message,
+            }
+        )
+
+    def __repr__(self) -> str:
+        shown = ", ".join(f"{complex(v):.6g}" for v in self.values[:6])
+        more = ", ..." if len(self.values) > 6 else ""
+        return (
+            f"PolynomialRoots(degree={self.degree}, {len(self.values)} distinct: [{shown}{more}], "
+            f"max error bound {float(np.max(self.error_bounds, initial=0.0)):.2g})"
+        )
+
+
+def _certified_roots(poly: ExclusionPolynomial, tolerance: float) -> PolynomialRoots:
+    if poly.kind == "symbolic":
+        raise TypeError(
+            "the roots of a symbolic polynomial need numbers: substitute the couplings first "
+            "(Model.subs)"
+        )
+    if poly.degree > MAX_ROOT_DEGREE:
+        raise TooLargeError(
+            f"degree {poly.degree} exceeds MAX_ROOT_DEGREE = {MAX_ROOT_DEGREE} for expanded "
+            "coefficients; use truncated(s) with a smaller s, or freeladder.free_spectrum, "
+            "which evaluates the chain recurrence instead"
+        )
+    re, im = poly.exact_parts()
+    if poly.degree == 0:
+        empty = np.zeros(0)
+        return PolynomialRoots(empty.astype(complex), empty, (), 0, True, "constant", "no roots")
+    balls: list[Any]  # (ball, multiplicity) pairs
+    if poly.kind != "gaussian":
+        balls = list(flint.fmpq_poly([to_fmpq(c) for c in re]).complex_roots())
+        method = "python-flint fmpq_poly.complex_roots (Arb balls)"
+    else:
+        bits = max(
+            max(abs(c.numerator).bit_length(), c.denominator.bit_length()) for c in (*re, *im)
+        )
+        old = flint.ctx.prec
+        try:
+            flint.ctx.prec = max(old, bits + 64)
+            coefficients = [
+                flint.acb(flint.arb(to_fmpq(a)), flint.arb(to_fmpq(b)))
+                for a, b in zip(re, im, strict=True)
+            ]
+            try:
+                found: list[Any] = flint.acb_poly(coefficients).roots(tol=tolerance)
+            except ValueError as err:
+                raise ValueError(
+                    f"the roots of this degree-{poly.degree} Gaussian-rational polynomial could "
+                    f"not be isolated ({err}); multiple roots are not supported for complex "
+                    "couplings"
+                ) from None
+        finally:
+            flint.ctx.prec = old
+        balls = [(ball, 1) for ball in found]
+        method = "python-flint acb_poly.roots (Arb balls)"
+    values = np.array([complex(float(b.real.mid()), float(b.imag.mid())) for b, _ in balls])
+    # Ball radii, plus the rounding of each midpoint to float64, rounded up once more.
+    eps = float(np.finfo(np.float64).eps)
+    radii = np.array([float(b.real.rad()) + float(b.imag.rad()) for b, _ in balls]) + eps * (
+        np.abs(values.real) + np.abs(values.imag)
+    )
+    radii = radii * (1 + 4 * eps)
+    mult = [int(k) for _, k in balls]
+    order = np.lexsort((values.imag, values.real))
+    return PolynomialRoots(
+        values[order],
+        radii[order],
+        tuple(mult[i] for i in order),
+        poly.degree,
+        True,
+        method,
+        f"{len(values)} distinct roots, each isolated in a proven ball",
+    )
+
+
+# -- sum rules -----------------------------------------------------------------------------------
+@dataclass(frozen=True)
+class SumRules:
+    """The sum rules ``sum eta^N = C_1`` and ``sum eta^{2N} = C_1^2 - 2 C_2`` for given values.
+
+    Attributes
+    ----------
+    targets : tuple of two sympy numbers (or expressions)
+        The exact right-hand sides ``C_1`` and ``C_1^2 - 2 C_2``.
+    sums : tuple of two complex
+        ``sum eta_k^N`` and ``sum eta_k^{2N}`` over the given quasi-energies (floating point).
+    residuals : tuple of two float
+        ``|sum - target| / max(sum |eta_k|^{jN}, |target|)`` for j = 1, 2 (relative; computed
+        with every quantity divided by a common power of two, so nothing overflows).
+    count : int
+        Number of quasi-energies given.
+    """
+
+    targets: tuple[Any, Any]
+    sums: tuple[complex, complex]
+    residuals: tuple[float, float]
+    count: int
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields; the exact targets also as text."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "targets": self.targets,
+                "exact_targets": [sympy.sstr(t) for t in self.targets],
+                "sums": self.sums,
+                "residuals": self.residuals,
+                "count": self.count,
+            }
+        )
+
+
+def _exact_targets(poly: ExclusionPolynomial) -> tuple[Any, Any]:
+    """``C_1`` and ``C_1^2 - 2 C_2`` exactly, in the internal exact form.
+
+    For a full chain polynomial, from the weights in O(p M): ``C_1^2 - 2 C_2 = sum w^2 +
+    2 sum_{0<d<=p} sum_k w_k w_{k+d}`` (the pairs that are not independent); otherwise from
+    the coefficients ``C_1, C_2``.
+    """
+    if poly._chain is not None and poly.truncated_at is None:
+        w, p, _ = poly._chain
+        if poly.kind != "symbolic":
+            fast = _integer_chain_targets(w, p)
+            if fast is not None:
+                return fast
+        c1: Any = 0
+        for v in w:
+            c1 = _plus(c1, v)
+        second: Any = 0
+        for k, v in enumerate(w):
+            second = _plus(second, _times(v, v))
+            for d in range(1, p + 1):
+                if k + d < len(w):
+                    second = _plus(second, _times(2, _times(v, w[k + d])))
+        return c1, second
+    sums = poly._exact_sums
+    c1 = sums[1] if len(sums) > 1 else 0
+    c2 = sums[2] if len(sums) > 2 else 0
+    return c1, _plus(_times(c1, c1), _times(-2, c2))
+
+
+def _integer_chain_targets(w: Sequence[Any], p: int) -> tuple[Any, Any] | None:
+    """The chain targets over a common denominator, in Python integers (fast for 10^5 terms).
+
+    Float couplings give dyadic weights, whose common denominator is the largest one.  None
+    when the common denominator would exceed 4096 bits (then exact Fractions are used).
+    """
+    # ints and Fractions both have .numerator and .denominator; no re-wrapping (it dominates).
+    re = [v[0] if isinstance(v, tuple) else v for v in w]
+    im = [v[1] if isinstance(v, tuple) else 0 for v in w]
+    den = 1
+    for x in {x.denominator for x in (*re, *im)}:
+        den = math.lcm(den, x)
+        if den.bit_length() > 4096:
+            return None
+    a = [x.numerator * (den // x.denominator) for x in re]
+    b = [x.numerator * (den // x.denominator) for x in im]
+    s1 = (sum(a), sum(b))
+    sr = sum(x * x for x in a) - sum(x * x for x in b)
+    si = 2 * sum(x * y for x, y in zip(a, b, strict=True))
+    for d in range(1, p + 1):  # pairs (k, k + d): zip stops at the shorter, on purpose
+
+        def dot(u: list[int], v: list[int], shift: int = d) -> int:
+            return sum(x * y for x, y in zip(u, v[shift:], strict=False))
+
+        sr += 2 * (dot(a, a) - dot(b, b))
+        si += 2 * (dot(a, b) + dot(b, a))
+
+    def value(re_num: int, im_num: int, scale: int) -> Any:
+        r, i = Fraction(re_num, scale), Fraction(im_num, scale)
+        if i != 0:
+            return (r, i)
+        return r.numerator if r.denominator == 1 else r
+
+    return value(*s1, den), value(sr, si, den * den)
+
+
+def _plus(a: Any, b: Any) -> Any:
+    """Exact sum of two values of :func:`_exact`."""
+    if isinstance(a, tuple) or isinstance(b, tuple):
+        ar, ai = a if isinstance(a, tuple) else (a, 0)
+        br, bi = b if isinstance(b, tuple) else (b, 0)
+        return (Fraction(ar + br), Fraction(ai + bi)) if ai + bi != 0 else Fraction(ar + br)
+    total = a + b
+    return sympy.expand(total) if isinstance(total, sympy.Basic) else total
+
+
+def power_sum_targets(poly: ExclusionPolynomial) -> tuple[Any, Any]:
+    """The exact sums ``sum_k 1/y_k = C_1`` and ``sum_k 1/y_k^2 = C_1^2 - 2 C_2``.
+
+    With ``eta_k^N = 1 / y_k`` these are the sum rules ``sum eta^N`` and ``sum eta^{2N}``
+    that the quasi-energies of a free spectrum obey (Newton's identities applied to
+    ``P(y) = prod_k (1 - y / y_k)``; common practice).
+
+    Parameters
+    ----------
+    poly : ExclusionPolynomial
+        Full or partial; any kind (symbolic targets are sympy expressions).
+
+    Returns
+    -------
+    tuple of two sympy values
+        Exact.  For chains computed from the weights in O(p M), without the coefficients.
+
+    Examples
+    --------
+    >>> import freeladder as fl
+    >>> power_sum_targets(fl.exclusion_polynomial(fl.exclusion_chain(4, reach=1)))
+    (4, 10)
+    """
+    if not isinstance(poly, ExclusionPolynomial):
+        raise TypeError(f"expected an ExclusionPolynomial, got {type(poly).__name__}")
+    t1, t2 = _exact_targets(poly)
+    return exact_to_sympy(t1), exact_to_sympy(t2)
+
+
+def sum_rules(poly: ExclusionPolynomial, quasi_energies: Any) -> SumRules:
+    """Check given quasi-energies against the sum rules of ``poly``.
+
+    Parameters
+    ----------
+    poly : ExclusionPolynomial
+        Numeric couplings.
+    quasi_energies : array_like of complex
+        All eta_k (``eta_k^N = 1 / y_k``), e.g. ``free_spectrum(m).quasi_energies``.
+
+    Returns
+    -------
+    SumRules
+        Exact targets, the floating-point sums and their relative residuals.
+
+    Raises
+    ------
+    TypeError
+        For symbolic couplings.
+
+    Notes
+    -----
+    ``sum eta^N = C_1`` and ``sum eta^{2N} = C_1^2 - 2 C_2`` are Newton's identities for the
+    reciprocal roots of ``P`` (common practice).  Both sides are divided by ``2^{je}``
+    (``2^e`` about the largest weight) before rounding, so couplings near the float range
+    neither overflow nor underflow.
+
+    Examples
+    --------
+    >>> import numpy as np, freeladder as fl
+    >>> P = fl.exclusion_polynomial(fl.exclusion_chain(3, reach=1))   # 1 - 3y + y^2
+    >>> eta = 1 / np.sqrt(np.array([(3 - 5**0.5) / 2, (3 + 5**0.5) / 2]))
+    >>> r = sum_rules(P, eta)
+    >>> r.targets, max(r.residuals) < 1e-15
+    ((3, 7), True)
+    """
+    if not isinstance(poly, ExclusionPolynomial):
+        raise TypeError(f"expected an ExclusionPolynomial, got {type(poly).__name__}")
+    if poly.kind == "symbolic":
+        raise TypeError("sum rules are checked numerically; substitute the couplings first")
+    eta = np.asarray(quasi_energies, dtype=complex).ravel()
+    t1, t2 = _exact_targets(poly)
+    n = poly.states
+    # e ~ log2 of the largest weight (within 1: only a common scale is needed).
+    e = max(
+        (
+            v.numerator.bit_length() - v.denominator.bit_length()
+            for w in poly._exact_weights
+            for v in (w if isinstance(w, tuple) else (w,))
+            if v != 0
+        ),
+        default=0,
+    )
+    with np.errstate(over="ignore", under="ignore"):
+        x = (eta * np.exp2(-e / n)) ** n  # eta^N / 2^e
+    sums, residuals = [], []
+    for j, target in ((1, t1), (2, t2)):
+        want = complex(_as_number(_times(target, Fraction(1, 2) ** (j * e))))
+        got = complex((x**j).sum())
+        size = max(float((np.abs(x) ** j).sum()), abs(want), 1e-300)
+        residuals.append(float(abs(got - want) / size))
+        with np.errstate(over="ignore"):
+            factor = float(np.exp2(float(j * e)))  # inf beyond the float range
+        sums.append(complex(got.real and got.real * factor, got.imag and got.imag * factor))
+    return SumRules(
+        (exact_to_sympy(t1), exact_to_sympy(t2)),
+        (sums[0], sums[1]),
+        (residuals[0], residuals[1]),
+        int(eta.size),
+    )
+
+
 # -- construction --------------------------------------------------------------------------------
 def _chain_sums(ring: _Ring, weights: Sequence[Any], reach: int) -> list[Any]:
     """C_s of a chain from the recurrence ``I_k = I_{k-1} + x w_k I_{k-p-1}`` (``I = P(-x)``).
@@ -566,6 +1132,19 @@ def _graph_sums(ring: _Ring, graph: IndependenceGraph, weights: Sequence[Any]) -
         lambda q, a: mono[q] * a,
     )
     return ring.exact_coefficients(graph.evaluate(algebra))
+
+
+def independent_set_counts(graph: IndependenceGraph) -> tuple[int, ...]:
+    """Number of independent sets of each size 0 .. alpha (the unit-weight polynomial).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> independent_set_counts(IndependenceGraph(np.eye(4, k=1) + np.eye(4, k=-1)))  # path
+    (1, 4, 3)
+    """
+    counts = _graph_sums(_Ring("integer"), graph, [1] * graph.size) if graph.size else [1]
+    return tuple(int(c) for c in counts)
 
 
 def independence_graph(m: Model) -> IndependenceGraph:
@@ -632,8 +1211,12 @@ def exclusion_polynomial(m: Model) -> ExclusionPolynomial:
 
 def _build(m: Model) -> ExclusionPolynomial:
     n = m.states
-    weights = []
+    weights: list[Any] = []
     for j, c in enumerate(m.couplings):
+        if type(c) is float and math.isfinite(c):  # fast path: long chains of float couplings
+            num, den = c.as_integer_ratio()
+            weights.append(Fraction(num**n, den**n))
+            continue
         try:
             weights.append(_power(exact_value(c), n))
         except (TypeError, ValueError) as err:

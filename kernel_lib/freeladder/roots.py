@@ -2,20 +2,19 @@
 
 API (plain functions on numpy arrays; no Model needed)
 -----------------------------------------------------
-``chain_real_roots(weights, reach, lowest=None, *, rtol=..., progress=None) -> RealRoots``
+``chain_real_roots(weights, reach, lowest=None, *, rtol=..., max_sweeps=..., progress=None)``
     All roots (or, with ``lowest=k``, the k LARGEST roots y, i.e. the k smallest
     quasi-energies eta = y**(-1/N)) of ``P_M(y)``, where
     ``P_k = P_{k-1} - y w_k P_{k-p-1}``, ``P_k = 1`` for ``k <= 0``, for real positive
     weights ``w_k`` (N = 2 real couplings: ``w = c**2``).  Raises ``ValueError`` naming the
     first offending index for weights that are not finite and > 0 (use the complex path in
     ``spectrum.py`` for those).
-``RealRoots`` (frozen dataclass)
+``RealRoots`` (frozen dataclass, returned by ``chain_real_roots``)
     ``roots``: float64 array, ascending; ``errors``: per-root absolute error estimates
-    (not proofs; ``certify.certify_chain_roots`` turns them into proofs);
-    ``iterations``: sweeps over the chain; ``method``: text; ``count``: number of roots of the
-    whole polynomial (``S``); ``indices``: 0-based positions of ``roots`` among all ``S``
-    roots in ascending order; ``residual_counts_ok``: bool, the count check at the ends of
-    each enclosure passed.
+    (not proofs; ``certify.certify_chain_roots`` turns them into proofs); ``indices``: 0-based
+    positions of ``roots`` among all ``S`` roots in ascending order; ``count``: ``S``;
+    ``sweeps``: passes over the chain; ``evaluations``: points evaluated; ``converged``;
+    ``method``; ``message``.
 ``chain_count_below(weights, reach, y) -> int64 array``
     Number of negative ratios ``P_k(y) / P_{k-1}(y)`` along the recurrence, for each y
     (the number of roots below y, see Notes).
@@ -96,6 +95,7 @@ __all__ = [
     "chain_inverse_power_sums",
     "chain_real_roots",
     "chain_root_count",
+    "check_chain_weights",
 ]
 
 _TINY = 2.0**-300
@@ -209,7 +209,7 @@ def _sweep_serial(
         _block(w, p, x, b, deriv, counts, first, second)
 
 
-def _check_chain(weights: Any, reach: Any) -> tuple[np.ndarray, int]:
+def check_chain_weights(weights: Any, reach: Any) -> tuple[np.ndarray, int]:
     """Validate real positive weights and the reach; return a contiguous float64 copy."""
     if isinstance(reach, bool) or int(reach) != reach or int(reach) < 1:
         raise ValueError(f"reach must be an integer >= 1, got {reach!r}")
@@ -290,7 +290,7 @@ def chain_count_below(weights: Any, reach: int, y: Any) -> np.ndarray:
     >>> int(chain_count_below([1.0, 1.0], 1, 1.0))  # P_2 = 1 - 2y, root 1/2
     1
     """
-    w, p = _check_chain(weights, reach)
+    w, p = check_chain_weights(weights, reach)
     y_arr = np.asarray(y, dtype=np.float64)
     if not np.all(np.isfinite(y_arr)):
         raise ValueError("evaluation points must be finite")
@@ -309,7 +309,7 @@ def chain_inverse_power_sums(weights: Any, reach: int) -> tuple[float, float]:
     independent terms).  Both follow from ``P(y) = prod (1 - y / y_k)`` (Newton's identities).
     For N = 2 they are ``sum eta**2`` and ``sum eta**4``.
     """
-    w, p = _check_chain(weights, reach)
+    w, p = check_chain_weights(weights, reach)
     c1 = float(np.sum(w))
     near = sum(float(np.dot(w[:-d], w[d:])) for d in range(1, min(p, w.size - 1) + 1))
     c2 = 0.5 * (c1 * c1 - float(np.dot(w, w))) - near
@@ -433,7 +433,7 @@ def chain_real_roots(
     >>> np.allclose(r.roots, 1 / (4 * np.cos(np.pi * np.array([1, 2]) / 5) ** 2))
     True
     """
-    w, p = _check_chain(weights, reach)
+    w, p = check_chain_weights(weights, reach)
     total = chain_root_count(w.size, p)
     if lowest is None:
         first = 0

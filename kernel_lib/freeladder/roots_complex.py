@@ -39,6 +39,17 @@ import numpy as np
 
 from .roots import chain_real_roots
 
+__all__ = [
+    "ComplexChainRoots",
+    "aberth_chain_roots",
+    "certified_complex_roots",
+    "chain_degree",
+    "default_start",
+    "evaluate_chain",
+    "inclusion_radii",
+    "modulus_estimates",
+]
+
 _U = np.finfo(float).eps / 2
 _BLOCK = 2_000_000  # entries per block of the O(n^2) pairwise sums
 _SAFETY = 4.0  # factor on the statistical rounding-error estimate

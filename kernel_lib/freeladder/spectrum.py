@@ -35,10 +35,10 @@ import numpy as np
 from . import certify, roots
 from .ed import DENSE_LIMIT
 from .errors import NoTheoremError
-from .graph import ChainStructure, chain_structure, frustration_adjacency
+from .graph import ChainStructure, chain_structure
 from .jsonready import json_ready
 from .model import Model
-from .polynomial import exclusion_polynomial
+from .polynomial import exclusion_polynomial, sum_rules
 from .roots_complex import aberth_chain_roots, certified_complex_roots
 from .verdict import Guarantee, classify, guarantee
 
@@ -240,7 +240,7 @@ class FreeSpectrum:
         ``1 / y_k`` (complex array): the set of levels ``{sum_k omega^{s_k} eta_k}`` does not
         depend on which N-th root is taken, since the choices ``s_k`` run over all of them.
     error_bounds : ndarray of float
-        Per quasi-energy: bound (or estimate, see ``provenance["bounds"]``) on the distance to
+        Per quasi-energy: bound (or estimate, see ``provenance.bounds``) on the distance to
         the nearest N-th root of the exact ``1 / y_k``.
     constant : complex or float
         The model's constant term, included in every level.
@@ -752,7 +752,7 @@ def free_spectrum(
         reach=None if chain is None else int(chain.reach),
         count=count,
         max_error_bound=float(np.max(eta_err)) if len(eta_err) else 0.0,
-        sum_rules=_sum_rules(m, couplings, x_vals, chain) if complete else None,
+        sum_rules=_residuals(m, eta) if complete else None,
         seconds=time.perf_counter() - start_time,
         finder=prov,
     )
@@ -760,6 +760,12 @@ def free_spectrum(
     return FreeSpectrum(
         y_vals, eta, eta_err, constant, n, len(m.sites), degeneracy, reason, complete, provenance
     )
+
+
+def _residuals(m: Model, eta: np.ndarray) -> dict[str, float]:
+    """Relative residuals of the two power-sum rules (:func:`freeladder.polynomial.sum_rules`)."""
+    first, second = sum_rules(exclusion_polynomial(m), eta).residuals
+    return {"sum eta^N": float(first), "sum eta^2N": float(second)}
 
 
 def _checked_request(m: Model, method: str, lowest: int | None) -> np.ndarray:
@@ -946,25 +952,3 @@ def _degeneracy(m: Model, proven: bool, count: int) -> tuple[int | None, str]:
         f"independent strings under a free-spectrum theorem: every level has multiplicity "
         f"dim / N^S = {m.states}^{spare}"
     )
-
-
-def _sum_rules(m: Model, couplings: np.ndarray, x: np.ndarray, chain: Any) -> dict[str, float]:
-    """Relative residuals of ``sum x_k = C_1`` and ``sum x_k^2 = C_1^2 - 2 C_2``."""
-    w = couplings**m.states
-    top = float(np.abs(w).max()) or 1.0
-    w, x = w / top, x / top  # both rules are homogeneous; this avoids overflow
-    c1 = w.sum()
-    if chain is not None:
-        wc = w[chain.order]
-        pairs = sum((wc[:-d] * wc[d:]).sum() for d in range(1, chain.reach + 1) if d < len(wc))
-    else:
-        adj = frustration_adjacency(m)
-        pairs = 0.5 * (w @ (adj.astype(float) @ w))
-    second = (w**2).sum() + 2.0 * pairs  # = C_1^2 - 2 C_2
-    s1, s2 = x.sum(), (x**2).sum()
-    scale1 = max(float(np.abs(x).sum()), 1e-300)
-    scale2 = max(float((np.abs(x) ** 2).sum()), 1e-300)
-    return {
-        "sum eta^N": float(abs(s1 - c1) / scale1),
-        "sum eta^2N": float(abs(s2 - second) / scale2),
-    }

@@ -36,6 +36,7 @@ import scipy.sparse as sps
 
 __all__ = [
     "MAX_STATES",
+    "BlockFill",
     "SiteLabel",
     "StringArray",
     "WeylString",

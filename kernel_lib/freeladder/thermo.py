@@ -29,20 +29,25 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
+from .frozen import readonly_array
+from .jsonready import json_ready
 from .spectrum import FreeSpectrum
+
+__all__ = ["Thermodynamics", "log_partition_function", "thermodynamics"]
 
 
 @dataclass(frozen=True)
 class Thermodynamics:
-    """Per-site thermodynamic functions on a grid of temperatures (units with k_B = 1).
+    """Per-site thermodynamic functions on a grid of temperatures (units with k_B = 1; frozen).
 
     Attributes
     ----------
-    temperature : ndarray
-    free_energy, energy, entropy, specific_heat : ndarray
+    temperature : ndarray (read-only)
+    free_energy, energy, entropy, specific_heat : ndarray (read-only)
         Per site, same shape as ``temperature``.
     sites : int
         The number of sites divided by.
@@ -54,6 +59,24 @@ class Thermodynamics:
     entropy: np.ndarray
     specific_heat: np.ndarray
     sites: int
+
+    def __post_init__(self) -> None:
+        for name in ("temperature", "free_energy", "energy", "entropy", "specific_heat"):
+            object.__setattr__(self, name, readonly_array(getattr(self, name), dtype=float))
+        object.__setattr__(self, "sites", int(self.sites))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields (lists of floats, one per temperature)."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "temperature": self.temperature,
+                "free_energy": self.free_energy,
+                "energy": self.energy,
+                "entropy": self.entropy,
+                "specific_heat": self.specific_heat,
+                "sites": self.sites,
+            }
+        )
 
 
 def _temperatures(temperature: float | np.ndarray) -> np.ndarray:

@@ -692,7 +692,7 @@ def _pauli_component(
     key = tuple(terms)
     root = line_graph_root(adjacency, terms)
     if isinstance(root, LineGraphRoot):
-        return _jordan_wigner(m, key, root, first_mode), first_mode + root.n_modes
+        return _jordan_wigner(key, root, first_mode), first_mode + root.n_modes
     not_line = (
         f"It is not a line graph: term {root.term} ({_string_text(m, root.term)}) and its "
         f"non-commuting partners among the terms placed before it ({_list(root.partners)}) "
@@ -756,9 +756,7 @@ def _pauli_component(
     return comp, first_mode
 
 
-def _jordan_wigner(
-    m: Model, key: tuple[int, ...], root: LineGraphRoot, first_mode: int
-) -> ComponentVerdict:
+def _jordan_wigner(key: tuple[int, ...], root: LineGraphRoot, first_mode: int) -> ComponentVerdict:
     pairs = {t: (a + first_mode, b + first_mode) for t, (a, b) in root.pairs.items()}
     cycles = tuple(tuple(c) for c in root.cycles())
     reasons = [

@@ -38,7 +38,7 @@ Commun. Math. Phys. 388, 969 (2021), arXiv:2012.07857; P. Fendley, J. Phys. A 52
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from itertools import combinations
 from typing import Any
@@ -51,11 +51,26 @@ from flint import fmpq, fmpq_mat
 
 from .charges import charge_series
 from .cyclotomic import CyclotomicField, Element
+from .frozen import readonly_mapping
 from .graph import chain_structure, commutation_exponents, frustration_adjacency
+from .jsonready import json_ready
 from .model import Model
 from .polynomial import exclusion_polynomial
 from .scalars import to_fmpq
 from .strings import WeylString, make_string, unit_phase
+
+__all__ = [
+    "MAX_COORDINATES",
+    "MAX_WORK",
+    "Monomial",
+    "Product",
+    "SweepResult",
+    "Witness",
+    "commutator_sweep",
+    "field_of",
+    "inversion_sweep",
+    "run",
+]
 
 MAX_COORDINATES = 600
 """Largest number of rational coordinates (states times field degree) in one step."""
@@ -78,7 +93,7 @@ class Product:
 
 @dataclass(frozen=True)
 class Witness:
-    """A word whose coefficient is not zero.
+    """A word whose coefficient is not zero (frozen).
 
     Attributes
     ----------
@@ -86,7 +101,7 @@ class Witness:
         The exponent of every term, in the model's term order.
     string : WeylString
         The word as a normalised operator string (``g^N = 1``).
-    coefficients : dict
+    coefficients : mapping (read-only)
         Key -> coefficient of :attr:`string` (rounded to complex); the keys are monomial
         exponents of the spectral parameters, or what the caller maps them to.
     independent : bool
@@ -96,8 +111,23 @@ class Witness:
 
     word: tuple[int, ...]
     string: WeylString
-    coefficients: dict[tuple[int, ...], complex]
+    coefficients: Mapping[tuple[int, ...], complex]
     independent: bool
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "word", tuple(int(v) for v in self.word))
+        object.__setattr__(self, "coefficients", readonly_mapping(self.coefficients))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields; coefficient keys become their text (``"(1, 0)"``)."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "word": self.word,
+                "string": str(self.string),
+                "coefficients": {str(k): v for k, v in self.coefficients.items()},
+                "independent": self.independent,
+            }
+        )
 
     def __repr__(self) -> str:
         shown = ", ".join(f"{k}: {c:.6g}" for k, c in sorted(self.coefficients.items())[:4])
@@ -108,7 +138,7 @@ class Witness:
 
 @dataclass(frozen=True)
 class SweepResult:
-    """What a sweep established.
+    """What a sweep established (frozen).
 
     Attributes
     ----------
@@ -133,6 +163,22 @@ class SweepResult:
     rank: int
     order: tuple[int, ...]
     witness: Witness | None = None
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "order", tuple(int(v) for v in self.order))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields (the witness as a nested dict, or None)."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "vanishes": self.vanishes,
+                "points": self.points,
+                "coordinates": self.coordinates,
+                "rank": self.rank,
+                "order": self.order,
+                "witness": self.witness,
+            }
+        )
 
     def __repr__(self) -> str:
         size = f"{self.points} points, {self.coordinates} coordinates, rank <= {self.rank}"
