@@ -29,7 +29,7 @@ from freeladder.errors import NoTheoremError
 from freeladder.operators import StringSum
 from freeladder.printing import format_terms
 from freeladder.references import CHUDNOVSKY_SEYMOUR_2007
-from freeladder.verify import Check, hamiltonian_check
+from freeladder.verification import Check, hamiltonian_check
 
 __all__ = [
     "CLAW_FREE_KINDS",

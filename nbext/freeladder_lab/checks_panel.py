@@ -84,7 +84,7 @@ def report_html(report: fl.Report) -> str:
             )
             + "</tr>"
             + f"<tr><td></td><td colspan='6' style='padding:0 8px 4px 8px; font-size:11.5px;"
-            f" color:#4f5d64'>{escape(c.detail)}</td></tr>"
+            f" color:#4f5d64'>{escape(c.detail)}{_traceback(c)}</td></tr>"
         )
     ran = [c for c in report.checks if c.passed is not None]
     failed = [c for c in ran if not c.passed]
@@ -100,4 +100,15 @@ def report_html(report: fl.Report) -> str:
         "<table style='border-collapse:collapse; font-size:12.5px; width:100%'>"
         f"<tr>{head}</tr>{''.join(rows)}</table>"
         f"<div style='font-size:12px; margin-top:4px'>{notes}</div>"
+    )
+
+
+def _traceback(c: fl.Check) -> str:
+    """A crashed check's traceback, folded (a crash counts as a failure)."""
+    text = c.traceback
+    if not text:
+        return ""
+    return (
+        "<details><summary>traceback of the crash</summary>"
+        f"<pre style='font-size:11px; white-space:pre-wrap'>{escape(text)}</pre></details>"
     )
