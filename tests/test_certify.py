@@ -4,12 +4,14 @@ from __future__ import annotations
 
 from fractions import Fraction
 
+import flint
 import mpmath
 import numpy as np
 import pytest
 from test_roots import exact_coefficients, mpmath_roots, random_weights
 
 from freeladder.certify import certified_roots, certify_chain_roots
+from freeladder.root_methods import solve_chain
 from freeladder.roots import chain_real_roots
 
 
@@ -18,29 +20,33 @@ def test_enclosures_contain_mpmath_roots(reach, m, seed):
     w = random_weights(m, seed)
     ref = mpmath_roots(w, reach)
     r = chain_real_roots(w, reach)
-    enc = certify_chain_roots(w, reach, r.roots, r.errors)
-    assert enc.certified, enc.message
+    enc = certify_chain_roots(w, reach, r.values, r.error_bounds)
+    assert enc.rigorous, enc.message
+    lower, upper = enc.details["lower"], enc.details["upper"]
     with mpmath.workdps(60):
-        for lo, hi, root in zip(enc.lower, enc.upper, ref, strict=True):
+        for lo, hi, root, mid, rad in zip(
+            lower, upper, ref, enc.values, enc.error_bounds, strict=True
+        ):
             assert mpmath.mpf(float(lo)) <= root <= mpmath.mpf(float(hi))
-    assert np.all(enc.radius <= 1e-13 * r.roots)
+            assert abs(mpmath.mpf(float(mid)) - root) <= mpmath.mpf(float(rad))
+    assert np.all(enc.error_bounds <= 1e-13 * r.values)
 
 
 def test_wrong_roots_are_not_certified():
     w = random_weights(40, 4)
     r = chain_real_roots(w, 2)
-    shifted = r.roots.copy()
-    shifted[3] = 0.5 * (r.roots[3] + r.roots[4])  # between two roots: no sign change nearby
+    shifted = r.values.copy()
+    shifted[3] = 0.5 * (r.values[3] + r.values[4])  # between two roots: no sign change nearby
     enc = certify_chain_roots(w, 2, shifted, np.full(shifted.size, 1e-14), widenings=1)
-    assert not enc.certified
-    assert not enc.sign_change[3] and enc.sign_change[0]
+    assert not enc.rigorous and "NOT certified" in enc.message
+    assert not enc.details["sign_change"][3] and enc.details["sign_change"][0]
 
 
 def test_partial_set_is_not_a_full_certificate():
     w = random_weights(60, 5)
     top = chain_real_roots(w, 2, lowest=3)
-    enc = certify_chain_roots(w, 2, top.roots, top.errors)
-    assert np.all(enc.sign_change) and not enc.certified
+    enc = certify_chain_roots(w, 2, top.values, top.error_bounds)
+    assert np.all(enc.details["sign_change"]) and not enc.rigorous
     assert "odd number" in enc.message
 
 
@@ -51,22 +57,23 @@ def test_certified_roots_against_mpmath():
     with mpmath.workdps(60):
         ref = mpmath.polyroots([mpmath.mpf(c.numerator) / c.denominator for c in reversed(coeffs)])
     for z in ref:
-        dist = np.abs(got.midpoints - complex(z))
-        assert np.min(dist) <= got.radii[np.argmin(dist)] + 1e-300
-    assert np.all(got.radii < 1e-15) and list(got.multiplicities) == [1, 1, 1, 1]
+        dist = np.abs(got.values - complex(z))
+        assert np.min(dist) <= got.error_bounds[np.argmin(dist)] + 1e-300
+    assert np.all(got.error_bounds < 1e-15)
+    assert list(got.details["multiplicities"]) == [1, 1, 1, 1]
 
 
 def test_certified_roots_of_a_chain_match_the_fast_roots():
     w = random_weights(60, 6)
     balls = certified_roots(exact_coefficients(w, 2))
     r = chain_real_roots(w, 2)
-    np.testing.assert_allclose(np.sort(balls.midpoints.real), r.roots, rtol=1e-14)
+    np.testing.assert_allclose(np.sort(balls.values.real), r.values, rtol=1e-14)
 
 
 def test_multiplicity_reported():
     got = certified_roots([1, -2, 1])  # (1 - y)^2
-    assert list(got.multiplicities) == [2]
-    assert abs(got.midpoints[0] - 1) <= got.radii[0]
+    assert list(got.details["multiplicities"]) == [2, 2] and got.count == 2
+    assert np.all(np.abs(got.values - 1) <= got.error_bounds)
 
 
 def test_errors():
@@ -80,3 +87,79 @@ def test_errors():
         certify_chain_roots([1.0, 1.0, 1.0], 1, [0.1, 0.2, 0.3])
     with pytest.raises(ValueError, match="complex-root path"):
         certify_chain_roots([1.0, -1.0], 1, [0.5])
+
+
+def _flint_chain_poly(c: np.ndarray, reach: int) -> flint.fmpq_poly:
+    """P_M with exact weights c_j**2, built by the recurrence in python-flint rationals."""
+    y = flint.fmpq_poly([0, 1])
+    hist = [flint.fmpq_poly([1])] * (reach + 1)
+    for cj in c:
+        f = Fraction(float(cj))
+        wk = flint.fmpq(f.numerator, f.denominator) ** 2
+        hist = hist[1:] + [hist[-1] - y * wk * hist[0]]
+    return hist[-1]
+
+
+@pytest.mark.parametrize(("reach", "m", "seed"), [(1, 200, 1), (2, 300, 2), (3, 400, 3)])
+def test_certified_bounds_hold_against_flint(reach, m, seed):
+    # Reference: python-flint's own certified isolation (fmpq_poly.complex_roots) of the exact
+    # polynomial; every flint ball must lie inside the proved interval of the same root.
+    # 100 roots per case, 300 in all; the couplings' weights c**2 are covered exactly through
+    # weight intervals (route: free_spectrum's certified chain method).
+    c = np.random.default_rng(seed).uniform(0.3, 1.7, m)
+    found = solve_chain(c, reach, 2, "certified")
+    assert found.rigorous and found.method == "chain-certified", found.message
+    y, bound = found.true_values()
+    saved = flint.ctx.prec
+    flint.ctx.prec = 200
+    try:
+        balls = sorted(
+            (b.real for b, _ in _flint_chain_poly(c, reach).complex_roots()),
+            key=lambda b: float(b.mid()),
+        )
+    finally:
+        flint.ctx.prec = saved
+    assert len(balls) == y.size == found.count
+    for ball, mid, rad in zip(balls, y, bound, strict=True):
+        assert flint.arb(float(mid)) - flint.arb(float(rad)) <= ball
+        assert ball <= flint.arb(float(mid)) + flint.arb(float(rad))
+
+
+def test_uniform_ising_closed_form_at_ten_thousand_terms():
+    # y_k = 1 / (4 cos^2(pi k / (M + 2))) (common practice: Chebyshev zeros of the uniform
+    # recurrence), evaluated in mpmath at 40 digits; every proved interval must hold its y_k.
+    m = 10_000
+    found = solve_chain(np.ones(m), 1, 2, "certified")
+    assert found.rigorous and found.count == m // 2 + m % 2, found.message
+    with mpmath.workdps(40):
+        ref = sorted(
+            1 / (4 * mpmath.cos(mpmath.pi * k / (m + 2)) ** 2) for k in range(1, found.count + 1)
+        )
+        for y, r, exact in zip(found.values, found.error_bounds, ref, strict=True):
+            assert abs(mpmath.mpf(float(y)) - exact) <= mpmath.mpf(float(r))
+    assert np.max(found.error_bounds / found.values) < 1e-10
+
+
+def test_fast_bounds_print_as_estimates():
+    r = chain_real_roots(random_weights(50, 8), 1)
+    assert not r.rigorous
+    assert "estimate" in r.summary() and "estimate" in r.to_dict()["bound_kind"]
+    enc = certify_chain_roots(random_weights(50, 8), 1, r.values, r.error_bounds)
+    assert enc.rigorous and "proved bound" in enc.summary()
+
+
+def test_failed_certificate_is_an_error_not_a_pass(monkeypatch):
+    # Force every interval to fail (no widening, intervals far too narrow by a wrong estimate
+    # of zero): the certified route must raise, never return the fast numbers as proved.
+    import freeladder.root_methods as rm
+
+    real = rm.certify_chain_roots
+
+    def narrow(*args, **kwargs):
+        kwargs["widenings"] = 0
+        args = (*args[:2], args[2] * (1 + 1e-6), *args[3:])  # shifted roots: no sign change
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(rm, "certify_chain_roots", narrow)
+    with pytest.raises(ValueError, match="could not be certified"):
+        solve_chain(np.random.default_rng(1).uniform(0.3, 1.7, 30), 1, 2, "certified")

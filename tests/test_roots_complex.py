@@ -2,12 +2,14 @@
 
 from __future__ import annotations
 
+import json
 from fractions import Fraction
 
 import mpmath
 import numpy as np
 import pytest
 
+from freeladder.root_result import RootResult
 from freeladder.roots_complex import (
     aberth_chain_roots,
     certified_complex_roots,
@@ -56,13 +58,16 @@ def test_complex_chain_against_mpmath(n_terms: int, reach: int, states: int, see
     w = c**states
     found = aberth_chain_roots(w, reach, order=states)
     ref = _mp_roots(w, reach)
-    assert len(found.x) == chain_degree(n_terms, reach) == len(ref)
-    err = _match(found.x, ref)
-    assert np.all(err <= 1e-12 * np.abs(found.x) + 1e-14)
-    assert found.ok
-    # the inclusion radii must contain the true error
-    assert np.all(err <= found.radius)
-    assert np.all(err <= found.newton_radius)
+    assert len(found.values) == chain_degree(n_terms, reach) == len(ref) == found.count
+    assert isinstance(found, RootResult) and found.variable == "x" and not found.rigorous
+    assert found.method == "chain-aberth" and "estimate" in found.summary()
+    err = _match(found.values, ref)
+    assert np.all(err <= 1e-12 * np.abs(found.values) + 1e-14)
+    assert found.converged
+    # the inclusion radii (estimates) contain the true error here
+    assert np.all(err <= found.error_bounds)
+    assert np.all(err <= found.details["newton_radius"])
+    assert json.dumps(found.to_dict(), allow_nan=False)
 
 
 def test_common_phase_rotates_the_roots() -> None:
@@ -73,8 +78,8 @@ def test_common_phase_rotates_the_roots() -> None:
     phase = np.exp(0.7j)
     found = aberth_chain_roots(aw * phase, reach=2)
     ref = _mp_roots(aw, 2) * phase
-    assert np.max(_match(found.x, ref) / np.abs(found.x)) < 1e-13
-    assert "+- 0.001" in found.start
+    assert np.max(_match(found.values, ref) / np.abs(found.values)) < 1e-13
+    assert "+- 0.001" in found.details["start"]
 
 
 def test_evaluate_chain_scaled_value_and_derivative() -> None:
@@ -104,8 +109,8 @@ def test_large_chain_does_not_overflow() -> None:
     c = rng.uniform(0.5, 1.5, 1500) * np.exp(0.2j * rng.normal(size=1500))
     w = c**3
     found = aberth_chain_roots(w, reach=1, order=3)
-    assert found.ok
-    assert abs(found.x.sum() - w.sum()) < 1e-10 * np.abs(found.x).sum()
+    assert found.converged
+    assert abs(found.values.sum() - w.sum()) < 1e-10 * np.abs(found.values).sum()
 
 
 def test_bad_weights_are_refused() -> None:
@@ -121,7 +126,9 @@ def test_certified_complex_roots_against_mpmath() -> None:
     # Reference: mpmath.polyroots, 60 digits, on the same exact Gaussian-rational coefficients.
     re = [Fraction(1), Fraction(-3, 7), Fraction(2, 5), Fraction(1, 9)]
     im = [Fraction(0), Fraction(1, 3), Fraction(-1, 4), Fraction(2, 11)]
-    roots, radii = certified_complex_roots(re, im)
+    found = certified_complex_roots(re, im)
+    assert found.rigorous and found.method == "exact-certified" and found.variable == "y"
+    roots, radii = found.values, found.error_bounds
     with mpmath.workdps(60):
         ref = mpmath.polyroots(
             [
@@ -138,3 +145,8 @@ def test_certified_complex_roots_against_mpmath() -> None:
     assert np.all(radii < 1e-15)
     with pytest.raises(ValueError, match="repeated root"):
         certified_complex_roots([Fraction(1), Fraction(-2), Fraction(1)], [Fraction(0)] * 3)
+
+
+def test_all_zero_weights_are_refused() -> None:
+    with pytest.raises(ValueError, match="every weight is zero"):
+        aberth_chain_roots([0.0, 0.0, 0.0])

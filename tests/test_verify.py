@@ -250,18 +250,34 @@ def test_nothing_decisive_is_not_ok() -> None:
 
 
 def test_unproven_spectrum_is_reported_as_probe() -> None:
-    # a Jordan-Wigner ladder with two cycles (Chapman-Flammia 2020): one polynomial does not
-    # give the spectrum; the spectral checks run as probes on the unproven numbers and say so
-    m = fl.parse_model("X0 X1 + Y1 Y2 + X3 X4 + Y4 Y5 + Z0 Z3 + Z1 Z4 + Z2 Z5")
+    # a claw (Elman-Chapman-Flammia 2021: no theorem): the spectral checks run as probes on the
+    # unproven numbers and say so; numpy's eigenvalues disagree with them
+    m = fl.parse_model("Z0 Z1 Z2 + X0 + 0.7 X1 + 1.3 X2 + 0.4 Z1")
     r = fl.verify(m)
     assert "no theorem" in r.verdict and "probe" in r.verdict
     ed = r[verification.EXACT]
-    assert "(probe)" in ed.method and ed.passed is False  # numpy: the levels differ
+    assert "(probe)" in ed.method and ed.passed is False
     exact = np.linalg.eigvalsh(m.to_sparse().toarray())
     free = fl.free_spectrum(m, **_unproven()).levels(None)
     deg = free.multiplicity or len(exact) // len(free)
     assert np.max(np.abs(np.sort(np.repeat(free.energies, deg)) - exact)) > 0.1
     assert not r.ok
+
+
+def test_jordan_wigner_models_with_cycles_are_verified_by_sector() -> None:
+    # a two-leg ladder with two plaquettes (Chapman-Flammia 2020): free sector by sector, so
+    # the report tests the sector spectra against numpy and does not claim T(u)T(-u) = P(u^2)
+    m = fl.parse_model("X0 X1 + Y1 Y2 + X3 X4 + Y4 Y5 + Z0 Z3 + Z1 Z4 + Z2 Z5")
+    r = fl.verify(m)
+    assert r.ok, r.problems
+    assert "sector" in r.verdict
+    assert r[verification.SECTORS].passed and r[verification.CONSERVED].passed
+    inversion = r[verification._inversion_name(2)]
+    assert inversion.passed is False and not inversion.claimed
+    assert inversion.status == "does not hold" and inversion not in r.failed
+    energies, mult = fl.jordan_wigner_spectrum(m).levels()
+    exact = np.linalg.eigvalsh(m.to_sparse().toarray())
+    assert np.max(np.abs(np.sort(np.repeat(energies, mult)) - exact)) < 1e-10
 
 
 def _unproven() -> dict[str, bool]:
@@ -370,24 +386,26 @@ def test_unproven_spectrum_needs_exact_diagonalization_to_be_ok() -> None:
 
 def test_dependent_strings_are_caught() -> None:
     # Z0 Z1, Z1 Z2, Z0 Z2 multiply to the identity, a relation the frustration graph does not
-    # show: the free levels differ from numpy's eigenvalues, and verify says so
+    # show: the single polynomial is refused (its free levels differ from numpy's eigenvalues)
+    # and the report rests on the sector route, which accounts for the relation
     m = fl.parse_model("Z0 Z1 + X1 + Z1 Z2 + X2 + Z0 Z2")
     exact = np.linalg.eigvalsh(m.to_sparse().toarray())
-    r = fl.verify(m)
-    assert not r.ok and r[verification.EXACT].passed is False
+    with pytest.raises(NoTheoremError):
+        fl.free_spectrum(m)
     free = fl.free_spectrum(m, **_unproven()).ground_energy
     assert abs(free - exact[0]) > 0.1  # the numpy reference disagrees with the free levels
-    # the odd ring of 13 commuting Z Z terms (dimension 2^13, beyond the automatic
-    # comparison): true ground energy -11 (the product of all terms is 1, so an even number of
-    # them is -1; common practice).  Its charges commute and the inversion relation holds, so
-    # only the missing theorem can keep the report from "ok".
+    r = fl.verify(m)
+    assert r.ok and r[verification.SECTORS].passed
+    # the odd ring of 13 commuting Z Z terms: true ground energy -11 (the product of all terms
+    # is 1, so an even number of them is -1; brute force over the diagonal with numpy)
     ring = fl.parse_model(" + ".join(f"Z{i} Z{(i + 1) % 13}" for i in range(13)))
-    try:
+    with pytest.raises(NoTheoremError):
         fl.free_spectrum(ring)
-    except NoTheoremError:
-        assert not fl.verify(ring).ok
-        return
-    pytest.skip("free_spectrum does not yet refuse dependent strings (issue 14, item 9)")
+    spins = 1 - 2 * ((np.arange(2**13)[:, None] >> np.arange(13)[None, :]) & 1)
+    diagonal = (spins * np.roll(spins, -1, axis=1)).sum(axis=1)
+    assert diagonal.min() == -11
+    assert fl.jordan_wigner_spectrum(ring, sector="ground").ground_energy == pytest.approx(-11)
+    assert fl.verify(ring)[verification.CONSERVED].passed
 
 
 def test_route_by_cost_and_no_listing_after_the_sweep(monkeypatch: pytest.MonkeyPatch) -> None:

@@ -4,6 +4,11 @@
 # The install is skipped when pyproject.toml has not changed since the last one (a stamp file
 # in .venv records its hash), so a second run starts at once.  FREELADDER_VENV overrides the
 # location of the virtual environment.
+#
+# The install builds the JupyterLab extension (nbext/, needs node) into nbext/labextension and
+# copies it into the environment; link_labextension then replaces that copy with a link to
+# nbext/labextension, so that a rebuild (`jlpm --cwd nbext build:prod`) is seen by the next
+# JupyterLab start without reinstalling.
 
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 VENV="${FREELADDER_VENV:-$ROOT/.venv}"
@@ -26,5 +31,16 @@ ensure_venv() {
             return 1
         fi
         echo "$want" >"$stamp"
+    fi
+    link_labextension
+}
+
+link_labextension() {
+    local built="$ROOT/nbext/labextension"
+    local share="$VENV/share/jupyter/labextensions/freeladder-cells"
+    if [ -f "$built/package.json" ] && [ "$(readlink "$share" 2>/dev/null)" != "$built" ]; then
+        rm -rf "$share"
+        mkdir -p "$(dirname "$share")"
+        ln -s "$built" "$share"
     fi
 }

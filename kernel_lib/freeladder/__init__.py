@@ -18,7 +18,7 @@ from .builders import (
     random_couplings,
     staggered,
 )
-from .certify import CertifiedRoots, ChainEnclosures, certified_roots, certify_chain_roots
+from .certify import certified_roots, certify_chain_roots
 from .charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .charges import (
     ChargeStep,
@@ -54,8 +54,9 @@ from .model import Model, Term
 from .operators import StringSum
 from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
 from .relations import Relation, Relations, find_relations
+from .root_methods import ROOT_METHODS, RootMethod
+from .root_result import RootResult
 from .roots import (
-    RealRoots,
     chain_count_below,
     chain_inverse_power_sums,
     chain_real_roots,
@@ -78,6 +79,7 @@ from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
 from .verdict import ComponentVerdict, Guarantee, Verdict, classify, guarantee
 from .verification import Check, Report, verify
+from .worked import Cell, WorkedCalculation, worked_calculation
 
 __all__ = [
     "honeycomb_hexagons",
@@ -93,9 +95,9 @@ __all__ = [
     "charge_counts",
     "ChainData",
     "ChainStructure",
-    "CertifiedRoots",
-    "ChainEnclosures",
-    "RealRoots",
+    "ROOT_METHODS",
+    "RootMethod",
+    "RootResult",
     "certified_roots",
     "certify_chain_roots",
     "chain_count_below",
@@ -178,5 +180,8 @@ __all__ = [
     "smallest_quasi_energy",
     "chain_quasi_energy",
     "sweep",
+    "Cell",
+    "WorkedCalculation",
+    "worked_calculation",
 ]
 __version__ = "0.1.0"

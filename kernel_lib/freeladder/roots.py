@@ -2,19 +2,17 @@
 
 API (plain functions on numpy arrays; no Model needed)
 -----------------------------------------------------
-``chain_real_roots(weights, reach, lowest=None, *, rtol=..., max_sweeps=..., progress=None)``
+``chain_real_roots(weights, reach, lowest=None, *, rtol=..., progress=None) -> RootResult``
     All roots (or, with ``lowest=k``, the k LARGEST roots y, i.e. the k smallest
     quasi-energies eta = y**(-1/N)) of ``P_M(y)``, where
     ``P_k = P_{k-1} - y w_k P_{k-p-1}``, ``P_k = 1`` for ``k <= 0``, for real positive
-    weights ``w_k`` (N = 2 real couplings: ``w = c**2``).  Raises ``ValueError`` naming the
-    first offending index for weights that are not finite and > 0 (use the complex path in
-    ``spectrum.py`` for those).
-``RealRoots`` (frozen dataclass, returned by ``chain_real_roots``)
-    ``roots``: float64 array, ascending; ``errors``: per-root absolute error estimates
-    (not proofs; ``certify.certify_chain_roots`` turns them into proofs); ``indices``: 0-based
-    positions of ``roots`` among all ``S`` roots in ascending order; ``count``: ``S``;
-    ``sweeps``: passes over the chain; ``evaluations``: points evaluated; ``converged``;
-    ``method``; ``message``.
+    weights ``w_k`` (N = 2 real couplings: ``w = c**2``), as a
+    :class:`~freeladder.root_result.RootResult` (``variable="y"``, ascending, method
+    ``"chain-count"``, ``rigorous=False``: the error bounds are estimates, not proofs;
+    ``certify.certify_chain_roots`` turns them into proofs).  Raises ``ValueError`` naming the
+    first offending index for weights that are not finite and > 0.
+``check_chain_weights(weights, reach) -> (float64 array, int)``
+    The validation every real-chain function applies.
 ``chain_count_below(weights, reach, y) -> int64 array``
     Number of negative ratios ``P_k(y) / P_{k-1}(y)`` along the recurrence, for each y
     (the number of roots below y, see Notes).
@@ -70,7 +68,8 @@ What is proved and what is tested
 * Real positive roots for positive weights: the frustration graph of a chain is claw-free
   (M. Chudnovsky and P. Seymour, J. Combin. Theory Ser. B 97, 350 (2007)).  Positivity is
   immediate: every term of ``P(y)`` is positive for ``y <= 0``.
-* ``errors`` are estimates (the last Laguerre step, or half the final bracket), not proofs.
+* The error bounds are estimates (the last Laguerre step, or half the final bracket), not
+  proofs: on long chains they were exceeded by factors up to 30 at the smallest quasi-energy.
 
 References
 ----------
@@ -83,14 +82,14 @@ F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 from numba import njit, prange
 
+from .root_result import RootResult
+
 __all__ = [
-    "RealRoots",
     "chain_count_below",
     "chain_inverse_power_sums",
     "chain_real_roots",
@@ -210,7 +209,11 @@ def _sweep_serial(
 
 
 def check_chain_weights(weights: Any, reach: Any) -> tuple[np.ndarray, int]:
-    """Validate real positive weights and the reach; return a contiguous float64 copy."""
+    """Validate real positive weights and the reach; return a contiguous float64 copy.
+
+    Raises ``ValueError`` naming the first offending index (the message points to the
+    complex-root path for weights that are complex, zero or negative).
+    """
     if isinstance(reach, bool) or int(reach) != reach or int(reach) < 1:
         raise ValueError(f"reach must be an integer >= 1, got {reach!r}")
     w = np.asarray(weights)
@@ -316,45 +319,10 @@ def chain_inverse_power_sums(weights: Any, reach: int) -> tuple[float, float]:
     return c1, c1 * c1 - 2.0 * c2
 
 
-@dataclass(frozen=True)
-class RealRoots:
-    """Roots of a chain polynomial with positive weights, ascending.
-
-    Attributes
-    ----------
-    roots : numpy.ndarray
-        The roots y found, ascending (all of them, or the largest ``lowest`` ones).
-    errors : numpy.ndarray
-        Absolute error estimates (last Laguerre step, or half the final bracket; not proofs).
-    indices : numpy.ndarray
-        0-based position of each root among all ``count`` roots in ascending order.
-    count : int
-        S, the number of roots of the polynomial.
-    sweeps : int
-        Passes over the chain.
-    evaluations : int
-        Points evaluated in all (each costs M steps).
-    converged : bool
-        Every requested root met the tolerance.
-    method : str
-    message : str
-    """
-
-    roots: np.ndarray
-    errors: np.ndarray
-    indices: np.ndarray
-    count: int
-    sweeps: int
-    evaluations: int
-    converged: bool
-    method: str
-    message: str
-
-
 def _midpoints(lo: np.ndarray, hi: np.ndarray) -> np.ndarray:
-    """Geometric midpoints of wide brackets, arithmetic ones of narrow brackets."""
+    """Geometric midpoints of wide brackets, arithmetic ones of narrow brackets (no overflow)."""
     wide = hi > 2.0 * lo
-    return np.where(wide, np.sqrt(lo * hi), 0.5 * (lo + hi))
+    return np.where(wide, np.sqrt(lo) * np.sqrt(hi), 0.5 * (lo + hi))
 
 
 def _laguerre(
@@ -380,6 +348,120 @@ def _laguerre(
     return np.where((c == j) & (g < 0), upward, np.where((c == j + 1) & (g > 0), downward, np.nan))
 
 
+class _Brackets:
+    """Per wanted root: the bracket ``[lo, hi]`` with its counts and a Laguerre start ``e``.
+
+    ``e`` is an evaluated point next to the root (count ``j`` below it or ``j + 1`` above it)
+    with its count ``c``, ``g = P'/P`` and ``h = G**2 - P''/P`` there.
+    """
+
+    def __init__(self, lo, c_lo, hi, c_hi, e, c, g, h):  # type: ignore[no-untyped-def]
+        self.lo, self.c_lo, self.hi, self.c_hi = lo, c_lo, hi, c_hi
+        self.e, self.c, self.g, self.h = e, c, g, h
+
+
+def _initial_brackets(
+    w: np.ndarray, p: int, total: int, want: np.ndarray
+) -> tuple[_Brackets, int, int]:
+    """Brackets from one sweep over a geometric ladder of points; returns (brackets, evals, sweeps).
+
+    ``sum 1/y_k = C_1`` puts every root above ``1 / C_1``, so the ladder's first point has
+    count 0.  The ladder grows by factors ``8**64`` until its last count is ``total``; that
+    ends within float64 range or raises ``ArithmeticError`` (a bounded loop).
+    """
+    ladder = (0.5 / float(np.sum(w))) * 8.0 ** np.arange(0, 64)
+    counts, g_lad, h_lad = _evaluate(w, p, ladder, True)
+    evaluations, sweeps = ladder.size, 1
+    while counts[-1] < total:
+        if not np.isfinite(ladder[-1] * 8.0**64):
+            raise ArithmeticError("could not bracket the largest root within float64 range")
+        more = ladder[-1] * 8.0 ** np.arange(1, 65)
+        c_more, g_more, h_more = _evaluate(w, p, more, True)
+        ladder = np.concatenate([ladder, more])
+        counts = np.concatenate([counts, c_more])
+        g_lad, h_lad = np.concatenate([g_lad, g_more]), np.concatenate([h_lad, h_more])
+        evaluations, sweeps = evaluations + more.size, sweeps + 1
+    above = np.searchsorted(counts, want, side="right")  # first ladder point with count > j
+    # Start on the side whose count is next to the root, if any (Laguerre needs no more).
+    from_lo = counts[above - 1] == want
+    start = np.where(from_lo, above - 1, above)
+    br = _Brackets(
+        ladder[above - 1],
+        counts[above - 1],
+        ladder[above],
+        counts[above],
+        ladder[start],
+        counts[start],
+        g_lad[start],
+        h_lad[start],
+    )
+    return br, evaluations, sweeps
+
+
+def _tighten(
+    br: _Brackets,
+    act: np.ndarray,
+    j: np.ndarray,
+    total: int,
+    pts: np.ndarray,
+    cnt: np.ndarray,
+    g: np.ndarray,
+    h: np.ndarray,
+) -> None:
+    """Use every point evaluated in a sweep for every active root ``act`` (wanted index ``j``).
+
+    The tightest bracket, and as the next Laguerre start the evaluated point next to root j
+    (count j below it, or j + 1 above it) whose step is shorter.
+    """
+    order = np.argsort(cnt, kind="stable")
+    pts, cnt, g, h = pts[order], cnt[order], g[order], h[order]
+    first_up = np.searchsorted(cnt, j, side="right")  # first point with count > j
+    below = np.maximum(first_up - 1, 0)
+    upper = np.minimum(first_up, pts.size - 1)
+    has_below = (first_up > 0) & (pts[below] > br.lo[act])
+    has_above = (first_up < pts.size) & (pts[upper] < br.hi[act])
+    br.lo[act] = np.where(has_below, pts[below], br.lo[act])
+    br.c_lo[act] = np.where(has_below, cnt[below], br.c_lo[act])
+    br.hi[act] = np.where(has_above, pts[upper], br.hi[act])
+    br.c_hi[act] = np.where(has_above, cnt[upper], br.c_hi[act])
+    step_b = np.abs(_laguerre(pts[below], cnt[below], g[below], h[below], j, total) - pts[below])
+    step_a = np.abs(_laguerre(pts[upper], cnt[upper], g[upper], h[upper], j, total) - pts[upper])
+    use_below, use_above = np.isfinite(step_b), np.isfinite(step_a)
+    pick = np.where(use_below & use_above, step_b <= step_a, use_below)
+    idx = np.where(pick, below, upper)
+    br.e, br.c, br.g, br.h = pts[idx], cnt[idx], g[idx], h[idx]
+
+
+def _step(
+    br: _Brackets, act: np.ndarray, j: np.ndarray, total: int, rtol: float
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """One Laguerre step (or bisection) for the active roots.
+
+    Returns ``(finished, value, estimate, next_point)``: a root is finished when its Laguerre
+    step stays in the bracket and is at most ``rtol`` relative, or when its bracket is two
+    ulps wide; ``estimate`` is the step (at least one ulp) or half the bracket.
+    """
+    lo, hi = br.lo[act], br.hi[act]
+    cand = _laguerre(br.e, br.c, br.g, br.h, j, total)
+    inside = (cand > lo) & (cand < hi)
+    step = np.abs(cand - br.e)
+    step_done = np.isfinite(cand) & (cand >= lo) & (cand <= hi) & (step <= rtol * br.e)
+    width = hi - lo
+    finished = step_done | (width <= 2 * _EPS * hi)
+    value = np.where(step_done, cand, 0.5 * (lo + hi))
+    estimate = np.where(step_done, np.maximum(step, _EPS * np.abs(cand)), 0.5 * width)
+    return finished, value, estimate, np.where(inside, cand, _midpoints(lo, hi))
+
+
+def _wanted(total: int, lowest: int | None) -> np.ndarray:
+    """0-based indices (ascending y) of the roots asked for: all, or the ``lowest`` largest."""
+    if lowest is None:
+        return np.arange(total, dtype=np.int64)
+    if isinstance(lowest, bool) or int(lowest) != lowest or not 1 <= int(lowest):
+        raise ValueError(f"lowest must be a positive integer, got {lowest!r}")
+    return np.arange(max(0, total - int(lowest)), total, dtype=np.int64)
+
+
 def chain_real_roots(
     weights: Any,
     reach: int,
@@ -388,7 +470,7 @@ def chain_real_roots(
     rtol: float = 16 * _EPS,
     max_sweeps: int = 400,
     progress: ProgressCallback | None = None,
-) -> RealRoots:
+) -> RootResult:
     """Roots of the chain polynomial ``P_M`` for real positive weights.
 
     Parameters
@@ -409,7 +491,11 @@ def chain_real_roots(
 
     Returns
     -------
-    RealRoots
+    RootResult
+        ``variable="y"``, ascending; ``rigorous=False``: the error bounds are estimates (the
+        last Laguerre step, or half the final bracket), method ``"chain-count"``;
+        ``iterations`` counts the sweeps.  :func:`freeladder.certify.certify_chain_roots`
+        turns them into proofs.
 
     Raises
     ------
@@ -419,8 +505,10 @@ def chain_real_roots(
 
     Notes
     -----
-    See the module docstring for the method and for what is proved and what is tested.
-    Interrupting (KeyboardInterrupt) is safe: no state outlives the call.
+    See the module docstring for the method and for what is proved and what is tested.  The
+    weights are first divided by the power of two nearest their largest value (exact), so
+    the result does not depend on their overall scale.  Interrupting (KeyboardInterrupt) is
+    safe: no state outlives the call.
 
     References
     ----------
@@ -430,116 +518,53 @@ def chain_real_roots(
     Examples
     --------
     >>> r = chain_real_roots([1.0, 1.0, 1.0], 1)  # uniform Ising, M = 3: eta = 2 cos(pi k / 5)
-    >>> np.allclose(r.roots, 1 / (4 * np.cos(np.pi * np.array([1, 2]) / 5) ** 2))
+    >>> np.allclose(r.values, 1 / (4 * np.cos(np.pi * np.array([1, 2]) / 5) ** 2))
     True
     """
     w, p = check_chain_weights(weights, reach)
+    shift = int(np.frexp(np.max(w))[1])
+    w = np.ldexp(w, -shift)  # exact: the roots of the scaled chain are y * 2**shift
     total = chain_root_count(w.size, p)
-    if lowest is None:
-        first = 0
-    else:
-        if isinstance(lowest, bool) or int(lowest) != lowest or not 1 <= int(lowest):
-            raise ValueError(f"lowest must be a positive integer, got {lowest!r}")
-        first = max(0, total - int(lowest))
-    want = np.arange(first, total, dtype=np.int64)
+    want = _wanted(total, lowest)
     n_want = want.size
-
-    # Initial brackets from one sweep over a geometric ladder of points.  sum 1/y_k = C_1
-    # puts every root above 1 / C_1, so the ladder's first point has count 0.
-    ladder = (0.5 / float(np.sum(w))) * 8.0 ** np.arange(0, 64)
-    counts, g_lad, h_lad = _evaluate(w, p, ladder, True)
-    evaluations, sweeps = ladder.size, 1
-    while counts[-1] < total:
-        if not np.isfinite(ladder[-1] * 8.0**64):
-            raise ArithmeticError("could not bracket the largest root within float64 range")
-        more = ladder[-1] * 8.0 ** np.arange(1, 65)
-        c_more, g_more, h_more = _evaluate(w, p, more, True)
-        ladder = np.concatenate([ladder, more])
-        counts = np.concatenate([counts, c_more])
-        g_lad, h_lad = np.concatenate([g_lad, g_more]), np.concatenate([h_lad, h_more])
-        evaluations, sweeps = evaluations + more.size, sweeps + 1
-    above = np.searchsorted(counts, want, side="right")  # first ladder point with count > j
-    hi, c_hi = ladder[above], counts[above]
-    lo, c_lo = ladder[above - 1], counts[above - 1]
-    # Start on the side whose count is next to the root, if any (Laguerre needs no more).
-    from_lo = c_lo == want
-    e = np.where(from_lo, lo, hi)
-    c = np.where(from_lo, c_lo, c_hi)
-    g = np.where(from_lo, g_lad[above - 1], g_lad[above])
-    h = np.where(from_lo, h_lad[above - 1], h_lad[above])
-
+    br, evaluations, sweeps = _initial_brackets(w, p, total, want)
     roots = np.full(n_want, np.nan)
     errors = np.full(n_want, np.inf)
     done = np.zeros(n_want, dtype=bool)
     act = np.arange(n_want)
     while True:
-        j = want[act]
-        cand = _laguerre(e, c, g, h, j, total)
-        inside = (cand > lo[act]) & (cand < hi[act])
-        step = np.abs(cand - e)
-        step_done = np.isfinite(cand) & (cand >= lo[act]) & (cand <= hi[act])
-        step_done &= step <= rtol * e
-        width = hi[act] - lo[act]
-        bracket_done = width <= 2 * _EPS * hi[act]
-        finish = step_done | bracket_done
-        roots[act] = np.where(step_done, cand, 0.5 * (lo[act] + hi[act]))
-        errors[act] = np.where(step_done, np.maximum(step, _EPS * np.abs(cand)), 0.5 * width)
-        done[act] = finish
+        finished, value, estimate, nxt = _step(br, act, want[act], total, rtol)
+        roots[act], errors[act], done[act] = value, estimate, finished
         if progress is not None:
             progress(sweeps, int(done.sum()), n_want)
-        keep = ~finish
-        act, nxt = act[keep], np.where(inside, cand, _midpoints(lo[act], hi[act]))[keep]
+        act, nxt = act[~finished], nxt[~finished]
         if act.size == 0 or sweeps >= max_sweeps:
             break
         unique = np.unique(nxt)
         c_u, g_u, h_u = _evaluate(w, p, unique, True)
         evaluations += unique.size
         sweeps += 1
-        # Every point evaluated in this sweep informs every root: the tightest bracket and the
-        # evaluated point next to root j (count j below it, or j + 1 above it).
-        j = want[act]
-        order = np.argsort(c_u, kind="stable")
-        pts, cnt = unique[order], c_u[order]
-        first_up = np.searchsorted(cnt, j, side="right")  # first point with count > j
-        below = np.maximum(first_up - 1, 0)
-        upper = np.minimum(first_up, pts.size - 1)
-        has_below = (first_up > 0) & (pts[below] > lo[act])
-        has_above = (first_up < pts.size) & (pts[upper] < hi[act])
-        lo[act] = np.where(has_below, pts[below], lo[act])
-        c_lo[act] = np.where(has_below, cnt[below], c_lo[act])
-        hi[act] = np.where(has_above, pts[upper], hi[act])
-        c_hi[act] = np.where(has_above, cnt[upper], c_hi[act])
-        # start from whichever neighbour is adjacent; prefer the closer to its root
-        gi, hh = g_u[order], h_u[order]
-        step_b = np.abs(
-            _laguerre(pts[below], cnt[below], gi[below], hh[below], j, total) - pts[below]
-        )
-        step_a = np.abs(
-            _laguerre(pts[upper], cnt[upper], gi[upper], hh[upper], j, total) - pts[upper]
-        )
-        use_below, use_above = np.isfinite(step_b), np.isfinite(step_a)
-        pick = np.where(use_below & use_above, step_b <= step_a, use_below)
-        pick_idx = np.where(pick, below, upper)
-        e, c, g, h = pts[pick_idx], cnt[pick_idx], gi[pick_idx], hh[pick_idx]
+        _tighten(br, act, want[act], total, unique, c_u, g_u, h_u)
     left = ~done
-    if np.any(left):
-        roots[left] = 0.5 * (lo[left] + hi[left])
-        errors[left] = 0.5 * (hi[left] - lo[left])
+    roots[left] = 0.5 * (br.lo[left] + br.hi[left])
+    errors[left] = 0.5 * (br.hi[left] - br.lo[left])
     order = np.argsort(roots, kind="stable")
     converged = not np.any(left)
     message = (
-        f"{n_want} of {total} roots, {sweeps} sweeps"
+        f"{n_want} of {total} roots, {sweeps} sweeps; error bounds are estimates"
         if converged
         else f"{int(left.sum())} of {n_want} roots not converged after {sweeps} sweeps"
     )
-    return RealRoots(
-        roots=roots[order],
-        errors=errors[order],
-        indices=want[order],
-        count=total,
-        sweeps=sweeps,
-        evaluations=evaluations,
+    return RootResult(
+        values=np.ldexp(roots[order], -shift),
+        error_bounds=np.ldexp(errors[order], -shift),
+        variable="y",
+        rigorous=False,
         converged=converged,
-        method="count bisection + Laguerre steps on the ratio recurrence",
         message=message,
+        method="chain-count",
+        evaluations=evaluations,
+        count=total,
+        iterations=sweeps,
+        indices=want[order],
     )

@@ -31,16 +31,15 @@ section 5.1 (running error bounds for recurrences).
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 from fractions import Fraction
 
 import flint
 import numpy as np
 
+from .root_result import RootResult
 from .roots import chain_real_roots
 
 __all__ = [
-    "ComplexChainRoots",
     "aberth_chain_roots",
     "certified_complex_roots",
     "chain_degree",
@@ -53,50 +52,6 @@ __all__ = [
 _U = np.finfo(float).eps / 2
 _BLOCK = 2_000_000  # entries per block of the O(n^2) pairwise sums
 _SAFETY = 4.0  # factor on the statistical rounding-error estimate
-
-
-@dataclass(frozen=True)
-class ComplexChainRoots:
-    """Roots of an exclusion-chain polynomial found by :func:`aberth_chain_roots`.
-
-    Attributes
-    ----------
-    x : ndarray of complex, shape (n,)
-        The reciprocal roots ``x_k = 1 / y_k = eta_k^N``, sorted by modulus.
-    radius : ndarray of float, shape (n,)
-        Inclusion radius ``n |W_k|`` in the ``x`` plane, with the Weierstrass correction
-        ``W_k = Q(x_k) / prod_{j != k} (x_k - x_j)`` inflated by the running rounding-error
-        bound of ``Q(x_k)``.  In exact arithmetic the discs contain all roots and an isolated
-        disc contains exactly one (Braess-Hadeler); in floating point it is an estimate whose
-        only unproved step is the first-order running-error bound.
-    newton_radius : ndarray of float, shape (n,)
-        ``n |Q(x_k) / Q'(x_k)|``: the disc of this radius about ``x_k`` holds at least one root.
-    isolated : ndarray of bool, shape (n,)
-        True where the inclusion disc meets no other disc (so it holds exactly one root).
-    converged : ndarray of bool, shape (n,)
-        True where the iteration stopped because ``|Q(x_k)|`` fell to its rounding-error bound
-        or the Aberth correction fell below a few units in the last place.
-    iterations : int
-        Aberth sweeps done (each sweep evaluates the recurrence at the still active roots).
-    evaluations : int
-        Total number of point evaluations of the recurrence.
-    start : str
-        How the starting points were chosen.
-    """
-
-    x: np.ndarray
-    radius: np.ndarray
-    newton_radius: np.ndarray
-    isolated: np.ndarray
-    converged: np.ndarray
-    iterations: int
-    evaluations: int
-    start: str
-
-    @property
-    def ok(self) -> bool:
-        """True when every root converged and every inclusion disc is isolated."""
-        return bool(np.all(self.converged) and np.all(self.isolated))
 
 
 def chain_degree(n_terms: int, reach: int) -> int:
@@ -200,7 +155,7 @@ def modulus_estimates(weights: np.ndarray, reach: int) -> np.ndarray:
     top = float(aw.max())
     floor = 1e-12 * top if top > 0 else 1.0
     found = chain_real_roots(np.maximum(aw, floor), reach)
-    return np.sort(1.0 / np.asarray(found.roots, dtype=float))
+    return np.sort(1.0 / np.asarray(found.values, dtype=float))
 
 
 def default_start(weights: np.ndarray, reach: int) -> tuple[np.ndarray, str]:
@@ -235,7 +190,7 @@ def aberth_chain_roots(
     order: int = 2,
     start: np.ndarray | None = None,
     max_iter: int = 500,
-) -> ComplexChainRoots:
+) -> RootResult:
     """All roots of an exclusion-chain polynomial by the Aberth-Ehrlich iteration.
 
     Parameters
@@ -254,7 +209,15 @@ def aberth_chain_roots(
 
     Returns
     -------
-    ComplexChainRoots
+    RootResult
+        ``variable="x"`` (the reciprocal roots ``x_k = 1 / y_k = eta_k^N``, sorted by
+        modulus), method ``"chain-aberth"``, ``rigorous=False``: ``error_bounds`` are the
+        inclusion radii ``n |W_k|`` (Weierstrass correction ``W_k = Q(x_k) / prod_{j != k}
+        (x_k - x_j)`` inflated by a statistical rounding-error estimate of ``Q(x_k)``) --
+        in exact arithmetic the discs hold all roots and an isolated disc exactly one
+        (Braess-Hadeler), in floating point they are estimates.  ``converged`` is True when
+        every root converged and every disc is isolated.  ``details``: ``isolated`` and
+        ``root_converged`` (bool per root), ``newton_radius`` (``n |Q / Q'|``), ``start``.
 
     Raises
     ------
@@ -267,7 +230,7 @@ def aberth_chain_roots(
     with the Newton correction ``N = Q(z) / Q'(z)`` taken from the recurrence.  A root stops
     (is frozen, no deflation) when ``|Q(z)|`` is below its running rounding-error bound or the
     correction is below ``4 u |z|``.  After the last sweep every root gets the inclusion radius
-    ``n |W_i|`` (see :class:`ComplexChainRoots`).
+    ``n |W_i|`` (see the Returns section).
 
     References
     ----------
@@ -277,7 +240,7 @@ def aberth_chain_roots(
     Examples
     --------
     >>> r = aberth_chain_roots([1.0, 1.0, 1.0])  # uniform Ising, 3 terms: x = 4 cos^2(pi k / 5)
-    >>> [round(float(v), 12) for v in r.x.real]
+    >>> [round(float(v), 12) for v in r.values.real]
     [0.38196601125, 2.61803398875]
     """
     w = np.asarray(weights, dtype=complex)
@@ -292,9 +255,7 @@ def aberth_chain_roots(
     n = chain_degree(w.shape[0], p)
     top = float(np.abs(w).max())
     if top == 0:
-        zero = np.zeros(n)
-        ones = np.ones(n, dtype=bool)
-        return ComplexChainRoots(zero.astype(complex), zero, zero.copy(), ones, ones, 0, 0, "zero")
+        raise ValueError("every weight is zero: the polynomial is constant, no roots")
     # Work with w / max|w| (the roots scale with it), so that |x| = O(1) in the recurrence.
     w = w / top
     if start is None:
@@ -333,15 +294,32 @@ def aberth_chain_roots(
     if n > 1:
         evaluations += n
     sort = np.lexsort((np.angle(z), np.abs(z)))
-    return ComplexChainRoots(
-        x=top * z[sort],
-        radius=top * radius[sort],
-        newton_radius=top * newton_radius[sort],
-        isolated=isolated[sort],
-        converged=(converged | (n == 1))[sort],
-        iterations=sweeps,
+    root_converged = (converged | (n == 1))[sort]
+    ok = bool(np.all(root_converged) and np.all(isolated))
+    message = (
+        f"{n} roots, {sweeps} sweeps; error bounds are estimates (inclusion discs with a "
+        "statistical rounding-error estimate)"
+        if ok
+        else f"{int((~root_converged).sum())} of {n} roots not converged, "
+        f"{int((~isolated).sum())} discs not isolated after {sweeps} sweeps"
+    )
+    return RootResult(
+        values=top * z[sort],
+        error_bounds=top * radius[sort],
+        variable="x",
+        rigorous=False,
+        converged=ok,
+        message=message,
+        method="chain-aberth",
         evaluations=evaluations,
-        start=label,
+        count=n,
+        iterations=sweeps,
+        details={
+            "isolated": isolated[sort],
+            "root_converged": root_converged,
+            "newton_radius": top * newton_radius[sort],
+            "start": label,
+        },
     )
 
 
@@ -350,7 +328,7 @@ def inclusion_radii(
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Inclusion radii of approximate reciprocal roots ``z`` of a chain polynomial.
 
-    Returns ``(radius, newton_radius, isolated)`` as described in :class:`ComplexChainRoots`.
+    Returns ``(radius, newton_radius, isolated)`` as described in :func:`aberth_chain_roots`.
     """
     z = np.asarray(z, dtype=complex)
     w = np.asarray(weights, dtype=complex)
@@ -384,7 +362,7 @@ def _isolated(z: np.ndarray, radius: np.ndarray) -> np.ndarray:
 
 def certified_complex_roots(
     real: Sequence[Fraction], imag: Sequence[Fraction], tol: float = 1e-18, variable: str = "y"
-) -> tuple[np.ndarray, np.ndarray]:
+) -> RootResult:
     """Certified complex roots of a polynomial with exact Gaussian-rational coefficients.
 
     Parameters
@@ -398,11 +376,11 @@ def certified_complex_roots(
 
     Returns
     -------
-    roots : ndarray of complex
-        Midpoints of the isolating balls (rounded to double).
-    radii : ndarray of float
-        Upper bounds on the distance from each midpoint to the one root its ball contains
-        (ball radius plus the rounding of the midpoint to double).
+    RootResult
+        ``variable="y"``, method ``"exact-certified"``, ``rigorous=True``: ``values`` the
+        midpoints of the isolating balls (rounded to double), ``error_bounds`` upper bounds on
+        the distance from each midpoint to the one root its ball contains (ball radius plus the
+        rounding of the midpoint to double).
 
     Raises
     ------
@@ -435,7 +413,7 @@ def certified_complex_roots(
             raise ValueError(f"the zero polynomial in {variable} has no isolated roots")
         degree = len(coeffs) - 1
         if degree == 0:
-            return np.zeros(0, dtype=complex), np.zeros(0)
+            raise ValueError(f"the polynomial in {variable} is constant: no roots to isolate")
         try:
             balls = flint.acb_poly(coeffs).roots(
                 tol=tol, maxprec=max(4000, 4 * flint.ctx.prec, 60 * degree)
@@ -451,4 +429,15 @@ def certified_complex_roots(
     radii = np.array(
         [float((b.rad() + abs(b.mid() - flint.acb(complex(b.mid())))).upper()) for b in balls]
     )
-    return roots, radii
+    order = np.argsort(np.abs(roots), kind="stable")
+    return RootResult(
+        values=roots[order],
+        error_bounds=radii[order],
+        variable="y",
+        rigorous=True,
+        converged=True,
+        message=f"{degree} roots isolated in certified balls (acb_poly.roots)",
+        method="exact-certified",
+        evaluations=0,
+        count=degree,
+    )

@@ -348,9 +348,9 @@ def chain_quasi_energy(
         raise ArithmeticError(
             f"the largest root of a chain of {w.size} terms did not converge: {found.message}"
         )
-    y, dy = float(found.roots[-1]), float(found.errors[-1])
-    eta = y ** (-1.0 / n)
-    return eta, eta * dy / (n * y), "largest real root of the chain recurrence"
+    eta, bound = found.quasi_energies(n)  # scaled back without overflow
+    k = int(np.argmin(np.abs(eta)))
+    return float(abs(eta[k])), float(bound[k]), "largest real root of the chain recurrence"
 
 
 def smallest_quasi_energy(m: Model) -> tuple[float, float, str]:

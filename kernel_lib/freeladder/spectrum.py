@@ -32,14 +32,14 @@ from typing import Any, overload
 
 import numpy as np
 
-from . import certify, roots
+from . import root_methods
 from .ed import DENSE_LIMIT
 from .errors import NoTheoremError
 from .graph import ChainStructure, chain_structure
 from .jsonready import json_ready
 from .model import Model
 from .polynomial import exclusion_polynomial, sum_rules
-from .roots_complex import aberth_chain_roots, certified_complex_roots
+from .root_result import RootResult
 from .verdict import Guarantee, classify, guarantee
 
 __all__ = [
@@ -496,7 +496,8 @@ class FreeSpectrum:
         return (
             f"FreeSpectrum({mark}N={self.states}, {len(self)} quasi-energies [{eta}{more}], "
             f"method={self.provenance.method}, "
-            f"max error {self.provenance.max_error_bound:.2g})"
+            f"max error {self.provenance.max_error_bound:.2g}"
+            f" ({'proved bound' if self.provenance.finder.get('rigorous') else 'estimate'}))"
         )
 
     def _summary_rows(self) -> list[tuple[str, str]]:
@@ -726,19 +727,18 @@ def free_spectrum(
     promise = guarantee(m)
     if not promise.proven and not unproven:
         raise NoTheoremError(_refusal_message(m, promise))
-    y, y_err, x, x_err, prov = _find_roots(m, couplings, chain, method, lowest)
-    if y is not None:
-        assert y_err is not None
-        eta, eta_err, x_vals, y_vals = _from_real_roots(y, y_err, n)
-    else:
-        assert x is not None and x_err is not None
-        eta, eta_err, x_vals, y_vals = _from_reciprocal_roots(x, x_err, n)
+    found = _find_roots(m, couplings, chain, method, lowest)
+    prov = root_methods.provenance(found)
+    eta, eta_err = found.quasi_energies(n)  # scales back without overflow
+    true = found.true_values()[0]
+    with np.errstate(divide="ignore", over="ignore", under="ignore"):
+        y_vals = np.asarray(true if found.variable == "y" else 1.0 / true, dtype=complex)
     sort = np.argsort(np.abs(eta), kind="stable")
-    eta, eta_err, x_vals, y_vals = eta[sort], eta_err[sort], x_vals[sort], y_vals[sort]
+    eta, eta_err, y_vals = eta[sort], eta_err[sort], y_vals[sort]
     count = int(prov.pop("count", len(eta)))
     if lowest is not None:
         keep = int(lowest)
-        eta, eta_err, x_vals, y_vals = eta[:keep], eta_err[:keep], x_vals[:keep], y_vals[:keep]
+        eta, eta_err, y_vals = eta[:keep], eta_err[:keep], y_vals[:keep]
     complete = len(eta) == count
     degeneracy, reason = _degeneracy(m, promise.proven, count)
     provenance = SpectrumProvenance(
@@ -806,139 +806,16 @@ def _find_roots(
     chain: ChainStructure | None,
     method: str,
     lowest: int | None,
-) -> tuple[
-    np.ndarray | None, np.ndarray | None, np.ndarray | None, np.ndarray | None, dict[str, Any]
-]:
-    """Roots ``y`` (real chains) or reciprocal roots ``x = 1/y`` with their error radii."""
+) -> RootResult:
+    """The roots of P by the method the table (:mod:`freeladder.root_methods`) chooses."""
     n = m.states
-    if chain is None:
-        x, x_err, prov = _general(m)
-        return None, None, x, x_err, prov
-    w = couplings[chain.order] ** n
-    if n == 2 and np.isrealobj(couplings) and bool(np.all(w > 0)):
-        y, y_err, prov = _real_chain(np.asarray(w, dtype=float), chain.reach, method, lowest)
-        return y, y_err, None, None, prov
-    x, x_err, prov = _complex_chain(np.asarray(w, dtype=complex), chain.reach, n, method, m)
-    return None, None, x, x_err, prov
-
-
-def _from_real_roots(
-    y: np.ndarray, y_err: np.ndarray, n: int
-) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """Quasi-energies ``y^(-1/n)`` and their error bounds; also ``x = 1/y`` and complex ``y``."""
-    eta = y ** (-1.0 / n)
-    eta_err = eta * np.expm1(-np.log1p(-np.minimum(y_err / y, 0.5)) / n)
-    eta_err = np.where(y_err < 0.5 * y, eta_err, np.inf)
-    return eta, eta_err, 1.0 / y, y.astype(complex)
-
-
-def _from_reciprocal_roots(
-    x: np.ndarray, x_err: np.ndarray, n: int
-) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """Quasi-energies ``x^(1/n)`` (principal root) and their error bounds; also ``x``, ``y``."""
-    eta = _principal_root(x, n)
-    ax = np.abs(x)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        eta_err = np.where(
-            x_err < ax,
-            -(ax ** (1.0 / n)) * np.expm1(np.log1p(-np.minimum(x_err / ax, 1.0)) / n),
-            np.abs(eta) + (ax + x_err) ** (1.0 / n),
-        )
-        y_vals = 1.0 / x
-    return eta, eta_err, x, y_vals
-
-
-def _principal_root(x: np.ndarray, n: int) -> np.ndarray:
-    """Principal ``x^(1/n)``; real and positive when ``x`` is."""
-    if np.isrealobj(x) and np.all(x > 0):
-        return x ** (1.0 / n)
-    return np.power(x.astype(complex), 1.0 / n)
-
-
-def _real_chain(
-    w: np.ndarray, reach: int, method: str, lowest: int | None
-) -> tuple[np.ndarray, np.ndarray, dict[str, Any]]:
-    found = roots.chain_real_roots(w, reach, lowest=lowest)
-    y = np.asarray(found.roots, dtype=float)
-    err = np.asarray(found.errors, dtype=float)
-    prov: dict[str, Any] = {
-        "method": "fast",
-        "path": f"real roots of the chain recurrence ({found.method})",
-        "iterations": int(found.sweeps),
-        "evaluations": int(found.evaluations),
-        "converged": bool(found.converged),
-        "message": found.message,
-        "count": int(found.count),
-        "bounds": "error estimates of the real root finder (not proofs)",
-    }
-    if method == "certified":
-        enc = certify.certify_chain_roots(w, reach, y, err)
-        if not enc.certified:
-            raise ValueError(f"the real chain roots could not be certified: {enc.message}")
-        y = 0.5 * (np.asarray(enc.lower) + np.asarray(enc.upper))
-        err = np.asarray(enc.radius, dtype=float)
-        prov.update(
-            method="certified",
-            path=prov["path"] + "; certified by sign changes in ball arithmetic",
-            bounds=f"rigorous: each interval holds exactly one root ({enc.precision} bits)",
-        )
-    return y, err, prov
-
-
-def _complex_chain(
-    w: np.ndarray, reach: int, n: int, method: str, m: Model
-) -> tuple[np.ndarray, np.ndarray, dict[str, Any]]:
-    if method == "certified":
-        x, x_err, prov = _general(m)
-        prov["path"] = "exact chain polynomial, certified complex roots (python-flint)"
-        return x, x_err, prov
-    found = aberth_chain_roots(w, reach, order=n)
-    prov = {
-        "method": "fast",
-        "path": "Aberth-Ehrlich iteration on the chain recurrence (complex plane)",
-        "iterations": found.iterations,
-        "evaluations": found.evaluations,
-        "start": found.start,
-        "converged": bool(np.all(found.converged)),
-        "isolated": bool(np.all(found.isolated)),
-        "bounds": (
-            "inclusion discs n|W_k| (Weierstrass/Gerschgorin, Braess-Hadeler 1973) with a "
-            "statistical rounding-error estimate: estimates, not proofs"
-        ),
-        "count": len(found.x),
-    }
-    return found.x, found.radius, prov
-
-
-def _general(m: Model) -> tuple[np.ndarray, np.ndarray, dict[str, Any]]:
-    """Roots through the exact polynomial: reciprocal roots ``x = 1 / y`` and radii in x."""
-    poly = exclusion_polynomial(m)
-    re_parts, im_parts = poly.exact_parts()
-    if all(v == 0 for v in im_parts):
-        found = certify.certified_roots(list(re_parts))
-        y = np.repeat(np.asarray(found.midpoints), np.asarray(found.multiplicities))
-        y_rad = np.repeat(np.asarray(found.radii), np.asarray(found.multiplicities))
-        how = f"fmpq_poly.complex_roots, {found.precision} bits"
+    if method == "certified" and chain is not None and not (n == 2 and np.isrealobj(couplings)):
+        found = root_methods.solve_general(m)
+    elif chain is not None:
+        found = root_methods.solve_chain(couplings[chain.order], chain.reach, n, method, lowest)
     else:
-        y, y_rad = certified_complex_roots(re_parts, im_parts)
-        how = "acb_poly roots of the exact Gaussian-rational polynomial"
-    if np.any(y == 0) or len(y) != poly.degree:
-        raise ValueError(
-            "the exclusion polynomial has a root at y = 0 or lost degree; P(0) must be 1"
-        )
-    x = 1.0 / y
-    ay = np.abs(y)
-    # |1/y - 1/y'| <= r / (|y| (|y| - r)) for |y - y'| <= r < |y|.
-    with np.errstate(divide="ignore"):
-        x_rad = np.where(y_rad < ay, y_rad / (ay * (ay - y_rad)), np.inf)
-    prov = {
-        "method": "certified",
-        "path": f"exact exclusion polynomial ({poly.kind}), certified roots ({how})",
-        "iterations": 0,
-        "bounds": "rigorous isolating balls of the roots of the exact polynomial",
-        "count": poly.degree,
-    }
-    return x, x_rad, prov
+        found = root_methods.solve_general(m)
+    return found
 
 
 def _degeneracy(m: Model, proven: bool, count: int) -> tuple[int | None, str]:

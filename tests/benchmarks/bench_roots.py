@@ -80,12 +80,12 @@ def main(quick: bool) -> None:
     c = couplings(m, 1)
     r, t_ours = timed(chain_real_roots, c**2, 1)
     ev, t_lapack = timed(scipy.linalg.eigvalsh_tridiagonal, np.zeros(m + 1), c)
-    eta, ref = np.sort(r.roots**-0.5), np.sort(ev)[-r.count :]
+    eta, ref = np.sort(r.values**-0.5), np.sort(ev)[-r.count :]
     err = np.max(np.abs(eta - ref)) / ref.max()
     print(
         f"[reach 1, M={m}] ours {t_ours:.2f} s, eigvalsh_tridiagonal {t_lapack:.2f} s, "
         f"ratio lapack/ours {t_lapack / t_ours:.1f}; max |eta - eta_lapack| / eta_max = {err:.1e}"
-        f" ({r.sweeps} sweeps, {r.evaluations / r.count:.1f} evaluations per root)"
+        f" ({r.iterations} sweeps, {r.evaluations / r.count:.1f} evaluations per root)"
     )
 
     # 2. Threads: the same run on one core.
@@ -101,10 +101,10 @@ def main(quick: bool) -> None:
     w = couplings(m, 2) ** 2
     r, t = timed(chain_real_roots, w, 2)
     s1, s2 = chain_inverse_power_sums(w, 2)
-    e1 = abs(np.sum(1 / r.roots) - s1) / s1
-    e2 = abs(np.sum(r.roots**-2.0) - s2) / s2
+    e1 = abs(np.sum(1 / r.values) - s1) / s1
+    e2 = abs(np.sum(r.values**-2.0) - s2) / s2
     print(
-        f"[reach 2, M={m}] all {r.count} roots in {t:.1f} s ({r.sweeps} sweeps, "
+        f"[reach 2, M={m}] all {r.count} roots in {t:.1f} s ({r.iterations} sweeps, "
         f"{r.evaluations / r.count:.1f} evaluations per root); sum rules: sum eta^2 rel. "
         f"residual {e1:.1e}, sum eta^4 {e2:.1e}"
     )
@@ -113,20 +113,21 @@ def main(quick: bool) -> None:
     m = 10**6
     g, t = timed(chain_real_roots, np.ones(m), 2, lowest=1)
     print(
-        f"[reach 2, M={m}, uniform] gap eta_min = {g.roots[0] ** -0.5:.6e} in {t:.2f} s "
-        f"({g.sweeps} sweeps)"
+        f"[reach 2, M={m}, uniform] gap eta_min = {g.values[0] ** -0.5:.6e} in {t:.2f} s "
+        f"({g.iterations} sweeps)"
     )
 
     # 5. Accuracy against certified enclosures, reach 2, 2000 random couplings.
     m = 600 if quick else 2000
     w = couplings(m, 3) ** 2
     r, t_ours = timed(chain_real_roots, w, 2)
-    enc, t_cert = timed(certify_chain_roots, w, 2, r.roots, r.errors)
-    mid = 0.5 * (enc.lower + enc.upper)
-    rel = np.max((np.abs(r.roots - mid) + enc.radius) / r.roots)
-    est = np.max(r.errors / r.roots)
+    enc, t_cert = timed(certify_chain_roots, w, 2, r.values, r.error_bounds)
+    mid = enc.values
+    rel = np.max((np.abs(r.values - mid) + enc.error_bounds) / r.values)
+    est = np.max(r.error_bounds / r.values)
     print(
-        f"[reach 2, M={m}] certified={enc.certified} ({enc.message}; {enc.precision} bits) in "
+        f"[reach 2, M={m}] certified={enc.rigorous} ({enc.message}; "
+        f"{enc.details['precision']} bits) in "
         f"{t_cert:.1f} s vs {t_ours:.3f} s to find them; proved max relative error {rel:.1e}"
         f", estimated {est:.1e}"
     )
@@ -134,7 +135,7 @@ def main(quick: bool) -> None:
     # 6. Baselines on the expanded coefficients.
     for m in (30, 60, 90, 150):
         w = couplings(m, 4) ** 2
-        ours = chain_real_roots(w, 2).roots
+        ours = chain_real_roots(w, 2).values
         coeffs = expanded_coefficients(w, 2)
         z, t_np = timed(np.roots, coeffs[::-1])
         z = np.sort_complex(z)
@@ -152,7 +153,7 @@ def main(quick: bool) -> None:
             z, t_mp = timed(mpmath.polyroots, mp, maxsteps=300, extraprec=200)
             err = max(
                 abs(float(mpmath.re(a)) - b) / b
-                for a, b in zip(sorted(z, key=mpmath.re), ours.roots, strict=True)
+                for a, b in zip(sorted(z, key=mpmath.re), ours.values, strict=True)
             )
         print(
             f"[reach 2, M={m}] mpmath.polyroots 50 digits {t_mp:.2f} s vs ours {t_ours * 1e3:.1f}"

@@ -1,0 +1,198 @@
+"""One frozen result type for every root finder of the exclusion polynomial.
+
+Every finder (real chain roots by counting, Aberth-Ehrlich complex roots on the recurrence,
+certified sign-change enclosures, certified roots of the exact polynomial) returns a
+:class:`RootResult`.  ``rigorous`` is True only when ``error_bounds`` are proofs; otherwise
+they are estimates and every printed form says so with the word "estimate".
+
+Scale
+-----
+Root finders scale out the largest coupling magnitude (a power of two, so the scaling is
+exact) before they work, so that accuracy does not depend on the overall scale.  ``values``
+and ``error_bounds`` are then those of the scaled problem, and ``weight_log2`` records the
+scale: the weights ``w_j = c_j^N`` were divided by ``2**weight_log2``, so the true roots are
+``y = values * 2**-weight_log2`` (variable "y") or ``x = values * 2**weight_log2``
+(variable "x").  :meth:`RootResult.quasi_energies` applies it without overflow.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from types import MappingProxyType
+from typing import Any, Literal
+
+import numpy as np
+
+from .jsonready import json_ready
+
+__all__ = ["RootResult"]
+
+
+def _frozen(values: Any, dtype: Any = None) -> np.ndarray:
+    arr = np.array(values, dtype=dtype, copy=True)
+    arr.setflags(write=False)
+    return arr
+
+
+@dataclass(frozen=True)
+class RootResult:
+    """Roots of an exclusion polynomial with per-root error bounds and how they were found.
+
+    Attributes
+    ----------
+    values : numpy.ndarray
+        Roots (read-only), of the scaled problem (see ``weight_log2``).  Real chains:
+        ascending; complex roots: sorted by modulus.
+    error_bounds : numpy.ndarray
+        Per value, absolute, in the same variable and scale as ``values`` (read-only).
+        Proofs when ``rigorous`` is True, estimates otherwise.
+    variable : "y" or "x"
+        ``"y"``: roots of ``P``; ``"x"``: reciprocal roots ``x = 1 / y = eta^N``.
+    rigorous : bool
+        True only when every bound is proved (each interval or ball holds exactly the root).
+    converged : bool
+        Every requested root met its stopping rule.
+    message : str
+    method : str
+        The key of the method table (:data:`freeladder.root_methods.ROOT_METHODS`).
+    evaluations : int
+        Point evaluations of the polynomial (each O(M) for the chain methods).
+    count : int
+        Number of roots of the whole problem (``values`` may hold fewer, with ``lowest=``).
+    iterations : int
+        Sweeps over the chain (or precision steps) done.
+    indices : numpy.ndarray of int64
+        0-based position of each value among all ``count`` roots (ascending ``y`` for real
+        chains; by modulus otherwise).
+    weight_log2 : int
+        The weights were divided by ``2**weight_log2`` before root finding.
+    details : mapping
+        Method-specific extras (read-only), e.g. ``isolated`` discs, ``precision`` bits,
+        ``multiplicities``, ``lower`` / ``upper`` interval ends.
+    """
+
+    values: np.ndarray
+    error_bounds: np.ndarray
+    variable: Literal["y", "x"]
+    rigorous: bool
+    converged: bool
+    message: str
+    method: str
+    evaluations: int
+    count: int
+    iterations: int = 0
+    indices: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
+    weight_log2: int = 0
+    details: Mapping[str, Any] = field(default_factory=dict)
+
+    def __post_init__(self) -> None:
+        values = _frozen(self.values)
+        bounds = _frozen(self.error_bounds, dtype=np.float64)
+        if values.ndim != 1 or bounds.shape != values.shape:
+            raise ValueError(
+                f"values and error_bounds must be 1-d of one length, got shapes {values.shape} "
+                f"and {bounds.shape}"
+            )
+        if self.variable not in ("y", "x"):
+            raise ValueError(f"variable must be 'y' or 'x', got {self.variable!r}")
+        indices = self.indices
+        if len(indices) == 0 and values.size:
+            indices = np.arange(values.size, dtype=np.int64)
+        details = {
+            k: (_frozen(v) if isinstance(v, np.ndarray) else v) for k, v in self.details.items()
+        }
+        set_ = object.__setattr__
+        set_(self, "values", values)
+        set_(self, "error_bounds", bounds)
+        set_(self, "indices", _frozen(indices, dtype=np.int64))
+        set_(self, "details", MappingProxyType(details))
+        for name in ("rigorous", "converged"):
+            set_(self, name, bool(getattr(self, name)))
+        for name in ("evaluations", "count", "iterations", "weight_log2"):
+            set_(self, name, int(getattr(self, name)))
+
+    @property
+    def bound_kind(self) -> str:
+        """``"proved bound"`` or ``"estimate (not a proof)"``: what ``error_bounds`` are."""
+        return "proved bound" if self.rigorous else "estimate (not a proof)"
+
+    def true_values(self) -> tuple[np.ndarray, np.ndarray]:
+        """``values`` and ``error_bounds`` scaled back (may over- or underflow in float64)."""
+        e = -self.weight_log2 if self.variable == "y" else self.weight_log2
+        with np.errstate(over="ignore", under="ignore"):
+            if np.iscomplexobj(self.values):
+                v = np.ldexp(self.values.real, e) + 1j * np.ldexp(self.values.imag, e)
+            else:
+                v = np.ldexp(self.values, e)
+            return v, np.ldexp(self.error_bounds, e)
+
+    def quasi_energies(self, states: int) -> tuple[np.ndarray, np.ndarray]:
+        """``eta`` with ``eta^N = x`` (principal root) and a bound of the same kind on each.
+
+        Real and positive for real positive roots.  The bound on ``|eta - eta_exact|`` follows
+        from the bound on the root: for ``|x - x'| <= r < |x|``,
+        ``|x^(1/N) - x'^(1/N)| <= |x|^(1/N) (1 - (1 - r/|x|)^(1/N))`` on the branch nearest
+        to ``x^(1/N)``; larger relative errors give ``inf`` (for ``y``) or the modulus bound.
+        Computed on the scaled values and multiplied by ``2**(weight_log2 / N)`` afterwards,
+        so it neither overflows nor underflows where the quasi-energies themselves are floats.
+        """
+        n = int(states)
+        v, r = self.values, self.error_bounds
+        av = np.abs(v)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            if self.variable == "y":
+                x = 1.0 / v
+                ratio = np.where(av > 0, r / av, np.inf)
+                # |1/y - 1/y'| <= r / (|y| (|y| - r)): relative r / (|y| - r) in x
+                rel_x = np.where(ratio < 0.5, ratio / (1.0 - ratio), np.inf)
+            else:
+                x = v
+                rel_x = np.where(av > 0, r / av, np.inf)
+            if np.isrealobj(x) and np.all(x > 0):
+                eta = x ** (1.0 / n)
+            else:
+                eta = np.power(np.asarray(x, dtype=complex), 1.0 / n)
+            ax = np.abs(x)
+            eta_err = np.where(
+                rel_x < 1.0,
+                -(ax ** (1.0 / n)) * np.expm1(np.log1p(-np.minimum(rel_x, 1.0)) / n),
+                np.inf if self.variable == "y" else np.abs(eta) + (ax * (1 + rel_x)) ** (1 / n),
+            )
+        scale = 2.0 ** (self.weight_log2 / n)
+        return eta * scale, eta_err * scale
+
+    def summary(self) -> str:
+        """One line: how many roots, method, convergence, and the largest relative bound."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            rel = self.error_bounds / np.abs(self.values)
+        worst = float(np.max(rel)) if rel.size else 0.0
+        state = "converged" if self.converged else "NOT converged"
+        return (
+            f"{self.values.size} of {self.count} roots ({self.variable}) by {self.method}, "
+            f"{state}; largest relative error {self.bound_kind}: {worst:.2g}; {self.message}"
+        )
+
+    def __repr__(self) -> str:
+        return f"RootResult({self.summary()})"
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields (see :func:`freeladder.jsonready.json_ready`)."""
+        return json_ready(
+            {
+                "values": self.values,
+                "error_bounds": self.error_bounds,
+                "bound_kind": self.bound_kind,
+                "variable": self.variable,
+                "rigorous": self.rigorous,
+                "converged": self.converged,
+                "message": self.message,
+                "method": self.method,
+                "evaluations": self.evaluations,
+                "count": self.count,
+                "iterations": self.iterations,
+                "indices": self.indices,
+                "weight_log2": self.weight_log2,
+                "details": dict(self.details),
+            }
+        )

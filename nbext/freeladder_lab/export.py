@@ -1,0 +1,336 @@
+"""Export a worked calculation into the notebook: the comm to our JupyterLab plugin, and a panel.
+
+The kernel opens a comm on :data:`COMM_TARGET` carrying the cells and a marker (the model id of
+the widget that asked).  The browser half (``nbext/src/index.ts``, the ``freeladder-cells``
+JupyterLab extension) inserts the cells directly below the notebook cell that shows that widget,
+in one undoable edit, and answers on the comm with what it inserted.  When nothing answers
+within a short time (VS Code, other front ends, a plain kernel, or a server that was not
+restarted after installing), :class:`ExportPanel` says so and offers the fallbacks: save the
+cells as a new notebook next to the current one, or show their text to copy.
+"""
+
+from __future__ import annotations
+
+import asyncio
+import os
+import threading
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+import ipywidgets as widgets
+
+import freeladder as fl
+
+__all__ = [
+    "COMM_TARGET",
+    "MARKER_CLASS",
+    "REPLY_TIMEOUT",
+    "ExportPanel",
+    "InsertReply",
+    "fresh_notebook_path",
+    "send_cells",
+]
+
+COMM_TARGET = "freeladder.cells.v1"
+"""The comm target the browser half registers on every notebook kernel."""
+
+MARKER_CLASS = "freeladder-export-"
+"""CSS class prefix (plus the widget's model id) by which the plugin finds a nested panel."""
+
+REPLY_TIMEOUT = 5.0
+"""Seconds to wait for the plugin's answer before offering the fallbacks."""
+
+NO_EXTENSION = (
+    "No notebook extension answered, so nothing was inserted. This front end may not load "
+    "freeladder's JupyterLab extension (VS Code, other front ends, a plain kernel), or the "
+    "Jupyter server was started before freeladder was installed: after <code>%pip install "
+    "freeladder</code> the server must be restarted to load the browser half. Use "
+    "<b>save as notebook</b> or <b>copy text</b> instead."
+)
+
+
+@dataclass(frozen=True)
+class InsertReply:
+    """What the browser half answered (or that it did not).
+
+    Attributes
+    ----------
+    status : str
+        "inserted", "refused" (the plugin rejected the message; see ``reason``) or
+        "no answer" (timed out, or the front end closed the comm without a handler).
+    count : int
+        Cells inserted.
+    index : int
+        Position of the first inserted cell in the notebook (-1 when none).
+    anchor : str
+        "widget" (below the cell showing the widget) or "active cell" (the widget was not
+        found in any output), empty when nothing was inserted.
+    path : str
+        The notebook's path as the server knows it.
+    reason : str
+        Why nothing was inserted.
+    """
+
+    status: str
+    count: int = 0
+    index: int = -1
+    anchor: str = ""
+    path: str = ""
+    reason: str = ""
+
+    @classmethod
+    def from_data(cls, data: Any) -> InsertReply:
+        """Read the plugin's answer; a malformed answer becomes a "refused" reply."""
+        if not isinstance(data, dict) or data.get("status") not in ("inserted", "refused"):
+            return cls("refused", reason=f"unexpected answer from the front end: {data!r}")
+        return cls(
+            str(data["status"]),
+            int(data.get("count", 0)),
+            int(data.get("index", -1)),
+            str(data.get("anchor", "")),
+            str(data.get("path", "")),
+            str(data.get("reason", "")),
+        )
+
+
+def _later(seconds: float, action: Callable[[], None]) -> None:
+    """Run ``action`` after ``seconds`` on the kernel's event loop (a timer thread without one)."""
+    try:
+        loop = asyncio.get_running_loop()
+    except RuntimeError:
+        timer = threading.Timer(seconds, action)
+        timer.daemon = True
+        timer.start()
+    else:
+        loop.call_later(seconds, action)
+
+
+def send_cells(
+    cells: fl.WorkedCalculation | Sequence[fl.Cell],
+    marker: str,
+    on_reply: Callable[[InsertReply], None],
+    timeout: float = REPLY_TIMEOUT,
+) -> None:
+    """Send cells to the notebook's browser half; ``on_reply`` gets its answer or a timeout.
+
+    Parameters
+    ----------
+    cells : WorkedCalculation or sequence of Cell
+        What to insert, in order.
+    marker : str
+        The model id of the widget that asks: the cells go below the notebook cell showing it.
+    on_reply : callable
+        Called with an :class:`InsertReply`: the plugin's answer, or status "no answer" when
+        the front end closes the comm unanswered or after ``timeout`` seconds.  An answer that
+        arrives after the timeout is still passed on (a second call), so that a slow front end
+        that did insert the cells is not reported as missing.
+    timeout : float
+        Seconds to wait.
+
+    Notes
+    -----
+    The wait does not block: the plugin's answer reaches the kernel as a message on the shell
+    channel, which the kernel handles only after the running widget callback or cell returns,
+    so a blocking wait would always time out.  The timeout is scheduled on the kernel's event
+    loop instead.
+    """
+    from comm import create_comm
+
+    answered = False
+    timed_out = False
+
+    def answer(reply: InsertReply) -> None:
+        nonlocal answered
+        if not answered:
+            answered = True
+            on_reply(reply)
+
+    def give_up() -> None:
+        nonlocal timed_out
+        if not answered:
+            timed_out = True
+            on_reply(InsertReply("no answer", reason=f"no answer within {timeout:g} s"))
+
+    payload = {
+        "cells": [{"kind": c.kind, "source": c.source} for c in cells],
+        "marker": str(marker),
+    }
+    channel = create_comm(target_name=COMM_TARGET, data=payload)
+    channel.on_msg(lambda msg: answer(InsertReply.from_data(msg["content"]["data"])))
+    channel.on_close(
+        lambda msg: (
+            None
+            if timed_out
+            else answer(
+                InsertReply("no answer", reason="the front end has no handler for the cells")
+            )
+        )
+    )
+    _later(timeout, give_up)
+
+
+def fresh_notebook_path(folder: str | Path | None = None, stem: str | None = None) -> Path:
+    """A notebook path that does not exist yet: ``<stem>-worked.ipynb``, then ``-2``, ``-3`` ...
+
+    ``folder`` defaults to the folder of the current notebook: the parent of the server's
+    ``JPY_SESSION_NAME`` when that is an existing absolute path, else the kernel's working
+    folder (Jupyter servers start kernels in the notebook's folder).  ``stem`` defaults to the
+    current notebook's name, or "calculation".
+    """
+    session = os.environ.get("JPY_SESSION_NAME", "")
+    session_path = Path(session) if session else None
+    if folder is None:
+        if session_path is not None and session_path.is_absolute() and session_path.exists():
+            folder = session_path.parent
+        else:
+            folder = Path.cwd()
+    if stem is None:
+        stem = session_path.stem if session_path is not None and session_path.stem else None
+        stem = stem or "calculation"
+    base = Path(folder)
+    candidate = base / f"{stem}-worked.ipynb"
+    k = 2
+    while candidate.exists():
+        candidate = base / f"{stem}-worked-{k}.ipynb"
+        k += 1
+    return candidate
+
+
+class ExportPanel(widgets.VBox):
+    """Buttons that put a model's worked calculation into the notebook, with fallbacks.
+
+    Parameters
+    ----------
+    get_model : callable
+        Returns the model to export at the moment a button is pressed.
+    folder : str or Path, optional
+        Where "save as notebook" writes (default: next to the current notebook).
+    timeout : float
+        Seconds to wait for the browser half's answer.
+
+    Examples
+    --------
+    In a notebook cell::
+
+        from freeladder_lab.export import ExportPanel
+        ExportPanel(lambda: model)
+    """
+
+    def __init__(
+        self,
+        get_model: Callable[[], fl.Model],
+        folder: str | Path | None = None,
+        timeout: float = REPLY_TIMEOUT,
+    ) -> None:
+        self._get_model = get_model
+        self._folder = folder
+        self._timeout = float(timeout)
+        self._cache: tuple[fl.Model, fl.WorkedCalculation] | None = None
+        self.insert_button = widgets.Button(
+            description="insert cells below",
+            icon="plus",
+            tooltip="insert the worked cells",
+            layout=widgets.Layout(width="auto"),
+        )
+        self.save_button = widgets.Button(
+            description="save as notebook",
+            icon="save",
+            tooltip="write a new notebook file",
+            layout=widgets.Layout(width="auto"),
+        )
+        self.text_button = widgets.Button(
+            description="copy text",
+            icon="file-text",
+            tooltip="show the cells' text to copy",
+            layout=widgets.Layout(width="auto"),
+        )
+        self.status = widgets.HTML("")
+        self.text = widgets.Textarea(
+            value="", layout=widgets.Layout(width="100%", height="16em", display="none")
+        )
+        self.text.observe(self._keep_text, names="value")
+        self._shown_text = ""
+        self.insert_button.on_click(lambda _: self.insert())
+        self.save_button.on_click(lambda _: self.save())
+        self.text_button.on_click(lambda _: self.show_text())
+        buttons = widgets.HBox([self.insert_button, self.save_button, self.text_button])
+        super().__init__([buttons, self.status, self.text])
+        self.add_class("freeladder-export")
+        self.add_class(MARKER_CLASS + self.model_id)
+
+    # -- the cells -----------------------------------------------------------------------------
+    def _calculation(self) -> fl.WorkedCalculation | None:
+        """The current model's worked calculation (cached per model), or None after an error."""
+        try:
+            model = self._get_model()
+            if self._cache is not None and self._cache[0] is model:
+                return self._cache[1]
+            self._say("working out the calculation ...")
+            wc = fl.worked_calculation(model)
+        except Exception as err:  # shown to the user; the model and the notebook stay intact
+            self._say(f"could not export: {type(err).__name__}: {err}", error=True)
+            return None
+        self._cache = (model, wc)
+        return wc
+
+    def _say(self, html: str, error: bool = False) -> None:
+        color = "#b00020" if error else "inherit"
+        self.status.value = f'<span style="color: {color}">{html}</span>'
+
+    # -- actions ---------------------------------------------------------------------------------
+    def insert(self) -> None:
+        """Send the cells to the browser half; the status line shows its answer."""
+        wc = self._calculation()
+        if wc is None:
+            return
+        self._say(f"sending {len(wc)} cells to the notebook ...")
+        send_cells(wc, self.model_id, self._on_reply, timeout=self._timeout)
+
+    def _on_reply(self, reply: InsertReply) -> None:
+        if reply.status == "inserted":
+            where = "below this widget" if reply.anchor == "widget" else "below the active cell"
+            self._say(
+                f"inserted {reply.count} cells {where} (cell {reply.index + 1} on); one undo "
+                "(Z in command mode) removes them all"
+            )
+        elif reply.status == "refused":
+            self._say(f"the notebook refused the cells: {reply.reason}", error=True)
+        else:
+            self._say(NO_EXTENSION, error=True)
+
+    def save(self) -> Path | None:
+        """Write the cells as a new notebook next to the current one (never overwrites)."""
+        wc = self._calculation()
+        if wc is None:
+            return None
+        for _ in range(100):
+            path = fresh_notebook_path(self._folder)
+            try:
+                wc.to_notebook(path)
+            except FileExistsError:
+                continue  # created meanwhile by someone else: pick the next fresh name
+            except OSError as err:
+                self._say(f"could not save: {err}", error=True)
+                return None
+            self._say(f"saved as <code>{path.name}</code> in {path.parent}")
+            return path
+        self._say("could not find a fresh file name", error=True)
+        return None
+
+    def show_text(self) -> str | None:
+        """Show the cells as one script in a read-only text box, to copy."""
+        wc = self._calculation()
+        if wc is None:
+            return None
+        self._shown_text = wc.to_script()
+        self.text.value = self._shown_text
+        self.text.layout.display = None
+        self._say("the cells as a script: select the text and copy it (edits are undone)")
+        return self._shown_text
+
+    def _keep_text(self, change: dict[str, Any]) -> None:
+        """Undo edits in the text box: it shows the export, it is not an editor."""
+        if change["new"] != self._shown_text:
+            self.text.value = self._shown_text

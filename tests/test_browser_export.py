@@ -1,0 +1,338 @@
+"""End to end: the export panel inserts the worked cells below itself; they run; one undo.
+
+The path a person takes, in JupyterLab and in Notebook 7 (one server, this interpreter's, on
+127.0.0.1 with a token and a temporary root): open a notebook that shows an ExportPanel, run it,
+press "insert cells below", find the worked calculation's cells directly below the panel's cell
+(the cells around it untouched), run everything and see every cell pass, then undo once in
+command mode and find the notebook as it was.  Screenshots go to tests/artifacts/.
+
+The expected cells come from ``fl.worked_calculation`` in this process (the same function the
+kernel calls); that the cells really check is tested in test_worked.py.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import secrets
+import shutil
+import socket
+import subprocess
+import sys
+import sysconfig
+import time
+import urllib.request
+import uuid
+from collections.abc import Iterator
+from pathlib import Path
+
+import nbformat
+import pytest
+
+import freeladder as fl
+
+CHROMIUM = Path("/usr/bin/chromium")
+CHROMIUM_ARGS = [
+    "--headless",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+    "--no-first-run",
+]
+IN_CI = os.environ.get("CI", "").lower() in ("1", "true", "yes")
+
+if not CHROMIUM.exists():
+    if IN_CI:
+        pytest.fail(f"{CHROMIUM} is missing under CI: .ci/run must install chromium", pytrace=False)
+    message = (
+        f"SKIPPING the export browser test: {CHROMIUM} is not installed (apt-get install chromium)"
+    )
+    print(f"\n*** {message} ***\n", file=sys.stderr)
+    pytest.skip(message, allow_module_level=True)
+
+sync_api = pytest.importorskip("playwright.sync_api")
+
+MODEL_SOURCE = "fl.ising_chain(3, field=0.75)"
+PANEL_CELL = f"""import freeladder as fl
+from freeladder_lab.export import ExportPanel
+
+model = {MODEL_SOURCE}
+ExportPanel(lambda: model)"""
+AFTER_CELL = 'print("the cell after the panel")'
+
+
+def _labextension_dir() -> Path:
+    return Path(sysconfig.get_path("data")) / "share/jupyter/labextensions/freeladder-cells"
+
+
+def _free_port() -> int:
+    with socket.socket(socket.AF_INET, socket.SOCK_STREAM) as s:
+        s.bind(("127.0.0.1", 0))
+        return int(s.getsockname()[1])
+
+
+def _wait_for_server(url: str, token: str, proc: subprocess.Popen, log: Path) -> None:
+    deadline = time.monotonic() + 90
+    request = urllib.request.Request(
+        url + "api/status", headers={"Authorization": f"token {token}"}
+    )
+    while time.monotonic() < deadline:
+        if proc.poll() is not None:
+            raise RuntimeError(f"jupyter lab exited early ({proc.returncode}):\n{log.read_text()}")
+        try:
+            with urllib.request.urlopen(request, timeout=2) as reply:
+                if reply.status == 200:
+                    return
+        except OSError:
+            time.sleep(0.3)
+    raise RuntimeError(f"jupyter lab did not answer within 90 s:\n{log.read_text()}")
+
+
+@pytest.fixture(scope="module")
+def server(
+    tmp_path_factory: pytest.TempPathFactory, kernel_dirs: Path
+) -> Iterator[tuple[str, str, Path]]:
+    """JupyterLab (which also serves Notebook 7) on a free port with a token and its own dirs."""
+    assert (_labextension_dir() / "package.json").exists(), (
+        f"the freeladder-cells extension is not installed at {_labextension_dir()}: "
+        "pip install the package (its build runs the node build of nbext/)"
+    )
+    tmp = tmp_path_factory.mktemp("lab-export")
+    root = tmp / "notebooks"
+    root.mkdir()
+    config, data, runtime = (tmp / name for name in ("config", "data", "runtime"))
+    shutil.copytree(kernel_dirs, data / "kernels")
+    user = config / "lab" / "user-settings" / "@jupyterlab"
+    (user / "apputils-extension").mkdir(parents=True)
+    (user / "apputils-extension" / "notification.jupyterlab-settings").write_text(
+        json.dumps({"fetchNews": "false", "checkForUpdates": False})
+    )
+    # Every cell stays in the page, so that the test reads all of them.
+    (user / "notebook-extension").mkdir(parents=True)
+    (user / "notebook-extension" / "tracker.jupyterlab-settings").write_text(
+        json.dumps({"windowingMode": "none"})
+    )
+    env = dict(os.environ)
+    env.update(
+        JUPYTER_CONFIG_DIR=str(config),
+        JUPYTER_DATA_DIR=str(data),
+        JUPYTER_PATH=str(data),
+        JUPYTER_RUNTIME_DIR=str(runtime),
+        JUPYTERLAB_SETTINGS_DIR=str(config / "lab" / "user-settings"),
+        JUPYTERLAB_WORKSPACES_DIR=str(config / "lab" / "workspaces"),
+        JUPYTER_PLATFORM_DIRS="1",
+    )
+    token = secrets.token_hex(16)
+    port = _free_port()
+    log = tmp / "lab.log"
+    cmd = [
+        sys.executable,
+        "-m",
+        "jupyterlab",
+        "--no-browser",
+        "--ip=127.0.0.1",
+        f"--port={port}",
+        "--ServerApp.port_retries=0",
+        f"--IdentityProvider.token={token}",
+        f"--ServerApp.root_dir={root}",
+        "--LabApp.news_url=",
+        "--LabApp.check_for_updates_class=jupyterlab.NeverCheckForUpdate",
+    ]
+    if os.geteuid() == 0:
+        cmd.append("--allow-root")
+    with log.open("w") as out:
+        proc = subprocess.Popen(cmd, env=env, stdout=out, stderr=subprocess.STDOUT, cwd=root)
+    url = f"http://127.0.0.1:{port}/"
+    try:
+        _wait_for_server(url, token, proc, log)
+        yield url, token, root
+    finally:
+        proc.terminate()
+        try:
+            proc.wait(timeout=20)
+        except subprocess.TimeoutExpired:
+            proc.kill()
+            proc.wait(timeout=10)
+
+
+def _write_notebook(path: Path) -> None:
+    nb = nbformat.v4.new_notebook()
+    nb.metadata["kernelspec"] = {
+        "name": "python3",
+        "display_name": "Python 3",
+        "language": "python",
+    }
+    nb.cells = [
+        nbformat.v4.new_markdown_cell("Export test: a panel, then a cell after it."),
+        nbformat.v4.new_code_cell(PANEL_CELL),
+        nbformat.v4.new_code_cell(AFTER_CELL),
+    ]
+    nbformat.write(nb, path)
+
+
+@pytest.mark.parametrize("app", ["lab", "notebook7"])
+def test_export_inserts_runs_and_undoes(
+    app: str, server: tuple[str, str, Path], artifacts_dir: Path
+) -> None:
+    url, token, root = server
+    name = f"export-{app}.ipynb"
+    _write_notebook(root / name)
+    expected = fl.worked_calculation(fl.ising_chain(3, field=0.75))
+    if app == "lab":
+        address = f"{url}lab/workspaces/t{uuid.uuid4().hex[:10]}/tree/{name}?reset&token={token}"
+    else:
+        address = f"{url}notebooks/{name}?token={token}"
+    with sync_api.sync_playwright() as pw:
+        browser = pw.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
+        page = browser.new_page(viewport={"width": 1400, "height": 1000})
+        try:
+            page.goto(address)
+            notebook = page.locator(".jp-Notebook:visible").first
+            cells = notebook.locator(".jp-Cell")
+            cells.first.wait_for(timeout=90_000)
+            _wait_cell_count(page, 3)
+
+            _wait_kernel_idle(url, token, name)
+            _run_all(page)
+            insert = notebook.get_by_role("button", name="insert cells below")
+            insert.wait_for(timeout=120_000)
+            _wait_all_ran(page, 2)
+            insert.click()
+            panel = notebook.locator(".freeladder-export")
+            panel.filter(has_text="inserted").wait_for(timeout=60_000)
+            assert "below this widget" in panel.text_content()
+
+            # The worked cells sit directly below the panel's cell; the cells around it are
+            # the same, in the same order.
+            _wait_cell_count(page, 3 + len(expected))
+            _assert_layout(cells, expected.cells)
+            _shot(page, cells.nth(2), artifacts_dir / f"export-{app}-inserted.png")
+
+            _run_all(page)
+            n_code = 2 + sum(c.kind == "code" for c in expected)
+            _wait_all_ran(page, n_code)
+            outputs = notebook.locator(".jp-OutputArea-output")
+            texts = outputs.all_text_contents()
+            stderr = notebook.locator(
+                '.jp-OutputArea-output[data-mime-type="application/vnd.jupyter.stderr"]'
+            ).all_text_contents()
+            assert not stderr, stderr
+            joined = "\n".join(texts)
+            assert "Traceback" not in joined and "AssertionError" not in joined, joined[:3000]
+            assert "all checks passed" in joined, joined[-3000:]
+            assert "the cell after the panel" in joined
+            _shot(page, cells.nth(3 + len(expected) - 1), artifacts_dir / f"export-{app}-ran.png")
+
+            # One undo in command mode removes every inserted cell.
+            cells.first.click()
+            page.keyboard.press("Escape")
+            page.keyboard.press("z")
+            _wait_cell_count(page, 3)
+            assert "Export test" in cells.nth(0).text_content()
+            assert "ExportPanel(lambda: model)" in cells.nth(1).text_content()
+            assert "the cell after the panel" in cells.nth(2).text_content()
+            _shot(page, cells.first, artifacts_dir / f"export-{app}-undone.png")
+        except Exception:
+            page.screenshot(path=str(artifacts_dir / f"export-{app}-failure.png"))
+            raise
+        finally:
+            browser.close()
+
+
+def _wait_kernel_idle(url: str, token: str, name: str) -> None:
+    """Wait until the server has a session for notebook ``name`` whose kernel is idle.
+
+    Running cells before the kernel is up loses executions (or opens a kernel dialog); the
+    server's own session list says when the kernel is ready.
+    """
+    request = urllib.request.Request(
+        url + "api/sessions", headers={"Authorization": f"token {token}"}
+    )
+    deadline = time.monotonic() + 120
+    while time.monotonic() < deadline:
+        with urllib.request.urlopen(request, timeout=5) as reply:
+            sessions = json.load(reply)
+        states = [s["kernel"]["execution_state"] for s in sessions if s.get("path") == name]
+        if states == ["idle"]:
+            return
+        time.sleep(0.5)
+    raise AssertionError(f"no idle kernel for {name} within 120 s: {sessions}")
+
+
+def _wait_cell_count(page: sync_api.Page, count: int) -> None:
+    page.wait_for_function(
+        "(n) => document.querySelectorAll('.jp-Notebook:not(.lm-mod-hidden) .jp-Cell')"
+        ".length === n",
+        arg=count,
+        timeout=60_000,
+    )
+
+
+def _assert_layout(cells: sync_api.Locator, expected: tuple[fl.Cell, ...]) -> None:
+    n = cells.count()
+    assert n == 3 + len(expected), f"{n} cells, expected {3 + len(expected)}"
+    assert "Export test" in cells.nth(0).text_content()
+    assert "ExportPanel(lambda: model)" in cells.nth(1).text_content()
+    for k, cell in enumerate(expected):
+        node = cells.nth(2 + k)
+        kind = "jp-CodeCell" if cell.kind == "code" else "jp-MarkdownCell"
+        assert kind in (node.get_attribute("class") or ""), (k, cell.kind)
+        first = cell.source.splitlines()[0].lstrip("# ").strip()
+        assert first in node.text_content(), (k, first, node.text_content()[:300])
+    assert "the cell after the panel" in cells.nth(n - 1).text_content()
+
+
+def _run_all(page: sync_api.Page, attempts: int = 4) -> None:
+    """Run > Run All Cells; again if no prompt changed within 15 s (the kernel may still start).
+
+    Waits for the kernel to be idle first (choosing Run All before the kernel is up makes the
+    page ask for a kernel in a dialog); should the dialog appear anyway, accepts its default.
+    """
+    page.wait_for_function(_KERNEL_IDLE, timeout=120_000)
+    before = page.evaluate(_PROMPTS)
+    for _ in range(attempts):
+        select = page.locator(".jp-Dialog button", has_text="Select")
+        if select.count():
+            select.first.click()
+        page.locator(".lm-MenuBar-itemLabel", has_text="Run").first.click()
+        entry = page.locator(".lm-Menu-item:not(.lm-mod-disabled) .lm-Menu-itemLabel")
+        entry.filter(has_text="Run All Cells").first.click()
+        try:
+            page.wait_for_function(
+                f"(before) => ({_PROMPTS})() !== before", arg=before, timeout=15_000
+            )
+            return
+        except sync_api.TimeoutError:
+            page.keyboard.press("Escape")
+    raise AssertionError(f"Run > Run All Cells started no cell in {attempts} attempts")
+
+
+_PROMPTS = """() => [...document.querySelectorAll(
+    '.jp-Notebook:not(.lm-mod-hidden) .jp-CodeCell .jp-InputPrompt')]
+    .map(p => p.textContent).join('|')"""
+
+# The toolbar's execution indicator (JupyterLab and Notebook 7) reads idle once a kernel is up.
+_KERNEL_IDLE = """() => [...document.querySelectorAll('.jp-Notebook-ExecutionIndicator')]
+    .some(e => e.offsetParent !== null && e.getAttribute('data-status') === 'idle')"""
+
+
+def _wait_all_ran(page: sync_api.Page, count: int) -> None:
+    """Wait until ``count`` code cells show a prompt ``[n]`` (none queued or running)."""
+    page.wait_for_function(
+        """(count) => {
+            const prompts = [...document.querySelectorAll(
+                '.jp-Notebook:not(.lm-mod-hidden) .jp-CodeCell .jp-InputPrompt')];
+            return prompts.length === count && prompts.every(p => /\\[\\d+\\]/.test(p.textContent));
+        }""",
+        arg=count,
+        timeout=180_000,
+    )
+
+
+def _shot(page: sync_api.Page, cell: sync_api.Locator, path: Path) -> None:
+    cell.scroll_into_view_if_needed()
+    page.evaluate("() => new Promise(r => requestAnimationFrame(() => requestAnimationFrame(r)))")
+    page.wait_for_timeout(300)
+    page.screenshot(path=str(path))
