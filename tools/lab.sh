@@ -6,7 +6,17 @@ source "$(dirname "${BASH_SOURCE[0]}")/venv.sh"
 ensure_venv lab
 cd "$ROOT"
 
-args=(--ServerApp.root_dir="$ROOT" --LabApp.default_url=/lab/tree/example_notebooks/tour.ipynb)
+# No news prompt over the tour, no update check: defaults for this environment only (a user's own
+# settings still win), written where JupyterLab reads overrides.
+overrides="$VENV/share/jupyter/lab/settings/overrides.json"
+if [ ! -f "$overrides" ]; then
+    mkdir -p "$(dirname "$overrides")"
+    cat >"$overrides" <<'JSON'
+{"@jupyterlab/apputils-extension:notification": {"fetchNews": "false", "checkForUpdates": false}}
+JSON
+fi
+
+args=(--LabApp.news_url= --ServerApp.root_dir="$ROOT" --LabApp.default_url=/lab/tree/example_notebooks/tour.ipynb)
 if [ "$(id -u)" -eq 0 ]; then
     args+=(--allow-root)
 fi

@@ -19,12 +19,15 @@ from __future__ import annotations
 import html
 import os
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.linalg as spla
 
 from .errors import TooLargeError
+from .frozen import readonly_array
+from .jsonready import json_ready
 from .model import Model
 
 __all__ = ["DENSE_LIMIT", "SPARSE_LIMIT", "ExactSpectrum", "exact_spectrum"]
@@ -80,6 +83,28 @@ class ExactSpectrum:
     complete: bool
     hermitian: bool
     error_estimate: float
+
+    def __post_init__(self) -> None:
+        for name in ("levels", "multiplicities", "eigenvalues"):
+            object.__setattr__(self, name, readonly_array(getattr(self, name)))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: levels (complex as ``[re, im]``), multiplicities, method, error
+        estimate, clustering tolerance, dimension, how many eigenvalues were found, complete,
+        hermitian."""
+        return json_ready(
+            {
+                "levels": self.levels,
+                "multiplicities": self.multiplicities,
+                "method": self.method,
+                "error_estimate": self.error_estimate,
+                "tolerance": self.tolerance,
+                "dimension": self.dimension,
+                "eigenvalue_count": int(self.eigenvalues.shape[0]),
+                "complete": self.complete,
+                "hermitian": self.hermitian,
+            }
+        )
 
     def __repr__(self) -> str:
         shown = ", ".join(

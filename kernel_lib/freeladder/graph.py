@@ -31,6 +31,8 @@ import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
 
 from .cache import cached, structure_store
+from .frozen import readonly_array
+from .jsonready import json_ready
 from .model import Model
 
 __all__ = [
@@ -172,6 +174,20 @@ class ChainStructure:
     reach: int
     orientation: int
     states: int
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "order", readonly_array(self.order, dtype=np.int64))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: ``order`` (term indices in chain order), reach, orientation, N."""
+        return json_ready(
+            {
+                "order": self.order,
+                "reach": self.reach,
+                "orientation": self.orientation,
+                "states": self.states,
+            }
+        )
 
     def __len__(self) -> int:
         return int(self.order.shape[0])

@@ -21,10 +21,14 @@ A. Chapman and S. T. Flammia, Quantum 4, 278 (2020), arXiv:2003.05465.
 from __future__ import annotations
 
 from collections import deque
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
+from typing import Any
 
 import networkx as nx
+
+from .frozen import readonly_mapping
+from .jsonready import json_ready
 
 __all__ = ["LineGraphRoot", "NotALineGraph", "line_graph_root"]
 
@@ -38,15 +42,24 @@ class LineGraphRoot:
 
     Attributes
     ----------
-    pairs : dict
+    pairs : mapping, read-only
         Vertex of G (a term index) -> the two root vertices (Majorana modes) ``(a, b)``, a < b.
         Root vertices are numbered 0, 1, 2, ... within the component.
     n_modes : int
         Number of root vertices (Majorana modes).
     """
 
-    pairs: dict[int, tuple[int, int]]
+    pairs: Mapping[int, tuple[int, int]]
     n_modes: int
+
+    def __post_init__(self) -> None:
+        pairs = {int(t): (int(a), int(b)) for t, (a, b) in self.pairs.items()}
+        object.__setattr__(self, "pairs", readonly_mapping(pairs))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: ``pairs`` (term index as text -> ``[a, b]``), ``n_modes`` and the
+        independent ``cycles`` (lists of terms)."""
+        return json_ready({"pairs": self.pairs, "n_modes": self.n_modes, "cycles": self.cycles()})
 
     def graph(self) -> nx.Graph:
         """The root graph: nodes are modes, each edge carries ``term`` (the vertex of G)."""
@@ -87,6 +100,10 @@ class NotALineGraph:
 
     term: int
     partners: tuple[int, ...]
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields."""
+        return json_ready({"term": self.term, "partners": self.partners})
 
 
 class _Root:

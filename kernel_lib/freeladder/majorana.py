@@ -41,6 +41,7 @@ import networkx as nx
 import numpy as np
 import scipy.linalg
 
+from .frozen import readonly_array, readonly_mapping
 from .jsonready import json_ready
 from .model import Model
 from .strings import WeylString, make_string
@@ -85,7 +86,7 @@ class SectorStructure:
 
     Attributes
     ----------
-    pairs : dict
+    pairs : mapping, read-only
         Term -> its two Majorana modes ``(a, b)`` (global numbering).
     cycle_operators : tuple of WeylString
         One conserved string per independent cycle of the root graph (normalised: Hermitian,
@@ -102,7 +103,7 @@ class SectorStructure:
         The model's sites (the order of the tensor product).
     """
 
-    pairs: dict[int, tuple[int, int]]
+    pairs: Mapping[int, tuple[int, int]]
     cycle_operators: tuple[WeylString, ...]
     parity_operators: tuple[WeylString, ...]
     relations: tuple[tuple[tuple[int, ...], int], ...]
@@ -111,6 +112,10 @@ class SectorStructure:
     _closing: tuple[tuple[int, complex], ...] = field(repr=False)
     _parity_phase: tuple[complex, ...] = field(repr=False)
     _components: tuple[_Component, ...] = field(repr=False)
+
+    def __post_init__(self) -> None:
+        pairs = {int(t): (int(a), int(b)) for t, (a, b) in self.pairs.items()}
+        object.__setattr__(self, "pairs", readonly_mapping(pairs))
 
     @property
     def generators(self) -> tuple[WeylString, ...]:
@@ -197,7 +202,7 @@ class SectorStructure:
                 "cycle_operators": [str(g) for g in self.cycle_operators],
                 "parity_operators": [str(g) or "1" for g in self.parity_operators],
                 "relations": [{"generators": k, "sign": s} for k, s in self.relations],
-                "sectors": len(self.sectors),
+                "sectors": self.count,
                 "rank": self.rank,
             }
         )
@@ -481,6 +486,9 @@ class _SectorLevels:
     parity: tuple[int | None, ...]  # per component: required prod s_k, or None
     multiplicity: int
     ground_energy: float
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "energies", tuple(readonly_array(e) for e in self.energies))
 
 
 @dataclass(frozen=True)

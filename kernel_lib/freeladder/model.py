@@ -18,18 +18,20 @@ from typing import Any, NamedTuple
 import numpy as np
 import sympy
 
-from .printing import format_terms, format_terms_latex
+from .jsonready import json_ready
+from .printing import coefficient_text, format_terms, format_terms_latex
 from .scalars import (
     as_complex,
     check_scalar,
     expand_exact,
+    is_exact_scalar,
     substitute,
     substitution_map,
     to_python_number,
 )
 from .strings import StringArray, WeylString, check_states, unit_phase
 
-__all__ = ["Coupling", "Model", "Term", "times_phase"]
+__all__ = ["Coupling", "Model", "Term", "coupling_fields", "times_phase"]
 
 Coupling = Any
 """int, float, complex, Fraction or a sympy expression."""
@@ -52,6 +54,25 @@ def times_phase(c: Coupling, exponent: int, states: int) -> Coupling:
     if isinstance(c, sympy.Basic):
         return sympy.nsimplify(c * sympy.exp(sympy.I * sympy.pi * k / states))
     return as_complex(c, "coupling") * unit_phase(k, states)
+
+
+def coupling_fields(values: Sequence[Coupling], states: int | None = None) -> dict[str, list]:
+    """Couplings (or coefficients) for ``to_dict``: as numbers and, when exact, as text.
+
+    Returns ``{"values": [...], "exact": [...]}``: each value JSON-ready (complex as
+    ``[re, im]``; a symbolic value as its text), and the text of each exact value (int,
+    Fraction, sympy) in the model syntax, None for a float or complex one.
+
+    Examples
+    --------
+    >>> from fractions import Fraction
+    >>> coupling_fields([Fraction(1, 3), 0.5, 1j])
+    {'values': [0.3333333333333333, 0.5, [0.0, 1.0]], 'exact': ['1/3', None, None]}
+    """
+    return {
+        "values": [json_ready(c) for c in values],
+        "exact": [coefficient_text(c, states) if is_exact_scalar(c) else None for c in values],
+    }
 
 
 class Model:
@@ -296,6 +317,26 @@ class Model:
 
             mat = mat + c * sps.identity(mat.shape[0], format="csr")
         return mat
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: the model as ``text`` in the model syntax, ``states``, ``sites``,
+        the normalised ``strings`` as text, the ``couplings`` and the ``constant`` as numbers
+        (complex as ``[re, im]``, symbolic as text) and ``exact_couplings`` /
+        ``exact_constant``, the text of each exact value (None for floats)."""
+        couplings = coupling_fields(self.couplings, self.states)
+        constant = coupling_fields([self.constant], self.states)
+        return json_ready(
+            {
+                "text": str(self),
+                "states": self.states,
+                "sites": self.sites,
+                "strings": [str(g) for g in self.strings],
+                "couplings": couplings["values"],
+                "exact_couplings": couplings["exact"],
+                "constant": constant["values"][0],
+                "exact_constant": constant["exact"][0],
+            }
+        )
 
     def __repr__(self) -> str:
         text = format_terms(self.terms, self.constant)

@@ -33,7 +33,8 @@ import scipy.sparse as sps
 import sympy
 
 from .cyclotomic import power_table
-from .model import Model
+from .jsonready import json_ready
+from .model import Model, coupling_fields
 from .printing import format_terms, format_terms_latex
 from .scalars import (
     Scalar,
@@ -583,7 +584,10 @@ class StringSum:
         object.__setattr__(self, "_scale", scale)
 
     def __setattr__(self, name: str, value: Any) -> None:
-        raise AttributeError("StringSum is immutable")
+        raise AttributeError(f"StringSum is immutable (cannot set {name!r})")
+
+    def __delattr__(self, name: str) -> None:
+        raise AttributeError(f"StringSum is immutable (cannot delete {name!r})")
 
     @classmethod
     def _raw(cls, store: Any, coef: Coef, ring: Any, scale: float) -> StringSum:
@@ -823,6 +827,26 @@ class StringSum:
             dim = self.states ** len(self.sites)
             return sps.csr_array((dim, dim), dtype=float)
         return self.strings.to_sparse(self.values())
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: ``text`` in the model syntax, ``states``, ``sites``, the
+        normalised ``strings`` as text, the ``coefficients`` as numbers (complex as
+        ``[re, im]``, symbolic as text), ``exact_coefficients`` (the text of each exact value,
+        None for floats), ``exact`` (whether the arithmetic is exact) and ``scale``."""
+        terms = self.terms
+        coefficients = coupling_fields([c for c, _ in terms], self.states)
+        return json_ready(
+            {
+                "text": format_terms(terms),
+                "states": self.states,
+                "sites": self.sites,
+                "strings": [str(g) for _, g in terms],
+                "coefficients": coefficients["values"],
+                "exact_coefficients": coefficients["exact"],
+                "exact": self.is_exact,
+                "scale": self.scale,
+            }
+        )
 
     def __str__(self) -> str:
         return format_terms(self.terms)

@@ -23,14 +23,16 @@ from __future__ import annotations
 import math
 import time
 import warnings
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
+from types import MappingProxyType
 from typing import Any
 
 import numpy as np
 import pandas as pd
 from scipy.optimize import curve_fit
 
+from .frozen import readonly_array, readonly_mapping
 from .graph import chain_structure
 from .jsonready import json_ready
 from .model import Model
@@ -91,9 +93,13 @@ class PowerLawFit:
     reduced_chi2 : float
         Residual sum of squares per degree of freedom (weighted when errors were given);
         ``nan`` without spare degrees of freedom.
-    variants : dict
+    variants : mapping, read-only
         Exponent of each variant fit, by name (``"without the smallest size"``,
         ``"no correction, largest half"``).
+
+    Notes
+    -----
+    Frozen: the arrays are read-only and ``variants`` is a read-only mapping.
     """
 
     exponent: float
@@ -106,7 +112,12 @@ class PowerLawFit:
     sizes: np.ndarray
     residuals: np.ndarray
     reduced_chi2: float
-    variants: dict[str, float] = field(default_factory=dict)
+    variants: Mapping[str, float] = field(default_factory=dict)
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "sizes", readonly_array(self.sizes))
+        object.__setattr__(self, "residuals", readonly_array(self.residuals))
+        object.__setattr__(self, "variants", readonly_mapping(self.variants))
 
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready fields (:func:`freeladder.jsonready.json_ready`)."""
@@ -413,11 +424,12 @@ class GapScaling:
         were fitted (each class has its own amplitude, in ``classes``).
     correction : float
         ``b``; ``nan`` with several classes.
-    data : pandas.DataFrame
-        One row per size: ``size``, ``terms``, ``states``, ``reach``, ``residue``, ``gap``
-        (``|eta_1|``), ``gap_error`` (its error bound), ``route``, ``seconds``, ``residual``
-        (``log`` of data over fit, within its class).
-    classes : dict
+    columns : mapping, read-only
+        One read-only array per column, one entry per size: ``size``, ``terms``, ``states``,
+        ``reach``, ``residue``, ``gap`` (``|eta_1|``), ``gap_error`` (its error bound),
+        ``route``, ``seconds``, ``residual`` (``log`` of data over fit, within its class).
+        Built from a pandas.DataFrame; :attr:`data` gives them as a new DataFrame.
+    classes : mapping, read-only
         ``{residue: PowerLawFit}`` (``-exponent`` is that class's ``z``); key ``None`` for
         models that are not chains, or for a pooled fit.
     residue : str or int
@@ -430,15 +442,24 @@ class GapScaling:
     z_error: float
     amplitude: float
     correction: float
-    data: pd.DataFrame
-    classes: dict[int | None, PowerLawFit]
+    columns: Mapping[str, np.ndarray]
+    classes: Mapping[int | None, PowerLawFit]
     residue: str | int
     quantity: str
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "columns", _frozen_columns(self.columns))
+        object.__setattr__(self, "classes", readonly_mapping(self.classes))
+
+    @property
+    def data(self) -> pd.DataFrame:
+        """The table of :attr:`columns` as a new DataFrame (changing it changes no result)."""
+        return pd.DataFrame({name: values.copy() for name, values in self.columns.items()})
 
     @property
     def residuals(self) -> np.ndarray:
         """``log(gap) - log(fit)`` per size, in the order of ``data``."""
-        return np.asarray(self.data["residual"], dtype=float)
+        return np.asarray(self.columns["residual"], dtype=float)
 
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready fields (:func:`freeladder.jsonready.json_ready`)."""
@@ -448,7 +469,7 @@ class GapScaling:
                 "z_error": self.z_error,
                 "amplitude": self.amplitude,
                 "correction": self.correction,
-                "data": self.data.to_dict(orient="list"),
+                "data": self.columns,
                 "classes": {str(k): v for k, v in self.classes.items()},
                 "residue": self.residue,
                 "quantity": self.quantity,
@@ -618,10 +639,20 @@ def gap_scaling(
         z_error=float(z_error),
         amplitude=float(amplitude),
         correction=float(correction),
-        data=data,
+        columns=data,
         classes=classes,
         residue=residue,
         quantity=_QUANTITY,
+    )
+
+
+def _frozen_columns(table: Any) -> MappingProxyType[str, np.ndarray]:
+    """A DataFrame (or a mapping of columns) as a read-only mapping of read-only arrays."""
+    if isinstance(table, MappingProxyType):
+        return table
+    frame = pd.DataFrame(table)
+    return readonly_mapping(
+        {str(name): readonly_array(frame[name].to_numpy()) for name in frame.columns}
     )
 
 
@@ -638,11 +669,12 @@ class EnergyDensity:
         The two parts of ``error``.
     coefficients : tuple of float
         ``(e_inf, a, b)`` of ``e(L) = e_inf + a / L + b / L^2``.
-    variants : dict
+    variants : mapping, read-only
         ``e_inf`` of the variant fits, by name.
-    data : pandas.DataFrame
-        ``size``, ``sites``, ``terms``, ``residue``, ``energy`` (real part of the ground
-        energy), ``energy_imag``, ``per_site``, ``residual``, ``seconds``.
+    columns : mapping, read-only
+        One read-only array per column, one entry per size: ``size``, ``sites``, ``terms``,
+        ``residue``, ``energy`` (real part of the ground energy), ``energy_imag``,
+        ``per_site``, ``residual``, ``seconds``.  :attr:`data` gives them as a new DataFrame.
     form : str
         The fit model, in words.
     """
@@ -652,9 +684,19 @@ class EnergyDensity:
     statistical: float
     systematic: float
     coefficients: tuple[float, ...]
-    variants: dict[str, float]
-    data: pd.DataFrame
+    variants: Mapping[str, float]
+    columns: Mapping[str, np.ndarray]
     form: str
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "coefficients", tuple(float(c) for c in self.coefficients))
+        object.__setattr__(self, "variants", readonly_mapping(self.variants))
+        object.__setattr__(self, "columns", _frozen_columns(self.columns))
+
+    @property
+    def data(self) -> pd.DataFrame:
+        """The table of :attr:`columns` as a new DataFrame (changing it changes no result)."""
+        return pd.DataFrame({name: values.copy() for name, values in self.columns.items()})
 
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready fields (:func:`freeladder.jsonready.json_ready`)."""
@@ -666,7 +708,7 @@ class EnergyDensity:
                 "systematic": self.systematic,
                 "coefficients": self.coefficients,
                 "variants": self.variants,
-                "data": self.data.to_dict(orient="list"),
+                "data": self.columns,
                 "form": self.form,
             }
         )
@@ -798,6 +840,6 @@ def energy_density(
         systematic=float(systematic),
         coefficients=tuple(float(c) for c in coef),
         variants=variants,
-        data=data.assign(residual=resid),
+        columns=data.assign(residual=resid),
         form="e(L) = e_inf + a / L + b / L^2, least squares with equal weights",
     )

@@ -35,6 +35,7 @@ import numpy as np
 from . import root_methods
 from .ed import DENSE_LIMIT
 from .errors import NoTheoremError
+from .frozen import readonly_array
 from .graph import ChainStructure, chain_structure
 from .jsonready import json_ready
 from .model import Model
@@ -79,6 +80,16 @@ class Level:
     multiplicity: int | None
     occupation: tuple[int, ...]
 
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: energy (complex as ``[re, im]``), multiplicity, occupation."""
+        return json_ready(
+            {
+                "energy": self.energy,
+                "multiplicity": self.multiplicity,
+                "occupation": self.occupation,
+            }
+        )
+
 
 class LevelTable(Sequence[Level]):
     """Levels in increasing order of their real part, stored as arrays.
@@ -91,14 +102,40 @@ class LevelTable(Sequence[Level]):
         The choices ``s_k``.
     multiplicity : int or None
         The model's degeneracy, shared by every level (see :class:`Level`).
+
+    Notes
+    -----
+    A table is frozen: its attributes cannot be set or deleted and its arrays are read-only.
     """
 
+    __slots__ = ("energies", "occupations", "multiplicity")
+    energies: np.ndarray
+    occupations: np.ndarray
+    multiplicity: int | None
+
     def __init__(self, energies: np.ndarray, occupations: np.ndarray, multiplicity: int | None):
-        self.energies = energies
-        self.occupations = occupations
-        self.multiplicity = multiplicity
         energies.setflags(write=False)
         occupations.setflags(write=False)
+        object.__setattr__(self, "energies", energies)
+        object.__setattr__(self, "occupations", occupations)
+        object.__setattr__(self, "multiplicity", multiplicity)
+
+    def __setattr__(self, name: str, value: Any) -> None:
+        raise AttributeError(f"LevelTable is immutable (cannot set {name!r})")
+
+    def __delattr__(self, name: str) -> None:
+        raise AttributeError(f"LevelTable is immutable (cannot delete {name!r})")
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: energies (complex as ``[re, im]``), occupations (one list of
+        ``s_k`` per level), multiplicity."""
+        return json_ready(
+            {
+                "energies": self.energies,
+                "occupations": self.occupations,
+                "multiplicity": self.multiplicity,
+            }
+        )
 
     def __len__(self) -> int:
         return int(self.energies.shape[0])
@@ -226,6 +263,22 @@ class DensityOfStates:
     max_shift: float
     method: str
 
+    def __post_init__(self) -> None:
+        for name in ("edges", "fraction", "counts"):
+            object.__setattr__(self, name, readonly_array(getattr(self, name)))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields (a count too large for a float becomes None)."""
+        return json_ready(
+            {
+                "edges": self.edges,
+                "fraction": self.fraction,
+                "counts": self.counts,
+                "max_shift": self.max_shift,
+                "method": self.method,
+            }
+        )
+
 
 class FreeSpectrum:
     """Quasi-energies of a free model and what follows from them (immutable).
@@ -309,7 +362,10 @@ class FreeSpectrum:
         return self.provenance.guaranteed
 
     def __setattr__(self, name: str, value: Any) -> None:
-        raise AttributeError("FreeSpectrum is immutable")
+        raise AttributeError(f"FreeSpectrum is immutable (cannot set {name!r})")
+
+    def __delattr__(self, name: str) -> None:
+        raise AttributeError(f"FreeSpectrum is immutable (cannot delete {name!r})")
 
     def __len__(self) -> int:
         return int(self.quasi_energies.shape[0])

@@ -34,6 +34,8 @@ from typing import Any
 import numpy as np
 import scipy.sparse as sps
 
+from .jsonready import json_ready
+
 __all__ = [
     "MAX_STATES",
     "BlockFill",
@@ -279,6 +281,18 @@ class WeylString:
         sites = tuple(sites) if sites is not None else self.support
         return StringArray.from_strings([self], sites).to_sparse([1.0])
 
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: ``text`` (the string in the model syntax), ``states``,
+        ``factors`` (``[site, a, b]`` each) and ``phase`` (exponent of ``w = exp(i pi / N)``)."""
+        return json_ready(
+            {
+                "text": str(self),
+                "states": self.states,
+                "factors": self.factors,
+                "phase": self.phase,
+            }
+        )
+
     def __str__(self) -> str:
         letters = []
         for s, a, b in self.factors:
@@ -517,6 +531,13 @@ class StringArray:
 
     def __iter__(self) -> Any:
         return (self[r] for r in range(len(self)))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: ``states``, ``sites`` and the ``strings`` as text (a phase other
+        than the letters' own prints as a power of ``w``)."""
+        return json_ready(
+            {"states": self.states, "sites": self.sites, "strings": [str(g) for g in self]}
+        )
 
     def take(self, rows: Any) -> StringArray:
         """A new array with the given rows (indices or a boolean mask)."""

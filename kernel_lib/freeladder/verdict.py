@@ -29,7 +29,7 @@ F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.
 from __future__ import annotations
 
 import html
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field, replace
 from typing import Any, Literal
 
@@ -40,6 +40,7 @@ import scipy.sparse.csgraph as csgraph
 
 from . import references as ref
 from .clawfree import find_claw, find_even_hole, find_simplicial_clique
+from .frozen import readonly_mapping
 from .graph import (
     ChainStructure,
     chain_from_exponents,
@@ -153,9 +154,9 @@ class ComponentVerdict:
     witness : tuple of int
         Terms that block a theorem: a claw ``(centre, leaf, leaf, leaf)``, an even hole in
         cyclic order, or the pair / triple / cycle that breaks the clock-chain pattern.
-    majorana_pairs : dict or None
-        Line graphs only: term -> its two Majorana modes ``(a, b)``; modes are numbered across
-        the whole model, so components never share a mode.
+    majorana_pairs : mapping or None
+        Line graphs only: term -> its two Majorana modes ``(a, b)`` (a read-only mapping);
+        modes are numbered across the whole model, so components never share a mode.
     cycles : tuple of tuple of int
         Line graphs only: a basis of cycles of the root graph, each as the terms around it.
     simplicial_clique : tuple of int or None
@@ -176,7 +177,7 @@ class ComponentVerdict:
     kind: VerdictKind
     reasons: tuple[str, ...]
     witness: tuple[int, ...] = ()
-    majorana_pairs: dict[int, tuple[int, int]] | None = None
+    majorana_pairs: Mapping[int, tuple[int, int]] | None = None
     cycles: tuple[tuple[int, ...], ...] = ()
     simplicial_clique: tuple[int, ...] | None = None
     even_hole_free: bool | None = None
@@ -184,6 +185,26 @@ class ComponentVerdict:
     chain: ChainStructure | None = None
     guarantee: Guarantee = _PENDING
     indifference: IndifferenceOrder | None = None
+
+    def __post_init__(self) -> None:
+        def ints(values: Any) -> tuple[int, ...]:
+            return tuple(int(v) for v in values)
+
+        fix: dict[str, Any] = {
+            "terms": ints(self.terms),
+            "reasons": tuple(self.reasons),
+            "witness": ints(self.witness),
+            "cycles": tuple(ints(c) for c in self.cycles),
+        }
+        if self.majorana_pairs is not None:
+            fix["majorana_pairs"] = readonly_mapping(
+                {int(t): ints(ab) for t, ab in self.majorana_pairs.items()}
+            )
+        for name in ("simplicial_clique", "even_hole"):
+            if getattr(self, name) is not None:
+                fix[name] = ints(getattr(self, name))
+        for name, value in fix.items():
+            object.__setattr__(self, name, value)
 
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready fields (the chain as its order, reach and orientation)."""
@@ -207,6 +228,7 @@ class ComponentVerdict:
                 "even_hole": self.even_hole,
                 "chain": chain,
                 "guarantee": self.guarantee,
+                "indifference": self.indifference,
             }
         )
 
@@ -594,7 +616,7 @@ def _graph_guarantee(m: Model, comp: ComponentVerdict) -> Guarantee:
     return _refusal(m, "", why, comp.witness)
 
 
-def _even_cycle_block(pairs: dict[int, tuple[int, int]]) -> tuple[int, ...]:
+def _even_cycle_block(pairs: Mapping[int, tuple[int, int]]) -> tuple[int, ...]:
     """Terms of a block of the root graph that holds an even cycle, or ``()`` when none does.
 
     A graph has no even cycle exactly when each block (biconnected component) is an edge or
