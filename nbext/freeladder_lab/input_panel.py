@@ -1,0 +1,374 @@
+"""Section 1 of the Workbench: the model, typed in our text syntax or built from a family."""
+
+from __future__ import annotations
+
+import threading
+from collections.abc import Callable
+from typing import Any
+
+import ipywidgets as widgets
+import sympy
+
+import freeladder as fl
+
+from .presets import FAMILIES, CouplingPattern, build, pattern_values, scaled
+from .style import WARN, escape
+
+__all__ = ["DEBOUNCE_SECONDS", "TABLE_LIMIT", "InputPanel", "SLIDER_LIMIT"]
+
+DEBOUNCE_SECONDS = 0.4
+#: Largest number of terms for which the per-term table is offered.
+TABLE_LIMIT = 48
+#: Largest number of symbols that get a slider each.
+SLIDER_LIMIT = 12
+_TEXT_SHOWN = 400  # longest model (terms) whose text is written into the text area
+
+
+def _labelled(widget: widgets.Widget, label: str) -> widgets.Widget:
+    widget.description = label
+    widget.style = {"description_width": "initial"}
+    return widget
+
+
+class InputPanel(widgets.VBox):
+    """Text area with inline errors, family presets, coupling patterns and symbol sliders.
+
+    Parameters
+    ----------
+    on_model : callable(Model, bool)
+        Called with a new model and whether it has the same strings as the previous one
+        (only the couplings changed).
+    on_values : callable()
+        Called when a symbol slider moved (the numeric model changed, the model did not).
+    synchronous : bool
+        Parse at once on every edit instead of after a pause in typing.
+    states : int
+        The initial N (for typed text and the families that take it).
+    """
+
+    def __init__(
+        self,
+        on_model: Callable[[fl.Model, bool], Any],
+        on_values: Callable[[], Any],
+        synchronous: bool = False,
+        states: int = 2,
+    ) -> None:
+        self._on_model = on_model
+        self._on_values = on_values
+        self._synchronous = synchronous
+        self._timer: threading.Timer | None = None
+        self._quiet = False  # True while the panel writes the text area itself
+        self._base: fl.Model | None = None  # the family's model before the coupling pattern
+
+        self.text = widgets.Textarea(
+            placeholder="e.g.  0.9 X0 Z1 Z2 + g X1 Z2 Z3 - 0.4 X2 Z3 Z4",
+            layout=widgets.Layout(width="100%", height="92px"),
+            continuous_update=True,
+        )
+        self.text_label = widgets.HTML(
+            "<b>Model text</b> &mdash; a sum of operator strings; parsed as you type"
+        )
+        self.message = widgets.HTML("")
+        self.family = _labelled(
+            widgets.Dropdown(options=list(FAMILIES), layout=widgets.Layout(width="auto")),
+            "family",
+        )
+        lo, hi, default = FAMILIES[self.family.value].size_range
+        self.size = _labelled(widgets.IntSlider(default, min=lo, max=hi), "terms M")
+        self.reach = _labelled(widgets.IntSlider(2, min=1, max=6), "reach p")
+        self.states = _labelled(widgets.IntSlider(states, min=2, max=8), "states N")
+        self.pattern = _labelled(
+            widgets.Dropdown(
+                options=[
+                    ("uniform", "uniform"),
+                    ("staggered a, b, a, b ...", "staggered"),
+                    ("seeded random", "random"),
+                    ("per-term table", "table"),
+                    ("symbols a, b with sliders", "symbols"),
+                ]
+            ),
+            "couplings",
+        )
+        self.a = _labelled(widgets.FloatText(1.0, layout=widgets.Layout(width="150px")), "a")
+        self.b = _labelled(widgets.FloatText(0.5, layout=widgets.Layout(width="150px")), "b")
+        self.low = _labelled(widgets.FloatText(0.5, layout=widgets.Layout(width="150px")), "low")
+        self.high = _labelled(widgets.FloatText(1.5, layout=widgets.Layout(width="150px")), "high")
+        self.seed = _labelled(widgets.IntText(7, layout=widgets.Layout(width="150px")), "seed")
+        self.complex_phase = widgets.Checkbox(False, description="random phases (complex)")
+        self.table = widgets.GridBox(
+            layout=widgets.Layout(grid_template_columns="repeat(4, 1fr)", width="100%")
+        )
+        self.sliders = widgets.VBox()
+        self.pattern_box = widgets.HBox(layout=widgets.Layout(flex_flow="row wrap"))
+
+        left = widgets.VBox(
+            [self.text_label, self.text, self.message, self.sliders],
+            layout=widgets.Layout(width="56%", padding="0 12px 0 0"),
+        )
+        right = widgets.VBox(
+            [
+                widgets.HTML("<b>Or build from a family</b> (replaces the model)"),
+                self.family,
+                self.size,
+                self.reach,
+                self.states,
+                self.pattern,
+                self.pattern_box,
+                self.table,
+            ],
+            layout=widgets.Layout(width="44%"),
+        )
+        super().__init__([widgets.HBox([left, right])])
+
+        self.text.observe(self._typed, "value")
+        self.family.observe(self._family_changed, "value")
+        for w in (self.size, self.reach):
+            w.observe(self._structure_changed, "value")
+        self.states.observe(self._states_changed, "value")
+        self.pattern.observe(self._pattern_changed, "value")
+        for w in (self.a, self.b, self.low, self.high, self.seed, self.complex_phase):
+            w.observe(self._couplings_changed, "value")
+        self._show_pattern_controls()
+
+    # -- text --------------------------------------------------------------------------------
+    def set_text(self, text: str) -> None:
+        """Write ``text`` into the text area and parse it at once (what typing does)."""
+        self._quiet = True
+        try:
+            self.text.value = text
+        finally:
+            self._quiet = False
+        self.parse_now()
+
+    def _typed(self, change: dict) -> None:
+        if self._quiet:
+            return
+        if self._synchronous:
+            self.parse_now()
+            return
+        if self._timer is not None:
+            self._timer.cancel()
+        self._timer = threading.Timer(DEBOUNCE_SECONDS, self.parse_now)
+        self._timer.daemon = True
+        self._timer.start()
+
+    def parse_now(self) -> None:
+        """Parse the text area; show the error inline and keep the last good model on failure."""
+        text = self.text.value
+        try:
+            model = fl.parse_model(text, states=self.states.value)
+        except fl.ModelSyntaxError as exc:
+            self.show_syntax_error(exc)
+            return
+        except ValueError as exc:
+            self.show_problem(str(exc))
+            return
+        if len(model) == 0:
+            self.show_problem("the text has no operator terms (a constant alone has no spectrum)")
+            return
+        self.message.value = ""
+        self._base = None
+        self._on_model(model, False)
+
+    def show_syntax_error(self, exc: fl.ModelSyntaxError) -> None:
+        """The parser's message with the offending line and a caret under the column."""
+        lines = exc.text.split("\n")
+        source = lines[exc.line - 1] if exc.line - 1 < len(lines) else ""
+        caret = " " * (exc.column - 1) + "^"
+        self.message.value = (
+            f'<div role="alert" style="color:{WARN}; border-left: 4px solid {WARN};'
+            f' padding-left: 8px;"><b>&#9888; Not parsed</b> (line {exc.line}, column'
+            f" {exc.column}): {escape(exc.problem)}"
+            f'<pre style="margin:2px 0; color:inherit;">{escape(source)}\n{escape(caret)}</pre>'
+            "The views below still show the last model that parsed.</div>"
+        )
+
+    def show_problem(self, text: str) -> None:
+        """A model-level problem (not a syntax error), shown the same way."""
+        self.message.value = (
+            f'<div role="alert" style="color:{WARN}; border-left: 4px solid {WARN};'
+            f' padding-left: 8px;"><b>&#9888; Not used:</b> {escape(text)}<br>'
+            "The views below still show the last good model.</div>"
+        )
+
+    def show_model_text(self, model: fl.Model) -> None:
+        """Write a model built elsewhere into the text area without re-parsing it."""
+        self._quiet = True
+        try:
+            if len(model) <= _TEXT_SHOWN:
+                self.text.value = str(model)
+            else:
+                self.text.value = (
+                    f"# {len(model)} terms, built by the family controls (text not shown);\n"
+                    "# type a model here to replace it"
+                )
+            self.message.value = ""
+        finally:
+            self._quiet = False
+
+    # -- families and couplings ----------------------------------------------------------------
+    def _family_changed(self, change: dict) -> None:
+        fam = FAMILIES[self.family.value]
+        lo, hi, default = fam.size_range
+        self._quiet = True
+        try:
+            self.size.min, self.size.max = lo, hi
+            self.size.value = default
+        finally:
+            self._quiet = False
+        self.size.description = fam.size_label
+        self.reach.disabled = not fam.has_reach
+        self.states.disabled = not fam.has_states
+        self.states.value = max(self.states.value, 3) if fam.label == "clock" else self.states.value
+        self.build_family()
+
+    def _structure_changed(self, change: dict) -> None:
+        if not self._quiet:
+            self.build_family()
+
+    def _states_changed(self, change: dict) -> None:
+        """N changed: read the typed text again with the new N, or rebuild the family."""
+        if self._quiet:
+            return
+        if self._base is None and self.text.value.strip():
+            self.parse_now()
+        else:
+            self.build_family()
+
+    def _pattern_changed(self, change: dict) -> None:
+        self._show_pattern_controls()
+        self._couplings_changed(change)
+
+    def _show_pattern_controls(self) -> None:
+        kind = self.pattern.value
+        controls = {
+            "uniform": [self.a],
+            "staggered": [self.a, self.b],
+            "random": [self.low, self.high, self.seed, self.complex_phase],
+            "table": [],
+            "symbols": [],
+        }[kind]
+        self.pattern_box.children = controls
+
+    def _couplings_changed(self, change: dict) -> None:
+        if self._quiet:
+            return
+        if self._base is None:
+            self.build_family()
+        else:
+            self._apply_pattern(same_strings=True)
+
+    def build_family(self) -> None:
+        """Build the chosen family at the chosen size and apply the coupling pattern."""
+        try:
+            self._base = build(
+                self.family.value, self.size.value, self.reach.value, self.states.value
+            )
+        except ValueError as exc:
+            self.show_problem(str(exc))
+            return
+        self._fill_table()
+        self._apply_pattern(same_strings=False)
+
+    def _fill_table(self) -> None:
+        base = self._base
+        if base is None or len(base) > TABLE_LIMIT:
+            self.table.children = []
+            return
+        cells = []
+        for j, term in enumerate(base.terms):
+            cell = widgets.Text(
+                "1",
+                description=f"{j}: {fl.printing.format_terms([(1, term.string)])}",
+                style={"description_width": "initial"},
+                layout=widgets.Layout(width="auto"),
+                continuous_update=False,
+            )
+            cell.observe(self._couplings_changed, "value")
+            cells.append(cell)
+        self.table.children = cells
+
+    def _pattern(self) -> CouplingPattern:
+        values: tuple[complex, ...] = ()
+        if self.pattern.value == "table":
+            if self._base is not None and len(self._base) > TABLE_LIMIT:
+                raise ValueError(
+                    f"the per-term table is offered up to {TABLE_LIMIT} terms; this model has "
+                    f"{len(self._base)} (type the couplings in the text instead)"
+                )
+            parsed = []
+            for j, cell in enumerate(self.table.children):
+                try:
+                    parsed.append(complex(cell.value.replace(" ", "")))
+                except ValueError:
+                    raise ValueError(
+                        f"table entry {j} is {cell.value!r}, not a number (write 0.5 or 0.3+0.2j)"
+                    ) from None
+            values = tuple(v.real if v.imag == 0 else v for v in parsed)
+        return CouplingPattern(
+            kind=self.pattern.value,
+            a=self.a.value,
+            b=self.b.value,
+            low=self.low.value,
+            high=self.high.value,
+            seed=self.seed.value,
+            complex_phase=self.complex_phase.value,
+            values=values,
+        )
+
+    def _apply_pattern(self, same_strings: bool) -> None:
+        base = self._base
+        if base is None:
+            return
+        self.table.layout.display = "" if self.pattern.value == "table" else "none"
+        try:
+            model = scaled(base, pattern_values(self._pattern(), len(base)))
+        except ValueError as exc:
+            self.show_problem(str(exc))
+            return
+        self.show_model_text(model)
+        self._on_model(model, same_strings)
+
+    # -- symbols -----------------------------------------------------------------------------
+    def show_symbols(self, model: fl.Model) -> None:
+        """One slider per symbol of ``model`` (kept at their values when the names stay)."""
+        names = sorted(str(s) for s in model.symbols)
+        old = {
+            s.description: s for s in self.sliders.children if isinstance(s, widgets.FloatSlider)
+        }
+        if len(names) > SLIDER_LIMIT:
+            self.sliders.children = [
+                widgets.HTML(
+                    f"{len(names)} symbols: sliders are offered for up to {SLIDER_LIMIT}; "
+                    "every symbol is set to 1."
+                )
+            ]
+            return
+        if sorted(old) == names:
+            return
+        sliders = []
+        for name in names:
+            slider = old.get(name) or widgets.FloatSlider(
+                1.0,
+                min=-3.0,
+                max=3.0,
+                step=0.01,
+                description=name,
+                continuous_update=True,
+                style={"description_width": "initial"},
+                layout=widgets.Layout(width="95%"),
+            )
+            if name not in old:
+                slider.observe(lambda change: self._on_values(), "value")
+            sliders.append(slider)
+        head = [widgets.HTML("<b>Symbol values</b>")] if sliders else []
+        self.sliders.children = head + sliders
+
+    def symbol_values(self, model: fl.Model) -> dict[sympy.Symbol, float]:
+        """The value each symbol of ``model`` takes (its slider, or 1 without one)."""
+        set_by = {
+            s.description: s.value
+            for s in self.sliders.children
+            if isinstance(s, widgets.FloatSlider)
+        }
+        return {sym: set_by.get(str(sym), 1.0) for sym in model.symbols}
