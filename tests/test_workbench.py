@@ -331,3 +331,15 @@ def test_worker_cancel_drops_the_running_result() -> None:
     release.set()
     worker.wait(10)
     assert applied == []
+
+
+def test_the_export_panel_exports_the_current_model() -> None:
+    # the Workbench's export section works on whatever model it shows now
+    from freeladder_lab import Workbench
+
+    wb = Workbench(fl.exclusion_chain(5, reach=2), synchronous=True)
+    wb.set_text("X0 + 0.5 Z0 Z1 + X1")
+    exported = wb.export._get_model()
+    assert str(exported) == str(wb.model) == str(fl.parse_model("X0 + 0.5 Z0 Z1 + X1"))
+    cells = fl.worked_calculation(exported)
+    assert any("0.5" in c.source for c in cells if c.kind == "code")

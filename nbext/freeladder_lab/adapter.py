@@ -5,9 +5,9 @@ holds a :class:`freeladder.Analysis` (``fl.analyze(model)``: each part computed 
 coupling-independent ones shared by every model with the same strings); the panels read it and
 the few helpers below.
 
-Two helpers compute what the library does not expose yet: the partial polynomial ``P_s`` is P's
-coefficients truncated after order s, and its roots come from numpy's companion-matrix
-eigenvalues (an estimate, drawn only to show the roots settling as orders are added).
+The partial polynomial ``P_s`` (P truncated after order s) and its certified roots come from
+:meth:`freeladder.ExclusionPolynomial.truncated`, drawn to show the roots settling on those of
+P as orders are added.
 
 References
 ----------
@@ -25,7 +25,7 @@ from typing import Any
 import numpy as np
 
 import freeladder as fl
-from freeladder.errors import NoTheoremError
+from freeladder.errors import NoTheoremError, TooLargeError
 from freeladder.operators import StringSum
 from freeladder.printing import format_terms
 from freeladder.references import CHUDNOVSKY_SEYMOUR_2007
@@ -116,19 +116,20 @@ def partial_coefficients(a: fl.Analysis, s: int) -> tuple[Any, ...] | None:
 
 
 def partial_roots(a: fl.Analysis, s: int) -> np.ndarray | None:
-    """Roots of ``P_s`` by numpy's companion-matrix eigenvalues (a numerical estimate).
+    """Roots of ``P_s``, certified (:meth:`ExclusionPolynomial.truncated` then ``roots()``:
+    python-flint balls), repeated by multiplicity.
 
-    Returns an empty array for s = 0 (no roots) and None when the coefficients are not
-    expanded (see :func:`partial_coefficients`).
+    Returns an empty array for s = 0 (no roots) and None when the library refuses (degree above
+    its limit, symbolic coefficients).
     """
-    coeffs = partial_coefficients(a, s)
-    if coeffs is None:
-        return None
-    values = np.array([complex(c) for c in coeffs])
-    nonzero = np.nonzero(values)[0]
-    if len(nonzero) == 0 or nonzero[-1] == 0:
+    if s == 0:
         return np.zeros(0, complex)
-    return np.asarray(np.roots(values[: nonzero[-1] + 1][::-1]), dtype=complex)
+    try:
+        found = a.polynomial.truncated(s).roots()
+    except (TooLargeError, TypeError, ValueError):
+        return None
+    values = np.repeat(np.asarray(found.values, dtype=complex), found.multiplicities)
+    return np.asarray(values, dtype=complex)
 
 
 def order_commutes(a: fl.Analysis, s: int) -> Check | None:

@@ -244,7 +244,7 @@ class SeriesPanel(widgets.HBox):
         self.figure = fig
         self.legend = widgets.HTML(
             f'<div style="font-size:12px; color:{INK};">&#10010; roots of P<sub>s</sub> '
-            "(numpy companion-matrix estimate) &#8195; &#9711; roots of the full P</div>"
+            "(certified, python-flint) &#8195; &#9711; roots of the full P</div>"
         )
         left = widgets.VBox(
             [

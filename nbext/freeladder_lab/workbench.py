@@ -31,6 +31,7 @@ from .adapter import (
     spectrum_or_refusal,
 )
 from .checks_panel import ChecksPanel
+from .export import ExportPanel
 from .input_panel import InputPanel
 from .ladder_panel import LadderPanel
 from .roots_panel import RootsPanel
@@ -122,6 +123,7 @@ class Workbench(widgets.VBox):
         self.roots = RootsPanel()
         self.ladder = LadderPanel()
         self.checks = ChecksPanel(self.run_checks)
+        self.export = ExportPanel(lambda: self.model)
         self.roots.unproven.observe(lambda change: self._recompute(), "value")
 
         header = widgets.HTML(
@@ -156,6 +158,8 @@ class Workbench(widgets.VBox):
                 section(4, "Roots and quasi-energies", "hover a point for its bound"),
                 self.roots,
                 lower,
+                section(7, "Export", "the worked, self-verifying calculation as notebook cells"),
+                self.export,
             ],
             layout=widgets.Layout(width="100%", max_width="1280px"),
         )
