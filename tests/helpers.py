@@ -1,4 +1,5 @@
-"""Helpers shared by several test files: dense reference matrices and random Pauli models.
+"""Helpers shared by several test files: dense reference matrices, random Pauli models, and
+running a notebook in a kernel of this interpreter.
 
 ``dense_string`` is built here from the definitions alone (common practice: X|s> = |s+1 mod N>,
 Z|s> = omega^s |s>, Kronecker products with site 0 most significant), independently of the
@@ -8,8 +9,13 @@ library's own sparse construction, so that tests can compare against it.
 from __future__ import annotations
 
 from collections.abc import Callable, Sequence
+from pathlib import Path
 
+import nbformat
 import numpy as np
+from jupyter_client.kernelspec import KernelSpecManager
+from jupyter_client.manager import KernelManager
+from nbclient import NotebookClient
 
 import freeladder as fl
 from freeladder.model import Coupling
@@ -47,3 +53,21 @@ def random_pauli_model(
         seen.add(letters)
         terms.append((coupling(rng), fl.pauli(letters)))
     return fl.Model.from_terms(terms, states=2, sites=range(n_sites))
+
+
+def run_notebook(
+    nb: nbformat.NotebookNode, kernel_dirs: Path, cwd: Path, allow_errors: bool = False
+) -> nbformat.NotebookNode:
+    """Execute ``nb`` in place with nbclient, in the ``python3`` kernel found in ``kernel_dirs``
+    (the conftest fixture's kernelspec that starts this interpreter), working in ``cwd``."""
+    ksm = KernelSpecManager(kernel_dirs=[str(kernel_dirs)], ensure_native_kernel=False)
+    km = KernelManager(kernel_name="python3", kernel_spec_manager=ksm)
+    client = NotebookClient(
+        nb,
+        km=km,
+        timeout=120,
+        allow_errors=allow_errors,
+        resources={"metadata": {"path": str(cwd)}},
+    )
+    client.execute()
+    return nb

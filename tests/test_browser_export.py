@@ -336,3 +336,99 @@ def _shot(page: sync_api.Page, cell: sync_api.Locator, path: Path) -> None:
     page.evaluate("() => new Promise(r => requestAnimationFrame(() => requestAnimationFrame(r)))")
     page.wait_for_timeout(300)
     page.screenshot(path=str(path))
+
+
+WORKBENCH_CELL = """import freeladder as fl
+from freeladder_lab import Workbench
+
+wb = Workbench(fl.exclusion_chain(6, reach=2, couplings=fl.staggered(6, 1.0, 0.4)))
+wb"""
+
+_ROOTS_FIGURE = """() => {
+    const figures = [...document.querySelectorAll('.jp-Notebook:not(.lm-mod-hidden) .bqplot')];
+    const roots = figures.find(f => /roots y_k of P/.test(f.textContent));
+    const svg = roots ? roots.querySelector('svg') : null;
+    return svg ? svg.innerHTML : null;
+}"""
+
+
+def test_workbench_renders_follows_edits_and_exports(
+    server: tuple[str, str, Path], artifacts_dir: Path
+) -> None:
+    # The Workbench in JupyterLab: its plots render, a new model moves the roots, a malformed
+    # text shows the parser's caret inline, and its export section inserts the worked cells
+    # directly below the Workbench's cell (one undo step removes them).
+    url, token, root = server
+    name = "workbench.ipynb"
+    nb = nbformat.v4.new_notebook()
+    nb.metadata["kernelspec"] = {
+        "name": "python3",
+        "display_name": "Python 3",
+        "language": "python",
+    }
+    nb.cells = [
+        nbformat.v4.new_markdown_cell("Workbench test: a workbench, then a cell after it."),
+        nbformat.v4.new_code_cell(WORKBENCH_CELL),
+        nbformat.v4.new_code_cell(AFTER_CELL),
+    ]
+    nbformat.write(nb, root / name)
+    new_text = "X0 Z1 Z2 + 0.7 X1 Z2 Z3 + X2 Z3 Z4 + 0.7 X3 Z4 Z5 + X4 Z5 Z6"
+    expected = fl.worked_calculation(fl.parse_model(new_text))
+    address = f"{url}lab/workspaces/t{uuid.uuid4().hex[:10]}/tree/{name}?reset&token={token}"
+    with sync_api.sync_playwright() as pw:
+        browser = pw.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
+        page = browser.new_page(viewport={"width": 1400, "height": 1000})
+        try:
+            page.goto(address)
+            notebook = page.locator(".jp-Notebook:visible").first
+            cells = notebook.locator(".jp-Cell")
+            cells.first.wait_for(timeout=90_000)
+            _wait_cell_count(page, 3)
+            _wait_kernel_idle(url, token, name)
+            _run_all(page)
+            _wait_all_ran(page, 2)
+            # every plot of the Workbench has drawn (bqplot figures inside the output)
+            page.wait_for_function(
+                "() => document.querySelectorAll("
+                "'.jp-Notebook:not(.lm-mod-hidden) .bqplot svg').length >= 4",
+                timeout=120_000,
+            )
+            before = page.evaluate(_ROOTS_FIGURE)
+            assert before, "the roots figure did not render"
+            _shot(page, cells.nth(1), artifacts_dir / "workbench-lab.png")
+
+            text = notebook.locator(".jp-OutputArea-output textarea:not([disabled]):visible").first
+            text.fill(new_text)
+            page.wait_for_function(
+                f"(before) => {{ const now = ({_ROOTS_FIGURE})(); "
+                "return now !== null && now !== before; }",
+                arg=before,
+                timeout=60_000,
+            )
+            notebook.locator(".jp-OutputArea-output", has_text="for 5 terms").first.wait_for(
+                timeout=60_000
+            )
+            text.fill(new_text + " + Q7")
+            message = notebook.locator(".jp-OutputArea-output pre", has_text="^")
+            message.first.wait_for(timeout=60_000)
+            assert "column" in notebook.locator(".jp-OutputArea-output").first.text_content()
+            _shot(page, cells.nth(1), artifacts_dir / "workbench-lab-error.png")
+
+            # the export section exports the last good model: the one before the typo
+            notebook.get_by_role("button", name="insert cells below").click()
+            panel = notebook.locator(".freeladder-export")
+            panel.filter(has_text="inserted").wait_for(timeout=60_000)
+            _wait_cell_count(page, 3 + len(expected))
+            for k, cell in enumerate(expected.cells):
+                first = cell.source.splitlines()[0].lstrip("# ").strip()
+                assert first in cells.nth(2 + k).text_content(), (k, first)
+            assert "the cell after the panel" in cells.nth(2 + len(expected)).text_content()
+            cells.first.click()
+            page.keyboard.press("Escape")
+            page.keyboard.press("z")
+            _wait_cell_count(page, 3)
+        except Exception:
+            page.screenshot(path=str(artifacts_dir / "workbench-lab-failure.png"))
+            raise
+        finally:
+            browser.close()

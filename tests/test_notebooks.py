@@ -11,9 +11,7 @@ from pathlib import Path
 
 import nbformat
 import pytest
-from jupyter_client.kernelspec import KernelSpecManager
-from jupyter_client.manager import KernelManager
-from nbclient import NotebookClient
+from helpers import run_notebook
 
 REPO = Path(__file__).resolve().parent.parent
 NOTEBOOKS = sorted((REPO / "example_notebooks").glob("*.ipynb"))
@@ -32,16 +30,7 @@ def test_notebook_runs(path: Path, kernel_dirs: Path, tmp_path: Path) -> None:
         if cell.cell_type == "code":
             assert not cell.outputs, f"{path.name}: commit notebooks with empty outputs"
 
-    ksm = KernelSpecManager(kernel_dirs=[str(kernel_dirs)], ensure_native_kernel=False)
-    km = KernelManager(kernel_name="python3", kernel_spec_manager=ksm)
-    client = NotebookClient(
-        nb,
-        km=km,
-        timeout=120,
-        allow_errors=False,
-        resources={"metadata": {"path": str(tmp_path)}},
-    )
-    client.execute()
+    run_notebook(nb, kernel_dirs, tmp_path)
 
     errors = []
     for index, cell in enumerate(nb.cells):

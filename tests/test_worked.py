@@ -25,10 +25,7 @@ from pathlib import Path
 import nbformat
 import numpy as np
 import pytest
-from helpers import dense_string
-from jupyter_client.kernelspec import KernelSpecManager
-from jupyter_client.manager import KernelManager
-from nbclient import NotebookClient
+from helpers import dense_string, run_notebook
 
 import freeladder as fl
 
@@ -82,20 +79,6 @@ def _alter(source: str, old: str, new: str) -> str:
     return altered
 
 
-def _run_notebook(nb: nbformat.NotebookNode, kernel_dirs: Path, cwd: Path, allow_errors: bool):
-    ksm = KernelSpecManager(kernel_dirs=[str(kernel_dirs)], ensure_native_kernel=False)
-    km = KernelManager(kernel_name="python3", kernel_spec_manager=ksm)
-    client = NotebookClient(
-        nb,
-        km=km,
-        timeout=120,
-        allow_errors=allow_errors,
-        resources={"metadata": {"path": str(cwd)}},
-    )
-    client.execute()
-    return nb
-
-
 def _errors_by_step(nb: nbformat.NotebookNode) -> dict[str, str]:
     out = {}
     for cell in nb.cells:
@@ -117,7 +100,7 @@ def test_exported_notebook_runs_top_to_bottom(
     assert {_step_of(c.source) for c in nb.cells if c.cell_type == "code"} == (
         COUPLING_DEPENDENT | COUPLING_FREE
     )
-    _run_notebook(nb, kernel_dirs, tmp_path, allow_errors=False)
+    run_notebook(nb, kernel_dirs, tmp_path, allow_errors=False)
     assert all(c.execution_count for c in nb.cells if c.cell_type == "code")
     last = [c for c in nb.cells if c.cell_type == "code"][-1]
     assert "all checks passed" in "".join(o.get("text", "") for o in last.outputs)
@@ -157,7 +140,7 @@ def test_cells_pass_as_exported_and_fail_when_a_coupling_changes(
         code = nbformat.v4.new_code_cell(source)
         code.metadata["section"] = ["panel", "timeout"]
         nb.cells.append(code)
-    _run_notebook(nb, kernel_dirs, tmp_path, allow_errors=True)
+    run_notebook(nb, kernel_dirs, tmp_path, allow_errors=True)
     panel_cells = [c for c in nb.cells if c.metadata["section"] == ["panel", "timeout"]]
     assert all(c.execution_count for c in panel_cells)
     assert not [o for c in panel_cells for o in c.outputs if o.output_type == "error"], [
