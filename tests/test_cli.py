@@ -79,3 +79,20 @@ def test_bad_options_exit_2():
     done = run("report", "X0", "--states", "one")
     assert done.returncode == 2
     assert "Traceback" not in done.stderr
+
+
+def test_export_writes_runs_and_never_overwrites(tmp_path):
+    target = tmp_path / "worked.py"
+    done = run("export", ISING, "--to", "script", str(target))
+    assert done.returncode == 0, done.stderr
+    # the exported script recomputes and asserts every step (it runs clean with this Python)
+    ran = subprocess.run(
+        [sys.executable, str(target)], capture_output=True, text=True, timeout=300, check=False
+    )
+    assert ran.returncode == 0, ran.stderr[-2000:]
+    before = target.read_text()
+    again = run("export", "X0 + Z0 Z1 + X1", "--to", "script", str(target))
+    assert again.returncode == 2 and "--force" in again.stderr
+    assert target.read_text() == before  # the user's file is untouched
+    forced = run("export", "X0 + Z0 Z1 + X1", "--to", "latex", str(target), "--force")
+    assert forced.returncode == 0 and "\\section" in target.read_text()
