@@ -343,3 +343,14 @@ def test_the_export_panel_exports_the_current_model() -> None:
     assert str(exported) == str(wb.model) == str(fl.parse_model("X0 + 0.5 Z0 Z1 + X1"))
     cells = fl.worked_calculation(exported)
     assert any("0.5" in c.source for c in cells if c.kind == "code")
+
+
+def test_family_controls_follow_a_chain_passed_in() -> None:
+    # a chain given to the Workbench sets the size, reach and N controls, so moving the reach
+    # control rebuilds this chain's size (not a default one)
+    from freeladder_lab import Workbench
+
+    wb = Workbench(fl.exclusion_chain(8, reach=2, states=3), synchronous=True)
+    assert (wb.input.size.value, wb.input.reach.value, wb.input.states.value) == (8, 2, 3)
+    wb.input.reach.value = 1
+    assert len(wb.model) == 8 and fl.chain_structure(wb.model).reach == 1

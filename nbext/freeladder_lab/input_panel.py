@@ -192,9 +192,15 @@ class InputPanel(widgets.VBox):
         )
 
     def show_model_text(self, model: fl.Model) -> None:
-        """Write a model built elsewhere into the text area without re-parsing it."""
+        """Write a model built elsewhere into the text area without re-parsing it.
+
+        When the model is an exclusion chain and the family shown is the chain family, the
+        size, reach and states controls are set to match it, so that moving one of them
+        changes this model rather than a default one.
+        """
         self._quiet = True
         try:
+            self._match_controls(model)
             if len(model) <= _TEXT_SHOWN:
                 self.text.value = str(model)
             else:
@@ -205,6 +211,21 @@ class InputPanel(widgets.VBox):
             self.message.value = ""
         finally:
             self._quiet = False
+
+    def _match_controls(self, model: fl.Model) -> None:
+        """Set the chain family's controls to an exclusion chain's size, reach and N (quietly)."""
+        if not FAMILIES[self.family.value].has_reach:
+            return
+        chain = fl.chain_structure(model)
+        if chain is None:
+            return
+        for control, value in (
+            (self.size, len(model)),
+            (self.reach, chain.reach),
+            (self.states, model.states),
+        ):
+            if control.min <= value <= control.max:
+                control.value = value
 
     # -- families and couplings ----------------------------------------------------------------
     def _family_changed(self, change: dict) -> None:
