@@ -19,15 +19,17 @@ from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import pandas as pd
 
 from .builders import exclusion_chain
 from .frozen import readonly_array, readonly_mapping
 from .jsonready import json_ready
 from .model import Coupling
+
+if TYPE_CHECKING:
+    import pandas as pd
 from .scaling import PowerLawFit, chain_quasi_energy, power_law_fit, smallest_quasi_energy
 
 __all__ = [
@@ -248,6 +250,8 @@ class LogGapStatistics:
     @property
     def table(self) -> pd.DataFrame:
         """The columns as a new pandas DataFrame (changing it changes nothing here)."""
+        import pandas as pd  # on use: importing pandas takes about a second
+
         return pd.DataFrame({k: np.array(v) for k, v in self.columns.items()})
 
     def exponent(self, statistic: str = "mean", correction: str = "offset") -> PowerLawFit:
@@ -331,6 +335,8 @@ def log_gap_statistics(
     if np.any(bad):
         where = list(np.nonzero(bad)[0][:5])
         raise ValueError(f"{int(bad.sum())} gaps are not finite and > 0 (rows {where} ...)")
+    import pandas as pd  # on use: importing pandas takes about a second
+
     frame = pd.DataFrame({"size": table[size].to_numpy(), "v": minus_log})
     rows = []
     histograms: dict[int, tuple[np.ndarray, np.ndarray]] = {}

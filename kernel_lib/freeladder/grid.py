@@ -24,10 +24,12 @@ import multiprocessing
 import os
 import time
 from collections.abc import Callable, Iterator, Mapping, Sequence
-from typing import Any
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 import numpy as np
-import pandas as pd
 
 __all__ = ["sweep"]
 
@@ -132,6 +134,8 @@ def _columns(
         else:
             row["result"] = result
         rows.append(row)
+    import pandas as pd  # on use: importing pandas takes about a second
+
     return pd.DataFrame(rows, columns=None if rows else [*keys, "stream"])
 
 

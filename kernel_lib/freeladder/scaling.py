@@ -26,10 +26,9 @@ import warnings
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from types import MappingProxyType
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import pandas as pd
 from scipy.optimize import curve_fit
 
 from .frozen import readonly_array, readonly_mapping
@@ -37,6 +36,9 @@ from .graph import chain_structure
 from .jsonready import json_ready
 from .model import Model
 from .roots import chain_real_roots
+
+if TYPE_CHECKING:
+    import pandas as pd
 from .spectrum import free_spectrum
 
 __all__ = [
@@ -454,6 +456,8 @@ class GapScaling:
     @property
     def data(self) -> pd.DataFrame:
         """The table of :attr:`columns` as a new DataFrame (changing it changes no result)."""
+        import pandas as pd  # on use: importing pandas takes about a second
+
         return pd.DataFrame({name: values.copy() for name, values in self.columns.items()})
 
     @property
@@ -582,6 +586,8 @@ def gap_scaling(
                 "seconds": time.perf_counter() - start,
             }
         )
+    import pandas as pd  # on use: importing pandas takes about a second
+
     data = pd.DataFrame(rows)
     found = sorted({r["residue"] for r in rows}, key=lambda v: -1 if v is None else v)
     if isinstance(residue, int) and not isinstance(residue, bool):
@@ -650,6 +656,8 @@ def _frozen_columns(table: Any) -> MappingProxyType[str, np.ndarray]:
     """A DataFrame (or a mapping of columns) as a read-only mapping of read-only arrays."""
     if isinstance(table, MappingProxyType):
         return table
+    import pandas as pd  # on use: importing pandas takes about a second
+
     frame = pd.DataFrame(table)
     return readonly_mapping(
         {str(name): readonly_array(frame[name].to_numpy()) for name in frame.columns}
@@ -696,6 +704,8 @@ class EnergyDensity:
     @property
     def data(self) -> pd.DataFrame:
         """The table of :attr:`columns` as a new DataFrame (changing it changes no result)."""
+        import pandas as pd  # on use: importing pandas takes about a second
+
         return pd.DataFrame({name: values.copy() for name, values in self.columns.items()})
 
     def to_dict(self) -> dict[str, Any]:
@@ -812,6 +822,8 @@ def energy_density(
                 "seconds": time.perf_counter() - start,
             }
         )
+    import pandas as pd  # on use: importing pandas takes about a second
+
     data = pd.DataFrame(rows)
     present = sorted({r["residue"] for r in rows if r["residue"] is not None})
     if len(present) > 1:
