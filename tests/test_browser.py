@@ -83,6 +83,10 @@ def lab_server(tmp_path: Path, notebook_dir: Path, kernel_dirs: Path) -> Iterato
     (settings / "notification.jupyterlab-settings").write_text(
         json.dumps({"fetchNews": "false", "checkForUpdates": False})
     )
+    # Every cell stays in the page (no windowing), so that counting cells and prompts is stable.
+    tracker = config / "lab" / "user-settings" / "@jupyterlab" / "notebook-extension"
+    tracker.mkdir(parents=True)
+    (tracker / "tracker.jupyterlab-settings").write_text(json.dumps({"windowingMode": "none"}))
     env = dict(os.environ)
     env.update(
         JUPYTER_CONFIG_DIR=str(config),
