@@ -72,3 +72,17 @@ def test_analysis_is_immutable_and_json_ready():
     text = json.dumps(a.to_dict(), allow_nan=False)
     assert '"terms": 5' in text
     assert fl.analyze(a) is a
+
+
+def test_shared_verdict_quotes_the_new_couplings():
+    # the verdict's graph theory is shared across couplings, but its witness text quotes the
+    # couplings of the model it describes (a ladder with plaquettes: Chapman-Flammia 2020)
+    m = fl.parse_model(
+        "1.3 Z0 Z1 + 0.9 Z2 Z3 + 1.1 Z4 Z5 + 0.8 X0 X2 + 1.2 Y2 Y4 + 0.7 Y1 Y3 + X3 X5"
+    )
+    a = fl.analyze(m)
+    assert "0.9 Z2 Z3" in a.verdict.guarantee.witness_text
+    b = a.with_couplings([5, 5, 5, 5, 5, 5, 5])
+    assert b.verdict.guarantee.witness_text == fl.classify(b.model).guarantee.witness_text
+    assert "5 Z2 Z3" in b.verdict.guarantee.witness_text
+    assert b.verdict.kind == a.verdict.kind and b.verdict.witness == a.verdict.witness

@@ -16,7 +16,6 @@ computation of each part.
 
 from __future__ import annotations
 
-import dataclasses
 import threading
 from collections.abc import Iterator, Mapping, MutableMapping, Sequence
 from typing import Any
@@ -98,9 +97,7 @@ class Analysis:
         shared = cached(
             structure_store(self.model.strings), "verdict", lambda: classify(self.model)
         )
-        if shared.model is self.model:
-            return shared
-        return dataclasses.replace(shared, model=self.model)
+        return shared.for_model(self.model)
 
     @property
     def chain(self) -> ChainStructure | None:

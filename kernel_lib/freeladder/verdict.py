@@ -335,6 +335,28 @@ class Verdict:
         return None
 
     # -- display ----------------------------------------------------------------------------------
+    def for_model(self, m: Model) -> Verdict:
+        """The same verdict for a model with the same strings and other couplings.
+
+        The graph theory does not depend on the couplings; only the witness texts, which quote
+        the couplings, are written again for ``m``.
+
+        Raises
+        ------
+        ValueError
+            When ``m`` does not share this verdict's strings.
+        """
+        if m is self.model:
+            return self
+        if m.strings is not self.model.strings:
+            raise ValueError("for_model needs a model with the same strings (with_couplings)")
+
+        def rebound(g: Guarantee) -> Guarantee:
+            return replace(g, witness_text=_witness_text(m, g.witness)) if g.witness else g
+
+        components = tuple(replace(c, guarantee=rebound(c.guarantee)) for c in self.components)
+        return replace(self, model=m, components=components, guarantee=rebound(self.guarantee))
+
     def witness_text(self) -> str:
         """The witness terms in the model's text syntax, or an empty string."""
         if not self.witness:
