@@ -157,7 +157,11 @@ def server(
             proc.wait(timeout=10)
 
 
-def _write_notebook(path: Path) -> None:
+def _write_notebook(
+    path: Path,
+    intro: str = "Export test: a panel, then a cell after it.",
+    middle: str = PANEL_CELL,
+) -> None:
     nb = nbformat.v4.new_notebook()
     nb.metadata["kernelspec"] = {
         "name": "python3",
@@ -165,8 +169,8 @@ def _write_notebook(path: Path) -> None:
         "language": "python",
     }
     nb.cells = [
-        nbformat.v4.new_markdown_cell("Export test: a panel, then a cell after it."),
-        nbformat.v4.new_code_cell(PANEL_CELL),
+        nbformat.v4.new_markdown_cell(intro),
+        nbformat.v4.new_code_cell(middle),
         nbformat.v4.new_code_cell(AFTER_CELL),
     ]
     nbformat.write(nb, path)
@@ -360,18 +364,9 @@ def test_workbench_renders_follows_edits_and_exports(
     # directly below the Workbench's cell (one undo step removes them).
     url, token, root = server
     name = "workbench.ipynb"
-    nb = nbformat.v4.new_notebook()
-    nb.metadata["kernelspec"] = {
-        "name": "python3",
-        "display_name": "Python 3",
-        "language": "python",
-    }
-    nb.cells = [
-        nbformat.v4.new_markdown_cell("Workbench test: a workbench, then a cell after it."),
-        nbformat.v4.new_code_cell(WORKBENCH_CELL),
-        nbformat.v4.new_code_cell(AFTER_CELL),
-    ]
-    nbformat.write(nb, root / name)
+    _write_notebook(
+        root / name, "Workbench test: a workbench, then a cell after it.", WORKBENCH_CELL
+    )
     new_text = "X0 Z1 Z2 + 0.7 X1 Z2 Z3 + X2 Z3 Z4 + 0.7 X3 Z4 Z5 + X4 Z5 Z6"
     expected = fl.worked_calculation(fl.parse_model(new_text))
     address = f"{url}lab/workspaces/t{uuid.uuid4().hex[:10]}/tree/{name}?reset&token={token}"
