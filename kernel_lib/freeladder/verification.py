@@ -35,7 +35,7 @@ from __future__ import annotations
 import html
 import time
 import traceback
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 from fractions import Fraction
 from typing import Any
@@ -399,19 +399,8 @@ class _Parts:
                 sp, why = self.analysis.spectrum(), ""
             except NoTheoremError as err:
                 sp, why = self.analysis.spectrum(unproven=True), str(err)
-            prov = sp.provenance
-            guaranteed = (
-                prov.get("guaranteed")
-                if isinstance(prov, Mapping)
-                else getattr(prov, "guaranteed", None)
-            )
-            if not why and guaranteed is False:
-                guarantee = (
-                    prov.get("guarantee")
-                    if isinstance(prov, Mapping)
-                    else getattr(prov, "guarantee", "")
-                )
-                why = str(guarantee or "no theorem covers this model")
+            if not why and not sp.provenance.guaranteed:
+                why = str(sp.provenance.guarantee or "no theorem covers this model")
             self._spectrum = (sp, why)
         return self._spectrum
 
