@@ -35,7 +35,7 @@ from .frozen import readonly_array, readonly_mapping
 from .graph import chain_structure
 from .jsonready import json_ready
 from .model import Model
-from .roots import chain_real_roots
+from .roots import chain_count_below, chain_real_roots, chain_root_count
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -338,10 +338,14 @@ def chain_quasi_energy(
     :func:`freeladder.chain_real_roots` (``lowest=1``).  Returns None for weights of several
     phases (then use :func:`freeladder.free_spectrum`).
 
+    When the root finder reports no convergence (measured: its Laguerre iteration can stall
+    for roots ``y`` beyond about ``1e154``, where ``(P'/P)^2`` underflows), the largest root
+    is found again by bisection on the root count alone, and the route says so.
+
     Raises
     ------
     ArithmeticError
-        When the root finder reports no convergence (the value would be unreliable).
+        When the largest root cannot be bracketed within float64 range.
 
     References
     ----------
@@ -358,12 +362,83 @@ def chain_quasi_energy(
         return None
     found = chain_real_roots(modulus, int(reach), lowest=1)
     if not found.converged:
-        raise ArithmeticError(
-            f"the largest root of a chain of {w.size} terms did not converge: {found.message}"
+        y, half = _bisect_largest_root(modulus, int(reach), found.values[-1], found.message)
+        # Error estimate: the count in floating point is the exact count of weights changed by
+        # a few ulps each, which moves the root by up to about M ulps relative (first order;
+        # from memory, not proved here) -- more than the final bracket.  eta = y^(-1/N) has
+        # 1/N of the relative error of y.
+        eta_b = float(y ** (-1.0 / n))
+        rel = max(half / y, 2.0 * w.size * float(np.finfo(float).eps)) / n
+        return (
+            eta_b,
+            eta_b * rel,
+            "largest real root of the chain recurrence (Laguerre's iteration stalled: "
+            "bisection on the root count)",
         )
     eta, bound = found.quasi_energies(n)  # scaled back without overflow
     k = int(np.argmin(np.abs(eta)))
     return float(abs(eta[k])), float(bound[k]), "largest real root of the chain recurrence"
+
+
+_POINTS_PER_PASS = 63
+
+
+def _bisect_largest_root(
+    weights: np.ndarray, reach: int, start: float, message: str
+) -> tuple[float, float]:
+    """``(y_max, half-width of its final bracket)`` by bisection on the root count alone.
+
+    Used when :func:`freeladder.chain_real_roots` reports no convergence (measured: its
+    Laguerre iteration stalls for roots ``y`` near ``1e164``, where ``(P'/P)^2`` and
+    ``P''/P`` are subnormal numbers with few digits left).  The count
+    (:func:`freeladder.chain_count_below`) only needs the ratios of the recurrence.  Each pass
+    evaluates 63 points spread over the bracket (geometrically while it spans more than a
+    factor 2), so it shrinks the bracket 64-fold; it stops at two ulps.
+
+    Raises
+    ------
+    ArithmeticError
+        When no bracket of the largest root is found within float64 range.
+
+    References
+    ----------
+    W. Barth, R. S. Martin and J. H. Wilkinson, Numer. Math. 9, 386 (1967) (bisection on a
+    count).
+    """
+    total = chain_root_count(weights.size, reach)
+    tiny, huge = float(np.finfo(float).tiny), float(np.finfo(float).max)
+    lo = hi = min(max(float(start), tiny), huge) if math.isfinite(start) else huge
+    factor, bracketed = 2.0, False
+    for _ in range(64):  # widen the estimate by factors 2, 4, 16, 256, ... into a bracket
+        below = chain_count_below(weights, reach, np.array([lo, hi]))
+        bracketed = bool(below[0] < total <= below[1])
+        if bracketed or (below[0] >= total and lo == tiny) or (below[1] < total and hi == huge):
+            break
+        lo = max(lo / factor, tiny) if below[0] >= total else lo
+        hi = min(hi * factor, huge) if below[1] < total else hi
+        factor = min(factor * factor, huge)
+    if not bracketed:
+        raise ArithmeticError(
+            f"the largest root of a chain of {weights.size} terms did not converge ({message}) "
+            "and could not be bracketed by the root count within float64 range"
+        )
+    frac = np.arange(1, _POINTS_PER_PASS + 1) / (_POINTS_PER_PASS + 1)
+    eps = float(np.finfo(float).eps)
+    while hi - lo > 2 * eps * hi:
+        if hi > 2 * lo:
+            pts = np.exp(math.log(lo) + frac * (math.log(hi) - math.log(lo)))
+        else:
+            pts = lo + frac * (hi - lo)
+        pts = pts[(pts > lo) & (pts < hi)]
+        if pts.size == 0:
+            break
+        # The first point whose count reaches ``total`` lies above the largest root.  (Within
+        # rounding of the root the count need not be monotone; this keeps lo < hi.)
+        reached = np.nonzero(chain_count_below(weights, reach, pts) >= total)[0]
+        k = int(reached[0]) if reached.size else pts.size
+        lo = float(pts[k - 1]) if k > 0 else lo
+        hi = float(pts[k]) if k < pts.size else hi
+    return 0.5 * (lo + hi), 0.5 * (hi - lo)
 
 
 def smallest_quasi_energy(m: Model) -> tuple[float, float, str]:
