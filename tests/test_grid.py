@@ -16,6 +16,7 @@ import pandas as pd
 import pytest
 from helpers import dense_string
 from scipy import stats
+from scipy.linalg import eigvalsh_tridiagonal
 
 import freeladder as fl
 
@@ -285,6 +286,20 @@ def test_infinite_randomness_exponent(pool: cf.Executor) -> None:
     )
     assert df.attrs["complete"] is True and len(df) == len(IR_SIZES) * IR_REALISATIONS
     assert np.all(np.isfinite(df["log_gap"])) and np.all(df["gap_error"] < 1e-10 * df["gap"])
+    # The deepest gaps, those near e^-190 (where the root finder was measured to stall) and a
+    # few others against LAPACK's bisection (dstebz through scipy) on the zero-diagonal
+    # tridiagonal matrix whose positive eigenvalues are the quasi-energies (P. Pfeuty, Ann.
+    # Phys. 57, 79 (1970)); stream i is SeedSequence(2026, spawn_key=(i,)).
+    stall = df[(df["log_gap"] < -175) & (df["log_gap"] > -205)]
+    assert len(stall) > 10
+    checked = [df.nsmallest(20, "log_gap"), stall, df.sample(10, random_state=1)]
+    for row in pd.concat(checked).itertuples():
+        rng = np.random.default_rng(np.random.SeedSequence(2026, spawn_key=(row.stream,)))
+        c = fl.disorder_couplings(2 * row.size - 1, "box", low=0.0, high=1.0, rng=rng)
+        ref = eigvalsh_tridiagonal(
+            np.zeros(2 * row.size), c, select="i", select_range=(row.size,) * 2, tol=1e-300
+        )[0]
+        assert abs(row.gap - ref) <= row.gap_error + 1e-13 * ref, (row, ref)
     stats_ = fl.log_gap_statistics(df)
     mean = stats_.exponent("mean", correction="offset")
     assert mean.error < 0.05, mean
