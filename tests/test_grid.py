@@ -159,6 +159,12 @@ def test_dask_cluster_gives_the_in_process_table() -> None:
             dashboard_address=":0",
         )
         client = distributed.Client(cluster)
+        client.wait_for_workers(2, timeout=120)
+        workers = client.scheduler_info()["workers"]
+        assert len(workers) == 2 and all(a.startswith("tcp://127.0.0.1:") for a in workers)
+        # two separate worker processes, neither of them this one
+        pids = set(client.run(os.getpid).values())
+        assert len(pids) == 2 and os.getpid() not in pids
         df = fl.sweep(
             fl.disordered_chain_gap,
             _disorder_grid(),
