@@ -266,3 +266,11 @@ def test_stalled_largest_root_is_found_by_bisection_on_the_count() -> None:
     assert found.converged
     y2, _ = scaling._bisect_largest_root(w, 2, found.values[-1] * 7.0, "test")
     assert y2 == pytest.approx(found.values[-1], rel=1e-13)
+    # A largest root beyond float64 range (the class-1 staggered chain of 4801 terms, gap about
+    # e^-361, see above) is refused with a clear error, by the fallback and by the public call.
+    far = np.array(fl.periodic_couplings(4801, (0.8, 1, 1)), dtype=float)
+    with pytest.raises(ArithmeticError, match="within float64 range"):
+        scaling._bisect_largest_root(far**2, 2, 1e300, "test")
+    # (roots.py's ladder check overflows a float on its way to that error: a RuntimeWarning.)
+    with pytest.raises(ArithmeticError, match="float64 range"), np.errstate(over="ignore"):
+        fl.chain_quasi_energy(far, 2)

@@ -398,7 +398,10 @@ def _bisect_largest_root(
     Raises
     ------
     ArithmeticError
-        When no bracket of the largest root is found within float64 range.
+        When no bracket of the largest root is found within float64 range (the weights are
+        scaled so that the largest lies in [1/2, 1), and the count is trusted up to
+        ``y = 2**960`` there), or when the count is found to be wrong (above the number of
+        roots).
 
     References
     ----------
@@ -406,17 +409,31 @@ def _bisect_largest_root(
     count).
     """
     total = chain_root_count(weights.size, reach)
-    tiny, huge = float(np.finfo(float).tiny), float(np.finfo(float).max)
-    lo = hi = min(max(float(start), tiny), huge) if math.isfinite(start) else huge
+    shift = int(np.frexp(np.max(weights))[1])
+    w = np.ldexp(weights, -shift)  # exact; largest weight in [1/2, 1): roots are y * 2**shift
+
+    def count(y: np.ndarray) -> np.ndarray:
+        got = chain_count_below(w, reach, y)
+        if np.any(got > total):  # impossible for an exact count: overflow in the ratios
+            raise ArithmeticError(
+                f"the root count of a chain of {weights.size} terms is unreliable near "
+                f"y = {float(np.max(y)):.3g} (more roots counted than the {total} there are)"
+            )
+        return got
+
+    # The count is trusted only while y w_k stays far below overflow: y <= 2**960.
+    tiny, ceiling = float(np.finfo(float).tiny), 2.0**960
+    scaled = float(np.ldexp(start, shift)) if math.isfinite(start) else ceiling
+    lo = hi = min(max(scaled, tiny), ceiling)
     factor, bracketed = 2.0, False
     for _ in range(64):  # widen the estimate by factors 2, 4, 16, 256, ... into a bracket
-        below = chain_count_below(weights, reach, np.array([lo, hi]))
+        below = count(np.array([lo, hi]))
         bracketed = bool(below[0] < total <= below[1])
-        if bracketed or (below[0] >= total and lo == tiny) or (below[1] < total and hi == huge):
+        if bracketed or (below[0] >= total and lo == tiny) or (below[1] < total and hi == ceiling):
             break
         lo = max(lo / factor, tiny) if below[0] >= total else lo
-        hi = min(hi * factor, huge) if below[1] < total else hi
-        factor = min(factor * factor, huge)
+        hi = min(hi * factor, ceiling) if below[1] < total else hi
+        factor = min(factor * factor, ceiling)
     if not bracketed:
         raise ArithmeticError(
             f"the largest root of a chain of {weights.size} terms did not converge ({message}) "
@@ -434,11 +451,19 @@ def _bisect_largest_root(
             break
         # The first point whose count reaches ``total`` lies above the largest root.  (Within
         # rounding of the root the count need not be monotone; this keeps lo < hi.)
-        reached = np.nonzero(chain_count_below(weights, reach, pts) >= total)[0]
+        reached = np.nonzero(count(pts) >= total)[0]
         k = int(reached[0]) if reached.size else pts.size
         lo = float(pts[k - 1]) if k > 0 else lo
         hi = float(pts[k]) if k < pts.size else hi
-    return 0.5 * (lo + hi), 0.5 * (hi - lo)
+    y, half = (
+        float(np.ldexp(lo + 0.5 * (hi - lo), -shift)),
+        float(np.ldexp(0.5 * (hi - lo), -shift)),
+    )
+    if not (math.isfinite(y) and y > 0):
+        raise ArithmeticError(
+            f"the largest root of a chain of {weights.size} terms lies outside float64 range"
+        )
+    return y, half
 
 
 def smallest_quasi_energy(m: Model) -> tuple[float, float, str]:
@@ -451,7 +476,8 @@ def smallest_quasi_energy(m: Model) -> tuple[float, float, str]:
     Raises
     ------
     ArithmeticError
-        When the root finder reports no convergence (the value would be unreliable).
+        When no converged value is found: for chains, not even by bisection on the root count
+        (:func:`chain_quasi_energy`); otherwise, when free_spectrum reports no convergence.
     """
     chain = chain_structure(m)
     if chain is not None:
@@ -601,7 +627,8 @@ def gap_scaling(
         Fewer than 2 sizes (per class fitted), a bad ``residue``, or no size in the class asked
         for.
     ArithmeticError
-        When the root finder does not converge for a size.
+        When the smallest quasi-energy of a size cannot be found (see
+        :func:`smallest_quasi_energy`).
 
     Notes
     -----
