@@ -194,7 +194,8 @@ def disordered_chain_gap(
     Raises
     ------
     ArithmeticError
-        When the root finder does not converge (never a silent unreliable number).
+        When the smallest quasi-energy cannot be found, not even by bisection on the root
+        count (see :func:`freeladder.chain_quasi_energy`): never a silent unreliable number.
 
     Examples
     --------
