@@ -128,8 +128,8 @@ def random_weyl_model(
     """Distinct random Weyl strings with random couplings (complex when ``complex_c``)."""
     terms, seen = [], set()
     while len(terms) < n_terms:
-        factors = [(s, int(rng.integers(states)), int(rng.integers(states))) for s in range(n_sites)]
-        factors = [f for f in factors if f[1] or f[2]]
+        powers = rng.integers(states, size=(n_sites, 2))
+        factors = [(s, int(a), int(b)) for s, (a, b) in enumerate(powers) if a or b]
         if not factors or tuple(factors) in seen:
             continue
         seen.add(tuple(factors))
@@ -141,7 +141,7 @@ def random_weyl_model(
 
 def clock_ring(size: int, reach: int, states: int, rng: np.random.Generator) -> fl.Model:
     """g_j = X_j Z_{j+1} ... Z_{j+reach}, sites mod ``size``: the exclusion chain closed into a
-    ring (a scenario of our own); its frustration graph is a cyclically oriented power of a cycle."""
+    ring (a scenario of our own); its frustration graph is a cyclically oriented cycle power."""
     terms = []
     for j in range(size):
         factors = [(j, 1, 0)] + [((j + d) % size, 0, 1) for d in range(1, reach + 1)]
