@@ -917,13 +917,16 @@ def _dipath_obstruction(m: Model, d: DipathSwitching) -> str:
     e_a = m.strings[d.obstruction[0]].commutation_exponent(m.strings[d.obstruction[1]])
     e_b = m.strings[d.obstruction[0]].commutation_exponent(m.strings[d.obstruction[2]])
     text = (
-        f"Terms {a} and {b} commute, and both fail to commute with term {centre}: "
-        f"g_v g_a = omega^{e_a} g_a g_v and g_v g_b = omega^{e_b} g_b g_v (v the centre), "
-        f"whose exponents do not cancel, so the induced path is not directed and the product "
-        "g_a g_b in Q^(2) does not commute with H."
+        f"Terms a = {a} and b = {b} commute, and both fail to commute with term v = {centre}: "
+        f"g_v g_a = omega^{e_a} g_a g_v and g_v g_b = omega^{e_b} g_b g_v, whose exponents do "
+        "not cancel, so the induced path a - v - b is not directed and the product g_a g_b in "
+        "Q^(2) does not commute with H."
     )
     if d.kind == "exponents":
-        return text + " No switching of terms (g -> g^-1) repairs it: the exponents differ."
+        return text + (
+            " No switching of terms (g -> g^-1) repairs it: the two exponents differ by more "
+            "than a sign."
+        )
     return text + (
         f" Replacing {'term' if len(d.switched) == 1 else 'terms'} {_list(d.switched)} by "
         "the inverse (g -> g^-1, switching in graph terms) would give a dipath orientation, and "
