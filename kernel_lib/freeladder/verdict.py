@@ -889,7 +889,8 @@ def _clock_component(m: Model, terms: list[int], sub: sps.csr_array) -> Componen
             "The frustration graph is claw-free and its exponents form a dipath orientation "
             "(along every induced path a - v - b, g_a g_v = omega^m g_v g_a and g_v g_b = "
             "omega^m g_b g_v with the same m), so every charge Q^(s) commutes with H "
-            f"(proof in freeladder.switching; {ref.MANN_ELMAN_WOOD_CHAPMAN_2024}). It is not an "
+            f"(proof in freeladder.switching; {ref.MANN_ELMAN_WOOD_CHAPMAN_2024}); no term needs "
+            "switching, and the orientation is the component's dipath.arcs. It is not an "
             "oriented indifference graph, so a free spectrum is not guaranteed."
         )
         return ComponentVerdict(key, "integrable", (text, not_free, _PROBE), witness, dipath=dipath)
