@@ -411,7 +411,11 @@ def test_clock_chains_recognised(reach: int, states: int) -> None:
 def test_disjoint_clock_chains_are_hidden_free() -> None:
     # Two reach-1 and reach-2 Z_3 chains on separate sites, terms interleaved at random, plus a
     # cyclic triangle on a third set of sites: the chains are recognised component by component
-    # (their orders checked on the model's own strings), the triangle makes the verdict unsolved.
+    # (their orders checked on the model's own strings).  A cyclic triangle on a third set of
+    # sites has no induced path on three terms, so its charges (H alone: alpha = 1) commute
+    # trivially: the verdict becomes "integrable", witnessed by the triangle (not a chain).  A
+    # path a - v - b whose exponents at v do not cancel makes it "unsolved" (the induced path is
+    # the witness; proof in freeladder.switching).
     one = fl.exclusion_chain(4, reach=1, states=3)
     two = fl.exclusion_chain(6, reach=2, states=3)
     terms = [(1, t.string) for t in one.terms]
@@ -432,13 +436,24 @@ def test_disjoint_clock_chains_are_hidden_free() -> None:
     triangle = [(1, make_string(3, [(20, a, b)])) for a, b in ((1, 0), (0, 1), (2, 2))]
     mixed = shuffled(Model.from_terms(terms + triangle), seed=5)
     v = classify(mixed)
-    assert v.kind == "unsolved"
+    assert v.kind == "integrable"
     assert len(v.components) == 3
     assert sorted(mixed.terms[j].string.support for j in v.witness) == [(20,), (20,), (20,)]
+    bent = [(1, make_string(3, f)) for f in ([(30, 0, 1)], [(30, 1, 0)], [(30, 0, 1), (31, 0, 1)])]
+    worse = shuffled(Model.from_terms(terms + triangle + bent), seed=6)
+    v = classify(worse)
+    assert v.kind == "unsolved" and len(v.components) == 4
+    centre, a, b = v.witness
+    s = [t.string for t in worse.terms]
+    assert s[a].commutes_with(s[b]) and s[centre].support == (30,)
+    assert (s[centre].commutation_exponent(s[a]) + s[centre].commutation_exponent(s[b])) % 3
 
 
-def test_clock_triangle_with_cyclic_orientation_is_unsolved() -> None:
+def test_clock_triangle_with_cyclic_orientation_is_integrable_not_free() -> None:
     # X, Z, X^2 Z^2 on one Z_3 site: every pair has exponent -1 cyclically (symplectic form).
+    # No ordering points every edge forward, so it is not an oriented indifference graph; with
+    # no induced path on three terms the charges (H alone) commute: "integrable", the cyclic
+    # triangle as witness.
     m = Model.from_terms(
         [
             (1, make_string(3, [(0, 1, 0)])),
@@ -447,22 +462,23 @@ def test_clock_triangle_with_cyclic_orientation_is_unsolved() -> None:
         ]
     )
     v = classify(m)
-    assert v.kind == "unsolved"
+    assert v.kind == "integrable"
+    assert not v.guarantee.proven
     assert sorted(v.witness) == [0, 1, 2]
     a, b, c = v.witness
     s = [t.string for t in m.terms]
     e = s[a].commutation_exponent(s[b])
     assert e == s[b].commutation_exponent(s[c]) == s[c].commutation_exponent(s[a])
-    assert any(
-        "no graph theorem is known for clock models; use fl.verify to probe numerically" in r
-        for r in v.reasons
-    )
+    assert any("fl.verify probes the model exactly" in r for r in v.reasons)
 
 
-def test_clock_pair_with_exponent_two_is_unsolved() -> None:
+def test_clock_pair_with_exponent_two_is_integrable_not_free() -> None:
+    # A path of Z_4 terms with omega^2 = -1 on every edge: along each induced path the two
+    # exponents cancel (2 + 2 = 0 mod 4), so the charges commute; the exponent 2 is not a unit,
+    # so it is not an oriented indifference graph.  The pair with exponent 2 is the witness.
     m = Model.from_terms([(1, make_string(4, [(j, 1, 0), (j + 1, 0, 2)])) for j in range(4)])
     v = classify(m)
-    assert v.kind == "unsolved"
+    assert v.kind == "integrable"
     a, b = v.witness
     s = [t.string for t in m.terms]
     assert s[a].commutation_exponent(s[b]) == 2

@@ -28,6 +28,7 @@ from .charges import (
     charge_series,
     transfer_matrix,
 )
+from .directed import DirectedFrustrationGraph, directed_frustration_graph
 from .disorder import (
     LogGapStatistics,
     disorder_couplings,
@@ -75,6 +76,7 @@ from .scaling import (
 )
 from .spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .strings import StringArray, WeylString, make_string, pauli
+from .switching import DipathSwitching, dipath_switching
 from .syntax import ModelSyntaxError, parse_model
 from .thermo import Thermodynamics, log_partition_function, thermodynamics
 from .verdict import ComponentVerdict, Guarantee, Verdict, classify, guarantee
@@ -86,6 +88,10 @@ __all__ = [
     "kitaev_torus",
     "IndifferenceOrder",
     "indifference_order",
+    "DipathSwitching",
+    "DirectedFrustrationGraph",
+    "dipath_switching",
+    "directed_frustration_graph",
     "SectorSpectrum",
     "SectorStructure",
     "jordan_wigner_spectrum",

@@ -3,12 +3,16 @@
 :func:`classify` looks at the frustration graph one connected component at a time and reports
 the weakest answer over the components, weakest first:
 
-* ``"unsolved"`` -- N = 2: a claw (no theorem applies); N > 2: not an exclusion chain (no graph
-  theorem is known for clock models);
+* ``"unsolved"`` -- N = 2: a claw (no theorem applies); N > 2: the exponents do not form a
+  dipath orientation of a claw-free graph, so the independent-set charges do not commute with
+  H (:mod:`freeladder.switching`);
 * ``"integrable"`` -- claw-free but without a simplicial clique: the charges commute
-  (Elman-Chapman-Flammia 2021), a free spectrum is not guaranteed;
+  (Elman-Chapman-Flammia 2021), a free spectrum is not guaranteed; N > 2: a dipath
+  orientation (every induced path directed with one exponent) that is not an oriented
+  indifference graph;
 * ``"hidden-free"`` -- claw-free with a simplicial clique (Chapman-Elman-Mann 2023; with no
-  even hole, Elman-Chapman-Flammia 2021), or for N > 2 the exclusion algebra of reach p;
+  even hole, Elman-Chapman-Flammia 2021), or for N > 2 the exclusion algebra of reach p or an
+  oriented indifference graph (Mann-Elman-Wood-Chapman 2024);
 * ``"jordan-wigner"`` -- a line graph (Chapman-Flammia 2020): Majorana bilinears.
 
 Each component, and the whole verdict, carries a :class:`Guarantee`: whether a theorem proves
@@ -55,6 +59,7 @@ from .model import Model
 from .printing import format_terms
 from .relations import Relation, Relations, find_relations
 from .strings import WeylString
+from .switching import DipathSwitching, dipath_from_exponents
 
 __all__ = [
     "KINDS",
@@ -74,9 +79,9 @@ KINDS: tuple[VerdictKind, ...] = ("unsolved", "integrable", "hidden-free", "jord
 
 _CLOCK = f"{ref.BAXTER_1989}; {ref.FENDLEY_2014}; {ref.ALCARAZ_PIMENTA_2020}"
 _FERMION_CHAIN = f"{ref.FENDLEY_2019}; {ref.ALCARAZ_PIMENTA_2020}"
-_NO_CLOCK_THEOREM = (
-    "Beyond the exclusion algebra, no graph theorem is known for clock models; "
-    "use fl.verify to probe numerically."
+_PROBE = (
+    "No theorem gives the spectrum; fl.verify probes the model exactly (commuting charges, "
+    "inversion relation) and reports a witness when an identity fails."
 )
 _SHOWN_COMPONENTS = 4
 _SHOWN_WITNESS = 12
@@ -168,6 +173,11 @@ class ComponentVerdict:
     chain : ChainStructure or None
         For N > 2 chain components (indices of the whole model), and for any single-component
         model that is a chain.
+    indifference : IndifferenceOrder or None
+        N > 2 components recognised as oriented indifference graphs (not chains).
+    dipath : DipathSwitching or None
+        N > 2 components that are neither: whether the exponents form a dipath orientation
+        (``"integrable"``), or what blocks it and which switching would give one.
     guarantee : Guarantee
         Whether the single polynomial is proven to give this component's spectrum, taking
         into account the relations among the strings that touch the component.
@@ -185,6 +195,7 @@ class ComponentVerdict:
     chain: ChainStructure | None = None
     guarantee: Guarantee = _PENDING
     indifference: IndifferenceOrder | None = None
+    dipath: DipathSwitching | None = None
 
     def __post_init__(self) -> None:
         def ints(values: Any) -> tuple[int, ...]:
@@ -229,6 +240,7 @@ class ComponentVerdict:
                 "chain": chain,
                 "guarantee": self.guarantee,
                 "indifference": self.indifference,
+                "dipath": self.dipath,
             }
         )
 
@@ -423,8 +435,12 @@ def classify(m: Model) -> Verdict:
     root graph, the Majorana pair of each term and the cycle basis; otherwise a claw gives
     ``"unsolved"``; otherwise a simplicial clique gives ``"hidden-free"`` (with the even-hole
     status); otherwise ``"integrable"``.  For N > 2, a component whose terms form the reach-p
-    exclusion algebra (any relabelling, either orientation) is ``"hidden-free"``; any other is
-    ``"unsolved"`` with the terms that break the pattern.
+    exclusion algebra (any relabelling, either orientation) or an oriented indifference graph
+    is ``"hidden-free"``; otherwise one whose exponents form a dipath orientation of a
+    claw-free graph is ``"integrable"`` (every charge commutes with H; proof in
+    :mod:`freeladder.switching`), witnessed by the terms that break the chain pattern; any
+    other is ``"unsolved"`` with the claw or induced path that blocks, and the switching that
+    would give a dipath orientation when one exists.
 
     Parameters
     ----------
@@ -444,7 +460,8 @@ def classify(m: Model) -> Verdict:
     ----------
     A. Chapman and S. T. Flammia, Quantum 4, 278 (2020);
     S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021);
-    A. Chapman, S. J. Elman and R. L. Mann, arXiv:2305.15625 (2023).
+    A. Chapman, S. J. Elman and R. L. Mann, arXiv:2305.15625 (2023);
+    R. L. Mann, S. J. Elman, D. R. Wood and A. Chapman, arXiv:2408.09684 (2024).
 
     Examples
     --------
@@ -615,6 +632,16 @@ def _graph_guarantee(m: Model, comp: ComponentVerdict) -> Guarantee:
             f"({ref.ELMAN_CHAPMAN_FLAMMIA_2021}) cannot be applied.",
             (),
         )
+    if comp.kind == "integrable" and comp.dipath is not None:
+        return _refusal(
+            m,
+            ref.MANN_ELMAN_WOOD_CHAPMAN_2024,
+            "The exponents form a dipath orientation, so every charge Q^(s) commutes with H "
+            "(freeladder.switching); but the frustration graph is not an oriented indifference "
+            "graph, so no theorem says that one polynomial gives the spectrum "
+            f"({ref.MANN_ELMAN_WOOD_CHAPMAN_2024}).",
+            comp.witness,
+        )
     if comp.kind == "integrable":
         return _refusal(
             m,
@@ -632,8 +659,9 @@ def _graph_guarantee(m: Model, comp: ComponentVerdict) -> Guarantee:
         )
     else:
         why = (
-            "The terms do not form the exclusion algebra of any reach, and no graph theorem is "
-            f"known for other clock models ({ref.ALCARAZ_PIMENTA_2020})."
+            "The frustration graph is neither an oriented indifference graph nor a dipath "
+            "orientation of a claw-free graph: the independent-set charges do not commute with "
+            f"H, and no graph theorem applies ({ref.MANN_ELMAN_WOOD_CHAPMAN_2024})."
         )
     return _refusal(m, "", why, comp.witness)
 
@@ -852,10 +880,59 @@ def _clock_component(m: Model, terms: list[int], sub: sps.csr_array) -> Componen
             f"is that of free parafermions ({ref.MANN_ELMAN_WOOD_CHAPMAN_2024})."
         )
         return ComponentVerdict(key, "hidden-free", (text,), indifference=order)
-    local, why = _clock_obstruction(sub, m.states)
-    witness = tuple(int(idx[j]) for j in local)
-    text = why.format(*(f"{j} ({_string_text(m, j)})" for j in witness))
-    return ComponentVerdict(key, "unsolved", (text, _NO_CLOCK_THEOREM), witness)
+    dipath = dipath_from_exponents(sub, m.states, terms)
+    if dipath.as_written:
+        local, why = _clock_obstruction(sub, m.states)
+        witness = tuple(int(idx[j]) for j in local)
+        not_free = why.format(*(f"{j} ({_string_text(m, j)})" for j in witness))
+        text = (
+            "The frustration graph is claw-free and its exponents form a dipath orientation "
+            "(along every induced path a - v - b, g_a g_v = omega^m g_v g_a and g_v g_b = "
+            "omega^m g_b g_v with the same m), so every charge Q^(s) commutes with H "
+            f"(proof in freeladder.switching; {ref.MANN_ELMAN_WOOD_CHAPMAN_2024}); no term needs "
+            "switching, and the orientation is the component's dipath.arcs. It is not an "
+            "oriented indifference graph, so a free spectrum is not guaranteed."
+        )
+        return ComponentVerdict(key, "integrable", (text, not_free, _PROBE), witness, dipath=dipath)
+    reasons = [_dipath_obstruction(m, dipath), _PROBE]
+    return ComponentVerdict(key, "unsolved", tuple(reasons), dipath.obstruction, dipath=dipath)
+
+
+def _dipath_obstruction(m: Model, d: DipathSwitching) -> str:
+    """A sentence naming the terms that keep the charges from commuting with H."""
+    t = [f"{j} ({_string_text(m, j)})" for j in d.obstruction]
+    if d.kind == "claw":
+        return (
+            f"Term {t[0]} fails to commute with terms {', '.join(t[1:])}, which commute with "
+            "each other: a claw. Whatever the exponents, a pair of the leaves (in Q^(2)) or all "
+            "three (in Q^(3)) fail to commute with H, so the independent-set charges are not "
+            "conserved."
+        )
+    if d.kind == "odd cycle":
+        return (
+            f"Along the terms {', '.join(t)} the induced paths demand an odd number of "
+            "reversals around a cycle: no switching of terms gives a dipath orientation, and "
+            "as written some induced path is not directed, so [H, Q^(2)] != 0."
+        )
+    centre, a, b = t
+    e_a = m.strings[d.obstruction[0]].commutation_exponent(m.strings[d.obstruction[1]])
+    e_b = m.strings[d.obstruction[0]].commutation_exponent(m.strings[d.obstruction[2]])
+    text = (
+        f"Terms a = {a} and b = {b} commute, and both fail to commute with term v = {centre}: "
+        f"g_v g_a = omega^{e_a} g_a g_v and g_v g_b = omega^{e_b} g_b g_v, whose exponents do "
+        "not cancel, so the induced path a - v - b is not directed and the product g_a g_b in "
+        "Q^(2) does not commute with H."
+    )
+    if d.kind == "exponents":
+        return text + (
+            " No switching of terms (g -> g^-1) repairs it: the two exponents differ by more "
+            "than a sign."
+        )
+    return text + (
+        f" Replacing {'term' if len(d.switched) == 1 else 'terms'} {_list(d.switched)} by "
+        "the inverse (g -> g^-1, switching in graph terms) would give a dipath orientation, and "
+        "that other model would have commuting charges; this one does not."
+    )
 
 
 def _with_chain(comp: ComponentVerdict, chain: ChainStructure) -> ComponentVerdict:
