@@ -42,6 +42,7 @@ import numpy as np
 import scipy.linalg
 from tqdm.auto import tqdm
 
+from .cache import cached, structure_store
 from .errors import TooLargeError
 from .frozen import readonly_array, readonly_mapping
 from .jsonready import json_ready
@@ -406,6 +407,14 @@ def sectors(m: Model) -> SectorStructure:
     ((((0, 1, 2, 3, 4), 1),), 16)
     """
     pairs = _check_model(m)
+    per_sites = structure_store(m.strings).setdefault("majorana:sectors", {})
+    key = tuple(m.sites)
+    if key not in per_sites:  # depends on the strings only: shared across couplings
+        per_sites[key] = _build_sectors(m, pairs)
+    return per_sites[key]  # type: ignore[no-any-return]
+
+
+def _build_sectors(m: Model, pairs: dict[int, tuple[int, int]]) -> SectorStructure:
     strings = m.strings
     root = nx.Graph()
     for term, (a, b) in pairs.items():
@@ -619,7 +628,9 @@ def flux_theorem_values(m: Model) -> tuple[dict[WeylString, int] | None, str]:
     couplings = m.coupling_array()
     if np.iscomplexobj(couplings):
         return None, "complex couplings"
-    faces, why = _honeycomb_faces(m, pairs)
+    faces, why = cached(
+        structure_store(m.strings), "majorana:faces", lambda: _honeycomb_faces(m, pairs)
+    )
     if faces is None:
         return None, why
     by_kind: dict[tuple[int, int], list[float]] = {}
@@ -988,7 +999,8 @@ def jordan_wigner_spectrum(
         Numeric couplings (real or complex); the frustration graph must be a line graph.
     sector : "all", "ground", a sequence of +-1, or a mapping
         "all": every consistent sector (their union, with multiplicities, is the whole
-        spectrum).  "ground": the sector holding the lowest level (by real part), see Notes.
+        spectrum).  "ground": the sectors with the cycle values of the one holding the lowest
+        level (by real part; every parity value kept), see Notes.
         A sequence: eigenvalues of the cycle operators
         (:attr:`SectorStructure.cycle_operators`, in order); every consistent parity
         assignment is kept.  A mapping: conserved strings (e.g. plaquettes) to their values;
@@ -1062,8 +1074,9 @@ def jordan_wigner_spectrum(
         solved.append(levels)
         mismatch = max(mismatch, miss)
     bar.close()
-    if sector == "ground":
-        solved = [min(solved, key=lambda s: _re(s.ground_energy))]
+    if sector == "ground":  # the flux sector of the lowest level, with its parity values
+        best = min(solved, key=lambda s: _re(s.ground_energy)).label[:n_cycles]
+        solved = [s for s in solved if s.label[:n_cycles] == best]
     hnorm = float(np.abs(couplings).sum()) if len(couplings) else 0.0
     n_modes = 1 + max((max(p) for p in struct.pairs.values()), default=0)
     constant = _real_if(complex(m.constant)) if m.constant != 0 else 0.0

@@ -948,10 +948,8 @@ def _sector_spectrum(
             f"sector must be 'ground', 'all', a tuple of +-1 or a mapping, not {sector!r}"
         )
     if sector == "ground":
-        found = jordan_wigner_spectrum(m, "ground")
-        cycles = found.sectors[0].label[: len(found.structure.cycle_operators)]
-        jw = jordan_wigner_spectrum(m, cycles)
-        selection = f"the ground sector, by {found.selection}"
+        jw = jordan_wigner_spectrum(m, "ground")
+        selection = f"the ground sector, by {jw.selection}"
     else:
         jw = jordan_wigner_spectrum(m, sector)
         selection = jw.selection
