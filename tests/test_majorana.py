@@ -431,3 +431,29 @@ def test_sector_argument_errors_say_what_is_wrong():
     assert torus.parity_constraints
     with pytest.raises(ValueError, match="Majorana parity"):
         fl.thermodynamics(torus, 1.0)
+
+
+def test_parity_constrained_levels_lowest_first_and_histogram():
+    # the 2 x 2 torus fixes the Majorana parity in each flux sector: the best-first lowest
+    # levels keep only choices of that parity, as the full (filtered) list does, and both are
+    # eigenvalues of the sector's block of H (projected with numpy, as in
+    # test_each_sector_is_the_matching_joint_eigenspace)
+    m = fl.kitaev_torus(2, 2, 1.0, 0.7, 0.5)
+    sp = fl.free_spectrum(m, sector="ground")
+    assert sp.parity_constraints
+    every = sp.levels(None)
+    assert len(every) == 2 ** (len(sp) - 1)  # one parity: half of the 2^S choices
+    lowest = sp.levels(7)
+    np.testing.assert_allclose(lowest.energies, every.energies[:7], atol=1e-12)
+    s = fl.sectors(m)
+    h = m.to_sparse().toarray()
+    proj = np.eye(m.dimension)
+    for value, g in zip(sp.provenance.sector["cycle_values"], s.cycle_operators, strict=True):
+        proj = proj @ (np.eye(m.dimension) + value * g.to_sparse(m.sites).toarray()) / 2
+    basis = np.linalg.svd(proj)[0][:, : round(np.trace(proj).real)]
+    block = np.linalg.eigvalsh(basis.conj().T @ h @ basis)
+    free = np.sort(np.repeat(every.energies, every.multiplicity))
+    np.testing.assert_allclose(free, block, atol=1e-10)
+    assert sp.gap == pytest.approx(np.unique(np.round(block, 9))[1] - block[0], abs=1e-8)
+    dos = sp.density_of_states(np.linspace(block[0] - 1, block[-1] + 1, 9))
+    assert dos.counts.sum() == len(block)
