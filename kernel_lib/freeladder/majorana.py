@@ -20,13 +20,17 @@ dimension ``2^(L - rank)``.
 In a sector, ``H = (i/2) sum_ab h_ab gamma_a gamma_b`` with the real antisymmetric matrix
 ``h_ab = c_j u_j = -h_ba``; its real Schur form ``h = Q (+) [[0, e_k], [-e_k, 0]] Q^T`` gives
 ``H = sum_k e_k s_k`` with ``s_k = +-1`` and, per even component, the constraint
-``prod_k s_k = kappa i^(V/2) det Q`` when its parity is fixed.
+``prod_k s_k = kappa i^(V/2) det Q`` when its parity is fixed.  Complex couplings give a
+complex antisymmetric ``h``: its eigenvalue pairs ``+-e_k`` and ``det Q = Pf(h) / prod e_k``
+play the same roles.  :func:`freeladder.free_spectrum` with ``sector=`` returns one set of
+cycle values as a :class:`~freeladder.spectrum.FreeSpectrum` (through :func:`flux_sector`).
 
 References
 ----------
 E. Lieb, T. Schultz and D. Mattis, Ann. Phys. 16, 407 (1961) (free fermions from spins);
 A. Kitaev, Ann. Phys. 321, 2 (2006) (Majorana modes and conserved plaquettes);
-A. Chapman and S. T. Flammia, Quantum 4, 278 (2020), arXiv:2003.05465 (root graphs).
+A. Chapman and S. T. Flammia, Quantum 4, 278 (2020), arXiv:2003.05465 (root graphs);
+E. H. Lieb, Phys. Rev. Lett. 73, 2158 (1994) (flux of the ground state).
 """
 
 from __future__ import annotations
