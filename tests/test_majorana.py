@@ -8,12 +8,15 @@ P. Pfeuty, Ann. Phys. 57, 79 (1970) (open transverse-field Ising chain); A. Kita
 from __future__ import annotations
 
 import itertools
+import json
 
 import numpy as np
 import pytest
-from scipy.optimize import brentq
+from scipy.optimize import brentq, linear_sum_assignment
+from scipy.sparse.linalg import eigsh
 
 import freeladder as fl
+from freeladder.errors import TooLargeError
 
 
 def ladder(rungs: int, rng: np.random.Generator) -> fl.Model:
@@ -202,3 +205,255 @@ def test_free_spectrum_refusal_points_to_the_sector_route():
     m = ladder(3, np.random.default_rng(2))
     with pytest.raises(fl.NoTheoremError, match="jordan_wigner_spectrum"):
         fl.free_spectrum(m)
+
+
+# -- free_spectrum(m, sector=...): one sector as a FreeSpectrum ---------------------------------
+def _matched_distance(free: np.ndarray, exact: np.ndarray) -> float:
+    """Largest distance of the best one-to-one matching of two multisets of complex numbers
+    (scipy's assignment solver)."""
+    cost = np.abs(free[:, None] - exact[None, :])
+    rows, cols = linear_sum_assignment(cost)
+    return float(cost[rows, cols].max())
+
+
+@pytest.mark.parametrize(
+    "build",
+    [
+        lambda: ladder(3, np.random.default_rng(21)),
+        lambda: ladder(4, np.random.default_rng(22)),
+        lambda: fl.kitaev_honeycomb(2, 4, 0.9, 1.1, 0.7),
+        lambda: fl.kitaev_torus(2, 2, 1.0, 0.8, 0.6),  # parity fixed by the relations
+    ],
+    ids=["ladder3", "ladder4", "kitaev2x4", "torus2x2"],
+)
+def test_sector_spectra_are_free_spectra_whose_union_is_the_whole_spectrum(build):
+    # every set of cycle values gives one FreeSpectrum (levels with multiplicities); their
+    # union is numpy's dense spectrum (Chapman-Flammia 2020: free sector by sector)
+    m = build()
+    exact = dense_levels(m)
+    n_cycles = len(fl.sectors(m).cycle_operators)
+    union = []
+    for values in itertools.product((1, -1), repeat=n_cycles):
+        try:
+            sp = fl.free_spectrum(m, sector=values)
+        except ValueError as err:
+            assert "contradict" in str(err)  # a set of values the relations exclude
+            continue
+        assert isinstance(sp, fl.FreeSpectrum) and sp.guaranteed
+        assert sp.provenance.sector["cycle_values"] == values
+        table = sp.levels(None)
+        union.append(np.repeat(table.energies, table.multiplicity))
+    free = np.sort(np.concatenate(union))
+    assert len(free) == m.dimension
+    np.testing.assert_allclose(free, exact, atol=1e-10 * max(1.0, np.abs(exact).max()))
+
+
+@pytest.mark.parametrize(
+    "build",
+    [
+        lambda: ladder(3, np.random.default_rng(31)),
+        lambda: fl.kitaev_honeycomb(2, 4, 1.2, 0.5, 0.9),
+        lambda: fl.kitaev_torus(3, 2, 0.7, 1.0, 0.9),
+    ],
+    ids=["ladder3", "kitaev2x4", "torus3x2"],
+)
+def test_ground_sector_holds_the_exact_ground_state(build):
+    # the sector free_spectrum(m, sector="ground") picks holds numpy's ground states: each
+    # joint eigenvector of the generators in the ground eigenspace, labelled with
+    # fl.sectors(m).sector_of, has the chosen cycle values
+    m = build()
+    values, vectors = eigsh(m.to_sparse().tocsc(), k=6, which="SA")  # scipy Lanczos
+    order = np.argsort(values)
+    values, vectors = values[order], vectors[:, order]
+    assert values[-1] - values[0] > 1e-6  # the whole ground space is among the six
+    sp = fl.free_spectrum(m, sector="ground")
+    assert sp.ground_energy == pytest.approx(values[0], abs=1e-10)
+    s = fl.sectors(m)
+    space = vectors[:, np.abs(values - values[0]) < 1e-8]
+    # a random combination of the commuting generators, diagonalised in the ground space,
+    # gives joint eigenvectors (numpy)
+    rng = np.random.default_rng(0)
+    mix = sum(rng.normal() * g.to_sparse(m.sites).toarray() for g in s.generators)
+    _, inner = np.linalg.eigh(space.conj().T @ mix @ space)
+    for k in range(space.shape[1]):
+        label = s.sector_of(space @ inner[:, k])
+        assert label[: len(s.cycle_operators)] == sp.provenance.sector["cycle_values"]
+        assert label in sp.provenance.sector["labels"]
+    json.dumps(sp.to_dict(), allow_nan=False)
+
+
+@pytest.mark.parametrize("cells", [(2, 3), (3, 2)])
+def test_flux_rule_predicts_the_exact_ground_sector_on_small_tori(cells):
+    # Lieb 1994 as Kitaev 2006 uses it: flux-free hexagons in the ground state.  numpy's
+    # ground vector of the torus has every hexagon string at the value the rule assigns
+    m = fl.kitaev_torus(*cells, 1.0, 0.8, 0.6)
+    values, why = fl.flux_theorem_values(m)
+    assert values is not None, why
+    assert len(values) == cells[0] * cells[1]
+    assert set(values) == set(fl.honeycomb_hexagons(*cells))  # the builder's own hexagons
+    energies, vectors = eigsh(m.to_sparse().tocsc(), k=2, which="SA")  # scipy Lanczos
+    assert abs(energies[1] - energies[0]) > 1e-6
+    ground = vectors[:, np.argmin(energies)]
+    for string, value in values.items():
+        w = np.vdot(ground, string.to_sparse(m.sites) @ ground).real
+        assert w == pytest.approx(value, abs=1e-8)
+    s = fl.sectors(m)
+    assert s.sector_of(ground) in s.labels_where(values)
+
+
+@pytest.mark.parametrize("cells", [(2, 2), (3, 3)])
+def test_flux_rule_is_not_a_proof_on_every_small_torus(cells):
+    # the caveat in the docstring, measured: on these tori the lowest level of the sectors the
+    # rule selects lies above numpy's (3 x 3: sparse Lanczos, scipy) ground energy
+    m = fl.kitaev_torus(*cells, 1.0, 0.8, 0.6)
+    values, _ = fl.flux_theorem_values(m)
+    assert values is not None
+    rule = fl.jordan_wigner_spectrum(m, sector=values).ground_energy
+    exact = float(eigsh(m.to_sparse().tocsc(), k=1, which="SA")[0][0])
+    assert rule > exact + 1e-3
+    search = fl.free_spectrum(m, sector="ground")  # small: found by the exhaustive search
+    assert "exhaustive search" in search.provenance.sector["selection"]
+    assert search.ground_energy == pytest.approx(exact, abs=1e-8)
+
+
+def test_flux_rule_chooses_the_ground_sector_of_a_large_torus():
+    # 8 x 8 cells: 2^66 labels, far beyond a search; the rule fixes the hexagons and the loop
+    # and parity completions are searched.  Energy per site against the bulk integral
+    # (Kitaev 2006, as in test_flux_free_honeycomb_torus_approaches_the_bulk_energy)
+    q = np.linspace(0.0, 2 * np.pi, 1201)[:-1]
+    q1, q2 = np.meshgrid(q, q)
+    bulk = -0.5 * float(np.mean(np.abs(1 + np.exp(1j * q1) + np.exp(1j * q2))))
+    m = fl.kitaev_torus(8, 8)
+    sp = fl.free_spectrum(m, sector="ground")
+    assert "Lieb" in sp.provenance.sector["selection"]
+    assert "not by a search" in sp.provenance.guarantee
+    assert abs(sp.ground_energy / len(m.sites) - bulk) < 5e-4
+    # flipping one hexagon's flux costs energy (a vison pair needs two: the relations)
+    hexagons = fl.honeycomb_hexagons(8, 8)
+    values, _ = fl.flux_theorem_values(m)
+    flipped = dict(values)
+    for h in hexagons[:2]:
+        flipped[h] = -values[h]
+    assert fl.jordan_wigner_spectrum(m, sector=flipped).ground_energy > sp.ground_energy
+
+
+def test_ground_search_refused_beyond_its_limit():
+    m = ladder(20, np.random.default_rng(4))  # 19 plaquettes and a parity: 2^19 labels
+    with pytest.raises(TooLargeError, match="flux theorem does not apply"):
+        fl.free_spectrum(m, sector="ground")
+
+
+@pytest.mark.parametrize("rungs", [3, 4])
+def test_complex_couplings_against_dense_eigenvalues(rungs):
+    # non-Hermitian ladders: the single-particle matrix is complex antisymmetric, its
+    # eigenvalues come in pairs +-e, and the levels (sums of +-e) are numpy's eigenvalues as
+    # a multiset (matched one to one by scipy's assignment solver)
+    rng = np.random.default_rng(40 + rungs)
+    m = ladder(rungs, rng)
+    m = m.with_couplings(list(rng.normal(size=len(m)) + 1j * rng.normal(size=len(m))))
+    exact = np.linalg.eigvals(m.to_sparse().toarray())
+    jw = fl.jordan_wigner_spectrum(m)
+    energies, mult = jw.levels()
+    assert _matched_distance(np.repeat(energies, mult), exact) < 1e-9
+    sp = fl.free_spectrum(m, sector="ground")
+    assert np.iscomplexobj(sp.quasi_energies)
+    lowest = exact[np.argmin(exact.real)]
+    assert abs(sp.ground_energy - lowest) < 1e-9
+    assert sp.provenance.sum_rules["sum eta^N"] < 1e-12
+
+
+def test_complex_couplings_on_a_torus_with_a_fixed_parity():
+    rng = np.random.default_rng(7)
+    m = fl.kitaev_torus(2, 2)
+    m = m.with_couplings(
+        list(rng.uniform(0.5, 1.5, len(m)) * np.exp(0.4j * rng.normal(size=len(m))))
+    )
+    exact = np.linalg.eigvals(m.to_sparse().toarray())
+    energies, mult = fl.jordan_wigner_spectrum(m).levels()
+    assert _matched_distance(np.repeat(energies, mult), exact) < 1e-9
+
+
+def _lsm_reference(sub: np.ndarray, sup: np.ndarray, diag: np.ndarray) -> np.ndarray:
+    """Lieb-Schultz-Mattis 1961: for a chain quadratic in fermions, the single-particle
+    energies are the singular values of A - B (here a tridiagonal matrix), halved in the
+    E = sum +-eta convention."""
+    n = len(diag)
+    a = np.diag(diag) + np.diag(sub, -1) + np.diag(sup, 1)
+    return np.sort(np.linalg.svd(a, compute_uv=False)) if n else np.zeros(0)
+
+
+def test_random_xy_chain_against_lieb_schultz_mattis():
+    # H = sum_i (Jx_i X_i X_{i+1} + Jy_i Y_i Y_{i+1}), open: A - B has 2 Jx_i below and 2 Jy_i
+    # above the diagonal (LSM 1961), so eta = singular values of [Jx below, Jy above]
+    rng = np.random.default_rng(12)
+    n = 10  # even: no zero mode
+    jx, jy = rng.uniform(0.2, 1.5, n - 1), rng.uniform(-1.2, 1.2, n - 1)
+    terms = [(jx[i], fl.pauli("XX", [i, i + 1])) for i in range(n - 1)]
+    terms += [(jy[i], fl.pauli("YY", [i, i + 1])) for i in range(n - 1)]
+    m = fl.Model.from_terms(terms)
+    expected = _lsm_reference(jx, jy, np.zeros(n))
+    for index in range(len(fl.jordan_wigner_spectrum(m).sectors)):
+        got = np.sort(fl.jordan_wigner_spectrum(m).quasi_energies(index))
+        np.testing.assert_allclose(got, expected, atol=1e-12)
+
+
+def test_random_transverse_field_ising_chain_against_lieb_schultz_mattis():
+    # H = -sum h_i X_i - sum J_i Z_i Z_{i+1}: A - B is lower bidiagonal with 2 h_i on the
+    # diagonal and -2 J_i below (LSM 1961; Pfeuty 1970 for the uniform case), so eta are the
+    # singular values of the bidiagonal [h_i; J_i]; the polynomial route agrees (a tree)
+    rng = np.random.default_rng(13)
+    n = 10
+    field, bond = rng.uniform(0.3, 1.7, n), rng.uniform(0.3, 1.7, n - 1)
+    terms = [(-field[i], fl.pauli("X", [i])) for i in range(n)]
+    terms += [(-bond[i], fl.pauli("ZZ", [i, i + 1])) for i in range(n - 1)]
+    m = fl.Model.from_terms(terms)
+    expected = _lsm_reference(bond, np.zeros(n - 1), field)
+    sp = fl.free_spectrum(m, sector="ground")
+    np.testing.assert_allclose(np.sort(sp.quasi_energies), expected, atol=1e-12)
+    poly = fl.free_spectrum(m)
+    np.testing.assert_allclose(np.sort(poly.quasi_energies), expected, atol=1e-10)
+    assert sp.ground_energy == pytest.approx(poly.ground_energy, abs=1e-10)
+
+
+def test_sector_argument_errors_say_what_is_wrong():
+    m = ladder(3, np.random.default_rng(1))
+    with pytest.raises(ValueError, match="different sets of cycle values"):
+        fl.free_spectrum(m, sector="all")
+    with pytest.raises(ValueError, match="method='auto'"):
+        fl.free_spectrum(m, sector="ground", method="certified")
+    with pytest.raises(ValueError, match="Jordan-Wigner model"):
+        fl.free_spectrum(fl.exclusion_chain(6, reach=2), sector="ground")
+    with pytest.raises(ValueError, match="sector must be"):
+        fl.free_spectrum(m, sector="lowest")
+    with pytest.raises(fl.NoTheoremError, match='sector="ground"'):
+        fl.free_spectrum(m)
+    torus = fl.free_spectrum(fl.kitaev_torus(2, 3), sector="ground")
+    assert torus.parity_constraints
+    with pytest.raises(ValueError, match="Majorana parity"):
+        fl.thermodynamics(torus, 1.0)
+
+
+def test_parity_constrained_levels_lowest_first_and_histogram():
+    # the 2 x 2 torus fixes the Majorana parity in each flux sector: the best-first lowest
+    # levels keep only choices of that parity, as the full (filtered) list does, and both are
+    # eigenvalues of the sector's block of H (projected with numpy, as in
+    # test_each_sector_is_the_matching_joint_eigenspace)
+    m = fl.kitaev_torus(2, 2, 1.0, 0.7, 0.5)
+    sp = fl.free_spectrum(m, sector="ground")
+    assert sp.parity_constraints
+    every = sp.levels(None)
+    assert len(every) == 2 ** (len(sp) - 1)  # one parity: half of the 2^S choices
+    lowest = sp.levels(7)
+    np.testing.assert_allclose(lowest.energies, every.energies[:7], atol=1e-12)
+    s = fl.sectors(m)
+    h = m.to_sparse().toarray()
+    proj = np.eye(m.dimension)
+    for value, g in zip(sp.provenance.sector["cycle_values"], s.cycle_operators, strict=True):
+        proj = proj @ (np.eye(m.dimension) + value * g.to_sparse(m.sites).toarray()) / 2
+    basis = np.linalg.svd(proj)[0][:, : round(np.trace(proj).real)]
+    block = np.linalg.eigvalsh(basis.conj().T @ h @ basis)
+    free = np.sort(np.repeat(every.energies, every.multiplicity))
+    np.testing.assert_allclose(free, block, atol=1e-10)
+    assert sp.gap == pytest.approx(np.unique(np.round(block, 9))[1] - block[0], abs=1e-8)
+    dos = sp.density_of_states(np.linspace(block[0] - 1, block[-1] + 1, 9))
+    assert dos.counts.sum() == len(block)

@@ -430,3 +430,53 @@ def test_route_by_cost_and_no_listing_after_the_sweep(monkeypatch: pytest.Monkey
     assert parts.pairwise_seconds() < parts.sweep_seconds()
     r = fl.verify(small)
     assert r.ok and listed and "string algebra" in r["[H, Q(s)] = 0"].method
+
+
+@pytest.mark.parametrize(
+    "text",
+    [
+        "0.7 X0 + 1.3 Z0 Z1 + 0.4 X1 + 0.9 Z1 Z2 + 1.1 X2 + 0.6 Z2 Z3 + 0.8 X3",
+        "0.8 X0 X1 + 1.1 Y1 Y2 + 0.7 X2 X3 + 1.3 Y3 Y4 + 0.9 X4 X5",
+        "(0.7+0.3j) X0 + (1.1-0.2j) Z0 Z1 + 0.5j X1 + 0.9 Z1 Z2 + (0.4+0.4j) X2",
+    ],
+    ids=["ising", "xy", "complex-ising"],
+)
+def test_both_routes_agree_on_line_graphs_of_trees(text: str) -> None:
+    # a line graph of a tree is claw-free and even-hole-free: the single polynomial
+    # (Elman-Chapman-Flammia 2021) and the Majorana route (Chapman-Flammia 2020) must agree
+    m = fl.parse_model(text)
+    r = fl.verify(m)
+    check = r[verification.ROUTES]
+    assert check.passed, check.detail
+    assert check.value < 1e-10
+    assert r.ok, r.problems
+    # the outside reference for both: numpy's eigenvalues (eigvals: complex couplings give a
+    # non-Hermitian H), matched one to one with scipy
+    from scipy.optimize import linear_sum_assignment
+
+    exact = np.linalg.eigvals(m.to_sparse().toarray())
+    table = fl.free_spectrum(m).levels(None)
+    free = np.repeat(table.energies, table.multiplicity)
+    cost = np.abs(free[:, None] - exact[None, :])
+    rows, cols = linear_sum_assignment(cost)
+    assert cost[rows, cols].max() < 1e-9
+
+
+def test_routes_check_fails_when_the_quasi_energies_disagree() -> None:
+    # the check can fail: a spectrum of other couplings put in place of the model's
+    m = fl.parse_model("0.7 X0 + 1.3 Z0 Z1 + 0.4 X1 + 0.9 Z1 Z2 + 1.1 X2")
+    other = fl.parse_model("0.7 X0 + 1.3 Z0 Z1 + 0.4 X1 + 0.9 Z1 Z2 + 1.2 X2")
+    parts = verification._Parts(fl.analyze(m))
+    parts._spectrum = (fl.free_spectrum(other), "")
+    check = verification.routes_check(parts)
+    assert check.passed is False and check.value > 1e-3
+
+
+def test_sector_route_with_complex_couplings_is_verified() -> None:
+    # a non-Hermitian ladder with two plaquettes: the sector levels against numpy's eigvals
+    rng = np.random.default_rng(9)
+    m = fl.parse_model("X0 X1 + Y1 Y2 + X3 X4 + Y4 Y5 + Z0 Z3 + Z1 Z4 + Z2 Z5")
+    m = m.with_couplings(list(rng.normal(size=len(m)) + 1j * rng.normal(size=len(m))))
+    r = fl.verify(m)
+    assert r[verification.SECTORS].passed, r[verification.SECTORS].detail
+    assert r.ok, r.problems

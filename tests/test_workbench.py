@@ -278,10 +278,10 @@ def test_an_exception_is_shown_with_its_traceback(monkeypatch: pytest.MonkeyPatc
     wb = Workbench(fl.exclusion_chain(5, reach=1), synchronous=True)
     roots = _xy(wb.roots.roots)
 
-    def broken(a, unproven):
+    def broken(a, choice, unproven):
         raise RuntimeError("deliberately broken for the test")
 
-    monkeypatch.setattr(workbench_module, "spectrum_or_refusal", broken)
+    monkeypatch.setattr(workbench_module, "sector_spectrum", broken)
     wb.set_text("X0 Z1 + X1 Z2 + X2 Z3")
     assert "deliberately broken" in wb.error.value
     assert "RuntimeError" in wb.traceback.value and "Traceback" in wb.traceback.value
@@ -354,3 +354,65 @@ def test_family_controls_follow_a_chain_passed_in() -> None:
     assert (wb.input.size.value, wb.input.reach.value, wb.input.states.value) == (8, 2, 3)
     wb.input.reach.value = 1
     assert len(wb.model) == 8 and fl.chain_structure(wb.model).reach == 1
+
+
+def _ladder_text() -> str:
+    """A two-leg ladder with two plaquettes (Chapman-Flammia 2020: free sector by sector)."""
+    return "0.9 X0 X1 + 1.2 Y1 Y2 + 0.7 X3 X4 + 1.1 Y4 Y5 + 0.8 Z0 Z3 + 1.3 Z1 Z4 + 0.6 Z2 Z5"
+
+
+def test_sector_chooser_for_a_ladder_with_cycles() -> None:
+    m = fl.parse_model(_ladder_text())
+    wb = Workbench(m, synchronous=True)
+    chooser = wb.roots.sector
+    assert chooser.layout.display == ""
+    values = [v for _, v in chooser.options]
+    assert values[:3] == ["ground", "all", "polynomial"]
+    n_cycles = len(fl.sectors(m).cycle_operators)
+    assert all(isinstance(v, tuple) and len(v) == n_cycles for v in values[3:])
+    # the default: the ground sector, whose lowest rung is numpy's ground energy
+    assert chooser.value == "ground"
+    assert wb.roots.refusal.value == ""
+    exact = _dense_eigenvalues(m).real
+    rungs = np.asarray(wb.ladder.rungs.y)[:, 0]
+    assert rungs[0] == pytest.approx(exact.min(), abs=1e-10)
+    sp = fl.free_spectrum(m, sector="ground")
+    np.testing.assert_allclose(_xy(wb.roots.eta), np.asarray(sp.quasi_energies, complex))
+    assert "sector" in wb.roots.summary.value
+    # each individual sector: the rungs are that sector's levels, each one an eigenvalue
+    # numpy finds (the sector's spectrum is part of the whole)
+    for values_ in values[3:]:
+        chooser.value = values_
+        shown = np.asarray(wb.ladder.rungs.y)[:, 0]
+        expected = fl.free_spectrum(m, sector=values_).levels(len(shown)).energies
+        np.testing.assert_allclose(shown, expected, atol=0)
+        for e in shown:
+            assert np.min(np.abs(exact - e)) < 1e-9
+    # all sectors: one row per label, their lowest levels include numpy's ground energy
+    chooser.value = "all"
+    table = wb.roots.sectors_table.value
+    every = fl.jordan_wigner_spectrum(m, "all")
+    assert f"{len(every.sectors)} sectors" in table
+    assert table.count("<tr>") == len(every.sectors) + 1
+    # the single polynomial: the library's refusal, with the way out it names
+    chooser.value = "polynomial"
+    assert "No free spectrum is claimed" in wb.roots.refusal.value
+    assert "sector=&quot;ground&quot;" in wb.roots.refusal.value
+    assert len(wb.roots.eta.x) == 0
+
+
+def test_sector_chooser_hidden_and_kept_across_coupling_changes() -> None:
+    wb = Workbench(fl.exclusion_chain(6, reach=2), synchronous=True)
+    assert wb.roots.sector.layout.display == "none"
+    wb.set_text(_ladder_text())
+    assert wb.roots.sector.layout.display == ""
+    first = [v for _, v in wb.roots.sector.options][3]
+    wb.roots.sector.value = first
+    changed = _ladder_text().replace("0.9 X0 X1", "0.5 X0 X1")
+    wb.set_text(changed)  # same strings: the chosen sector stays
+    assert wb.roots.sector.value == first
+    sp = fl.free_spectrum(fl.parse_model(changed), sector=first)
+    np.testing.assert_allclose(_xy(wb.roots.eta), np.asarray(sp.quasi_energies, complex))
+    wb.set_text("X0 Z1 + 0.5 X1 Z2 + 0.8 X2 Z3")  # a chain: no cycles, no chooser
+    assert wb.roots.sector.layout.display == "none"
+    assert wb.roots.sectors_table.value == ""

@@ -49,7 +49,15 @@ from .graph import (
 )
 from .grid import sweep
 from .indifference import IndifferenceOrder, indifference_order
-from .majorana import SectorSpectrum, SectorStructure, jordan_wigner_spectrum, sectors
+from .majorana import (
+    FluxSector,
+    SectorSpectrum,
+    SectorStructure,
+    flux_sector,
+    flux_theorem_values,
+    jordan_wigner_spectrum,
+    sectors,
+)
 from .matching import LevelMatch, match_levels
 from .model import Model, Term
 from .operators import StringSum
@@ -92,8 +100,11 @@ __all__ = [
     "DirectedFrustrationGraph",
     "dipath_switching",
     "directed_frustration_graph",
+    "FluxSector",
     "SectorSpectrum",
     "SectorStructure",
+    "flux_sector",
+    "flux_theorem_values",
     "jordan_wigner_spectrum",
     "sectors",
     "Analysis",

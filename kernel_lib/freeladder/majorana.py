@@ -20,13 +20,17 @@ dimension ``2^(L - rank)``.
 In a sector, ``H = (i/2) sum_ab h_ab gamma_a gamma_b`` with the real antisymmetric matrix
 ``h_ab = c_j u_j = -h_ba``; its real Schur form ``h = Q (+) [[0, e_k], [-e_k, 0]] Q^T`` gives
 ``H = sum_k e_k s_k`` with ``s_k = +-1`` and, per even component, the constraint
-``prod_k s_k = kappa i^(V/2) det Q`` when its parity is fixed.
+``prod_k s_k = kappa i^(V/2) det Q`` when its parity is fixed.  Complex couplings give a
+complex antisymmetric ``h``: its eigenvalue pairs ``+-e_k`` and ``det Q = Pf(h) / prod e_k``
+play the same roles.  :func:`freeladder.free_spectrum` with ``sector=`` returns one set of
+cycle values as a :class:`~freeladder.spectrum.FreeSpectrum` (through :func:`flux_sector`).
 
 References
 ----------
 E. Lieb, T. Schultz and D. Mattis, Ann. Phys. 16, 407 (1961) (free fermions from spins);
 A. Kitaev, Ann. Phys. 321, 2 (2006) (Majorana modes and conserved plaquettes);
-A. Chapman and S. T. Flammia, Quantum 4, 278 (2020), arXiv:2003.05465 (root graphs).
+A. Chapman and S. T. Flammia, Quantum 4, 278 (2020), arXiv:2003.05465 (root graphs);
+E. H. Lieb, Phys. Rev. Lett. 73, 2158 (1994) (flux of the ground state).
 """
 
 from __future__ import annotations
@@ -40,19 +44,38 @@ from typing import Any
 import networkx as nx
 import numpy as np
 import scipy.linalg
+from tqdm.auto import tqdm
 
+from .cache import cached, structure_store
+from .errors import TooLargeError
 from .frozen import readonly_array, readonly_mapping
 from .jsonready import json_ready
 from .model import Model
+from .references import KITAEV_2006, LIEB_1994
 from .strings import WeylString, make_string
 from .verdict import classify
 
-__all__ = ["SectorSpectrum", "SectorStructure", "jordan_wigner_spectrum", "sectors"]
+__all__ = [
+    "FluxSector",
+    "SectorSpectrum",
+    "SectorStructure",
+    "flux_sector",
+    "flux_theorem_values",
+    "jordan_wigner_spectrum",
+    "sectors",
+]
 
 MAX_SECTOR_GENERATORS = 16
 """Sectors are enumerated (``sector="all"`` or ``"ground"``) up to ``2**16`` labels."""
 
 _EPS = float(np.finfo(float).eps)
+
+FLUX_RULE = f"Lieb's flux theorem ({LIEB_1994}) as {KITAEV_2006} applies it: flux-free hexagons"
+FLUX_CAVEAT = (
+    "the theorem is proved for reflection-symmetric lattices; on small tori it can fail (it "
+    "does on the 2 x 2 and 3 x 3 tori, by exact diagonalization), so this sector is the ground "
+    "one by that argument, not by a search"
+)
 
 
 # -- exact Majorana monomials ----------------------------------------------------------------------
@@ -388,6 +411,14 @@ def sectors(m: Model) -> SectorStructure:
     ((((0, 1, 2, 3, 4), 1),), 16)
     """
     pairs = _check_model(m)
+    per_sites = structure_store(m.strings).setdefault("majorana:sectors", {})
+    key = tuple(m.sites)
+    if key not in per_sites:  # depends on the strings only: shared across couplings
+        per_sites[key] = _build_sectors(m, pairs)
+    return per_sites[key]  # type: ignore[no-any-return]
+
+
+def _build_sectors(m: Model, pairs: dict[int, tuple[int, int]]) -> SectorStructure:
     strings = m.strings
     root = nx.Graph()
     for term, (a, b) in pairs.items():
@@ -478,14 +509,170 @@ def _t_join(tree: nx.Graph, parent: dict[Any, Any], depth: dict[Any, int], nodes
     return join
 
 
+# -- Lieb's flux theorem on the honeycomb torus ---------------------------------------------------
+def _bond_kind(g: WeylString) -> tuple[int, int] | None:
+    """The Pauli letter of a two-site string with the same letter on both sites, else None."""
+    if len(g.factors) != 2:
+        return None
+    (_, a1, b1), (_, a2, b2) = g.factors
+    return (a1, b1) if (a1, b1) == (a2, b2) else None
+
+
+def _honeycomb_faces(
+    m: Model, pairs: Mapping[int, tuple[int, int]]
+) -> tuple[list[tuple[tuple[int, ...], tuple[int, ...]]] | None, str]:
+    """The hexagonal faces ``(modes, terms)`` of a root graph that tiles a torus, or why not."""
+    kinds = {}
+    for t, g in enumerate(m.strings):
+        kind = _bond_kind(g)
+        if kind is None:
+            return None, f"term {t} ({g}) is not a bond X X, Y Y or Z Z"
+        kinds[t] = kind
+    root = nx.Graph()
+    for t, (a, b) in pairs.items():
+        root.add_edge(a, b, term=t)
+    if root.number_of_edges() != len(pairs) or not nx.is_connected(root):
+        return None, "the root graph is not one simple connected graph"
+    for v in root:
+        if sorted(kinds[root.edges[v, w]["term"]] for w in root[v]) != sorted(set(kinds.values())):
+            return None, "not every Majorana mode has one bond of each of three kinds"
+    if len(set(kinds.values())) != 3 or not nx.is_bipartite(root):
+        return None, "the root graph is not a bipartite lattice with three bond kinds"
+    adj = {v: [(w, root.edges[v, w]["term"]) for w in root[v]] for v in root}
+    found: dict[frozenset[int], tuple[tuple[int, ...], tuple[int, ...]]] = {}
+    for v in root:
+        ends: dict[int, list[tuple[tuple[int, ...], tuple[int, ...]]]] = {}
+        for a, t1 in adj[v]:
+            for b, t2 in adj[a]:
+                if b == v:
+                    continue
+                for c, t3 in adj[b]:
+                    if c not in (v, a):
+                        ends.setdefault(c, []).append(((v, a, b, c), (t1, t2, t3)))
+        for paths in ends.values():
+            for (p1, s1), (p2, s2) in itertools.combinations(paths, 2):
+                if {p1[1], p1[2]} & {p2[1], p2[2]}:
+                    continue
+                terms = s1 + s2[::-1]
+                if any(kinds[terms[k]] != kinds[terms[k + 3]] for k in range(3)):
+                    continue  # a face has its opposite bonds of one kind
+                if len({kinds[t] for t in terms}) == 3:
+                    found.setdefault(frozenset(terms), (p1 + (p2[2], p2[1]), terms))
+    faces = list(found.values())
+    count = {t: 0 for t in pairs}
+    for _, terms in faces:
+        for t in terms:
+            count[t] += 1
+    if len(faces) != root.number_of_nodes() // 2 or any(c != 2 for c in count.values()):
+        return None, (
+            f"the {len(faces)} hexagons found do not tile a closed surface (each bond in two, "
+            f"{root.number_of_nodes() // 2} of them)"
+        )
+    if not _orientable(faces):
+        return None, "the hexagons tile a non-orientable surface"
+    return faces, ""
+
+
+def _orientable(faces: Sequence[tuple[tuple[int, ...], tuple[int, ...]]]) -> bool:
+    """Whether the faces can be oriented so that each shared bond is run both ways."""
+    runs: dict[frozenset[int], list[tuple[int, tuple[int, int]]]] = {}
+    for f, (modes, _) in enumerate(faces):
+        for k in range(len(modes)):
+            a, b = modes[k], modes[(k + 1) % len(modes)]
+            runs.setdefault(frozenset((a, b)), []).append((f, (a, b)))
+    sign = {0: 1}
+    todo = [0]
+    while todo:
+        f = todo.pop()
+        modes = faces[f][0]
+        for k in range(len(modes)):
+            a, b = modes[k], modes[(k + 1) % len(modes)]
+            for g, (x, _) in runs[frozenset((a, b))]:
+                if g == f:
+                    continue
+                want = -sign[f] if x == a else sign[f]  # g must run the bond the other way
+                if g not in sign:
+                    sign[g] = want
+                    todo.append(g)
+                elif sign[g] != want:
+                    return False
+    return len(sign) == len(faces)
+
+
+def flux_theorem_values(m: Model) -> tuple[dict[WeylString, int] | None, str]:
+    """The hexagon strings' eigenvalues that Lieb's flux theorem assigns to the ground state.
+
+    Applies to the Kitaev honeycomb on a torus, recognised from the model itself: every term
+    is a bond ``X X``, ``Y Y`` or ``Z Z``; the root graph (the Majorana modes) is connected,
+    bipartite, with one bond of each kind at every mode; its hexagons (6-cycles whose opposite
+    bonds are of one kind, all three kinds present) tile a closed orientable surface (each bond
+    in exactly two hexagons, half as many hexagons as modes); couplings are real and their
+    magnitude is the same on all bonds of a kind (translation invariance).  The rule is
+    Lieb's: the ground state has flux 0 through faces of length 2 mod 4 (the hexagons), which
+    in Majorana form says that the product of ``h_ab`` around every hexagon is negative.
+    Lieb proved it for reflection-symmetric lattices; Kitaev applies it to the translation-
+    invariant honeycomb with any ``J_x, J_y, J_z`` (the vortex-free ground state).  The two
+    loop strings of the torus and the Majorana parity are not fixed by it.  It is not a proof
+    for every finite torus: exact diagonalization finds the ground state in these hexagon
+    values on the 2 x 3 and 3 x 2 tori, and outside them on the 2 x 2 and 3 x 3 tori
+    (``tests/test_majorana.py``).
+
+    Returns
+    -------
+    values : dict or None
+        Hexagon string -> eigenvalue +-1; None when the hypotheses fail.
+    reason : str
+        Why the theorem does not apply ('' when it does).
+
+    References
+    ----------
+    E. H. Lieb, Phys. Rev. Lett. 73, 2158 (1994); A. Kitaev, Ann. Phys. 321, 2 (2006).
+    """
+    pairs = _check_model(m)
+    couplings = m.coupling_array()
+    if np.iscomplexobj(couplings):
+        return None, "complex couplings"
+    faces, why = cached(
+        structure_store(m.strings), "majorana:faces", lambda: _honeycomb_faces(m, pairs)
+    )
+    if faces is None:
+        return None, why
+    by_kind: dict[tuple[int, int], list[float]] = {}
+    for t, g in enumerate(m.strings):
+        kind = _bond_kind(g)
+        assert kind is not None
+        by_kind.setdefault(kind, []).append(abs(float(couplings[t])))
+    for values in by_kind.values():
+        if max(values) - min(values) > 1e-12 * max(1.0, max(values)):
+            return None, "the coupling magnitudes differ between bonds of one kind"
+    strings = m.strings
+    out: dict[WeylString, int] = {}
+    for modes, terms in faces:
+        g, lam = _ordered_product([strings[t] for t in terms])
+        mu, rest = _majorana_phase([pairs[t] for t in terms])
+        if rest:
+            raise AssertionError("a hexagon's bilinears did not multiply to a scalar")
+        orient = 1.0
+        for k, t in enumerate(terms):
+            orient *= 1.0 if pairs[t] == (modes[k], modes[(k + 1) % 6]) else -1.0
+        prod_c = float(np.prod([couplings[t] for t in terms]))
+        # product of h around the face = prod(c) * prod(u) * orient < 0 (Lieb), and
+        # prod(u) * mu = lam * w (sectors): w = prod(u) * mu / lam
+        w = -np.sign(prod_c * orient) * mu / lam
+        if abs(w.imag) > 1e-12 or abs(abs(w.real) - 1) > 1e-12:
+            raise AssertionError("a hexagon's flux came out not +-1")
+        out[g] = 1 if w.real > 0 else -1
+    return out, ""
+
+
 # -- spectra --------------------------------------------------------------------------------------
 @dataclass(frozen=True)
 class _SectorLevels:
     label: tuple[int, ...]
-    energies: tuple[np.ndarray, ...]  # per component: e_k >= 0, ascending
+    energies: tuple[np.ndarray, ...]  # per component: e_k (Re e_k >= 0), ascending by |e|
     parity: tuple[int | None, ...]  # per component: required prod s_k, or None
     multiplicity: int
-    ground_energy: float
+    ground_energy: complex | float
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "energies", tuple(readonly_array(e) for e in self.energies))
@@ -500,33 +687,43 @@ class SectorSpectrum:
     structure : SectorStructure
     sectors : tuple
         The sectors computed, each with its label (generator eigenvalues), per-component
-        single-particle energies ``e_k >= 0``, the parity constraint ``prod s_k`` (None when
-        free) and the multiplicity of each of its levels.
+        single-particle energies ``e_k`` (``Re e_k >= 0``; real and >= 0 for real couplings),
+        the parity constraint ``prod s_k`` (None when free) and the multiplicity of each of
+        its levels.
+    constant : complex or float
+        The model's constant term, in every level.
     error_bound : float
         Estimate of the absolute error of every single-particle energy: ``V eps ||h||_2``
-        (backward stability of the real Schur decomposition, with Weyl's inequality); an
-        estimate, not a proof.
+        (backward stability of the real Schur decomposition, with Weyl's inequality), plus,
+        for complex couplings, the largest mismatch ``|lambda + lambda'|`` of the eigenvalue
+        pairs of the non-normal matrix; an estimate, not a proof.
+    selection : str
+        How the sectors were chosen (all, given, or how the ground sector was found).
     """
 
     structure: SectorStructure
     sectors: tuple[_SectorLevels, ...]
-    constant: float
+    constant: complex | float
     error_bound: float
+    selection: str = ""
 
     @property
-    def ground_energy(self) -> float:
-        """The lowest level over the sectors computed."""
-        return min(s.ground_energy for s in self.sectors) + self.constant
+    def ground_energy(self) -> complex | float:
+        """The lowest level (by real part) over the sectors computed."""
+        return _real_if(min((s.ground_energy for s in self.sectors), key=_re) + self.constant)
 
     @property
     def ground_sector(self) -> tuple[int, ...]:
         """The label of a sector that holds the lowest level."""
-        return min(self.sectors, key=lambda s: s.ground_energy).label
+        return min(self.sectors, key=lambda s: _re(s.ground_energy)).label
 
     def quasi_energies(self, sector: int = 0) -> np.ndarray:
-        """Single-particle energies of one computed sector (all components), ascending."""
+        """Single-particle energies of one computed sector (all components), ascending by |e|."""
         parts = self.sectors[sector].energies
-        return np.sort(np.concatenate(parts)) if parts else np.zeros(0)
+        if not parts:
+            return np.zeros(0)
+        e = np.concatenate(parts)
+        return e[np.argsort(np.abs(e), kind="stable")]
 
     def levels(self, max_modes: int = 22) -> tuple[np.ndarray, np.ndarray]:
         """Every many-body level over the computed sectors: (energies, multiplicities).
@@ -538,7 +735,7 @@ class SectorSpectrum:
         """
         energies, mult = [], []
         for sec in self.sectors:
-            values = np.zeros(1)
+            values: np.ndarray = np.zeros(1)
             for e, parity in zip(sec.energies, sec.parity, strict=True):
                 if len(e) > max_modes:
                     raise ValueError(
@@ -557,17 +754,132 @@ class SectorSpectrum:
                 "sectors": [
                     {
                         "label": s.label,
-                        "quasi_energies": np.sort(np.concatenate(s.energies)),
+                        "quasi_energies": self.quasi_energies(i),
                         "multiplicity": s.multiplicity,
                         "ground_energy": s.ground_energy + self.constant,
                     }
-                    for s in self.sectors
+                    for i, s in enumerate(self.sectors)
                 ],
                 "ground_energy": self.ground_energy,
                 "error_bound": self.error_bound,
                 "bounds": "estimate (backward-stable Schur decomposition), not a proof",
+                "selection": self.selection,
             }
         )
+
+
+@dataclass(frozen=True)
+class FluxSector:
+    """The computed sectors of one set of cycle-operator eigenvalues, as one free spectrum.
+
+    All sectors that share the cycle values share the single-particle matrix; they differ
+    only in the parity constraints, which are what remains of their labels.
+
+    Attributes
+    ----------
+    cycle_values : tuple of int
+        Eigenvalues of :attr:`SectorStructure.cycle_operators`.
+    labels : tuple
+        The full labels merged (cycle values, then parity values).
+    quasi_energies : ndarray
+        Every single-particle energy, sorted by ``|e|``.
+    parity_constraints : tuple of (tuple of int, int)
+        Positions in ``quasi_energies`` and the product ``prod s_k`` that the levels must have
+        over them (levels are ``sum_k s_k e_k``); empty when every choice is a level.
+    multiplicity : int
+        Multiplicity of every level.
+    """
+
+    cycle_values: tuple[int, ...]
+    labels: tuple[tuple[int, ...], ...]
+    quasi_energies: np.ndarray
+    parity_constraints: tuple[tuple[tuple[int, ...], int], ...]
+    multiplicity: int
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "quasi_energies", readonly_array(self.quasi_energies))
+
+
+def flux_sector(sp: SectorSpectrum) -> FluxSector:
+    """Merge computed sectors that share their cycle values into one :class:`FluxSector`.
+
+    Raises
+    ------
+    ValueError
+        When the sectors have different cycle values (different single-particle matrices), or
+        their parity values do not form an affine set (not expressible as parity constraints).
+    """
+    n_cycles = len(sp.structure.cycle_operators)
+    patterns = {s.label[:n_cycles] for s in sp.sectors}
+    if len(patterns) != 1:
+        raise ValueError(
+            f"these sectors have {len(patterns)} different sets of cycle values (different "
+            "single-particle matrices); one free spectrum holds one of them: give the cycle "
+            "values, or use jordan_wigner_spectrum(m, 'all') for the union"
+        )
+    first = sp.sectors[0]
+    if any(s.multiplicity != first.multiplicity for s in sp.sectors):
+        raise AssertionError("sectors with one single-particle matrix differ in multiplicity")
+    sizes = [len(e) for e in first.energies]
+    starts = np.concatenate([[0], np.cumsum(sizes)]).astype(int)
+    energies = np.concatenate(first.energies) if sizes else np.zeros(0)
+    order = np.argsort(np.abs(energies), kind="stable")
+    position = np.empty(len(order), dtype=int)
+    position[order] = np.arange(len(order))
+    constrained = [c for c, p in enumerate(first.parity) if p is not None]
+    allowed = {
+        sum(1 << i for i, c in enumerate(constrained) if s.parity[c] == -1) for s in sp.sectors
+    }
+    constraints = []
+    for mask, bit in _affine_equations(allowed, len(constrained)):
+        comps = [constrained[i] for i in range(len(constrained)) if mask >> i & 1]
+        modes = [int(position[k]) for c in comps for k in range(starts[c], starts[c + 1])]
+        constraints.append((tuple(sorted(modes)), -1 if bit else 1))
+    return FluxSector(
+        next(iter(patterns)),
+        tuple(s.label for s in sp.sectors),
+        energies[order],
+        tuple(constraints),
+        first.multiplicity,
+    )
+
+
+def _affine_equations(points: set[int], n: int) -> list[tuple[int, int]]:
+    """Equations ``mask . x = bit`` (over GF(2)) whose solutions are exactly ``points``."""
+    base = min(points)
+    pivots: dict[int, int] = {}  # pivot bit -> reduced difference vector
+    for p in points:
+        d = p ^ base
+        for bit in sorted(pivots, reverse=True):
+            if d >> bit & 1:
+                d ^= pivots[bit]
+        if d:
+            top = d.bit_length() - 1
+            for bit in list(pivots):  # keep the rows fully reduced
+                if pivots[bit] >> top & 1:
+                    pivots[bit] ^= d
+            pivots[top] = d
+    if len(points) != 2 ** len(pivots):
+        raise ValueError("the parity values of these sectors are not an affine set")
+    equations = []
+    for free in range(n):
+        if free in pivots:
+            continue
+        mask = 1 << free
+        for bit, row in pivots.items():
+            if row >> free & 1:
+                mask |= 1 << bit
+        equations.append((mask, bin(mask & base).count("1") % 2))
+    return equations
+
+
+def _re(v: complex | float) -> float:
+    return float(np.real(v))
+
+
+def _real_if(v: complex | float) -> complex | float:
+    v = complex(v)
+    return v.real if v.imag == 0 else v
 
 
 def _component_levels(e: np.ndarray, parity: int | None) -> np.ndarray:
@@ -606,18 +918,95 @@ def _canonical(h: np.ndarray) -> tuple[np.ndarray, float]:
     return np.array(energies), (1.0 if det > 0 else -1.0)
 
 
-def jordan_wigner_spectrum(m: Model, sector: str | Sequence[int] = "all") -> SectorSpectrum:
+def _pfaffian(a: np.ndarray) -> complex:
+    """Pfaffian of a complex antisymmetric matrix by Gaussian elimination with pivoting
+    (the Parlett-Reid scheme, M. Wimmer, ACM Trans. Math. Softw. 38, 30 (2012))."""
+    a = np.array(a, dtype=complex)
+    n = a.shape[0]
+    if n % 2:
+        return 0j
+    value = 1 + 0j
+    for k in range(0, n - 1, 2):
+        p = k + 1 + int(np.argmax(np.abs(a[k + 1 :, k])))
+        if p != k + 1:
+            a[[k + 1, p], :] = a[[p, k + 1], :]
+            a[:, [k + 1, p]] = a[:, [p, k + 1]]
+            value = -value
+        if a[k + 1, k] == 0:
+            return 0j
+        value *= a[k, k + 1]
+        if k + 2 < n:
+            tau = a[k, k + 2 :] / a[k, k + 1]
+            col = a[k + 2 :, k + 1].copy()
+            a[k + 2 :, k + 2 :] += np.outer(tau, col) - np.outer(col, tau)
+    return complex(value)
+
+
+def _canonical_complex(h: np.ndarray) -> tuple[np.ndarray, float | None, float]:
+    """Energies of a complex antisymmetric ``h`` (one of each pair +-e of eigenvalues of
+    ``i h``, ``Re e >= 0``), ``det O`` of ``h = O (+)[[0, e], [-e, 0]] O^T`` (None when a zero
+    mode makes the parity constraint void) and the largest pair mismatch."""
+    n = h.shape[0]
+    lam = np.linalg.eigvals(1j * h) if n else np.zeros(0, complex)
+    used = np.zeros(n, dtype=bool)
+    energies: list[complex] = []
+    mismatch = 0.0
+    for i in np.argsort(-np.abs(lam), kind="stable"):
+        if used[i]:
+            continue
+        used[i] = True
+        free = np.flatnonzero(~used)
+        if not len(free):
+            break  # odd V: the unpaired zero mode
+        j = free[np.argmin(np.abs(lam[free] + lam[i]))]
+        used[j] = True
+        mismatch = max(mismatch, float(abs(lam[i] + lam[j])))
+        e = complex((lam[i] - lam[j]) / 2)
+        energies.append(e if (e.real, e.imag) >= (0.0, 0.0) else -e)
+    e_arr = np.array(energies, dtype=complex)
+    e_arr = e_arr[np.argsort(np.abs(e_arr), kind="stable")]
+    if n % 2:
+        return e_arr, None, mismatch
+    scale = max(1.0, float(np.abs(h).max())) if n else 1.0
+    product = complex(np.prod(e_arr)) if len(e_arr) else 1 + 0j
+    ratio = _pfaffian(h) / product if abs(product) > 0 else complex("nan")
+    if np.isfinite(ratio) and abs(abs(ratio) - 1) < 1e-6 and abs(ratio.imag) < 1e-6:
+        return e_arr, (1.0 if ratio.real > 0 else -1.0), mismatch
+    if len(e_arr) and float(np.min(np.abs(e_arr))) <= 1e3 * n * _EPS * scale + mismatch:
+        return e_arr, None, mismatch  # a zero mode: both parities give the same levels
+    raise ValueError(
+        "the parity of a sector could not be resolved: the single-particle matrix is too "
+        f"ill-conditioned (Pf(h) / prod e = {ratio:.3g}, expected +-1)"
+    )
+
+
+def _ground_of(e: np.ndarray, parity: int | None) -> complex:
+    """The level ``sum_k s_k e_k`` of lowest real part with ``prod s_k = parity`` (if given)."""
+    if not len(e):
+        return 0j
+    s = np.where(e.real >= 0, -1.0, 1.0)
+    total = complex((s * e).sum())
+    if parity is not None and int(np.prod(s)) != parity:
+        k = int(np.argmin(np.abs(e.real)))
+        total -= 2 * s[k] * complex(e[k])
+    return total
+
+
+def jordan_wigner_spectrum(
+    m: Model, sector: str | Sequence[int] | Mapping[WeylString, int] = "all"
+) -> SectorSpectrum:
     """Exact free-fermion spectra of a Jordan-Wigner model, sector by sector.
 
     Parameters
     ----------
     m : Model
-        Real couplings; the frustration graph must be a line graph.
+        Numeric couplings (real or complex); the frustration graph must be a line graph.
     sector : "all", "ground", a sequence of +-1, or a mapping
         "all": every consistent sector (their union, with multiplicities, is the whole
-        spectrum).  "ground": every sector is solved and the one holding the lowest level is
-        kept (a search; refused beyond 2^16 sectors).  A sequence: eigenvalues of the cycle
-        operators (:attr:`SectorStructure.cycle_operators`, in order); every consistent parity
+        spectrum).  "ground": the sectors with the cycle values of the one holding the lowest
+        level (by real part; every parity value kept), see Notes.
+        A sequence: eigenvalues of the cycle operators
+        (:attr:`SectorStructure.cycle_operators`, in order); every consistent parity
         assignment is kept.  A mapping: conserved strings (e.g. plaquettes) to their values;
         every consistent completion is kept (:meth:`SectorStructure.labels_where`).
 
@@ -628,13 +1017,32 @@ def jordan_wigner_spectrum(m: Model, sector: str | Sequence[int] = "all") -> Sec
     Raises
     ------
     ValueError
-        For complex couplings, a label of the wrong length or not consistent, or too many
-        sectors to enumerate.
+        For a label of the wrong length or not consistent, or too many sectors to enumerate.
+    TooLargeError
+        For ``sector="ground"`` when the flux theorem does not apply and there are more than
+        ``2^16`` sectors to search.
+
+    Notes
+    -----
+    In a sector ``H = constant + (i/2) sum_ab h_ab gamma_a gamma_b``.  For real couplings
+    ``h`` is real antisymmetric and its real Schur form gives energies ``e_k >= 0``.  For
+    complex couplings ``h`` is complex antisymmetric: the eigenvalues of ``i h`` come in pairs
+    ``+-e_k``, and where ``h = O B O^T`` with ``O`` complex orthogonal the modes ``O^T gamma``
+    still obey the Clifford relations, so every level is ``sum_k s_k e_k`` (a non-Hermitian
+    ``H``); the parity constraint uses ``det O = Pf(h) / prod_k e_k``.
+
+    ``sector="ground"``: up to ``2^16`` sectors, every one is solved and the lowest kept (an
+    exhaustive search: exact, with a progress bar).  Beyond, where
+    :func:`flux_theorem_values` applies (the Kitaev honeycomb on a torus with translation-
+    invariant real couplings), the hexagon strings are fixed flux-free by Lieb's theorem as
+    Kitaev 2006 applies it and the few sectors left (loop strings, parity) are searched; the
+    selection text says so, since on small tori that rule can fail.  Otherwise refused.
 
     References
     ----------
     E. Lieb, T. Schultz and D. Mattis, Ann. Phys. 16, 407 (1961); A. Kitaev, Ann. Phys. 321,
-    2 (2006); A. Chapman and S. T. Flammia, Quantum 4, 278 (2020).
+    2 (2006); A. Chapman and S. T. Flammia, Quantum 4, 278 (2020); E. H. Lieb, Phys. Rev. Lett.
+    73, 2158 (1994).
 
     Examples
     --------
@@ -645,33 +1053,64 @@ def jordan_wigner_spectrum(m: Model, sector: str | Sequence[int] = "all") -> Sec
     """
     struct = sectors(m)
     couplings = m.coupling_array()
-    if np.iscomplexobj(couplings):
-        raise ValueError("the Jordan-Wigner route here needs real couplings")
     n_cycles = len(struct.cycle_operators)
     if isinstance(sector, str):
         if sector not in ("all", "ground"):
             raise ValueError(f"sector must be 'all', 'ground' or a tuple of +-1, not {sector!r}")
-        labels = struct.sectors
+        if sector == "ground":
+            labels, selection = _ground_candidates(m, struct)
+        else:
+            labels, selection = struct.sectors, f"all {struct.count} sectors"
     elif isinstance(sector, Mapping):
         labels = struct.labels_where(sector)
+        selection = f"given values of {len(sector)} conserved string(s)"
     else:
         want = tuple(int(s) for s in sector)
         if len(want) != n_cycles or any(s not in (1, -1) for s in want):
             raise ValueError(f"a sector label is {n_cycles} values +-1 (one per cycle operator)")
         labels = struct.labels_where(dict(zip(struct.cycle_operators, want, strict=True)))
+        selection = f"given cycle values {want}"
     dim = 2 ** len(m.sites)
-    solved = [_solve_sector(struct, couplings, label, dim) for label in labels]
-    if sector == "ground":
-        solved = [min(solved, key=lambda s: s.ground_energy)]
+    bar = tqdm(labels, desc="sectors", disable=len(labels) < 256, leave=False)
+    solved, mismatch = [], 0.0
+    for label in bar:
+        levels, miss = _solve_sector(struct, couplings, label, dim)
+        solved.append(levels)
+        mismatch = max(mismatch, miss)
+    bar.close()
+    if sector == "ground":  # the flux sector of the lowest level, with its parity values
+        best = min(solved, key=lambda s: _re(s.ground_energy)).label[:n_cycles]
+        solved = [s for s in solved if s.label[:n_cycles] == best]
     hnorm = float(np.abs(couplings).sum()) if len(couplings) else 0.0
     n_modes = 1 + max((max(p) for p in struct.pairs.values()), default=0)
-    constant = float(np.real(complex(m.constant))) if m.constant != 0 else 0.0
-    return SectorSpectrum(struct, tuple(solved), constant, 2 * n_modes * _EPS * hnorm)
+    constant = _real_if(complex(m.constant)) if m.constant != 0 else 0.0
+    bound = 2 * n_modes * _EPS * hnorm + mismatch
+    return SectorSpectrum(struct, tuple(solved), constant, bound, selection)
+
+
+def _ground_candidates(
+    m: Model, struct: SectorStructure
+) -> tuple[tuple[tuple[int, ...], ...], str]:
+    """Labels among which the ground sector lies, and how they were chosen."""
+    if struct.rank <= MAX_SECTOR_GENERATORS:
+        return struct.sectors, f"exhaustive search over all {struct.count} sectors (exact)"
+    values, why = flux_theorem_values(m)
+    if values is not None:
+        labels = struct.labels_where(values)
+        return labels, (
+            f"{FLUX_RULE}: {len(values)} hexagon strings fixed, search over the {len(labels)} "
+            "sectors left (loop strings, parity); " + FLUX_CAVEAT
+        )
+    raise TooLargeError(
+        f"the ground sector would be searched among 2^{struct.rank} sectors, more than "
+        f"2^{MAX_SECTOR_GENERATORS}, and Lieb's flux theorem does not apply here ({why}); "
+        "give the sector: a tuple of cycle values or a mapping of conserved strings to +-1"
+    )
 
 
 def _solve_sector(
     struct: SectorStructure, couplings: np.ndarray, label: tuple[int, ...], dim: int
-) -> _SectorLevels:
+) -> tuple[_SectorLevels, float]:
     n_cycles = len(struct.cycle_operators)
     signs = np.ones(len(couplings))
     for (term, ratio), w in zip(struct._closing, label[:n_cycles], strict=True):
@@ -679,35 +1118,43 @@ def _solve_sector(
         if abs(u.imag) > 1e-12 or abs(abs(u.real) - 1) > 1e-12:
             raise AssertionError("a closing sign came out not +-1")
         signs[term] = 1.0 if u.real > 0 else -1.0
+    complex_couplings = np.iscomplexobj(couplings)
     energies, parities = [], []
     irrep = 1
-    ground = 0.0
+    ground = 0j
+    mismatch = 0.0
     for comp in struct._components:
         index = {v: i for i, v in enumerate(comp.modes)}
-        h = np.zeros((len(comp.modes), len(comp.modes)))
+        h = np.zeros((len(comp.modes), len(comp.modes)), dtype=couplings.dtype)
         for t in comp.terms:
             a, b = struct.pairs[t]
             h[index[a], index[b]] += couplings[t] * signs[t]
             h[index[b], index[a]] -= couplings[t] * signs[t]
-        e, det = _canonical(h)
+        det: float | None
+        if complex_couplings:
+            e, det, miss = _canonical_complex(h)
+            mismatch = max(mismatch, miss)
+        else:
+            e, det = _canonical(h)
         v = len(comp.modes)
         parity: int | None = None
         if comp.parity is not None:
+            irrep *= 2 ** (v // 2 - 1)
+            # det None: a zero mode, so either constraint gives the same levels
             kappa = label[n_cycles + comp.parity] * struct._parity_phase[comp.parity]
-            need = kappa * (1j ** (v // 2)) * det
+            need = kappa * (1j ** (v // 2)) * (1.0 if det is None else det)
             if abs(need.imag) > 1e-12 or abs(abs(need.real) - 1) > 1e-12:
                 raise AssertionError("a parity constraint came out not +-1")
             parity = 1 if need.real > 0 else -1
-            irrep *= 2 ** (v // 2 - 1)
         else:
             irrep *= 2 ** ((v - 1) // 2)
-        low = -float(e.sum())
-        if parity is not None and len(e) and (-1) ** len(e) != parity:
-            low += 2 * float(e.min())
-        ground += low
+        ground += _ground_of(e, parity)
         energies.append(e)
         parities.append(parity)
     per_sector = dim // 2**struct.rank
     if per_sector % irrep:
         raise AssertionError("sector dimension is not a multiple of the Majorana irrep")
-    return _SectorLevels(label, tuple(energies), tuple(parities), per_sector // irrep, ground)
+    levels = _SectorLevels(
+        label, tuple(energies), tuple(parities), per_sector // irrep, _real_if(ground)
+    )
+    return levels, mismatch

@@ -12,6 +12,8 @@ __all__ = [
     "FENDLEY_2014",
     "FENDLEY_2019",
     "KITAEV_2006",
+    "LIEB_1994",
+    "LIEB_SCHULTZ_MATTIS_1961",
     "MANN_ELMAN_WOOD_CHAPMAN_2024",
     "PFEUTY_1970",
 ]
@@ -30,6 +32,8 @@ FENDLEY_2014 = "P. Fendley, J. Phys. A 47, 075001 (2014)"
 BAXTER_1989 = "R. J. Baxter, Phys. Lett. A 140, 155 (1989)"
 PFEUTY_1970 = "P. Pfeuty, Ann. Phys. 57, 79 (1970)"
 KITAEV_2006 = "A. Kitaev, Ann. Phys. 321, 2 (2006)"
+LIEB_1994 = "E. H. Lieb, Phys. Rev. Lett. 73, 2158 (1994)"
+LIEB_SCHULTZ_MATTIS_1961 = "E. Lieb, T. Schultz and D. Mattis, Ann. Phys. 16, 407 (1961)"
 CHUDNOVSKY_SEYMOUR_2007 = "M. Chudnovsky and P. Seymour, J. Combin. Theory Ser. B 97, 350 (2007)"
 MANN_ELMAN_WOOD_CHAPMAN_2024 = (
     "R. L. Mann, S. J. Elman, D. R. Wood and A. Chapman, arXiv:2408.09684 (2024)"

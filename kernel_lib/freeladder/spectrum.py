@@ -38,8 +38,10 @@ from .errors import NoTheoremError
 from .frozen import readonly_array
 from .graph import ChainStructure, chain_structure
 from .jsonready import json_ready
+from .majorana import flux_sector, jordan_wigner_spectrum
 from .model import Model
 from .polynomial import exclusion_polynomial, sum_rules
+from .references import CHAPMAN_FLAMMIA_2020
 from .root_result import RootResult
 from .verdict import Guarantee, classify, guarantee
 
@@ -195,6 +197,10 @@ class SpectrumProvenance:
         Wall-clock time of :func:`free_spectrum`.
     finder : mapping
         Details reported by the root finder (iterations, evaluations, convergence, ...).
+    sector : mapping or None
+        On the Jordan-Wigner route (``free_spectrum(m, sector=...)``): the cycle strings, their
+        values in this sector, the labels merged, the parity constraints and how the sector was
+        chosen; None on the polynomial route.
     """
 
     method: str
@@ -210,9 +216,12 @@ class SpectrumProvenance:
     sum_rules: Mapping[str, float] | None
     seconds: float
     finder: Mapping[str, Any] = field(default_factory=dict)
+    sector: Mapping[str, Any] | None = None
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "finder", MappingProxyType(dict(self.finder)))
+        if self.sector is not None:
+            object.__setattr__(self, "sector", MappingProxyType(dict(self.sector)))
         if self.sum_rules is not None:
             object.__setattr__(self, "sum_rules", MappingProxyType(dict(self.sum_rules)))
 
@@ -233,6 +242,7 @@ class SpectrumProvenance:
                 "sum_rules": dict(self.sum_rules) if self.sum_rules is not None else None,
                 "seconds": self.seconds,
                 "finder": dict(self.finder),
+                "sector": dict(self.sector) if self.sector is not None else None,
             }
         )
 
@@ -313,6 +323,10 @@ class FreeSpectrum:
         How the result was obtained, how accurate it is, and whether a theorem guarantees it
         (``provenance.guaranteed``).  A spectrum that is not guaranteed (returned only with
         ``free_spectrum(..., unproven=True)``) says NOT GUARANTEED wherever it prints.
+    parity_constraints : tuple of (tuple of int, int)
+        Jordan-Wigner sectors with a fixed Majorana parity (N = 2): positions in
+        ``quasi_energies`` and the product ``prod_k (-1)^{s_k}`` every level has over them;
+        choices that break one are not levels.  Empty on the polynomial route.
     """
 
     def __init__(
@@ -327,9 +341,14 @@ class FreeSpectrum:
         degeneracy_reason: str,
         complete: bool,
         provenance: SpectrumProvenance,
+        *,
+        parity_constraints: Sequence[tuple[Sequence[int], int]] = (),
     ) -> None:
         for arr in (roots_y, quasi_energies, error_bounds):
             arr.setflags(write=False)
+        constraints = tuple((tuple(int(k) for k in ks), int(p)) for ks, p in parity_constraints)
+        if constraints and int(states) != 2:
+            raise ValueError("parity constraints are for N = 2 (Majorana sectors)")
         self.__dict__.update(
             roots=roots_y,
             quasi_energies=quasi_energies,
@@ -342,6 +361,7 @@ class FreeSpectrum:
             degeneracy_reason=degeneracy_reason,
             complete=bool(complete),
             provenance=provenance,
+            parity_constraints=constraints,
         )
 
     roots: np.ndarray
@@ -355,6 +375,7 @@ class FreeSpectrum:
     degeneracy_reason: str
     complete: bool
     provenance: SpectrumProvenance
+    parity_constraints: tuple[tuple[tuple[int, ...], int], ...]
 
     @property
     def guaranteed(self) -> bool:
@@ -397,6 +418,8 @@ class FreeSpectrum:
         minimised independently.
         """
         self._need_complete("the ground energy")
+        if self.parity_constraints:
+            return _scalar(self.levels(1).energies[0])
         vals, _ = self._mode_table()
         return _scalar(self.constant + vals[:, 0].sum())
 
@@ -410,6 +433,9 @@ class FreeSpectrum:
         choice, so the gap is zero when a quasi-energy vanishes; the degeneracy
         :attr:`degeneracy` is not a gap.  Needs only the lowest quasi-energies for N = 2.
         """
+        if self.parity_constraints:  # the lowest choice that keeps every parity
+            low = self.levels(2).energies
+            return float(np.real(low[1] - low[0])) if len(low) > 1 else float("nan")
         if self.states == 2 and np.isrealobj(self.quasi_energies):
             return float(2.0 * np.min(self.quasi_energies)) if len(self) else float("nan")
         vals, _ = self._mode_table()
@@ -448,6 +474,11 @@ class FreeSpectrum:
         k = int(k)
         if k < 1:
             raise ValueError(f"levels(k) needs k >= 1, got {k}")
+        if self.parity_constraints:
+            return self._constrained_levels(k)
+        return self._lowest_levels(k)
+
+    def _lowest_levels(self, k: int) -> LevelTable:
         count = int(min(k, float(self.states) ** len(self)))
         vals, rank = self._mode_table()
         inc = vals.real - vals[:, :1].real  # increments, ascending per mode, inc[:, 0] = 0
@@ -460,6 +491,39 @@ class FreeSpectrum:
             chosen = vals[np.arange(len(self)), _rank_index(rank, occ[row])]
             energies[row] = self.constant + chosen.sum()
         return LevelTable(_maybe_real(energies), occ, self.degeneracy)
+
+    def _keeps_parity(self, occupations: np.ndarray) -> np.ndarray:
+        """Which choices (rows of occupations) obey every parity constraint."""
+        keep = np.ones(occupations.shape[0], dtype=bool)
+        for modes, product in self.parity_constraints:
+            odd = occupations[:, list(modes)].sum(axis=1) % 2
+            keep &= odd == (0 if product == 1 else 1)
+        return keep
+
+    def _constrained_levels(self, k: int) -> LevelTable:
+        """The k lowest choices that keep every parity: best-first, filtered; the whole list
+        (filtered) when the filter would skip too many."""
+        total = 2.0 ** len(self)
+        ask = 2 * k
+        while True:
+            table = self._lowest_levels(ask)
+            keep = self._keeps_parity(table.occupations)
+            if keep.sum() >= k or ask >= total:
+                break
+            if ask >= 64 * k + 1024:
+                if total > LEVEL_LIMIT:
+                    raise ValueError(
+                        f"the parity constraints skip more than {ask - int(keep.sum())} of the "
+                        f"lowest choices and all 2^{len(self)} are too many to list"
+                    )
+                table = self._all_levels()
+                keep = np.ones(len(table), dtype=bool)  # _all_levels filters already
+                break
+            ask *= 4
+        rows = np.flatnonzero(keep)[:k]
+        return LevelTable(
+            table.energies[rows].copy(), table.occupations[rows].copy(), self.degeneracy
+        )
 
     def _check_all_levels(self) -> None:
         total = float(self.states) ** len(self)
@@ -477,6 +541,8 @@ class FreeSpectrum:
             energies = (energies[:, None] + eta * omega[None, :]).ravel()
         occ = np.indices((n,) * n_modes, dtype=np.int8).reshape(n_modes, -1).T
         sort = np.argsort(energies.real, kind="stable")
+        if self.parity_constraints:
+            sort = sort[self._keeps_parity(occ[sort])]
         return LevelTable(
             _maybe_real(energies[sort]), np.ascontiguousarray(occ[sort]), self.degeneracy
         )
@@ -491,10 +557,14 @@ class FreeSpectrum:
         ``h m_k`` and ``max_shift`` reports how far a level can have moved, so only levels
         that close to a bin edge can be counted in the neighbouring bin.
 
+        With parity constraints (a Jordan-Wigner sector) only the exact enumeration is done:
+        ``fraction`` is then of the choices that keep the parities.
+
         Raises
         ------
         ValueError
-            For N > 2, complex quasi-energies, an incomplete spectrum or bad bins.
+            For N > 2, complex quasi-energies, an incomplete spectrum or bad bins, or parity
+            constraints with more than ``2^20`` choices.
         """
         self._need_complete("density_of_states()")
         if self.states != 2 or not np.isrealobj(self.quasi_energies):
@@ -505,6 +575,18 @@ class FreeSpectrum:
         eta = self.quasi_energies
         c = float(np.real(self.constant))
         log_mult = math.log(self.degeneracy or 1)
+        if self.parity_constraints:
+            if 2.0 ** len(eta) > _EXACT_DOS_LIMIT:
+                raise ValueError(
+                    f"density_of_states() with parity constraints enumerates the levels: "
+                    f"2^{len(eta)} choices exceed the limit 2^20"
+                )
+            energies = np.real(self._all_levels().energies)
+            counts, _ = np.histogram(energies, bins=edges)
+            frac = counts / energies.shape[0]
+            return DensityOfStates(
+                edges, frac, counts * math.exp(log_mult), 0.0, "exact enumeration (parity kept)"
+            )
         if 2.0 ** len(eta) <= _EXACT_DOS_LIMIT:
             energies = np.full(1, c)
             for e in eta:
@@ -569,6 +651,8 @@ class FreeSpectrum:
             )
         )
         rows.append(("method", f"{prov.method}: {prov.path}"))
+        if prov.sector is not None:
+            rows.append(("sector", str(prov.sector.get("summary", ""))))
         rows.append(("guarantee", prov.guarantee if prov.guaranteed else "NOT GUARANTEED (above)"))
         rows.append(("largest error bound", f"{prov.max_error_bound:.3g} ({prov.bounds})"))
         if prov.sum_rules:
@@ -631,6 +715,9 @@ class FreeSpectrum:
                 "gap": gap,
                 "degeneracy": self.degeneracy,
                 "degeneracy_reason": self.degeneracy_reason,
+                "parity_constraints": [
+                    {"modes": ks, "product": p} for ks, p in self.parity_constraints
+                ],
                 "provenance": self.provenance,
             }
         )
@@ -706,8 +793,10 @@ def free_spectrum(
     lowest: int | None = None,
     *,
     unproven: bool = False,
+    sector: str | Sequence[int] | Mapping[Any, int] | None = None,
 ) -> FreeSpectrum:
-    """Quasi-energies of ``H = constant + sum_j c_j g_j`` from the roots of its polynomial P.
+    """Quasi-energies of ``H = constant + sum_j c_j g_j`` from the roots of its polynomial P,
+    or, for Jordan-Wigner models, in one sector of their conserved cycle and parity strings.
 
     Parameters
     ----------
@@ -727,6 +816,18 @@ def free_spectrum(
     unproven : bool, default False
         Return the numbers even when no theorem guarantees that the single polynomial gives
         the spectrum; the result then says NOT GUARANTEED wherever it prints.
+    sector : "ground", "all", a sequence of +-1 or a mapping, optional
+        Pauli models whose frustration graph is a line graph only: solve the Majorana
+        quadratic form of one sector (:func:`freeladder.jordan_wigner_spectrum`), guaranteed
+        sector by sector (Chapman-Flammia 2020).  "ground": the sector holding the lowest
+        level (exhaustive search up to ``2^16`` sectors, else Lieb's flux theorem where
+        :func:`freeladder.flux_theorem_values` applies, else refused).  A sequence: the
+        eigenvalues of :attr:`SectorStructure.cycle_operators`.  A mapping: conserved strings
+        to their values, which must leave one set of cycle values.  "all": only when there is
+        one (no cycles).  The parity strings are not fixed by the choice: every consistent
+        value is included, and a parity the relations fix becomes
+        :attr:`FreeSpectrum.parity_constraints`.  Real or complex couplings; ``method``
+        "auto" or "fast".
 
     Returns
     -------
@@ -736,8 +837,11 @@ def free_spectrum(
     ------
     NoTheoremError
         When no theorem guarantees that the single polynomial gives the spectrum (see
-        :class:`freeladder.verdict.Guarantee`) and ``unproven`` is False.  The message names
-        the reason, the witness terms and what to do instead.
+        :class:`freeladder.verdict.Guarantee`), ``unproven`` is False and no ``sector`` is
+        given.  The message names the reason, the witness terms and what to do instead (for
+        line graphs with cycles: ``sector="ground"``).
+    TooLargeError
+        For ``sector="ground"`` when neither the search nor the flux theorem can decide.
     ValueError
         For symbolic couplings, an unknown method, ``method="fast"`` on a model that is not an
         exclusion chain, ``lowest < 1``, or a model with no terms.
@@ -773,6 +877,8 @@ def free_spectrum(
     """
     couplings = _checked_request(m, method, lowest)
     start_time = time.perf_counter()
+    if sector is not None:
+        return _sector_spectrum(m, sector, method, lowest, start_time)
     n = m.states
     chain = chain_structure(m)
     if chain is None and method == "fast":
@@ -818,6 +924,107 @@ def free_spectrum(
     )
 
 
+def _sector_spectrum(
+    m: Model,
+    sector: str | Sequence[int] | Mapping[Any, int],
+    method: str,
+    lowest: int | None,
+    start_time: float,
+) -> FreeSpectrum:
+    """The Jordan-Wigner route of :func:`free_spectrum`: one sector as a FreeSpectrum."""
+    if m.states != 2 or classify(m).kind != "jordan-wigner":
+        raise ValueError(
+            "sector= selects a sector of the conserved cycle strings of a Jordan-Wigner model "
+            f"(Pauli terms, line-graph frustration graph); this model's verdict is "
+            f"{classify(m).kind!r} (N = {m.states})"
+        )
+    if method == "certified":
+        raise ValueError(
+            "the sector route diagonalises the single-particle matrix in floating point "
+            "(error estimates, not enclosures): use method='auto'"
+        )
+    if isinstance(sector, str) and sector not in ("ground", "all"):
+        raise ValueError(
+            f"sector must be 'ground', 'all', a tuple of +-1 or a mapping, not {sector!r}"
+        )
+    if sector == "ground":
+        jw = jordan_wigner_spectrum(m, "ground")
+        selection = f"the ground sector, by {jw.selection}"
+    else:
+        jw = jordan_wigner_spectrum(m, sector)
+        selection = jw.selection
+    merged = flux_sector(jw)
+    eta = np.asarray(merged.quasi_energies)
+    if not np.iscomplexobj(eta) or not np.any(eta.imag):
+        eta = np.real(eta).astype(float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        y_vals = np.asarray(1.0 / np.asarray(eta, dtype=complex) ** 2)
+    bounds = np.full(len(eta), jw.error_bound)
+    count = len(eta)
+    complete = lowest is None or int(lowest) >= count
+    c2 = m.coupling_array().astype(complex) ** 2
+    residual = abs(complex(np.sum(eta.astype(complex) ** 2)) - complex(c2.sum()))
+    residual /= max(float(np.abs(c2).sum()), 1e-300)
+    summary = f"cycle values {merged.cycle_values}: {selection}"
+    if merged.parity_constraints:
+        summary += f"; {len(merged.parity_constraints)} Majorana parity constraint(s)"
+    struct = jw.structure
+    provenance = SpectrumProvenance(
+        method="jordan-wigner",
+        path=(
+            "Majorana bilinears on the root graph; "
+            + (
+                "eigenvalue pairs and Pfaffian"
+                if np.iscomplexobj(m.coupling_array())
+                else "real Schur form"
+            )
+            + f" of the single-particle matrix of the sector ({count} mode pairs)"
+        ),
+        bounds="estimate (backward-stable decomposition), not a proof",
+        guaranteed=True,
+        guarantee=(
+            "proven: the terms are Majorana bilinears (line-graph frustration graph), so in "
+            f"each sector of the conserved cycle and parity strings the spectrum is free "
+            f"({CHAPMAN_FLAMMIA_2020}); sector: {selection}"
+        ),
+        theorem="generalised Jordan-Wigner transformation, sector by sector",
+        reference=CHAPMAN_FLAMMIA_2020,
+        reach=None,
+        count=count,
+        max_error_bound=float(jw.error_bound),
+        sum_rules={"sum eta^N": float(residual)},
+        seconds=time.perf_counter() - start_time,
+        finder={"sectors merged": len(jw.sectors)},
+        sector={
+            "summary": summary,
+            "selection": selection,
+            "cycle_operators": [str(g) for g in struct.cycle_operators],
+            "cycle_values": merged.cycle_values,
+            "labels": merged.labels,
+            "parity_constraints": len(merged.parity_constraints),
+        },
+    )
+    keep = count if complete else int(lowest or count)
+    reason = (
+        f"every level of this sector has multiplicity {merged.multiplicity} (sector dimension "
+        "over the Majorana representation)"
+    )
+    constant = _scalar(m.constant) if m.constant != 0 else 0.0
+    return FreeSpectrum(
+        y_vals[:keep],
+        eta[:keep],
+        bounds[:keep],
+        constant,
+        2,
+        len(m.sites),
+        merged.multiplicity,
+        reason,
+        complete,
+        provenance,
+        parity_constraints=merged.parity_constraints if complete else (),
+    )
+
+
 def _residuals(m: Model, eta: np.ndarray) -> dict[str, float]:
     """Relative residuals of the two power-sum rules (:func:`freeladder.polynomial.sum_rules`)."""
     first, second = sum_rules(exclusion_polynomial(m), eta).residuals
@@ -846,8 +1053,9 @@ def _refusal_message(m: Model, promise: Guarantee) -> str:
     text += " Instead: "
     if m.states == 2 and classify(m).kind == "jordan-wigner":
         text += (
-            "the terms are Majorana bilinears, so fl.jordan_wigner_spectrum(m) solves the model "
-            "exactly, sector by sector of its conserved cycle and parity strings; "
+            'the terms are Majorana bilinears, so free_spectrum(m, sector="ground") solves '
+            "the model exactly in the sector holding the ground state (sector=(+1, -1, ...) "
+            'for a chosen one; fl.jordan_wigner_spectrum(m, "all") gives every sector); '
         )
     text += "fl.verify(m) probes the model numerically"
     if m.dimension <= DENSE_LIMIT:

@@ -91,6 +91,11 @@ def _check(sp: FreeSpectrum, what: str) -> None:
         raise TypeError(f"{what} needs a FreeSpectrum, got {type(sp).__name__}")
     if not sp.complete:
         raise ValueError(f"{what} needs all quasi-energies; compute the spectrum with lowest=None")
+    if sp.parity_constraints:
+        raise ValueError(
+            f"{what} uses the product formula over all 2^S choices; this Jordan-Wigner sector "
+            "keeps only the choices of one Majorana parity (FreeSpectrum.parity_constraints)"
+        )
 
 
 def thermodynamics(sp: FreeSpectrum, temperature: float | np.ndarray) -> Thermodynamics:

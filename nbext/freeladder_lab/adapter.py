@@ -36,7 +36,9 @@ __all__ = [
     "COMMUTATOR_WORK_LIMIT",
     "ED_OVERLAY_DIMENSION",
     "PARTIAL_DEGREE_LIMIT",
+    "SECTOR_CHOICE_LIMIT",
     "Refusal",
+    "SectorOverview",
     "analyze",
     "charge_step",
     "exact_overlay",
@@ -44,6 +46,8 @@ __all__ = [
     "partial_coefficients",
     "partial_roots",
     "real_roots_reason",
+    "sector_choices",
+    "sector_spectrum",
     "spectrum_or_refusal",
     "star_points",
     "term_labels",
@@ -58,6 +62,9 @@ PARTIAL_DEGREE_LIMIT = 60
 COMMUTATOR_WORK_LIMIT = 50_000
 #: Verdicts the library gives only to claw-free frustration graphs (N = 2).
 CLAW_FREE_KINDS = ("jordan-wigner", "hidden-free", "integrable")
+#: Largest number of sets of cycle values offered one by one in the sector chooser (and the
+#: largest number of sectors listed by "all sectors").
+SECTOR_CHOICE_LIMIT = 16
 
 
 def analyze(model: fl.Model) -> fl.Analysis:
@@ -96,6 +103,85 @@ def spectrum_or_refusal(a: fl.Analysis, unproven: bool) -> fl.FreeSpectrum | Ref
         if not unproven:
             return Refusal(str(exc))
         return a.spectrum(unproven=True)
+
+
+def sector_choices(a: fl.Analysis) -> list[tuple[str, Any]] | None:
+    """The sector chooser's options for a Jordan-Wigner model with cycles, else None.
+
+    Options are (text, value) with value "ground", "all", "polynomial" (the single
+    polynomial, which the library refuses here) or a tuple of cycle-operator eigenvalues
+    (listed when at most :data:`SECTOR_CHOICE_LIMIT` sets of them are consistent).
+    """
+    m = a.model
+    if m.states != 2 or m.is_symbolic or len(m) == 0:
+        return None
+    if a.verdict.kind != "jordan-wigner" or a.verdict.guarantee.proven:
+        return None
+    structure = fl.sectors(m)
+    if not structure.cycle_operators:
+        return None
+    options: list[tuple[str, Any]] = [
+        ("ground sector (exhaustive search / flux theorem)", "ground"),
+        ("all sectors (table)", "all"),
+        ("single polynomial (no theorem: refused)", "polynomial"),
+    ]
+    n_cycles = len(structure.cycle_operators)
+    if structure.rank <= 10:  # at most 1024 labels to look through
+        patterns = sorted({label[:n_cycles] for label in structure.sectors}, reverse=True)
+        if len(patterns) <= SECTOR_CHOICE_LIMIT:
+            for values in patterns:
+                signs = ", ".join("+1" if v > 0 else "-1" for v in values)
+                options.append((f"cycle strings W = ({signs})", values))
+    return options
+
+
+@dataclass(frozen=True)
+class SectorOverview:
+    """Every sector of a Jordan-Wigner model: one row per label, and the ground sector's
+    spectrum for the plots."""
+
+    rows: tuple[tuple[str, Any, int, int], ...]  # label text, lowest level, modes, multiplicity
+    spectrum: fl.FreeSpectrum
+    selection: str
+
+
+def sector_spectrum(
+    a: fl.Analysis, choice: Any, unproven: bool
+) -> fl.FreeSpectrum | Refusal | SectorOverview:
+    """The spectrum for the sector chooser's value (see :func:`sector_choices`).
+
+    None or "polynomial": the single polynomial (:func:`spectrum_or_refusal`).  "ground" or a
+    tuple of cycle values: ``fl.free_spectrum(model, sector=choice)``.  "all": every sector's
+    lowest level (``fl.jordan_wigner_spectrum``), refused beyond :data:`SECTOR_CHOICE_LIMIT`
+    sectors, with the ground sector drawn.  A refusal of the library comes back as a
+    :class:`Refusal`.
+    """
+    if choice is None or choice == "polynomial":
+        return spectrum_or_refusal(a, unproven)
+    m = a.model
+    try:
+        if choice == "all":
+            structure = fl.sectors(m)
+            if structure.count > SECTOR_CHOICE_LIMIT:
+                return Refusal(
+                    f"{structure.count} sectors: more than {SECTOR_CHOICE_LIMIT} to list here; "
+                    "choose the ground sector, or use fl.jordan_wigner_spectrum(m, 'all') in "
+                    "a cell"
+                )
+            every = fl.jordan_wigner_spectrum(m, "all")
+            rows = tuple(
+                (
+                    ", ".join("+1" if v > 0 else "-1" for v in sec.label),
+                    sec.ground_energy + every.constant,
+                    len(every.quasi_energies(i)),
+                    sec.multiplicity,
+                )
+                for i, sec in enumerate(every.sectors)
+            )
+            return SectorOverview(rows, fl.free_spectrum(m, sector="ground"), every.selection)
+        return fl.free_spectrum(m, sector=choice)
+    except ValueError as exc:  # TooLargeError and inconsistent labels included
+        return Refusal(str(exc))
 
 
 def term_labels(model: fl.Model) -> list[str]:

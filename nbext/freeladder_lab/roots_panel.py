@@ -14,7 +14,7 @@ import numpy as np
 
 import freeladder as fl
 
-from .adapter import Refusal, star_points
+from .adapter import Refusal, SectorOverview, star_points
 from .style import (
     ACCENT,
     INK,
@@ -40,6 +40,15 @@ class RootsPanel(widgets.VBox):
             style={"description_width": "initial"},
             layout=widgets.Layout(width="auto"),
         )
+        self.sector = widgets.Dropdown(
+            options=[("-", None)],
+            value=None,
+            description="sector",
+            tooltip="Jordan-Wigner models with cycles: which sector of the conserved cycle "
+            "strings to solve",
+            layout=widgets.Layout(width="520px", display="none"),
+        )
+        self.sectors_table = widgets.HTML()
         self.refusal = widgets.HTML()
         self.summary = widgets.HTML()
         self.root_figure, sx, sy, self.root_guides = complex_plane(
@@ -96,10 +105,30 @@ class RootsPanel(widgets.VBox):
         )
         self.root_figure.layout.width = "50%"
         self.eta_figure.layout.width = "50%"
-        super().__init__([self.unproven, self.refusal, plots, self.summary])
+        super().__init__(
+            [self.unproven, self.sector, self.refusal, self.sectors_table, plots, self.summary]
+        )
 
-    def show(self, spectrum: fl.FreeSpectrum | Refusal, real_reason: str | None) -> None:
+    def show_sector_choices(self, options: list[tuple[str, object]] | None, value: object) -> None:
+        """Offer the sectors (hidden for models without cycle strings)."""
+        if options is None:
+            self.sector.options = [("-", None)]
+            self.sector.value = None
+            self.sector.layout.display = "none"
+            return
+        if list(self.sector.options) != options:
+            self.sector.options = options
+        self.sector.value = value
+        self.sector.layout.display = ""
+
+    def show(
+        self, spectrum: fl.FreeSpectrum | Refusal | SectorOverview, real_reason: str | None
+    ) -> None:
         """Show the spectrum's roots and quasi-energies, or the library's refusal."""
+        self.sectors_table.value = ""
+        if isinstance(spectrum, SectorOverview):
+            self.sectors_table.value = _sector_rows(spectrum)
+            spectrum = spectrum.spectrum
         if isinstance(spectrum, Refusal):
             self.refusal.value = (
                 f'<div role="alert" style="color:{WARN}; border-left:4px solid {WARN};'
@@ -123,6 +152,11 @@ class RootsPanel(widgets.VBox):
         bounds = np.asarray(spectrum.error_bounds, float)
         star = star_points(spectrum)
         tag = "" if guaranteed else " [UNPROVEN]"
+        sector = spectrum.provenance.sector is not None
+        if sector:  # no polynomial: the Majorana energies, drawn as y_k = 1 / e_k^2
+            real_reason = None
+            tag = " [one sector: y_k = 1/e_k^2]"
+        roots = np.where(np.isfinite(roots), roots, 0)  # zero modes (y infinite) at the origin
         with self.root_figure.hold_sync():
             self.roots.x, self.roots.y = roots.real, roots.imag
             self.roots.names = [
@@ -161,6 +195,11 @@ class RootsPanel(widgets.VBox):
 
 def _summary(spectrum: fl.FreeSpectrum, real_reason: str | None, bounds: np.ndarray) -> str:
     prov = spectrum.provenance
+    sector = (
+        f"<div>sector: {escape(prov.sector.get('summary', ''))}</div>"
+        if prov.sector is not None
+        else ""
+    )
     rows = "".join(
         f"<tr><td style='text-align:right; padding-right:10px'>{k}</td>"
         f"<td style='text-align:left; padding-right:10px'>{escape(number_text(e, 10))}</td>"
@@ -177,5 +216,22 @@ def _summary(spectrum: fl.FreeSpectrum, real_reason: str | None, bounds: np.ndar
         f"<div style='max-width:60%'><div><b>{len(spectrum.quasi_energies)}</b> quasi-energies "
         f"by <code>{escape(prov.method)}</code>: {escape(prov.path)}</div>"
         f"<div>bounds: {escape(prov.bounds)}</div>"
-        f"<div>theorem: {escape(prov.guarantee)}</div>{real}</div></div>"
+        f"<div>theorem: {escape(prov.guarantee)}</div>{sector}{real}</div></div>"
+    )
+
+
+def _sector_rows(overview: SectorOverview) -> str:
+    """Every sector's lowest level, as a small table."""
+    rows = "".join(
+        f"<tr><td style='padding-right:10px'>({escape(label)})</td>"
+        f"<td style='padding-right:10px'>{escape(number_text(low, 10))}</td>"
+        f"<td style='padding-right:10px'>{modes}</td><td>x{mult}</td></tr>"
+        for label, low, modes, mult in overview.rows
+    )
+    return (
+        f'<div style="font-size:12.5px; color:{INK};"><b>{len(overview.rows)} sectors</b> '
+        "(eigenvalues of the cycle strings, then the parity strings); the plots show the "
+        f"ground sector<table style='border-collapse:collapse'><tr><th>label</th>"
+        "<th>lowest level</th><th>modes</th><th>multiplicity</th></tr>"
+        f"{rows}</table></div>"
     )

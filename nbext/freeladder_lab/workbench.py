@@ -25,10 +25,12 @@ import freeladder as fl
 
 from .adapter import (
     Refusal,
+    SectorOverview,
     analyze,
     exact_overlay,
     real_roots_reason,
-    spectrum_or_refusal,
+    sector_choices,
+    sector_spectrum,
 )
 from .checks_panel import ChecksPanel
 from .export import ExportPanel
@@ -48,14 +50,22 @@ class _Derived:
     """Everything the panels draw for one model, gathered in the worker."""
 
     analysis: fl.Analysis
-    spectrum: fl.FreeSpectrum | Refusal
+    spectrum: fl.FreeSpectrum | Refusal | SectorOverview
     exact: fl.ExactSpectrum | None
     real_reason: str | None
+    choices: list[tuple[str, Any]] | None
+    choice: Any
 
 
-def _derive(a: fl.Analysis, unproven: bool) -> _Derived:
+def _derive(a: fl.Analysis, unproven: bool, choice: Any) -> _Derived:
     a.verdict, a.graph, a.chain, a.charge_counts  # noqa: B018 -- computed here, off the UI
-    return _Derived(a, spectrum_or_refusal(a, unproven), exact_overlay(a), real_roots_reason(a))
+    choices = sector_choices(a)
+    if choices is None:
+        choice = None
+    elif choice not in [value for _, value in choices]:
+        choice = "ground"  # a Jordan-Wigner model with cycles: its ground sector first
+    spectrum = sector_spectrum(a, choice, unproven)
+    return _Derived(a, spectrum, exact_overlay(a), real_roots_reason(a), choices, choice)
 
 
 class Workbench(widgets.VBox):
@@ -125,6 +135,8 @@ class Workbench(widgets.VBox):
         self.checks = ChecksPanel(self.run_checks)
         self.export = ExportPanel(lambda: self.model)
         self.roots.unproven.observe(lambda change: self._recompute(), "value")
+        self._showing_sectors = False  # True while _show sets the sector chooser
+        self.roots.sector.observe(self._sector_chosen, "value")
 
         header = widgets.HTML(
             f'<div style="font-size:19px; font-weight:700; color:{INK};">freeladder workbench'
@@ -213,10 +225,11 @@ class Workbench(widgets.VBox):
             return
         numeric = self._numeric()
         unproven = bool(self.roots.unproven.value)
+        choice = self.roots.sector.value
 
         def compute() -> _Derived:
             # same strings as before: the library reuses graph, verdict and counts
-            return _derive(analyze(numeric), unproven)
+            return _derive(analyze(numeric), unproven, choice)
 
         self._lanes["model"].submit("analysing the model", compute, self._show)
 
@@ -225,9 +238,19 @@ class Workbench(widgets.VBox):
         self.traceback_box.layout.display = "none"
         self.analysis = d.analysis
         self.verdict.show(d.analysis)
+        self._showing_sectors = True
+        try:
+            self.roots.show_sector_choices(d.choices, d.choice)
+        finally:
+            self._showing_sectors = False
         self.roots.show(d.spectrum, d.real_reason)
-        self.ladder.show(d.spectrum, d.exact, d.analysis.model.states)
+        drawn = d.spectrum.spectrum if isinstance(d.spectrum, SectorOverview) else d.spectrum
+        self.ladder.show(drawn, d.exact, d.analysis.model.states)
         self.series.show(d.analysis)
+
+    def _sector_chosen(self, change: dict[str, Any]) -> None:
+        if not self._showing_sectors:
+            self._recompute()
 
     def _show_report(self, a: fl.Analysis) -> Any:
         def apply(report: fl.Report) -> None:
