@@ -869,9 +869,37 @@ def _find_roots(
         found = root_methods.solve_general(m)
     elif chain is not None:
         found = root_methods.solve_chain(couplings[chain.order], chain.reach, n, method, lowest)
+    elif (
+        method != "certified"
+        and (n > 2 or np.iscomplexobj(couplings))
+        and ((ordering := _ordering(m)) is not None)
+    ):
+        # components in an oriented indifference order: the recurrence with back-reaches
+        order, back = ordering
+        found = root_methods.solve_chain(couplings[order], back, n, method, lowest)
     else:
         found = root_methods.solve_general(m)
     return found
+
+
+def _ordering(m: Model) -> tuple[np.ndarray, np.ndarray] | None:
+    """Term order and back-reaches of the recurrence, components one after another (back 0
+    at each start), when every component is a chain or an oriented indifference order."""
+    order: list[int] = []
+    back: list[int] = []
+    for comp in classify(m).components:
+        if comp.kind != "hidden-free":
+            return None
+        if comp.chain is not None:
+            terms = [int(t) for t in comp.chain.order]
+            back += [min(k, int(comp.chain.reach)) for k in range(len(terms))]
+        elif comp.indifference is not None:
+            terms = list(comp.indifference.order)
+            back += [k - f for k, f in enumerate(comp.indifference.first_neighbour)]
+        else:
+            return None
+        order += terms
+    return np.array(order, dtype=np.int64), np.array(back, dtype=np.int64)
 
 
 def _degeneracy(m: Model, proven: bool, count: int) -> tuple[int | None, str]:
