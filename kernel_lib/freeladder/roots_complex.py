@@ -545,7 +545,7 @@ def _all_roots(
     sweeps: list[int] = []
     evaluations = 0
     below: set[tuple[int, int, int]] = set()
-    converged = np.zeros(z.size, dtype=bool)
+    converged = np.ones(z.size, dtype=bool)  # roots of degree-1 leaves are exact
     for level in reversed(levels):
         pc = _pieces(ch, level)
         # roots of pieces that were not cut at this level are already converged
@@ -649,26 +649,45 @@ def _lowest_roots(
         return None
     j = int(count)
     z = 0.5 * rho * np.exp(1j * (2 * np.pi * (np.arange(j) + 0.5) / j + 0.4))
-    pc = _Pieces(
-        np.zeros(j, dtype=np.int64), np.full(j, j), np.zeros(j, dtype=np.int64),
-        np.full(j, ch.m), np.full(j, n),
-    )  # fmt: skip
-    conv, sweeps, e = _aberth(ch, z, pc, np.ones(j, dtype=bool), max_iter, progress)
-    evaluations += e
-    g, _, _, _, rel_err = ch.evaluate(z, pc.lo, pc.hi, pc.deg)
-    evaluations += j
-    with np.errstate(divide="ignore", over="ignore"):
-        newton = n * (1.0 + rel_err) / np.abs(g)
-    inside = np.abs(z) + newton < rho
-    disjoint = not np.any(_overlaps(z, newton, pc.seg_lo, pc.seg_hi))
-    if not (np.all(conv) and np.all(inside) and disjoint):
+    active = np.ones(j, dtype=bool)
+    rng = np.random.default_rng(99)
+    sweeps = 0
+    for _ in range(8):
+        size = z.size
+        pc = _Pieces(
+            np.zeros(size, dtype=np.int64), np.full(size, size), np.zeros(size, dtype=np.int64),
+            np.full(size, ch.m), np.full(size, n),
+        )  # fmt: skip
+        conv, s, e = _aberth(ch, z, pc, active, max_iter, progress)
+        sweeps += s
+        evaluations += e
+        g, _, _, _, rel_err = ch.evaluate(z, pc.lo, pc.hi, pc.deg)
+        evaluations += size
+        with np.errstate(divide="ignore", over="ignore"):
+            newton = n * (1.0 + rel_err) / np.abs(g)
+        inside = np.abs(z) + newton < rho
+        outside = np.abs(z) - newton > rho
+        disjoint = not np.any(_overlaps(z, newton, pc.seg_lo, pc.seg_hi))
+        if not (np.all(conv) and disjoint and np.all(inside | outside)):
+            return None
+        missing = j - int(inside.sum())
+        if missing == 0:
+            break
+        # a root inside the circle was missed (an approximation went to one outside): new
+        # approximations start at random inside, deflated by the roots found so far
+        new = rho * np.sqrt(rng.random(missing)) * np.exp(2j * np.pi * rng.random(missing))
+        z = np.concatenate([z, new])
+        active = np.concatenate([np.zeros(size, dtype=bool), np.ones(missing, dtype=bool)])
+    else:
         return None
-    sort = np.lexsort((np.angle(z), np.abs(z)))[:k]
+    found = np.nonzero(inside)[0]
+    sort = found[np.lexsort((np.angle(z[found]), np.abs(z[found])))][:k]
     message = (
         f"the {k} smallest |x| of {n} roots, {sweeps} sweeps of the Aberth iteration restricted "
-        f"to {j} approximations: the argument principle counts {j} roots in |x| < {rho:.6g} "
-        f"(sampled phases: an estimate) and the {j} found lie inside it in disjoint Newton discs "
-        f"(each holds a root), so these are the smallest; error bounds are estimates"
+        f"to {z.size} approximations: the argument principle counts {j} roots in "
+        f"|x| < {rho:.6g} (sampled phases: an estimate) and {j} found lie inside it in disjoint "
+        f"Newton discs (each holds a root), so these are the smallest; error bounds are "
+        "estimates"
     )
     return z[sort], newton[sort], message, True, sweeps, evaluations
 
