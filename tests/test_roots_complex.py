@@ -63,15 +63,20 @@ def _match(a: np.ndarray, b: np.ndarray) -> np.ndarray:
 
 def _random_back(size: int, rng: np.random.Generator, top: int = 3) -> np.ndarray:
     """Back-reaches of a random indifference order: first neighbours non-decreasing."""
-    first = np.maximum.accumulate(
-        np.maximum(0, np.arange(size) - rng.integers(0, top + 1, size))
-    )
+    first = np.maximum.accumulate(np.maximum(0, np.arange(size) - rng.integers(0, top + 1, size)))
     return np.arange(size) - first
 
 
 @pytest.mark.parametrize(
     ("n_terms", "reach", "states", "seed"),
-    [(30, 1, 3, 1), (31, 2, 3, 2), (24, 1, 4, 3), (40, 3, 2, 4), (36, None, 3, 5), (45, None, 5, 6)],
+    [
+        (30, 1, 3, 1),
+        (31, 2, 3, 2),
+        (24, 1, 4, 3),
+        (40, 3, 2, 4),
+        (36, None, 3, 5),
+        (45, None, 5, 6),
+    ],
 )
 def test_complex_chain_against_mpmath(n_terms, reach, states, seed) -> None:
     # Reference: mpmath.polyroots at 60 digits on coefficients built in 80-digit arithmetic.
@@ -291,7 +296,7 @@ def test_random_variable_range_clock_chains_against_exact_diagonalization(states
     # Free-parafermion spectrum of an oriented indifference graph: R. L. Mann, S. J. Elman,
     # D. R. Wood and A. Chapman, arXiv:2408.09684 (2024).
     rng = np.random.default_rng(100 + states)
-    for trial in range(3):
+    for _ in range(3):
         reaches = _random_reaches(n_sites - 2, rng)
         size = len(reaches)
         sites = list(rng.permutation(size + max(reaches)))[:n_sites]
@@ -315,7 +320,9 @@ def test_two_components_concatenated_against_exact_diagonalization():
     rng = np.random.default_rng(77)
     sites = list(rng.permutation(6))
     a = _variable_range_chain([2, 1], rng.uniform(0.5, 1.5, 2) * np.exp(1j), 3, rng, sites=sites)
-    b = _variable_range_chain([1, 1], rng.uniform(0.5, 1.5, 2) * np.exp(2j), 3, rng, sites=sites[3:])
+    b = _variable_range_chain(
+        [1, 1], rng.uniform(0.5, 1.5, 2) * np.exp(2j), 3, rng, sites=sites[3:]
+    )
     m = fl.Model.from_terms(a + b, states=3)
     assert fl.chain_structure(m) is None and len(fl.classify(m).components) == 2
     sp = fl.free_spectrum(m)

@@ -89,7 +89,8 @@ __all__ = [
 
 _U = float(np.finfo(float).eps) / 2
 _TINY = 2.0**-300  # a ratio that is exactly zero is replaced by this (as in roots.py)
-_HUGE = 2.0**400  # renormalisation thresholds of the running products
+_HUGE = 2.0**200  # renormalisation thresholds of the running products
+_LANES = 16  # points per block of the compiled pass
 _STEPS_PER_CALL = 2e7  # chain steps x points per compiled call: keeps Ctrl-C responsive
 _PARALLEL_STEPS = 2e6  # below this, one core is faster than waking the thread pool
 _PAIRS_PER_CALL = 5e7
@@ -100,98 +101,185 @@ ProgressCallback = Callable[[int, int, int], Any]
 
 # -- compiled kernels ----------------------------------------------------------------------------
 @njit(cache=True, boundscheck=False, error_model="numpy")
-def _one(
-    w: np.ndarray,
-    aw: np.ndarray,
-    back: np.ndarray,
-    width: int,
-    lo: int,
-    hi: int,
-    deg: int,
-    x: complex,
-    noise: np.ndarray,
-) -> tuple[complex, float, complex, float, float]:  # pragma: no cover - compiled
-    """One pass over terms ``lo .. hi - 1`` at ``x``.
+def _block(
+    w, aw, back, width, lo, hi, deg, x, first, size, noise, g, log_abs, phase, log_cond, rel
+):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """One pass over terms ``lo .. hi - 1`` for the points ``x[first : first + size]``.
 
-    Returns ``(Q'/Q, log|P|, P/|P|, log(P~/|P|), |e|)`` with ``e`` the running estimate of the
-    relative rounding error of ``P``: the local errors ``noise[k]`` (unit phases times the
-    unit roundoff) propagated by the linearised recurrence
-    ``e_k = (e_{k-1} - s_k e_{k-back-1}) / r_k + noise_k (1 + |s_k|) / |r_k|``.
+    Writes ``Q'/Q``, ``log|P|``, ``P/|P|``, ``log(P~/|P|)`` and ``|e|``, the running estimate
+    of the relative rounding error of ``P``: the local errors ``noise[k]`` (pseudo-random
+    unit phases times the unit roundoff) propagated by the linearised recurrence
+    ``e_k = (e_{k-1} - s_k e_{k-back-1}) / r_k + noise_k (1 + |s_k|) / |r_k|``.  The
+    ``_LANES`` points of a block share the loop over the terms (independent work for the
+    processor to overlap); a ratio of modulus below ``2**-300`` (a zero of an intermediate
+    ``P_k``, frequent at the roots of the pieces) is replaced by ``-2**-300``, as in
+    :mod:`freeladder.roots`.  Real arithmetic throughout (real and imaginary parts apart).
     """
-    y = 1.0 / x
-    ay = abs(y)
-    inv_r = np.ones(width, dtype=np.complex128)
-    inv_rt = np.ones(width)
-    logd = np.zeros(width, dtype=np.complex128)
-    err = np.zeros(width, dtype=np.complex128)
-    ph = 1.0 + 0.0j
-    log_abs = 0.0
-    acc_t = 1.0
-    log_t = 0.0
-    cur = width - 1  # ring slot of position k - 1 (slot width - 1 starts as "before lo")
+    xr = np.empty(_LANES)
+    xi = np.empty(_LANES)
+    yr = np.empty(_LANES)
+    yi = np.empty(_LANES)
+    ay = np.empty(_LANES)
+    for j in range(_LANES):
+        v = x[first + min(j, size - 1)]
+        xr[j] = v.real
+        xi[j] = v.imag
+        y = 1.0 / v
+        yr[j] = y.real
+        yi[j] = y.imag
+        ay[j] = abs(y)
+    irr = np.ones((width, _LANES))
+    iri = np.zeros((width, _LANES))
+    irt = np.ones((width, _LANES))
+    lr = np.zeros((width, _LANES))
+    li = np.zeros((width, _LANES))
+    er = np.zeros((width, _LANES))
+    ei = np.zeros((width, _LANES))
+    phr = np.ones(_LANES)
+    phi = np.zeros(_LANES)
+    la = np.zeros(_LANES)
+    acc = np.ones(_LANES)
+    lt = np.zeros(_LANES)
+    pr = np.empty(_LANES)
+    pi = np.empty(_LANES)
+    pt = np.empty(_LANES)
+    cur = width - 1
     for k in range(lo, hi):
         t = k - lo
         b = min(back[k], t)
         prev = cur
         cur = cur + 1 if cur + 1 < width else 0
-        prod = 1.0 + 0.0j
-        prod_t = 1.0
+        for j in range(_LANES):
+            pr[j] = 1.0
+            pi[j] = 0.0
+            pt[j] = 1.0
         slot = prev
         for _ in range(b):
-            prod *= inv_r[slot]
-            prod_t *= inv_rt[slot]
+            for j in range(_LANES):
+                a_r = pr[j] * irr[slot, j] - pi[j] * iri[slot, j]
+                pi[j] = pr[j] * iri[slot, j] + pi[j] * irr[slot, j]
+                pr[j] = a_r
+                pt[j] *= irt[slot, j]
             slot = slot - 1 if slot > 0 else width - 1
-        far = slot  # position k - b - 1
-        s = y * w[k] * prod
-        r = 1.0 - s
-        d2 = r.real * r.real + r.imag * r.imag
-        if d2 < _TINY * _TINY:
-            r = -_TINY + 0.0j
-            d2 = _TINY * _TINY
-        ir = complex(r.real / d2, -r.imag / d2)
-        rt = 1.0 + ay * aw[k] * prod_t
-        l_new = (logd[prev] - s * (x + logd[far])) * ir
-        size = (1.0 + abs(s.real) + abs(s.imag)) * (abs(ir.real) + abs(ir.imag))
-        e_new = (err[prev] - s * err[far]) * ir + noise[k] * size
-        err[cur] = e_new
-        inv_r[cur] = ir
-        inv_rt[cur] = 1.0 / rt
-        logd[cur] = l_new
-        ph *= r
-        acc_t *= rt
-        m2 = ph.real * ph.real + ph.imag * ph.imag
-        if m2 > _HUGE or m2 < 1.0 / _HUGE:
-            m = np.sqrt(m2)
-            log_abs += np.log(m)
-            ph /= m
-        if acc_t > _HUGE:
-            log_t += np.log(acc_t)
-            acc_t = 1.0
-    m = abs(ph)
-    log_abs += np.log(m)
-    g = deg * y - y * y * logd[cur]
-    return g, log_abs, ph / m, log_t + np.log(acc_t) - log_abs, abs(err[cur])
+        far = slot
+        wr = w[k].real
+        wi = w[k].imag
+        awk = aw[k]
+        nk = noise[k]
+        nr = nk.real
+        ni = nk.imag
+        for j in range(_LANES):
+            ywr = yr[j] * wr - yi[j] * wi
+            ywi = yr[j] * wi + yi[j] * wr
+            sr = ywr * pr[j] - ywi * pi[j]
+            si = ywr * pi[j] + ywi * pr[j]
+            rr = 1.0 - sr
+            ri = -si
+            d2 = rr * rr + ri * ri
+            if d2 < _TINY * _TINY:  # P_k = 0 here (often exactly, at a root of a piece)
+                rr = -_TINY
+                ri = 0.0
+                d2 = _TINY * _TINY
+            ir_r = rr / d2
+            ir_i = -ri / d2
+            rt = 1.0 + ay[j] * awk * pt[j]
+            # L
+            ar = xr[j] + lr[far, j]
+            ai = xi[j] + li[far, j]
+            tr = lr[prev, j] - (sr * ar - si * ai)
+            ti = li[prev, j] - (sr * ai + si * ar)
+            lr[cur, j] = tr * ir_r - ti * ir_i
+            li[cur, j] = tr * ir_i + ti * ir_r
+            # error
+            sz = (1.0 + abs(sr) + abs(si)) * (abs(ir_r) + abs(ir_i))
+            tr = er[prev, j] - (sr * er[far, j] - si * ei[far, j])
+            ti = ei[prev, j] - (sr * ei[far, j] + si * er[far, j])
+            er[cur, j] = tr * ir_r - ti * ir_i + nr * sz
+            ei[cur, j] = tr * ir_i + ti * ir_r + ni * sz
+            irr[cur, j] = ir_r
+            iri[cur, j] = ir_i
+            irt[cur, j] = 1.0 / rt
+            a_r = phr[j] * rr - phi[j] * ri
+            phi[j] = phr[j] * ri + phi[j] * rr
+            phr[j] = a_r
+            acc[j] *= rt
+        for j in range(_LANES):
+            m1 = abs(phr[j]) + abs(phi[j])
+            if m1 > _HUGE or m1 < 1.0 / _HUGE:
+                m = np.hypot(phr[j], phi[j])
+                la[j] += np.log(m)
+                phr[j] /= m
+                phi[j] /= m
+            if acc[j] > _HUGE:
+                lt[j] += np.log(acc[j])
+                acc[j] = 1.0
+    for j in range(size):
+        m = np.hypot(phr[j], phi[j])
+        lab = la[j] + np.log(m)
+        yv = complex(yr[j], yi[j])
+        gl = complex(lr[cur, j], li[cur, j])
+        g[first + j] = deg * yv - yv * yv * gl
+        log_abs[first + j] = lab
+        phase[first + j] = complex(phr[j] / m, phi[j] / m)
+        log_cond[first + j] = lt[j] + np.log(acc[j]) - lab
+        rel[first + j] = np.hypot(er[cur, j], ei[cur, j])
 
 
 @njit(cache=True, parallel=True)
-def _points_parallel(w, aw, back, width, lo, hi, deg, x, noise, g, log_abs, phase, log_cond, rel):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
-    """:func:`_one` at every point, split over the cores."""
-    for i in prange(x.size):
-        g[i], log_abs[i], phase[i], log_cond[i], rel[i] = _one(
-            w, aw, back, width, lo[i], hi[i], deg[i], x[i], noise
+def _blocks_parallel(
+    w, aw, back, width, lo, hi, deg, x, starts, sizes, noise, g, log_abs, phase, log_cond, rel
+):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """:func:`_block` for every block of points, split over the cores."""
+    for q in prange(starts.size):
+        f = starts[q]
+        _block(
+            w,
+            aw,
+            back,
+            width,
+            lo[f],
+            hi[f],
+            deg[f],
+            x,
+            f,
+            sizes[q],
+            noise,
+            g,
+            log_abs,
+            phase,
+            log_cond,
+            rel,
         )
 
 
 @njit(cache=True)
-def _points_serial(w, aw, back, width, lo, hi, deg, x, noise, g, log_abs, phase, log_cond, rel):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
-    """:func:`_one` at every point on one core.
+def _blocks_serial(
+    w, aw, back, width, lo, hi, deg, x, starts, sizes, noise, g, log_abs, phase, log_cond, rel
+):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """:func:`_block` for every block on one core (small jobs: no thread start-up).
 
-    A copy of :func:`_points_parallel` on purpose: numba's on-disk cache is keyed by the
+    A copy of :func:`_blocks_parallel` on purpose: numba's on-disk cache is keyed by the
     Python function and not by the ``parallel`` flag.
     """
-    for i in range(x.size):
-        g[i], log_abs[i], phase[i], log_cond[i], rel[i] = _one(
-            w, aw, back, width, lo[i], hi[i], deg[i], x[i], noise
+    for q in range(starts.size):
+        f = starts[q]
+        _block(
+            w,
+            aw,
+            back,
+            width,
+            lo[f],
+            hi[f],
+            deg[f],
+            x,
+            f,
+            sizes[q],
+            noise,
+            g,
+            log_abs,
+            phase,
+            log_cond,
+            rel,
         )
 
 
@@ -234,17 +322,32 @@ def _pairs_serial(z, seg_lo, seg_hi, rows, logs, out):  # type: ignore[no-untype
 
 
 @njit(cache=True)
-def _overlaps(
-    z: np.ndarray, radius: np.ndarray, seg_lo: np.ndarray, seg_hi: np.ndarray
+def _overlaps_sorted(
+    z: np.ndarray, radius: np.ndarray, piece: np.ndarray, order: np.ndarray
 ) -> np.ndarray:  # pragma: no cover - compiled
-    """True where the disc ``|x - z_i| <= r_i`` meets another disc of its piece."""
+    """True where the disc ``|x - z_i| <= r_i`` meets another disc of its piece.
+
+    ``order`` sorts by piece, then by real part: the scan for partners of a disc stops at the
+    first disc further right than its radius plus the largest radius.
+    """
     out = np.zeros(z.size, dtype=np.bool_)
-    for i in range(z.size):
-        for j in range(i + 1, seg_hi[i]):
+    top = radius.max() if radius.size else 0.0
+    for a in range(order.size):
+        i = order[a]
+        for b in range(a + 1, order.size):
+            j = order[b]
+            if piece[j] != piece[i] or z[j].real - z[i].real > radius[i] + top:
+                break
             if abs(z[i] - z[j]) <= radius[i] + radius[j]:
                 out[i] = True
                 out[j] = True
     return out
+
+
+def _overlaps(z: np.ndarray, radius: np.ndarray, seg_lo: np.ndarray) -> np.ndarray:
+    """True where a disc meets another disc of its piece (pieces by their first index)."""
+    order = np.lexsort((z.real, seg_lo))
+    return _overlaps_sorted(z, radius, np.ascontiguousarray(seg_lo), order)
 
 
 @njit(cache=True)
@@ -377,18 +480,28 @@ class _Chain:
         phase = np.empty(n, dtype=np.complex128)
         log_cond = np.empty(n)
         rel = np.empty(n)
-        cum = np.concatenate([[0], np.cumsum(hi - lo)])
-        self.steps += int(cum[-1])
+        self.steps += int(np.sum(hi - lo))
+        if n == 0:
+            return g, log_abs, phase, log_cond, rel
+        # blocks of at most _LANES consecutive points on one piece
+        change = np.nonzero((lo[1:] != lo[:-1]) | (hi[1:] != hi[:-1]) | (deg[1:] != deg[:-1]))[0]
+        run_lo = np.concatenate([[0], change + 1])
+        run_hi = np.concatenate([change + 1, [n]])
+        count = (run_hi - run_lo + _LANES - 1) // _LANES
+        first = np.cumsum(count) - count
+        block = np.arange(int(count.sum()))
+        starts = np.repeat(run_lo, count) + _LANES * (block - np.repeat(first, count))
+        sizes = np.minimum(_LANES, np.repeat(run_hi, count) - starts)
+        cum = np.concatenate([[0], np.cumsum(_LANES * (hi - lo)[starts])])
         a = 0
-        while a < n:
+        while a < starts.size:
             b = int(np.searchsorted(cum, cum[a] + _STEPS_PER_CALL, side="right")) - 1
-            b = min(n, max(b, a + 1))
-            steps = cum[b] - cum[a]
-            kernel = _points_parallel if b - a > 1 and steps > _PARALLEL_STEPS else _points_serial
-            s = slice(a, b)
+            b = min(starts.size, max(b, a + 1))
+            parallel = b - a > 1 and cum[b] - cum[a] > _PARALLEL_STEPS
+            kernel = _blocks_parallel if parallel else _blocks_serial
             kernel(
-                self.w, self.aw, self.back, self.width, lo[s], hi[s], deg[s], x[s],
-                self.noise_phases, g[s], log_abs[s], phase[s], log_cond[s], rel[s],
+                self.w, self.aw, self.back, self.width, lo, hi, deg, x, starts[a:b],
+                sizes[a:b], self.noise_phases, g, log_abs, phase, log_cond, rel,
             )  # fmt: skip
             a = b
         return g, log_abs, phase, log_cond, _SAFETY * rel
@@ -434,6 +547,27 @@ def _pieces(ch: _Chain, bounds: Sequence[tuple[int, int, int]]) -> _Pieces:
     return _Pieces(starts[:-1][rep], starts[1:][rep], lo[rep], hi[rep], degs[rep])
 
 
+class _Values:
+    """The last evaluation at each root (``valid`` while the root has not moved since)."""
+
+    def __init__(self, size: int):
+        self.g = np.zeros(size, dtype=np.complex128)
+        self.log_abs = np.zeros(size)
+        self.log_cond = np.zeros(size)
+        self.rel = np.zeros(size)
+        self.valid = np.zeros(size, dtype=bool)
+
+    def store(self, idx: np.ndarray, values: tuple[np.ndarray, ...]) -> None:
+        self.g[idx], self.log_abs[idx], _, self.log_cond[idx], self.rel[idx] = values
+        self.valid[idx] = True
+
+    def refresh(self, ch: _Chain, z: np.ndarray, pc: _Pieces) -> None:
+        """Evaluate where the stored values are stale."""
+        idx = np.nonzero(~self.valid)[0]
+        if idx.size:
+            self.store(idx, ch.evaluate(z[idx], pc.lo[idx], pc.hi[idx], pc.deg[idx]))
+
+
 def _aberth(
     ch: _Chain,
     z: np.ndarray,
@@ -441,8 +575,12 @@ def _aberth(
     active: np.ndarray,
     max_iter: int,
     progress: ProgressCallback | None,
+    vals: _Values,
 ) -> tuple[np.ndarray, int, int]:
     """Aberth-Ehrlich sweeps on the active roots (in place); returns (converged, sweeps, evals).
+
+    Every evaluation is kept in ``vals`` (a root that stops is not moved again, so its last
+    evaluation is at its final place).
 
     A root stops when its correction is below ``4 u |z|``, or when ``|P|`` is below its
     estimated rounding error and the correction no longer shrinks (by a factor 4 per
@@ -458,7 +596,9 @@ def _aberth(
     while sweeps < max_iter and np.any(active):
         sweeps += 1
         idx = np.nonzero(active)[0]
-        g, _, _, _, rel = ch.evaluate(z[idx], pc.lo[idx], pc.hi[idx], pc.deg[idx])
+        values = ch.evaluate(z[idx], pc.lo[idx], pc.hi[idx], pc.deg[idx])
+        vals.store(idx, values)
+        g, rel = values[0], values[4]
         evaluations += idx.size
         inv_sum = _pair_sums(z, pc.seg_lo, pc.seg_hi, idx, False)
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
@@ -472,6 +612,7 @@ def _aberth(
         last[idx] = size
         move = ~done & ~bad
         z[idx[move]] -= corr[move]
+        vals.valid[idx[move | bad]] = False
         if np.any(bad):
             nb = int(bad.sum())
             z[idx[bad]] *= 1.0 + 1e-7 * np.exp(2j * np.pi * rng.random(nb))
@@ -533,9 +674,9 @@ def _leaf_start(ch: _Chain, lo: int, hi: int, d: int) -> np.ndarray:
 
 def _all_roots(
     ch: _Chain, start: np.ndarray | None, max_iter: int, progress: ProgressCallback | None
-) -> tuple[np.ndarray, np.ndarray, _Pieces, list[int], int]:
+) -> tuple[np.ndarray, np.ndarray, _Pieces, list[int], int, _Values]:
     """Every root by divide and conquer (or from ``start``); (z, converged, pieces, sweeps
-    per level from the leaves up, evaluations)."""
+    per level from the leaves up, evaluations, the last evaluation at each root)."""
     if start is not None:
         levels = [[(0, ch.m, int(start.size))]]
         z = start.copy()
@@ -552,18 +693,22 @@ def _all_roots(
         fresh = np.repeat([p not in below for p in level], [d for _, _, d in level])
         if start is None and len(level) == len(levels[-1]):
             fresh = np.array([d > 1 for _, _, d in level]).repeat([d for _, _, d in level])
-        conv, s, e = _aberth(ch, z, pc, fresh, max_iter, progress)
+        vals = _Values(z.size)
+        conv, s, e = _aberth(ch, z, pc, fresh, max_iter, progress, vals)
         converged = np.where(fresh, conv, converged)
         sweeps.append(s)
         evaluations += e
         below = set(level)
-    return z, converged, pc, sweeps, evaluations
+    return z, converged, pc, sweeps, evaluations, vals
 
 
-def _radii(ch: _Chain, z: np.ndarray, pc: _Pieces) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def _radii(
+    ch: _Chain, z: np.ndarray, pc: _Pieces, vals: _Values
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Weierstrass radii ``n |W_i|``, Newton radii ``n |Q / Q'|`` (both with the rounding-error
     estimate of ``Q`` added) and isolation of the Weierstrass discs, within each piece."""
-    g, log_abs_p, _, _, rel_err = ch.evaluate(z, pc.lo, pc.hi, pc.deg)
+    vals.refresh(ch, z, pc)
+    g, log_abs_p, rel_err = vals.g, vals.log_abs, vals.rel
     n = pc.deg.astype(float)
     log_q = n * np.log(np.abs(z)) + log_abs_p + np.log1p(rel_err)
     rows = np.arange(z.size)
@@ -573,7 +718,7 @@ def _radii(ch: _Chain, z: np.ndarray, pc: _Pieces) -> tuple[np.ndarray, np.ndarr
         newton = n * (1.0 + rel_err) / np.abs(g)
     newton = np.where(np.isfinite(newton), newton, np.inf)
     radius = np.where(np.isfinite(radius), radius, np.inf)
-    isolated = ~_overlaps(z, radius, pc.seg_lo, pc.seg_hi)
+    isolated = ~_overlaps(z, radius, pc.seg_lo)
     return radius, newton, isolated
 
 
@@ -658,16 +803,18 @@ def _lowest_roots(
             np.zeros(size, dtype=np.int64), np.full(size, size), np.zeros(size, dtype=np.int64),
             np.full(size, ch.m), np.full(size, n),
         )  # fmt: skip
-        conv, s, e = _aberth(ch, z, pc, active, max_iter, progress)
+        vals = _Values(size)
+        conv, s, e = _aberth(ch, z, pc, active, max_iter, progress, vals)
         sweeps += s
         evaluations += e
-        g, _, _, _, rel_err = ch.evaluate(z, pc.lo, pc.hi, pc.deg)
-        evaluations += size
+        evaluations += int((~vals.valid).sum())
+        vals.refresh(ch, z, pc)
+        g, rel_err = vals.g, vals.rel
         with np.errstate(divide="ignore", over="ignore"):
             newton = n * (1.0 + rel_err) / np.abs(g)
         inside = np.abs(z) + newton < rho
         outside = np.abs(z) - newton > rho
-        disjoint = not np.any(_overlaps(z, newton, pc.seg_lo, pc.seg_hi))
+        disjoint = not np.any(_overlaps(z, newton, pc.seg_lo))
         if not (np.all(conv) and disjoint and np.all(inside | outside)):
             return None
         missing = j - int(inside.sum())
@@ -784,7 +931,7 @@ def aberth_chain_roots(
     if lowest is not None and int(lowest) < n and start is None:
         found = _lowest_roots(ch, n, int(lowest), max_iter, progress)
         if found is not None:
-            z, radius, message, ok, sweeps, evaluations = found
+            z, radius, message, ok, n_sweeps, evaluations = found
             _, _, _, log_cond, _ = ch.evaluate(
                 z, np.zeros(z.size, np.int64), np.full(z.size, ch.m), np.full(z.size, n)
             )
@@ -798,7 +945,7 @@ def aberth_chain_roots(
                 method="chain-aberth",
                 evaluations=evaluations,
                 count=n,
-                iterations=sweeps,
+                iterations=n_sweeps,
                 indices=np.arange(z.size),
                 details={
                     "chain_steps": ch.steps,
@@ -806,10 +953,10 @@ def aberth_chain_roots(
                     "start": "circle inside the counted disc",
                 },
             )
-    z, conv, pc, sweeps, evaluations = _all_roots(ch, z0, max_iter, progress)
-    radius, newton, isolated = _radii(ch, z, pc)
-    _, _, _, log_cond, _ = ch.evaluate(z, pc.lo, pc.hi, pc.deg)
-    evaluations += 2 * n
+    z, conv, pc, sweeps, evaluations, vals = _all_roots(ch, z0, max_iter, progress)
+    evaluations += int((~vals.valid).sum())
+    radius, newton, isolated = _radii(ch, z, pc, vals)
+    log_cond = vals.log_cond
     sort = np.lexsort((np.angle(z), np.abs(z)))
     ok = bool(np.all(conv) and np.all(isolated))
     total = int(sum(sweeps))
@@ -911,7 +1058,7 @@ def inclusion_radii(
     n = chain_degree(ch.m, ch.back)
     if zs.shape != (n,):
         raise ValueError(f"{zs.size} approximations for {n} roots")
-    return _radii(ch, zs, _pieces(ch, [(0, ch.m, n)]))
+    return _radii(ch, zs, _pieces(ch, [(0, ch.m, n)]), _Values(n))
 
 
 def certified_complex_roots(

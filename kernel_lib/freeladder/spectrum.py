@@ -875,8 +875,9 @@ def _find_roots(
         and ((ordering := _ordering(m)) is not None)
     ):
         # components in an oriented indifference order: the recurrence with back-reaches
+        # (the complex path takes an array in place of the reach)
         order, back = ordering
-        found = root_methods.solve_chain(couplings[order], back, n, method, lowest)
+        found = root_methods.solve_chain(couplings[order], back, n, method, lowest)  # type: ignore[arg-type]
     else:
         found = root_methods.solve_general(m)
     return found
