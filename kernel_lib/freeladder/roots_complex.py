@@ -92,7 +92,7 @@ _TINY = 2.0**-300  # a ratio that is exactly zero is replaced by this (as in roo
 _HUGE = 2.0**200  # renormalisation thresholds of the running products
 _LANES = 16  # points per block of the compiled pass
 _STEPS_PER_CALL = 2e7  # chain steps x points per compiled call: keeps Ctrl-C responsive
-_PARALLEL_STEPS = 2e6  # below this, one core is faster than waking the thread pool
+_PARALLEL_STEPS = 3e5  # below this, one core is faster than waking the thread pool
 _PAIRS_PER_CALL = 5e7
 _SAFETY = 4.0  # factor on the statistical rounding-error estimate
 
@@ -722,15 +722,18 @@ def _radii(
     return radius, newton, isolated
 
 
-def _count_inside(ch: _Chain, n: int, rho: float, budget: int = 8192) -> tuple[int | None, int]:
+def _count_inside(ch: _Chain, n: int, rho: float, limit: int) -> tuple[int | None, int]:
     """Number of roots of ``Q`` in ``|x| < rho`` by the argument principle; (count, evals).
 
     The phase of ``Q`` is sampled on the circle and refined until neighbouring samples differ
-    by less than pi/4; None when the budget runs out, when the circle passes through a root
-    (``|P|`` at its rounding-error scale at a sample) or when the total is not near a whole
-    number.  An estimate: a pair of roots closer to the circle than the sampling can miss.
+    by less than pi/4; -1 as soon as the phase seen so far turns more than ``limit`` times
+    in total (many roots inside or near the circle: expensive to count, and more than
+    wanted), or more than ``64 limit + 256`` samples would be needed; None when the circle
+    passes through a root (``|P|`` at its rounding-error scale at a sample) or when the total
+    is not near a whole number.  An estimate: a pair of roots closer to the circle than the
+    sampling can miss.
     """
-    theta = 2 * np.pi * np.arange(64) / 64
+    theta = 2 * np.pi * np.arange(32) / 32
     phase = np.empty(0, dtype=complex)
     th_done = np.empty(0)
     new = theta
@@ -749,12 +752,14 @@ def _count_inside(ch: _Chain, n: int, rho: float, budget: int = 8192) -> tuple[i
         th_done, phase = th_done[order], phase[order]
         step = np.angle(np.roll(phase, -1) * np.conj(phase))
         wide = np.abs(step) > np.pi / 4
+        if np.abs(step).sum() > 2 * np.pi * limit:
+            return -1, evaluations
         if not np.any(wide):
             turns = step.sum() / (2 * np.pi)
             count = round(turns)
             return (count if abs(turns - count) < 0.1 else None), evaluations
-        if th_done.size + int(wide.sum()) > budget:
-            return None, evaluations
+        if th_done.size + int(wide.sum()) > 64 * limit + 256:
+            return -1, evaluations
         nxt = np.append(th_done[1:], 2 * np.pi)
         new = 0.5 * (th_done + nxt)[wide]
 
@@ -766,38 +771,39 @@ def _lowest_roots(
     the verification fails (the caller then computes every root)."""
     extra = max(4, k)
     evaluations = 0
-    # a circle holding between k and k + extra roots: geometric bisection on its radius
-    top = float(ch.aw.max())
-    rho = top / max(ch.m, 1) ** 2
+    # a circle holding between k and k + extra roots: steps by 8 in radius, then geometric
+    # bisection (the first guess is the scale of the lowest mode of a uniform chain, 1 / M^2)
+    rho = float(ch.aw.max()) / max(ch.m, 1) ** 2
     lo_r, hi_r = 0.0, np.inf
     count = None
-    for _ in range(60):
-        count, e = _count_inside(ch, n, rho)
+    for _ in range(80):
+        count, e = _count_inside(ch, n, rho, k + extra + 4)
         evaluations += e
         if count is None:
-            rho *= 1.01
+            rho *= 1.03
             continue
         if k <= count <= k + extra:
             break
-        if count < k:
+        if 0 <= count < k:
             lo_r = rho
         else:
             hi_r = rho
-        rho = (
-            2.0 * rho
-            if not np.isfinite(hi_r)
-            else (0.5 * hi_r if lo_r == 0 else np.sqrt(lo_r * hi_r))
-        )
+        if not np.isfinite(hi_r):
+            rho *= 8.0
+        elif lo_r == 0:
+            rho /= 8.0
+        else:
+            rho = float(np.sqrt(lo_r * hi_r))
     else:
         return None
     if count is None or count < k:
         return None
     j = int(count)
-    z = 0.5 * rho * np.exp(1j * (2 * np.pi * (np.arange(j) + 0.5) / j + 0.4))
+    z = 0.5 * rho * 0.03 ** np.arange(j) * np.exp(1j * (2 * np.pi * (np.arange(j) + 0.5) / j + 0.4))
     active = np.ones(j, dtype=bool)
     rng = np.random.default_rng(99)
     sweeps = 0
-    for _ in range(8):
+    for attempt in range(8):
         size = z.size
         pc = _Pieces(
             np.zeros(size, dtype=np.int64), np.full(size, size), np.zeros(size, dtype=np.int64),
@@ -821,8 +827,10 @@ def _lowest_roots(
         if missing == 0:
             break
         # a root inside the circle was missed (an approximation went to one outside): new
-        # approximations start at random inside, deflated by the roots found so far
-        new = rho * np.sqrt(rng.random(missing)) * np.exp(2j * np.pi * rng.random(missing))
+        # approximations start inside at random angles (at radii that change from attempt to
+        # attempt), deflated by the roots found so far
+        radius = rho * (0.05, 0.5, 0.9, 0.25)[attempt % 4]
+        new = radius * np.exp(2j * np.pi * rng.random(missing))
         z = np.concatenate([z, new])
         active = np.concatenate([np.zeros(size, dtype=bool), np.ones(missing, dtype=bool)])
     else:
@@ -865,8 +873,9 @@ def aberth_chain_roots(
         Maximum number of sweeps per level.
     lowest : int, optional
         Only the ``lowest`` smallest ``|x|`` (smallest ``|eta|``), by the restricted
-        iteration and the count described in the module notes.  When that verification
-        fails, every root is computed and the smallest kept (the message says so).
+        iteration and the count described in the module notes.  When that check fails,
+        every root is computed and the smallest kept (the message says so; ``converged``
+        then requires all the inclusion discs to be isolated).
     progress : callable, optional
         ``progress(sweep, roots_done, roots_active_at_start)`` after every sweep.
 
@@ -972,8 +981,8 @@ def aberth_chain_roots(
         keep = slice(0, int(lowest))
         if int(lowest) < n:
             message += (
-                f"; the restricted search for the {lowest} smallest could not be verified, "
-                "so every root was computed and the smallest kept"
+                f"; the restricted search for the {lowest} smallest failed its check, so every "
+                "root was computed and the smallest kept"
             )
     idx = sort[keep]
     return RootResult(
