@@ -776,12 +776,15 @@ def _lowest_roots(
     rho = float(ch.aw.max()) / max(ch.m, 1) ** 2
     lo_r, hi_r = 0.0, np.inf
     count = None
+    seen: dict[float, int] = {}  # radius -> count: the radial distribution of the moduli
     for _ in range(80):
         count, e = _count_inside(ch, n, rho, k + extra + 4)
         evaluations += e
         if count is None:
             rho *= 1.03
             continue
+        if count >= 0:
+            seen[rho] = count
         if k <= count <= k + extra:
             break
         if 0 <= count < k:
@@ -799,8 +802,26 @@ def _lowest_roots(
     if count is None or count < k:
         return None
     j = int(count)
-    z = 0.5 * rho * 0.03 ** np.arange(j) * np.exp(1j * (2 * np.pi * (np.arange(j) + 0.5) / j + 0.4))
-    active = np.ones(j, dtype=bool)
+    # starts: as many in each annulus between counted circles as the counts differ, spread
+    # geometrically across it; in the innermost disc spread over decades downwards (the
+    # lowest modes of a disordered chain spread over many orders of magnitude)
+    # (up to the next counted circle outside, when it holds few more: approximations that
+    # converge to roots just outside then keep the others from drifting there)
+    outer = [t for t in seen if t > rho and seen[t] <= 3 * count + 8]
+    last = min(outer) if outer else rho
+    radii: list[float] = []
+    inner, below = 0.0, 0
+    for r in sorted(t for t in seen if t <= last):
+        d = seen[r] - below
+        if d > 0:
+            if inner > 0:
+                radii += list(np.geomspace(r, inner, d + 2)[1:-1])
+            else:
+                radii += list(0.5 * r * 0.03 ** np.arange(d))
+        inner, below = r, seen[r]
+    angles = 2 * np.pi * 0.6180339887498949 * np.arange(len(radii)) + 0.4
+    z = np.array(radii) * np.exp(1j * angles)
+    active = np.ones(z.size, dtype=bool)
     rng = np.random.default_rng(99)
     sweeps = 0
     for attempt in range(8):
@@ -830,9 +851,9 @@ def _lowest_roots(
         # approximations start inside at random angles (at radii that change from attempt to
         # attempt), deflated by the roots found so far
         radius = rho * (0.05, 0.5, 0.9, 0.25)[attempt % 4]
-        new = radius * np.exp(2j * np.pi * rng.random(missing))
+        new = radius * np.exp(2j * np.pi * rng.random(missing + 2))
         z = np.concatenate([z, new])
-        active = np.concatenate([np.zeros(size, dtype=bool), np.ones(missing, dtype=bool)])
+        active = np.concatenate([np.zeros(size, dtype=bool), np.ones(new.size, dtype=bool)])
     else:
         return None
     found = np.nonzero(inside)[0]
@@ -893,7 +914,10 @@ def aberth_chain_roots(
         number of sweeps (all levels).  ``details``: ``isolated``, ``root_converged``,
         ``newton_radius`` (all roots), ``sweeps_per_level`` (leaves first), ``chain_steps``
         (points x terms evaluated), ``max_residual`` (largest ``|P(y)| / P~(|y|)`` at the
-        returned roots: the backward error on the recurrence), ``start``.
+        returned roots: the backward error relative to the moduli of the monomials, tiny
+        where these cancel strongly), ``max_newton_step`` (largest relative Newton
+        correction ``|Q / (x Q')|`` at the returned roots: the residual in the root's own
+        scale), ``start``.
 
     Raises
     ------
@@ -941,7 +965,7 @@ def aberth_chain_roots(
         found = _lowest_roots(ch, n, int(lowest), max_iter, progress)
         if found is not None:
             z, radius, message, ok, n_sweeps, evaluations = found
-            _, _, _, log_cond, _ = ch.evaluate(
+            g, _, _, log_cond, _ = ch.evaluate(
                 z, np.zeros(z.size, np.int64), np.full(z.size, ch.m), np.full(z.size, n)
             )
             return RootResult(
@@ -959,7 +983,8 @@ def aberth_chain_roots(
                 details={
                     "chain_steps": ch.steps,
                     "max_residual": float(np.exp(-log_cond.min())),
-                    "start": "circle inside the counted disc",
+                    "max_newton_step": float(np.max(1.0 / np.abs(g * z))),
+                    "start": "circles inside the counted disc",
                 },
             )
     z, conv, pc, sweeps, evaluations, vals = _all_roots(ch, z0, max_iter, progress)
@@ -1004,6 +1029,7 @@ def aberth_chain_roots(
             "sweeps_per_level": tuple(sweeps),
             "chain_steps": ch.steps,
             "max_residual": float(np.exp(-log_cond.min())),
+            "max_newton_step": float(np.max(1.0 / np.abs(vals.g * z))),
             "start": "given" if z0 is not None else "divide and conquer from single terms",
         },
     )

@@ -4,8 +4,9 @@ Z3 exclusion chains with random complex couplings (``fl.complex_couplings``), 10
 terms, reach 1, reach 2 and a variable range (random back-reaches 1..3 with non-decreasing
 first neighbours, as an oriented indifference order of a connected chain gives).  For each:
 time, sweeps (all levels of the divide and conquer), chain steps per (terms x roots) (the cost
-in units of one sweep over all roots), the largest residual ``|P(y)| / P~(|y|)`` on the
-recurrence at the roots, and the ``lowest=5`` path (time, agreement with the all-roots result).
+in units of one sweep over all roots), the largest residuals on the recurrence at the roots
+(``|P(y)| / P~(|y|)`` and the relative Newton step ``|Q / (x Q')|``), and the
+``lowest=5`` path (time, agreement with the all-roots result).
 
 Baselines measured in the same run:
 * numpy's dense eigenvalues (10^3 terms) of a matrix whose characteristic polynomial is the
@@ -151,8 +152,9 @@ def run_scale(sizes: tuple[int, ...] = (1000, 10_000), old_large: bool = False) 
             print(
                 f"  M={m:>6} {label:>8}: {n} roots in {t_all:7.2f} s, {found.iterations} sweeps "
                 f"over {len(found.details['sweeps_per_level'])} levels, cost {steps:.2f} full "
-                f"sweeps, max residual |P|/P~ {found.details['max_residual']:.1e}, "
-                f"converged+isolated {found.converged}"
+                f"sweeps, max residual: |P|/P~ {found.details['max_residual']:.1e}, relative "
+                f"Newton step {found.details['max_newton_step']:.1e}; converged+isolated "
+                f"{found.converged}"
             )
             t0 = time.perf_counter()
             few = aberth_chain_roots(w, reach, order=3, lowest=5)
