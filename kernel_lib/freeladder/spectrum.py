@@ -716,14 +716,16 @@ def free_spectrum(
     method : "auto", "fast" or "certified"
         ``"auto"``: exclusion chains go through the recurrence (real roots by counting and
         bisection for N = 2 with real couplings, :mod:`freeladder.roots`; Aberth-Ehrlich in
-        the complex plane otherwise, :mod:`freeladder.roots_complex`); any other frustration
-        graph goes through the exact polynomial and certified roots.  ``"fast"``: the
+        the complex plane otherwise, :mod:`freeladder.roots_complex`), and so do oriented
+        indifference orders (variable range) with N > 2 or complex couplings; any other
+        frustration graph goes through the exact polynomial and certified roots.  ``"fast"``: the
         recurrence only (chains).  ``"certified"``: rigorous enclosures -- sign changes in
         ball arithmetic for real chains (:mod:`freeladder.certify`), certified isolation of
         the roots of the exact polynomial otherwise (python-flint).
     lowest : int, optional
-        Keep only the ``lowest`` smallest quasi-energies (``|eta|``).  The real chain path
-        then computes only those; the others compute all roots and drop the rest.
+        Keep only the ``lowest`` smallest quasi-energies (``|eta|``).  The chain paths
+        (real and complex) then compute only those; the others compute all roots and drop
+        the rest.
     unproven : bool, default False
         Return the numbers even when no theorem guarantees that the single polynomial gives
         the spectrum; the result then says NOT GUARANTEED wherever it prints.
