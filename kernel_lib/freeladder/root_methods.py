@@ -117,7 +117,7 @@ def _certified(w: np.ndarray, reach: int, states: int, lowest: int | None, c: An
 
 
 def _aberth(w: np.ndarray, reach: int, states: int, lowest: int | None, c: Any) -> RootResult:
-    return aberth_chain_roots(w, reach, order=states)
+    return aberth_chain_roots(w, reach, order=states, lowest=lowest)
 
 
 def exact_polynomial_roots(m: Model) -> RootResult:

@@ -805,14 +805,16 @@ def free_spectrum(
     method : "auto", "fast" or "certified"
         ``"auto"``: exclusion chains go through the recurrence (real roots by counting and
         bisection for N = 2 with real couplings, :mod:`freeladder.roots`; Aberth-Ehrlich in
-        the complex plane otherwise, :mod:`freeladder.roots_complex`); any other frustration
-        graph goes through the exact polynomial and certified roots.  ``"fast"``: the
+        the complex plane otherwise, :mod:`freeladder.roots_complex`), and so do oriented
+        indifference orders (variable range) with N > 2 or complex couplings; any other
+        frustration graph goes through the exact polynomial and certified roots.  ``"fast"``: the
         recurrence only (chains).  ``"certified"``: rigorous enclosures -- sign changes in
         ball arithmetic for real chains (:mod:`freeladder.certify`), certified isolation of
         the roots of the exact polynomial otherwise (python-flint).
     lowest : int, optional
-        Keep only the ``lowest`` smallest quasi-energies (``|eta|``).  The real chain path
-        then computes only those; the others compute all roots and drop the rest.
+        Keep only the ``lowest`` smallest quasi-energies (``|eta|``).  The chain paths
+        (real and complex) then compute only those; the others compute all roots and drop
+        the rest.
     unproven : bool, default False
         Return the numbers even when no theorem guarantees that the single polynomial gives
         the spectrum; the result then says NOT GUARANTEED wherever it prints.
@@ -1077,9 +1079,38 @@ def _find_roots(
         found = root_methods.solve_general(m)
     elif chain is not None:
         found = root_methods.solve_chain(couplings[chain.order], chain.reach, n, method, lowest)
+    elif (
+        method != "certified"
+        and (n > 2 or np.iscomplexobj(couplings))
+        and ((ordering := _ordering(m)) is not None)
+    ):
+        # components in an oriented indifference order: the recurrence with back-reaches
+        # (the complex path takes an array in place of the reach)
+        order, back = ordering
+        found = root_methods.solve_chain(couplings[order], back, n, method, lowest)  # type: ignore[arg-type]
     else:
         found = root_methods.solve_general(m)
     return found
+
+
+def _ordering(m: Model) -> tuple[np.ndarray, np.ndarray] | None:
+    """Term order and back-reaches of the recurrence, components one after another (back 0
+    at each start), when every component is a chain or an oriented indifference order."""
+    order: list[int] = []
+    back: list[int] = []
+    for comp in classify(m).components:
+        if comp.kind != "hidden-free":
+            return None
+        if comp.chain is not None:
+            terms = [int(t) for t in comp.chain.order]
+            back += [min(k, int(comp.chain.reach)) for k in range(len(terms))]
+        elif comp.indifference is not None:
+            terms = list(comp.indifference.order)
+            back += [k - f for k, f in enumerate(comp.indifference.first_neighbour)]
+        else:
+            return None
+        order += terms
+    return np.array(order, dtype=np.int64), np.array(back, dtype=np.int64)
 
 
 def _degeneracy(m: Model, proven: bool, count: int) -> tuple[int | None, str]:
