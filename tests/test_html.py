@@ -120,3 +120,17 @@ def test_exact_spectrum_table_right_aligns_levels() -> None:
     assert float(rows[0][0][1]) == pytest.approx(exact[0], abs=1e-9)
     assert sum(int(r[1][1]) for r in rows) == len(exact)
     assert all(_align(c[2]) == "right" for r in rows for c in r)
+
+
+def test_long_charge_formula_breaks_into_lines() -> None:
+    # MathJax 3 (JupyterLab's) does not break long display formulas (common practice: break
+    # them by hand in an aligned block); the broken form must hold the same products.
+    m = fl.exclusion_chain(6, reach=2, couplings=fl.staggered(6, 1.0, 0.4))
+    order = list(fl.charge_series(m))[2]
+    shown = order._repr_latex_().strip("$")
+    assert shown.startswith(r"\begin{aligned}") and shown.count(r"\\") >= 1
+    flat = shown.removeprefix(r"\begin{aligned} ").removesuffix(r" \end{aligned}")
+    flat = flat.replace(r" \\ & ", " ").replace("= {} & ", "= ")
+    assert flat == order.latex()
+    # the couplings are shown as typed: 0.4 * 0.4 = 0.16 without float noise
+    assert "0.16 X_{1}" in shown and "0.16000000000000003" not in shown
