@@ -126,3 +126,29 @@ def test_readme_code_runs(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> No
     namespace: dict[str, object] = {"__name__": "readme"}
     for index, block in enumerate(blocks):
         exec(compile(block, f"README.md block {index}", "exec"), namespace)
+
+
+def test_readme_lists_the_public_functions() -> None:
+    """The README's table of public functions names only what ``freeladder`` exports, and every
+    exported function appears somewhere in the README."""
+    import freeladder as fl
+
+    text = (REPO / "README.md").read_text()
+    section = text.split("## The public functions", 1)[1].split("\n## ", 1)[0]
+    listed = set()
+    for row in section.splitlines():
+        if not row.startswith("| ") or row.startswith("| step") or row.startswith("| ---"):
+            continue
+        cells = row.split("|")[2]
+        while re.search(r"\([^()]*\)", cells):  # attribute lists in parentheses
+            cells = re.sub(r"\([^()]*\)", "", cells)
+        listed.update(re.findall(r"`([A-Za-z_][\w.]*)`", cells))
+    assert listed, "no names found in the README's table of public functions"
+    for name in sorted(listed):
+        owner, _, attr = name.partition(".")
+        assert owner in fl.__all__, f"README lists {name}, which freeladder does not export"
+        if attr:
+            assert hasattr(getattr(fl, owner), attr), f"README lists {name}, which does not exist"
+    functions = [n for n in fl.__all__ if n[0].islower() and callable(getattr(fl, n))]
+    missing = [n for n in functions if not re.search(rf"(`|fl\.){n}\b", text)]
+    assert not missing, f"exported but not in the README: {missing}"
