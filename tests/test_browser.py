@@ -49,7 +49,10 @@ EXPECTED_TEXT = [
 if not CHROMIUM.exists():
     if os.environ.get("CI", "").lower() in ("1", "true", "yes"):
         pytest.fail(f"{CHROMIUM} is missing under CI: .ci/run must install chromium", pytrace=False)
-    pytest.skip(f"{CHROMIUM} is not installed (apt-get install chromium)", allow_module_level=True)
+    pytest.skip(
+        f"SKIPPING the tour browser test: {CHROMIUM} is not installed (apt-get install chromium)",
+        allow_module_level=True,
+    )
 
 sync_api = pytest.importorskip("playwright.sync_api")
 
