@@ -46,6 +46,14 @@ def test_report_text_and_model_file(tmp_path):
     assert done.returncode == 0, done.stderr
     assert "verdict: jordan-wigner" in done.stdout
     assert "ground energy:" in done.stdout
+    # each quasi-energy with its bound in two significant digits; the quasi-energies are half
+    # the single-particle gaps of numpy's dense spectrum (Pfeuty 1970: E_0 = -sum eta_k)
+    rows = [line.split() for line in done.stdout.splitlines() if "+-" in line]
+    etas = sorted(float(r[0]) for r in rows)
+    assert len(etas) == 3
+    levels = np.linalg.eigvalsh(fl.parse_model(ISING).to_sparse().toarray())
+    assert abs(-sum(etas) - levels[0]) < 1e-9
+    assert all(len(r[2].split("e")[0].replace(".", "").lstrip("0")) <= 2 for r in rows), rows
 
 
 def test_clock_model_gives_complex_numbers_as_pairs():

@@ -14,6 +14,10 @@ if [ "$static" -ne 0 ]; then
     echo "== static checks FAILED (see above); running pytest anyway"
 fi
 
+if [ ! -x /usr/bin/chromium ]; then
+    echo "== NOTE: /usr/bin/chromium is missing, so the browser tests will be SKIPPED"
+    echo "==       (Debian/Ubuntu: apt-get install chromium; under CI=true they fail instead)"
+fi
 echo "== pytest"
 pytest_status=0
 "$VENV/bin/python" -m pytest "$@" || pytest_status=$?

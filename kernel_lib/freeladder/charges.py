@@ -184,16 +184,37 @@ class ChargeStep:
         tail = f" + ... ({more} more products)" if more > 0 else ""
         return f"Q^({self.order}) = {body}{tail}"
 
-    def latex(self, max_terms: int = 12) -> str:
-        """The same summary in LaTeX (no dollars)."""
+    def latex(self, max_terms: int = 12, letters_per_line: int | None = None) -> str:
+        """The same summary in LaTeX (no dollars).
+
+        With ``letters_per_line``, an ``aligned`` block that starts a new line before a product
+        whose operator letters would take the line past that many (MathJax in notebooks does
+        not break long formulas itself).
+        """
         shown = self.head(max_terms)
-        body = format_terms_latex([(t.coupling, t.string) for t in shown]) if shown else "0"
+        pairs = [(t.coupling, t.string) for t in shown]
         more = self.count - len(shown)
         tail = rf" + \dots \; (\text{{{more} more products}})" if more > 0 else ""
-        return f"Q^{{({self.order})}} = {body}{tail}"
+        lines: list[list[tuple[Any, Any]]] = [[]]
+        used = 0
+        for c, g in pairs:
+            size = len(g.factors)
+            if letters_per_line and lines[-1] and used + size > letters_per_line:
+                lines.append([])
+                used = 0
+            lines[-1].append((c, g))
+            used += size
+        if len(lines) == 1:
+            body = format_terms_latex(pairs) if pairs else "0"
+            return f"Q^{{({self.order})}} = {body}{tail}"
+        texts = [format_terms_latex(line) for line in lines]
+        body = texts[0] + "".join(
+            rf" \\ & - {t[1:]}" if t.startswith("-") else rf" \\ & + {t}" for t in texts[1:]
+        )
+        return rf"\begin{{aligned}} Q^{{({self.order})}} = {{}} & {body}{tail} \end{{aligned}}"
 
     def _repr_latex_(self) -> str:
-        return "$" + self.latex() + "$"
+        return "$" + self.latex(letters_per_line=24) + "$"
 
     def __str__(self) -> str:
         return self.text()

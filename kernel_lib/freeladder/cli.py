@@ -149,7 +149,7 @@ def _print_report(data: dict[str, Any], out: TextIO) -> None:
         eta, bounds = data["quasi_energies"], data["error_bounds"]
         w(f"quasi-energies ({len(eta)}, smallest first; bound on each):\n")
         for e, b in list(zip(eta, bounds, strict=True))[:_SHOWN_ENERGIES]:
-            w(f"  {_number(e):>28}  +- {_number(b)}\n")
+            w(f"  {_number(e):>28}  +- {'-' if b is None else format(b, '.2g')}\n")
         if len(eta) > _SHOWN_ENERGIES:
             w(f"  ... {len(eta) - _SHOWN_ENERGIES} more (use --json for all)\n")
         w(f"ground energy: {_number(data['ground_energy'])}\n")

@@ -27,6 +27,7 @@ import scipy.sparse.linalg as spla
 
 from .errors import TooLargeError
 from .frozen import readonly_array
+from .htmltable import grid_table
 from .jsonready import json_ready
 from .model import Model
 
@@ -120,12 +121,16 @@ class ExactSpectrum:
         )
 
     def _repr_html_(self) -> str:
-        rows = "".join(
-            f"<tr><td>{html.escape(_num(v))}</td><td>{int(d)}</td></tr>"
-            for v, d in zip(self.levels[:30], self.multiplicities[:30], strict=True)
+        table = grid_table(
+            ("level", "multiplicity"),
+            [
+                (_num(v), str(int(d)))
+                for v, d in zip(self.levels[:30], self.multiplicities[:30], strict=True)
+            ],
+            numeric=(0, 1),
         )
         more = (
-            f"<tr><td colspan='2'>... {len(self.levels) - 30} more levels</td></tr>"
+            f"<p><small>... and {len(self.levels) - 30} more levels</small></p>"
             if len(self.levels) > 30
             else ""
         )
@@ -133,8 +138,7 @@ class ExactSpectrum:
         return (
             f"<div><b>Exact spectrum</b>: {part} of {self.dimension} eigenvalues "
             f"({html.escape(self.method)}); levels clustered within {self.tolerance:.2g}; "
-            f"error estimate {self.error_estimate:.2g}"
-            f"<table><tr><th>level</th><th>multiplicity</th></tr>{rows}{more}</table></div>"
+            f"error estimate {self.error_estimate:.2g}{table}{more}</div>"
         )
 
 

@@ -37,6 +37,7 @@ from .ed import DENSE_LIMIT
 from .errors import NoTheoremError
 from .frozen import readonly_array
 from .graph import ChainStructure, chain_structure
+from .htmltable import field_table, grid_table, is_number_text
 from .jsonready import json_ready
 from .majorana import flux_sector, jordan_wigner_spectrum
 from .model import Model
@@ -678,12 +679,21 @@ class FreeSpectrum:
         return "\n".join(lines)
 
     def _repr_html_(self) -> str:
-        table = "".join(
-            f"<tr><th style='text-align:left'>{html.escape(a)}</th><td>{html.escape(b)}</td></tr>"
-            for a, b in self._summary_rows()
+        shown = min(len(self), 12)
+        eta = grid_table(
+            ("k", "eta_k", "bound"),
+            [
+                (str(k), _fmt(self.quasi_energies[k], 10), f"\u00b1 {self.error_bounds[k]:.2g}")
+                for k in range(shown)
+            ],
+            numeric=(0, 1, 2),
         )
-        eta = ", ".join(html.escape(_fmt(e)) for e in self.quasi_energies[:12])
-        more = ", ..." if len(self) > 12 else ""
+        more = (
+            f"<p><small>... and {len(self) - shown} more</small></p>" if len(self) > shown else ""
+        )
+        rows = self._summary_rows()
+        numbers = field_table([(a, b) for a, b in rows if is_number_text(b)])
+        notes = field_table([(a, b) for a, b in rows if not is_number_text(b)])
         warning = ""
         if not self.guaranteed:
             warning = (
@@ -691,8 +701,7 @@ class FreeSpectrum:
             )
         return (
             f"<div>{warning}<b>Free spectrum</b>: N = {self.states}, {len(self)} quasi-energies"
-            f"{'' if self.complete else ' (lowest only)'}<br>eta = {eta}{more}"
-            f"<table>{table}</table></div>"
+            f"{'' if self.complete else ' (lowest only)'}{eta}{more}{numbers}{notes}</div>"
         )
 
     def to_dict(self) -> dict[str, Any]:
@@ -779,11 +788,11 @@ def _scalar(v: Any) -> complex | float:
     return v.real if v.imag == 0 else v
 
 
-def _fmt(v: Any) -> str:
+def _fmt(v: Any, digits: int = 6) -> str:
     v = complex(v)
     if v.imag == 0:
-        return f"{v.real:.6g}"
-    return f"{v.real:.6g}{v.imag:+.6g}j"
+        return f"{v.real:.{digits}g}"
+    return f"{v.real:.{digits}g}{v.imag:+.{digits}g}j"
 
 
 # -- computing the spectrum ----------------------------------------------------------------------

@@ -13,8 +13,9 @@ from .style import INK, WARN, escape, status_words
 
 __all__ = ["ChecksPanel", "report_html"]
 
-_HEAD = ("check", "method", "tolerance", "value", "result", "time", "reference")
-# short columns stay on one line; the method and reference wrap in a smaller font
+_HEAD = ("check", "method", "tolerance", "value", "result", "time")
+# short columns stay on one line; the method wraps in a smaller font.  The reference goes in the
+# detail line below each check, so that the table fits the half-width column it shares.
 _WRAP = (
     "",
     " font-size:11.5px;",
@@ -22,7 +23,6 @@ _WRAP = (
     " white-space:nowrap;",
     " white-space:nowrap;",
     " white-space:nowrap;",
-    " font-size:11.5px;",
 )
 
 
@@ -74,7 +74,6 @@ def report_html(report: fl.Report) -> str:
             f"{c.value:.3g}",
             f"<b style='color:{colour}'>{status_words(c.passed)}</b>",
             f"{c.seconds:.2f} s",
-            escape(c.reference),
         )
         rows.append(
             "<tr style='border-top:1px solid #d6dde0'>"
@@ -83,8 +82,9 @@ def report_html(report: fl.Report) -> str:
                 for k, x in enumerate(cells)
             )
             + "</tr>"
-            + f"<tr><td></td><td colspan='6' style='padding:0 8px 4px 8px; font-size:11.5px;"
-            f" color:#4f5d64'>{escape(c.detail)}{_traceback(c)}</td></tr>"
+            + f"<tr><td></td><td colspan='5' style='padding:0 8px 4px 8px; font-size:11.5px;"
+            f" color:#4f5d64'>{escape(c.detail)}<br>reference: {escape(c.reference)}"
+            f"{_traceback(c)}</td></tr>"
         )
     ran = [c for c in report.checks if c.passed is not None]
     failed = [c for c in ran if not c.passed]

@@ -27,9 +27,12 @@ SMALL_GRAPH = 40
 def band_layout(order: Sequence[int], width: int, per_row: int = 60) -> np.ndarray:
     """Positions ``(n, 2)`` for vertices listed in ``order``, in rows of ``per_row``.
 
-    Within a row, consecutive vertices step right and cycle through ``width`` heights so that
-    neighbours within the band do not overlap; rows go downward, alternating direction (a
-    boustrophedon), so that the last vertex of a row sits above the first of the next.
+    Within a row, consecutive vertices step right and cycle through ``width`` heights on a
+    convex arc (``k^2 / (width - 1)``, not evenly spaced: evenly spaced heights put every third
+    vertex of a reach-2 chain on the edge between its neighbours, hiding that edge), so that
+    neighbours within the band neither overlap nor hide an edge; rows go downward, alternating
+    direction (a boustrophedon), so that the last vertex of a row sits above the first of the
+    next.
     """
     n = len(order)
     pos = np.zeros((n, 2))
@@ -39,7 +42,7 @@ def band_layout(order: Sequence[int], width: int, per_row: int = 60) -> np.ndarr
     col = np.where(row % 2 == 0, col, per_row - 1 - col)
     height = width + 1.5
     pos[np.asarray(order, dtype=int), 0] = col
-    pos[np.asarray(order, dtype=int), 1] = -row * height - (rank % width)
+    pos[np.asarray(order, dtype=int), 1] = -row * height - (rank % width) ** 2 / max(width - 1, 1)
     return pos
 
 

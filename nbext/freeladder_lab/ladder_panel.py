@@ -68,7 +68,7 @@ class LadderPanel(widgets.VBox):
         self.rung_figure = bq.Figure(
             marks=[self.rungs, self.exact_rungs, self.degeneracy, self.exact_labels],
             axes=[ay],
-            title="lowest levels: free spectrum (solid, left) | exact diagonalization (dashed)",
+            title="free spectrum (solid, left) | exact diag. (dashed)",
             fig_margin={"top": 36, "bottom": 12, "left": 58, "right": 8},
             layout=widgets.Layout(width="100%", height="360px"),
             title_style={"font-size": "13px"},

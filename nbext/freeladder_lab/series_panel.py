@@ -101,7 +101,7 @@ def order_view(a: fl.Analysis, s: int, page: int, listed: bool = True) -> OrderV
 def _products_html(step: fl.ChargeStep, page: int) -> str:
     s = step.order
     if step.count <= LATEX_PRODUCTS:
-        body = step.latex(LATEX_PRODUCTS)
+        body = step.latex(LATEX_PRODUCTS, letters_per_line=18)
         sign = "" if s % 2 == 0 else "-"
         power = "" if s == 0 else ("u" if s == 1 else f"u^{{{s}}}")
         return f"$${sign}{power}\\,{body}$$" if s else f"$${body}$$"

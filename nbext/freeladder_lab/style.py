@@ -13,6 +13,7 @@ __all__ = [
     "ACCENT",
     "INK",
     "MUTED",
+    "ROOT_CLASS",
     "SECOND",
     "TICKS",
     "WARN",
@@ -22,6 +23,7 @@ __all__ = [
     "number_text",
     "section",
     "status_words",
+    "text_style",
 ]
 
 INK = "#23313a"  # text and edges
@@ -46,6 +48,19 @@ def section(number: int, title: str, hint: str) -> widgets.HTML:
         f'<div style="{style}">{number}&#8195;{escape(title)}'
         f'<span style="font-weight:400; font-size:13px; color:#4f5d64;">'
         f"&#8195;{escape(hint)}</span></div>"
+    )
+
+
+#: CSS class of the Workbench's outer box; :func:`text_style` is scoped to it.
+ROOT_CLASS = "freeladder-workbench"
+
+
+def text_style() -> widgets.HTML:
+    """A style rule for the Workbench's text: ipywidgets gives every HTML widget the line
+    height of one input row (28 px), which spaces wrapped paragraphs and tables twice apart."""
+    return widgets.HTML(
+        f"<style>.{ROOT_CLASS} .widget-html-content {{ line-height: 1.4; }}</style>",
+        layout=widgets.Layout(height="0px", margin="0"),
     )
 
 

@@ -38,7 +38,7 @@ from .input_panel import InputPanel
 from .ladder_panel import LadderPanel
 from .roots_panel import RootsPanel
 from .series_panel import SeriesPanel
-from .style import ACCENT, INK, WARN, escape, section
+from .style import ACCENT, INK, ROOT_CLASS, WARN, escape, section, text_style
 from .verdict_panel import VerdictPanel
 from .worker import Worker
 
@@ -175,6 +175,8 @@ class Workbench(widgets.VBox):
             ],
             layout=widgets.Layout(width="100%", max_width="1280px"),
         )
+        self.add_class(ROOT_CLASS)
+        self.children = (text_style(), *self.children)
         if isinstance(model, str):
             self.set_text(model)
         elif model is not None:
