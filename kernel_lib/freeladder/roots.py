@@ -58,11 +58,15 @@ Extended range.  Disordered chains have exponentially small quasi-energies, so t
 roots y can lie far beyond 1e308.  Evaluation points are kept as a float64 mantissa and an
 int64 power of two, and so are the brackets; midpoints of wide brackets are geometric (exact
 in the exponent), Laguerre steps relative.  A point is evaluated by the plain float64 ratio
-loop when it and everything in that loop stay provably inside the float64 range: the loop
-records, per point, the largest ``|s_k|`` and the largest ``|1 / r_k|``; if
-``max |s| < 2**1000`` and ``max |1/r|**B < 2**962`` (B the largest back-reach) no product
-overflowed, and a product that underflowed stood for an ``s_k`` below ``2**-60``, which
-leaves ``r_k = 1 - s_k`` exact to rounding.  Any other point (and every point beyond
+loop when it and everything in that loop stay provably inside the float64 range.  An
+overflow makes some ``s_k`` infinite, ``1 / r_k = -0`` and from there on ``Lt`` NaN, so a
+finite ``Gt`` and ``Ht`` at the end show that nothing overflowed; and with ``|1 / r_k| <=
+2**256`` (the zero-ratio device) a product that underflowed, times at most 3 further
+factors, stood for an ``s_k`` below ``2**-254``, which leaves ``r_k = 1 - s_k`` exact to
+rounding.  For back-reach B > 3 (and for counts without derivatives) the loop records per
+point the largest ``|s_k|`` and ``|1 / r_k|`` instead, and requires ``max |s| < 2**1000``
+and ``max |1/r|**B < 2**962`` (then an underflowed product stood for ``s_k < 2**-60``).
+Any other point (and every point beyond
 ``2**990``) is evaluated again on the linear recurrence for ``P_k`` itself in block floating
 point: each ``P_k`` as a mantissa in ``[2**-128, 2**128)`` times ``2**(256 e)``, so a sum of two
 terms whose block exponents differ by 2 or more is the larger one to within ``2**-256``.
@@ -163,7 +167,8 @@ def _block(
     """One float64 pass over the chain for the points of block ``b`` of ``x``.
 
     Writes the count, ``Gt = y P'/P``, ``Ht = Gt**2 - y**2 P''/P`` (zero unless ``deriv``),
-    and the largest ``|s_k|`` and ``|1 / r_k|`` (the range check, see the module notes).
+    and the largest ``|s_k|`` and ``|1 / r_k|`` (the range check, see the module notes; not
+    tracked, left 0, with ``deriv`` and back-reach at most 3).
     """
     n = x.size
     m = w.size
@@ -176,6 +181,9 @@ def _block(
     logd = np.zeros((ring + 1, _BLOCK))  # Lt_{k-1} ... Lt_{k-ring-1}, as a ring
     curv = np.zeros((ring + 1, _BLOCK))  # the same for Qt
     s = np.empty(_BLOCK)
+    tmp_l = np.empty(_BLOCK)
+    tmp_q = np.empty(_BLOCK)
+    track = ring > 3 or not deriv
     negative = np.zeros(_BLOCK)
     big_s = np.zeros(_BLOCK)
     big_inv = np.zeros(_BLOCK)
@@ -203,13 +211,17 @@ def _block(
                 negative[j] += 1.0 if r < 0.0 else 0.0
                 inv = 1.0 / r
                 out[j] = inv
-                a_s, a_inv = abs(sj), abs(inv)
-                big_s[j] = a_s if a_s > big_s[j] else big_s[j]  # inf sticks; NaN follows inf
-                big_inv[j] = a_inv if a_inv > big_inv[j] else big_inv[j]
                 lo = l_old[j]
-                qo = q_old[j]
-                l_new[j] = (l_prev[j] - sj * (1.0 + lo)) * inv
-                q_new[j] = (q_prev[j] - sj * (2.0 * lo + qo)) * inv
+                tmp_l[j] = (l_prev[j] - sj * (1.0 + lo)) * inv
+                tmp_q[j] = (q_prev[j] - sj * (2.0 * lo + q_old[j])) * inv
+            if track:
+                for j in range(_BLOCK):
+                    a_s, a_inv = abs(s[j]), abs(out[j])
+                    big_s[j] = a_s if a_s > big_s[j] else big_s[j]  # inf sticks; NaN follows inf
+                    big_inv[j] = a_inv if a_inv > big_inv[j] else big_inv[j]
+            for j in range(_BLOCK):
+                l_new[j] = tmp_l[j]
+                q_new[j] = tmp_q[j]
         else:
             for j in range(_BLOCK):
                 sj = s[j]
@@ -529,14 +541,27 @@ def chain_root_count(n_terms: int, reach: Any) -> int:
     if np.ndim(reach) == 0:
         p = _check_reach(reach)
         return (m + p) // (p + 1)
-    back = chain_back(reach, m)
-    start = np.arange(m) - back
+    return int(_greedy(chain_back(reach, m)).size)
+
+
+@njit(cache=True)
+def _greedy_picks(start: np.ndarray) -> np.ndarray:  # pragma: no cover - compiled
+    out = np.empty(start.size, dtype=np.int64)
     count, last = 0, -1
-    for k in range(m):  # one pass; the loop body is trivial
+    for k in range(start.size):
         if start[k] > last:
+            out[count] = k
             count += 1
             last = k
-    return count
+    return out[:count]
+
+
+def _greedy(back: np.ndarray) -> np.ndarray:
+    """Positions of the greedy maximum independent set (see :func:`chain_root_count`)."""
+    p = _fixed_reach(back)
+    if p is not None:
+        return np.arange(0, back.size, p + 1, dtype=np.int64)
+    return _greedy_picks(np.arange(back.size, dtype=np.int64) - back)
 
 
 # -- numbers with a separate power of two -----------------------------------------------------------
@@ -633,8 +658,11 @@ class _Chain:
         if near.size:
             x = np.ldexp(xm[near], xe[near].astype(np.int32))
             c, g, h, s_max, inv_max = self._run_float(x, deriv)
-            with np.errstate(divide="ignore"):
-                risky = ~(s_max < 2.0**1000) | (np.log2(inv_max) * self.ring >= 962.0)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                risky = (
+                    ~(np.isfinite(g) & np.isfinite(h) & (s_max < 2.0**1000))
+                    | (np.log2(inv_max) * self.ring >= 962.0)
+                )
             counts[near], first[near], second[near] = c, g, h
             wide = np.concatenate([wide, near[risky]])
         if wide.size:
@@ -772,15 +800,8 @@ def _log2_root_bound(w: np.ndarray, back: np.ndarray) -> float:
     ``prod y_k = 1 / a_S`` with ``a_S`` (the top coefficient's modulus) at least the weight
     product of the greedy maximum independent set, and every other root exceeds ``1 / C_1``.
     """
-    start = np.arange(w.size) - back
-    total, last, count = 0.0, -1, 0
-    logs = np.log2(w)
-    for k in range(w.size):
-        if start[k] > last:
-            total -= float(logs[k])
-            last = k
-            count += 1
-    return total + (count - 1) * float(np.log2(np.sum(w))) + 2.0
+    picks = _greedy(back)
+    return float(-np.sum(np.log2(w[picks])) + (picks.size - 1) * np.log2(np.sum(w)) + 2.0)
 
 
 def _initial_brackets(chain: _Chain, total: int, want: np.ndarray) -> tuple[_Brackets, int]:
@@ -796,7 +817,7 @@ def _initial_brackets(chain: _Chain, total: int, want: np.ndarray) -> tuple[_Bra
     bound = _log2_root_bound(chain.w, chain.back)
     lm, le = np.full(64, m0[0]), exps
     counts, g_lad, h_lad = chain.evaluate(lm, le, True)
-    sweeps, step = 1, 12
+    sweeps, step = 1, 3
     while counts[-1] < total:
         if le[-1] > bound + 64:
             raise ArithmeticError(
@@ -809,7 +830,8 @@ def _initial_brackets(chain: _Chain, total: int, want: np.ndarray) -> tuple[_Bra
         lm, le = np.concatenate([lm, more_m]), np.concatenate([le, more_e])
         counts = np.concatenate([counts, c_more])
         g_lad, h_lad = np.concatenate([g_lad, g_more]), np.concatenate([h_lad, h_more])
-        sweeps, step = sweeps + 1, step * 4
+        sweeps += 1
+        step = 3 if sweeps < 4 else step * 4
     above = np.searchsorted(counts, want, side="right")  # first ladder point with count > j
     # Start on the side whose count is next to the root, if any (Laguerre needs no more).
     from_lo = counts[above - 1] == want
@@ -870,8 +892,8 @@ def _step(br: _Brackets, act: np.ndarray, j: np.ndarray, total: int, rtol: float
 
     Returns ``(finished, value, estimate, next_point)`` (numbers as (mantissa, exponent)): a
     root is finished when its Laguerre step stays in the bracket and is at most ``rtol``
-    relative, or when its bracket is two ulps wide; ``estimate`` is the step (at least one
-    ulp) or half the bracket.
+    relative, or when its bracket is at most ``rtol`` (or two ulps) wide relative;
+    ``estimate`` is the step (at least one ulp) or half the bracket.
     """
     lm, le, hm, he = br.lm[act], br.le[act], br.hm[act], br.he[act]
     delta = _laguerre(br.c, br.g, br.h, j, total)
@@ -883,7 +905,7 @@ def _step(br: _Brackets, act: np.ndarray, j: np.ndarray, total: int, rtol: float
     on_edge = ok & ~_less(cm, ce, lm, le) & ~_less(hm, he, cm, ce)
     step_done = on_edge & (np.abs(delta) <= rtol)
     wm, we = _difference(hm, he, lm, le)
-    narrow = np.ldexp(wm / hm, np.clip(we - he, -2000, 8).astype(np.int32)) <= 2 * _EPS
+    narrow = np.ldexp(wm / hm, np.clip(we - he, -2000, 8).astype(np.int32)) <= max(rtol, 2 * _EPS)
     finished = step_done | narrow
     mid_m, mid_e = _midpoints(lm, le, hm, he)
     value = (np.where(step_done, cm, mid_m), np.where(step_done, ce, mid_e))
