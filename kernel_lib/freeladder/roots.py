@@ -174,27 +174,28 @@ def _block(
     m = w.size
     start = b * _BLOCK
     size = min(_BLOCK, n - start)
-    xs = np.empty(_BLOCK)
-    for j in range(_BLOCK):
+    lanes = _BLOCK if size > 16 else (size + 3) // 4 * 4  # few points: narrow lanes
+    xs = np.empty(lanes)
+    for j in range(lanes):
         xs[j] = x[start + min(j, size - 1)]
-    inv_ratio = np.ones((ring, _BLOCK))  # 1 / r_{k-1} ... 1 / r_{k-ring}, as a ring
-    logd = np.zeros((ring + 1, _BLOCK))  # Lt_{k-1} ... Lt_{k-ring-1}, as a ring
-    curv = np.zeros((ring + 1, _BLOCK))  # the same for Qt
-    s = np.empty(_BLOCK)
-    tmp_l = np.empty(_BLOCK)
-    tmp_q = np.empty(_BLOCK)
+    inv_ratio = np.ones((ring, lanes))  # 1 / r_{k-1} ... 1 / r_{k-ring}, as a ring
+    logd = np.zeros((ring + 1, lanes))  # Lt_{k-1} ... Lt_{k-ring-1}, as a ring
+    curv = np.zeros((ring + 1, lanes))  # the same for Qt
+    s = np.empty(lanes)
+    tmp_l = np.empty(lanes)
+    tmp_q = np.empty(lanes)
     track = ring > 3 or not deriv
-    negative = np.zeros(_BLOCK)
-    big_s = np.zeros(_BLOCK)
-    big_inv = np.zeros(_BLOCK)
+    negative = np.zeros(lanes)
+    big_s = np.zeros(lanes)
+    big_inv = np.zeros(lanes)
     for k in range(m):
         wk = w[k]
         bk = back[k]
-        for j in range(_BLOCK):
+        for j in range(lanes):
             s[j] = xs[j] * wk
         for i in range(bk):
             row = inv_ratio[(k - 1 - i + ring) % ring]
-            for j in range(_BLOCK):
+            for j in range(lanes):
                 s[j] *= row[j]
         out = inv_ratio[k % ring]
         if deriv:
@@ -204,7 +205,7 @@ def _block(
             q_new = curv[k % (ring + 1)]
             q_prev = curv[(k + ring) % (ring + 1)]
             q_old = curv[(k - bk - 1 + ring + 1) % (ring + 1)]
-            for j in range(_BLOCK):
+            for j in range(lanes):
                 sj = s[j]
                 r = 1.0 - sj
                 r = r if abs(r) >= _TINY else -_TINY
@@ -215,15 +216,15 @@ def _block(
                 tmp_l[j] = (l_prev[j] - sj * (1.0 + lo)) * inv
                 tmp_q[j] = (q_prev[j] - sj * (2.0 * lo + q_old[j])) * inv
             if track:
-                for j in range(_BLOCK):
+                for j in range(lanes):
                     a_s, a_inv = abs(s[j]), abs(out[j])
                     big_s[j] = a_s if a_s > big_s[j] else big_s[j]  # inf sticks; NaN follows inf
                     big_inv[j] = a_inv if a_inv > big_inv[j] else big_inv[j]
-            for j in range(_BLOCK):
+            for j in range(lanes):
                 l_new[j] = tmp_l[j]
                 q_new[j] = tmp_q[j]
         else:
-            for j in range(_BLOCK):
+            for j in range(lanes):
                 sj = s[j]
                 r = 1.0 - sj
                 r = r if abs(r) >= _TINY else -_TINY
@@ -266,17 +267,18 @@ def _block_wide(
     m = wm.size
     start = b * _BLOCK
     size = min(_BLOCK, n - start)
-    ym = np.empty(_BLOCK)
-    ye = np.empty(_BLOCK)
-    for j in range(_BLOCK):
+    lanes = _BLOCK if size > 16 else (size + 3) // 4 * 4  # few points: narrow lanes
+    ym = np.empty(lanes)
+    ye = np.empty(lanes)
+    for j in range(lanes):
         ym[j] = xm[start + min(j, size - 1)]
         ye[j] = xe[start + min(j, size - 1)]
     slots = ring + 1
-    pm = np.ones((slots, _BLOCK))  # P_{k-1} ... P_{k-ring-1}, as a ring (P_{-1} = 1)
-    pe = np.zeros((slots, _BLOCK))
-    logd = np.zeros((slots, _BLOCK))
-    curv = np.zeros((slots, _BLOCK))
-    negative = np.zeros(_BLOCK)
+    pm = np.ones((slots, lanes))  # P_{k-1} ... P_{k-ring-1}, as a ring (P_{-1} = 1)
+    pe = np.zeros((slots, lanes))
+    logd = np.zeros((slots, lanes))
+    curv = np.zeros((slots, lanes))
+    negative = np.zeros(lanes)
     for k in range(m):
         bk = back[k]
         new = k % slots
@@ -284,7 +286,7 @@ def _block_wide(
         old = (k - bk - 1 + slots) % slots
         wmk = wm[k]
         wek = we[k]
-        for j in range(_BLOCK):
+        for j in range(lanes):
             am = pm[prev, j]
             ae = pe[prev, j]
             bm = ym[j] * wmk * pm[old, j]
