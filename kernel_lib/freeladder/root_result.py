@@ -34,7 +34,15 @@ import numpy as np
 
 from .jsonready import json_ready
 
-__all__ = ["RootResult"]
+__all__ = ["BeyondFloatError", "RootResult"]
+
+
+class BeyondFloatError(ArithmeticError, ValueError):
+    """A number that float64 cannot hold was asked for as a float (use its logarithm).
+
+    Both an ``ArithmeticError`` and a ``ValueError``, so that callers that treat "not
+    available" as ``ValueError`` show the message instead of failing.
+    """
 
 
 def _frozen(values: Any, dtype: Any = None) -> np.ndarray:
@@ -119,7 +127,9 @@ class RootResult:
         if exponents.size == 0:
             exponents = np.zeros(values.size, dtype=np.int64)
         if exponents.shape != values.shape or (exponents.size and exponents.dtype.kind not in "iu"):
-            raise ValueError(f"exponents must be integers shaped like values, got {exponents.shape}")
+            raise ValueError(
+                f"exponents must be integers shaped like values, got {exponents.shape}"
+            )
         if np.any(exponents != 0) and np.iscomplexobj(values):
             raise ValueError("exponents are for real roots only")
         set_ = object.__setattr__
@@ -205,9 +215,9 @@ class RootResult:
             N.
         beyond_float : "raise" or "round"
             A quasi-energy outside float64's normal range (below about 2.2e-308 or above
-            1.8e308) raises ``ArithmeticError`` (use :meth:`log_quasi_energies`), or with
-            ``"round"`` is returned rounded (0.0, a subnormal or inf: not a value to divide
-            by or take the logarithm of).
+            1.8e308) raises :class:`BeyondFloatError` (an ``ArithmeticError``; use
+            :meth:`log_quasi_energies`), or with ``"round"`` is returned rounded (0.0, a
+            subnormal or inf: not a value to divide by or take the logarithm of).
         """
         if beyond_float not in ("raise", "round"):
             raise ValueError(f"beyond_float must be 'raise' or 'round', got {beyond_float!r}")
@@ -239,7 +249,7 @@ class RootResult:
         outside = ~np.isfinite(mod) | ((mod < tiny) & (np.abs(x) > 0) & np.isfinite(x))
         if beyond_float == "raise" and np.any(outside & np.isfinite(rel_x)):
             logs = self.log_quasi_energies(n)[0][outside] / np.log(10.0)
-            raise ArithmeticError(
+            raise BeyondFloatError(
                 f"{int(outside.sum())} quasi-energies lie beyond float64's range (e.g. "
                 f"eta = 10^{float(logs[0]):.2f}); log_quasi_energies() gives them as logarithms"
             )

@@ -132,6 +132,7 @@ __all__ = [
     "chain_real_roots",
     "chain_root_count",
     "check_chain_weights",
+    "fixed_reach",
 ]
 
 _TINY = 2.0**-256  # a zero ratio becomes -_TINY
@@ -315,7 +316,9 @@ def _block_wide(
             negative[j] += 1.0 if (cm < 0.0) != (am < 0.0) else 0.0
             if deriv:
                 d = ae - e  # <= 1
-                scale = _BASE if d == 1.0 else (1.0 if d == 0.0 else _INV_BASE if d == -1.0 else 0.0)
+                scale = (
+                    _BASE if d == 1.0 else (1.0 if d == 0.0 else _INV_BASE if d == -1.0 else 0.0)
+                )
                 inv = am / cm * scale
                 inv = max(min(inv, _HUGE), -_HUGE)
                 lo = logd[old, j]
@@ -478,10 +481,10 @@ def chain_back(reach: Any, n_terms: int) -> np.ndarray:
     --------
     >>> chain_back(2, 5).tolist()
     [0, 1, 2, 2, 2]
-    >>> chain_back([0, 1, 1, 3], 4)
+    >>> chain_back([0, 1, 1, 3], 4)  # doctest: +ELLIPSIS
     Traceback (most recent call last):
     ...
-    ValueError: back-reach: k - back[k] must be non-decreasing (the first neighbour of each position may not move backwards), but position 3 reaches back to 0 after position 2 reached back to 1
+    ValueError: back-reach: k - back[k] must be non-decreasing ... position 3 reaches back to 0 ...
     """
     m = int(n_terms)
     if np.ndim(reach) == 0:
@@ -516,8 +519,14 @@ def chain_back(reach: Any, n_terms: int) -> np.ndarray:
     return back
 
 
-def _fixed_reach(back: np.ndarray) -> int | None:
-    """The reach p when ``back == min(p, k)`` for some p >= 1, else None."""
+def fixed_reach(back: np.ndarray) -> int | None:
+    """The reach p when a back-reach array is ``min(p, k)`` for some p >= 1, else None.
+
+    Examples
+    --------
+    >>> fixed_reach(chain_back(3, 10)), fixed_reach(np.array([0, 1, 1, 2]))
+    (3, None)
+    """
     if back.size < 2:
         return 1
     p = int(back.max())
@@ -560,13 +569,13 @@ def _greedy_picks(start: np.ndarray) -> np.ndarray:  # pragma: no cover - compil
 
 def _greedy(back: np.ndarray) -> np.ndarray:
     """Positions of the greedy maximum independent set (see :func:`chain_root_count`)."""
-    p = _fixed_reach(back)
+    p = fixed_reach(back)
     if p is not None:
         return np.arange(0, back.size, p + 1, dtype=np.int64)
     return _greedy_picks(np.arange(back.size, dtype=np.int64) - back)
 
 
-# -- numbers with a separate power of two -----------------------------------------------------------
+# -- numbers with a separate power of two --------------------------------------------------------
 def _normal(m: np.ndarray, e: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """``(m', e')`` with ``m' 2**e' = m 2**e`` and ``m'`` in [0.5, 1) (``np.frexp`` form)."""
     mm, de = np.frexp(m)
@@ -661,9 +670,8 @@ class _Chain:
             x = np.ldexp(xm[near], xe[near].astype(np.int32))
             c, g, h, s_max, inv_max = self._run_float(x, deriv)
             with np.errstate(divide="ignore", invalid="ignore"):
-                risky = (
-                    ~(np.isfinite(g) & np.isfinite(h) & (s_max < 2.0**1000))
-                    | (np.log2(inv_max) * self.ring >= 962.0)
+                risky = ~(np.isfinite(g) & np.isfinite(h) & (s_max < 2.0**1000)) | (
+                    np.log2(inv_max) * self.ring >= 962.0
                 )
             counts[near], first[near], second[near] = c, g, h
             wide = np.concatenate([wide, near[risky]])
@@ -913,7 +921,10 @@ def _step(br: _Brackets, act: np.ndarray, j: np.ndarray, total: int, rtol: float
     value = (np.where(step_done, cm, mid_m), np.where(step_done, ce, mid_e))
     est_step = _normal(np.maximum(np.abs(delta), _EPS) * np.abs(br.em), br.ee)
     half = _normal(0.5 * wm, we)
-    estimate = (np.where(step_done, est_step[0], half[0]), np.where(step_done, est_step[1], half[1]))
+    estimate = (
+        np.where(step_done, est_step[0], half[0]),
+        np.where(step_done, est_step[1], half[1]),
+    )
     nxt = (np.where(inside, cm, mid_m), np.where(inside, ce, mid_e))
     return finished, value, estimate, nxt
 

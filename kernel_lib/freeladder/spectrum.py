@@ -21,6 +21,7 @@ R. J. Baxter, Phys. Lett. A 140, 155 (1989); P. Fendley, J. Phys. A 47, 075001 (
 
 from __future__ import annotations
 
+import dataclasses
 import heapq
 import html
 import math
@@ -37,10 +38,11 @@ from .ed import DENSE_LIMIT
 from .errors import NoTheoremError
 from .frozen import readonly_array
 from .graph import ChainStructure, chain_structure
+from .indifference import indifference_order
 from .jsonready import json_ready
 from .model import Model
 from .polynomial import exclusion_polynomial, sum_rules
-from .root_result import RootResult
+from .root_result import BeyondFloatError, RootResult
 from .verdict import Guarantee, classify, guarantee
 
 __all__ = [
@@ -183,7 +185,8 @@ class SpectrumProvenance:
     theorem, reference : str
         The theorem that applies and where it is published (empty when none applies).
     reach : int or None
-        The reach p of an exclusion chain, else None.
+        The reach p of an exclusion chain, else None (also for a chain of variable reach
+        along an indifference ordering: ``path`` then says so).
     count : int
         Number of quasi-energies of the model (S), also when only the lowest were kept.
     max_error_bound : float
@@ -292,6 +295,11 @@ class FreeSpectrum:
         roots, ``eta_k = y_k^{-1/2} > 0`` (float array).  Otherwise the principal N-th root of
         ``1 / y_k`` (complex array): the set of levels ``{sum_k omega^{s_k} eta_k}`` does not
         depend on which N-th root is taken, since the choices ``s_k`` run over all of them.
+        A quasi-energy below float64's normal range (about 2.2e-308; disordered chains reach
+        1e-1000) is stored rounded (0.0 or a subnormal): its value is in
+        ``log_quasi_energies``, and :attr:`gap` refuses rather than return a rounded gap.
+    log_quasi_energies : ndarray of float
+        ``ln |eta_k|``, exact to rounding for every quasi-energy (also beyond float64).
     error_bounds : ndarray of float
         Per quasi-energy: bound (or estimate, see ``provenance.bounds``) on the distance to
         the nearest N-th root of the exact ``1 / y_k``.
@@ -327,12 +335,17 @@ class FreeSpectrum:
         degeneracy_reason: str,
         complete: bool,
         provenance: SpectrumProvenance,
+        log_quasi_energies: np.ndarray | None = None,
     ) -> None:
-        for arr in (roots_y, quasi_energies, error_bounds):
+        if log_quasi_energies is None:
+            with np.errstate(divide="ignore"):
+                log_quasi_energies = np.log(np.abs(quasi_energies))
+        for arr in (roots_y, quasi_energies, error_bounds, log_quasi_energies):
             arr.setflags(write=False)
         self.__dict__.update(
             roots=roots_y,
             quasi_energies=quasi_energies,
+            log_quasi_energies=log_quasi_energies,
             error_bounds=error_bounds,
             constant=constant,
             states=int(states),
@@ -346,6 +359,7 @@ class FreeSpectrum:
 
     roots: np.ndarray
     quasi_energies: np.ndarray
+    log_quasi_energies: np.ndarray
     error_bounds: np.ndarray
     constant: complex | float
     states: int
@@ -409,13 +423,50 @@ class FreeSpectrum:
         there is one (the bulk gap is then ``2 eta`` of the next mode).  Levels are counted by
         choice, so the gap is zero when a quasi-energy vanishes; the degeneracy
         :attr:`degeneracy` is not a gap.  Needs only the lowest quasi-energies for N = 2.
+
+        Raises
+        ------
+        freeladder.root_result.BeyondFloatError
+            (an ``ArithmeticError`` and a ``ValueError``) When the gap lies below float64's
+            normal range (about 2.2e-308, as in long
+            disordered chains): :attr:`log_gap` gives it, exactly to rounding.  A rounded gap
+            (0.0 or a subnormal) is never returned.
         """
         if self.states == 2 and np.isrealobj(self.quasi_energies):
-            return float(2.0 * np.min(self.quasi_energies)) if len(self) else float("nan")
+            if len(self) == 0:
+                return float("nan")
+            gap = float(2.0 * np.min(self.quasi_energies))
+            if gap < np.finfo(np.float64).tiny and math.isfinite(self.log_gap):
+                raise BeyondFloatError(
+                    f"the gap 2 eta_1 = {_exp_text(self.log_gap)} lies below float64's range; "
+                    f"FreeSpectrum.log_gap = {self.log_gap:.10g} gives its natural logarithm"
+                )
+            return gap
         vals, _ = self._mode_table()
         if len(self) == 0:
             return float("nan")
         return float(np.min(vals[:, 1].real - vals[:, 0].real))
+
+    @property
+    def log_gap(self) -> float:
+        """Natural logarithm of :attr:`gap`, exact to rounding also where the gap itself lies
+        below float64 (N = 2: ``ln 2 + min_k ln eta_k``)."""
+        if len(self) == 0:
+            return float("nan")
+        if self.states == 2 and np.isrealobj(self.quasi_energies):
+            return float(math.log(2.0) + np.min(self.log_quasi_energies))
+        with np.errstate(divide="ignore"):
+            return float(np.log(self.gap))
+
+    def _eta_text(self, count: int) -> str:
+        """The first ``count`` quasi-energies as text (from the logarithm beyond float64)."""
+        tiny = np.finfo(np.float64).tiny
+        parts = []
+        shown = zip(self.quasi_energies[:count], self.log_quasi_energies[:count], strict=True)
+        for e, log_e in shown:
+            small = abs(e) < tiny and math.isfinite(log_e)
+            parts.append(_exp_text(float(log_e)) if small else _fmt(e))
+        return ", ".join(parts) + (", ..." if len(self) > count else "")
 
     def levels(self, k: int | None = 10) -> LevelTable:
         """The ``k`` lowest many-body levels in increasing order of their real part.
@@ -546,11 +597,10 @@ class FreeSpectrum:
         return f"NOT GUARANTEED (these numbers need not be the spectrum): {reason}"
 
     def __repr__(self) -> str:
-        eta = ", ".join(_fmt(e) for e in self.quasi_energies[:6])
-        more = ", ..." if len(self) > 6 else ""
+        eta = self._eta_text(6)
         mark = "" if self.guaranteed else "NOT GUARANTEED, "
         return (
-            f"FreeSpectrum({mark}N={self.states}, {len(self)} quasi-energies [{eta}{more}], "
+            f"FreeSpectrum({mark}N={self.states}, {len(self)} quasi-energies [{eta}], "
             f"method={self.provenance.method}, "
             f"max error {self.provenance.max_error_bound:.2g}"
             f" ({'proved bound' if self.provenance.finder.get('rigorous') else 'estimate'}))"
@@ -561,7 +611,9 @@ class FreeSpectrum:
         rows = []
         if self.complete:
             rows.append(("ground energy", _fmt(self.ground_energy)))
-        rows.append(("gap", f"{self.gap:.6g}"))
+        log_gap = self.log_gap
+        small = math.isfinite(log_gap) and log_gap < math.log(np.finfo(np.float64).tiny)
+        rows.append(("gap", _exp_text(log_gap) if small else f"{self.gap:.6g}"))
         rows.append(
             (
                 "degeneracy",
@@ -581,8 +633,7 @@ class FreeSpectrum:
         return rows
 
     def __str__(self) -> str:
-        eta = ", ".join(_fmt(e) for e in self.quasi_energies[:12])
-        more = ", ..." if len(self) > 12 else ""
+        eta, more = self._eta_text(12), ""
         lines = []
         if not self.guaranteed:
             lines.append(self._warning())
@@ -598,8 +649,7 @@ class FreeSpectrum:
             f"<tr><th style='text-align:left'>{html.escape(a)}</th><td>{html.escape(b)}</td></tr>"
             for a, b in self._summary_rows()
         )
-        eta = ", ".join(html.escape(_fmt(e)) for e in self.quasi_energies[:12])
-        more = ", ..." if len(self) > 12 else ""
+        eta, more = html.escape(self._eta_text(12)), ""
         warning = ""
         if not self.guaranteed:
             warning = (
@@ -615,7 +665,9 @@ class FreeSpectrum:
         """JSON-ready fields: quasi-energies, error bounds, roots, ground energy, gap (when
         defined), degeneracy, guaranteed (with the NOT GUARANTEED warning when not), provenance.
         """
-        gap = self.gap if len(self) else None
+        log_gap = self.log_gap
+        small = math.isfinite(log_gap) and log_gap < math.log(np.finfo(np.float64).tiny)
+        gap = self.gap if len(self) and not small else None
         return json_ready(
             {
                 "guaranteed": self.guaranteed,
@@ -623,12 +675,14 @@ class FreeSpectrum:
                 "states": self.states,
                 "sites": self.sites,
                 "quasi_energies": self.quasi_energies,
+                "log_quasi_energies": self.log_quasi_energies,
                 "error_bounds": self.error_bounds,
                 "roots": self.roots,
                 "constant": self.constant,
                 "complete": self.complete,
                 "ground_energy": self.ground_energy if self.complete else None,
                 "gap": gap,
+                "log_gap": log_gap if len(self) else None,
                 "degeneracy": self.degeneracy,
                 "degeneracy_reason": self.degeneracy_reason,
                 "provenance": self.provenance,
@@ -690,6 +744,18 @@ def _maybe_real(values: np.ndarray) -> np.ndarray:
 def _scalar(v: Any) -> complex | float:
     v = complex(v)
     return v.real if v.imag == 0 else v
+
+
+def _exp_text(log_value: float) -> str:
+    """``exp(log_value)`` as decimal text, also far outside float64 (e.g. ``1.234e-400``)."""
+    if not math.isfinite(log_value):
+        return "0" if log_value < 0 else "inf"
+    ten = log_value / math.log(10.0)
+    exponent = math.floor(ten)
+    mantissa = 10.0 ** (ten - exponent)
+    if mantissa >= 9.999995:
+        mantissa, exponent = mantissa / 10.0, exponent + 1
+    return f"{mantissa:.6g}e{exponent:+d}"
 
 
 def _fmt(v: Any) -> str:
@@ -775,26 +841,31 @@ def free_spectrum(
     start_time = time.perf_counter()
     n = m.states
     chain = chain_structure(m)
-    if chain is None and method == "fast":
+    if chain is None and method == "fast" and _ordering(m, couplings) is None:
         raise ValueError(
             "method='fast' evaluates the exclusion-chain recurrence, and this model's terms do "
-            "not form an exclusion chain; use method='auto' or 'certified'"
+            "not form an exclusion chain (nor, for N = 2 with real couplings, an indifference "
+            "ordering); use method='auto' or 'certified'"
         )
     promise = guarantee(m)
     if not promise.proven and not unproven:
         raise NoTheoremError(_refusal_message(m, promise))
     found = _find_roots(m, couplings, chain, method, lowest)
     prov = root_methods.provenance(found)
-    eta, eta_err = found.quasi_energies(n)  # scales back without overflow
+    if found.details.get("ordering"):
+        prov["path"] += f" along {found.details['ordering']}"
+    # scaled back without overflow; beyond float64 rounded here, exact in the logarithms
+    eta, eta_err = found.quasi_energies(n, beyond_float="round")
+    log_eta = found.log_quasi_energies(n)[0]
     true = found.true_values()[0]
     with np.errstate(divide="ignore", over="ignore", under="ignore"):
         y_vals = np.asarray(true if found.variable == "y" else 1.0 / true, dtype=complex)
-    sort = np.argsort(np.abs(eta), kind="stable")
-    eta, eta_err, y_vals = eta[sort], eta_err[sort], y_vals[sort]
+    sort = np.argsort(log_eta, kind="stable")
+    eta, eta_err, y_vals, log_eta = eta[sort], eta_err[sort], y_vals[sort], log_eta[sort]
     count = int(prov.pop("count", len(eta)))
     if lowest is not None:
         keep = int(lowest)
-        eta, eta_err, y_vals = eta[:keep], eta_err[:keep], y_vals[:keep]
+        eta, eta_err, y_vals, log_eta = eta[:keep], eta_err[:keep], y_vals[:keep], log_eta[:keep]
     complete = len(eta) == count
     degeneracy, reason = _degeneracy(m, promise.proven, count)
     provenance = SpectrumProvenance(
@@ -814,7 +885,17 @@ def free_spectrum(
     )
     constant = _scalar(m.constant) if m.constant != 0 else 0.0
     return FreeSpectrum(
-        y_vals, eta, eta_err, constant, n, len(m.sites), degeneracy, reason, complete, provenance
+        y_vals,
+        eta,
+        eta_err,
+        constant,
+        n,
+        len(m.sites),
+        degeneracy,
+        reason,
+        complete,
+        provenance,
+        log_eta,
     )
 
 
@@ -863,15 +944,51 @@ def _find_roots(
     method: str,
     lowest: int | None,
 ) -> RootResult:
-    """The roots of P by the method the table (:mod:`freeladder.root_methods`) chooses."""
+    """The roots of P by the method the table (:mod:`freeladder.root_methods`) chooses.
+
+    An N = 2 model with real couplings that is not a fixed-reach chain but has an
+    indifference ordering (:func:`_ordering`) takes the real chain path with per-position
+    reach; ``details["ordering"]`` then says so.  Certified requests for it take the exact
+    polynomial (the chain certificate handles fixed reach only).
+    """
     n = m.states
+    ordering = None if chain is not None else _ordering(m, couplings)
     if method == "certified" and chain is not None and not (n == 2 and np.isrealobj(couplings)):
         found = root_methods.solve_general(m)
     elif chain is not None:
         found = root_methods.solve_chain(couplings[chain.order], chain.reach, n, method, lowest)
+    elif ordering is not None and method != "certified":
+        order, back = ordering
+        found = root_methods.solve_chain(couplings[order], back, n, method, lowest)
+        text = "an indifference ordering of the frustration graph (per-position reach)"
+        found = dataclasses.replace(found, details=dict(found.details, ordering=text))
     else:
         found = root_methods.solve_general(m)
     return found
+
+
+def _ordering(m: Model, couplings: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
+    """``(term order, back-reach)`` of an indifference ordering, for N = 2 real couplings.
+
+    From the verdict's components when each carries an ordering (concatenated: back-reach 0
+    at each component's start), else :func:`freeladder.indifference.indifference_order`
+    (cached with the model's strings).  None for other models.
+    """
+    if m.states != 2 or not np.isrealobj(couplings) or len(m) == 0:
+        return None
+    comps = classify(m).components
+    if all(c.indifference is not None for c in comps):
+        parts = [c.indifference for c in comps if c.indifference is not None]
+    else:
+        whole = indifference_order(m)
+        if whole is None:
+            return None
+        parts = [whole]
+    order = np.concatenate([np.asarray(p.order, dtype=np.int64) for p in parts])
+    back = np.concatenate(
+        [np.arange(len(p.order)) - np.asarray(p.first_neighbour, dtype=np.int64) for p in parts]
+    )
+    return order, back
 
 
 def _degeneracy(m: Model, proven: bool, count: int) -> tuple[int | None, str]:
