@@ -442,6 +442,12 @@ def _check_weights(weights: Any) -> np.ndarray:
 
 
 def _check_reach(reach: Any) -> int:
+    if np.ndim(reach) != 0:
+        raise ValueError(
+            "reach must be an integer >= 1 here; a back-reach array (variable reach) is taken "
+            "by chain_real_roots, chain_count_below, chain_root_count and "
+            "chain_inverse_power_sums, and certified through the exact polynomial"
+        )
     if isinstance(reach, bool) or int(reach) != reach or int(reach) < 1:
         raise ValueError(f"reach must be an integer >= 1, got {reach!r}")
     return int(reach)

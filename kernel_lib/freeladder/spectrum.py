@@ -43,6 +43,7 @@ from .jsonready import json_ready
 from .model import Model
 from .polynomial import exclusion_polynomial, sum_rules
 from .root_result import BeyondFloatError, RootResult
+from .roots import chain_inverse_power_sums
 from .verdict import Guarantee, classify, guarantee
 
 __all__ = [
@@ -841,7 +842,8 @@ def free_spectrum(
     start_time = time.perf_counter()
     n = m.states
     chain = chain_structure(m)
-    if chain is None and method == "fast" and _ordering(m, couplings) is None:
+    ordering = None if chain is not None else _ordering(m, couplings)
+    if chain is None and method == "fast" and ordering is None:
         raise ValueError(
             "method='fast' evaluates the exclusion-chain recurrence, and this model's terms do "
             "not form an exclusion chain (nor, for N = 2 with real couplings, an indifference "
@@ -850,7 +852,7 @@ def free_spectrum(
     promise = guarantee(m)
     if not promise.proven and not unproven:
         raise NoTheoremError(_refusal_message(m, promise))
-    found = _find_roots(m, couplings, chain, method, lowest)
+    found = _find_roots(m, couplings, chain, ordering, method, lowest)
     prov = root_methods.provenance(found)
     if found.details.get("ordering"):
         prov["path"] += f" along {found.details['ordering']}"
@@ -879,7 +881,7 @@ def free_spectrum(
         reach=None if chain is None else int(chain.reach),
         count=count,
         max_error_bound=float(np.max(eta_err)) if len(eta_err) else 0.0,
-        sum_rules=_residuals(m, eta) if complete else None,
+        sum_rules=_residuals(m, eta, couplings, ordering) if complete else None,
         seconds=time.perf_counter() - start_time,
         finder=prov,
     )
@@ -899,8 +901,29 @@ def free_spectrum(
     )
 
 
-def _residuals(m: Model, eta: np.ndarray) -> dict[str, float]:
-    """Relative residuals of the two power-sum rules (:func:`freeladder.polynomial.sum_rules`)."""
+def _residuals(
+    m: Model,
+    eta: np.ndarray,
+    couplings: np.ndarray,
+    ordering: tuple[np.ndarray, np.ndarray] | None,
+) -> dict[str, float]:
+    """Relative residuals of the two power-sum rules (:func:`freeladder.polynomial.sum_rules`).
+
+    Along an indifference ordering the targets ``C_1`` and ``C_1**2 - 2 C_2`` come in O(M)
+    from :func:`freeladder.roots.chain_inverse_power_sums` (the exact polynomial of a large
+    non-chain graph is not built), scaled like ``sum_rules`` so that nothing overflows.
+    """
+    if ordering is not None:
+        c = couplings[ordering[0]]
+        e = int(np.frexp(np.max(np.abs(c)))[1])
+        targets = chain_inverse_power_sums(np.ldexp(c, -e) ** 2, ordering[1])
+        with np.errstate(over="ignore", under="ignore"):
+            x = np.ldexp(eta, -e) ** 2
+        out = []
+        for j, want in ((1, targets[0]), (2, targets[1])):
+            size = max(float(np.sum(np.abs(x) ** j)), abs(want), 1e-300)
+            out.append(abs(float(np.sum(x**j)) - want) / size)
+        return {"sum eta^N": out[0], "sum eta^2N": out[1]}
     first, second = sum_rules(exclusion_polynomial(m), eta).residuals
     return {"sum eta^N": float(first), "sum eta^2N": float(second)}
 
@@ -941,6 +964,7 @@ def _find_roots(
     m: Model,
     couplings: np.ndarray,
     chain: ChainStructure | None,
+    ordering: tuple[np.ndarray, np.ndarray] | None,
     method: str,
     lowest: int | None,
 ) -> RootResult:
@@ -952,7 +976,6 @@ def _find_roots(
     polynomial (the chain certificate handles fixed reach only).
     """
     n = m.states
-    ordering = None if chain is not None else _ordering(m, couplings)
     if method == "certified" and chain is not None and not (n == 2 and np.isrealobj(couplings)):
         found = root_methods.solve_general(m)
     elif chain is not None:
@@ -970,24 +993,17 @@ def _find_roots(
 def _ordering(m: Model, couplings: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
     """``(term order, back-reach)`` of an indifference ordering, for N = 2 real couplings.
 
-    From the verdict's components when each carries an ordering (concatenated: back-reach 0
-    at each component's start), else :func:`freeladder.indifference.indifference_order`
-    (cached with the model's strings).  None for other models.
+    From :func:`freeladder.indifference.indifference_order` (cached with the model's strings;
+    the verdict's components carry the same orderings for N > 2): components one after
+    another, back-reach 0 at each component's start.  None for other models.
     """
     if m.states != 2 or not np.isrealobj(couplings) or len(m) == 0:
         return None
-    comps = classify(m).components
-    if all(c.indifference is not None for c in comps):
-        parts = [c.indifference for c in comps if c.indifference is not None]
-    else:
-        whole = indifference_order(m)
-        if whole is None:
-            return None
-        parts = [whole]
-    order = np.concatenate([np.asarray(p.order, dtype=np.int64) for p in parts])
-    back = np.concatenate(
-        [np.arange(len(p.order)) - np.asarray(p.first_neighbour, dtype=np.int64) for p in parts]
-    )
+    found = indifference_order(m)
+    if found is None:
+        return None
+    order = np.asarray(found.order, dtype=np.int64)
+    back = np.arange(order.size) - np.asarray(found.first_neighbour, dtype=np.int64)
     return order, back
 
 
