@@ -641,8 +641,12 @@ def _laguerre(
         upward = n / (g - disc)
         downward = n / (g + disc)
     # A point just above root j - 1 has a tiny upward step too (it escapes slowly), so a step
-    # is offered only from a point nearer its target: G < 0 below a root, G > 0 above it.
-    delta = np.where((c == j) & (g < 0), upward, np.where((c == j + 1) & (g > 0), downward, np.nan))
+    # is offered from a point nearer its target (G < 0 below a root, G > 0 above it), or when
+    # it is long (an eighth of the point or more: far from an isolated root, where bisection
+    # in the exponent is slow).  Either way it never passes the root.
+    up = (c == j) & ((g < 0) | (upward <= -0.125))
+    down = (c == j + 1) & ((g > 0) | (downward >= 0.125))
+    delta = np.where(up, upward, np.where(down, downward, np.nan))
     return np.where(delta < 1.0, delta, np.nan)
 
 

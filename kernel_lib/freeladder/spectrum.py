@@ -918,7 +918,7 @@ def _residuals(
         e = int(np.frexp(np.max(np.abs(c)))[1])
         targets = chain_inverse_power_sums(np.ldexp(c, -e) ** 2, ordering[1])
         with np.errstate(over="ignore", under="ignore"):
-            x = np.ldexp(eta, -e) ** 2
+            x = np.ldexp(np.abs(eta), -e) ** 2  # N = 2, real positive roots: eta**2 = |eta|**2
         out = []
         for j, want in ((1, targets[0]), (2, targets[1])):
             size = max(float(np.sum(np.abs(x) ** j)), abs(want), 1e-300)
