@@ -983,7 +983,9 @@ def chain_real_roots(
         Return only the ``lowest`` smallest quasi-energies, i.e. the ``lowest`` LARGEST roots y
         (eta = y**(-1/N)).  Each sweep then costs O(M * lowest).
     rtol : float
-        Relative size of the last Laguerre step at which a root counts as converged.
+        Relative size of the last Laguerre step (or of the bracket) at which a root counts as
+        converged; at least ``sqrt(M) eps``, the rounding accumulated along the chain, below
+        which steps are noise.
     max_sweeps : int
         Give up (``converged=False``, best brackets returned) after this many passes.
     progress : callable, optional
@@ -1030,12 +1032,16 @@ def chain_real_roots(
     want = _wanted(total, lowest)
     n_want = want.size
     br, sweeps = _initial_brackets(chain, total, want)
+    # rounding along the chain: about sqrt(M) eps relative (see the module notes); steps
+    # below it are noise, so it is also the least tolerance
+    floor = max(_EPS, float(np.sqrt(w.size)) * _EPS)
+    tol = max(float(rtol), floor)
     rm, re_ = np.full(n_want, np.nan), np.zeros(n_want, dtype=np.int64)
     em, ee = np.full(n_want, np.inf), np.zeros(n_want, dtype=np.int64)
     done = np.zeros(n_want, dtype=bool)
     act = np.arange(n_want)
     while True:
-        finished, value, estimate, nxt = _step(br, act, want[act], total, rtol)
+        finished, value, estimate, nxt = _step(br, act, want[act], total, tol)
         rm[act], re_[act] = value
         em[act], ee[act] = estimate
         done[act] = finished
@@ -1055,8 +1061,6 @@ def chain_real_roots(
         rm[left], re_[left] = mid
         wm, we = _difference(br.hm[left], br.he[left], br.lm[left], br.le[left])
         em[left], ee[left] = _normal(0.5 * wm, we)
-    # rounding along the chain: about sqrt(M) eps relative (see the module notes)
-    floor = max(_EPS, float(np.sqrt(w.size)) * _EPS)
     rel = np.ldexp(em / rm, np.clip(ee - re_, -2000, 2000).astype(np.int32))
     raise_ = ~(rel >= floor)
     em, ee = np.where(raise_, rm * floor, em), np.where(raise_, re_, ee)
