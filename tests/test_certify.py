@@ -163,3 +163,10 @@ def test_failed_certificate_is_an_error_not_a_pass(monkeypatch):
     monkeypatch.setattr(rm, "certify_chain_roots", narrow)
     with pytest.raises(ValueError, match="could not be certified"):
         solve_chain(np.random.default_rng(1).uniform(0.3, 1.7, 30), 1, 2, "certified")
+
+
+def test_back_reach_arrays_are_refused_with_the_route_to_take():
+    # The chain certificate is written for fixed reach; a variable-reach chain (a back-reach
+    # array) is certified through the exact polynomial instead (root_methods, spectrum).
+    with pytest.raises(ValueError, match="back-reach array.*exact polynomial"):
+        certify_chain_roots([1.0, 1.0, 1.0], np.array([0, 1, 1]), [0.5])

@@ -17,10 +17,12 @@ from freeladder.certify import certified_roots, certify_chain_roots
 from freeladder.root_methods import ROOT_METHODS, choose_method, solve_chain, solve_general
 from freeladder.root_result import RootResult
 from freeladder.roots import (
+    chain_back,
     chain_count_below,
     chain_inverse_power_sums,
     chain_real_roots,
     chain_root_count,
+    fixed_reach,
 )
 
 
@@ -314,3 +316,278 @@ def test_unconverged_roots_raise_by_default(monkeypatch):
         solve_chain(c, 1, 2)
     found = solve_chain(c, 1, 2, allow_unconverged=True)
     assert not found.converged and "not converged" in found.message
+
+
+# -- roots beyond float64 ------------------------------------------------------------------------
+
+
+def _mp_count(w: np.ndarray, back: np.ndarray, y: mpmath.mpf) -> int:
+    """Sign changes along P_k (the linear recurrence) at ``y``, in mpmath (unbounded exponent)."""
+    hist = [mpmath.mpf(1)]  # hist[i] = P_{i-1}
+    changes = 0
+    for k, wk in enumerate(w):
+        new = hist[-1] - y * mpmath.mpf(float(wk)) * hist[k - int(back[k])]
+        changes += int((new < 0) != (hist[-1] < 0) or new == 0)
+        hist.append(new)
+    return changes
+
+
+def _mp_value(w: np.ndarray, back: np.ndarray, y: mpmath.mpf) -> mpmath.mpf:
+    hist = [mpmath.mpf(1)]
+    for k, wk in enumerate(w):
+        hist.append(hist[-1] - y * mpmath.mpf(float(wk)) * hist[k - int(back[k])])
+    return hist[-1]
+
+
+def mpmath_chain_roots(w: np.ndarray, back: np.ndarray, bits: int = 160) -> list[mpmath.mpf]:
+    """Every root by bisection in mpmath at ``bits`` bits, independent of freeladder.roots.
+
+    Brackets come from mpmath counts alone (powers of 2 from below 1 / sum w until the count
+    is the degree), then geometric and arithmetic bisection to 2**-120 relative.  Each final
+    bracket is checked to hold a sign change of P_M (so it holds a root whatever the count
+    means); the count gives the root's index (proved for reach 1, the tested property of the
+    module otherwise).
+    """
+    with mpmath.workprec(bits):
+        total = _mp_count(w, back, mpmath.mpf(2) ** 100000)
+        lows = [mpmath.mpf(1) / (2 * mpmath.mpf(float(np.sum(w))))]
+        counts = [_mp_count(w, back, lows[0])]
+        assert counts[0] == 0
+        while counts[-1] < total:
+            lows.append(lows[-1] * 2**64)
+            counts.append(_mp_count(w, back, lows[-1]))
+        roots = []
+        for j in range(total):
+            i = next(i for i, c in enumerate(counts) if c > j)
+            lo, hi = lows[i - 1], lows[i]
+            while hi - lo > hi * mpmath.mpf(2) ** -120:
+                mid = mpmath.sqrt(lo * hi) if hi > 2 * lo else (lo + hi) / 2
+                if _mp_count(w, back, mid) > j:
+                    hi = mid
+                else:
+                    lo = mid
+            assert _mp_value(w, back, lo) * _mp_value(w, back, hi) < 0
+            roots.append((lo + hi) / 2)
+        return roots
+
+
+def weak_field_chain(m: int, reach: int, weak: float, seed: int) -> np.ndarray:
+    """Couplings with every (reach + 1)-th term scaled by ``weak``: an edge mode whose
+    quasi-energy is about ``weak ** (m / (reach + 1))`` (common practice for localised modes)."""
+    rng = np.random.default_rng(seed)
+    c = rng.uniform(0.5, 2.0, m)
+    c[:: reach + 1] *= weak
+    return c
+
+
+@pytest.mark.parametrize(("reach", "m", "weak"), [(1, 41, 1e-50), (2, 40, 1e-75)])
+def test_roots_beyond_float_against_mpmath_bisection(reach, m, weak):
+    # The smallest quasi-energy is about 1e-1000 (the largest root y about 1e2000): the
+    # roots carry a separate power of two and still converge to full relative accuracy.
+    # Reference: mpmath bisection at 160 bits on the linear recurrence (mpmath.mpf has an
+    # unbounded exponent), with a certified sign change in every final bracket.
+    w = weak_field_chain(m, reach, weak, 100 + reach) ** 2
+    r = chain_real_roots(w, reach)
+    assert r.converged and np.any(r.exponents != 0) and "mantissas" in r.summary()
+    ref = mpmath_chain_roots(w, chain_back(reach, m))
+    assert r.count == len(ref) == chain_root_count(m, reach)
+    with mpmath.workprec(160):
+        got = [
+            mpmath.mpf(float(v)) * mpmath.mpf(2) ** int(e)
+            for v, e in zip(r.values, r.exponents, strict=True)
+        ]
+        rel = [abs(g / x - 1) for g, x in zip(got, ref, strict=True)]
+        assert max(rel) < 4e-15, max(rel)
+        log_eta = [-mpmath.log(x) / 2 for x in ref]
+    assert float(mpmath.log10(ref[-1])) > 1800  # beyond float64 indeed
+    le, le_err = r.log_quasi_energies(2)
+    np.testing.assert_allclose(le, [float(v) for v in log_eta], rtol=1e-15, atol=4e-15)
+    assert np.all(le_err < 1e-14)
+    with pytest.raises(ArithmeticError, match="log_quasi_energies"):
+        r.quasi_energies(2)
+    rounded, _ = r.quasi_energies(2, beyond_float="round")
+    assert rounded[-1] == 0.0 and np.all(rounded[:-1] > 0)
+    json.dumps(r.to_dict(), allow_nan=False)
+
+
+def test_tiny_gap_against_lapack_bisection():
+    # Reach 1 with weak fields: eta ~ 1e-200, still a float64.  LAPACK's bisection (dstebz via
+    # scipy.linalg.eigvalsh_tridiagonal, select="i") on the zero-diagonal tridiagonal matrix
+    # with off-diagonals c resolves it with the absolute tolerance 2 * tiny (the LAPACK
+    # documentation's advice for small eigenvalues); the default tolerance returns ~1e-16.
+    rng = np.random.default_rng(3)
+    m = 601
+    c = np.where(np.arange(m) % 2 == 0, rng.uniform(0.1, 0.5, m), rng.uniform(0.8, 1.7, m))
+    r = chain_real_roots(c**2, 1, lowest=3)
+    eta = np.sort(np.exp(r.log_quasi_energies(2)[0]))
+    n = m + 1
+    ev = scipy.linalg.eigvalsh_tridiagonal(
+        np.zeros(n), c, select="i", select_range=(n // 2, n // 2 + 2), tol=2 * np.finfo(float).tiny
+    )
+    assert eta[0] < 1e-150
+    np.testing.assert_allclose(eta, np.sort(ev), rtol=5e-14)
+    sp = fl.free_spectrum(fl.exclusion_chain(m, 1, couplings=list(c)), lowest=3)
+    np.testing.assert_allclose(sp.quasi_energies, np.sort(ev), rtol=5e-14)
+    assert sp.gap == pytest.approx(2 * ev.min(), rel=5e-14)
+
+
+def test_free_spectrum_gap_beyond_float_is_a_logarithm_never_zero():
+    c = weak_field_chain(41, 1, 1e-50, 101)
+    ref = mpmath_chain_roots(c**2, chain_back(1, 41))
+    with mpmath.workprec(160):
+        log_gap = float(mpmath.log(2) - mpmath.log(ref[-1]) / 2)
+    sp = fl.free_spectrum(fl.exclusion_chain(41, 1, couplings=list(c)))
+    assert sp.log_gap == pytest.approx(log_gap, rel=1e-15)
+    with pytest.raises(ArithmeticError, match="log_gap"):
+        sp.gap  # noqa: B018
+    with pytest.raises(ValueError, match="below float64"):  # also a ValueError: "not available"
+        sp.gap  # noqa: B018
+    assert sp.quasi_energies[0] == 0.0 and np.isfinite(sp.log_quasi_energies[0])
+    assert "e-1049" in str(sp) or "e-1048" in str(sp)
+    data = json.loads(json.dumps(sp.to_dict(), allow_nan=False))
+    assert data["gap"] is None and data["log_gap"] == pytest.approx(log_gap, rel=1e-15)
+    low = fl.free_spectrum(fl.exclusion_chain(41, 1, couplings=list(c)), lowest=1)
+    assert low.log_gap == pytest.approx(log_gap, rel=1e-15)
+    with pytest.raises(ValueError, match="beyond float64"):
+        fl.free_spectrum(fl.exclusion_chain(41, 1, couplings=list(c)), method="certified")
+
+
+# -- variable reach (back-reach arrays) ----------------------------------------------------------
+
+
+def random_back(m: int, max_back: int, rng: np.random.Generator) -> np.ndarray:
+    """A random back-reach array: first neighbours non-decreasing, back <= max_back, with
+    occasional new components (back 0)."""
+    start = [0]
+    for k in range(1, m):
+        if rng.random() < 0.08:
+            start.append(k)
+        else:
+            start.append(int(rng.integers(max(start[-1], k - max_back), k + 1)))
+    return np.arange(m) - np.array(start)
+
+
+def exact_coefficients_back(weights: np.ndarray, back: np.ndarray) -> list[Fraction]:
+    hist = [[Fraction(1)]]  # hist[i] = P_{i-1}
+    for k, wk in enumerate(weights):
+        a, b = hist[-1], hist[k - int(back[k])]
+        new = a + [Fraction(0)] * (len(b) + 1 - len(a))
+        for i, coef in enumerate(b):
+            new[i + 1] -= Fraction(float(wk)) * coef
+        hist.append(new)
+    coeffs = hist[-1]
+    while coeffs[-1] == 0:
+        coeffs.pop()
+    return coeffs
+
+
+def test_variable_reach_count_and_roots_against_certified_exact_roots():
+    # The count property for non-constant reach is TESTED, NOT PROVED: certified isolating
+    # balls of the exact polynomial (python-flint) on random variable-reach chains; the count
+    # at points outside the balls equals the balls below, the degree equals the greedy
+    # independence number, and the roots agree.
+    rng = np.random.default_rng(77)
+    for _ in range(12):
+        m = int(rng.integers(8, 24))
+        back = random_back(m, int(rng.integers(1, 5)), rng)
+        w = rng.uniform(0.3, 1.7, m) ** 2
+        balls = certified_roots(exact_coefficients_back(w, back))
+        assert balls.rigorous
+        assert chain_root_count(m, back) == balls.count
+        lo = balls.values.real - balls.error_bounds
+        hi = balls.values.real + balls.error_bounds
+        y = np.concatenate([hi * (1 + 1e-9), lo * (1 - 1e-9), rng.uniform(0, 1.2 * hi.max(), 60)])
+        y = y[~np.any((y[:, None] >= lo) & (y[:, None] <= hi), axis=1)]
+        expected = np.sum(hi[None, :] < y[:, None], axis=1)
+        np.testing.assert_array_equal(chain_count_below(w, back, y), expected, err_msg=str(back))
+        r = chain_real_roots(w, back)
+        np.testing.assert_allclose(r.values, np.sort(balls.values.real), rtol=1e-13)
+        s1, s2 = chain_inverse_power_sums(w, back)
+        coeffs = exact_coefficients_back(w, back)
+        assert s1 == pytest.approx(float(-coeffs[1]), rel=1e-14)
+        assert s2 == pytest.approx(float(coeffs[1] ** 2 - 2 * coeffs[2]), rel=1e-13)
+
+
+def test_back_reach_validation_and_fixed_reach_equivalence():
+    w = random_weights(30, 5)
+    for p in (1, 2, 3):
+        a, b = chain_real_roots(w, p), chain_real_roots(w, chain_back(p, 30))
+        np.testing.assert_array_equal(a.values, b.values)
+        assert fixed_reach(chain_back(p, 30)) == p
+    assert fixed_reach(np.array([0, 1, 1, 2])) is None
+    with pytest.raises(ValueError, match="non-decreasing.*position 3"):
+        chain_back([0, 1, 1, 3], 4)
+    with pytest.raises(ValueError, match=r"back-reach 2 is 3"):
+        chain_back([0, 1, 3], 3)
+    with pytest.raises(ValueError, match="1-d array of 3"):
+        chain_back([0, 1], 3)
+    with pytest.raises(ValueError, match="not an integer"):
+        chain_back([0, 1.5, 1], 3)
+    with pytest.raises(ValueError, match="integers"):
+        chain_back(np.array([False, True]), 2)
+    assert chain_root_count(5, [0, 0, 0, 0, 0]) == 5  # five isolated terms
+    assert chain_root_count(5, [0, 1, 2, 3, 4]) == 1  # one clique
+
+
+def variable_range_model(reaches, couplings, rng):
+    """g_j = X_j Z_{j+1} ... Z_{j + p_j} with non-decreasing ends; terms and sites shuffled."""
+    size = len(reaches)
+    sites = list(rng.permutation(size + max(reaches)))
+    terms = []
+    for j, p in enumerate(reaches):
+        factors = [(sites[j], 1, 0)] + [(sites[j + d], 0, 1) for d in range(1, p + 1)]
+        terms.append((couplings[j], fl.make_string(2, factors)))
+    shuffled = [terms[k] for k in rng.permutation(size)]
+    return fl.Model.from_terms(shuffled, states=2)
+
+
+def random_reaches(m: int, rng: np.random.Generator) -> list[int]:
+    out, end = [], 0
+    for j in range(m):
+        low = max(1, end - j)
+        p = int(rng.integers(low, 4)) if low <= 3 else low
+        out.append(p)
+        end = j + p
+    return out
+
+
+def test_variable_reach_spectrum_matches_exact_diagonalization():
+    # Random variable-range N = 2 chains with real couplings of both signs and random
+    # relabelling of terms and sites: the free levels (real chain path along the indifference
+    # ordering) equal dense exact diagonalization (numpy eigvalsh via fl.exact_spectrum) with
+    # multiplicities (fl.match_levels).
+    rng = np.random.default_rng(15)
+    seen_variable = 0
+    for _ in range(8):
+        m = int(rng.integers(5, 9))
+        reaches = random_reaches(m, rng)
+        if m + max(reaches) > 11:
+            continue
+        c = rng.uniform(0.3, 1.7, m) * rng.choice([-1.0, 1.0], m)
+        model = variable_range_model(reaches, c, rng)
+        sp = fl.free_spectrum(model)
+        if len(set(reaches)) > 1 and fl.graph.chain_structure(model) is None:
+            seen_variable += 1
+            assert "indifference ordering" in sp.provenance.path
+            assert sp.provenance.reach is None
+            assert sp.provenance.finder["root_method"] == "chain-count"
+        match = fl.match_levels(sp.levels(None), fl.exact_spectrum(model))
+        assert match.ok, match
+    assert seen_variable >= 3
+
+
+def test_variable_reach_certified_goes_through_the_exact_polynomial():
+    rng = np.random.default_rng(4)
+    reaches = [2, 1, 3, 2, 1, 2, 2]
+    model = variable_range_model(reaches, list(rng.uniform(0.3, 1.7, 7)), rng)
+    fast = fl.free_spectrum(model, method="fast")
+    cert = fl.free_spectrum(model, method="certified")
+    assert cert.provenance.finder["root_method"] == "exact-certified"
+    assert cert.provenance.finder["rigorous"]
+    np.testing.assert_allclose(fast.quasi_energies, cert.quasi_energies, rtol=1e-13)
+    assert np.all(np.abs(fast.quasi_energies - cert.quasi_energies) <= cert.error_bounds + 1e-15)
+    back = np.array([0, 1, 1, 2, 2])
+    with pytest.raises(ValueError, match="exact polynomial"):
+        solve_chain(rng.uniform(0.3, 1.7, 5), back, 2, "certified")
+    found = solve_chain(rng.uniform(0.3, 1.7, 5), back, 2)
+    assert found.count == chain_root_count(5, back)

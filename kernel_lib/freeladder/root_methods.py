@@ -41,7 +41,7 @@ from .certify import certified_roots, certify_chain_roots
 from .model import Model
 from .polynomial import exclusion_polynomial
 from .root_result import RootResult
-from .roots import chain_real_roots
+from .roots import chain_back, chain_real_roots, fixed_reach
 from .roots_complex import aberth_chain_roots, certified_complex_roots
 
 __all__ = [
@@ -69,7 +69,8 @@ class RootMethod:
         The method's error bounds are proofs (when it reports success).
     description : str
     solve : callable
-        Chain methods: ``solve(weights, reach, states, lowest, couplings)`` with the scaled
+        Chain methods: ``solve(weights, reach, states, lowest, couplings)`` (reach an int or
+        a back-reach array, :func:`freeladder.roots.chain_back`) with the scaled
         couplings whose N-th powers the weights are (for the certificate);
         ``exact-certified``: ``solve(model)``.
     """
@@ -81,17 +82,33 @@ class RootMethod:
     solve: Callable[..., RootResult]
 
 
-def _count(w: np.ndarray, reach: int, states: int, lowest: int | None, c: Any) -> RootResult:
+def _count(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootResult:
     return chain_real_roots(w, reach, lowest=lowest)
 
 
-def _certified(w: np.ndarray, reach: int, states: int, lowest: int | None, c: Any) -> RootResult:
+def _certified(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootResult:
     """All roots (the proof needs all S intervals), certified; then the ``lowest`` kept.
 
     With the couplings ``c`` given, the proof covers the exact weights ``c**N`` (one rounding
     away from ``w``: the float stage takes one ulp around each, the arb stage the exact power).
+    Fixed reach only, and roots inside float64's range only (the sign test runs on float64
+    end points); anything else raises ``ValueError`` naming the exact route.
     """
+    if np.ndim(reach) != 0:
+        p = fixed_reach(chain_back(reach, w.size))
+        if p is None:
+            raise ValueError(
+                "the certified chain method handles fixed reach only; a chain of variable "
+                "reach (an indifference ordering) is certified through the exact polynomial "
+                "(solve_general(model), method 'exact-certified')"
+            )
+        reach = p
     found = chain_real_roots(w, reach)
+    if np.any(found.exponents != 0):
+        raise ValueError(
+            "some roots lie beyond float64's range, where the float64 / arb sign test of the "
+            "certificate does not run; use method 'fast' (error estimates) for this chain"
+        )
     bounds = None if c is None else (np.nextafter(w, 0.0), np.nextafter(w, np.inf))
     enc = certify_chain_roots(
         w,
@@ -116,7 +133,7 @@ def _certified(w: np.ndarray, reach: int, states: int, lowest: int | None, c: An
     )
 
 
-def _aberth(w: np.ndarray, reach: int, states: int, lowest: int | None, c: Any) -> RootResult:
+def _aberth(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootResult:
     return aberth_chain_roots(w, reach, order=states, lowest=lowest)
 
 
@@ -242,7 +259,7 @@ def scaled_weights(couplings: Any, states: int) -> tuple[np.ndarray, np.ndarray,
 
 def solve_chain(
     couplings: Any,
-    reach: int,
+    reach: Any,
     states: int,
     method: str = "auto",
     lowest: int | None = None,
@@ -251,12 +268,15 @@ def solve_chain(
 ) -> RootResult:
     """Roots of an exclusion chain's polynomial from its couplings in chain order.
 
-    Real positive weights (N = 2, real couplings) take a real-chain method, anything else
-    the complex-chain one; ``method`` is ``"auto"``, ``"fast"``, ``"certified"`` or a key of
-    :data:`ROOT_METHODS`.  The couplings are scaled first (see :func:`scaled_weights`); the
-    result is in true units unless they over- or underflow (then ``weight_log2`` says how
-    it is scaled).  Raises ``ValueError`` when a rigorous method cannot prove its bounds
-    (never a silent pass), and ``ArithmeticError`` when the roots did not converge unless
+    ``reach`` is an int p >= 1 or a back-reach array (position k's earlier neighbours are
+    positions ``k - back[k] .. k - 1``: an indifference ordering, any number of components
+    one after another; :func:`freeladder.roots.chain_back`).  Real positive weights (N = 2,
+    real couplings) take a real-chain method, anything else the complex-chain one;
+    ``method`` is ``"auto"``, ``"fast"``, ``"certified"`` or a key of :data:`ROOT_METHODS`.
+    The couplings are scaled first (see :func:`scaled_weights`); the result is in true units
+    unless they over- or underflow (then ``weight_log2`` and ``exponents`` say how it is
+    scaled).  Raises ``ValueError`` when a rigorous method cannot prove its bounds (never a
+    silent pass), and ``ArithmeticError`` when the roots did not converge unless
     ``allow_unconverged`` (a non-converged quasi-energy is hard to miss).
     ``exact-certified`` needs the model: use :func:`solve_general` for it.
     """
@@ -284,7 +304,7 @@ def solve_chain(
 
 def _unscaled(found: RootResult) -> RootResult:
     """The result in true units (``weight_log2 = 0``) when float64 holds it without loss."""
-    if found.weight_log2 == 0:
+    if found.weight_log2 == 0 and not np.any(found.exponents != 0):
         return found
     values, bounds = found.true_values()
     tiny = np.finfo(np.float64).tiny
@@ -296,7 +316,13 @@ def _unscaled(found: RootResult) -> RootResult:
     )
     if not lossless:
         return found
-    return dataclasses.replace(found, values=values, error_bounds=bounds, weight_log2=0)
+    return dataclasses.replace(
+        found,
+        values=values,
+        error_bounds=bounds,
+        weight_log2=0,
+        exponents=np.zeros(values.size, dtype=np.int64),
+    )
 
 
 def solve_general(m: Model, method: str = "auto") -> RootResult:

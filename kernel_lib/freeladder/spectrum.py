@@ -21,6 +21,7 @@ R. J. Baxter, Phys. Lett. A 140, 155 (1989); P. Fendley, J. Phys. A 47, 075001 (
 
 from __future__ import annotations
 
+import dataclasses
 import heapq
 import html
 import math
@@ -38,12 +39,14 @@ from .errors import NoTheoremError
 from .frozen import readonly_array
 from .graph import ChainStructure, chain_structure
 from .htmltable import field_table, grid_table, is_number_text
+from .indifference import indifference_order
 from .jsonready import json_ready
 from .majorana import flux_sector, jordan_wigner_spectrum
 from .model import Model
 from .polynomial import exclusion_polynomial, sum_rules
 from .references import CHAPMAN_FLAMMIA_2020
-from .root_result import RootResult
+from .root_result import BeyondFloatError, RootResult
+from .roots import chain_inverse_power_sums
 from .verdict import Guarantee, classify, guarantee
 
 __all__ = [
@@ -186,7 +189,8 @@ class SpectrumProvenance:
     theorem, reference : str
         The theorem that applies and where it is published (empty when none applies).
     reach : int or None
-        The reach p of an exclusion chain, else None.
+        The reach p of an exclusion chain, else None (also for a chain of variable reach
+        along an indifference ordering: ``path`` then says so).
     count : int
         Number of quasi-energies of the model (S), also when only the lowest were kept.
     max_error_bound : float
@@ -303,6 +307,11 @@ class FreeSpectrum:
         roots, ``eta_k = y_k^{-1/2} > 0`` (float array).  Otherwise the principal N-th root of
         ``1 / y_k`` (complex array): the set of levels ``{sum_k omega^{s_k} eta_k}`` does not
         depend on which N-th root is taken, since the choices ``s_k`` run over all of them.
+        A quasi-energy below float64's normal range (about 2.2e-308; disordered chains reach
+        1e-1000) is stored rounded (0.0 or a subnormal): its value is in
+        ``log_quasi_energies``, and :attr:`gap` refuses rather than return a rounded gap.
+    log_quasi_energies : ndarray of float
+        ``ln |eta_k|``, exact to rounding for every quasi-energy (also beyond float64).
     error_bounds : ndarray of float
         Per quasi-energy: bound (or estimate, see ``provenance.bounds``) on the distance to
         the nearest N-th root of the exact ``1 / y_k``.
@@ -344,8 +353,12 @@ class FreeSpectrum:
         provenance: SpectrumProvenance,
         *,
         parity_constraints: Sequence[tuple[Sequence[int], int]] = (),
+        log_quasi_energies: np.ndarray | None = None,
     ) -> None:
-        for arr in (roots_y, quasi_energies, error_bounds):
+        if log_quasi_energies is None:
+            with np.errstate(divide="ignore"):
+                log_quasi_energies = np.log(np.abs(quasi_energies))
+        for arr in (roots_y, quasi_energies, error_bounds, log_quasi_energies):
             arr.setflags(write=False)
         constraints = tuple((tuple(int(k) for k in ks), int(p)) for ks, p in parity_constraints)
         if constraints and int(states) != 2:
@@ -353,6 +366,7 @@ class FreeSpectrum:
         self.__dict__.update(
             roots=roots_y,
             quasi_energies=quasi_energies,
+            log_quasi_energies=log_quasi_energies,
             error_bounds=error_bounds,
             constant=constant,
             states=int(states),
@@ -367,6 +381,7 @@ class FreeSpectrum:
 
     roots: np.ndarray
     quasi_energies: np.ndarray
+    log_quasi_energies: np.ndarray
     error_bounds: np.ndarray
     constant: complex | float
     states: int
@@ -433,16 +448,55 @@ class FreeSpectrum:
         there is one (the bulk gap is then ``2 eta`` of the next mode).  Levels are counted by
         choice, so the gap is zero when a quasi-energy vanishes; the degeneracy
         :attr:`degeneracy` is not a gap.  Needs only the lowest quasi-energies for N = 2.
+
+        Raises
+        ------
+        freeladder.root_result.BeyondFloatError
+            (an ``ArithmeticError`` and a ``ValueError``) When the gap lies below float64's
+            normal range (about 2.2e-308, as in long
+            disordered chains): :attr:`log_gap` gives it, exactly to rounding.  A rounded gap
+            (0.0 or a subnormal) is never returned.
         """
         if self.parity_constraints:  # the lowest choice that keeps every parity
             low = self.levels(2).energies
             return float(np.real(low[1] - low[0])) if len(low) > 1 else float("nan")
         if self.states == 2 and np.isrealobj(self.quasi_energies):
-            return float(2.0 * np.min(self.quasi_energies)) if len(self) else float("nan")
+            if len(self) == 0:
+                return float("nan")
+            gap = float(2.0 * np.min(self.quasi_energies))
+            if gap < np.finfo(np.float64).tiny and math.isfinite(self.log_gap):
+                raise BeyondFloatError(
+                    f"the gap 2 eta_1 = {_exp_text(self.log_gap)} lies below float64's range; "
+                    f"FreeSpectrum.log_gap = {self.log_gap:.10g} gives its natural logarithm"
+                )
+            return gap
         vals, _ = self._mode_table()
         if len(self) == 0:
             return float("nan")
         return float(np.min(vals[:, 1].real - vals[:, 0].real))
+
+    @property
+    def log_gap(self) -> float:
+        """Natural logarithm of :attr:`gap`, exact to rounding also where the gap itself lies
+        below float64 (N = 2: ``ln 2 + min_k ln eta_k``)."""
+        if len(self) == 0:
+            return float("nan")
+        if self.states == 2 and np.isrealobj(self.quasi_energies) and not self.parity_constraints:
+            return float(math.log(2.0) + np.min(self.log_quasi_energies))
+        with np.errstate(divide="ignore"):
+            return float(np.log(self.gap))
+
+    def _eta_item(self, k: int, digits: int = 6) -> str:
+        """Quasi-energy ``k`` as text (from its logarithm where it lies below float64)."""
+        e, log_e = self.quasi_energies[k], float(self.log_quasi_energies[k])
+        if abs(e) < np.finfo(np.float64).tiny and math.isfinite(log_e):
+            return _exp_text(log_e)
+        return _fmt(e, digits)
+
+    def _eta_text(self, count: int) -> str:
+        """The first ``count`` quasi-energies as text (from the logarithm beyond float64)."""
+        parts = [self._eta_item(k) for k in range(min(count, len(self)))]
+        return ", ".join(parts) + (", ..." if len(self) > count else "")
 
     def levels(self, k: int | None = 10) -> LevelTable:
         """The ``k`` lowest many-body levels in increasing order of their real part.
@@ -629,11 +683,10 @@ class FreeSpectrum:
         return f"NOT GUARANTEED (these numbers need not be the spectrum): {reason}"
 
     def __repr__(self) -> str:
-        eta = ", ".join(_fmt(e) for e in self.quasi_energies[:6])
-        more = ", ..." if len(self) > 6 else ""
+        eta = self._eta_text(6)
         mark = "" if self.guaranteed else "NOT GUARANTEED, "
         return (
-            f"FreeSpectrum({mark}N={self.states}, {len(self)} quasi-energies [{eta}{more}], "
+            f"FreeSpectrum({mark}N={self.states}, {len(self)} quasi-energies [{eta}], "
             f"method={self.provenance.method}, "
             f"max error {self.provenance.max_error_bound:.2g}"
             f" ({'proved bound' if self.provenance.finder.get('rigorous') else 'estimate'}))"
@@ -644,7 +697,9 @@ class FreeSpectrum:
         rows = []
         if self.complete:
             rows.append(("ground energy", _fmt(self.ground_energy)))
-        rows.append(("gap", f"{self.gap:.6g}"))
+        log_gap = self.log_gap
+        small = math.isfinite(log_gap) and log_gap < math.log(np.finfo(np.float64).tiny)
+        rows.append(("gap", _exp_text(log_gap) if small else f"{self.gap:.6g}"))
         rows.append(
             (
                 "degeneracy",
@@ -666,8 +721,7 @@ class FreeSpectrum:
         return rows
 
     def __str__(self) -> str:
-        eta = ", ".join(_fmt(e) for e in self.quasi_energies[:12])
-        more = ", ..." if len(self) > 12 else ""
+        eta, more = self._eta_text(12), ""
         lines = []
         if not self.guaranteed:
             lines.append(self._warning())
@@ -683,7 +737,7 @@ class FreeSpectrum:
         eta = grid_table(
             ("k", "eta_k", "bound"),
             [
-                (str(k), _fmt(self.quasi_energies[k], 10), f"\u00b1 {self.error_bounds[k]:.2g}")
+                (str(k), self._eta_item(k, 10), f"\u00b1 {self.error_bounds[k]:.2g}")
                 for k in range(shown)
             ],
             numeric=(0, 1, 2),
@@ -708,7 +762,9 @@ class FreeSpectrum:
         """JSON-ready fields: quasi-energies, error bounds, roots, ground energy, gap (when
         defined), degeneracy, guaranteed (with the NOT GUARANTEED warning when not), provenance.
         """
-        gap = self.gap if len(self) else None
+        log_gap = self.log_gap
+        small = math.isfinite(log_gap) and log_gap < math.log(np.finfo(np.float64).tiny)
+        gap = self.gap if len(self) and not small else None
         return json_ready(
             {
                 "guaranteed": self.guaranteed,
@@ -716,12 +772,14 @@ class FreeSpectrum:
                 "states": self.states,
                 "sites": self.sites,
                 "quasi_energies": self.quasi_energies,
+                "log_quasi_energies": self.log_quasi_energies,
                 "error_bounds": self.error_bounds,
                 "roots": self.roots,
                 "constant": self.constant,
                 "complete": self.complete,
                 "ground_energy": self.ground_energy if self.complete else None,
                 "gap": gap,
+                "log_gap": log_gap if len(self) else None,
                 "degeneracy": self.degeneracy,
                 "degeneracy_reason": self.degeneracy_reason,
                 "parity_constraints": [
@@ -786,6 +844,18 @@ def _maybe_real(values: np.ndarray) -> np.ndarray:
 def _scalar(v: Any) -> complex | float:
     v = complex(v)
     return v.real if v.imag == 0 else v
+
+
+def _exp_text(log_value: float) -> str:
+    """``exp(log_value)`` as decimal text, also far outside float64 (e.g. ``1.234e-400``)."""
+    if not math.isfinite(log_value):
+        return "0" if log_value < 0 else "inf"
+    ten = log_value / math.log(10.0)
+    exponent = math.floor(ten)
+    mantissa = 10.0 ** (ten - exponent)
+    if mantissa >= 9.999995:
+        mantissa, exponent = mantissa / 10.0, exponent + 1
+    return f"{mantissa:.6g}e{exponent:+d}"
 
 
 def _fmt(v: Any, digits: int = 6) -> str:
@@ -892,26 +962,32 @@ def free_spectrum(
         return _sector_spectrum(m, sector, method, lowest, start_time)
     n = m.states
     chain = chain_structure(m)
-    if chain is None and method == "fast":
+    ordering = None if chain is not None else _ordering(m, couplings)
+    if chain is None and method == "fast" and ordering is None:
         raise ValueError(
             "method='fast' evaluates the exclusion-chain recurrence, and this model's terms do "
-            "not form an exclusion chain; use method='auto' or 'certified'"
+            "not form an exclusion chain (nor, for N = 2 with real couplings, an indifference "
+            "ordering); use method='auto' or 'certified'"
         )
     promise = guarantee(m)
     if not promise.proven and not unproven:
         raise NoTheoremError(_refusal_message(m, promise))
-    found = _find_roots(m, couplings, chain, method, lowest)
+    found = _find_roots(m, couplings, chain, ordering, method, lowest)
     prov = root_methods.provenance(found)
-    eta, eta_err = found.quasi_energies(n)  # scales back without overflow
+    if found.details.get("ordering"):
+        prov["path"] += f" along {found.details['ordering']}"
+    # scaled back without overflow; beyond float64 rounded here, exact in the logarithms
+    eta, eta_err = found.quasi_energies(n, beyond_float="round")
+    log_eta = found.log_quasi_energies(n)[0]
     true = found.true_values()[0]
     with np.errstate(divide="ignore", over="ignore", under="ignore"):
         y_vals = np.asarray(true if found.variable == "y" else 1.0 / true, dtype=complex)
-    sort = np.argsort(np.abs(eta), kind="stable")
-    eta, eta_err, y_vals = eta[sort], eta_err[sort], y_vals[sort]
+    sort = np.argsort(log_eta, kind="stable")
+    eta, eta_err, y_vals, log_eta = eta[sort], eta_err[sort], y_vals[sort], log_eta[sort]
     count = int(prov.pop("count", len(eta)))
     if lowest is not None:
         keep = int(lowest)
-        eta, eta_err, y_vals = eta[:keep], eta_err[:keep], y_vals[:keep]
+        eta, eta_err, y_vals, log_eta = eta[:keep], eta_err[:keep], y_vals[:keep], log_eta[:keep]
     complete = len(eta) == count
     degeneracy, reason = _degeneracy(m, promise.proven, count)
     provenance = SpectrumProvenance(
@@ -925,13 +1001,23 @@ def free_spectrum(
         reach=None if chain is None else int(chain.reach),
         count=count,
         max_error_bound=float(np.max(eta_err)) if len(eta_err) else 0.0,
-        sum_rules=_residuals(m, eta) if complete else None,
+        sum_rules=_residuals(m, eta, couplings, ordering) if complete else None,
         seconds=time.perf_counter() - start_time,
         finder=prov,
     )
     constant = _scalar(m.constant) if m.constant != 0 else 0.0
     return FreeSpectrum(
-        y_vals, eta, eta_err, constant, n, len(m.sites), degeneracy, reason, complete, provenance
+        y_vals,
+        eta,
+        eta_err,
+        constant,
+        n,
+        len(m.sites),
+        degeneracy,
+        reason,
+        complete,
+        provenance,
+        log_quasi_energies=log_eta,
     )
 
 
@@ -1036,8 +1122,29 @@ def _sector_spectrum(
     )
 
 
-def _residuals(m: Model, eta: np.ndarray) -> dict[str, float]:
-    """Relative residuals of the two power-sum rules (:func:`freeladder.polynomial.sum_rules`)."""
+def _residuals(
+    m: Model,
+    eta: np.ndarray,
+    couplings: np.ndarray,
+    ordering: tuple[np.ndarray, np.ndarray] | None,
+) -> dict[str, float]:
+    """Relative residuals of the two power-sum rules (:func:`freeladder.polynomial.sum_rules`).
+
+    Along an indifference ordering the targets ``C_1`` and ``C_1**2 - 2 C_2`` come in O(M)
+    from :func:`freeladder.roots.chain_inverse_power_sums` (the exact polynomial of a large
+    non-chain graph is not built), scaled like ``sum_rules`` so that nothing overflows.
+    """
+    if ordering is not None and m.states == 2 and np.isrealobj(couplings):
+        c = couplings[ordering[0]]
+        e = int(np.frexp(np.max(np.abs(c)))[1])
+        targets = chain_inverse_power_sums(np.ldexp(c, -e) ** 2, ordering[1])
+        with np.errstate(over="ignore", under="ignore"):
+            x = np.ldexp(np.abs(eta), -e) ** 2  # N = 2, real positive roots: eta**2 = |eta|**2
+        out = []
+        for j, want in ((1, targets[0]), (2, targets[1])):
+            size = max(float(np.sum(np.abs(x) ** j)), abs(want), 1e-300)
+            out.append(abs(float(np.sum(x**j)) - want) / size)
+        return {"sum eta^N": out[0], "sum eta^2N": out[1]}
     first, second = sum_rules(exclusion_polynomial(m), eta).residuals
     return {"sum eta^N": float(first), "sum eta^2N": float(second)}
 
@@ -1079,47 +1186,67 @@ def _find_roots(
     m: Model,
     couplings: np.ndarray,
     chain: ChainStructure | None,
+    ordering: tuple[np.ndarray, np.ndarray] | None,
     method: str,
     lowest: int | None,
 ) -> RootResult:
-    """The roots of P by the method the table (:mod:`freeladder.root_methods`) chooses."""
+    """The roots of P by the method the table (:mod:`freeladder.root_methods`) chooses.
+
+    A model that is not one fixed-reach chain but has an ordering (:func:`_ordering`: an
+    indifference ordering for N = 2, chains or oriented indifference orders component by
+    component for N > 2) takes the chain recurrence with per-position reach -- the real path
+    for N = 2 with real couplings, the complex one otherwise; ``details["ordering"]`` then says
+    so.  Certified requests for it take the exact polynomial (the chain certificate handles
+    fixed reach only).
+    """
     n = m.states
     if method == "certified" and chain is not None and not (n == 2 and np.isrealobj(couplings)):
         found = root_methods.solve_general(m)
     elif chain is not None:
         found = root_methods.solve_chain(couplings[chain.order], chain.reach, n, method, lowest)
-    elif (
-        method != "certified"
-        and (n > 2 or np.iscomplexobj(couplings))
-        and ((ordering := _ordering(m)) is not None)
-    ):
-        # components in an oriented indifference order: the recurrence with back-reaches
-        # (the complex path takes an array in place of the reach)
+    elif ordering is not None and method != "certified":
         order, back = ordering
-        found = root_methods.solve_chain(couplings[order], back, n, method, lowest)  # type: ignore[arg-type]
+        found = root_methods.solve_chain(couplings[order], back, n, method, lowest)
+        text = "an indifference ordering of the frustration graph (per-position reach)"
+        found = dataclasses.replace(found, details=dict(found.details, ordering=text))
     else:
         found = root_methods.solve_general(m)
     return found
 
 
-def _ordering(m: Model) -> tuple[np.ndarray, np.ndarray] | None:
-    """Term order and back-reaches of the recurrence, components one after another (back 0
-    at each start), when every component is a chain or an oriented indifference order."""
-    order: list[int] = []
-    back: list[int] = []
+def _ordering(m: Model, couplings: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
+    """``(term order, back-reach)`` of the recurrence when the model is not one fixed chain.
+
+    N = 2: an indifference ordering from :func:`freeladder.indifference.indifference_order`
+    (cached with the model's strings; for N = 2 the orientation does not matter).  N > 2: every
+    component of the verdict must be hidden-free with a chain or an oriented indifference
+    order.  Components one after another, back-reach 0 at each component's start; None for
+    other models.
+    """
+    if len(m) == 0:
+        return None
+    if m.states == 2:
+        found = indifference_order(m)
+        if found is None:
+            return None
+        order = np.asarray(found.order, dtype=np.int64)
+        back = np.arange(order.size) - np.asarray(found.first_neighbour, dtype=np.int64)
+        return order, back
+    terms_all: list[int] = []
+    backs: list[int] = []
     for comp in classify(m).components:
         if comp.kind != "hidden-free":
             return None
         if comp.chain is not None:
             terms = [int(t) for t in comp.chain.order]
-            back += [min(k, int(comp.chain.reach)) for k in range(len(terms))]
+            backs += [min(k, int(comp.chain.reach)) for k in range(len(terms))]
         elif comp.indifference is not None:
             terms = list(comp.indifference.order)
-            back += [k - f for k, f in enumerate(comp.indifference.first_neighbour)]
+            backs += [k - f for k, f in enumerate(comp.indifference.first_neighbour)]
         else:
             return None
-        order += terms
-    return np.array(order, dtype=np.int64), np.array(back, dtype=np.int64)
+        terms_all += terms
+    return np.array(terms_all, dtype=np.int64), np.array(backs, dtype=np.int64)
 
 
 def _degeneracy(m: Model, proven: bool, count: int) -> tuple[int | None, str]:
