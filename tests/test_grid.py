@@ -280,8 +280,8 @@ def test_infinite_randomness_exponent(pool: cf.Executor) -> None:
     # shift of psi between variant fits (without the smallest size; plain power law on the
     # largest half) -- not a bootstrap.  At L = 4096, -ln(gap) reaches about 320, and about 0.5%
     # of the realisations have a gap near e^-190, where the root finder's Laguerre iteration
-    # stalls; those go through bisection on the root count (chain_quasi_energy), so no
-    # realisation is dropped (the table has all of them).  Measured: about 30 s on 2 workers.
+    # once stalled (y near 1e164); no realisation is dropped (the table has all of them).
+    # Measured: about 30 s on 2 workers.
     df = fl.sweep(
         _random_ising_gap,
         {"size": IR_SIZES},

@@ -17,7 +17,6 @@ import pytest
 from scipy.linalg import eigvalsh_tridiagonal
 
 import freeladder as fl
-from freeladder import scaling
 
 
 def _geometric(low: int, high: int, count: int, period: int) -> list[int]:
@@ -243,34 +242,50 @@ def test_no_warning_for_one_class() -> None:
         fl.gap_scaling(lambda m: fl.exclusion_chain(m, reach=2), [30, 60, 90, 120])
 
 
-def test_stalled_largest_root_is_found_by_bisection_on_the_count() -> None:
+def test_once_stalled_largest_root_and_gaps_below_float64() -> None:
     # A random reach-1 chain (the random Ising chain of 4096 sites) whose smallest quasi-energy,
-    # about e^-189, made the root finder's Laguerre iteration stall (measured with roots.py as
-    # of this commit).  Reference: LAPACK's bisection (dstebz through scipy) on the zero-diagonal
-    # tridiagonal matrix with off-diagonals c, whose positive eigenvalues are the quasi-energies
-    # (P. Pfeuty, Ann. Phys. 57, 79 (1970)); tol = 1e-300 asks for full relative accuracy
-    # (J. Demmel and W. Kahan, SIAM J. Sci. Stat. Comput. 11, 873 (1990), from memory).
+    # about e^-189, once made the root finder's Laguerre iteration stall (y near 1e164, where
+    # (P'/P)^2 was subnormal).  Reference: LAPACK's bisection (dstebz through scipy) on the
+    # zero-diagonal tridiagonal matrix with off-diagonals c, whose positive eigenvalues are the
+    # quasi-energies (P. Pfeuty, Ann. Phys. 57, 79 (1970)); tol = 1e-300 asks for full relative
+    # accuracy (J. Demmel and W. Kahan, SIAM J. Sci. Stat. Comput. 11, 873 (1990), from memory).
     rng = np.random.default_rng(np.random.SeedSequence(2, spawn_key=(112,)))
     c = fl.disorder_couplings(8191, "box", low=0.0, high=1.0, rng=rng)
     diagonal = np.zeros(c.size + 1)
     ref = eigvalsh_tridiagonal(diagonal, c, select="i", select_range=(4096, 4096), tol=1e-300)[0]
     assert 1e-83 < ref < 1e-82
-    eta, bound, _ = fl.chain_quasi_energy(c, 1)  # either route, whichever the root finder takes
+    eta, bound, _ = fl.chain_quasi_energy(c, 1)  # type: ignore[misc]
     assert abs(eta - ref) <= bound + 1e-14 * ref and bound < 1e-10 * eta
-    # The fallback itself, from a poor start, for reach 1 (against LAPACK) and reach 2 (against
-    # the converged root finder).
-    y, half = scaling._bisect_largest_root(c**2, 1, 1e100, "test")
-    assert y**-0.5 == pytest.approx(ref, rel=1e-13) and half <= 4e-16 * y
-    w = fl.disorder_couplings(600, "box", low=0.3, high=1.7, rng=9) ** 2
-    found = fl.chain_real_roots(w, 2, lowest=1)
-    assert found.converged
-    y2, _ = scaling._bisect_largest_root(w, 2, found.values[-1] * 7.0, "test")
-    assert y2 == pytest.approx(found.values[-1], rel=1e-13)
-    # A largest root beyond float64 range (the class-1 staggered chain of 4801 terms, gap about
-    # e^-361, see above) is refused with a clear error, by the fallback and by the public call.
+    log_eta, log_bound, _ = fl.chain_log_quasi_energy(c, 1)  # type: ignore[misc]
+    assert abs(log_eta - np.log(ref)) <= log_bound + 1e-13
+    # A root y beyond float64: the class-1 staggered chain of 4801 terms (see above), whose
+    # smallest quasi-energy is about e^-361, so y = eta^-2 is about e^722 > 1.8e308.
+    # Reference: the product of all quasi-energies is exactly a^(k+1) for M = 3k + 1 (Vieta:
+    # the top coefficient of the polynomial is the weight of the unique largest set of terms
+    # pairwise more than 2 apart, the a-terms), so the sum of all ln eta is (k + 1) ln a.
     far = np.array(fl.periodic_couplings(4801, (0.8, 1, 1)), dtype=float)
-    with pytest.raises(ArithmeticError, match="within float64 range"):
-        scaling._bisect_largest_root(far**2, 2, 1e300, "test")
-    # (roots.py's ladder check overflows a float on its way to that error: a RuntimeWarning.)
-    with pytest.raises(ArithmeticError, match="float64 range"), np.errstate(over="ignore"):
-        fl.chain_quasi_energy(far, 2)
+    log_eta, log_bound, _ = fl.chain_log_quasi_energy(far, 2)  # type: ignore[misc]
+    assert -400 < log_eta < -300 and log_bound < 1e-10
+    eta, _, _ = fl.chain_quasi_energy(far, 2)  # type: ignore[misc]
+    assert np.log(eta) == pytest.approx(log_eta, abs=1e-12)
+    logs, _ = fl.chain_real_roots(far**2, 2).log_quasi_energies(2)
+    assert float(np.sum(logs)) == pytest.approx(1601 * np.log(0.8), abs=1e-9)
+    assert float(np.min(logs)) == pytest.approx(log_eta, abs=1e-12)
+
+
+def test_disorder_gap_below_float64_is_a_logarithm() -> None:
+    # Strong disorder (c = u^30): the random Ising chain of 2001 sites has ln gap of about
+    # -2600.  The row carries NaN for the gap and the exact logarithm.  Reference: for
+    # M = 2L - 1 terms the top coefficient of the polynomial is the product of the fields
+    # (the unique largest independent set), so the sum of all ln eta is the sum of ln h
+    # (Vieta; common practice).
+    row = fl.disordered_chain_gap(4001, reach=1, distribution="power", delta=30.0, rng=0)
+    assert math.isnan(row["gap"]) and math.isnan(row["gap_error"]) and row["log_gap"] < -1000
+    c = fl.disorder_couplings(4001, "power", delta=30.0, rng=0)
+    logs, _ = fl.chain_real_roots(c**2, 1).log_quasi_energies(2)
+    assert float(np.min(logs)) == pytest.approx(row["log_gap"], abs=1e-10)
+    assert float(np.sum(logs)) == pytest.approx(float(np.sum(np.log(c[0::2]))), rel=1e-12)
+    with pytest.raises(ValueError, match="log_gap"):
+        fl.log_gap_statistics(
+            __import__("pandas").DataFrame({"size": [1, 1], "gap": [row["gap"], 0.5]})
+        )

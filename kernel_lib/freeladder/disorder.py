@@ -17,6 +17,7 @@ randomness, ``-ln(gap) ~ L^(1/2)`` at criticality); F. Igloi and C. Monthus, Phy
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
@@ -30,7 +31,7 @@ from .model import Coupling
 
 if TYPE_CHECKING:
     import pandas as pd
-from .scaling import PowerLawFit, chain_quasi_energy, power_law_fit, smallest_quasi_energy
+from .scaling import PowerLawFit, chain_log_quasi_energy, power_law_fit, smallest_quasi_energy
 
 __all__ = [
     "LogGapStatistics",
@@ -180,7 +181,7 @@ def disordered_chain_gap(
     """One disorder realisation: the smallest quasi-energy of a random exclusion chain.
 
     The couplings come from :func:`disorder_couplings` (same parameters); the value from
-    :func:`freeladder.chain_quasi_energy` on the couplings in chain order (the chain polynomial
+    :func:`freeladder.chain_log_quasi_energy` on the couplings in chain order (the chain polynomial
     needs no Model), or from :func:`freeladder.free_spectrum` of the built chain when the
     weights ``c_j^N`` have several phases.  With ``reach=1, states=2`` and
     ``n_terms = 2 L - 1`` this is the random transverse-field Ising chain of ``L`` sites with
@@ -190,12 +191,13 @@ def disordered_chain_gap(
     -------
     dict
         ``gap`` (``|eta_1|``), ``log_gap`` (``ln |eta_1|``) and ``gap_error`` (error bound).
+        Below float64 (about 2.2e-308, long disordered chains) ``gap`` and ``gap_error`` are
+        NaN and ``log_gap`` alone holds the value, exact to rounding.
 
     Raises
     ------
     ArithmeticError
-        When the smallest quasi-energy cannot be found, not even by bisection on the root
-        count (see :func:`freeladder.chain_quasi_energy`): never a silent unreliable number.
+        When the smallest quasi-energy did not converge: never a silent unreliable number.
 
     Examples
     --------
@@ -213,11 +215,15 @@ def disordered_chain_gap(
         width=width,
         rng=rng,
     )
-    got = chain_quasi_energy(c, reach, states)
-    if got is None:
-        m = exclusion_chain(n_terms, reach=reach, states=states, couplings=c)
-        got = smallest_quasi_energy(m)
-    gap, bound, _ = got
+    got = chain_log_quasi_energy(c, reach, states)
+    if got is not None:
+        log_gap, log_bound, _ = got
+        gap = math.exp(log_gap)
+        if gap < np.finfo(np.float64).tiny:  # below float64: only the logarithm is exact
+            return {"gap": math.nan, "log_gap": log_gap, "gap_error": math.nan}
+        return {"gap": gap, "log_gap": log_gap, "gap_error": gap * math.expm1(log_bound)}
+    m = exclusion_chain(n_terms, reach=reach, states=states, couplings=c)
+    gap, bound, _ = smallest_quasi_energy(m)
     return {"gap": gap, "log_gap": float(np.log(gap)), "gap_error": bound}
 
 
@@ -335,7 +341,8 @@ def log_gap_statistics(
             minus_log = -np.log(values)
     if np.any(bad):
         where = list(np.nonzero(bad)[0][:5])
-        raise ValueError(f"{int(bad.sum())} gaps are not finite and > 0 (rows {where} ...)")
+        hint = "" if log else " (gaps below float64 are NaN: use column='log_gap', log=True)"
+        raise ValueError(f"{int(bad.sum())} gaps are not finite and > 0 (rows {where} ...){hint}")
     import pandas as pd  # on use: importing pandas takes about a second
 
     frame = pd.DataFrame({"size": table[size].to_numpy(), "v": minus_log})

@@ -35,7 +35,7 @@ from .frozen import readonly_array, readonly_mapping
 from .graph import chain_structure
 from .jsonready import json_ready
 from .model import Model
-from .roots import chain_count_below, chain_real_roots, chain_root_count
+from .roots import chain_real_roots
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -48,6 +48,7 @@ __all__ = [
     "PowerLawFit",
     "energy_density",
     "gap_scaling",
+    "chain_log_quasi_energy",
     "chain_quasi_energy",
     "power_law_fit",
     "smallest_quasi_energy",
@@ -326,6 +327,32 @@ def _residue(m: Model) -> tuple[int | None, int | None]:
     return chain.reach, len(m) % (chain.reach + 1)
 
 
+def _largest_root(couplings: Sequence[complex] | np.ndarray, reach: int, states: int) -> Any:
+    """The largest real root of the chain with weights ``|c_j^N|`` when they share one phase.
+
+    Returns the :class:`~freeladder.root_result.RootResult` of
+    :func:`freeladder.chain_real_roots` (``lowest=1``), or None for weights of several phases.
+    Raises ``ArithmeticError`` when the root did not converge.
+    """
+    n = int(states)
+    w = np.asarray(couplings, dtype=complex) ** n
+    modulus = np.abs(w)
+    if not (np.all(modulus > 0) and np.all(np.isfinite(modulus))):
+        return None
+    phase = w / modulus
+    if not np.all(np.abs(phase - phase[0]) <= _PHASE_TOL):
+        return None
+    found = chain_real_roots(modulus, int(reach), lowest=1)
+    if not found.converged:
+        raise ArithmeticError(
+            f"the largest root of a chain of {w.size} terms did not converge: {found.message}"
+        )
+    return found
+
+
+_ROUTE = "largest real root of the chain recurrence"
+
+
 def chain_quasi_energy(
     couplings: Sequence[complex] | np.ndarray, reach: int, states: int = 2
 ) -> tuple[float, float, str] | None:
@@ -338,132 +365,47 @@ def chain_quasi_energy(
     :func:`freeladder.chain_real_roots` (``lowest=1``).  Returns None for weights of several
     phases (then use :func:`freeladder.free_spectrum`).
 
-    When the root finder reports no convergence (measured: its Laguerre iteration can stall
-    for roots ``y`` beyond about ``1e154``, where ``(P'/P)^2`` underflows), the largest root
-    is found again by bisection on the root count alone, and the route says so.
-
     Raises
     ------
+    freeladder.root_result.BeyondFloatError
+        When ``|eta_1|`` lies below float64 (long disordered chains):
+        :func:`chain_log_quasi_energy` gives its logarithm.
     ArithmeticError
-        When the largest root cannot be bracketed within float64 range.
+        When the largest root did not converge.
 
     References
     ----------
     F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622
     (the chain polynomial depends on the couplings only through ``c_j^N``).
     """
-    n = int(states)
-    w = np.asarray(couplings, dtype=complex) ** n
-    modulus = np.abs(w)
-    if not (np.all(modulus > 0) and np.all(np.isfinite(modulus))):
+    found = _largest_root(couplings, reach, states)
+    if found is None:
         return None
-    phase = w / modulus
-    if not np.all(np.abs(phase - phase[0]) <= _PHASE_TOL):
-        return None
-    found = chain_real_roots(modulus, int(reach), lowest=1)
-    if not found.converged:
-        y, half = _bisect_largest_root(modulus, int(reach), found.values[-1], found.message)
-        # Error estimate: the count in floating point is the exact count of weights changed by
-        # a few ulps each, which moves the root by up to about M ulps relative (first order;
-        # from memory, not proved here) -- more than the final bracket.  eta = y^(-1/N) has
-        # 1/N of the relative error of y.
-        eta_b = float(y ** (-1.0 / n))
-        rel = max(half / y, 2.0 * w.size * float(np.finfo(float).eps)) / n
-        return (
-            eta_b,
-            eta_b * rel,
-            "largest real root of the chain recurrence (Laguerre's iteration stalled: "
-            "bisection on the root count)",
-        )
-    eta, bound = found.quasi_energies(n)  # scaled back without overflow
+    eta, bound = found.quasi_energies(int(states))  # raises beyond float64
     k = int(np.argmin(np.abs(eta)))
-    return float(abs(eta[k])), float(bound[k]), "largest real root of the chain recurrence"
+    return float(abs(eta[k])), float(bound[k]), _ROUTE
 
 
-_POINTS_PER_PASS = 63
+def chain_log_quasi_energy(
+    couplings: Sequence[complex] | np.ndarray, reach: int, states: int = 2
+) -> tuple[float, float, str] | None:
+    """``(ln |eta_1|, error bound on it, route)``: :func:`chain_quasi_energy` in logarithms.
 
+    Exact to rounding for any size of ``eta_1``, also far below float64 (roots ``y`` up to
+    about ``2**13000``, see :mod:`freeladder.roots`).  None for weights of several phases.
 
-def _bisect_largest_root(
-    weights: np.ndarray, reach: int, start: float, message: str
-) -> tuple[float, float]:
-    """``(y_max, half-width of its final bracket)`` by bisection on the root count alone.
-
-    Used when :func:`freeladder.chain_real_roots` reports no convergence (measured: its
-    Laguerre iteration stalls for roots ``y`` near ``1e164``, where ``(P'/P)^2`` and
-    ``P''/P`` are subnormal numbers with few digits left).  The count
-    (:func:`freeladder.chain_count_below`) only needs the ratios of the recurrence.  Each pass
-    evaluates 63 points spread over the bracket (geometrically while it spans more than a
-    factor 2), so it shrinks the bracket 64-fold; it stops at two ulps.
-
-    Raises
-    ------
-    ArithmeticError
-        When no bracket of the largest root is found within float64 range (the weights are
-        scaled so that the largest lies in [1/2, 1), and the count is trusted up to
-        ``y = 2**960`` there), or when the count is found to be wrong (above the number of
-        roots).
-
-    References
-    ----------
-    W. Barth, R. S. Martin and J. H. Wilkinson, Numer. Math. 9, 386 (1967) (bisection on a
-    count).
+    Examples
+    --------
+    >>> log_eta, bound, _ = chain_log_quasi_energy([1.0, 1.0, 1.0], 1)  # 2 cos(2 pi / 5)
+    >>> round(float(np.exp(log_eta)), 12)
+    0.618033988749
     """
-    total = chain_root_count(weights.size, reach)
-    shift = int(np.frexp(np.max(weights))[1])
-    w = np.ldexp(weights, -shift)  # exact; largest weight in [1/2, 1): roots are y * 2**shift
-
-    def count(y: np.ndarray) -> np.ndarray:
-        got = chain_count_below(w, reach, y)
-        if np.any(got > total):  # impossible for an exact count: overflow in the ratios
-            raise ArithmeticError(
-                f"the root count of a chain of {weights.size} terms is unreliable near "
-                f"y = {float(np.max(y)):.3g} (more roots counted than the {total} there are)"
-            )
-        return got
-
-    # The count is trusted only while y w_k stays far below overflow: y <= 2**960.
-    tiny, ceiling = float(np.finfo(float).tiny), 2.0**960
-    scaled = float(np.ldexp(start, shift)) if math.isfinite(start) else ceiling
-    lo = hi = min(max(scaled, tiny), ceiling)
-    factor, bracketed = 2.0, False
-    for _ in range(64):  # widen the estimate by factors 2, 4, 16, 256, ... into a bracket
-        below = count(np.array([lo, hi]))
-        bracketed = bool(below[0] < total <= below[1])
-        if bracketed or (below[0] >= total and lo == tiny) or (below[1] < total and hi == ceiling):
-            break
-        lo = max(lo / factor, tiny) if below[0] >= total else lo
-        hi = min(hi * factor, ceiling) if below[1] < total else hi
-        factor = min(factor * factor, ceiling)
-    if not bracketed:
-        raise ArithmeticError(
-            f"the largest root of a chain of {weights.size} terms did not converge ({message}) "
-            "and could not be bracketed by the root count within float64 range"
-        )
-    frac = np.arange(1, _POINTS_PER_PASS + 1) / (_POINTS_PER_PASS + 1)
-    eps = float(np.finfo(float).eps)
-    while hi - lo > 2 * eps * hi:
-        if hi > 2 * lo:
-            pts = np.exp(math.log(lo) + frac * (math.log(hi) - math.log(lo)))
-        else:
-            pts = lo + frac * (hi - lo)
-        pts = pts[(pts > lo) & (pts < hi)]
-        if pts.size == 0:
-            break
-        # The first point whose count reaches ``total`` lies above the largest root.  (Within
-        # rounding of the root the count need not be monotone; this keeps lo < hi.)
-        reached = np.nonzero(count(pts) >= total)[0]
-        k = int(reached[0]) if reached.size else pts.size
-        lo = float(pts[k - 1]) if k > 0 else lo
-        hi = float(pts[k]) if k < pts.size else hi
-    y, half = (
-        float(np.ldexp(lo + 0.5 * (hi - lo), -shift)),
-        float(np.ldexp(0.5 * (hi - lo), -shift)),
-    )
-    if not (math.isfinite(y) and y > 0):
-        raise ArithmeticError(
-            f"the largest root of a chain of {weights.size} terms lies outside float64 range"
-        )
-    return y, half
+    found = _largest_root(couplings, reach, states)
+    if found is None:
+        return None
+    log_eta, bound = found.log_quasi_energies(int(states))
+    k = int(np.argmin(log_eta))
+    return float(log_eta[k]), float(bound[k]), _ROUTE
 
 
 def smallest_quasi_energy(m: Model) -> tuple[float, float, str]:
@@ -476,8 +418,8 @@ def smallest_quasi_energy(m: Model) -> tuple[float, float, str]:
     Raises
     ------
     ArithmeticError
-        When no converged value is found: for chains, not even by bisection on the root count
-        (:func:`chain_quasi_energy`); otherwise, when free_spectrum reports no convergence.
+        When no converged value is found (for chains, see :func:`chain_quasi_energy`, which
+        also raises when ``|eta_1|`` lies below float64).
     """
     chain = chain_structure(m)
     if chain is not None:
