@@ -19,11 +19,10 @@ from scipy.optimize import linear_sum_assignment
 
 import freeladder as fl
 from freeladder.root_result import RootResult
+from freeladder.roots import chain_back, chain_root_count
 from freeladder.roots_complex import (
     aberth_chain_roots,
-    back_reach,
     certified_complex_roots,
-    chain_degree,
     evaluate_chain,
 )
 
@@ -46,7 +45,7 @@ def _mp_chain_coefficients(w: np.ndarray, back: np.ndarray) -> list:
 
 def _mp_roots(w: np.ndarray, reach) -> np.ndarray:
     """Reciprocal roots x = 1 / y by mpmath.polyroots at 60 digits (reference library)."""
-    coeffs = _mp_chain_coefficients(w, back_reach(reach, len(w)))
+    coeffs = _mp_chain_coefficients(w, chain_back(reach, len(w)))
     with mpmath.workdps(60):
         found = mpmath.polyroots(coeffs, maxsteps=400, extraprec=400)
         return np.array([complex(r) for r in found])
@@ -87,7 +86,7 @@ def test_complex_chain_against_mpmath(n_terms, reach, states, seed) -> None:
         reach = _random_back(n_terms, rng)
     found = aberth_chain_roots(w, reach, order=states)
     ref = _mp_roots(w, reach)
-    assert len(found.values) == chain_degree(n_terms, reach) == len(ref) == found.count
+    assert len(found.values) == chain_root_count(n_terms, reach) == len(ref) == found.count
     assert isinstance(found, RootResult) and found.variable == "x" and not found.rigorous
     assert found.method == "chain-aberth" and "estimate" in found.summary()
     err = _match(found.values, ref)
@@ -119,7 +118,7 @@ def test_evaluate_chain_value_and_derivative() -> None:
     x = np.array([0.3 + 0.2j, -1.1 + 2.0j, 5.0 - 0.5j])
     for reach in (2, back):
         vals = evaluate_chain(x, w, reach, order=2)
-        coeffs = _mp_chain_coefficients(w, back_reach(reach, 25))
+        coeffs = _mp_chain_coefficients(w, chain_back(reach, 25))
         with mpmath.workdps(40):
             for i, xi in enumerate(x):
                 val = complex(mpmath.polyval(coeffs, mpmath.mpc(xi)))
@@ -205,7 +204,7 @@ def test_zero_weights_drop_out() -> None:
     rng = np.random.default_rng(9)
     w = rng.normal(size=20) + 1j * rng.normal(size=20)
     w[[0, 7, 8]] = 0.0
-    back = back_reach(2, 20)
+    back = chain_back(2, 20)
     found = aberth_chain_roots(w, back)
     keep = w != 0
     kept_before = np.concatenate([[0], np.cumsum(keep)])

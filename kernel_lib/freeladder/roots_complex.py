@@ -87,13 +87,12 @@ import numpy as np
 from numba import njit, prange
 
 from .root_result import RootResult
+from .roots import chain_back, chain_root_count
 
 __all__ = [
     "ChainValues",
     "aberth_chain_roots",
-    "back_reach",
     "certified_complex_roots",
-    "chain_degree",
     "evaluate_chain",
     "inclusion_radii",
 ]
@@ -403,47 +402,6 @@ class ChainValues(NamedTuple):
     phase: np.ndarray
     log_cond: np.ndarray
     rel_err: np.ndarray
-
-
-def back_reach(reach: int | Sequence[int] | np.ndarray, n_terms: int) -> np.ndarray:
-    """Per-position back-reach ``back[k]`` from an int reach p (``min(p, k)``) or an array.
-
-    Position k's earlier neighbours are exactly ``k - back[k] .. k - 1`` (``back[k] = 0``: none).
-    Raises ``ValueError`` for a reach < 1, or an array of the wrong length or with an entry
-    outside ``0 .. k``.
-    """
-    m = int(n_terms)
-    if np.ndim(reach) == 0:
-        if isinstance(reach, bool) or int(reach) != reach or int(reach) < 1:  # type: ignore[arg-type]
-            raise ValueError(
-                f"reach must be an integer >= 1 or an array of back-reaches, got {reach!r}"
-            )
-        return np.minimum(np.arange(m, dtype=np.int64), int(reach))  # type: ignore[arg-type]
-    arr = np.asarray(reach)
-    if arr.ndim != 1 or arr.shape[0] != m:
-        raise ValueError(
-            f"the back-reach array needs one entry per term ({m}), got shape {arr.shape}"
-        )
-    if arr.dtype.kind not in "iu" and not np.all(arr == np.round(arr)):
-        raise ValueError("the back-reach array must hold integers")
-    back = arr.astype(np.int64)
-    bad = np.nonzero((back < 0) | (back > np.arange(m)))[0]
-    if bad.size:
-        j = int(bad[0])
-        raise ValueError(f"back-reach {j} is {back[j]}: it must lie in 0 .. {j} (position {j})")
-    return back
-
-
-def chain_degree(n_terms: int, reach: int | Sequence[int] | np.ndarray) -> int:
-    """Degree of the chain polynomial (the number of roots): the independence number.
-
-    ``floor((M + p) / (p + 1))`` for a fixed reach p; for a back-reach array, the recurrence
-    ``deg_k = max(deg_{k-1}, deg_{k - back[k] - 1} + 1)`` (generic weights).
-    """
-    if np.ndim(reach) == 0:
-        return (int(n_terms) + int(reach)) // (int(reach) + 1)  # type: ignore[arg-type]
-    back = back_reach(reach, n_terms)
-    return int(_degrees(back, 0, back.size)[-1]) if back.size else 0
 
 
 class _Chain:
@@ -896,7 +854,7 @@ def aberth_chain_roots(
         ``w_j = c_j^N`` in chain order.
     reach : int or 1-d int array
         A fixed reach p >= 1, or per position the back-reach ``back[k]`` (earlier neighbours
-        exactly ``k - back[k] .. k - 1``; :func:`back_reach`).
+        exactly ``k - back[k] .. k - 1``; :func:`freeladder.roots.chain_back`).
     order : int
         N of the model (only for the rounding-error estimate).
     start : ndarray of complex, optional
@@ -954,7 +912,7 @@ def aberth_chain_roots(
     if not np.all(np.isfinite(w)):
         bad = int(np.nonzero(~np.isfinite(w))[0][0])
         raise ValueError(f"weight {bad} is {w[bad]!r}, not finite")
-    back = back_reach(reach, w.shape[0])
+    back = chain_back(reach, w.shape[0])
     top = float(np.abs(w).max())
     if top == 0:
         raise ValueError("every weight is zero: the polynomial is constant, no roots")
@@ -963,7 +921,7 @@ def aberth_chain_roots(
     # Work with w / 2**e (exact; the roots scale with it), so that |x| = O(1).
     shift = int(np.frexp(top)[1])
     ch = _Chain(np.ldexp(w.real, -shift) + 1j * np.ldexp(w.imag, -shift), back, order)
-    n = chain_degree(ch.m, ch.back)
+    n = chain_root_count(ch.m, ch.back)
     z0 = None
     if start is not None:
         z0 = np.array(start, dtype=complex).ravel()
@@ -1061,7 +1019,7 @@ def evaluate_chain(
     weights : array of complex, length M
         ``w_j = c_j^N`` in chain order (not scaled: ``log_abs`` is that of the true ``Q``).
     reach : int or 1-d int array
-        Fixed reach or back-reach array (see :func:`back_reach`).
+        Fixed reach or back-reach array (see :func:`freeladder.roots.chain_back`).
     order : int
         N (only for the rounding-error scale).
 
@@ -1072,8 +1030,8 @@ def evaluate_chain(
     """
     w = np.asarray(weights, dtype=complex)
     xs = np.asarray(x, dtype=complex).ravel()
-    ch = _Chain(w, back_reach(reach, w.shape[0]), order)
-    n = chain_degree(ch.m, ch.back)
+    ch = _Chain(w, chain_back(reach, w.shape[0]), order)
+    n = chain_root_count(ch.m, ch.back)
     k = xs.size
     g, log_abs_p, phase_p, log_cond, rel_err = ch.evaluate(
         xs, np.zeros(k, np.int64), np.full(k, ch.m), np.full(k, n)
@@ -1100,8 +1058,8 @@ def inclusion_radii(
     """
     zs = np.asarray(z, dtype=complex)
     w = np.asarray(weights, dtype=complex)
-    ch = _Chain(w, back_reach(reach, w.shape[0]), order)
-    n = chain_degree(ch.m, ch.back)
+    ch = _Chain(w, chain_back(reach, w.shape[0]), order)
+    n = chain_root_count(ch.m, ch.back)
     if zs.shape != (n,):
         raise ValueError(f"{zs.size} approximations for {n} roots")
     return _radii(ch, zs, _pieces(ch, [(0, ch.m, n)]), _Values(n))

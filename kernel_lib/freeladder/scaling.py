@@ -398,7 +398,7 @@ def chain_log_quasi_energy(
     --------
     >>> log_eta, bound, _ = chain_log_quasi_energy([1.0, 1.0, 1.0], 1)  # 2 cos(2 pi / 5)
     >>> round(float(np.exp(log_eta)), 12)
-    0.618033988749
+    0.61803398875
     """
     found = _largest_root(couplings, reach, states)
     if found is None:
