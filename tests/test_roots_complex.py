@@ -224,7 +224,7 @@ def test_bad_input_is_refused() -> None:
         aberth_chain_roots([1.0, 1.0, 1.0], start=np.ones(3))
     with pytest.raises(ValueError, match="back-reach 2 is 3"):
         aberth_chain_roots([1.0, 1.0, 1.0], np.array([0, 1, 3]))
-    with pytest.raises(ValueError, match="one entry per term"):
+    with pytest.raises(ValueError, match="1-d array of 3 entries"):
         aberth_chain_roots([1.0, 1.0, 1.0], np.array([0, 1]))
     with pytest.raises(ValueError, match="reach must be"):
         aberth_chain_roots([1.0, 1.0, 1.0], 0)
