@@ -260,12 +260,12 @@ def test_sector_spectra_are_free_spectra_whose_union_is_the_whole_spectrum(build
 def test_ground_sector_holds_the_exact_ground_state(build):
     # the sector free_spectrum(m, sector="ground") picks holds numpy's ground states: each
     # joint eigenvector of the generators in the ground eigenspace, labelled with
-    # fl.sectors(m).sector_of, has the chosen cycle values
+    # fl.sectors(m).sector_of, has the chosen cycle values.  Dense numpy diagonalization
+    # (dimension <= 4096): the ground spaces are degenerate (8-fold for the open 2 x 4 patch),
+    # and Lanczos need not return every copy of a degenerate eigenvalue.
     m = build()
-    values, vectors = eigsh(m.to_sparse().tocsc(), k=6, which="SA")  # scipy Lanczos
-    order = np.argsort(values)
-    values, vectors = values[order], vectors[:, order]
-    assert values[-1] - values[0] > 1e-6  # the whole ground space is among the six
+    assert m.dimension <= 4096
+    values, vectors = np.linalg.eigh(m.to_sparse().toarray())
     sp = fl.free_spectrum(m, sector="ground")
     assert sp.ground_energy == pytest.approx(values[0], abs=1e-10)
     s = fl.sectors(m)
