@@ -229,6 +229,7 @@ def _workbench_checks(page: sync_api.Page, cell: sync_api.Locator, path: Path) -
         arg=output.element_handle(),
         timeout=120_000,
     )
+    _check_workbench_layout(page, output)
     height = int((output.bounding_box() or {"height": 2500})["height"])
     page.set_viewport_size({"width": 1400, "height": height + 400})
     output.scroll_into_view_if_needed()
@@ -236,6 +237,42 @@ def _workbench_checks(page: sync_api.Page, cell: sync_api.Locator, path: Path) -
     output.screenshot(path=str(path))
     page.set_viewport_size({"width": 1400, "height": 1000})
     return output.text_content() or ""
+
+
+def _check_workbench_layout(page: sync_api.Page, output: sync_api.Locator) -> None:
+    """What a newcomer saw wrong once, measured in the page.
+
+    The tour's chain (couplings 1, 0.4, ...) is no family pattern, so the family selector says
+    so; the frustration graph's title is not under bqplot's toolbar (hovered, so it shows);
+    the k / eta_k / bound table's rows keep their natural height beside the longer notes.
+    """
+    selected = output.locator("select").first.evaluate(
+        "(s) => s.options[s.selectedIndex].textContent"
+    )
+    assert selected.startswith("(custom"), f"the family selector shows {selected!r}"
+    graph = output.locator(".bqplot").first
+    graph.hover()
+    page.wait_for_timeout(300)
+    overlap = output.evaluate(
+        """(node) => {
+            const title = node.querySelector('.freeladder-graph-title').getBoundingClientRect();
+            const bars = [...node.querySelectorAll('.toolbar_div')]
+                .map(b => b.getBoundingClientRect()).filter(r => r.width > 0 && r.height > 0);
+            return bars.some(r => r.left < title.right && title.left < r.right &&
+                                  r.top < title.bottom && title.top < r.bottom);
+        }"""
+    )
+    assert not overlap, "bqplot's toolbar covers the frustration graph's title"
+    rows = output.evaluate(
+        """(node) => [...node.querySelectorAll('.freeladder-eta-table tr')].map(tr => {
+            const range = document.createRange();
+            range.selectNodeContents(tr.cells[1]);
+            return [tr.getBoundingClientRect().height, range.getBoundingClientRect().height];
+        })"""
+    )
+    assert rows, "the roots table is missing"
+    stretched = [(row, text) for row, text in rows if row > text + 8]
+    assert not stretched, f"roots table rows taller than their text (px): {stretched}"
 
 
 def _run_all_cells(page: sync_api.Page, attempts: int = 3) -> None:

@@ -20,6 +20,8 @@ import pytest
 import freeladder as fl
 from freeladder_lab import Workbench, verdict_panel
 from freeladder_lab import workbench as workbench_module
+from freeladder_lab.input_panel import CUSTOM
+from freeladder_lab.presets import FAMILIES
 from freeladder_lab.worker import Worker
 
 
@@ -354,6 +356,79 @@ def test_family_controls_follow_a_chain_passed_in() -> None:
     assert (wb.input.size.value, wb.input.reach.value, wb.input.states.value) == (8, 2, 3)
     wb.input.reach.value = 1
     assert len(wb.model) == 8 and fl.chain_structure(wb.model).reach == 1
+
+
+def test_family_selector_says_custom_for_a_model_the_controls_do_not_build() -> None:
+    # the tour's chain: couplings 1, 0.4, 1, 0.4, ...; no family pattern as it stands builds
+    # it, so the selector must not claim "uniform, a = 1"
+    given = fl.exclusion_chain(8, reach=2, couplings=fl.staggered(8, 1.0, 0.4))
+    wb = Workbench(given, synchronous=True)
+    panel = wb.input
+    assert panel.family.value == CUSTOM
+    assert "not one the family controls build" in panel.family_note.value
+    hidden = (panel.size, panel.reach, panel.pattern, panel.pattern_box)
+    assert all(w.layout.display == "none" for w in hidden)
+    assert panel.states.layout.display != "none" and not panel.states.disabled  # N re-reads
+    assert wb.model is given
+    _assert_roots_shown(wb, fl.free_spectrum(given))
+    # picking the chain family replaces the model by the family's (size kept from the chain)
+    panel.family.value = next(iter(FAMILIES))
+    assert panel.family_note.value == ""
+    assert all(w.layout.display == "" for w in hidden)
+    built = fl.exclusion_chain(8, reach=2)
+    assert str(wb.model) == str(built)
+    _assert_roots_shown(wb, fl.free_spectrum(built))
+
+
+def test_typed_text_the_controls_build_keeps_the_family_in_charge() -> None:
+    wb = Workbench(synchronous=True)  # the chain family at its default size, uniform
+    panel = wb.input
+    default = panel.size.value
+    wb.set_text(str(fl.exclusion_chain(default, reach=2)))
+    assert panel.family.value != CUSTOM and panel.family_note.value == ""
+    panel.size.value = default - 2  # still the family's model: the size control rebuilds it
+    assert str(wb.model) == str(fl.exclusion_chain(default - 2, reach=2))
+    wb.set_text("0.3 X0 Z1 Z2 + X1 Z2 Z3 + X2 Z3 Z4")  # no uniform chain: custom
+    assert panel.family.value == CUSTOM
+    panel.size.value = 5  # a hidden control moved by code builds nothing
+    assert str(wb.model) == str(fl.parse_model("0.3 X0 Z1 Z2 + X1 Z2 Z3 + X2 Z3 Z4"))
+
+
+def test_choosing_custom_by_hand_keeps_the_model() -> None:
+    wb = Workbench(synchronous=True)
+    before = wb.model
+    wb.input.family.value = CUSTOM
+    assert wb.model is before
+    assert wb.input.size.layout.display == "none" and "Pick a family" in wb.input.family_note.value
+
+
+def test_roots_summary_says_what_the_bounds_are_once() -> None:
+    # the text of the bounds names each kind of claim once, and the fast and certified routes
+    # differ in that claim (proved enclosures only for the certified one)
+    m = fl.exclusion_chain(8, reach=2, couplings=fl.staggered(8, 1.0, 0.4))
+    wb = Workbench(m, synchronous=True)
+    summary = wb.roots.summary.value
+    bounds = fl.free_spectrum(m).provenance.bounds
+    assert f"bounds: {html.escape(bounds)}" in summary
+    assert summary.count("error estimates") == 1 and bounds.count("estimate") == 1
+    # the method is said in the path line, not again here
+    assert "count bisection" not in bounds and "count bisection" in summary
+    proved = fl.free_spectrum(m, method="certified").provenance.bounds
+    assert proved.startswith("proved enclosures") and "estimate" not in proved
+    # the k / eta_k / bound table sits at its natural height beside the notes
+    assert "align-items:flex-start" in summary
+
+
+def test_graph_title_is_a_label_above_the_figure() -> None:
+    # bqplot draws its toolbar over the figure's top strip, so the title lives outside it
+    m = fl.exclusion_chain(8, reach=2)
+    wb = Workbench(m, synchronous=True)
+    assert wb.verdict.figure.title == ""
+    # reach-2 exclusion algebra: term j fails to commute with j +- 1 and j +- 2 only
+    # (Fendley 2019), so M - 1 + M - 2 = 13 pairs; networkx counts the graph's edges
+    pairs = 8 - 1 + 8 - 2
+    assert nx.Graph(wb.analysis.graph.to_undirected()).number_of_edges() == pairs
+    assert f"frustration graph: 8 terms, {pairs} non-commuting pairs" in wb.verdict.title.value
 
 
 def _ladder_text() -> str:

@@ -341,10 +341,22 @@ def provenance(found: RootResult) -> dict[str, Any]:
         "exact-certified": f"{found.details.get('polynomial', 'exact exclusion polynomial')}, "
         "certified roots (python-flint)",
     }
+    # What each root's error bound is, said once (the method itself is in ``path``).
+    proved = {
+        "chain-certified": "outward-rounded interval sign tests of P at both ends of each "
+        "root's interval, with the root count",
+        "exact-certified": "radii of python-flint's certified isolating balls",
+    }
+    estimated = {
+        "chain-count": "the last Laguerre step or half the final bisection bracket, at least "
+        "sqrt(M) eps relative",
+        "chain-aberth": "Weierstrass inclusion-disc radii plus an estimate of the rounding error",
+    }
     if found.rigorous:
-        bounds = f"rigorous ({ROOT_METHODS[found.method].description})"
+        bounds = f"proved enclosures: {proved[found.method]}"
     else:
-        bounds = f"error estimates, not proofs ({ROOT_METHODS[found.method].description})"
+        how = estimated.get(found.method, f"the certificate did not hold ({found.message})")
+        bounds = f"error estimates, not proofs: {how}"
     return {
         "method": "certified" if found.rigorous else "fast",
         "root_method": found.method,

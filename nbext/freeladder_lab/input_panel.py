@@ -14,7 +14,7 @@ import freeladder as fl
 from .presets import FAMILIES, CouplingPattern, build, pattern_values, scaled
 from .style import WARN, escape
 
-__all__ = ["DEBOUNCE_SECONDS", "TABLE_LIMIT", "InputPanel", "SLIDER_LIMIT"]
+__all__ = ["CUSTOM", "DEBOUNCE_SECONDS", "TABLE_LIMIT", "InputPanel", "SLIDER_LIMIT"]
 
 DEBOUNCE_SECONDS = 0.4
 #: Largest number of terms for which the per-term table is offered.
@@ -22,6 +22,13 @@ TABLE_LIMIT = 48
 #: Largest number of symbols that get a slider each.
 SLIDER_LIMIT = 12
 _TEXT_SHOWN = 400  # longest model (terms) whose text is written into the text area
+#: The family selector's entry for a model the family controls did not build (typed text or a
+#: model passed in): the size, reach and coupling controls are hidden until a family is picked.
+CUSTOM = "(custom: the model text)"
+_CUSTOM_NOTE = (
+    "<i>The model is the text on the left, not one the family controls build. Pick a family"
+    " to build one instead (it replaces the text).</i>"
+)
 
 
 def _labelled(widget: widgets.Widget, label: str) -> widgets.Widget:
@@ -70,9 +77,14 @@ class InputPanel(widgets.VBox):
         )
         self.message = widgets.HTML("")
         self.family = _labelled(
-            widgets.Dropdown(options=list(FAMILIES), layout=widgets.Layout(width="auto")),
+            widgets.Dropdown(
+                options=[CUSTOM, *FAMILIES],
+                value=next(iter(FAMILIES)),
+                layout=widgets.Layout(width="auto"),
+            ),
             "family",
         )
+        self.family_note = widgets.HTML("")
         lo, hi, default = FAMILIES[self.family.value].size_range
         self.size = _labelled(widgets.IntSlider(default, min=lo, max=hi), "terms M")
         self.reach = _labelled(widgets.IntSlider(2, min=1, max=6), "reach p")
@@ -109,6 +121,7 @@ class InputPanel(widgets.VBox):
             [
                 widgets.HTML("<b>Or build from a family</b> (replaces the model)"),
                 self.family,
+                self.family_note,
                 self.size,
                 self.reach,
                 self.states,
@@ -167,7 +180,7 @@ class InputPanel(widgets.VBox):
             self.show_problem("the text has no operator terms (a constant alone has no spectrum)")
             return
         self.message.value = ""
-        self._base = None
+        self.reflect(model)
         self._on_model(model, False)
 
     def show_syntax_error(self, exc: fl.ModelSyntaxError) -> None:
@@ -192,25 +205,63 @@ class InputPanel(widgets.VBox):
         )
 
     def show_model_text(self, model: fl.Model) -> None:
-        """Write a model built elsewhere into the text area without re-parsing it.
-
-        When the model is an exclusion chain and the family shown is the chain family, the
-        size, reach and states controls are set to match it, so that moving one of them
-        changes this model rather than a default one.
-        """
+        """Write a model built elsewhere into the text area without re-parsing it."""
         self._quiet = True
         try:
-            self._match_controls(model)
             if len(model) <= _TEXT_SHOWN:
                 self.text.value = str(model)
             else:
                 self.text.value = (
-                    f"# {len(model)} terms, built by the family controls (text not shown);\n"
-                    "# type a model here to replace it"
+                    f"# {len(model)} terms (text not shown);\n# type a model here to replace it"
                 )
             self.message.value = ""
         finally:
             self._quiet = False
+
+    def reflect(self, model: fl.Model) -> None:
+        """Make the family controls say whether they build ``model`` (typed or passed in).
+
+        When the model is an exclusion chain and the family shown is the chain family, the
+        size, reach and states controls are first set to match it.  If the controls, as set,
+        build exactly this model (same strings and couplings), they stay in charge: moving one
+        of them changes this model.  Otherwise the family selector shows :data:`CUSTOM` and
+        the size, reach and coupling controls are hidden until a family is picked.
+        """
+        self._base = None
+        if self.family.value == CUSTOM:
+            return
+        self._quiet = True
+        try:
+            self._match_controls(model)
+            base = build(self.family.value, self.size.value, self.reach.value, self.states.value)
+            built = scaled(base, pattern_values(self._pattern(), len(base)))
+        except ValueError:
+            built = None
+        finally:
+            self._quiet = False
+        if built is not None and built.states == model.states and str(built) == str(model):
+            self._base = base
+        else:
+            self._show_custom()
+
+    def _show_custom(self) -> None:
+        """The selector on :data:`CUSTOM`, the build controls hidden, a note saying why.
+
+        The states control stays: N still applies, it reads the text again.
+        """
+        self._quiet = True
+        try:
+            self.family.value = CUSTOM
+        finally:
+            self._quiet = False
+        for w in self._build_controls():
+            w.layout.display = "none"
+        self.states.disabled = False
+        self.table.layout.display = "none"
+        self.family_note.value = _CUSTOM_NOTE
+
+    def _build_controls(self) -> list[widgets.Widget]:
+        return [self.size, self.reach, self.pattern, self.pattern_box]
 
     def _match_controls(self, model: fl.Model) -> None:
         """Set the chain family's controls to an exclusion chain's size, reach and N (quietly)."""
@@ -229,18 +280,30 @@ class InputPanel(widgets.VBox):
 
     # -- families and couplings ----------------------------------------------------------------
     def _family_changed(self, change: dict) -> None:
+        if self._quiet:
+            return
+        if change["new"] == CUSTOM:  # keep the model; the text is in charge from now on
+            self._base = None
+            self._show_custom()
+            return
         fam = FAMILIES[self.family.value]
         lo, hi, default = fam.size_range
         self._quiet = True
         try:
+            current = self.size.value
+            keep = change["old"] == CUSTOM and lo <= current <= hi
             self.size.min, self.size.max = lo, hi
-            self.size.value = default
+            self.size.value = current if keep else default
+            if fam.label == "clock":
+                self.states.value = max(self.states.value, 3)
         finally:
             self._quiet = False
+        for w in self._build_controls():
+            w.layout.display = ""
+        self.family_note.value = ""
         self.size.description = fam.size_label
         self.reach.disabled = not fam.has_reach
         self.states.disabled = not fam.has_states
-        self.states.value = max(self.states.value, 3) if fam.label == "clock" else self.states.value
         self.build_family()
 
     def _structure_changed(self, change: dict) -> None:
@@ -281,6 +344,8 @@ class InputPanel(widgets.VBox):
 
     def build_family(self) -> None:
         """Build the chosen family at the chosen size and apply the coupling pattern."""
+        if self.family.value == CUSTOM:
+            return  # the text is in charge until a family is picked
         try:
             self._base = build(
                 self.family.value, self.size.value, self.reach.value, self.states.value

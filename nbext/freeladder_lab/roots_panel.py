@@ -210,8 +210,10 @@ def _summary(spectrum: fl.FreeSpectrum, real_reason: str | None, bounds: np.ndar
     tail = f"<tr><td></td><td>&hellip; {more} more</td><td></td></tr>" if more > 0 else ""
     real = f"<div>&#10003; {escape(real_reason)}</div>" if real_reason else ""
     return (
-        f'<div style="display:flex; gap:28px; font-size:12.5px; color:{INK};">'
-        f"<table style='border-collapse:collapse'><tr><th>k</th><th style='text-align:left'>"
+        f'<div style="display:flex; align-items:flex-start; gap:28px; font-size:12.5px;'
+        f' color:{INK};">'
+        "<table class='freeladder-eta-table' style='border-collapse:collapse'><tr><th>k</th>"
+        "<th style='text-align:left'>"
         f"eta_k</th><th style='text-align:left'>bound</th></tr>{rows}{tail}</table>"
         f"<div style='max-width:60%'><div><b>{len(spectrum.quasi_energies)}</b> quasi-energies "
         f"by <code>{escape(prov.method)}</code>: {escape(prov.path)}</div>"

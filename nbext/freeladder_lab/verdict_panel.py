@@ -89,15 +89,23 @@ class VerdictPanel(widgets.HBox):
             x_offset=7,
             y_offset=-7,
         )
+        # The title is a label above the figure, not the figure's own title: bqplot draws its
+        # toolbar (pan and zoom, reset, save) over the top strip of the figure.
+        self.title = widgets.HTML(
+            _title_html(
+                "frustration graph: one vertex per term, an edge where two terms do not commute"
+            ),
+            layout=widgets.Layout(margin="0 0 0 8px"),
+        )
+        self.title.add_class("freeladder-graph-title")
         self.figure = bq.Figure(
             marks=[self.edges, self.clique, self.witness, self.vertices, self.labels],
-            title="frustration graph: one vertex per term, an edge where two terms do not commute",
             fig_margin={"top": 34, "bottom": 8, "left": 8, "right": 8},
-            layout=widgets.Layout(width="58%", height="320px"),
-            title_style={"font-size": "13px"},
+            layout=widgets.Layout(width="100%", height="320px"),
         )
         self._drawn_for: Any = None  # the strings whose graph is on screen
-        super().__init__([self.summary, self.figure])
+        graph_box = widgets.VBox([self.title, self.figure], layout=widgets.Layout(width="58%"))
+        super().__init__([self.summary, graph_box])
 
     def show(self, a: fl.Analysis) -> None:
         """Show the verdict of ``a`` and draw its graph (laid out only when the strings changed)."""
@@ -135,11 +143,15 @@ class VerdictPanel(widgets.HBox):
                 if chain is not None
                 else ("force-directed" if small else "bandwidth-reducing order, in a band")
             )
-            self.figure.title = (
+            self.title.value = _title_html(
                 f"frustration graph: {len(names)} terms, {len(pairs)} non-commuting pairs "
                 f"({layout_name})"
             )
         self._drawn_for = a.model.strings
+
+
+def _title_html(text: str) -> str:
+    return f'<div style="font-size:13px; color:{INK};">{escape(text)}</div>'
 
 
 def _summary_html(v: fl.Verdict, n_terms: int) -> str:

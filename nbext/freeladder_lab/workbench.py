@@ -75,7 +75,9 @@ class Workbench(widgets.VBox):
     ----------
     model : Model or str, optional
         A model, or model text in freeladder's syntax.  Without one, the family controls
-        build a reach-2 exclusion chain.
+        build a reach-2 exclusion chain.  A model those controls would not build (as they
+        stand, or for a chain with its size, reach and N) sets the family selector to
+        "(custom: the model text)" and disables them until a family is picked.
     states : int
         N used to parse text (the states control can change it later).
     synchronous : bool
@@ -180,8 +182,9 @@ class Workbench(widgets.VBox):
         if isinstance(model, str):
             self.set_text(model)
         elif model is not None:
-            self.model = model
             self.input.show_model_text(model)
+            self.input.reflect(model)
+            self.model = model
         else:
             self.input.build_family()
 
