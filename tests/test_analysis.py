@@ -86,3 +86,19 @@ def test_shared_verdict_quotes_the_new_couplings():
     assert b.verdict.guarantee.witness_text == fl.classify(b.model).guarantee.witness_text
     assert "5 Z2 Z3" in b.verdict.guarantee.witness_text
     assert b.verdict.kind == a.verdict.kind and b.verdict.witness == a.verdict.witness
+
+
+def test_spectrum_of_a_sector_is_the_free_spectrum_of_that_sector() -> None:
+    # A ladder with one plaquette: the Analysis asks free_spectrum for the sector and keeps the
+    # answer; the ground sector's ground energy is numpy's lowest eigenvalue (dense ED).
+    m = fl.parse_model("X0 X1 + 0.7 Y1 Y2 + 1.3 Z2 Z3 + 0.9 X3 X0 + 1.1 Z1 Z3")
+    a = fl.analyze(m)
+    ground = a.spectrum(sector="ground")
+    assert a.spectrum(sector="ground") is ground
+    exact = np.linalg.eigvalsh(m.to_sparse().toarray())
+    assert ground.ground_energy == pytest.approx(exact[0], abs=1e-10)
+    values = ground.provenance.sector["cycle_values"]
+    same = a.spectrum(sector=tuple(values))
+    assert same is not ground and same.ground_energy == pytest.approx(exact[0], abs=1e-10)
+    with pytest.raises(fl.NoTheoremError):
+        a.spectrum()

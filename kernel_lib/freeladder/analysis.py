@@ -127,19 +127,30 @@ class Analysis:
         return charge_series(self.model, limit=limit)
 
     def spectrum(
-        self, method: str = "auto", lowest: int | None = None, unproven: bool = False
+        self,
+        method: str = "auto",
+        lowest: int | None = None,
+        unproven: bool = False,
+        sector: str | Sequence[int] | Mapping[Any, int] | None = None,
     ) -> FreeSpectrum:
         """The free spectrum (:func:`freeladder.free_spectrum`), kept per set of arguments.
+
+        ``sector`` chooses a sector of the conserved cycle strings of a Jordan-Wigner model
+        (``"ground"``, cycle values, or a mapping of conserved strings to +-1), as in
+        :func:`freeladder.free_spectrum`.
 
         Raises
         ------
         NoTheoremError
             When no theorem guarantees the spectrum and ``unproven`` is False.
         """
-        key = f"spectrum:{method}:{lowest}:{bool(unproven)}"
+        chosen = sector if sector is None or isinstance(sector, str) else _sector_key(sector)
+        key = f"spectrum:{method}:{lowest}:{bool(unproven)}:{chosen!r}"
         kwargs: dict[str, Any] = {"method": method, "lowest": lowest}
         if unproven:
             kwargs["unproven"] = True
+        if sector is not None:
+            kwargs["sector"] = sector
         return self._part(key, lambda: free_spectrum(self.model, **kwargs))  # type: ignore[no-any-return]
 
     @property
@@ -233,3 +244,10 @@ def analyze(m: Model | Analysis) -> Analysis:
     if isinstance(m, Analysis):
         return m
     return Analysis(m)
+
+
+def _sector_key(sector: Sequence[int] | Mapping[Any, int]) -> tuple[Any, ...]:
+    """A stable cache key for a sector given as values or as a mapping of strings to +-1."""
+    if isinstance(sector, Mapping):
+        return tuple(sorted((str(k), repr(v)) for k, v in sector.items()))
+    return tuple(repr(v) for v in sector)
