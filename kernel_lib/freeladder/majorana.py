@@ -994,7 +994,12 @@ def _canonical_hessenberg(h: np.ndarray) -> tuple[np.ndarray, float]:
     n = h.shape[0]
     if n == 1:
         return np.zeros(0), 1.0
-    t, tau, info = scipy.linalg.lapack.dgehrd(np.array(h, dtype=float, order="F"))
+    work, info = scipy.linalg.lapack.dgehrd_lwork(n)
+    if info != 0:
+        raise AssertionError(f"LAPACK dgehrd workspace query failed (info {info})")
+    t, tau, info = scipy.linalg.lapack.dgehrd(  # blocked: needs the queried workspace
+        np.array(h, dtype=float, order="F"), lwork=max(n, int(work)), overwrite_a=1
+    )
     if info != 0:
         raise AssertionError(f"LAPACK dgehrd failed (info {info})")
     b = (np.diagonal(t, 1) - np.diagonal(t, -1)) / 2
