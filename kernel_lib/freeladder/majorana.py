@@ -18,9 +18,13 @@ every such relation by linear algebra over GF(2) and keeps only consistent secto
 dimension ``2^(L - rank)``.
 
 In a sector, ``H = (i/2) sum_ab h_ab gamma_a gamma_b`` with the real antisymmetric matrix
-``h_ab = c_j u_j = -h_ba``; its real Schur form ``h = Q (+) [[0, e_k], [-e_k, 0]] Q^T`` gives
+``h_ab = c_j u_j = -h_ba``; its normal form ``h = Q (+) [[0, e_k], [-e_k, 0]] Q^T`` gives
 ``H = sum_k e_k s_k`` with ``s_k = +-1`` and, per even component, the constraint
-``prod_k s_k = kappa i^(V/2) det Q`` when its parity is fixed.  Complex couplings give a
+``prod_k s_k = kappa i^(V/2) det Q`` when its parity is fixed, where
+``det Q = sign Pf(h)`` (``Pf(h) = det Q prod_k e_k``).  Neither ``Q`` nor a Schur form is
+computed: the energies are singular values of the off-diagonal block when the pattern of ``h``
+is bipartite (the sign from an LU determinant), else eigenvalues of its Householder
+tridiagonal form (the sign from the same reduction).  Complex couplings give a
 complex antisymmetric ``h``: its eigenvalue pairs ``+-e_k`` and ``det Q = Pf(h) / prod e_k``
 play the same roles.  :func:`freeladder.free_spectrum` with ``sector=`` returns one set of
 cycle values as a :class:`~freeladder.spectrum.FreeSpectrum` (through :func:`flux_sector`).
@@ -44,6 +48,9 @@ from typing import Any
 import networkx as nx
 import numpy as np
 import scipy.linalg
+import scipy.linalg.lapack
+import scipy.sparse
+import scipy.sparse.csgraph
 from tqdm.auto import tqdm
 
 from .cache import cached, structure_store
@@ -693,8 +700,10 @@ class SectorSpectrum:
     constant : complex or float
         The model's constant term, in every level.
     error_bound : float
-        Estimate of the absolute error of every single-particle energy: ``V eps ||h||_2``
-        (backward stability of the real Schur decomposition, with Weyl's inequality), plus,
+        Estimate of the absolute error of every single-particle energy: ``2 V eps sum_j |c_j|``
+        (``sum_j |c_j| >= ||h||_2``; backward stability of the singular value decomposition or
+        Householder reduction, a modest factor ``2 V`` for their growth constants, with Weyl's
+        inequality), plus,
         for complex couplings, the largest mismatch ``|lambda + lambda'|`` of the eigenvalue
         pairs of the non-normal matrix; an estimate, not a proof.
     selection : str
@@ -762,7 +771,7 @@ class SectorSpectrum:
                 ],
                 "ground_energy": self.ground_energy,
                 "error_bound": self.error_bound,
-                "bounds": "estimate (backward-stable Schur decomposition), not a proof",
+                "bounds": "estimate (backward-stable decomposition), not a proof",
                 "selection": self.selection,
             }
         )
@@ -893,29 +902,114 @@ def _component_levels(e: np.ndarray, parity: int | None) -> np.ndarray:
 
 
 def _canonical(h: np.ndarray) -> tuple[np.ndarray, float]:
-    """Energies ``e_k >= 0`` of the real antisymmetric ``h`` and ``det Q`` of its normal form."""
+    """Energies ``e_k >= 0`` of the real antisymmetric ``h`` and the sign of ``Pf(h) / prod e_k``.
+
+    That sign is ``det Q`` of the normal form ``h = Q (+)[[0, e_k], [-e_k, 0]] Q^T``, since
+    ``Pf(Q B Q^T) = det Q Pf(B)``.  Energies below ``10 V eps max|h|`` are set to zero (a zero
+    mode: the sign is then irrelevant, both constraints give the same levels).  A matrix whose
+    non-zero pattern is bipartite goes through :func:`_canonical_bipartite` (half the size),
+    any other through :func:`_canonical_hessenberg`; neither needs a Schur form.
+    """
     n = h.shape[0]
-    t, q = scipy.linalg.schur(h, output="real")
+    if n == 0:
+        return np.zeros(0), 1.0
     tol = 10 * n * _EPS * max(1.0, float(np.abs(h).max()))
-    cols: list[int] = []
-    energies: list[float] = []
-    zeros: list[int] = []
-    i = 0
-    while i < n:
-        if i + 1 < n and abs(t[i + 1, i]) > tol:
-            b = t[i, i + 1]
-            cols += [i, i + 1] if b >= 0 else [i + 1, i]
-            energies.append(abs(b))
-            i += 2
-        else:
-            zeros.append(i)
-            i += 1
-    while len(zeros) >= 2:
-        cols += [zeros.pop(0), zeros.pop(0)]
-        energies.append(0.0)
-    cols += zeros  # one unpaired zero mode for odd V (never a parity constraint)
-    det = float(np.linalg.det(q[:, cols])) if n else 1.0
-    return np.array(energies), (1.0 if det > 0 else -1.0)
+    sides = _two_colouring(h)
+    if sides is not None:
+        e, sign = _canonical_bipartite(h, sides)
+    else:
+        e, sign = _canonical_hessenberg(h)
+    e = np.where(e > tol, e, 0.0)
+    return np.sort(e), sign
+
+
+def _two_colouring(h: np.ndarray) -> np.ndarray | None:
+    """Colour 0/1 per mode such that every non-zero ``h_ab`` joins two colours, or None."""
+    n = h.shape[0]
+    rows, cols = np.nonzero(h)
+    graph = scipy.sparse.csr_matrix(h != 0)
+    colour = np.full(n, -1)
+    for root in range(n):
+        if colour[root] >= 0:
+            continue
+        order, pred = scipy.sparse.csgraph.breadth_first_order(
+            graph, root, directed=False, return_predecessors=True
+        )
+        colour[root] = 0
+        for v in order[1:]:
+            colour[v] = 1 - colour[pred[v]]
+    if np.any(colour[rows] == colour[cols]):
+        return None
+    return colour
+
+
+def _permutation_sign(perm: np.ndarray) -> int:
+    """``det`` of the permutation matrix: ``(-1)^(n - number of cycles)``."""
+    seen = np.zeros(len(perm), dtype=bool)
+    cycles = 0
+    for start in range(len(perm)):
+        if seen[start]:
+            continue
+        cycles += 1
+        v = start
+        while not seen[v]:
+            seen[v] = True
+            v = perm[v]
+    return -1 if (len(perm) - cycles) % 2 else 1
+
+
+def _canonical_bipartite(h: np.ndarray, colour: np.ndarray) -> tuple[np.ndarray, float]:
+    """Energies and Pfaffian sign of ``h = P^T [[0, M], [-M^T, 0]] P`` (a bipartite pattern).
+
+    The energies are the singular values of ``M`` (zeros for the surplus of the larger side),
+    and ``Pf([[0, M], [-M^T, 0]]) = (-1)^(m (m - 1) / 2) det M`` for square ``M`` (m x m),
+    ``Pf(h) = det P Pf(P h P^T)``; the sign of ``det M`` comes from an LU factorisation.
+    """
+    n = h.shape[0]
+    a = np.flatnonzero(colour == 0)
+    b = np.flatnonzero(colour == 1)
+    block = h[np.ix_(a, b)]
+    sv = scipy.linalg.svdvals(block) if min(len(a), len(b)) else np.zeros(0)
+    e = np.concatenate([sv, np.zeros(n // 2 - len(sv))])
+    if len(a) != len(b):
+        return e, 1.0  # rectangular M: h is singular, the sign is irrelevant
+    sign, _ = np.linalg.slogdet(block)
+    if sign == 0:
+        return e, 1.0
+    m = len(a)
+    perm = np.concatenate([a, b])
+    total = sign * (-1) ** (m * (m - 1) // 2) * _permutation_sign(perm)
+    return e, (1.0 if total > 0 else -1.0)
+
+
+def _canonical_hessenberg(h: np.ndarray) -> tuple[np.ndarray, float]:
+    """Energies and Pfaffian sign of a real antisymmetric ``h`` from its Hessenberg form.
+
+    Householder reduction ``h = Q T Q^T`` (LAPACK ``dgehrd``) makes ``T`` antisymmetric
+    tridiagonal with off-diagonal ``b_i``; ``+-e_k`` are the eigenvalues of the symmetric
+    tridiagonal matrix with zero diagonal and off-diagonal ``|b_i|`` (a diagonal unitary
+    similarity of ``i T``), ``Pf(T) = b_0 b_2 b_4 ...`` and ``det Q = (-1)^r`` for ``r``
+    non-trivial reflectors (the scheme of M. Wimmer, ACM Trans. Math. Softw. 38, 30 (2012)).
+    """
+    n = h.shape[0]
+    if n == 1:
+        return np.zeros(0), 1.0
+    work, info = scipy.linalg.lapack.dgehrd_lwork(n)
+    if info != 0:
+        raise AssertionError(f"LAPACK dgehrd workspace query failed (info {info})")
+    t, tau, info = scipy.linalg.lapack.dgehrd(  # blocked: needs the queried workspace
+        np.array(h, dtype=float, order="F"), lwork=max(n, int(work)), overwrite_a=1
+    )
+    if info != 0:
+        raise AssertionError(f"LAPACK dgehrd failed (info {info})")
+    b = (np.diagonal(t, 1) - np.diagonal(t, -1)) / 2
+    lam = scipy.linalg.eigvalsh_tridiagonal(np.zeros(n), np.abs(b), lapack_driver="stemr")
+    e = np.clip(lam[n - n // 2 :], 0.0, None)
+    if n % 2:
+        return e, 1.0  # no parity constraint for an odd number of modes
+    reflectors = int(np.count_nonzero(tau))
+    pf_sign = np.prod(np.sign(b[0::2])) * (-1) ** reflectors
+    return e, (1.0 if pf_sign >= 0 else -1.0)
 
 
 def _pfaffian(a: np.ndarray) -> complex:
@@ -1025,7 +1119,9 @@ def jordan_wigner_spectrum(
     Notes
     -----
     In a sector ``H = constant + (i/2) sum_ab h_ab gamma_a gamma_b``.  For real couplings
-    ``h`` is real antisymmetric and its real Schur form gives energies ``e_k >= 0``.  For
+    ``h`` is real antisymmetric with energies ``e_k >= 0`` (``+-e_k`` its eigenvalues over
+    ``i``; singular values of ``M`` when ``h`` has the bipartite form ``[[0, M], [-M^T, 0]]``
+    up to a permutation, as on the honeycomb) and ``sign Pf(h)`` fixes the parity.  For
     complex couplings ``h`` is complex antisymmetric: the eigenvalues of ``i h`` come in pairs
     ``+-e_k``, and where ``h = O B O^T`` with ``O`` complex orthogonal the modes ``O^T gamma``
     still obey the Clifford relations, so every level is ``sum_k s_k e_k`` (a non-Hermitian
@@ -1073,8 +1169,12 @@ def jordan_wigner_spectrum(
     dim = 2 ** len(m.sites)
     bar = tqdm(labels, desc="sectors", disable=len(labels) < 256, leave=False)
     solved, mismatch = [], 0.0
+    spectra: dict[tuple[int, ...], tuple[tuple[np.ndarray, float | None, float], ...]] = {}
     for label in bar:
-        levels, miss = _solve_sector(struct, couplings, label, dim)
+        cycles = label[:n_cycles]
+        if cycles not in spectra:  # sectors differing only in parity share the matrix
+            spectra[cycles] = _component_spectra(struct, couplings, cycles)
+        levels, miss = _solve_sector(struct, spectra[cycles], label, dim)
         solved.append(levels)
         mismatch = max(mismatch, miss)
     bar.close()
@@ -1108,21 +1208,21 @@ def _ground_candidates(
     )
 
 
-def _solve_sector(
-    struct: SectorStructure, couplings: np.ndarray, label: tuple[int, ...], dim: int
-) -> tuple[_SectorLevels, float]:
-    n_cycles = len(struct.cycle_operators)
+def _component_spectra(
+    struct: SectorStructure, couplings: np.ndarray, cycle_values: tuple[int, ...]
+) -> tuple[tuple[np.ndarray, float | None, float], ...]:
+    """Per component: energies, ``det`` of the normal form (None: void) and pair mismatch.
+
+    Depends only on the cycle values (they fix the single-particle matrix), not on the
+    parity values, so sectors that differ only in parity share one call.
+    """
     signs = np.ones(len(couplings))
-    for (term, ratio), w in zip(struct._closing, label[:n_cycles], strict=True):
+    for (term, ratio), w in zip(struct._closing, cycle_values, strict=True):
         u = w * ratio
         if abs(u.imag) > 1e-12 or abs(abs(u.real) - 1) > 1e-12:
             raise AssertionError("a closing sign came out not +-1")
         signs[term] = 1.0 if u.real > 0 else -1.0
-    complex_couplings = np.iscomplexobj(couplings)
-    energies, parities = [], []
-    irrep = 1
-    ground = 0j
-    mismatch = 0.0
+    out = []
     for comp in struct._components:
         index = {v: i for i, v in enumerate(comp.modes)}
         h = np.zeros((len(comp.modes), len(comp.modes)), dtype=couplings.dtype)
@@ -1130,12 +1230,27 @@ def _solve_sector(
             a, b = struct.pairs[t]
             h[index[a], index[b]] += couplings[t] * signs[t]
             h[index[b], index[a]] -= couplings[t] * signs[t]
-        det: float | None
-        if complex_couplings:
-            e, det, miss = _canonical_complex(h)
-            mismatch = max(mismatch, miss)
+        if np.iscomplexobj(couplings):
+            out.append(_canonical_complex(h))
         else:
             e, det = _canonical(h)
+            out.append((e, det, 0.0))
+    return tuple(out)
+
+
+def _solve_sector(
+    struct: SectorStructure,
+    spectra: tuple[tuple[np.ndarray, float | None, float], ...],
+    label: tuple[int, ...],
+    dim: int,
+) -> tuple[_SectorLevels, float]:
+    n_cycles = len(struct.cycle_operators)
+    energies, parities = [], []
+    irrep = 1
+    ground = 0j
+    mismatch = 0.0
+    for comp, (e, det, miss) in zip(struct._components, spectra, strict=True):
+        mismatch = max(mismatch, miss)
         v = len(comp.modes)
         parity: int | None = None
         if comp.parity is not None:
