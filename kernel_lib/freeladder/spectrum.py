@@ -1073,7 +1073,8 @@ def _sector_spectrum(
             + (
                 "eigenvalue pairs and Pfaffian"
                 if np.iscomplexobj(m.coupling_array())
-                else "real Schur form"
+                else "singular values (bipartite) or Householder tridiagonal form, and the "
+                "Pfaffian's sign"
             )
             + f" of the single-particle matrix of the sector ({count} mode pairs)"
         ),
