@@ -22,7 +22,7 @@ from typing import Any
 
 import networkx as nx
 
-from .cache import cached, model_store, structure_store
+from .cache import cached, model_store
 from .charges import ChargeStep, charge_counts, charge_series
 from .ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
 from .graph import ChainStructure, chain_structure, frustration_graph
@@ -91,13 +91,7 @@ class Analysis:
     def verdict(self) -> Verdict:
         """Which theorem applies (:func:`freeladder.classify`); its graph theory is shared by
         every model with the same strings."""
-        return self._part("verdict", self._verdict)  # type: ignore[no-any-return]
-
-    def _verdict(self) -> Verdict:
-        shared = cached(
-            structure_store(self.model.strings), "verdict", lambda: classify(self.model)
-        )
-        return shared.for_model(self.model)
+        return self._part("verdict", lambda: classify(self.model))  # type: ignore[no-any-return]
 
     @property
     def chain(self) -> ChainStructure | None:

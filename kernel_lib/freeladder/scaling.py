@@ -35,6 +35,7 @@ from .frozen import readonly_array, readonly_mapping
 from .graph import chain_structure
 from .jsonready import json_ready
 from .model import Model
+from .root_result import RootResult
 from .roots import chain_real_roots
 
 if TYPE_CHECKING:
@@ -327,7 +328,9 @@ def _residue(m: Model) -> tuple[int | None, int | None]:
     return chain.reach, len(m) % (chain.reach + 1)
 
 
-def _largest_root(couplings: Sequence[complex] | np.ndarray, reach: int, states: int) -> Any:
+def _largest_root(
+    couplings: Sequence[complex] | np.ndarray, reach: int, states: int
+) -> RootResult | None:
     """The largest real root of the chain with weights ``|c_j^N|`` when they share one phase.
 
     Returns the :class:`~freeladder.root_result.RootResult` of

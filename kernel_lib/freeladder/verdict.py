@@ -43,6 +43,7 @@ import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
 
 from . import references as ref
+from .cache import cached, structure_store
 from .clawfree import find_claw, find_even_hole, find_simplicial_clique
 from .frozen import readonly_mapping
 from .graph import (
@@ -471,6 +472,14 @@ def classify(m: Model) -> Verdict:
     """
     if not isinstance(m, Model):
         raise TypeError(f"classify needs a freeladder Model, got {type(m).__name__}")
+    # The graph theory depends only on the strings: it is kept with them, so a coupling change
+    # (Model.with_couplings) only rewrites the witness texts (Verdict.for_model).
+    shared = cached(structure_store(m.strings), "verdict", lambda: _classify(m))
+    return shared.for_model(m)
+
+
+def _classify(m: Model) -> Verdict:
+    """The classification itself (see :func:`classify`)."""
     adj = frustration_adjacency(m)
     n_terms = len(m)
     if n_terms == 0:
