@@ -18,7 +18,7 @@ from jupyter_client.manager import KernelManager
 from nbclient import NotebookClient
 
 import freeladder as fl
-from freeladder.model import Coupling
+from freeladder.algebra.model import Coupling
 
 
 def dense_string(g: fl.WeylString, sites: Sequence[int]) -> np.ndarray:

@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 
 import freeladder as fl
-from freeladder.cache import structure_store
+from freeladder.base.cache import structure_store
 
 
 def test_parts_agree_with_the_library_functions():

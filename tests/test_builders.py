@@ -1,4 +1,5 @@
-"""Builders (freeladder.builders) against matrices built here from explicit one-site matrices."""
+"""Builders (freeladder.algebra.builders)
+against matrices built here from explicit one-site matrices."""
 
 from __future__ import annotations
 

@@ -1,4 +1,4 @@
-"""Rigorous enclosures (freeladder.certify) against mpmath 60-digit roots and python-flint."""
+"""Rigorous enclosures (freeladder.roots.certify) against mpmath 60-digit roots and python-flint."""
 
 from __future__ import annotations
 
@@ -10,9 +10,9 @@ import numpy as np
 import pytest
 from test_roots import exact_coefficients, mpmath_roots, random_weights
 
-from freeladder.certify import certified_roots, certify_chain_roots
-from freeladder.root_methods import solve_chain
-from freeladder.roots import chain_real_roots
+from freeladder.roots.certify import certified_roots, certify_chain_roots
+from freeladder.roots.methods import solve_chain
+from freeladder.roots.real import chain_real_roots
 
 
 @pytest.mark.parametrize(("reach", "m", "seed"), [(1, 21, 1), (2, 25, 2), (3, 30, 3)])
@@ -151,7 +151,7 @@ def test_fast_bounds_print_as_estimates():
 def test_failed_certificate_is_an_error_not_a_pass(monkeypatch):
     # Force every interval to fail (no widening, intervals far too narrow by a wrong estimate
     # of zero): the certified route must raise, never return the fast numbers as proved.
-    import freeladder.root_methods as rm
+    import freeladder.roots.methods as rm
 
     real = rm.certify_chain_roots
 

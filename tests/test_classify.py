@@ -26,9 +26,9 @@ import numpy as np
 import pytest
 
 import freeladder as fl
-from freeladder.model import Model
-from freeladder.strings import make_string
-from freeladder.verdict import KINDS, classify
+from freeladder.algebra.model import Model
+from freeladder.algebra.strings import make_string
+from freeladder.graphs.verdict import KINDS, classify
 
 
 def undirected(m: Model) -> nx.Graph:
@@ -179,7 +179,7 @@ def test_line_graphs_of_random_roots_are_recognised() -> None:
     # every adjacency, and is isomorphic to H except for Whitney's K3 / K_{1,3} pair (H. Whitney,
     # Amer. J. Math. 54, 150 (1932)).  Random graphs that networkx.inverse_line_graph rejects
     # must be rejected too.
-    from freeladder.linegraph import LineGraphRoot, line_graph_root
+    from freeladder.graphs.linegraph import LineGraphRoot, line_graph_root
 
     rng = np.random.default_rng(7)
     for seed in range(300):
@@ -415,7 +415,7 @@ def test_disjoint_clock_chains_are_hidden_free() -> None:
     # sites has no induced path on three terms, so its charges (H alone: alpha = 1) commute
     # trivially: the verdict becomes "integrable", witnessed by the triangle (not a chain).  A
     # path a - v - b whose exponents at v do not cancel makes it "unsolved" (the induced path is
-    # the witness; proof in freeladder.switching).
+    # the witness; proof in freeladder.graphs.switching).
     one = fl.exclusion_chain(4, reach=1, states=3)
     two = fl.exclusion_chain(6, reach=2, states=3)
     terms = [(1, t.string) for t in one.terms]
@@ -506,7 +506,7 @@ def test_verdict_shows_itself() -> None:
     md = v._repr_markdown_()
     assert "unsolved" in text and "unsolved" in md
     for j in v.witness:
-        assert fl.printing.format_terms([m.term(j)]) in md
+        assert fl.algebra.printing.format_terms([m.term(j)]) in md
     assert "<table>" in text
     assert "claw" in str(v)
 

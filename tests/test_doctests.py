@@ -15,7 +15,9 @@ import freeladder
 
 # __main__ runs the command line when imported; its code lives in cli (tested there)
 MODULES = sorted(
-    info.name for info in pkgutil.iter_modules(freeladder.__path__) if info.name != "__main__"
+    info.name.removeprefix("freeladder.")
+    for info in pkgutil.walk_packages(freeladder.__path__, prefix="freeladder.")
+    if not info.ispkg and info.name != "freeladder.__main__"
 )
 FLAGS = doctest.ELLIPSIS | doctest.NORMALIZE_WHITESPACE
 

@@ -1,4 +1,4 @@
-"""Exact diagonalization (freeladder.ed) against published closed forms and numpy/scipy."""
+"""Exact diagonalization (freeladder.spectra.ed) against published closed forms and numpy/scipy."""
 
 from __future__ import annotations
 
@@ -9,8 +9,8 @@ import pytest
 from scipy.optimize import brentq, linear_sum_assignment
 
 import freeladder as fl
-from freeladder.errors import TooLargeError
-from freeladder.matching import match_levels
+from freeladder.base.errors import TooLargeError
+from freeladder.spectra.matching import match_levels
 
 _PAULI = {
     "I": np.eye(2),

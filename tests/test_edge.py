@@ -15,8 +15,8 @@ import pytest
 from helpers import dense_string
 
 import freeladder as fl
-from freeladder.edge import components, edge_mode, ladder_operators
-from freeladder.errors import NoTheoremError
+from freeladder.base.errors import NoTheoremError
+from freeladder.spectra.edge import components, edge_mode, ladder_operators
 
 
 def dense_terms(m: fl.Model) -> list[np.ndarray]:
@@ -139,7 +139,7 @@ def test_ladder_relations_dense(reach: int) -> None:
 
 
 def test_ladder_operators_library() -> None:
-    from freeladder.edge import ladder_operators
+    from freeladder.spectra.edge import ladder_operators
 
     m = fl.exclusion_chain(6, reach=2, couplings=fl.random_couplings(6, seed=4))
     lad = ladder_operators(m)

@@ -19,16 +19,18 @@ import pytest
 import scipy.sparse as sps
 
 import freeladder as fl
-from freeladder import certify, roots, roots_complex
-from freeladder.charge_sweep import commutator_sweep
-from freeladder.charges import charge_series
-from freeladder.clawfree import find_even_hole
-from freeladder.edge import edge_mode, ladder_operators
-from freeladder.indifference import indifference_order
-from freeladder.linegraph import line_graph_root
-from freeladder.polynomial import sum_rules
-from freeladder.relations import find_relations
-from freeladder.thermo import thermodynamics
+from freeladder.checks.charge_sweep import commutator_sweep
+from freeladder.graphs.clawfree import find_even_hole
+from freeladder.graphs.indifference import indifference_order
+from freeladder.graphs.linegraph import line_graph_root
+from freeladder.graphs.relations import find_relations
+from freeladder.roots import certify
+from freeladder.roots import complex as roots_complex
+from freeladder.roots import real as roots
+from freeladder.roots.polynomial import sum_rules
+from freeladder.spectra.charges import charge_series
+from freeladder.spectra.edge import edge_mode, ladder_operators
+from freeladder.spectra.thermo import thermodynamics
 
 
 def _chain() -> fl.Model:

@@ -16,9 +16,9 @@ import numpy as np
 import pytest
 
 import freeladder as fl
-from freeladder.graph import chain_structure, frustration_adjacency, frustration_graph
-from freeladder.model import Model
-from freeladder.strings import StringArray, make_string
+from freeladder.algebra.model import Model
+from freeladder.algebra.strings import StringArray, make_string
+from freeladder.graphs.graph import chain_structure, frustration_adjacency, frustration_graph
 
 
 def shuffled(m: Model, seed: int) -> tuple[Model, np.ndarray]:

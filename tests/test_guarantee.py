@@ -25,7 +25,7 @@ from helpers import dense_string
 from scipy.optimize import linear_sum_assignment
 
 import freeladder as fl
-from freeladder.relations import find_relations
+from freeladder.graphs.relations import find_relations
 
 LEVEL_TOL = 1e-8
 """Largest allowed distance between a free level and its exact partner (relative to the
@@ -127,7 +127,7 @@ def test_two_leg_ladder_with_plaquettes_is_refused() -> None:
 
 def test_composite_n_relation_is_found() -> None:
     # N = 4: X0^2 squares to one (X^4 = 1), so (X0^2)^2 = 1 is a relation mod 4 (common
-    # practice); detection through the prime 2 (see freeladder.relations).
+    # practice); detection through the prime 2 (see freeladder.graphs.relations).
     m = fl.parse_model("X0^2 + Z0 X1", states=4)
     rel = find_relations(m)
     assert rel.count == 1

@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 
 import freeladder as fl
-from freeladder.htmltable import field_table, grid_table, is_number_text
+from freeladder.base.htmltable import field_table, grid_table, is_number_text
 
 
 class _Tables(HTMLParser):

@@ -16,7 +16,7 @@ import pytest
 from scipy.optimize import linear_sum_assignment
 
 import freeladder as fl
-from freeladder.indifference import indifference_order, umbrella_order
+from freeladder.graphs.indifference import indifference_order, umbrella_order
 
 
 def brute_force_has_umbrella(g: nx.Graph) -> bool:

@@ -17,8 +17,8 @@ from scipy.optimize import brentq, linear_sum_assignment
 from scipy.sparse.linalg import eigsh
 
 import freeladder as fl
-from freeladder import majorana
-from freeladder.errors import TooLargeError
+from freeladder.base.errors import TooLargeError
+from freeladder.spectra import majorana
 
 
 def ladder(rungs: int, rng: np.random.Generator) -> fl.Model:

@@ -21,9 +21,9 @@ import sympy
 from helpers import random_pauli_model
 
 import freeladder as fl
-from freeladder.errors import TooLargeError
-from freeladder.independent import IndependenceGraph
-from freeladder.polynomial import (
+from freeladder.base.errors import TooLargeError
+from freeladder.graphs.independent import IndependenceGraph
+from freeladder.roots.polynomial import (
     MAX_ROOT_DEGREE,
     _graph_sums,
     _Ring,

@@ -1,4 +1,4 @@
-"""Real roots of exclusion-chain polynomials (freeladder.roots) against outside references."""
+"""Real roots of exclusion-chain polynomials (freeladder.roots.real) against outside references."""
 
 from __future__ import annotations
 
@@ -13,10 +13,9 @@ import pytest
 import scipy.linalg
 
 import freeladder as fl
-from freeladder.certify import certified_roots, certify_chain_roots
-from freeladder.root_methods import ROOT_METHODS, choose_method, solve_chain, solve_general
-from freeladder.root_result import RootResult
-from freeladder.roots import (
+from freeladder.roots.certify import certified_roots, certify_chain_roots
+from freeladder.roots.methods import ROOT_METHODS, choose_method, solve_chain, solve_general
+from freeladder.roots.real import (
     chain_back,
     chain_count_below,
     chain_inverse_power_sums,
@@ -24,6 +23,7 @@ from freeladder.roots import (
     chain_root_count,
     fixed_reach,
 )
+from freeladder.roots.result import RootResult
 
 
 def exact_coefficients(weights: np.ndarray, reach: int) -> list[Fraction]:
@@ -308,7 +308,7 @@ def test_unconverged_roots_raise_by_default(monkeypatch):
     # marked converged=False.
     import functools
 
-    import freeladder.root_methods as rm
+    import freeladder.roots.methods as rm
 
     monkeypatch.setattr(rm, "chain_real_roots", functools.partial(chain_real_roots, max_sweeps=1))
     c = np.random.default_rng(2).uniform(0.3, 1.7, 1000)
@@ -340,7 +340,7 @@ def _mp_value(w: np.ndarray, back: np.ndarray, y: mpmath.mpf) -> mpmath.mpf:
 
 
 def mpmath_chain_roots(w: np.ndarray, back: np.ndarray, bits: int = 160) -> list[mpmath.mpf]:
-    """Every root by bisection in mpmath at ``bits`` bits, independent of freeladder.roots.
+    """Every root by bisection in mpmath at ``bits`` bits, independent of freeladder.roots.real.
 
     Brackets come from mpmath counts alone (powers of 2 from below 1 / sum w until the count
     is the degree), then geometric and arithmetic bisection to 2**-120 relative.  Each final
@@ -566,7 +566,7 @@ def test_variable_reach_spectrum_matches_exact_diagonalization():
         c = rng.uniform(0.3, 1.7, m) * rng.choice([-1.0, 1.0], m)
         model = variable_range_model(reaches, c, rng)
         sp = fl.free_spectrum(model)
-        if len(set(reaches)) > 1 and fl.graph.chain_structure(model) is None:
+        if len(set(reaches)) > 1 and fl.graphs.graph.chain_structure(model) is None:
             seen_variable += 1
             assert "indifference ordering" in sp.provenance.path
             assert sp.provenance.reach is None

@@ -18,13 +18,13 @@ import pytest
 from scipy.optimize import linear_sum_assignment
 
 import freeladder as fl
-from freeladder.root_result import RootResult
-from freeladder.roots import chain_back, chain_root_count
-from freeladder.roots_complex import (
+from freeladder.roots.complex import (
     aberth_chain_roots,
     certified_complex_roots,
     evaluate_chain,
 )
+from freeladder.roots.real import chain_back, chain_root_count
+from freeladder.roots.result import RootResult
 
 
 def _mp_chain_coefficients(w: np.ndarray, back: np.ndarray) -> list:

@@ -8,7 +8,7 @@ import pytest
 from scipy.optimize import linear_sum_assignment
 
 import freeladder as fl
-from freeladder.spectrum import LEVEL_LIMIT, FreeSpectrum, free_spectrum
+from freeladder.spectra.spectrum import LEVEL_LIMIT, FreeSpectrum, free_spectrum
 
 
 def _assign(a: np.ndarray, b: np.ndarray) -> float:

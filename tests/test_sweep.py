@@ -20,7 +20,7 @@ import pytest
 from helpers import dense_string, random_pauli_model
 
 import freeladder as fl
-from freeladder.charge_sweep import commutator_sweep, inversion_sweep
+from freeladder.checks.charge_sweep import commutator_sweep, inversion_sweep
 
 
 def dense_terms(m: fl.Model) -> list[np.ndarray]:

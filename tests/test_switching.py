@@ -2,7 +2,8 @@
 
 References: R. L. Mann, S. J. Elman, D. R. Wood and A. Chapman, arXiv:2408.09684 (2024) (abstract:
 a frustration graph that can be dipath oriented via switching gives commuting independent-set
-charges; its body could not be read here, see freeladder.switching); S. J. Elman, A. Chapman and
+charges; its body could not be read here, see
+freeladder.graphs.switching); S. J. Elman, A. Chapman and
 S. T. Flammia, Commun. Math. Phys. 388, 969 (2021) (N = 2: claw-free graphs give commuting
 charges).  The outside references are brute force over all vertex subsets and independent sets
 (networkx) and dense matrices built from the definitions (numpy, tests/helpers.py).
@@ -20,9 +21,9 @@ import scipy.sparse as sps
 from helpers import dense_string, random_pauli_model
 
 import freeladder as fl
-from freeladder.charge_sweep import commutator_sweep, inversion_sweep
-from freeladder.indifference import indifference_order
-from freeladder.switching import dipath_from_exponents, dipath_switching
+from freeladder.checks.charge_sweep import commutator_sweep, inversion_sweep
+from freeladder.graphs.indifference import indifference_order
+from freeladder.graphs.switching import dipath_from_exponents, dipath_switching
 
 # -- graph theory against brute force ------------------------------------------------------------
 
@@ -180,7 +181,8 @@ def commutator_norm(a: np.ndarray, b: np.ndarray) -> float:
 
 
 def test_verdict_matches_dense_commutators_of_random_clock_models() -> None:
-    # The theorem of freeladder.switching: [H, Q^(s)] = 0 for all s exactly when the exponents
+    # The theorem of freeladder.graphs.switching: [H, Q^(s)] = 0 for all s exactly when the
+    # exponents
     # form a dipath orientation of a claw-free graph.  Mutual commutation [Q^(r), Q^(s)] = 0 is
     # the paper's claim for its class (Mann-Elman-Wood-Chapman 2024, abstract); it is checked
     # here on every model called integrable.

@@ -1,4 +1,5 @@
-"""The text syntax (freeladder.syntax) and printing back into it (freeladder.printing).
+"""The text syntax (freeladder.algebra.syntax)
+and printing back into it (freeladder.algebra.printing).
 
 Operator matrices are checked against dense Pauli / shift-clock matrices built here with
 np.kron (common practice); everything else is round trips and error reporting of our own
@@ -336,7 +337,7 @@ def test_unreadable_symbol_names_are_quoted_not_misread(name: str) -> None:
 
 def test_one_number_format_for_display() -> None:
     # Issue 14 / 13: float noise is not shown, complex numbers print as a+bi everywhere.
-    from freeladder.printing import format_number
+    from freeladder.algebra.printing import format_number
 
     assert format_number(0.1 + 0.06) == "0.16"  # 0.16000000000000003 in binary
     assert format_number(1.5 - 2j) == "1.5-2i"

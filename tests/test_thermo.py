@@ -9,8 +9,8 @@ import pytest
 from scipy.special import logsumexp
 
 import freeladder as fl
-from freeladder.spectrum import free_spectrum
-from freeladder.thermo import log_partition_function, thermodynamics
+from freeladder.spectra.spectrum import free_spectrum
+from freeladder.spectra.thermo import log_partition_function, thermodynamics
 
 
 def _ed_free_energy(ev: np.ndarray, t: np.ndarray, sites: int) -> np.ndarray:

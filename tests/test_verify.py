@@ -16,9 +16,10 @@ import numpy as np
 import pytest
 
 import freeladder as fl
-from freeladder import StringSum, verification
-from freeladder.errors import CheckNotApplicable, NoTheoremError
-from freeladder.verification import (
+from freeladder import StringSum
+from freeladder.base.errors import CheckNotApplicable, NoTheoremError
+from freeladder.checks import verification
+from freeladder.checks.verification import (
     Check,
     Report,
     charge_pairs_check,
@@ -356,7 +357,7 @@ def test_long_checks_drive_a_delayed_tqdm_bar(monkeypatch: pytest.MonkeyPatch) -
 
 def test_verify_takes_its_parts_from_one_analysis(monkeypatch: pytest.MonkeyPatch) -> None:
     import freeladder.analysis as analysis_module
-    import freeladder.edge as edge_module
+    import freeladder.spectra.edge as edge_module
 
     calls: list[str] = []
     real = analysis_module.free_spectrum

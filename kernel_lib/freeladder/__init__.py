@@ -5,8 +5,7 @@ free spectrum, build the conserved charges and the exclusion polynomial, find it
 stated error bounds, and compare with exact diagonalization.
 """
 
-from .analysis import Analysis, analyze
-from .builders import (
+from .algebra.builders import (
     clock_chain,
     complex_couplings,
     exclusion_chain,
@@ -18,9 +17,38 @@ from .builders import (
     random_couplings,
     staggered,
 )
-from .certify import certified_roots, certify_chain_roots
-from .charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
-from .charges import (
+from .algebra.model import Model, Term
+from .algebra.operators import StringSum
+from .algebra.strings import StringArray, WeylString, make_string, pauli
+from .algebra.syntax import ModelSyntaxError, parse_model
+from .analysis import Analysis, analyze
+from .base.errors import NoTheoremError
+from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
+from .checks.verification import Check, Report, verify
+from .graphs.directed import DirectedFrustrationGraph, directed_frustration_graph
+from .graphs.graph import (
+    ChainStructure,
+    chain_structure,
+    commutation_exponents,
+    frustration_adjacency,
+    frustration_graph,
+)
+from .graphs.indifference import IndifferenceOrder, indifference_order
+from .graphs.relations import Relation, Relations, find_relations
+from .graphs.switching import DipathSwitching, dipath_switching
+from .graphs.verdict import ComponentVerdict, Guarantee, Verdict, classify, guarantee
+from .output.worked import Cell, WorkedCalculation, worked_calculation
+from .roots.certify import certified_roots, certify_chain_roots
+from .roots.methods import ROOT_METHODS, RootMethod
+from .roots.polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
+from .roots.real import (
+    chain_count_below,
+    chain_inverse_power_sums,
+    chain_real_roots,
+    chain_root_count,
+)
+from .roots.result import RootResult
+from .spectra.charges import (
     ChargeStep,
     ChargeTerm,
     charge,
@@ -28,28 +56,9 @@ from .charges import (
     charge_series,
     transfer_matrix,
 )
-from .directed import DirectedFrustrationGraph, directed_frustration_graph
-from .disorder import (
-    LogGapStatistics,
-    disorder_couplings,
-    disordered_chain_gap,
-    interleave,
-    log_gap_statistics,
-    periodic_couplings,
-)
-from .ed import ExactSpectrum, exact_spectrum
-from .edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
-from .errors import NoTheoremError
-from .graph import (
-    ChainStructure,
-    chain_structure,
-    commutation_exponents,
-    frustration_adjacency,
-    frustration_graph,
-)
-from .grid import sweep
-from .indifference import IndifferenceOrder, indifference_order
-from .majorana import (
+from .spectra.ed import ExactSpectrum, exact_spectrum
+from .spectra.edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
+from .spectra.majorana import (
     FluxSector,
     SectorSpectrum,
     SectorStructure,
@@ -58,20 +67,19 @@ from .majorana import (
     jordan_wigner_spectrum,
     sectors,
 )
-from .matching import LevelMatch, match_levels
-from .model import Model, Term
-from .operators import StringSum
-from .polynomial import ChainData, ExclusionPolynomial, exclusion_polynomial
-from .relations import Relation, Relations, find_relations
-from .root_methods import ROOT_METHODS, RootMethod
-from .root_result import RootResult
-from .roots import (
-    chain_count_below,
-    chain_inverse_power_sums,
-    chain_real_roots,
-    chain_root_count,
+from .spectra.matching import LevelMatch, match_levels
+from .spectra.spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
+from .spectra.thermo import Thermodynamics, log_partition_function, thermodynamics
+from .studies.disorder import (
+    LogGapStatistics,
+    disorder_couplings,
+    disordered_chain_gap,
+    interleave,
+    log_gap_statistics,
+    periodic_couplings,
 )
-from .scaling import (
+from .studies.grid import sweep
+from .studies.scaling import (
     EnergyDensity,
     GapScaling,
     MixedResidueWarning,
@@ -83,14 +91,6 @@ from .scaling import (
     power_law_fit,
     smallest_quasi_energy,
 )
-from .spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
-from .strings import StringArray, WeylString, make_string, pauli
-from .switching import DipathSwitching, dipath_switching
-from .syntax import ModelSyntaxError, parse_model
-from .thermo import Thermodynamics, log_partition_function, thermodynamics
-from .verdict import ComponentVerdict, Guarantee, Verdict, classify, guarantee
-from .verification import Check, Report, verify
-from .worked import Cell, WorkedCalculation, worked_calculation
 
 __all__ = [
     "honeycomb_hexagons",

@@ -1,7 +1,9 @@
-"""``python -m freeladder``: the same as the ``freeladder`` command (see :mod:`freeladder.cli`)."""
+"""``python -m freeladder``: the same as the ``freeladder`` command
+(see :mod:`freeladder.output.cli`).
+"""
 
 import sys
 
-from .cli import main
+from .output.cli import main
 
 sys.exit(main())

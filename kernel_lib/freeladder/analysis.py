@@ -22,15 +22,15 @@ from typing import Any
 
 import networkx as nx
 
-from .cache import cached, model_store
-from .charges import ChargeStep, charge_counts, charge_series
-from .ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
-from .graph import ChainStructure, chain_structure, frustration_graph
-from .jsonready import json_ready
-from .model import Coupling, Model
-from .polynomial import ExclusionPolynomial, exclusion_polynomial
-from .spectrum import FreeSpectrum, free_spectrum
-from .verdict import Verdict, classify
+from .algebra.model import Coupling, Model
+from .base.cache import cached, model_store
+from .base.jsonready import json_ready
+from .graphs.graph import ChainStructure, chain_structure, frustration_graph
+from .graphs.verdict import Verdict, classify
+from .roots.polynomial import ExclusionPolynomial, exclusion_polynomial
+from .spectra.charges import ChargeStep, charge_counts, charge_series
+from .spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
+from .spectra.spectrum import FreeSpectrum, free_spectrum
 
 __all__ = ["Analysis", "analyze"]
 
@@ -150,7 +150,8 @@ class Analysis:
     @property
     def exact(self) -> ExactSpectrum | None:
         """Every eigenvalue by exact diagonalization, or None above dimension
-        :data:`freeladder.ed.DENSE_LIMIT` (ask :func:`freeladder.exact_spectrum` with ``k=`` for
+        :data:`freeladder.spectra.ed.DENSE_LIMIT`
+        (ask :func:`freeladder.exact_spectrum` with ``k=`` for
         the lowest levels of larger models)."""
         if self.model.is_symbolic or self.model.dimension > DENSE_LIMIT:
             return None
@@ -158,7 +159,7 @@ class Analysis:
 
     def report(self, **options: Any) -> Any:
         """The :func:`freeladder.verify` report, kept per set of options."""
-        from .verification import verify  # verify builds on the parts above
+        from .checks.verification import verify  # verify builds on the parts above
 
         key = "report:" + repr(sorted(options.items()))
         return self._part(key, lambda: verify(self, **options))

@@ -25,11 +25,11 @@ from typing import Any
 import numpy as np
 
 import freeladder as fl
-from freeladder.errors import NoTheoremError, TooLargeError
-from freeladder.operators import StringSum
-from freeladder.printing import format_terms
-from freeladder.references import CHUDNOVSKY_SEYMOUR_2007
-from freeladder.verification import Check, hamiltonian_check
+from freeladder.algebra.operators import StringSum
+from freeladder.algebra.printing import format_terms
+from freeladder.base.errors import NoTheoremError, TooLargeError
+from freeladder.base.references import CHUDNOVSKY_SEYMOUR_2007
+from freeladder.checks.verification import Check, hamiltonian_check
 
 __all__ = [
     "CLAW_FREE_KINDS",

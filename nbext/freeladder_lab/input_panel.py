@@ -365,7 +365,7 @@ class InputPanel(widgets.VBox):
         for j, term in enumerate(base.terms):
             cell = widgets.Text(
                 "1",
-                description=f"{j}: {fl.printing.format_terms([(1, term.string)])}",
+                description=f"{j}: {fl.algebra.printing.format_terms([(1, term.string)])}",
                 style={"description_width": "initial"},
                 layout=widgets.Layout(width="auto"),
                 continuous_update=False,

@@ -2,7 +2,8 @@
 
 Run: PYTHONPATH=kernel_lib .venv/bin/python tests/benchmarks/bench_certify.py [--full]
 For each size: time of the fast path (count bisection + Laguerre, error estimates), time of the
-certificate (interval sign tests, freeladder.certify), their ratio, the largest proved relative
+certificate (interval sign tests,
+freeladder.roots.certify), their ratio, the largest proved relative
 bound, and how many fast error estimates the proved intervals show to be exceeded.
 Random couplings in [0.3, 1.7] (weights c**2), and the uniform chain.  The machines are noisy:
 compare ratios within one run.  ``--full`` adds 10^5 terms (minutes).
@@ -16,8 +17,8 @@ import time
 
 import numpy as np
 
-from freeladder.certify import certify_chain_roots
-from freeladder.roots import chain_real_roots
+from freeladder.roots.certify import certify_chain_roots
+from freeladder.roots.real import chain_real_roots
 
 
 def timed(fn, *args, **kwargs):

@@ -17,9 +17,9 @@ from typing import Any
 import networkx as nx
 
 import freeladder as fl
-from freeladder.graph import chain_structure, frustration_adjacency, frustration_graph
-from freeladder.linegraph import line_graph_root
-from freeladder.model import Model
+from freeladder.algebra.model import Model
+from freeladder.graphs.graph import chain_structure, frustration_adjacency, frustration_graph
+from freeladder.graphs.linegraph import line_graph_root
 
 
 def timed(fn: Callable[[], Any], repeat: int = 3) -> tuple[float, Any]:

@@ -3,7 +3,7 @@
 Reach-2 exclusion chain with integer couplings (N = 2).  For each size the script times, for
 every order s and every pair of orders (r, s):
 
-* exact: ``[H, Q^(s)]`` in the string algebra (freeladder.verification.hamiltonian_check) and
+* exact: ``[H, Q^(s)]`` in the string algebra (freeladder.checks.verification.hamiltonian_check) and
   ``[Q^(r), Q^(s)]`` for all pairs at once by the sweep (freeladder.commutator_sweep);
 * pairwise: ``[Q^(r), Q^(s)]`` pair of orders by pair of orders in the string algebra;
 * sparse: the same commutators with scipy.sparse matrices of dimension 2^(M+2);
@@ -19,8 +19,8 @@ import time
 
 import freeladder as fl
 from freeladder import StringSum
-from freeladder.verification import hamiltonian_check
-from freeladder.verification import pairwise_check as pairs_by_string_algebra
+from freeladder.checks.verification import hamiltonian_check
+from freeladder.checks.verification import pairwise_check as pairs_by_string_algebra
 
 
 def charges(m: fl.Model) -> list[StringSum]:

@@ -34,9 +34,9 @@ import mpmath
 import numpy as np
 
 import freeladder as fl
-from freeladder.polynomial import exclusion_polynomial
-from freeladder.roots import chain_real_roots
-from freeladder.roots_complex import aberth_chain_roots, certified_complex_roots
+from freeladder.roots.complex import aberth_chain_roots, certified_complex_roots
+from freeladder.roots.polynomial import exclusion_polynomial
+from freeladder.roots.real import chain_real_roots
 
 _U = np.finfo(float).eps / 2
 

@@ -14,7 +14,7 @@ prints, per case, the time, ``log10 eta_1`` and two independent checks:
     at which ``P_M`` changes sign between the two points, with the sign-change counts
     S - 1 and S there, bounds the relative error of y (a root lies in the bracket, and it
     is the largest: the count is proved for reach 1, the tested property of
-    :mod:`freeladder.roots` for reach 2).  A full mpmath bisection would need about 200
+    :mod:`freeladder.roots.real` for reach 2).  A full mpmath bisection would need about 200
     such passes, hours at 10^6 terms in pure Python; this bracket test needs one.
 (b) reach 1 only: LAPACK's bisection ``dstebz`` through
     ``scipy.linalg.eigvalsh_tridiagonal(zeros(M + 1), c, select="i", tol=2 * tiny)`` on the
@@ -36,7 +36,7 @@ import mpmath
 import numpy as np
 import scipy.linalg
 
-from freeladder.roots import chain_real_roots
+from freeladder.roots.real import chain_real_roots
 
 
 def mpmath_bracket(w: np.ndarray, reach: int, mant: float, exp2: int) -> float | None:

@@ -17,7 +17,7 @@ import time
 import numpy as np
 
 import freeladder as fl
-from freeladder.indifference import indifference_order
+from freeladder.graphs.indifference import indifference_order
 
 
 def variable_chain(size: int, rng: np.random.Generator) -> fl.Model:

@@ -1,4 +1,5 @@
-"""Benchmark of freeladder.roots / freeladder.certify against baselines run in the same process.
+"""Benchmark of freeladder.roots.real / freeladder.roots.certify
+against baselines run in the same process.
 
 Run: bash tools/bench.sh tests/benchmarks/bench_roots.py
 (or, quicker: .venv/bin/python tests/benchmarks/bench_roots.py --quick)
@@ -19,8 +20,8 @@ import numba
 import numpy as np
 import scipy.linalg
 
-from freeladder.certify import certify_chain_roots
-from freeladder.roots import chain_inverse_power_sums, chain_real_roots
+from freeladder.roots.certify import certify_chain_roots
+from freeladder.roots.real import chain_inverse_power_sums, chain_real_roots
 
 
 def timed(fn, *args, **kwargs):
@@ -61,7 +62,7 @@ def compile_time() -> float:
     """First call in a fresh process with an empty numba cache (compile included)."""
     code = (
         "import time, numpy as np; t = time.perf_counter();"
-        "from freeladder.roots import chain_real_roots; chain_real_roots(np.ones(5), 2);"
+        "from freeladder.roots.real import chain_real_roots; chain_real_roots(np.ones(5), 2);"
         "print(time.perf_counter() - t)"
     )
     with tempfile.TemporaryDirectory() as cache:

@@ -1,0 +1,1211 @@
+"""Checks that a model's free spectrum is what the theorems promise, each with how and how well.
+
+:func:`verify` runs, where they apply:
+
+* **commutation** -- ``[H, Q^(s)] = 0`` and ``[Q^(r), Q^(s)] = 0`` for every order, either all
+  at once by an exact sweep over the terms (:mod:`freeladder.sweep`; ``[H, Q^(s)]`` is its
+  r = 1 row) or pair by pair in the exact string algebra
+  (:class:`~freeladder.StringSum`, no matrices), whichever is estimated cheaper;
+* **inversion relation** -- ``T(u) T(-u) = P(u^2)`` (N = 2) and
+  ``T(u) T(omega u) ... T(omega^{N-1} u) = P(u^N)`` (clock chains), for every u, by the
+  sweep; symbolic couplings fall back to the string algebra at one u;
+* **ladder relations** -- ``[H, Psi_{+-k}] = +-2 eta_k Psi_{+-k}`` for small N = 2 systems, one
+  edge mode per connected component of the frustration graph;
+* **sum rules** -- ``sum eta^N = sum c^N`` and ``sum eta^{2N} = (sum c^N)^2 - 2 C_2`` (they test
+  the roots against the polynomial, so they are not decisive on their own);
+* **exact diagonalization** -- the whole spectrum with multiplicities against the free levels
+  (:func:`freeladder.match_levels`).
+
+A check that cannot apply raises :class:`~freeladder.base.errors.CheckNotApplicable` and is listed
+as "not run" with the reason; any other exception is a failure of that check, its traceback kept.
+For a model no theorem covers, the spectral checks test the unproven numbers as a probe and the
+report says so.  :attr:`Report.ok` and :attr:`Report.problems` say what "ok" requires.
+
+References
+----------
+S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021),
+arXiv:2012.07857 (commuting charges, inversion relation, N = 2);
+P. Fendley, J. Phys. A 52, 335002 (2019), arXiv:1901.08078 (transfer matrix, ladder operators);
+F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622 (clock
+chains, general p and N).
+"""
+
+from __future__ import annotations
+
+import html
+import time
+import traceback
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field, replace
+from fractions import Fraction
+from typing import Any
+
+import numpy as np
+import scipy.sparse as sps
+from scipy.optimize import linear_sum_assignment
+from tqdm.auto import tqdm
+
+from ..algebra.model import Model
+from ..algebra.operators import StringSum
+from ..analysis import Analysis, analyze
+from ..base.errors import CheckNotApplicable, NoTheoremError, TooLargeError
+from ..base.jsonready import json_ready
+from ..base.references import (
+    ALCARAZ_PIMENTA_2020,
+    CHAPMAN_FLAMMIA_2020,
+    ELMAN_CHAPMAN_FLAMMIA_2021,
+    FENDLEY_2019,
+)
+from ..roots.polynomial import exclusion_polynomial
+from ..spectra.charges import charge
+from ..spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
+from ..spectra.edge import components, ladder_operators
+from ..spectra.majorana import jordan_wigner_spectrum, sectors
+from ..spectra.matching import match_levels
+from ..spectra.spectrum import FreeSpectrum
+from .charge_sweep import SweepResult, commutator_sweep, inversion_sweep
+
+__all__ = [
+    "ED_AUTO_DIMENSION",
+    "FLOAT_RTOL",
+    "LADDER_DIMENSION",
+    "MAX_PAIRS",
+    "Check",
+    "Report",
+    "charge_pairs_check",
+    "exact_diagonalization_check",
+    "hamiltonian_check",
+    "inversion_check",
+    "ladder_check",
+    "pairwise_check",
+    "sum_rule_check",
+    "transfer_from_charges",
+    "verify",
+]
+
+ED_AUTO_DIMENSION = DENSE_LIMIT
+"""``exact_diagonalization="auto"`` compares with exact diagonalization up to this dimension."""
+
+LADDER_DIMENSION = 1024
+"""Ladder relations are checked with sparse matrices up to this dimension."""
+
+MAX_PAIRS = 2_000_000
+"""Largest ``len(A) * len(B)`` for which an exact product or commutator of two sums is formed."""
+
+FLOAT_RTOL = 1e-9
+"""Relative tolerance of floating-point checks (string algebra and spectra)."""
+
+SWEEP_STEP_SECONDS = 5e-4
+"""Cost of one (evaluation point, term) step of a sweep: 6.1 s for the 11400 steps of the
+commutator sweep of a 60-term reach-2 chain, measured here (2-core machine)."""
+
+PRODUCT_SECONDS = 3e-7
+"""Cost of one product of two strings in the string algebra: 1.05 s for the 3.8 x 10^6 products
+of [H, Q(s)] on a 30-term reach-2 chain, measured here."""
+
+LIST_SECONDS = 2e-5
+"""Cost of listing one independent set as a product: 2.6 s for the 1.25 x 10^5 sets of a 30-term
+reach-2 chain, measured here."""
+
+_ECF = ELMAN_CHAPMAN_FLAMMIA_2021
+_FENDLEY = FENDLEY_2019
+_AP = ALCARAZ_PIMENTA_2020
+
+H_CHARGES = "[H, Q(s)] = 0"
+PAIRS = "[Q(r), Q(s)] = 0"
+LADDER = "[H, Psi(+-k)] = +-2 eta_k Psi(+-k)"
+SUM_RULES = "sum rules for eta^N and eta^2N"
+EXACT = "spectrum = exact diagonalization"
+SECTORS = "sector spectra = exact diagonalization"
+CONSERVED = "cycle and parity strings commute with H"
+ROUTES = "polynomial and Jordan-Wigner routes agree"
+
+
+@dataclass(frozen=True)
+class Check:
+    """One verification step.
+
+    Attributes
+    ----------
+    name : str
+        What is checked.
+    method : str
+        How: exact string algebra, floating point, sparse matrices, exact diagonalization.
+    tolerance : float
+        0.0 for exact checks; otherwise the threshold ``value`` is compared with.
+    value : float
+        The measured discrepancy (largest coefficient left over, relative deviation ...).
+    passed : bool or None
+        None when the check could not run (see ``detail``).
+    detail : str
+        Sizes, what was skipped and why.
+    reference : str
+        The published statement that is being checked.
+    seconds : float
+        Time taken.
+    traceback : str
+        When the check crashed (a failure): the traceback of the exception.
+    decisive : bool
+        True when the check can fail for a model whose spectrum is not free (the sum rules only
+        test the root finder against the polynomial's coefficients: not decisive).
+    required : bool
+        The caller asked for this check: when it does not run, the report is not ok.
+    claimed : bool
+        False when the theorem that covers the model does not claim this identity (the
+        single-polynomial identities of a model that is free only sector by sector): when it
+        does not hold, the report says so, but it is not a failure.
+    """
+
+    name: str
+    method: str
+    tolerance: float
+    value: float
+    passed: bool | None
+    detail: str
+    reference: str = ""
+    seconds: float = 0.0
+    traceback: str = ""
+    decisive: bool = True
+    required: bool = False
+    claimed: bool = True
+
+    @property
+    def status(self) -> str:
+        """``"passed"``, ``"FAILED"``, ``"not run"``, or ``"does not hold"`` (not claimed)."""
+        if self.passed is False and not self.claimed:
+            return "does not hold"
+        return {True: "passed", False: "FAILED", None: "not run"}[self.passed]
+
+    def to_dict(self) -> dict[str, Any]:
+        """The fields (and ``status``) as JSON-ready values."""
+        out = {k: getattr(self, k) for k in self.__dataclass_fields__}
+        out["status"] = self.status
+        return json_ready(out)  # type: ignore[no-any-return]
+
+
+_COLUMNS = ("check", "method", "tolerance", "value", "status", "time", "reference")
+
+
+@dataclass(frozen=True)
+class Report:
+    """The checks run by :func:`verify`.
+
+    Attributes
+    ----------
+    checks : tuple of Check
+    model_text : str
+    notes : tuple of str
+    verdict : str
+        Which theorem covers the model, and whether the spectral checks tested guaranteed or
+        unproven numbers.
+    complete : bool
+        False when the run was interrupted (KeyboardInterrupt): the checks listed are those that
+        finished.
+    guaranteed : bool or None
+        Whether a theorem guarantees the free spectrum that the spectral checks tested (None:
+        no spectrum was computed, e.g. symbolic couplings).
+    """
+
+    checks: tuple[Check, ...]
+    model_text: str = ""
+    notes: tuple[str, ...] = field(default=())
+    verdict: str = ""
+    complete: bool = True
+    guaranteed: bool | None = None
+
+    @property
+    def ok(self) -> bool:
+        """True when the run is complete, no check failed, every check the caller asked for ran,
+        and at least one decisive check (one that can fail for a model that is not free) passed;
+        for a spectrum no theorem guarantees, the comparison with exact diagonalization must be
+        among them (the identities of the charges do not prove the spectrum without a theorem).
+        Checks that cannot apply ("not run") do not count either way."""
+        return not self.problems
+
+    @property
+    def problems(self) -> tuple[str, ...]:
+        """Why the report is not ok (empty when it is)."""
+        out = []
+        if not self.complete:
+            out.append("the run was interrupted: the report is incomplete")
+        out.extend(f"{c.name} FAILED" for c in self.failed)
+        out.extend(
+            f"{c.name} was asked for but did not run"
+            for c in self.checks
+            if c.required and c.passed is None
+        )
+        if not any(c.passed and c.decisive for c in self.checks):
+            out.append("no decisive check ran (none that could fail for a model that is not free)")
+        confirmed = any(c.passed and c.name in (EXACT, SECTORS) for c in self.checks)
+        if self.guaranteed is False and not confirmed:
+            out.append(
+                "no theorem guarantees the free spectrum and exact diagonalization did not "
+                "confirm it"
+            )
+        return tuple(out)
+
+    @property
+    def failed(self) -> tuple[Check, ...]:
+        """The checks that failed (an identity the theorem does not claim is not a failure)."""
+        return tuple(c for c in self.checks if c.passed is False and c.claimed)
+
+    def __getitem__(self, name: str) -> Check:
+        for c in self.checks:
+            if c.name == name:
+                return c
+        raise KeyError(f"no check named {name!r}; checks: {[c.name for c in self.checks]}")
+
+    def to_dict(self) -> dict[str, Any]:
+        """Every field, ``ok`` and ``problems`` as JSON-ready values."""
+        return json_ready(  # type: ignore[no-any-return]
+            {
+                "ok": self.ok,
+                "problems": self.problems,
+                "complete": self.complete,
+                "model": self.model_text,
+                "verdict": self.verdict,
+                "guaranteed": self.guaranteed,
+                "checks": [c.to_dict() for c in self.checks],
+                "notes": self.notes,
+            }
+        )
+
+    def _head(self) -> str:
+        if self.ok:
+            return "ok: every check that ran passed"
+        return "NOT ok: " + "; ".join(self.problems)
+
+    def _cells(self, c: Check) -> tuple[str, ...]:
+        ran = c.passed is not None and c.value == c.value
+        return (
+            c.name,
+            c.method,
+            ("exact" if c.tolerance == 0 else f"{c.tolerance:.2g}") if c.passed is not None else "",
+            f"{c.value:.3g}" if ran else "",
+            c.status,
+            "<0.01 s" if c.seconds < 0.01 else f"{c.seconds:.2f} s",
+            c.reference,
+        )
+
+    def __str__(self) -> str:
+        lines = [f"verification of {self.model_text}: {self._head()}"]
+        if self.verdict:
+            lines.append(f"verdict: {self.verdict}")
+        rows = [_COLUMNS] + [self._cells(c) for c in self.checks]
+        # the last column (reference) is printed whole; the others are clipped to align
+        clipped = [
+            tuple(t if len(t) <= 48 or k == len(r) - 1 else t[:45] + "..." for k, t in enumerate(r))
+            for r in rows
+        ]
+        widths = [max(len(r[k]) for r in clipped) for k in range(len(_COLUMNS))]
+        for r in clipped:
+            cells = [t.ljust(w) for t, w in zip(r, widths, strict=True)]
+            lines.append(("  " + "  ".join(cells)).rstrip())
+        for c in self.checks:
+            lines.append(f"  {c.name} ({c.status}): {c.detail}")
+            if c.traceback:
+                lines.extend("    " + t for t in c.traceback.rstrip().splitlines())
+        lines.extend(f"  note: {n}" for n in self.notes)
+        return "\n".join(lines)
+
+    def __repr__(self) -> str:
+        return (
+            f"Report(ok={self.ok}, checks={len(self.checks)}, failed={len(self.failed)}, "
+            f"complete={self.complete})"
+        )
+
+    def _repr_html_(self) -> str:
+        left = "text-align:left;vertical-align:top"
+        rows = []
+        for c in self.checks:
+            colour = {True: "#1a7f37", False: "#cf222e", None: "#6e7781"}[c.passed]
+            cells = []
+            for k, t in enumerate(self._cells(c)):
+                style = left + (";white-space:nowrap" if k in (2, 3, 5) else "")
+                if k == 4:
+                    style += f";color:{colour};font-weight:bold"
+                text = f"<small>{html.escape(t)}</small>" if k == 6 else html.escape(t)
+                cells.append(f'<td style="{style}">{text}</td>')
+            detail = html.escape(c.detail)
+            if c.traceback:
+                detail += f"<pre>{html.escape(c.traceback)}</pre>"
+            cells.append(f'<td style="{left}">{detail}</td>')
+            rows.append("<tr>" + "".join(cells) + "</tr>")
+        head = "".join(f'<th style="{left}">{h}</th>' for h in (*_COLUMNS, "detail"))
+        notes = "".join(f"<p><small>{html.escape(n)}</small></p>" for n in self.notes)
+        verdict = f"<p>Verdict: {html.escape(self.verdict)}</p>" if self.verdict else ""
+        return (
+            f"<p><b>Verification</b> of <code>{html.escape(self.model_text)}</code>: "
+            f"{html.escape(self._head())}</p>{verdict}"
+            f"<table><thead><tr>{head}</tr></thead><tbody>{''.join(rows)}</tbody></table>{notes}"
+        )
+
+
+def _run(name: str, fn: Callable[..., Check], *args: Any, required: bool = False) -> Check:
+    """Run one check, timed.  Only CheckNotApplicable makes it "not run"; any other exception
+    is a failure with its traceback (KeyboardInterrupt passes through)."""
+    start = time.perf_counter()
+    try:
+        check = fn(*args)
+    except CheckNotApplicable as err:
+        check = Check(name, "", 0.0, float("nan"), None, f"not applicable: {err}")
+    except Exception as err:  # a crash inside a check is a failure of that check
+        check = Check(
+            name,
+            "",
+            0.0,
+            float("nan"),
+            False,
+            f"the check crashed with {type(err).__name__}: {err}",
+            traceback=traceback.format_exc(),
+        )
+    return replace(check, seconds=time.perf_counter() - start, required=required)
+
+
+class _Progress:
+    """A ``progress(done, total)`` callback that shows a ``tqdm.auto`` bar after 2 seconds."""
+
+    def __init__(self, label: str) -> None:
+        self.label = label
+        self.bar: Any = None
+
+    def __call__(self, done: int, total: int) -> None:
+        if self.bar is None:
+            self.bar = tqdm(total=total, desc=self.label, delay=2.0, leave=False)
+        self.bar.update(done - self.bar.n)
+
+    def close(self) -> None:
+        if self.bar is not None:
+            self.bar.close()
+
+
+class _Parts:
+    """What several checks share, from one :class:`~freeladder.analysis.Analysis` (each part
+    computed once, and kept there for later calls), plus the listed charges."""
+
+    def __init__(self, analysis: Analysis) -> None:
+        self.analysis = analysis
+        self.model = analysis.model
+        self._spectrum: tuple[FreeSpectrum, str] | None = None
+        self._charges: list[StringSum] | None = None
+
+    @property
+    def counts(self) -> list[int]:
+        """Number of independent sets of each order 0..alpha (counted, not listed)."""
+        return list(self.analysis.charge_counts)
+
+    def spectrum(self) -> tuple[FreeSpectrum, str]:
+        """The free spectrum and, when no theorem guarantees it, why (empty when one does)."""
+        if self._spectrum is None:
+            try:
+                sp, why = self.analysis.spectrum(), ""
+            except NoTheoremError as err:
+                sp, why = self.analysis.spectrum(unproven=True), str(err)
+            if not why and not sp.provenance.guaranteed:
+                why = str(sp.provenance.guarantee or "no theorem covers this model")
+            self._spectrum = (sp, why)
+        return self._spectrum
+
+    def charges(self) -> list[StringSum]:
+        """Q^(1) .. Q^(alpha), listed (call only after checking the cost)."""
+        if self._charges is None:
+            self._charges = [charge(self.model, s) for s in range(1, len(self.counts))]
+        return self._charges
+
+    def pairwise_seconds(self) -> float:
+        """Estimated time of [H, Q(s)] and [Q(r), Q(s)] pair by pair (listing included)."""
+        c = self.counts[1:]
+        listing = LIST_SECONDS * sum(c)
+        with_h = PRODUCT_SECONDS * len(self.model) * sum(c)
+        pairs = sum(c[i] * c[j] for i in range(1, len(c)) for j in range(i + 1, len(c)))
+        return listing + with_h + PRODUCT_SECONDS * pairs
+
+    def sweep_seconds(self) -> float:
+        """Estimated time of the commutator sweep (points x terms steps)."""
+        alpha = len(self.counts) - 1
+        return SWEEP_STEP_SECONDS * alpha * (alpha - 1) / 2 * len(self.model)
+
+
+def _residual(op: StringSum) -> tuple[bool, float]:
+    """(is zero, largest leftover coefficient) with the tolerance rule of StringSum.is_zero."""
+    zero = op.is_zero(None if op.is_exact else FLOAT_RTOL)
+    if len(op) == 0:
+        return True, 0.0
+    if op.is_symbolic:
+        return zero, float("nan")
+    return zero, op.max_abs()
+
+
+def _method(ops: Sequence[StringSum]) -> tuple[str, float]:
+    if all(o.is_exact for o in ops):
+        return "exact string algebra (no matrices)", 0.0
+    return (
+        f"string algebra in floating point; zero when every coefficient <= {FLOAT_RTOL:g} x scale",
+        FLOAT_RTOL,
+    )
+
+
+# -- commutation --------------------------------------------------------------------------------
+def hamiltonian_check(
+    h: StringSum,
+    charges: Sequence[StringSum],
+    progress: Callable[[int, int], Any] | None = None,
+) -> Check:
+    """``[H, Q^(s)] = 0`` for every s, pair by pair in the string algebra.
+
+    Parameters
+    ----------
+    h : StringSum
+        The Hamiltonian.
+    charges : sequence of StringSum
+        ``Q^(1), Q^(2), ...``.
+    progress : callable, optional
+        Called as ``progress(orders_done, orders_total)``.
+
+    Returns
+    -------
+    Check
+    """
+    method, tol = _method([h, *charges])
+    worst, bad = 0.0, []
+    for s, q in enumerate(charges, start=1):
+        zero, val = _residual(h.commutator(q))
+        worst = max(worst, val) if val == val else worst
+        if not zero:
+            bad.append(s)
+        if progress is not None:
+            progress(s, len(charges))
+    detail = f"orders 1..{len(charges)}, {sum(len(q) for q in charges)} strings in all"
+    if bad:
+        detail += f"; non-zero for s = {bad}"
+    return Check(H_CHARGES, method, tol, worst, not bad, detail, _ECF)
+
+
+_SWEEP = "exact sweep over the terms (word automaton, rational arithmetic; no matrices)"
+
+
+def charge_pairs_check(
+    m: Model,
+    charges: Sequence[StringSum] | None,
+    max_pairs: int = MAX_PAIRS,
+    progress: Callable[[int, int], Any] | None = None,
+) -> Check:
+    """``[Q^(r), Q^(s)] = 0`` for every pair of orders.
+
+    Numeric couplings: decided at once for all pairs by :func:`freeladder.sweep.commutator_sweep`
+    (exact, polynomial in the number of terms).  When the sweep cannot decide (symbolic
+    couplings, a frontier too wide, or a non-zero word of dependent strings) the charges are
+    multiplied pair by pair in the string algebra, for pairs of orders 2 <= r < s with at most
+    ``max_pairs`` pairs of strings (order 1 is H, see :func:`hamiltonian_check`).
+
+    Parameters
+    ----------
+    m : Model
+    charges : sequence of StringSum or None
+        ``Q^(1), Q^(2), ...`` for the pairwise route; None when they are too many to list.
+    max_pairs : int
+        Work limit of the pairwise route.
+    progress : callable, optional
+        Called as ``progress(done, total)`` by the sweep.
+
+    Returns
+    -------
+    Check
+
+    Raises
+    ------
+    CheckNotApplicable
+        When neither route can decide.
+    """
+    decided, reason = _try_sweep(m, commutator_sweep, PAIRS, "pairs (r, s)", _ECF, progress)
+    if decided is not None:
+        return decided
+    if charges is None:
+        raise CheckNotApplicable(
+            f"the sweep cannot decide ({reason}) and the charges are not listed"
+        )
+    return pairwise_check(charges, max_pairs, f"sweep: {reason}")
+
+
+def _hamiltonian_from_pairs(pairs: Check) -> Check:
+    """``[H, Q(s)] = 0`` read off a sweep of all pairs (H is ``Q^(1)`` plus a constant)."""
+    detail = (
+        "read off the exact sweep of [Q(r), Q(s)], which covers r = 1 (H is Q(1) plus a "
+        f"constant): {pairs.detail}"
+    )
+    return replace(pairs, name=H_CHARGES, detail=detail, seconds=0.0)
+
+
+def pairwise_check(
+    charges: Sequence[StringSum],
+    max_pairs: int = MAX_PAIRS,
+    why: str = "",
+    progress: Callable[[int, int], Any] | None = None,
+) -> Check:
+    """``[Q^(r), Q^(s)] = 0`` for 2 <= r < s, pair by pair in the string algebra.
+
+    Raises
+    ------
+    CheckNotApplicable
+        When pairs beyond ``max_pairs`` string pairs had to be skipped and none failed (an
+        incomplete check can fail, never pass).
+    """
+    method, tol = _method(charges)
+    worst, done = 0.0, 0
+    bad_pairs: list[tuple[int, int]] = []
+    skipped: list[tuple[int, int]] = []
+    todo = [(r, s) for r in range(2, len(charges) + 1) for s in range(r + 1, len(charges) + 1)]
+    for k, (r, s) in enumerate(todo, start=1):
+        qr, qs = charges[r - 1], charges[s - 1]
+        if len(qr) * len(qs) > max_pairs:
+            skipped.append((r, s))
+            continue
+        zero, val = _residual(qr.commutator(qs))
+        done += 1
+        worst = max(worst, val) if val == val else worst
+        if not zero:
+            bad_pairs.append((r, s))
+        if progress is not None:
+            progress(k, len(todo))
+    detail = f"{done} pairs of orders checked pair by pair" + (f" ({why})" if why else "")
+    if skipped:
+        detail += (
+            f"; {len(skipped)} pairs skipped (more than {max_pairs} string pairs): "
+            + ", ".join(f"({r},{s})" for r, s in skipped[:8])
+            + (" ..." if len(skipped) > 8 else "")
+        )
+    if bad_pairs:
+        return Check(
+            PAIRS,
+            method,
+            tol,
+            worst,
+            False,
+            f"{detail}; non-zero for (r, s) = {bad_pairs[:8]}",
+            _ECF,
+        )
+    if skipped:
+        raise CheckNotApplicable(detail)
+    if done == 0:
+        detail = "fewer than two orders beyond H: nothing to check"
+    return Check(PAIRS, method, tol, worst, True, detail, _ECF)
+
+
+def _try_sweep(
+    m: Model,
+    sweep: Callable[..., SweepResult],
+    name: str,
+    keys: str,
+    ref: str,
+    progress: Callable[[int, int], Any] | None = None,
+) -> tuple[Check | None, str]:
+    """The sweep's Check when it decides; otherwise None and the reason it did not."""
+    if m.is_symbolic:
+        return None, "symbolic couplings"
+    try:
+        res = sweep(m, progress=progress)
+    except ValueError as err:  # the sweep's documented refusals: frontier or work too large
+        return None, str(err)
+    check = _sweep_check(name, res, keys, ref)
+    return (check, "") if check.passed is not None else (None, check.detail)
+
+
+def _sweep_check(name: str, res: SweepResult, keys: str, ref: str) -> Check:
+    """A Check from a sweep; ``passed`` is None when the sweep could not decide."""
+    size = (
+        f"{res.points} evaluation points, at most {res.coordinates} coordinates and a forward "
+        f"space of dimension <= {res.rank} per term"
+    )
+    w = res.witness
+    if w is None and res.points == 0:
+        return Check(name, _SWEEP, 0.0, 0.0, True, "holds trivially: fewer than two orders", ref)
+    if w is None:
+        return Check(name, _SWEEP, 0.0, 0.0, True, f"every word vanishes; {size}", ref)
+    shown = ", ".join(f"{k}: {_num(c)}" for k, c in sorted(w.coefficients.items())[:6])
+    found = f"the string {w.string} has coefficients {{{shown}}} ({keys})"
+    if res.vanishes is False:
+        return Check(
+            name,
+            _SWEEP,
+            0.0,
+            max(abs(c) for c in w.coefficients.values()),
+            False,
+            f"{found}; the terms' strings are independent, so this is not zero; {size}",
+            ref,
+        )
+    return Check(
+        name,
+        _SWEEP,
+        0.0,
+        float("nan"),
+        None,
+        f"{found}, but the terms' strings are dependent: words may cancel",
+        ref,
+    )
+
+
+# -- inversion relation -------------------------------------------------------------------------
+def transfer_from_charges(charges: Sequence[StringSum], u: Any, rotation: int = 0) -> StringSum:
+    """``T(omega^k u) = sum_s (-omega^k u)^s Q^(s)`` built exactly from given charges.
+
+    ``rotation`` is k; ``omega^{ks}`` is applied exactly with :meth:`StringSum.rotated`.
+    """
+    first = charges[0]
+    total = StringSum.identity(first.states, first.sites)
+    for s, q in enumerate(charges, start=1):
+        total = total + q.rotated(2 * rotation * s).scaled((-u) ** s)
+    return total
+
+
+def _inversion_name(n: int) -> str:
+    return "T(u) T(-u) = P(u^2)" if n == 2 else "T(u) T(wu) ... T(w^(N-1) u) = P(u^N)"
+
+
+def inversion_check(
+    m: Model,
+    charges: Sequence[StringSum] | None,
+    max_pairs: int = MAX_PAIRS,
+    progress: Callable[[int, int], Any] | None = None,
+) -> Check:
+    """``prod_{k < N} T(omega^k u) = P(u^N) * 1`` for every u.
+
+    Numeric couplings: decided exactly for all u by :func:`freeladder.sweep.inversion_sweep`.
+    Otherwise (or when the sweep cannot decide) the product is formed in the string algebra at
+    u = 3/7 (exact couplings) or a random float u, within ``max_pairs`` pairs of strings.
+
+    Raises
+    ------
+    CheckNotApplicable
+        When neither route can decide within its limits.
+    """
+    n = m.states
+    name = _inversion_name(n)
+    ref = _ECF if n == 2 else _AP
+    decided, reason = _try_sweep(m, inversion_sweep, name, "powers of u", ref, progress)
+    if decided is not None:
+        return decided
+    if charges is None:
+        raise CheckNotApplicable(
+            f"the sweep cannot decide ({reason}) and the charges are not listed"
+        )
+    exact = all(q.is_exact for q in charges)
+    u: Any = Fraction(3, 7) if exact else float(np.random.default_rng(7).uniform(0.2, 0.8))
+    size = 1 + sum(len(q) for q in charges)
+    if size**2 > max_pairs:
+        raise CheckNotApplicable(
+            f"T(u) has up to {size} strings: the product is beyond {max_pairs} pairs ({reason})"
+        )
+    factors = [transfer_from_charges(charges, u, k) for k in range(n)]
+    prod = factors[0]
+    for f in factors[1:]:
+        if len(prod) * len(f) > max_pairs:
+            raise CheckNotApplicable(
+                f"partial product of {len(prod)} strings times {len(f)}: beyond {max_pairs}"
+            )
+        prod = prod @ f
+    p_val = exclusion_polynomial(m)(u**n)
+    target = StringSum.identity(n, m.sites, p_val)
+    method, tol = _method([prod])
+    zero, val = _residual(prod - target)
+    detail = f"u = {u}; product has {len(prod)} strings; P(u^N) = {p_val} (sweep: {reason})"
+    return Check(name, method, tol, val, zero, detail, ref)
+
+
+# -- spectral checks ----------------------------------------------------------------------------
+def _probe(why: str, method: str, detail: str) -> tuple[str, str]:
+    """Method and detail of a spectral check, marked when the numbers are unproven."""
+    if not why:
+        return method, detail
+    return f"{method} (probe)", f"probe on numbers no theorem guarantees ({why}); {detail}"
+
+
+def ladder_check(m: Model, spectrum: tuple[FreeSpectrum, str] | None = None) -> Check:
+    """``[H, Psi_{+-k}] = +-2 eta_k Psi_{+-k}`` with sparse matrices (N = 2, small systems).
+
+    Each connected component of the frustration graph has its own edge mode, transfer matrix
+    and quasi-energies (:func:`freeladder.ladder_operators`).
+
+    Raises
+    ------
+    CheckNotApplicable
+        For N > 2, symbolic couplings, or a dimension above :data:`LADDER_DIMENSION`.
+    """
+    if m.states != 2:
+        raise CheckNotApplicable(
+            f"ladder operators are built for N = 2; this model has N = {m.states}"
+        )
+    if m.is_symbolic:
+        raise CheckNotApplicable("symbolic couplings")
+    if m.dimension > LADDER_DIMENSION:
+        raise CheckNotApplicable(f"dimension {m.dimension} > {LADDER_DIMENSION}")
+    why = spectrum[1] if spectrum is not None else ""
+    etas = None
+    if spectrum is not None and len(components(m)) == 1:
+        etas = spectrum[0].quasi_energies  # one component: the model's own spectrum
+    try:
+        lad = ladder_operators(m, etas)
+    except ValueError as err:  # no edge mode found: the relations cannot be formed
+        raise CheckNotApplicable(f"no ladder operators: {err}") from err
+    h = sps.csr_array(m.to_sparse())
+    hnorm = float(abs(h).sum(axis=0).max()) or 1.0
+    worst, vanished = 0.0, 0
+    for eta, plus, minus in zip(lad.quasi_energies, lad.raising, lad.lowering, strict=True):
+        for sign, psi in ((1, plus), (-1, minus)):
+            pnorm = float(abs(psi).sum(axis=0).max()) if psi.nnz else 0.0
+            if pnorm == 0.0:
+                vanished += 1
+                continue
+            resid = h @ psi - psi @ h - sign * 2 * eta * psi
+            rel = float(abs(resid).sum(axis=0).max()) / (pnorm * hnorm) if resid.nnz else 0.0
+            worst = max(worst, rel)
+    tol = FLOAT_RTOL * max(1, len(m))
+    edges = "; ".join(f"{e.string} (terms {list(e.clique)})" for e in lad.edges)
+    detail = (
+        f"{len(lad.quasi_energies)} modes in {len(lad.edges)} component(s), edge modes {edges}; "
+        "residual 1-norm relative to ||Psi|| ||H||"
+    )
+    if vanished:
+        detail += f"; {vanished} operator(s) vanished identically"
+    passed = worst <= tol and vanished == 0
+    method, detail = _probe(why, "sparse matrices, floating point", detail)
+    return Check(LADDER, method, tol, worst, passed, detail, _FENDLEY)
+
+
+def sum_rule_check(m: Model, spectrum: tuple[FreeSpectrum, str] | None = None) -> Check:
+    """``sum eta^N = C_1`` and ``sum eta^{2N} = C_1^2 - 2 C_2`` (from the coefficients of P).
+
+    Not decisive: it tests the roots against the polynomial, not that the polynomial gives the
+    spectrum.
+    """
+    if m.is_symbolic:
+        raise CheckNotApplicable("symbolic couplings")
+    sp, why = spectrum if spectrum is not None else _Parts(analyze(m)).spectrum()
+    poly = exclusion_polynomial(m)
+    n = m.states
+    sums = [complex(c) for c in poly.weight_sums]
+    c1 = sums[1] if len(sums) > 1 else 0.0
+    c2 = sums[2] if len(sums) > 2 else 0.0
+    eta = np.asarray(sp.quasi_energies, dtype=complex)
+    lhs1, lhs2 = np.sum(eta**n), np.sum(eta ** (2 * n))
+    rhs1, rhs2 = c1, c1 * c1 - 2 * c2
+    scale1 = max(float(np.sum(np.abs(eta) ** n)), abs(rhs1), 1e-300)
+    scale2 = max(float(np.sum(np.abs(eta) ** (2 * n))), abs(rhs2), 1e-300)
+    dev = max(abs(lhs1 - rhs1) / scale1, abs(lhs2 - rhs2) / scale2)
+    tol = FLOAT_RTOL
+    detail = (
+        f"{len(eta)} quasi-energies; sum eta^N = {_num(lhs1)} vs {_num(rhs1)}, "
+        f"sum eta^2N = {_num(lhs2)} vs {_num(rhs2)} (relative deviation)"
+    )
+    method, detail = _probe(why, "floating point vs exact coefficients", detail)
+    ref = "coefficients of P: Newton's identities (common practice)"
+    return Check(SUM_RULES, method, tol, dev, dev <= tol, detail, ref, decisive=False)
+
+
+def _num(v: complex) -> str:
+    v = complex(v)
+    if abs(v.imag) <= 1e-12 * max(1.0, abs(v)):
+        return f"{v.real:.10g}"
+    if abs(v.real) <= 1e-12 * abs(v):
+        return f"{v.imag:.10g}i"
+    return f"{v.real:.10g}{v.imag:+.10g}i"
+
+
+def exact_diagonalization_check(
+    m: Model,
+    spectrum: tuple[FreeSpectrum, str] | None = None,
+    exact: ExactSpectrum | None = None,
+) -> Check:
+    """Every eigenvalue, with multiplicity, against ``constant + sum_k omega^{s_k} eta_k``.
+
+    Uses :func:`freeladder.match_levels`.
+
+    Raises
+    ------
+    CheckNotApplicable
+        For symbolic couplings, or when exact diagonalization refuses the size
+        (:class:`freeladder.base.errors.TooLargeError`; the reason is kept).
+    """
+    if m.is_symbolic:
+        raise CheckNotApplicable("symbolic couplings")
+    if m.dimension > ED_AUTO_DIMENSION:
+        raise CheckNotApplicable(
+            f"the whole spectrum is compared, and dimension {m.dimension} is above "
+            f"{ED_AUTO_DIMENSION}, the largest diagonalised densely"
+        )
+    try:
+        ed = exact if exact is not None else exact_spectrum(m)
+    except TooLargeError as err:
+        raise CheckNotApplicable(str(err)) from err
+    sp, why = spectrum if spectrum is not None else _Parts(analyze(m)).spectrum()
+    table = sp.levels(None)
+    free = np.asarray(table.energies)
+    deg = table.multiplicity
+    ref = "numpy/scipy exact diagonalization (common practice)"
+    if deg is None:
+        if ed.dimension % max(len(free), 1):
+            method, detail = _probe(
+                why,
+                "exact diagonalization",
+                f"{len(free)} free levels do not divide the dimension {ed.dimension}",
+            )
+            return Check(EXACT, method, 0.0, float("nan"), False, detail, ref)
+        deg = ed.dimension // len(free)
+    bounds = float(np.sum(np.asarray(sp.error_bounds, dtype=float))) if len(free) else 0.0
+    scale = max(1.0, float(np.max(np.abs(ed.eigenvalues))))
+    tol = max(FLOAT_RTOL * scale, float(ed.error_estimate) + bounds)
+    match = match_levels((free, deg), ed, tol=tol)
+    detail = (
+        f"dimension {ed.dimension} ({ed.method}); {len(free)} free choices x multiplicity {deg}; "
+        f"{match}"
+    )
+    method, detail = _probe(why, "exact diagonalization", detail)
+    unmatched = match.unmatched_free or match.unmatched_exact
+    value = float("inf") if unmatched else match.distance
+    return Check(EXACT, method, tol, value, match.ok, detail, ref)
+
+
+# -- the whole report ---------------------------------------------------------------------------
+def _verdict_text(analysis: Analysis, why: str | None, sector_route: bool = False) -> str:
+    """The verdict line of the report: the kind, and whether the spectrum is guaranteed."""
+    kind = analysis.verdict.kind
+    if sector_route and why == "":
+        return (
+            f"{kind}: free sector by sector of the conserved cycle and parity strings "
+            f"({CHAPMAN_FLAMMIA_2020}); the checks test the sector spectra"
+        )
+    if why is None:
+        return f"{kind} (no spectrum computed)"
+    if why:
+        return (
+            f"{kind}: no theorem guarantees the free spectrum ({why}); the spectral checks "
+            "ran as probes on unproven numbers"
+        )
+    return f"{kind}: a theorem guarantees the free spectrum; the checks test it"
+
+
+def verify(
+    m: Model | Analysis,
+    exact_diagonalization: bool | str = "auto",
+    max_pairs: int = MAX_PAIRS,
+) -> Report:
+    """Run every check that applies to ``m`` and report each with its method and tolerance.
+
+    Parameters
+    ----------
+    m : Model or Analysis
+        With an :class:`~freeladder.analysis.Analysis` (:func:`freeladder.analyze`) the verdict,
+        the spectrum, the charge counts and the exact spectrum are taken from it, computed once
+        and kept there; a Model is analysed first.
+    exact_diagonalization : "auto", True or False
+        "auto" compares with exact diagonalization when the dimension is at most
+        :data:`ED_AUTO_DIMENSION`; True asks for it (the report is not ok when it cannot run);
+        False leaves it out.
+    max_pairs : int
+        Work limit of the pairwise string-algebra products (see :func:`pairwise_check`),
+        used where the sweep cannot decide.
+
+    Returns
+    -------
+    Report
+        ``report.ok`` is True when the run completed, no check failed, every check asked for
+        ran, and at least one decisive check passed (``report.problems`` says why not).  A
+        check that cannot apply is "not run" with its reason; a check that crashed is a failure
+        with its traceback.  For a model no theorem covers, the spectral checks test the
+        unproven numbers as a probe and say so; ``report.verdict`` states which.
+
+    Notes
+    -----
+    ``[H, Q(s)]`` and ``[Q(r), Q(s)]`` are decided either by the exact sweep (read both off it,
+    nothing listed) or pair by pair in the string algebra, whichever the cost estimate
+    (:data:`SWEEP_STEP_SECONDS`, :data:`PRODUCT_SECONDS`, :data:`LIST_SECONDS`) says is cheaper;
+    when the sweep cannot decide, the pairs are tried within ``max_pairs``.  Checks longer than
+    about 2 s show a ``tqdm`` progress bar; KeyboardInterrupt stops the run and returns the
+    checks finished so far, with ``complete=False`` (not ok).
+
+    References
+    ----------
+    S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021);
+    P. Fendley, J. Phys. A 52, 335002 (2019);
+    F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020).
+
+    Examples
+    --------
+    >>> from freeladder import exclusion_chain
+    >>> verify(exclusion_chain(6, reach=2)).ok
+    True
+    """
+    if not isinstance(m, (Model, Analysis)):
+        raise TypeError(f"verify needs a Model or an Analysis, got {type(m).__name__}")
+    if exact_diagonalization not in ("auto", True, False):
+        raise ValueError(
+            f"exact_diagonalization must be 'auto', True or False, not {exact_diagonalization!r}"
+        )
+    analysis = analyze(m)
+    m = analysis.model
+    parts = _Parts(analysis)
+    checks: list[Check] = []
+    notes: list[str] = []
+    complete = True
+    sector_route = _sector_route(analysis)
+    try:
+        _commutation(parts, max_pairs, checks, claim_inversion=not sector_route)
+        if m.is_symbolic:
+            notes.append("symbolic couplings: spectral checks need numbers (use m.subs first)")
+        elif sector_route:
+            _sector_checks(parts, exact_diagonalization, checks)
+            notes.append(
+                "the model is free sector by sector (Jordan-Wigner with cycle or parity "
+                "symmetries): the spectral checks test fl.jordan_wigner_spectrum, and the "
+                "single-polynomial identities are reported but not claimed"
+            )
+        else:
+            _spectral(parts, exact_diagonalization, checks)
+            if _both_routes(analysis):
+                checks.append(_run(ROUTES, routes_check, parts))
+    except KeyboardInterrupt:
+        complete = False
+        notes.append(
+            "interrupted (KeyboardInterrupt): the checks after the last one listed did not run"
+        )
+    why = parts._spectrum[1] if parts._spectrum is not None else None
+    if sector_route and not m.is_symbolic:
+        why = ""
+    verdict = _verdict_text(analysis, why, sector_route)
+    guaranteed = None if why is None else not why
+    return Report(tuple(checks), _short(m), tuple(notes), verdict, complete, guaranteed)
+
+
+def _commutation(
+    parts: _Parts, max_pairs: int, checks: list[Check], claim_inversion: bool = True
+) -> None:
+    """[H, Q(s)], [Q(r), Q(s)] and the inversion relation, by the cheaper route."""
+    m = parts.model
+    sweep_first = not m.is_symbolic and parts.sweep_seconds() <= parts.pairwise_seconds()
+    listable = sum(parts.counts) <= 10**6
+    charges: list[StringSum] | None = None
+    h = StringSum.from_model(m)
+    if sweep_first:
+        pairs = _shown(PAIRS, _sweep_pairs, m)
+        if pairs.passed is None and listable:  # the sweep could not decide: pair by pair
+            charges = parts.charges()
+            h_check = _shown(H_CHARGES, hamiltonian_check, h, charges)
+            pairs = _shown(PAIRS, pairwise_check, charges, max_pairs, pairs.detail)
+        elif pairs.passed is None:
+            h_check = replace(pairs, name=H_CHARGES)
+        else:
+            h_check = _hamiltonian_from_pairs(pairs)
+    else:
+        charges = parts.charges() if listable else None
+        if charges is None:
+            h_check = _run(H_CHARGES, _not_listed, parts)
+        else:
+            h_check = _shown(H_CHARGES, hamiltonian_check, h, charges)
+        pairs = _shown(PAIRS, charge_pairs_check, m, charges, max_pairs)
+    checks.extend([h_check, pairs])
+    name = _inversion_name(m.states)
+    inversion = _shown(name, inversion_check, m, charges, max_pairs)
+    checks.append(inversion if claim_inversion else replace(inversion, claimed=False))
+
+
+def _shown(name: str, fn: Callable[..., Check], *args: Any) -> Check:
+    """:func:`_run` with a progress bar (shown after 2 s) passed as the last argument."""
+    bar = _Progress(name)
+    try:
+        return _run(name, fn, *args, bar)
+    finally:
+        bar.close()
+
+
+def _sweep_pairs(m: Model, progress: Callable[[int, int], Any]) -> Check:
+    decided, reason = _try_sweep(m, commutator_sweep, PAIRS, "pairs (r, s)", _ECF, progress)
+    if decided is None:
+        raise CheckNotApplicable(f"the sweep cannot decide: {reason}")
+    return decided
+
+
+def _not_listed(parts: _Parts) -> Check:
+    raise CheckNotApplicable(
+        f"{sum(parts.counts)} independent sets are too many to list, and the sweep cannot run"
+    )
+
+
+def _spectral(parts: _Parts, exact_diagonalization: bool | str, checks: list[Check]) -> None:
+    m = parts.model
+    spectrum = parts.spectrum()
+    if m.states == 2:
+        checks.append(_run(LADDER, ladder_check, m, spectrum))
+    checks.append(_run(SUM_RULES, sum_rule_check, m, spectrum))
+    if exact_diagonalization is True or (
+        exact_diagonalization == "auto" and m.dimension <= ED_AUTO_DIMENSION
+    ):
+        checks.append(
+            _run(EXACT, _exact_check, parts, spectrum, required=exact_diagonalization is True)
+        )
+    elif exact_diagonalization == "auto":
+        checks.append(
+            Check(
+                EXACT,
+                "exact diagonalization",
+                0.0,
+                float("nan"),
+                None,
+                f"not applicable: dimension {m.dimension} > {ED_AUTO_DIMENSION}, the largest "
+                "compared automatically",
+            )
+        )
+
+
+def _exact_check(parts: _Parts, spectrum: tuple[FreeSpectrum, str]) -> Check:
+    """The exact-diagonalization check with the analysis's exact spectrum (computed once)."""
+    m = parts.model
+    if m.dimension > ED_AUTO_DIMENSION:
+        return exact_diagonalization_check(m, spectrum)  # refuses with the reason
+    try:
+        exact = parts.analysis.exact
+    except TooLargeError as err:
+        raise CheckNotApplicable(str(err)) from err
+    return exact_diagonalization_check(m, spectrum, exact)
+
+
+# -- Jordan-Wigner models that are free sector by sector -----------------------------------------
+def _sector_route(analysis: Analysis) -> bool:
+    """True for Pauli line-graph models whose single polynomial is not guaranteed."""
+    m = analysis.model
+    if m.states != 2 or m.is_symbolic or len(m) == 0:
+        return False
+    verdict = analysis.verdict
+    return verdict.kind == "jordan-wigner" and not verdict.guarantee.proven
+
+
+def _both_routes(analysis: Analysis) -> bool:
+    """True for Pauli line-graph models that the single polynomial also covers."""
+    m = analysis.model
+    if m.states != 2 or m.is_symbolic or len(m) == 0:
+        return False
+    verdict = analysis.verdict
+    return verdict.kind == "jordan-wigner" and verdict.guarantee.proven
+
+
+def routes_check(parts: _Parts) -> Check:
+    """The polynomial's quasi-energies against the Majorana route's, sector by sector.
+
+    Where the frustration graph is a line graph and the single polynomial is guaranteed
+    (claw-free, even-hole-free: Elman-Chapman-Flammia 2021), both routes give the spectrum:
+    the squares ``eta_k^2`` of the polynomial route must be the non-zero ``e_k^2`` of every
+    sector's single-particle matrix (the rest zero modes), matched one to one.
+    """
+    m = parts.model
+    poly, _ = parts.spectrum()
+    try:
+        jw = jordan_wigner_spectrum(m)
+    except ValueError as err:  # too many sectors to list
+        raise CheckNotApplicable(str(err)) from err
+    target = np.asarray(poly.quasi_energies, dtype=complex) ** 2
+    scale = max(1.0, float(np.abs(target).max())) if len(target) else 1.0
+    worst = 0.0
+    for index in range(len(jw.sectors)):
+        squares = np.asarray(jw.quasi_energies(index), dtype=complex) ** 2
+        if len(squares) < len(target):
+            worst = float("inf")
+            break
+        order = np.argsort(np.abs(squares), kind="stable")
+        n_extra = len(squares) - len(target)
+        extra, kept = squares[order[:n_extra]], squares[order[n_extra:]]
+        cost = np.abs(kept[:, None] - target[None, :])
+        rows, cols = linear_sum_assignment(cost)
+        worst = max(worst, float(cost[rows, cols].max()) if len(target) else 0.0)
+        worst = max(worst, float(np.abs(extra).max()) if len(extra) else 0.0)
+    bound = float(np.max(poly.error_bounds)) if len(poly.error_bounds) else 0.0
+    tol = FLOAT_RTOL * scale + 4 * np.sqrt(scale) * (bound + jw.error_bound)
+    detail = (
+        f"{len(jw.sectors)} sector(s), {len(target)} quasi-energies: largest distance between "
+        "the squares eta_k^2 of the two routes (matched one to one), extra Majorana modes zero"
+    )
+    return Check(
+        ROUTES,
+        "floating point",
+        float(tol),
+        worst,
+        bool(worst <= tol),
+        detail,
+        f"{CHAPMAN_FLAMMIA_2020}; {_ECF}",
+    )
+
+
+def _sector_checks(parts: _Parts, exact_diagonalization: bool | str, checks: list[Check]) -> None:
+    m = parts.model
+    checks.append(_run(CONSERVED, conserved_strings_check, m))
+    if exact_diagonalization is False:
+        return
+    checks.append(
+        _run(SECTORS, sector_spectra_check, parts, required=exact_diagonalization is True)
+    )
+
+
+def conserved_strings_check(m: Model) -> Check:
+    """Every cycle and parity string of :func:`freeladder.sectors` commutes with every term
+    (exact string algebra): the sector labels are conserved."""
+    structure = sectors(m)
+    gens = structure.generators
+    bad = [(str(g), j) for g in gens for j, t in enumerate(m.strings) if not g.commutes_with(t)]
+    detail = (
+        f"{len(structure.cycle_operators)} cycle string(s), {len(structure.parity_operators)} "
+        f"parity string(s), {len(structure.relations)} relation(s) among them, "
+        f"{structure.count} consistent sectors"
+    )
+    if bad:
+        detail += f"; {bad[0][0]} fails to commute with term {bad[0][1]}"
+    return Check(
+        CONSERVED,
+        "exact string algebra",
+        0.0,
+        float(len(bad)),
+        not bad,
+        detail,
+        CHAPMAN_FLAMMIA_2020,
+        decisive=False,
+    )
+
+
+def sector_spectra_check(parts: _Parts) -> Check:
+    """The union of the sector spectra (:func:`freeladder.jordan_wigner_spectrum`), with their
+    multiplicities, against exact diagonalization."""
+    m = parts.model
+    if m.dimension > ED_AUTO_DIMENSION:
+        raise CheckNotApplicable(
+            f"dimension {m.dimension} > {ED_AUTO_DIMENSION}, the largest compared here"
+        )
+    try:
+        jw = jordan_wigner_spectrum(m)
+        energies, multiplicity = jw.levels()
+    except ValueError as err:
+        raise CheckNotApplicable(str(err)) from err
+    exact = parts.analysis.exact
+    if exact is None:
+        raise CheckNotApplicable("no exact spectrum for this model")
+    if int(np.sum(multiplicity)) != exact.dimension:
+        return Check(
+            SECTORS,
+            "exact diagonalization",
+            0.0,
+            float("inf"),
+            False,
+            f"{int(np.sum(multiplicity))} sector levels (with multiplicity) for dimension "
+            f"{exact.dimension}",
+            CHAPMAN_FLAMMIA_2020,
+        )
+    scale = max(1.0, float(np.max(np.abs(energies))) if len(energies) else 1.0)
+    tol = max(FLOAT_RTOL * scale, 10 * jw.error_bound + float(exact.error_estimate))
+    match = match_levels((energies, multiplicity), exact, tol=tol)
+    unmatched = match.unmatched_free or match.unmatched_exact
+    dev = float("inf") if unmatched else float(match.distance)
+    detail = (
+        f"{len(jw.sectors)} sectors, dimension {exact.dimension}: largest distance between "
+        "sector levels and exact eigenvalues, multiplicities included"
+    )
+    return Check(SECTORS, "exact diagonalization", tol, dev, match.ok, detail, CHAPMAN_FLAMMIA_2020)
+
+
+def _short(m: Model) -> str:
+    text = str(m)
+    return text if len(text) <= 120 else text[:117] + "..."

@@ -1,0 +1,756 @@
+"""The worked calculation: every step of a model's solution as cells that check themselves.
+
+:func:`worked_calculation` runs the whole chain once (frustration graph and verdict, charges,
+exclusion polynomial, roots, quasi-energies, levels, checks) and writes it out as an ordered
+list of markdown and code cells.  The markdown states each step with its formula and its
+paper; the code rebuilds the model with its couplings written literally, recomputes every step
+with freeladder and asserts the recomputed values against the exported ones within stated
+tolerances, so that a changed coupling makes the cells fail.  The same cells become a notebook
+(:meth:`WorkedCalculation.to_notebook`), a script (:meth:`WorkedCalculation.to_script`) or a
+LaTeX section for a supplement (:meth:`WorkedCalculation.to_latex`).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import numbers
+from collections.abc import Iterable, Iterator, Sequence
+from dataclasses import dataclass
+from fractions import Fraction
+from pathlib import Path
+from typing import Any, NamedTuple, overload
+
+import numpy as np
+
+from ..algebra.model import Model
+from ..base import references as refs
+from ..base.errors import NoTheoremError
+from ..base.jsonready import json_ready
+from ..checks.verification import Report, verify
+from ..graphs.graph import frustration_graph
+from ..graphs.verdict import classify
+from ..roots.polynomial import exclusion_polynomial
+from ..spectra.charges import charge_series, transfer_matrix
+from ..spectra.spectrum import FreeSpectrum, free_spectrum
+
+__all__ = ["STEPS", "Cell", "WorkedCalculation", "worked_calculation"]
+
+STEPS = ("model", "verdict", "charges", "polynomial", "spectrum", "levels", "checks")
+"""The steps a worked calculation can hold, in order ("model" is always included)."""
+
+SHOWN_ORDERS = 12
+"""Orders of the charge series listed one by one; longer series are summarised."""
+
+SHOWN_LEVELS = 10
+"""How many of the lowest levels are exported."""
+
+EDGE_LIST_LIMIT = 80
+"""Frustration graphs with more edges are asserted by their edge count only."""
+
+DENSE_LIMIT = 2**10
+"""Largest dimension for which the inversion relation is also checked with dense matrices."""
+
+DENSE_SETS = 4096
+"""... and largest number of independent sets (products in the transfer matrix) for it."""
+
+COEFFICIENT_RTOL = 1e-12
+"""Relative tolerance for float coefficients (exact sums rounded once to double precision)."""
+
+ULPS = 4
+"""Units in the last place added to every floating-point tolerance (printing round trips)."""
+
+
+class Cell(NamedTuple):
+    """One cell: ``kind`` is "markdown" or "code"; ``source`` its text."""
+
+    kind: str
+    source: str
+
+
+@dataclass(frozen=True)
+class WorkedCalculation(Sequence[Cell]):
+    """A frozen sequence of cells: one model's solution, step by step, checking itself.
+
+    Attributes
+    ----------
+    cells : tuple of Cell
+        Markdown and code cells in order.
+    model_text : str
+        The model in freeladder's text syntax.
+    guaranteed : bool
+        True when a theorem guarantees the free spectrum and the cells assert it; False when
+        the cells state the verdict and the probes only.
+    latex : str
+        The standalone LaTeX section returned by :meth:`to_latex`.
+    """
+
+    cells: tuple[Cell, ...]
+    model_text: str
+    guaranteed: bool
+    latex: str
+
+    @overload
+    def __getitem__(self, i: int) -> Cell: ...
+
+    @overload
+    def __getitem__(self, i: slice) -> tuple[Cell, ...]: ...
+
+    def __getitem__(self, i: int | slice) -> Cell | tuple[Cell, ...]:
+        return self.cells[i]
+
+    def __len__(self) -> int:
+        return len(self.cells)
+
+    def __iter__(self) -> Iterator[Cell]:
+        return iter(self.cells)
+
+    def __repr__(self) -> str:
+        kinds = [c.kind for c in self.cells]
+        return (
+            f"WorkedCalculation({len(self.cells)} cells: {kinds.count('markdown')} markdown, "
+            f"{kinds.count('code')} code; guaranteed={self.guaranteed})"
+        )
+
+    def to_dicts(self) -> list[dict[str, str]]:
+        """The cells as ``{"kind": ..., "source": ...}`` dictionaries (JSON-ready)."""
+        return [{"kind": c.kind, "source": c.source} for c in self.cells]
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: ``cells`` (as :meth:`to_dicts`), ``model_text``, ``guaranteed``."""
+        return json_ready(
+            {"cells": self.to_dicts(), "model_text": self.model_text, "guaranteed": self.guaranteed}
+        )
+
+    def to_notebook(self, path: str | Path, overwrite: bool = False) -> Path:
+        """Write the cells as a Jupyter notebook (nbformat 4) with a python3 kernelspec.
+
+        Parameters
+        ----------
+        path : str or Path
+            The file to create.
+        overwrite : bool
+            Replace an existing file.  Off by default: an existing file is never touched.
+
+        Returns
+        -------
+        Path
+            The path written.
+
+        Raises
+        ------
+        FileExistsError
+            If ``path`` exists and ``overwrite`` is False.
+        """
+        import nbformat
+
+        target = Path(path)
+        if target.exists() and not overwrite:
+            raise FileExistsError(
+                f"{target} already exists; the worked calculation was not written (choose "
+                "another name, or pass overwrite=True to replace the file)"
+            )
+        nb = nbformat.v4.new_notebook()
+        nb.metadata["kernelspec"] = {
+            "name": "python3",
+            "display_name": "Python 3",
+            "language": "python",
+        }
+        nb.metadata["language_info"] = {"name": "python"}
+        for cell in self.cells:
+            if cell.kind == "code":
+                nb.cells.append(nbformat.v4.new_code_cell(cell.source))
+            else:
+                nb.cells.append(nbformat.v4.new_markdown_cell(cell.source))
+        nbformat.validate(nb)
+        target.write_text(nbformat.writes(nb), encoding="utf-8")
+        return target
+
+    def to_script(self) -> str:
+        """The cells as one Python script: markdown becomes comments, code stays code."""
+        parts = []
+        for cell in self.cells:
+            if cell.kind == "code":
+                parts.append(cell.source.rstrip() + "\n")
+            else:
+                lines = cell.source.rstrip().splitlines()
+                parts.append("\n".join(("# " + ln).rstrip() for ln in lines) + "\n")
+        return "\n".join(parts) + '\nprint("every step of the worked calculation checked out")\n'
+
+    def to_latex(self) -> str:
+        """A standalone LaTeX section for a supplement (needs ``amsmath`` only).
+
+        It holds the model, the theorem that applies (or the statement that none does), the
+        exclusion polynomial, a table of quasi-energies with their bounds and the checks.
+        """
+        return self.latex
+
+
+# -- literals and formatting ---------------------------------------------------------------------
+def _literal(value: Any) -> str:
+    """Python source that evaluates to exactly ``value`` (int, Fraction, float, complex)."""
+    if isinstance(value, np.generic):
+        value = value.item()
+    if isinstance(value, bool) or not isinstance(value, numbers.Number):
+        raise TypeError(f"cannot write {value!r} as a literal number")
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, Fraction):
+        return f"Fraction({value.numerator}, {value.denominator})"
+    if isinstance(value, float):
+        return _float_literal(value)
+    if isinstance(value, complex):
+        return f"complex({_float_literal(value.real)}, {_float_literal(value.imag)})"
+    raise TypeError(f"cannot write {value!r} ({type(value).__name__}) as a literal number")
+
+
+def _float_literal(x: float) -> str:
+    if not math.isfinite(x):
+        return f"float({str(x)!r})"
+    return repr(float(x))
+
+
+def _array_literal(values: Iterable[Any]) -> str:
+    return "[" + ", ".join(_literal(v) for v in values) + "]"
+
+
+def _num(v: Any, digits: int = 12) -> str:
+    """A number for reading (markdown and LaTeX), not for recomputation."""
+    if isinstance(v, np.generic):
+        v = v.item()
+    if isinstance(v, complex):
+        if v.imag == 0:
+            return f"{v.real:.{digits}g}"
+        return f"{v.real:.{digits}g} {'+' if v.imag >= 0 else '-'} {abs(v.imag):.{digits}g}i"
+    if isinstance(v, float):
+        return f"{v:.{digits}g}"
+    return str(v)
+
+
+def _bound(b: float) -> str:
+    return f"{b:.2g}" if math.isfinite(b) else "none"
+
+
+_TEX_SPECIAL = {
+    "\\": r"\textbackslash{}",
+    "&": r"\&",
+    "%": r"\%",
+    "$": r"\$",
+    "#": r"\#",
+    "_": r"\_",
+    "{": r"\{",
+    "}": r"\}",
+    "~": r"\textasciitilde{}",
+    "^": r"\textasciicircum{}",
+    "<": r"\textless{}",
+    ">": r"\textgreater{}",
+    "[": "{[}",
+    "]": "{]}",
+}
+
+
+def _tex(text: str) -> str:
+    return "".join(_TEX_SPECIAL.get(ch, ch) for ch in text)
+
+
+def _model_source(m: Model) -> str:
+    lines = ["terms = ["]
+    for term in m.terms:
+        g = term.string
+        factors = ", ".join(f"({site!r}, {a}, {b})" for site, a, b in g.factors)
+        phase = f", phase={g.phase}" if g.phase else ""
+        lines.append(
+            f"    ({_literal(term.coupling)}, fl.make_string({g.states}, [{factors}]{phase})),"
+        )
+    lines.append("]")
+    const = f", constant={_literal(m.constant)}" if m.constant != 0 else ""
+    lines.append(
+        f"m = fl.Model.from_terms(terms, states={m.states}, sites={list(m.sites)!r}{const})"
+    )
+    return "\n".join(lines)
+
+
+def _model_latex(m: Model) -> str:
+    return m._repr_latex_().strip("$")
+
+
+# -- the steps -----------------------------------------------------------------------------------
+@dataclass(frozen=True)
+class _Facts:
+    """Everything computed once for the export."""
+
+    model: Model
+    verdict: Any
+    edges: list[tuple[int, int]]
+    counts: list[int]
+    coefficients: tuple[Any, ...]
+    exact_coefficients: bool
+    polynomial_latex: str
+    spectrum: FreeSpectrum | None
+    no_theorem: str
+    report: Report
+    inversion_holds: bool | None
+
+
+def _collect(m: Model) -> _Facts:
+    verdict = classify(m)
+    edges = sorted({tuple(sorted(e[:2])) for e in frustration_graph(m).edges()})
+    counts = [step.count for step in charge_series(m)]
+    poly = exclusion_polynomial(m)
+    coefficients = poly.coefficients
+    exact = all(isinstance(c, (int, Fraction)) for c in coefficients)
+    spectrum: FreeSpectrum | None
+    try:
+        spectrum = free_spectrum(m)
+    except NoTheoremError as err:
+        spectrum, no_theorem = None, str(err)
+    else:
+        no_theorem = ""
+        if not spectrum.provenance.guaranteed:
+            no_theorem = str(spectrum.provenance.guarantee or "no theorem applies")
+            spectrum = None
+    report = verify(m)
+    inversion: bool | None = None
+    if m.dimension <= DENSE_LIMIT and sum(counts) <= DENSE_SETS:
+        inversion = _dense_inversion(m, poly)
+    return _Facts(
+        m,
+        verdict,
+        [(int(a), int(b)) for a, b in edges],
+        counts,
+        coefficients,
+        exact,
+        poly._repr_latex_().strip("$"),
+        spectrum,
+        no_theorem,
+        report,
+        inversion,
+    )
+
+
+def _dense_inversion(m: Model, poly: Any) -> bool:
+    """Whether ``prod_r T(omega^r u) = P(u^N)`` holds with dense matrices at u = 1/3."""
+    n, u = m.states, 1 / 3
+    omega = np.exp(2j * np.pi / n)
+    product = np.eye(m.dimension, dtype=complex)
+    for r in range(n):
+        product = product @ transfer_matrix(m, u * omega**r).to_sparse().toarray()
+    target = complex(poly(u**n)) * np.eye(m.dimension)
+    residual = np.abs(product - target).max()
+    return bool(residual <= 1e-9 * max(1.0, float(np.abs(target).max())))
+
+
+def _intro(f: _Facts) -> list[Cell]:
+    m = f.model
+    status = (
+        "A theorem guarantees this model's free spectrum; every number below is recomputed "
+        "and asserted by the code cells."
+        if f.spectrum is not None
+        else "**No theorem guarantees a free spectrum for this model.** The cells state the "
+        "verdict and the probes; no spectrum is asserted."
+    )
+    md = (
+        "# Worked calculation\n\n"
+        f"The model has {len(m)} terms on {len(m.sites)} sites with N = {m.states} states per "
+        f"site (Hilbert-space dimension {m.states}^{len(m.sites)}):\n\n"
+        f"$$H = {_model_latex(m)}$$\n\n"
+        "written as $H = \\sum_j c_j g_j$ with operator strings normalised to $g_j^N = 1$.\n\n"
+        f"{status} Each code cell rebuilds what it needs with `freeladder` and fails with an "
+        "`AssertionError` when a recomputed value leaves its stated tolerance: change a coupling "
+        "below and the cells say so."
+    )
+    code = (
+        "from fractions import Fraction\n\n"
+        "import numpy as np\n\n"
+        "import freeladder as fl\n"
+        "from freeladder.base.errors import NoTheoremError\n\n"
+        "# The model, every coupling written literally (floats round-trip through repr).\n"
+        f"{_model_source(m)}\n"
+        f"assert len(m) == {len(m)} and m.states == {m.states}\n"
+        "print(m)"
+    )
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+def _verdict_cells(f: _Facts) -> list[Cell]:
+    v = f.verdict
+    reasons = "\n".join(f"* {r}" for r in v.reasons)
+    witness = f"\n\nWitness (term indices): {list(v.witness)}." if v.witness else ""
+    md = (
+        "## Frustration graph and verdict\n\n"
+        "One vertex per term; an edge joins $j$ and $k$ when $g_j g_k \\neq g_k g_j$. "
+        "Which theorem applies is read off this graph: line graphs are Jordan-Wigner free "
+        f"({refs.CHAPMAN_FLAMMIA_2020}); claw-free, even-hole-free graphs are free "
+        f"({refs.ELMAN_CHAPMAN_FLAMMIA_2021}; {refs.CHAPMAN_ELMAN_MANN_2023}); the exclusion "
+        f"algebra of reach p is free for any N ({refs.ALCARAZ_PIMENTA_2020}).\n\n"
+        f"The graph has {len(f.edges)} edges. **Verdict: {v.kind}.**\n\n{reasons}{witness}"
+    )
+    if len(f.edges) <= EDGE_LIST_LIMIT:
+        edge_check = f"assert edges == {f.edges!r}, edges"
+    else:
+        edge_check = f"assert len(edges) == {len(f.edges)}, len(edges)"
+    code = (
+        "G = fl.frustration_graph(m)\n"
+        "edges = sorted({tuple(sorted(e[:2])) for e in G.edges()})\n"
+        f"{edge_check}\n"
+        "verdict = fl.classify(m)\n"
+        "print(verdict)\n"
+        f"assert verdict.kind == {v.kind!r}, verdict.kind\n"
+        f"assert tuple(verdict.witness) == {tuple(v.witness)!r}, verdict.witness"
+    )
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+def _coefficient_assert(name: str, f: _Facts, values: Sequence[Any]) -> str:
+    if f.exact_coefficients:
+        return (
+            "# Exact couplings give exact coefficients: equality, no tolerance.\n"
+            f"assert list({name}) == {_array_literal(values)}, {name}"
+        )
+    return (
+        f"# Exact sums rounded once to double precision: relative tolerance {COEFFICIENT_RTOL}.\n"
+        f"expected = np.array({_array_literal(values)})\n"
+        f"got = np.array([complex(c) for c in {name}])\n"
+        "assert got.shape == expected.shape, (got, expected)\n"
+        f"assert np.all(np.abs(got - expected) <= {COEFFICIENT_RTOL} * np.maximum(1.0, "
+        "np.abs(expected))), got - expected"
+    )
+
+
+def _charge_cells(f: _Facts) -> list[Cell]:
+    sums = [c if s % 2 == 0 else -c for s, c in enumerate(f.coefficients)]
+    rows = list(range(len(f.counts)))
+    if len(rows) > SHOWN_ORDERS:
+        rows = rows[:8] + [-1] + rows[-3:]
+    table = ["| order $s$ | independent sets | $C_s$ |", "| --- | --- | --- |"]
+    for s in rows:
+        if s < 0:
+            table.append(f"| ... | ({len(f.counts) - 11} orders not shown) | ... |")
+        else:
+            table.append(f"| {s} | {f.counts[s]} | {_num(sums[s])} |")
+    md = (
+        "## Conserved charges, order by order\n\n"
+        "$$Q^{(s)} = \\sum_{S \\text{ independent},\\ |S| = s}\\ \\prod_{j \\in S} c_j g_j, "
+        "\\qquad C_s = \\sum_{S \\text{ independent},\\ |S| = s}\\ \\prod_{j \\in S} c_j^N$$\n\n"
+        "over the independent sets $S$ of the frustration graph "
+        f"({refs.FENDLEY_2019}; {refs.ELMAN_CHAPMAN_FLAMMIA_2021}). "
+        f"The series has {len(f.counts)} orders, $s = 0, \\dots, {len(f.counts) - 1}$:\n\n"
+        + "\n".join(table)
+    )
+    code = (
+        "steps = list(fl.charge_series(m))\n"
+        "counts = [step.count for step in steps]\n"
+        f"assert counts == {f.counts!r}, counts\n"
+        "weight_sums = [step.coefficient for step in steps]\n"
+        f"{_coefficient_assert('weight_sums', f, sums)}\n"
+        "print(counts)"
+    )
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+def _polynomial_cells(f: _Facts) -> list[Cell]:
+    m = f.model
+    n = m.states
+    product = "T(u)\\,T(-u)" if n == 2 else "\\prod_{r=0}^{N-1} T(\\omega^r u)"
+    md = (
+        "## Transfer matrix and exclusion polynomial\n\n"
+        "$$T(u) = \\sum_s (-u)^s Q^{(s)}, \\qquad "
+        f"{product} = P(u^N), \\qquad P(y) = \\sum_s (-1)^s C_s\\, y^s$$\n\n"
+        f"with $\\omega = e^{{2\\pi i/N}}$ ({refs.FENDLEY_2019}; {refs.ALCARAZ_PIMENTA_2020}). "
+        "For this model\n\n"
+        f"$${f.polynomial_latex.replace('P(y) =', 'P(y) =', 1)}$$"
+    )
+    lines = [
+        "P = fl.exclusion_polynomial(m)",
+        _coefficient_assert("P.coefficients", f, f.coefficients),
+    ]
+    if f.inversion_holds is not None:
+        expectation = "holds" if f.inversion_holds else "fails (as at export)"
+        lines += [
+            "",
+            f"# The inversion relation with dense matrices at u = 1/3: it {expectation}.",
+            "# Tolerance: rounding only, 1e-9 relative to the largest entry of P(u^N) 1.",
+            "u = 1 / 3",
+            f"omega = np.exp(2j * np.pi / {n})",
+            "product = np.eye(m.dimension, dtype=complex)",
+            f"for r in range({n}):",
+            "    T = fl.transfer_matrix(m, u * omega**r).to_sparse()",
+            "    product = product @ T.toarray()",
+            f"target = complex(P(u**{n})) * np.eye(m.dimension)",
+            "residual = np.abs(product - target).max()",
+            "print('inversion relation residual:', residual)",
+            "holds = residual <= 1e-9 * max(1.0, float(np.abs(target).max()))",
+            f"assert holds == {f.inversion_holds!r}, residual",
+        ]
+    lines.append("P")
+    return [Cell("markdown", md), Cell("code", "\n".join(lines))]
+
+
+def _tolerances(sp: FreeSpectrum) -> np.ndarray:
+    eta = np.abs(sp.quasi_energies)
+    return np.asarray(sp.error_bounds, dtype=float) + ULPS * np.spacing(np.maximum(eta, 1.0))
+
+
+def _spectrum_cells(f: _Facts) -> list[Cell]:
+    m, sp = f.model, f.spectrum
+    if sp is None:
+        md = (
+            "## Spectrum: no theorem\n\n"
+            "No theorem guarantees that the roots of $P$ give this model's spectrum: "
+            f"{f.no_theorem}\n\n"
+            "So no quasi-energies are exported. The probes below (charges, inversion relation, "
+            "exact diagonalization where the size allows) show how far the free-fermion "
+            "structure survives."
+        )
+        code = (
+            "try:\n"
+            "    sp = fl.free_spectrum(m)\n"
+            "except NoTheoremError as err:\n"
+            '    print("free_spectrum refuses:", err)\n'
+            "else:\n"
+            '    assert not sp.provenance.guaranteed, "a theorem now applies: export again"\n'
+            '    print("not guaranteed:", sp.provenance.guarantee)'
+        )
+        return [Cell("markdown", md), Cell("code", code)]
+    n = m.states
+    prov = sp.provenance
+    rows = ["| $k$ | root $y_k$ | $\\eta_k$ | bound on $\\eta_k$ |", "| --- | --- | --- | --- |"]
+    for k, (y, eta, b) in enumerate(
+        zip(sp.roots, sp.quasi_energies, sp.error_bounds, strict=True), start=1
+    ):
+        rows.append(f"| {k} | {_num(complex(y))} | {_num(eta)} | {_bound(float(b))} |")
+    md = (
+        "## Roots and quasi-energies\n\n"
+        "$$P(y_k) = 0, \\qquad \\eta_k^N = 1 / y_k$$\n\n"
+        f"Theorem: {prov.guarantee}. Root finder: {prov.path}; "
+        f"bounds: {prov.bounds}.\n\n"
+        + "\n".join(rows)
+        + "\n\nTolerance of the check below: the exported bound plus the recomputed bound "
+        f"plus {ULPS} units in the last place, so both values lie within their bounds of the "
+        "same exact quasi-energy. Roots use the same bound through "
+        "$|\\delta y| \\approx N |y|\\, |\\delta\\eta| / |\\eta|$ (with a factor 2 for second "
+        "order)."
+    )
+    tol_exported = _tolerances(sp)
+    code = (
+        "sp = fl.free_spectrum(m)\n"
+        "assert sp.provenance.guaranteed, sp.provenance.guarantee\n"
+        f"expected_eta = np.array({_array_literal(sp.quasi_energies)})\n"
+        f"expected_y = np.array({_array_literal(complex(y) for y in sp.roots)})\n"
+        f"exported_tol = np.array({_array_literal(float(t) for t in tol_exported)})\n"
+        "assert len(sp.quasi_energies) == len(expected_eta), len(sp.quasi_energies)\n"
+        "tol = exported_tol + np.asarray(sp.error_bounds, dtype=float)\n"
+        "eta_error = np.abs(sp.quasi_energies - expected_eta)\n"
+        'assert np.all(eta_error <= tol), ("quasi-energies moved", eta_error, tol)\n'
+        f"y_tol = 2 * {n} * np.abs(expected_y) * tol / np.abs(expected_eta)\n"
+        "y_error = np.abs(np.asarray(sp.roots, dtype=complex) - expected_y)\n"
+        'assert np.all(y_error <= y_tol), ("roots moved", y_error, y_tol)\n'
+        "print(sp)"
+    )
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+def _level_cells(f: _Facts) -> list[Cell]:
+    sp = f.spectrum
+    if sp is None:
+        return []
+    levels = sp.levels(SHOWN_LEVELS)
+    energies = [lv.energy for lv in levels]
+    mult = (
+        f"each with multiplicity {sp.degeneracy} ({sp.degeneracy_reason})" if sp.degeneracy else ""
+    )
+    lines = ", ".join(_num(e, 10) for e in energies)
+    md = (
+        "## Levels\n\n"
+        "$$E = E_0 + \\sum_k \\omega^{s_k} \\eta_k, \\qquad s_k \\in \\{0, \\dots, N-1\\}$$\n\n"
+        f"one level per choice of the $s_k$ ({refs.FENDLEY_2019}; {refs.ALCARAZ_PIMENTA_2020}; "
+        f"{refs.BAXTER_1989} for N > 2), $E_0$ the constant term. The {len(energies)} lowest "
+        f"(by real part){', ' + mult if mult else ''}: {lines}.\n\n"
+        "A level is a sum of quasi-energies with unit-modulus weights, so its tolerance is the "
+        "sum of theirs."
+    )
+    tol = float(np.sum(_tolerances(sp)))
+    code = (
+        f"levels = sp.levels({SHOWN_LEVELS})\n"
+        "energies = np.array([level.energy for level in levels], dtype=complex)\n"
+        f"expected_levels = np.array({_array_literal(complex(e) for e in energies)})\n"
+        f"level_tol = {_float_literal(tol)} + float(np.sum(sp.error_bounds))\n"
+        "assert len(energies) == len(expected_levels), len(energies)\n"
+        "distance = np.abs(energies[:, None] - expected_levels[None, :])\n"
+        "worst = max(distance.min(axis=0).max(), distance.min(axis=1).max())\n"
+        'assert worst <= level_tol, ("levels moved", worst, level_tol)\n'
+        "levels"
+    )
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+def _check_cells(f: _Facts) -> list[Cell]:
+    r = f.report
+    rows = ["| check | method | tolerance | value | result |", "| --- | --- | --- | --- | --- |"]
+    for c in r.checks:
+        tol = "exact" if c.tolerance == 0 else f"{c.tolerance:.2g}"
+        name, method = (t.replace("|", "\\|") for t in (c.name, c.method))
+        rows.append(f"| {name} | {method} | {tol} | {c.value:.3g} | {c.status} |")
+    sources = sorted({c.reference for c in r.checks if c.reference})
+    notes = "\n".join(f"* {n}" for n in r.notes)
+    md = (
+        "## Checks\n\n"
+        "`fl.verify` checks the charges against $H$ and each other, the inversion relation "
+        "and, where the size allows, the spectrum against exact diagonalization. A check that "
+        "could not run is reported as not run and never counts as passed.\n\n"
+        + "\n".join(rows)
+        + ("\n\nSources: " + "; ".join(sources) if sources else "")
+        + ("\n\n" + notes if notes else "")
+    )
+    statuses = {c.name: c.status for c in r.checks}
+    code = (
+        "report = fl.verify(m)\n"
+        "print(report)\n"
+        "statuses = {check.name: check.status for check in report.checks}\n"
+        f"assert statuses == {json.dumps(statuses, indent=1)}, statuses\n"
+        + (
+            'assert report.ok, report.problems\nprint("all checks passed")'
+            if r.ok
+            else "assert not report.ok"
+        )
+    )
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+def _latex_section(f: _Facts) -> str:
+    m, sp, r = f.model, f.spectrum, f.report
+    out = [
+        "% Worked calculation exported by freeladder; needs \\usepackage{amsmath}.",
+        "\\section{Worked calculation}",
+        f"The model has {len(m)} terms on {len(m.sites)} sites with $N = {m.states}$:",
+        "\\begin{equation*}",
+        f"H = {_model_latex(m)}",
+        "\\end{equation*}",
+        f"Verdict: \\emph{{{_tex(f.verdict.kind)}}}.",
+        "\\begin{itemize}",
+        *[f"\\item {_tex(reason)}" for reason in f.verdict.reasons],
+        "\\end{itemize}",
+    ]
+    if sp is not None:
+        out.append(f"\\paragraph{{Theorem.}} {_tex(str(sp.provenance.guarantee))}.")
+    else:
+        out.append(f"\\paragraph{{No theorem.}} {_tex(f.no_theorem)} No spectrum is claimed.")
+    out += [
+        "The exclusion polynomial, $P(y) = \\sum_s (-1)^s C_s y^s$ with "
+        "$C_s = \\sum_{|S| = s} \\prod_{j \\in S} c_j^N$ over independent sets "
+        f"({_tex(refs.FENDLEY_2019)}; {_tex(refs.ALCARAZ_PIMENTA_2020)}):",
+        "\\begin{equation*}",
+        f.polynomial_latex,
+        "\\end{equation*}",
+    ]
+    if sp is not None:
+        out += [
+            "\\begin{table}[h]",
+            "\\centering",
+            f"\\caption{{Quasi-energies $\\eta_k$, $\\eta_k^N = 1/y_k$, with their bounds "
+            f"({_tex(str(sp.provenance.bounds))}).}}",
+            "\\begin{tabular}{rll}",
+            "$k$ & $\\eta_k$ & bound \\\\",
+            "\\hline",
+        ]
+        for k, (eta, b) in enumerate(zip(sp.quasi_energies, sp.error_bounds, strict=True), 1):
+            out.append(f"{k} & ${_num(eta, 15)}$ & ${_bound(float(b))}$ \\\\")
+        out += ["\\end{tabular}", "\\end{table}"]
+    out += [
+        "\\begin{table}[h]",
+        "\\centering",
+        "\\caption{Checks run by freeladder's \\texttt{verify}.}",
+        "\\begin{tabular}{llll}",
+        "check & method & value (tolerance) & result \\\\",
+        "\\hline",
+    ]
+    for c in r.checks:
+        tol = "exact" if c.tolerance == 0 else f"{c.tolerance:.2g}"
+        out.append(
+            f"{_tex(c.name)} & {_tex(c.method)} & {c.value:.3g} ({tol}) & {_tex(c.status)} \\\\"
+        )
+    out += ["\\end{tabular}", "\\end{table}", ""]
+    return "\n".join(out)
+
+
+def worked_calculation(m: Model, steps: str | Iterable[str] = "all") -> WorkedCalculation:
+    """Every step of a model's solution as cells whose code recomputes and asserts it.
+
+    Parameters
+    ----------
+    m : Model
+        Numeric couplings (substitute symbols first with ``m.subs``).
+    steps : "all" or iterable of str
+        Which steps to include, from :data:`STEPS`; "model" is always included.
+
+    Returns
+    -------
+    WorkedCalculation
+        The cells, with ``to_notebook``, ``to_script`` and ``to_latex``.
+
+    Raises
+    ------
+    ValueError
+        For symbolic couplings, a model with no terms, or an unknown step name.
+    TypeError
+        If ``m`` is not a Model.
+
+    Notes
+    -----
+    Tolerances come from the stated error bounds: a recomputed quasi-energy must lie within
+    the exported bound plus the recomputed bound (plus a few units in the last place) of the
+    exported value; levels add the bounds of their quasi-energies; exact coefficients must be
+    equal.  When no theorem guarantees the spectrum (``fl.free_spectrum`` refuses, or marks
+    its result as not guaranteed) the cells state the verdict and the probes and assert no
+    spectrum.
+
+    References
+    ----------
+    P. Fendley, J. Phys. A 52, 335002 (2019), arXiv:1901.08078;
+    F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622;
+    S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021).
+
+    Examples
+    --------
+    >>> import freeladder as fl
+    >>> wc = fl.worked_calculation(fl.ising_chain(3))
+    >>> wc[0].kind, wc[1].kind
+    ('markdown', 'code')
+    """
+    if not isinstance(m, Model):
+        raise TypeError(f"worked_calculation needs a Model, got {type(m).__name__}")
+    if len(m) == 0:
+        raise ValueError("the model has no terms: there is nothing to work out")
+    if m.is_symbolic:
+        raise ValueError(
+            "the model has symbolic couplings "
+            f"({', '.join(sorted(str(s) for s in m.symbols))}); substitute numbers first with "
+            "m.subs({...})"
+        )
+    if isinstance(steps, str):
+        if steps != "all":
+            raise ValueError(f"steps must be 'all' or a list of step names from {STEPS}")
+        chosen = set(STEPS)
+    else:
+        chosen = set(steps) | {"model"}
+        unknown = chosen - set(STEPS)
+        if unknown:
+            raise ValueError(f"unknown step(s) {sorted(unknown)}; choose from {STEPS}")
+    facts = _collect(m)
+    cells = _intro(facts)
+    builders = {
+        "verdict": _verdict_cells,
+        "charges": _charge_cells,
+        "polynomial": _polynomial_cells,
+        "spectrum": _spectrum_cells,
+        "levels": _level_cells,
+        "checks": _check_cells,
+    }
+    for name in STEPS[1:]:
+        if name in chosen:
+            if name == "levels" and "spectrum" not in chosen:
+                raise ValueError("the 'levels' step needs the 'spectrum' step")
+            cells += builders[name](facts)
+    return WorkedCalculation(
+        tuple(cells), str(m), facts.spectrum is not None, _latex_section(facts)
+    )

@@ -1,0 +1,83 @@
+"""Exclusion polynomials and their roots: real, complex and certified."""
+
+from .certify import (
+    certified_roots,
+    certify_chain_roots,
+)
+from .complex import (
+    ChainValues,
+    aberth_chain_roots,
+    certified_complex_roots,
+    evaluate_chain,
+    inclusion_radii,
+)
+from .methods import (
+    ROOT_METHODS,
+    RootMethod,
+    choose_method,
+    exact_polynomial_roots,
+    scaled_weights,
+    solve_chain,
+    solve_general,
+)
+from .polynomial import (
+    MAX_ROOT_DEGREE,
+    ChainData,
+    ExclusionPolynomial,
+    PolynomialRoots,
+    SumRules,
+    exclusion_polynomial,
+    independence_graph,
+    independent_set_counts,
+    power_sum_targets,
+    sum_rules,
+)
+from .real import (
+    chain_back,
+    chain_count_below,
+    chain_inverse_power_sums,
+    chain_real_roots,
+    chain_root_count,
+    check_chain_weights,
+    fixed_reach,
+)
+from .result import (
+    BeyondFloatError,
+    RootResult,
+)
+
+__all__ = [
+    "BeyondFloatError",
+    "ChainData",
+    "ChainValues",
+    "ExclusionPolynomial",
+    "MAX_ROOT_DEGREE",
+    "PolynomialRoots",
+    "ROOT_METHODS",
+    "RootMethod",
+    "RootResult",
+    "SumRules",
+    "aberth_chain_roots",
+    "certified_complex_roots",
+    "certified_roots",
+    "certify_chain_roots",
+    "chain_back",
+    "chain_count_below",
+    "chain_inverse_power_sums",
+    "chain_real_roots",
+    "chain_root_count",
+    "check_chain_weights",
+    "choose_method",
+    "evaluate_chain",
+    "exact_polynomial_roots",
+    "exclusion_polynomial",
+    "fixed_reach",
+    "inclusion_radii",
+    "independence_graph",
+    "independent_set_counts",
+    "power_sum_targets",
+    "scaled_weights",
+    "solve_chain",
+    "solve_general",
+    "sum_rules",
+]

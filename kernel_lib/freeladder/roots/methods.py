@@ -1,0 +1,372 @@
+"""The table of root methods, and the routes that :func:`freeladder.free_spectrum` takes.
+
+``ROOT_METHODS`` maps a method name to a :class:`RootMethod` (what it applies to, whether its
+bounds are proofs, the function).  Every method returns a
+:class:`~freeladder.RootResult`.
+
+=================== ============== ========= ==================================================
+name                applies to     rigorous  how
+=================== ============== ========= ==================================================
+``chain-count``     real chain     no        count bisection + Laguerre on the ratio recurrence
+``chain-certified`` real chain     yes       ``chain-count``, then interval sign tests at both
+                                             ends of each root's interval (fixed precision)
+``chain-aberth``    complex chain  no        Aberth-Ehrlich on the recurrence, inclusion discs
+``exact-certified`` any graph      yes       exact polynomial, certified isolating balls
+=================== ============== ========= ==================================================
+
+Scale invariance: before a chain method runs, the couplings are divided by the power of two
+just above their largest magnitude (an exact operation), so relative accuracy does not depend
+on their overall scale.  The result is scaled back (exactly) when float64 holds the true
+roots; otherwise it stays scaled and records the scale in ``weight_log2``.
+
+References
+----------
+F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622 (the
+chain recurrence); M. Chudnovsky and P. Seymour, J. Combin. Theory Ser. B 97, 350 (2007)
+(real roots for claw-free graphs); O. Aberth, Math. Comp. 27, 339 (1973);
+F. Johansson, IEEE Trans. Comput. 66, 1281 (2017) (arb).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass
+from types import MappingProxyType
+from typing import Any, Literal
+
+import numpy as np
+
+from ..algebra.model import Model
+from .certify import certified_roots, certify_chain_roots
+from .complex import aberth_chain_roots, certified_complex_roots
+from .polynomial import exclusion_polynomial
+from .real import chain_back, chain_real_roots, fixed_reach
+from .result import RootResult
+
+__all__ = [
+    "ROOT_METHODS",
+    "RootMethod",
+    "choose_method",
+    "exact_polynomial_roots",
+    "scaled_weights",
+    "solve_chain",
+    "solve_general",
+]
+
+_TINY = float(np.finfo(np.float64).tiny)
+
+
+@dataclass(frozen=True)
+class RootMethod:
+    """One entry of :data:`ROOT_METHODS`.
+
+    Attributes
+    ----------
+    name : str
+    applies_to : "real chain", "complex chain" or "any graph"
+    rigorous : bool
+        The method's error bounds are proofs (when it reports success).
+    description : str
+    solve : callable
+        Chain methods: ``solve(weights, reach, states, lowest, couplings)`` (reach an int or
+        a back-reach array, :func:`freeladder.roots.real.chain_back`) with the scaled
+        couplings whose N-th powers the weights are (for the certificate);
+        ``exact-certified``: ``solve(model)``.
+    """
+
+    name: str
+    applies_to: Literal["real chain", "complex chain", "any graph"]
+    rigorous: bool
+    description: str
+    solve: Callable[..., RootResult]
+
+
+def _count(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootResult:
+    return chain_real_roots(w, reach, lowest=lowest)
+
+
+def _certified(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootResult:
+    """All roots (the proof needs all S intervals), certified; then the ``lowest`` kept.
+
+    With the couplings ``c`` given, the proof covers the exact weights ``c**N`` (one rounding
+    away from ``w``: the float stage takes one ulp around each, the arb stage the exact power).
+    Fixed reach only, and roots inside float64's range only (the sign test runs on float64
+    end points); anything else raises ``ValueError`` naming the exact route.
+    """
+    if np.ndim(reach) != 0:
+        p = fixed_reach(chain_back(reach, w.size))
+        if p is None:
+            raise ValueError(
+                "the certified chain method handles fixed reach only; a chain of variable "
+                "reach (an indifference ordering) is certified through the exact polynomial "
+                "(solve_general(model), method 'exact-certified')"
+            )
+        reach = p
+    found = chain_real_roots(w, reach)
+    if np.any(found.exponents != 0):
+        raise ValueError(
+            "some roots lie beyond float64's range, where the float64 / arb sign test of the "
+            "certificate does not run; use method 'fast' (error estimates) for this chain"
+        )
+    bounds = None if c is None else (np.nextafter(w, 0.0), np.nextafter(w, np.inf))
+    enc = certify_chain_roots(
+        w,
+        reach,
+        found.values,
+        found.error_bounds,
+        indices=found.indices,
+        weight_bounds=bounds,
+        power_of=None if c is None else (c, states),
+    )
+    keep = slice(None) if lowest is None else slice(max(0, enc.count - int(lowest)), None)
+    details = {k: (v[keep] if isinstance(v, np.ndarray) else v) for k, v in enc.details.items()}
+    details["finder"] = found.summary()
+    return dataclasses.replace(
+        enc,
+        values=enc.values[keep],
+        error_bounds=enc.error_bounds[keep],
+        indices=enc.indices[keep],
+        evaluations=enc.evaluations + found.evaluations,
+        iterations=found.iterations,
+        details=details,
+    )
+
+
+def _aberth(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootResult:
+    return aberth_chain_roots(w, reach, order=states, lowest=lowest)
+
+
+def exact_polynomial_roots(m: Model) -> RootResult:
+    """Certified roots of the model's exact exclusion polynomial (any frustration graph).
+
+    Raises ``ValueError`` when the roots cannot be isolated at bounded precision, or when the
+    polynomial has a root at ``y = 0`` or lost degree.
+    """
+    poly = exclusion_polynomial(m)
+    re_parts, im_parts = poly.exact_parts()
+    if all(v == 0 for v in im_parts):
+        found = certified_roots(list(re_parts))
+    else:
+        found = certified_complex_roots(re_parts, im_parts)
+    if np.any(found.values == 0) or found.count != poly.degree:
+        raise ValueError(
+            "the exclusion polynomial has a root at y = 0 or lost degree; P(0) must be 1"
+        )
+    return dataclasses.replace(
+        found, details=dict(found.details, polynomial=f"exact exclusion polynomial ({poly.kind})")
+    )
+
+
+ROOT_METHODS: Mapping[str, RootMethod] = MappingProxyType(
+    {
+        "chain-count": RootMethod(
+            "chain-count",
+            "real chain",
+            False,
+            "count bisection + Laguerre steps on the ratio recurrence (error estimates)",
+            _count,
+        ),
+        "chain-certified": RootMethod(
+            "chain-certified",
+            "real chain",
+            True,
+            "chain-count, then outward-rounded interval sign tests of P at both ends of each "
+            "root's interval plus the root count (proved enclosures)",
+            _certified,
+        ),
+        "chain-aberth": RootMethod(
+            "chain-aberth",
+            "complex chain",
+            False,
+            "Aberth-Ehrlich iteration on the recurrence, inclusion discs (error estimates)",
+            _aberth,
+        ),
+        "exact-certified": RootMethod(
+            "exact-certified",
+            "any graph",
+            True,
+            "certified isolating balls of the exact polynomial (python-flint)",
+            exact_polynomial_roots,
+        ),
+    }
+)
+
+
+def choose_method(kind: Literal["real chain", "complex chain", "any graph"], method: str) -> str:
+    """The table key for a problem kind and a user method ``"auto"``, ``"fast"``,
+    ``"certified"`` or a table key.
+
+    Raises ``ValueError`` for an unknown method or one that does not apply to ``kind``.
+    """
+    named = {
+        "real chain": {
+            "auto": "chain-count",
+            "fast": "chain-count",
+            "certified": "chain-certified",
+        },
+        "complex chain": {
+            "auto": "chain-aberth",
+            "fast": "chain-aberth",
+            "certified": "exact-certified",
+        },
+        "any graph": {"auto": "exact-certified", "certified": "exact-certified"},
+    }[kind]
+    key = named.get(method, method)
+    entry = ROOT_METHODS.get(key)
+    if entry is None or (entry.applies_to != kind and entry.applies_to != "any graph"):
+        allowed = sorted(
+            set(named) | {k for k, v in ROOT_METHODS.items() if v.applies_to in (kind, "any graph")}
+        )
+        raise ValueError(f"method {method!r} does not apply to a {kind}; choose one of {allowed}")
+    return key
+
+
+def scaled_weights(couplings: Any, states: int) -> tuple[np.ndarray, np.ndarray, int]:
+    """Scaled couplings ``c / 2**e`` (exact), weights ``(c / 2**e)**N`` and ``N e``.
+
+    ``2**e`` is the power of two just above ``max |c|``.
+
+    The division by a power of two is exact; the weights' largest magnitude lies in
+    ``[2**-N, 1)``.  Raises ``ValueError`` when a non-zero coupling's weight falls below the
+    float64 range relative to the largest (couplings spanning more than about ``2**(1022/N)``).
+    """
+    c = np.asarray(couplings)
+    if c.ndim != 1 or c.size == 0:
+        raise ValueError("couplings must be a non-empty 1-d array")
+    if not np.all(np.isfinite(c)):
+        bad = int(np.nonzero(~np.isfinite(c))[0][0])
+        raise ValueError(f"coupling {bad} is {c[bad]!r}, not finite")
+    top = float(np.max(np.abs(c)))
+    if top == 0:
+        raise ValueError("every coupling is zero: no quasi-energies")
+    e = int(np.frexp(top)[1])
+    if np.iscomplexobj(c):
+        cs = np.ldexp(c.real, -e) + 1j * np.ldexp(c.imag, -e)
+    else:
+        cs = np.ldexp(np.asarray(c, dtype=np.float64), -e)
+    w = cs ** int(states)
+    lost = np.nonzero((np.abs(w) < _TINY) & (c != 0))[0]
+    if lost.size:
+        j = int(lost[0])
+        raise ValueError(
+            f"coupling {j} ({c[j]!r}) is smaller than the largest ({top:.3g}) by more than "
+            f"float64 can hold in its weight c^{states} relative to the others; its effect on "
+            "the quasi-energies is below float precision -- remove the term or rescale it"
+        )
+    return cs, w, int(states) * e
+
+
+def solve_chain(
+    couplings: Any,
+    reach: Any,
+    states: int,
+    method: str = "auto",
+    lowest: int | None = None,
+    *,
+    allow_unconverged: bool = False,
+) -> RootResult:
+    """Roots of an exclusion chain's polynomial from its couplings in chain order.
+
+    ``reach`` is an int p >= 1 or a back-reach array (position k's earlier neighbours are
+    positions ``k - back[k] .. k - 1``: an indifference ordering, any number of components
+    one after another; :func:`freeladder.roots.real.chain_back`).  Real positive weights (N = 2,
+    real couplings) take a real-chain method, anything else the complex-chain one;
+    ``method`` is ``"auto"``, ``"fast"``, ``"certified"`` or a key of :data:`ROOT_METHODS`.
+    The couplings are scaled first (see :func:`scaled_weights`); the result is in true units
+    unless they over- or underflow (then ``weight_log2`` and ``exponents`` say how it is
+    scaled).  Raises ``ValueError`` when a rigorous method cannot prove its bounds (never a
+    silent pass), and ``ArithmeticError`` when the roots did not converge unless
+    ``allow_unconverged`` (a non-converged quasi-energy is hard to miss).
+    ``exact-certified`` needs the model: use :func:`solve_general` for it.
+    """
+    c = np.asarray(couplings)
+    cs, w, weight_log2 = scaled_weights(c, states)
+    real = int(states) == 2 and not np.iscomplexobj(c) and bool(np.all(w > 0))
+    key = choose_method("real chain" if real else "complex chain", method)
+    if key == "exact-certified":
+        raise ValueError("method 'exact-certified' needs the model: call solve_general(model)")
+    if real:
+        found = ROOT_METHODS[key].solve(np.asarray(w, dtype=float), reach, states, lowest, cs)
+    else:
+        found = ROOT_METHODS[key].solve(np.asarray(w, dtype=complex), reach, states, lowest, None)
+    if ROOT_METHODS[key].rigorous and not found.rigorous:
+        raise ValueError(f"the chain roots could not be certified ({key}): {found.message}")
+    if not found.converged and not allow_unconverged:
+        raise ArithmeticError(
+            f"the chain roots did not converge ({key}): {found.message}; no quasi-energy is "
+            "returned rather than one with an unbounded error (allow_unconverged=True returns "
+            "the result, marked converged=False)"
+        )
+    found = dataclasses.replace(found, weight_log2=found.weight_log2 + weight_log2)
+    return _unscaled(found)
+
+
+def _unscaled(found: RootResult) -> RootResult:
+    """The result in true units (``weight_log2 = 0``) when float64 holds it without loss."""
+    if found.weight_log2 == 0 and not np.any(found.exponents != 0):
+        return found
+    values, bounds = found.true_values()
+    tiny = np.finfo(np.float64).tiny
+    lossless = (
+        np.all(np.isfinite(values))
+        and np.all(np.isfinite(bounds))
+        and np.all(np.abs(values) >= tiny)
+        and np.all((bounds >= tiny) | (found.error_bounds == 0))
+    )
+    if not lossless:
+        return found
+    return dataclasses.replace(
+        found,
+        values=values,
+        error_bounds=bounds,
+        weight_log2=0,
+        exponents=np.zeros(values.size, dtype=np.int64),
+    )
+
+
+def solve_general(m: Model, method: str = "auto") -> RootResult:
+    """Roots for any frustration graph through the exact polynomial (``exact-certified``)."""
+    key = choose_method("any graph", method)
+    return ROOT_METHODS[key].solve(m)
+
+
+def provenance(found: RootResult) -> dict[str, Any]:
+    """The provenance entries :func:`freeladder.free_spectrum` records for a root result."""
+    paths = {
+        "chain-count": "real roots of the chain recurrence (count bisection + Laguerre steps)",
+        "chain-certified": "real roots of the chain recurrence (count bisection + Laguerre "
+        "steps); certified by interval sign changes at fixed precision",
+        "chain-aberth": "Aberth-Ehrlich iteration on the chain recurrence (complex plane)",
+        "exact-certified": f"{found.details.get('polynomial', 'exact exclusion polynomial')}, "
+        "certified roots (python-flint)",
+    }
+    # What each root's error bound is, said once (the method itself is in ``path``).
+    proved = {
+        "chain-certified": "outward-rounded interval sign tests of P at both ends of each "
+        "root's interval, with the root count",
+        "exact-certified": "radii of python-flint's certified isolating balls",
+    }
+    estimated = {
+        "chain-count": "the last Laguerre step or half the final bisection bracket, at least "
+        "sqrt(M) eps relative",
+        "chain-aberth": "Weierstrass inclusion-disc radii plus an estimate of the rounding error",
+    }
+    if found.rigorous:
+        bounds = f"proved enclosures: {proved[found.method]}"
+    else:
+        how = estimated.get(found.method, f"the certificate did not hold ({found.message})")
+        bounds = f"error estimates, not proofs: {how}"
+    return {
+        "method": "certified" if found.rigorous else "fast",
+        "root_method": found.method,
+        "path": paths[found.method],
+        "iterations": found.iterations,
+        "evaluations": found.evaluations,
+        "converged": found.converged,
+        "rigorous": found.rigorous,
+        "message": found.message,
+        "count": found.count,
+        "bounds": bounds,
+        "roots": found,
+    }

@@ -1,0 +1,93 @@
+"""Charges, free spectra, Jordan-Wigner sectors, exact diagonalization, thermodynamics,
+edge modes.
+"""
+
+from .charges import (
+    DEFAULT_LIMIT,
+    ChargeStep,
+    ChargeTerm,
+    charge,
+    charge_series,
+    transfer_matrix,
+)
+from .ed import (
+    DENSE_LIMIT,
+    SPARSE_LIMIT,
+    ExactSpectrum,
+    exact_spectrum,
+)
+from .edge import (
+    EdgeMode,
+    LadderOperators,
+    component_model,
+    components,
+    edge_mode,
+    ladder_operators,
+    simplicial_cliques,
+)
+from .majorana import (
+    FluxSector,
+    SectorSpectrum,
+    SectorStructure,
+    flux_sector,
+    flux_theorem_values,
+    jordan_wigner_spectrum,
+    sectors,
+)
+from .matching import (
+    LevelMatch,
+    match_levels,
+)
+from .spectrum import (
+    LEVEL_LIMIT,
+    DensityOfStates,
+    FreeSpectrum,
+    Level,
+    LevelTable,
+    SpectrumProvenance,
+    free_spectrum,
+)
+from .thermo import (
+    Thermodynamics,
+    log_partition_function,
+    thermodynamics,
+)
+
+__all__ = [
+    "ChargeStep",
+    "ChargeTerm",
+    "DEFAULT_LIMIT",
+    "DENSE_LIMIT",
+    "DensityOfStates",
+    "EdgeMode",
+    "ExactSpectrum",
+    "FluxSector",
+    "FreeSpectrum",
+    "LEVEL_LIMIT",
+    "LadderOperators",
+    "Level",
+    "LevelMatch",
+    "LevelTable",
+    "SPARSE_LIMIT",
+    "SectorSpectrum",
+    "SectorStructure",
+    "SpectrumProvenance",
+    "Thermodynamics",
+    "charge",
+    "charge_series",
+    "component_model",
+    "components",
+    "edge_mode",
+    "exact_spectrum",
+    "flux_sector",
+    "flux_theorem_values",
+    "free_spectrum",
+    "jordan_wigner_spectrum",
+    "ladder_operators",
+    "log_partition_function",
+    "match_levels",
+    "sectors",
+    "simplicial_cliques",
+    "thermodynamics",
+    "transfer_matrix",
+]

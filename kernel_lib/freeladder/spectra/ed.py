@@ -1,0 +1,414 @@
+"""Exact diagonalization: the reference spectrum every free-spectrum answer is compared with.
+
+Small models are diagonalised densely (LAPACK through numpy); larger ones give their ``k``
+lowest eigenvalues (by real part) through ARPACK (scipy.sparse.linalg).  Before building
+anything the memory the solve needs is estimated and compared with the memory available, so
+that a model too large for exact diagonalization is refused with a message instead of
+exhausting the machine.
+
+References
+----------
+E. Anderson et al., LAPACK Users' Guide, 3rd ed. (SIAM, 1999): dense Hermitian (``heevd``) and
+general (``geev``) eigenvalue drivers and their error bounds.
+R. B. Lehoucq, D. C. Sorensen and C. Yang, ARPACK Users' Guide (SIAM, 1998): implicitly
+restarted Lanczos / Arnoldi iterations.
+"""
+
+from __future__ import annotations
+
+import html
+import os
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+import scipy.sparse as sps
+import scipy.sparse.linalg as spla
+
+from ..algebra.model import Model
+from ..base.errors import TooLargeError
+from ..base.frozen import readonly_array
+from ..base.htmltable import grid_table
+from ..base.jsonready import json_ready
+
+__all__ = ["DENSE_LIMIT", "SPARSE_LIMIT", "ExactSpectrum", "exact_spectrum"]
+
+DENSE_LIMIT = 4096
+"""Largest dimension diagonalised densely."""
+
+SPARSE_LIMIT = 2**31
+"""Largest dimension the sparse solver handles (32-bit sparse indices)."""
+
+_EPS = float(np.finfo(float).eps)
+
+
+@dataclass(frozen=True)
+class ExactSpectrum:
+    """Eigenvalues of a model's Hamiltonian from exact diagonalization.
+
+    Attributes
+    ----------
+    levels : numpy.ndarray
+        Distinct eigenvalues (cluster means), sorted by real part, then imaginary part.  Real
+        dtype for Hermitian Hamiltonians, complex otherwise.
+    multiplicities : numpy.ndarray of int
+        How many eigenvalues each level holds.  With ``complete=False`` the multiplicity of the
+        highest level returned may be cut short by ``k``.
+    eigenvalues : numpy.ndarray
+        Every eigenvalue found, with repetition, in the same order.
+    method : str
+        ``"dense-hermitian"``, ``"dense-general"``, ``"sparse-eigsh"`` or ``"sparse-eigs"``.
+    tolerance : float
+        Absolute clustering tolerance used: ``tol`` times the spectral scale
+        (``max(1, max |eigenvalue|)``).
+    dimension : int
+        Hilbert-space dimension.
+    complete : bool
+        True when all ``dimension`` eigenvalues were computed.
+    hermitian : bool
+        True when the matrix was Hermitian within rounding.
+    error_estimate : float
+        Estimated absolute accuracy of the eigenvalues: ``dimension * eps * ||H||_1`` for dense
+        Hermitian solves (backward stability of LAPACK and Weyl's inequality), the largest
+        residual ``||H v - lambda v||`` for sparse solves (a rigorous bound when Hermitian).
+        For non-Hermitian dense solves it is the backward error only: eigenvalues of a
+        non-normal matrix can be less accurate.
+    """
+
+    levels: np.ndarray
+    multiplicities: np.ndarray
+    eigenvalues: np.ndarray
+    method: str
+    tolerance: float
+    dimension: int
+    complete: bool
+    hermitian: bool
+    error_estimate: float
+
+    def __post_init__(self) -> None:
+        for name in ("levels", "multiplicities", "eigenvalues"):
+            object.__setattr__(self, name, readonly_array(getattr(self, name)))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields: levels (complex as ``[re, im]``), multiplicities, method, error
+        estimate, clustering tolerance, dimension, how many eigenvalues were found, complete,
+        hermitian."""
+        return json_ready(
+            {
+                "levels": self.levels,
+                "multiplicities": self.multiplicities,
+                "method": self.method,
+                "error_estimate": self.error_estimate,
+                "tolerance": self.tolerance,
+                "dimension": self.dimension,
+                "eigenvalue_count": int(self.eigenvalues.shape[0]),
+                "complete": self.complete,
+                "hermitian": self.hermitian,
+            }
+        )
+
+    def __repr__(self) -> str:
+        shown = ", ".join(
+            f"{_num(v)} (x{int(d)})"
+            for v, d in zip(self.levels[:8], self.multiplicities[:8], strict=True)
+        )
+        more = f", ... {len(self.levels) - 8} more" if len(self.levels) > 8 else ""
+        part = "all" if self.complete else f"lowest {len(self.eigenvalues)}"
+        return (
+            f"ExactSpectrum(dimension={self.dimension}, {part} eigenvalues, {self.method}, "
+            f"levels: {shown}{more}; clustering tolerance {self.tolerance:.2g}, "
+            f"error estimate {self.error_estimate:.2g})"
+        )
+
+    def _repr_html_(self) -> str:
+        table = grid_table(
+            ("level", "multiplicity"),
+            [
+                (_num(v), str(int(d)))
+                for v, d in zip(self.levels[:30], self.multiplicities[:30], strict=True)
+            ],
+            numeric=(0, 1),
+        )
+        more = (
+            f"<p><small>... and {len(self.levels) - 30} more levels</small></p>"
+            if len(self.levels) > 30
+            else ""
+        )
+        part = "all" if self.complete else f"the lowest {len(self.eigenvalues)}"
+        return (
+            f"<div><b>Exact spectrum</b>: {part} of {self.dimension} eigenvalues "
+            f"({html.escape(self.method)}); levels clustered within {self.tolerance:.2g}; "
+            f"error estimate {self.error_estimate:.2g}{table}{more}</div>"
+        )
+
+
+def _num(v: complex | float) -> str:
+    v = complex(v)
+    if v.imag == 0:
+        return f"{v.real:.10g}"
+    return f"{v.real:.10g}{v.imag:+.10g}j"
+
+
+def available_memory() -> int:
+    """Bytes of memory available now (``MemAvailable`` of /proc/meminfo, else sysconf)."""
+    try:
+        with open("/proc/meminfo") as fh:
+            for line in fh:
+                if line.startswith("MemAvailable:"):
+                    return int(line.split()[1]) * 1024
+    except OSError:
+        pass
+    try:
+        return int(os.sysconf("SC_AVPHYS_PAGES")) * int(os.sysconf("SC_PAGE_SIZE"))
+    except (ValueError, OSError, AttributeError):
+        return 2**34  # unknown platform: assume 16 GiB
+
+
+def _row_count(m: Model) -> int:
+    """Non-zeros per row of the Hamiltonian: the number of distinct X patterns."""
+    x = m.strings.x.tocsr()
+    patterns = set()
+    for r in range(x.shape[0]):
+        lo, hi = x.indptr[r], x.indptr[r + 1]
+        patterns.add((tuple(x.indices[lo:hi]), tuple(x.data[lo:hi])))
+    diagonal = ((), ())
+    if m.constant != 0 or not patterns:
+        patterns.add(diagonal)
+    return len(patterns)
+
+
+def _gib(n_bytes: float) -> str:
+    return f"{n_bytes / 2**30:.3g} GiB"
+
+
+def exact_spectrum(
+    m: Model, k: int | None = None, tol: float = 1e-9, solver: str = "auto"
+) -> ExactSpectrum:
+    """Eigenvalues of ``H = constant + sum_j c_j g_j`` by exact diagonalization.
+
+    Parameters
+    ----------
+    m : Model
+        A model with numeric couplings.
+    k : int, optional
+        Number of lowest eigenvalues (by real part) wanted.  ``None`` asks for all of them,
+        which is allowed up to dimension :data:`DENSE_LIMIT`.
+    tol : float
+        Relative tolerance for grouping eigenvalues into levels; the absolute tolerance is
+        ``tol * max(1, max |eigenvalue|)``.
+    solver : "auto", "dense" or "sparse"
+        "auto" is dense up to dimension :data:`DENSE_LIMIT` and sparse above; "dense" forces a
+        dense solve (still refused when memory is short); "sparse" forces ARPACK (needs ``k``).
+
+    Returns
+    -------
+    ExactSpectrum
+
+    Raises
+    ------
+    ValueError
+        If the couplings are symbolic (substitute values with ``m.subs`` first) or ``k`` is not
+        in ``1..dim`` (``1..dim - 2`` for the sparse solvers).
+    TooLargeError
+        (a ValueError) If ``k`` is None and the dimension exceeds :data:`DENSE_LIMIT`, the
+        dimension exceeds :data:`SPARSE_LIMIT`, or the estimated memory exceeds what is
+        available.  The message suggests a ``k`` only when that request would succeed.
+
+    Notes
+    -----
+    Dense solves use ``numpy.linalg.eigvalsh`` when ``H`` is Hermitian within rounding
+    (``max |H - H^dagger| <= 1e-12 * max |H|``) and ``numpy.linalg.eigvals`` otherwise.  Larger
+    models use ``scipy.sparse.linalg.eigsh`` (``which="SA"``) or ``eigs`` (``which="SR"``).
+    Levels are formed by chaining eigenvalues whose real parts, and then imaginary parts,
+    differ by at most the clustering tolerance.  Eigenvalues of defective (non-diagonalisable)
+    matrices split by about ``eps ** (1 / block size)``; raise ``tol`` for those.
+
+    References
+    ----------
+    LAPACK Users' Guide (1999); ARPACK Users' Guide (1998).
+
+    Examples
+    --------
+    >>> from freeladder import ising_chain
+    >>> ed = exact_spectrum(ising_chain(3))
+    >>> ed.dimension, ed.method, int(ed.multiplicities.sum())
+    (8, 'dense-hermitian', 8)
+    """
+    k = _validate(m, k, tol, solver)
+    dense = solver == "dense" or (solver == "auto" and m.dimension <= DENSE_LIMIT)
+    _check_size(m, k, dense, solver)
+    mat = m.to_sparse()
+    scale_h = float(abs(mat).max()) if mat.nnz else 0.0
+    diff = mat - mat.conj().T
+    hermitian = (float(abs(diff).max()) if diff.nnz else 0.0) <= 1e-12 * max(scale_h, 1e-300)
+    if dense:
+        vals, error, method = _dense_solve(mat, hermitian)
+        if k is not None:
+            vals = vals[:k]
+    else:
+        assert k is not None
+        vals, error, method = _sparse_lowest(mat, k, hermitian)
+    scale = max(1.0, float(np.abs(vals).max())) if len(vals) else 1.0
+    levels, mult = _cluster(vals, tol * scale)
+    for arr in (levels, mult, vals):
+        arr.setflags(write=False)  # the result is immutable, like every freeladder object
+    return ExactSpectrum(
+        levels=levels,
+        multiplicities=mult,
+        eigenvalues=vals,
+        method=method,
+        tolerance=tol * scale,
+        dimension=m.dimension,
+        complete=len(vals) == m.dimension,
+        hermitian=hermitian,
+        error_estimate=float(error),
+    )
+
+
+def _validate(m: Model, k: int | None, tol: float, solver: str) -> int | None:
+    """Check the arguments of :func:`exact_spectrum`; ``k`` as an int (or None)."""
+    if not isinstance(m, Model):
+        raise TypeError(f"exact_spectrum needs a Model, got {type(m).__name__}")
+    if m.is_symbolic:
+        names = ", ".join(sorted(str(s) for s in m.symbols))
+        raise ValueError(
+            f"the model has symbolic couplings ({names}); give them values first, "
+            "e.g. exact_spectrum(m.subs({...}))"
+        )
+    if not (np.isfinite(tol) and tol >= 0):
+        raise ValueError(f"tol must be a finite number >= 0, got {tol!r}")
+    dim = m.dimension
+    if k is not None:
+        if isinstance(k, bool) or int(k) != k or not 1 <= k <= dim:
+            raise ValueError(f"k must be an integer in 1..{dim} (the dimension), got {k!r}")
+        k = int(k)
+    if solver not in ("auto", "dense", "sparse"):
+        raise ValueError(f"solver must be 'auto', 'dense' or 'sparse', not {solver!r}")
+    if solver == "sparse" and k is None:
+        raise ValueError("the sparse solver needs k, the number of lowest eigenvalues wanted")
+    return k
+
+
+def _dense_bytes(dim: int, per_row: int) -> float:
+    return 3 * 16.0 * dim**2 + _sparse_matrix_bytes(dim, per_row)
+
+
+def _sparse_matrix_bytes(dim: int, per_row: int) -> float:
+    return 64.0 * dim * per_row  # build temporaries (rows, cols, complex data) and CSR
+
+
+def _sparse_bytes(dim: int, per_row: int, k: int) -> float:
+    return _sparse_matrix_bytes(dim, per_row) + 16.0 * dim * (2 * k + 40)  # Lanczos basis
+
+
+def _largest_sparse_k(dim: int, per_row: int, have: float) -> int:
+    """Largest k whose sparse solve fits in ``have`` bytes (0 when even k = 1 does not)."""
+    if dim > SPARSE_LIMIT or dim < 3:
+        return 0
+    spare = have - _sparse_bytes(dim, per_row, 0)
+    return int(max(0, min(dim - 2, spare // (32.0 * dim))))
+
+
+def _check_size(m: Model, k: int | None, dense: bool, solver: str) -> None:
+    """Refuse, with :class:`TooLargeError`, a solve beyond the limits or the memory available.
+
+    The message suggests only a request that would pass these same limits.
+    """
+    dim, per_row, have = m.dimension, _row_count(m), float(available_memory())
+    top_k = _largest_sparse_k(dim, per_row, have)
+    if not dense and k is not None and k > dim - 2:
+        raise ValueError(f"the sparse solvers return at most dim - 2 = {dim - 2} eigenvalues")
+    if k is None and not dense:
+        why = (
+            f"dimension {dim} is too large for a full dense solve (limit {DENSE_LIMIT}; it would "
+            f"need about {_gib(_dense_bytes(dim, per_row))})"
+        )
+    elif dense:
+        need = _dense_bytes(dim, per_row)
+        if need <= have:
+            return
+        why = (
+            f"dimension {dim} needs about {_gib(need)} for a dense solve, but only "
+            f"{_gib(have)} is available"
+        )
+    else:
+        assert k is not None
+        need = _sparse_bytes(dim, per_row, k)
+        if dim <= SPARSE_LIMIT and need <= have:
+            return
+        why = (
+            f"dimension {dim} with about {per_row} non-zeros per row needs about {_gib(need)} "
+            f"for the {k} lowest eigenvalues, but only {_gib(have)} is available"
+            if dim <= SPARSE_LIMIT
+            else f"dimension {dim} is above {SPARSE_LIMIT}, the largest the sparse solver indexes"
+        )
+    if top_k >= 1:
+        hint = f"; pass k=1..{top_k} for the lowest eigenvalues from the sparse solver"
+    else:
+        hint = (
+            "; even the lowest eigenvalue is beyond exact diagonalization here (sparse limit "
+            f"dimension {SPARSE_LIMIT}, {_gib(have)} of memory available): the model is too "
+            "large for exact diagonalization"
+        )
+    raise TooLargeError(why + hint)
+
+
+def _dense_solve(mat: sps.sparray, hermitian: bool) -> tuple[np.ndarray, float, str]:
+    """All eigenvalues by LAPACK, with the backward-error estimate ``dim eps ||H||_1``."""
+    h = mat.toarray()
+    if hermitian:
+        vals = np.linalg.eigvalsh((h + h.conj().T) / 2)
+        method = "dense-hermitian"
+    else:
+        vals = np.linalg.eigvals(h)
+        method = "dense-general"
+    norm1 = float(np.abs(h).sum(axis=0).max()) if h.size else 0.0
+    return _sorted(vals, hermitian), h.shape[0] * _EPS * norm1, method
+
+
+def _sparse_lowest(mat: sps.sparray, k: int, hermitian: bool) -> tuple[np.ndarray, float, str]:
+    rng = np.random.default_rng(12345)  # fixed start vector: reproducible results
+    v0 = rng.standard_normal(mat.shape[0])
+    if hermitian:
+        herm = (mat + mat.conj().T) / 2
+        vals, vecs = spla.eigsh(herm, k=k, which="SA", v0=v0)
+        method = "sparse-eigsh"
+        res = herm @ vecs - vecs * vals[None, :]
+    else:
+        vals, vecs = spla.eigs(mat.astype(complex), k=k, which="SR", v0=v0.astype(complex))
+        method = "sparse-eigs"
+        res = mat @ vecs - vecs * vals[None, :]
+    error = float(np.linalg.norm(res, axis=0).max())
+    return _sorted(vals, hermitian), error, method
+
+
+def _sorted(vals: np.ndarray, hermitian: bool) -> np.ndarray:
+    if hermitian:
+        return np.sort(np.real(vals)).astype(float)
+    vals = np.asarray(vals, dtype=complex)
+    return vals[np.lexsort((vals.imag, vals.real))]
+
+
+def _cluster(vals: np.ndarray, tol: float) -> tuple[np.ndarray, np.ndarray]:
+    """Group sorted eigenvalues: chains with real-part gaps <= tol, then imaginary-part gaps."""
+    if len(vals) == 0:
+        return vals.copy(), np.zeros(0, dtype=np.int64)
+    levels: list[complex] = []
+    counts: list[int] = []
+    real_breaks = np.nonzero(np.diff(vals.real) > tol)[0] + 1
+    for block in np.split(vals, real_breaks):
+        if np.iscomplexobj(block):
+            block = block[np.argsort(block.imag, kind="stable")]
+            imag_breaks = np.nonzero(np.diff(block.imag) > tol)[0] + 1
+            parts = np.split(block, imag_breaks)
+        else:
+            parts = [block]
+        for part in parts:
+            levels.append(part.mean())
+            counts.append(len(part))
+    out = np.array(levels, dtype=vals.dtype)
+    mult = np.array(counts, dtype=np.int64)
+    if np.iscomplexobj(out):
+        order = np.lexsort((out.imag, out.real))
+        out, mult = out[order], mult[order]
+    return out, mult
