@@ -46,6 +46,7 @@ __all__ = [
     "spectrum_repr",
     "spectrum_text",
     "bound_text",
+    "digits_for",
     "number_html",
     "number_latex",
     "number_text",
@@ -324,6 +325,16 @@ def number_html(value: Any, digits: int = DIGITS) -> str:
         text = f"{tilde}{mant}\u00d710<sup>{e10.rstrip('i')}</sup>{unit}"
         return text.replace("-", _MINUS)
     return html.escape(text).replace("-", _MINUS)
+
+
+def digits_for(value: Any, bound: float) -> int:
+    """Significant digits that show ``value`` down to its error ``bound`` (2 to 15; DIGITS
+    when the bound is zero, unknown or not finite)."""
+    size = abs(complex(value))
+    if not (math.isfinite(bound) and bound > 0 and size > 0 and math.isfinite(size)):
+        return DIGITS
+    digits = math.floor(math.log10(size)) - math.floor(math.log10(bound)) + 1
+    return max(2, min(15, digits))
 
 
 def bound_text(bound: float) -> str:

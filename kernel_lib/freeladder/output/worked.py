@@ -38,6 +38,7 @@ from ..graphs.graph import frustration_graph
 from ..graphs.verdict import classify
 from ..roots.polynomial import exclusion_polynomial
 from ..spectra.charges import charge_series, transfer_matrix
+from ..spectra.ed import ExactSpectrum, exact_spectrum
 from ..spectra.spectrum import FreeSpectrum, free_spectrum
 
 __all__ = ["STEPS", "Cell", "WorkedCalculation", "worked_calculation"]
@@ -234,11 +235,6 @@ def _num(v: Any) -> str:
     return display.number_text(v)
 
 
-def _tex_num(v: Any) -> str:
-    """A number for LaTeX: the display's LaTeX form (``i`` for the imaginary unit)."""
-    return display.number_latex(v)
-
-
 def _sentence(text: str) -> str:
     """``text`` ending in exactly one full stop."""
     text = text.rstrip()
@@ -340,19 +336,30 @@ def _text_literal(text: str, indent: str = "    ", width: int = 92) -> list[str]
 
 def _model_text(m: Model) -> str | None:
     """The model's text, when parsing it gives the same model back (strings, coupling values
-    and types, constant, sites); None otherwise."""
+    and kinds, constant, sites); None otherwise."""
     text = format_terms(m.terms, m.constant, keep_types=True)
     try:
         again = parse_model(text, states=m.states, sites=list(m.sites))
     except (ValueError, TypeError):
         return None
     same = (
-        [(type(c), c, g) for c, g in again.terms] == [(type(c), c, g) for c, g in m.terms]
-        and type(again.constant) is type(m.constant)
+        [(_kind(c), c, g) for c, g in again.terms] == [(_kind(c), c, g) for c, g in m.terms]
+        and _kind(again.constant) == _kind(m.constant)
         and again.constant == m.constant
         and again.sites == m.sites
     )
     return text if same else None
+
+
+def _kind(c: Any) -> str:
+    """ "exact" for int and Fraction (the same arithmetic), else the type's name."""
+    return "exact" if isinstance(c, (int, Fraction)) else type(c).__name__
+
+
+def _rebuilt(m: Model) -> Model:
+    """The model as the exported cells build it (from its text where that reads back)."""
+    text = _model_text(m)
+    return m if text is None else parse_model(text, states=m.states, sites=list(m.sites))
 
 
 def _fingerprint(m: Model) -> str:
@@ -383,8 +390,10 @@ def _model_source(m: Model) -> str:
         call = f"m = fl.parse_model({', '.join([json.dumps(text), *options])})"
         if len(call) <= 100:
             return call
+        literal = _text_literal(text)
+        literal[-1] += ","
         return "\n".join(
-            ["m = fl.parse_model(", *_text_literal(text)]
+            ["m = fl.parse_model(", *literal]
             + ([f"    {', '.join(options)},"] if options else [])
             + [")"]
         )
@@ -456,6 +465,7 @@ class _Facts:
     no_theorem: str
     report: Report
     inversion_holds: bool | None
+    exact: ExactSpectrum | None
 
 
 def _collect(m: Model) -> _Facts:
@@ -479,6 +489,7 @@ def _collect(m: Model) -> _Facts:
     inversion: bool | None = None
     if m.dimension <= DENSE_LIMIT and sum(counts) <= DENSE_SETS:
         inversion = _dense_inversion(m, poly)
+    dense = exact_spectrum(m) if m.dimension <= DENSE_LIMIT else None
     return _Facts(
         m,
         verdict,
@@ -491,6 +502,7 @@ def _collect(m: Model) -> _Facts:
         no_theorem,
         report,
         inversion,
+        dense,
     )
 
 
@@ -545,7 +557,7 @@ def _imports(cells: Sequence[Cell]) -> str:
 
 
 def _model_check_cells(f: _Facts) -> list[Cell]:
-    m = f.model
+    m = _rebuilt(f.model)
     text = str(m)
     md = (
         "## The model itself\n\n"
@@ -720,7 +732,9 @@ def _spectrum_cells(f: _Facts) -> list[Cell]:
     for k, (y, eta, b) in enumerate(
         zip(sp.roots, sp.quasi_energies, sp.error_bounds, strict=True), start=1
     ):
-        rows.append(f"| {k} | {_num(y)} | {_num(eta)} | {display.bound_text(float(b))} |")
+        digits = display.digits_for(eta, float(b))
+        shown = (display.number_text(v, digits) for v in (y, eta))
+        rows.append(f"| {k} | {' | '.join(shown)} | {display.bound_text(float(b))} |")
     md = (
         "## Roots and quasi-energies\n\n"
         "$$P(y_k) = 0, \\qquad \\eta_k^N = 1 / y_k$$\n\n"
@@ -782,6 +796,40 @@ def _level_cells(f: _Facts) -> list[Cell]:
         "worst = max(distance.min(axis=0).max(), distance.min(axis=1).max())\n"
         'assert worst <= level_tol, ("levels moved", worst, level_tol)\n'
         "print(levels)"
+    )
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+SHOWN_EXACT = 4
+"""How many of the lowest exact levels are exported."""
+
+
+def _exact_cells(f: _Facts) -> list[Cell]:
+    """The lowest levels of exact diagonalization, asserted: they move with any coupling,
+    also where the charges and the polynomial see only the couplings' N-th powers."""
+    ed = f.exact
+    if ed is None:
+        return []
+    shown = min(SHOWN_EXACT, len(ed.levels))
+    levels = [complex(v) for v in ed.levels[:shown]]
+    mults = [int(d) for d in ed.multiplicities[:shown]]
+    listed = ", ".join(f"{_num(v)} (x{d})" for v, d in zip(levels, mults, strict=True))
+    md = (
+        "## Exact diagonalization\n\n"
+        f"The Hamiltonian as a dense {ed.dimension} x {ed.dimension} matrix ({ed.method}): "
+        f"its {shown} lowest levels, with multiplicities, are {listed}. They depend on every "
+        "coupling, signs included, so they pin the model where the charges and $P$ see only "
+        "the $c_j^N$. Tolerance: twice the clustering tolerance of the diagonalization "
+        f"({display.bound_text(ed.tolerance)}; rounding of a dense eigensolver, common practice)."
+    )
+    code = (
+        "ed = fl.exact_spectrum(m)\n"
+        f"expected_exact = np.array({_array_literal(levels)})\n"
+        f"assert [int(d) for d in ed.multiplicities[:{shown}]] == {mults!r}, ed.multiplicities\n"
+        f"exact_error = np.abs(np.asarray(ed.levels[:{shown}], dtype=complex) - expected_exact)\n"
+        f"exact_tol = 2 * max(ed.tolerance, {_float_literal(float(ed.tolerance))})\n"
+        'assert np.all(exact_error <= exact_tol), ("exact levels moved", exact_error, exact_tol)\n'
+        "print(ed)"
     )
     return [Cell("markdown", md), Cell("code", code)]
 
@@ -876,7 +924,8 @@ def _latex_section(f: _Facts) -> str:
             "\\endhead",
         ]
         for k, (eta, b) in enumerate(zip(sp.quasi_energies, sp.error_bounds, strict=True), 1):
-            out.append(f"{k} & {_tex_num(eta)} & {display.bound_text(float(b))} \\\\")
+            shown = display.number_latex(eta, display.digits_for(eta, float(b)))
+            out.append(f"{k} & {shown} & {display.bound_text(float(b))} \\\\")
         out += ["\\end{longtable}"]
     out += [
         "\\begin{longtable}{p{0.22\\linewidth}p{0.36\\linewidth}p{0.2\\linewidth}"
@@ -965,7 +1014,7 @@ def worked_calculation(m: Model, steps: str | Iterable[str] = "all") -> WorkedCa
         "polynomial": _polynomial_cells,
         "spectrum": _spectrum_cells,
         "levels": _level_cells,
-        "checks": _check_cells,
+        "checks": lambda facts: _exact_cells(facts) + _check_cells(facts),
     }
     for name in STEPS[1:]:
         if name in chosen:
