@@ -7,7 +7,9 @@ everywhere.  The conventions:
 * **Digits.** Floats show :data:`DIGITS` significant digits, so rounding noise disappears
   (``0.6 * 3`` shows ``1.8``, not ``1.7999999999999998``); error bounds show two.
 * **Imaginary unit.** ``i`` in every format: ``1.5-2i`` (text), ``1.5 - 2i`` (LaTeX),
-  ``1.5 − 2i`` (HTML).  Python's ``j`` appears only in code meant to be run.
+  ``1.5−2i`` (HTML).  Python's ``j`` appears only where text must read back as a number: in
+  code meant to be run, and in the model text syntax (``str(m)``, which writes a complex
+  coupling as a power of ``w`` where it can: ``1.2*w``, ``0.3j*w^2``).
 * **Tiny parts.** A real or imaginary part smaller than ``10**-DIGITS`` times the modulus is
   below the shown precision and is not shown (``1+1e-17i`` shows ``1``); a part that is
   exactly zero is never shown.
@@ -250,8 +252,14 @@ def _scaled_phase(r_text: str, q: Fraction, phase: Any) -> str:
     if power is not None:
         if power >= 2:
             neg = not neg
-        unit = "i" if power % 2 else ""
-        body = (unit if mag == "1" else mag + unit) if unit else mag
+        if power % 2 == 0:
+            return ("-" if neg else "") + mag
+        if mag == "1":
+            body = "i"
+        elif "/" in mag:  # text: (3/4)i, never 3/4i
+            body = f"({mag})i"
+        else:
+            body = mag + "i"
         return ("-" if neg else "") + body
     body = phase(q) if mag == "1" else f"{mag} {phase(q)}"
     return ("-" if neg else "") + body
