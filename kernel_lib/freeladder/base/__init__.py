@@ -1,11 +1,20 @@
-"""Foundations shared by every part: frozen results, errors, caches, JSON, HTML tables,
-references, scalars.
+"""Foundations shared by every part: frozen results, errors, caches, JSON, the display (numbers
+in text, HTML and LaTeX, and the renderings of results), HTML tables, references, scalars.
 """
 
 from .cache import (
     cached,
     model_store,
     structure_store,
+)
+from .display import (
+    DIGITS,
+    bound_text,
+    digits_for,
+    number_html,
+    number_latex,
+    number_text,
+    tex_escape,
 )
 from .errors import (
     CheckNotApplicable,
@@ -65,6 +74,7 @@ __all__ = [
     "CHAPMAN_FLAMMIA_2020",
     "CHUDNOVSKY_SEYMOUR_2007",
     "CheckNotApplicable",
+    "DIGITS",
     "ELMAN_CHAPMAN_FLAMMIA_2021",
     "FENDLEY_2014",
     "FENDLEY_2019",
@@ -78,8 +88,10 @@ __all__ = [
     "Scalar",
     "TooLargeError",
     "as_complex",
+    "bound_text",
     "cached",
     "check_scalar",
+    "digits_for",
     "exact_to_sympy",
     "exact_value",
     "expand_exact",
@@ -91,12 +103,16 @@ __all__ = [
     "is_symbolic",
     "json_ready",
     "model_store",
+    "number_html",
+    "number_latex",
+    "number_text",
     "readonly_array",
     "readonly_mapping",
     "readonly_sparse",
     "structure_store",
     "substitute",
     "substitution_map",
+    "tex_escape",
     "to_fmpq",
     "to_python_number",
     "to_sympy",
