@@ -37,18 +37,17 @@ from sympy.printing.str import StrPrinter
 
 __all__ = [
     "DIGITS",
+    "LONG_BITS",
+    "REPORT_COLUMNS",
+    "aligned_sum",
+    "bound_text",
+    "check_cells",
+    "digits_for",
     "exact_spectrum_html",
     "exact_spectrum_repr",
     "level_table_repr",
     "log_text",
     "match_text",
-    "report_html",
-    "report_text",
-    "spectrum_html",
-    "spectrum_repr",
-    "spectrum_text",
-    "bound_text",
-    "digits_for",
     "number_html",
     "number_latex",
     "number_text",
@@ -57,8 +56,18 @@ __all__ = [
     "phase_text",
     "polynomial_latex",
     "polynomial_text",
+    "report_head",
+    "report_html",
+    "report_text",
+    "spectrum_html",
+    "spectrum_repr",
+    "spectrum_text",
+    "spectrum_warning",
     "tex_escape",
     "text_table",
+    "verdict_html",
+    "verdict_markdown",
+    "verdict_text",
 ]
 
 DIGITS = 12
@@ -412,6 +421,32 @@ def log_text(log_value: float, digits: int = 6) -> str:
     return f"{mantissa:.{digits}g}e{exponent}"
 
 
+# -- long formulas ------------------------------------------------------------------------------
+def aligned_sum(pieces: list[str], lhs: str = "", width: int = 60) -> str:
+    """Signed LaTeX terms joined into a sum, broken into an ``aligned`` block before a term that
+    would take a line past about ``width`` printed characters (MathJax and LaTeX display
+    formulas do not break themselves).  ``lhs`` (``H``, say) goes before ``=``.
+    """
+    lines: list[str] = []
+    for piece in pieces:
+        signed = f"- {piece[1:]}" if piece.startswith("-") else f"+ {piece}"
+        if lines and _printed_width(f"{lines[-1]} {signed}") <= width:
+            lines[-1] += f" {signed}"
+        else:
+            lines.append(signed if lines else piece)
+    head = f"{lhs} = " if lhs else ""
+    if len(lines) <= 1:
+        return head + (lines[0] if lines else "0")
+    body = " \\\\ & ".join(lines)
+    eq = f"{lhs} = {{}} & " if lhs else "& "
+    return rf"\begin{{aligned}} {eq}{body} \end{{aligned}}"
+
+
+def _printed_width(tex: str) -> int:
+    """Roughly how many characters a LaTeX formula prints (commands and braces dropped)."""
+    return len(re.sub(r"\\(left|right|frac|times|pi)|[{}_^\\]", "", tex))
+
+
 # -- polynomials -----------------------------------------------------------------------------
 def _shown_orders(degree: int) -> list[int]:
     return list(range(degree + 1)) if degree <= 8 else [0, 1, 2, 3, -1, degree]
@@ -631,6 +666,54 @@ def match_text(match: Any) -> str:
             more = f", ... {len(rows) - 6} more" if len(rows) > 6 else ""
             text += f"; unmatched {side}: {shown}{more}"
     return text
+
+
+# -- verdicts ----------------------------------------------------------------------------------
+def _components(v: Any) -> str:
+    n = len(v.components)
+    return f"{len(v.model)} terms, {n} component{'s' if n != 1 else ''}"
+
+
+def verdict_text(v: Any) -> str:
+    """A verdict as text: the kind, its reasons, the witness and the guarantee."""
+    lines = [f"Verdict: {v.kind}"]
+    lines += [f"  - {r}" for r in v.reasons]
+    if v.witness:
+        lines.append(f"  witness: {v.witness_text()}")
+    lines.append(f"  single polynomial gives the spectrum: {v.guarantee}")
+    return "\n".join(lines)
+
+
+def verdict_markdown(v: Any) -> str:
+    """A verdict as markdown: the kind in bold, the reasons and witness terms as lists."""
+    lines = [f"**Verdict: `{v.kind}`** ({_components(v)})", ""]
+    lines += [f"* {r}" for r in v.reasons]
+    if v.witness:
+        lines += ["", "Witness terms:", ""]
+        lines += [f"* `[{j}]` `{text}`" for j, text in v.witness_terms()]
+    lines += ["", f"Single polynomial gives the spectrum: {v.guarantee}"]
+    return "\n".join(lines)
+
+
+def verdict_html(v: Any) -> str:
+    """A verdict as HTML: the kind, the reasons, a table of witness terms, the guarantee."""
+    esc = html.escape
+    parts = [
+        f"<div><b>Verdict: <code>{esc(v.kind)}</code></b> ({_components(v)})",
+        "<ul>" + "".join(f"<li>{esc(r)}</li>" for r in v.reasons) + "</ul>",
+    ]
+    if v.witness:
+        rows = "".join(
+            f"<tr><td>{j}</td><td><code>{esc(text)}</code></td></tr>"
+            for j, text in v.witness_terms()
+        )
+        parts.append(f"<table><tr><th>term</th><th>witness</th></tr>{rows}</table>")
+    head = "proven" if v.guarantee.proven else "NOT GUARANTEED"
+    parts.append(
+        f"<p>Single polynomial gives the spectrum: <b>{head}</b>: {esc(v.guarantee.reason)}</p>"
+    )
+    parts.append("</div>")
+    return "".join(parts)
 
 
 # -- verification reports ----------------------------------------------------------------------

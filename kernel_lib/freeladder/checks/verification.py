@@ -733,14 +733,18 @@ def sum_rule_check(m: Model, spectrum: tuple[FreeSpectrum, str] | None = None) -
     scale2 = max(float(np.sum(np.abs(eta) ** (2 * n))), abs(rhs2), 1e-300)
     dev = max(abs(lhs1 - rhs1) / scale1, abs(lhs2 - rhs2) / scale2)
     tol = FLOAT_RTOL
-    num = display.number_text
-    detail = (
-        f"{len(eta)} quasi-energies; sum eta^N = {num(lhs1)} vs {num(rhs1)}, "
-        f"sum eta^2N = {num(lhs2)} vs {num(rhs2)} (relative deviation)"
-    )
+    detail = _sum_rule_detail(len(eta), (lhs1, rhs1), (lhs2, rhs2))
     method, detail = _probe(why, "floating point vs exact coefficients", detail)
     ref = "coefficients of P: Newton's identities (common practice)"
     return Check(SUM_RULES, method, tol, dev, dev <= tol, detail, ref, decisive=False)
+
+
+def _sum_rule_detail(count: int, first: tuple[Any, Any], second: tuple[Any, Any]) -> str:
+    num = display.number_text
+    return (
+        f"{count} quasi-energies; sum eta^N = {num(first[0])} vs {num(first[1])}, "
+        f"sum eta^2N = {num(second[0])} vs {num(second[1])} (relative deviation)"
+    )
 
 
 def exact_diagonalization_check(

@@ -16,7 +16,6 @@ import hashlib
 import json
 import math
 import numbers
-import re
 import textwrap
 from collections.abc import Iterable, Iterator, Sequence
 from dataclasses import dataclass
@@ -416,22 +415,11 @@ def _model_source(m: Model) -> str:
     return "\n".join(lines)
 
 
-def _model_latex(m: Model, width: int = 60) -> str:
-    """``H = ...`` in LaTeX, an ``aligned`` block broken before a term that would take a line
-    past about ``width`` printed characters (no display formula runs off the page)."""
+def _model_latex(m: Model) -> str:
+    """``H = ...`` in LaTeX, broken over lines where it is long."""
     pieces = [format_terms_latex([], m.constant)] if m.constant != 0 else []
     pieces += [format_terms_latex([term]) for term in m.terms]
-    lines: list[str] = []
-    for piece in pieces:
-        signed = f"- {piece[1:]}" if piece.startswith("-") else f"+ {piece}"
-        if lines and _printed_width(lines[-1] + signed) <= width:
-            lines[-1] += f" {signed}"
-        else:
-            lines.append(piece if not lines else signed)
-    if len(lines) <= 1:
-        return f"H = {lines[0] if lines else '0'}"
-    body = " \\\\ & ".join(lines)
-    return rf"\begin{{aligned}} H = {{}} & {body} \end{{aligned}}"
+    return display.aligned_sum(pieces, "H")
 
 
 def _display_block(formula: str) -> list[str]:
@@ -442,11 +430,6 @@ def _display_block(formula: str) -> list[str]:
         rows = formula[len(head) : -len(tail)].split(r" \\ ")
         return ["\\begin{align*}", *[r + " \\\\" for r in rows[:-1]], rows[-1], "\\end{align*}"]
     return ["\\begin{equation*}", formula, "\\end{equation*}"]
-
-
-def _printed_width(tex: str) -> int:
-    """Roughly how many characters a LaTeX formula prints (commands and braces dropped)."""
-    return len(re.sub(r"\\(left|right|frac|times)|[{}_^\\]", "", tex))
 
 
 # -- the steps -----------------------------------------------------------------------------------
