@@ -48,7 +48,7 @@ def chain(m: int, seed: int) -> fl.Model:
 
 def library_work(a: Any) -> None:
     """What the Workbench asks of the library for one model, without widgets."""
-    d = _derive(a, unproven=False)
+    d = _derive(a, unproven=False, choice=None)
     alpha = len(d.analysis.charge_counts) - 1
     start = alpha if alpha <= PARTIAL_DEGREE_LIMIT else min(1, alpha)
     order_view(d.analysis, start, 0, listed=len(a.model) <= AUTO_LIST_TERMS)
