@@ -94,7 +94,7 @@ def test_counts_on_variable_reach_chains_match_brute_force() -> None:
 def test_counts_of_chain_orderings_against_networkx_on_unit_interval_graphs() -> None:
     # Reference: networkx enumeration on unit interval graphs drawn at random (points on a line,
     # an edge when two lie closer than 1: common practice for indifference graphs).
-    from freeladder.spectra.charges import ordered_counts
+    from freeladder.spectra.charges import _ordered_counts
 
     rng = np.random.default_rng(5)
     for _ in range(30):
@@ -107,7 +107,7 @@ def test_counts_of_chain_orderings_against_networkx_on_unit_interval_graphs() ->
         )
         first = [min([k, *graph.neighbors(k)]) for k in range(n)]
         brute = _brute_sets(graph)
-        assert ordered_counts(first) == tuple(len(brute[s]) for s in range(len(brute)))
+        assert _ordered_counts(first) == tuple(len(brute[s]) for s in range(len(brute)))
 
 
 def test_long_chain_counts_are_exact_binomials() -> None:
@@ -115,16 +115,16 @@ def test_long_chain_counts_are_exact_binomials() -> None:
     # sets of size s; here checked against math.comb at 3000 terms (the counts have up to about
     # 2000 digits), and the variable-reach recurrence against the same binomials when every
     # reach is equal (its ordering given directly).
-    from freeladder.spectra.charges import chain_counts, ordered_counts
+    from freeladder.spectra.charges import _chain_counts, _ordered_counts
 
     for reach in (1, 2, 3):
         expected = tuple(
             math.comb(3000 - reach * (s - 1), s) for s in range((3000 + reach) // (reach + 1) + 1)
         )
         expected = tuple(c for c in expected if c)
-        assert chain_counts(3000, reach) == expected
+        assert _chain_counts(3000, reach) == expected
         first = [max(0, k - reach) for k in range(3000)]
-        assert ordered_counts(first) == expected
+        assert _ordered_counts(first) == expected
 
 
 def _dense(g: fl.WeylString, sites: tuple) -> np.ndarray:

@@ -262,6 +262,8 @@ def order_from_exponents(ex: Any, states: int) -> IndifferenceOrder | None:
     quick = _quick_order(adj, states)
     if quick is not None:
         return quick
+    if _has_hole_component(adj):
+        return None
     order = umbrella_order(adj)
     if order is None:
         return None
@@ -312,6 +314,22 @@ def _bfs_levels(adj: sps.csr_array, sources: np.ndarray) -> np.ndarray:
     )
     dist = csgraph.shortest_path(grown, unweighted=True, indices=n, directed=True)
     return np.asarray(dist[:n] - 1, dtype=np.int64)
+
+
+def _has_hole_component(adj: sps.csr_array) -> bool:
+    """Whether some component is a chordless cycle of four or more vertices (every degree 2).
+
+    Indifference graphs are chordal, so such a graph has no indifference ordering (common
+    practice); rings of terms are told apart at once instead of by three LexBFS sweeps.
+    """
+    sym = sps.csr_array(adj.astype(bool))
+    sym.setdiag(False)
+    sym.eliminate_zeros()
+    n_comp, labels = csgraph.connected_components(sym, directed=False)
+    degree = np.diff(sym.indptr)
+    size = np.bincount(labels, minlength=n_comp)
+    off = np.bincount(labels[degree != 2], minlength=n_comp)
+    return bool(np.any((off == 0) & (size >= 4)))
 
 
 def _row_extent(

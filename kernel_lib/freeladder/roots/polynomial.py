@@ -36,11 +36,10 @@ import threading
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Any, NamedTuple
+from typing import TYPE_CHECKING, Any, NamedTuple
 
 import flint
 import numpy as np
-import sympy
 
 from ..algebra.model import Model
 from ..base.cache import model_store, structure_store
@@ -50,6 +49,11 @@ from ..base.jsonready import json_ready
 from ..base.scalars import exact_to_sympy, exact_value, to_fmpq, to_python_number, to_sympy
 from ..graphs.graph import chain_structure, frustration_adjacency
 from ..graphs.independent import Algebra, IndependenceGraph
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "MAX_ROOT_DEGREE",

@@ -26,12 +26,11 @@ from collections.abc import Iterator, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
 from itertools import islice
-from typing import Any, NamedTuple
+from typing import TYPE_CHECKING, Any, NamedTuple
 
 import flint
 import numpy as np
 import scipy.sparse as sps
-import sympy
 
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
@@ -42,6 +41,11 @@ from ..base.jsonready import json_ready
 from ..graphs.graph import chain_structure
 from ..graphs.indifference import indifference_order
 from ..roots.polynomial import exclusion_polynomial, independence_graph, independent_set_counts
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "DEFAULT_LIMIT",
@@ -119,14 +123,14 @@ def _counts(m: Model) -> tuple[int, ...]:
         return (1,)
     chain = chain_structure(m)
     if chain is not None:
-        return chain_counts(len(m), chain.reach)
+        return _chain_counts(len(m), chain.reach)
     ordering = indifference_order(m)
     if ordering is not None:
-        return ordered_counts(ordering.first_neighbour)
+        return _ordered_counts(ordering.first_neighbour)
     return tuple(int(c) for c in independent_set_counts(independence_graph(m)))
 
 
-def chain_counts(size: int, reach: int) -> tuple[int, ...]:
+def _chain_counts(size: int, reach: int) -> tuple[int, ...]:
     """``C(M - p(s-1), s)`` for s = 0 .. alpha: independent sets of the p-th power of a path.
 
     Each binomial follows from the previous one by one multiplication and one exact division
@@ -134,7 +138,7 @@ def chain_counts(size: int, reach: int) -> tuple[int, ...]:
 
     Examples
     --------
-    >>> chain_counts(5, 1)
+    >>> _chain_counts(5, 1)
     (1, 5, 6, 1)
     """
     out = [1]
@@ -155,7 +159,7 @@ def chain_counts(size: int, reach: int) -> tuple[int, ...]:
     return tuple(out)
 
 
-def ordered_counts(first_neighbour: Sequence[int]) -> tuple[int, ...]:
+def _ordered_counts(first_neighbour: Sequence[int]) -> tuple[int, ...]:
     """Independent-set counts of a graph given by an indifference ordering, per size.
 
     Along the ordering the prefix polynomials obey ``I_{k+1} = I_k + x I_{f(k)}`` with f(k)
@@ -165,7 +169,7 @@ def ordered_counts(first_neighbour: Sequence[int]) -> tuple[int, ...]:
 
     Examples
     --------
-    >>> ordered_counts([0, 0, 1, 2])  # the path 0-1-2-3
+    >>> _ordered_counts([0, 0, 1, 2])  # the path 0-1-2-3
     (1, 4, 3)
     """
     first = [int(f) for f in first_neighbour]
