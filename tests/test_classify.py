@@ -615,3 +615,24 @@ def test_clock_ring_relation_is_the_product_of_its_bonds() -> None:
         terms.append((1.0, make_string(states, [(i, 0, 1), ((i + 1) % n, 0, states - 1)])))
     big = fl.find_relations(Model.from_terms(terms, states=states, sites=range(n)))
     assert big.count == 1 and big.relations[0].terms == tuple(range(1, 2 * n, 2))
+
+
+def test_root_graph_cycles_match_networkx_cycle_basis() -> None:
+    # Reference: networkx.cycle_basis on the root graph (the same cycles, term for term, in the
+    # same order), random root graphs with parallel edges.
+    from freeladder.graphs.linegraph import LineGraphRoot
+
+    rng = np.random.default_rng(2)
+    for _ in range(400):
+        n = int(rng.integers(2, 10))
+        pairs = {}
+        for term in rng.permutation(int(rng.integers(1, 2 * n))).tolist():
+            a, b = sorted(rng.choice(n, 2, replace=False).tolist())
+            pairs[term] = (a, b)
+        root = LineGraphRoot(pairs, n)
+        graph = root.graph()
+        expected = []
+        for cycle in nx.cycle_basis(graph):
+            ring = [*cycle, cycle[0]]
+            expected.append([graph.edges[u, v]["term"] for u, v in itertools.pairwise(ring)])
+        assert root.cycles() == expected
