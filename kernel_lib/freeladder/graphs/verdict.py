@@ -201,7 +201,7 @@ class ComponentVerdict:
 
     def __post_init__(self) -> None:
         def ints(values: Any) -> tuple[int, ...]:
-            return tuple(int(v) for v in values)
+            return tuple(np.fromiter(values, dtype=np.int64).tolist())
 
         fix: dict[str, Any] = {
             "terms": ints(self.terms),
