@@ -76,7 +76,7 @@ def main() -> None:
         start = time.perf_counter()
         counts = charge_counts(m)
         t = time.perf_counter() - start
-        if size <= 10_000:
+        if size <= 5_000:
             start = time.perf_counter()
             assert list(counts) == step_by_step(first)
             base_t = time.perf_counter() - start
