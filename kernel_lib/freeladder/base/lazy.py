@@ -18,7 +18,7 @@ import threading
 from collections.abc import Callable
 from typing import Any
 
-__all__ = ["njit", "prange", "sympy"]
+__all__: list[str] = []  # internal: modules reach these through freeladder.base.lazy
 
 _CLASSES = frozenset(
     {
