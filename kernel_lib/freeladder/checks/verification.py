@@ -42,6 +42,7 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sps
+from tqdm.auto import tqdm
 
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
@@ -369,8 +370,6 @@ class _Progress:
 
     def __call__(self, done: int, total: int) -> None:
         if self.bar is None:
-            from tqdm.auto import tqdm  # on use
-
             self.bar = tqdm(total=total, desc=self.label, delay=2.0, leave=False)
         self.bar.update(done - self.bar.n)
 
