@@ -48,7 +48,7 @@ from tqdm.auto import tqdm
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
 from ..analysis import Analysis, analyze
-from ..base.errors import CheckNotApplicable, NoTheoremError, TooLargeError
+from ..base.errors import CheckNotApplicable, TooLargeError
 from ..base.jsonready import json_ready
 from ..base.references import (
     ALCARAZ_PIMENTA_2020,
@@ -395,15 +395,13 @@ class _Parts:
         return list(self.analysis.charge_counts)
 
     def spectrum(self) -> tuple[FreeSpectrum, str]:
-        """The free spectrum and, when no theorem guarantees it, why (empty when one does)."""
+        """The single polynomial's spectrum and, when no theorem guarantees it, why (empty when
+        one does): :meth:`Analysis.answer` with ``unproven=True``, so the checks probe it."""
         if self._spectrum is None:
-            try:
-                sp, why = self.analysis.spectrum(), ""
-            except NoTheoremError as err:
-                sp, why = self.analysis.spectrum(unproven=True), str(err)
-            if not why and not sp.provenance.guaranteed:
-                why = str(sp.provenance.guarantee or "no theorem covers this model")
-            self._spectrum = (sp, why)
+            answer = self.analysis.answer(sector="polynomial", unproven=True)
+            if answer.spectrum is None:
+                raise ValueError(answer.message)
+            self._spectrum = (answer.spectrum, "" if answer.guaranteed else answer.reason)
         return self._spectrum
 
     def charges(self) -> list[StringSum]:

@@ -36,7 +36,7 @@ from ..algebra.model import Model
 from ..algebra.operators import StringSum
 from ..algebra.printing import format_terms, format_terms_latex
 from ..algebra.strings import StringArray, WeylString
-from ..base.cache import structure_store
+from ..base.cache import part
 from ..base.jsonready import json_ready
 from ..graphs.graph import chain_structure
 from ..roots.polynomial import exclusion_polynomial, independence_graph, independent_set_counts
@@ -52,8 +52,6 @@ __all__ = [
 
 DEFAULT_LIMIT = 10**6
 """Largest number of products an order may have before listing it raises an error."""
-
-_COUNTS_KEY = "_freeladder_charge_counts"
 
 
 class ChargeTerm(NamedTuple):
@@ -104,19 +102,22 @@ def charge_counts(m: Model) -> tuple[int, ...]:
     >>> charge_counts(fl.exclusion_chain(5))  # a path: 1 + 5 + 6 + 1 = 13 = Fibonacci F(7)
     (1, 5, 6, 1)
     """
-    store = structure_store(m.strings)
-    if _COUNTS_KEY not in store:
-        chain = chain_structure(m) if len(m) else None
-        if chain is not None:
-            size, p = len(m), chain.reach
-            top = (size + p) // (p + 1)
-            counts = [math.comb(size - p * (s - 1), s) if s else 1 for s in range(top + 1)]
-        elif len(m):
-            counts = list(independent_set_counts(independence_graph(m)))
-        else:
-            counts = [1]
-        store[_COUNTS_KEY] = tuple(int(c) for c in counts)
-    return store[_COUNTS_KEY]  # type: ignore[no-any-return]
+    return COUNTS(m)
+
+
+@part("charge counts", "strings")
+def COUNTS(m: Model) -> tuple[int, ...]:
+    """The part behind :func:`charge_counts`."""
+    chain = chain_structure(m) if len(m) else None
+    if chain is not None:
+        size, p = len(m), chain.reach
+        top = (size + p) // (p + 1)
+        counts = [math.comb(size - p * (s - 1), s) if s else 1 for s in range(top + 1)]
+    elif len(m):
+        counts = list(independent_set_counts(independence_graph(m)))
+    else:
+        counts = [1]
+    return tuple(int(c) for c in counts)
 
 
 @dataclass(frozen=True)

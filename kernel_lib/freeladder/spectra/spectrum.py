@@ -1166,22 +1166,28 @@ def _checked_request(m: Model, method: str, lowest: int | None) -> np.ndarray:
 
 def _refusal_message(m: Model, promise: Guarantee) -> str:
     """Why free_spectrum refuses, and what to do instead."""
-    text = "no theorem guarantees that the single exclusion polynomial gives this spectrum. "
-    text += promise.reason
+    reason, instead = refusal_text(m, promise)
+    return f"{reason} Instead: {instead}"
+
+
+def refusal_text(m: Model, promise: Guarantee) -> tuple[str, str]:
+    """Why no theorem guarantees the single polynomial's spectrum, and what to do instead."""
+    reason = "no theorem guarantees that the single exclusion polynomial gives this spectrum. "
+    reason += promise.reason
     if promise.witness_text:
-        text += f" Witness terms: {promise.witness_text}."
-    text += " Instead: "
+        reason += f" Witness terms: {promise.witness_text}."
+    instead = ""
     if m.states == 2 and classify(m).kind == "jordan-wigner":
-        text += (
+        instead += (
             'the terms are Majorana bilinears, so free_spectrum(m, sector="ground") solves '
             "the model exactly in the sector holding the ground state (sector=(+1, -1, ...) "
             'for a chosen one; fl.jordan_wigner_spectrum(m, "all") gives every sector); '
         )
-    text += "fl.verify(m) probes the model numerically"
+    instead += "fl.verify(m) probes the model numerically"
     if m.dimension <= DENSE_LIMIT:
-        text += f"; fl.exact_spectrum(m) gives the exact levels (dimension {m.dimension})"
-    text += "; free_spectrum(m, unproven=True) returns the numbers, marked NOT GUARANTEED."
-    return text
+        instead += f"; fl.exact_spectrum(m) gives the exact levels (dimension {m.dimension})"
+    instead += "; free_spectrum(m, unproven=True) returns the numbers, marked NOT GUARANTEED."
+    return reason, instead
 
 
 def _find_roots(
