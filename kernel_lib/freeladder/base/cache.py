@@ -25,7 +25,7 @@ from __future__ import annotations
 import threading
 import weakref
 from collections.abc import Callable, Hashable
-from typing import Any, Generic, Literal, TypeVar
+from typing import Any, Generic, Literal, TypeVar, cast
 
 __all__ = ["Part", "Store", "part", "store_of"]
 
@@ -107,7 +107,7 @@ class _Shelf:
                 value = self.values[key]
         if isinstance(value, _Failure):
             raise value.error
-        return value  # type: ignore[no-any-return]
+        return cast(T, value)
 
 
 def _capture(p: Part[Any], model: Any, args: tuple[Hashable, ...]) -> Any:
@@ -155,4 +155,4 @@ def store_of(model: Any) -> Store:
                     _STRINGS[model.strings] = shelf
                 store = Store(shelf)
                 slots[_MODEL_SLOT] = store
-    return store  # type: ignore[no-any-return]
+    return cast(Store, store)

@@ -347,6 +347,4 @@ def _is_chain(
 
 
 def _make_chain(order: np.ndarray, reach: int, orientation: int, states: int) -> ChainStructure:
-    order = np.ascontiguousarray(order, dtype=np.int64)
-    order.setflags(write=False)
     return ChainStructure(order, int(reach), int(orientation), int(states))

@@ -47,7 +47,7 @@ from ..algebra.printing import format_terms
 from ..algebra.strings import WeylString
 from ..base import references as ref
 from ..base.cache import part
-from ..base.frozen import readonly_mapping
+from ..base.frozen import readonly_array, readonly_mapping
 from ..base.jsonready import json_ready
 from .clawfree import find_claw, find_even_hole, find_simplicial_clique
 from .graph import (
@@ -1075,9 +1075,7 @@ def _combine(m: Model, comps: Sequence[ComponentVerdict], relations: Relations) 
 
 
 def _frozen(order: np.ndarray) -> np.ndarray:
-    out = np.ascontiguousarray(order, dtype=np.int64)
-    out.setflags(write=False)
-    return out
+    return readonly_array(order, dtype=np.int64)
 
 
 def _string_text(m: Model, j: int) -> str:

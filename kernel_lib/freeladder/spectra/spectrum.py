@@ -120,8 +120,8 @@ class LevelTable(Sequence[Level]):
     multiplicity: int | None
 
     def __init__(self, energies: np.ndarray, occupations: np.ndarray, multiplicity: int | None):
-        energies.setflags(write=False)
-        occupations.setflags(write=False)
+        energies = readonly_array(energies)
+        occupations = readonly_array(occupations)
         object.__setattr__(self, "energies", energies)
         object.__setattr__(self, "occupations", occupations)
         object.__setattr__(self, "multiplicity", multiplicity)
@@ -358,8 +358,9 @@ class FreeSpectrum:
         if log_quasi_energies is None:
             with np.errstate(divide="ignore"):
                 log_quasi_energies = np.log(np.abs(quasi_energies))
-        for arr in (roots_y, quasi_energies, error_bounds, log_quasi_energies):
-            arr.setflags(write=False)
+        roots_y, quasi_energies, error_bounds, log_quasi_energies = (
+            readonly_array(a) for a in (roots_y, quasi_energies, error_bounds, log_quasi_energies)
+        )
         constraints = tuple((tuple(int(k) for k in ks), int(p)) for ks, p in parity_constraints)
         if constraints and int(states) != 2:
             raise ValueError("parity constraints are for N = 2 (Majorana sectors)")
