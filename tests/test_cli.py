@@ -92,7 +92,7 @@ def test_bad_options_exit_2():
 
 def test_export_writes_runs_and_never_overwrites(tmp_path):
     target = tmp_path / "worked.py"
-    done = run("export", ISING, "--to", "script", str(target))
+    done = run("export", ISING, str(target))
     assert done.returncode == 0, done.stderr
     # the exported script recomputes and asserts every step (it runs clean with this Python)
     ran = subprocess.run(
@@ -100,8 +100,24 @@ def test_export_writes_runs_and_never_overwrites(tmp_path):
     )
     assert ran.returncode == 0, ran.stderr[-2000:]
     before = target.read_text()
-    again = run("export", "X0 + Z0 Z1 + X1", "--to", "script", str(target))
+    again = run("export", "X0 + Z0 Z1 + X1", str(target))
     assert again.returncode == 2 and "--force" in again.stderr
     assert target.read_text() == before  # the user's file is untouched
-    forced = run("export", "X0 + Z0 Z1 + X1", "--to", "latex", str(target), "--force")
-    assert forced.returncode == 0 and "\\section" in target.read_text()
+    tex = tmp_path / "worked.tex"
+    forced = run("export", "X0 + Z0 Z1 + X1", str(tex))
+    assert forced.returncode == 0 and "\\section" in tex.read_text()
+    assert "LaTeX section" in forced.stdout
+
+
+def test_export_takes_the_format_from_the_suffix(tmp_path):
+    notebook = tmp_path / "worked.ipynb"
+    done = run("export", ISING, str(notebook))
+    assert done.returncode == 0, done.stderr
+    assert json.loads(notebook.read_text())["nbformat"] == 4  # nbformat's JSON, readable as such
+    odd = tmp_path / "worked.txt"
+    refused = run("export", ISING, str(odd))
+    assert refused.returncode == 2 and "Traceback" not in refused.stderr
+    assert ".ipynb" in refused.stderr and ".py" in refused.stderr and ".tex" in refused.stderr
+    assert not odd.exists()
+    old = run("export", ISING, "--to", "script", str(tmp_path / "x.py"))
+    assert old.returncode == 2  # the option is gone

@@ -132,6 +132,11 @@ class Store:
         shelf = self.strings if p.scope == "strings" else self.couplings
         return shelf.get((p, args), model)
 
+    def __reduce__(self) -> tuple[Any, tuple[()]]:
+        """A pickled or deep-copied model leaves its store behind (locks do not travel); the
+        copy computes its parts again on first use."""
+        return _no_store, ()
+
     def computed(self) -> list[str]:
         """Names of the parts computed so far (with their arguments when there are any)."""
         names = set()
@@ -139,6 +144,10 @@ class Store:
             for p, args in list(shelf.values):
                 names.add(p.name + (f"{list(args)}" if args else ""))
         return sorted(names)
+
+
+def _no_store() -> None:
+    return None
 
 
 def store_of(model: Any) -> Store:

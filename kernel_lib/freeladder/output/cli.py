@@ -3,7 +3,10 @@
 Usage::
 
     freeladder report MODEL_TEXT_OR_FILE [--states N] [--json] [--no-checks]
-    freeladder export MODEL_TEXT_OR_FILE --to notebook|script|latex PATH [--states N] [--force]
+    freeladder export MODEL_TEXT_OR_FILE PATH [--states N] [--force]
+
+``export`` writes a notebook, a script or a LaTeX section, chosen by the suffix of ``PATH``
+(:data:`EXPORT_SUFFIXES`: ``.ipynb``, ``.py``, ``.tex``).
 
 ``MODEL_TEXT_OR_FILE`` is model text in freeladder's syntax (quote it in the shell) or the path
 of a file holding such text.  ``python -m freeladder`` runs the same command.
@@ -26,9 +29,12 @@ from ..algebra.model import Model
 from ..algebra.syntax import parse_model
 from ..analysis import Analysis, analyze
 
-__all__ = ["main", "report_data"]
+__all__ = ["EXPORT_SUFFIXES", "main", "report_data"]
 
 _SHOWN_ENERGIES = 12
+
+EXPORT_SUFFIXES = {".ipynb": "notebook", ".py": "script", ".tex": "LaTeX section"}
+"""What ``freeladder export`` writes, by the suffix of the file it is given."""
 
 
 class _UsageError(Exception):
@@ -128,13 +134,19 @@ def _print_report(data: dict[str, Any], out: TextIO) -> None:
             w(f"  - {problem}\n")
 
 
-def _export(m: Model, kind: str, path: str, force: bool) -> str:
+def _export(m: Model, path: str, force: bool) -> str:
     try:
         from .worked import worked_calculation
     except ImportError:  # pragma: no cover - the export module ships with the package
         raise _UsageError("this installation has no export module") from None
-    calc = worked_calculation(analyze(m))
     target = Path(path)
+    kind = EXPORT_SUFFIXES.get(target.suffix.lower())
+    if kind is None:
+        known = ", ".join(f"{suffix} ({what})" for suffix, what in EXPORT_SUFFIXES.items())
+        raise _UsageError(
+            f"cannot tell what to write from the name {path!r}: the file name must end in {known}"
+        )
+    calc = worked_calculation(analyze(m))
     if target.exists() and not force:
         raise _UsageError(f"{path} exists; pass --force to overwrite it")
     if kind == "notebook":
@@ -158,8 +170,11 @@ def _parser() -> argparse.ArgumentParser:
     rep.add_argument("--no-checks", action="store_true", help="skip fl.verify")
     exp = sub.add_parser("export", help="write the worked, self-verifying calculation")
     exp.add_argument("model", help="model text in freeladder's syntax, or a file holding it")
-    exp.add_argument("--to", required=True, choices=("notebook", "script", "latex"))
-    exp.add_argument("path", help="the file to write (never overwritten without --force)")
+    exp.add_argument(
+        "path",
+        help="the file to write, by its suffix: .ipynb (notebook), .py (script), .tex (LaTeX "
+        "section); never overwritten without --force",
+    )
     exp.add_argument("--states", type=int, default=2, help="states per site N (default 2)")
     exp.add_argument("--force", action="store_true", help="overwrite an existing file")
     return parser
@@ -175,7 +190,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         m = _read_model(args.model, args.states)
         if args.command == "export":
-            print(_export(m, args.to, args.path, args.force))
+            print(_export(m, args.path, args.force))
             return 0
         data = report_data(m, checks=not args.no_checks)
     except _UsageError as err:
