@@ -126,6 +126,9 @@ def test_result_arrays_cannot_be_reopened() -> None:
     sp = a.spectrum()
     for arr in (sp.quasi_energies, sp.error_bounds, sp.roots, sp.log_quasi_energies):
         _cannot_reopen(arr)
+    found = sp.provenance.finder["roots"]  # the root finder's own result, kept with the spectrum
+    for arr in (found.values, found.error_bounds):
+        _cannot_reopen(arr)
     _cannot_reopen(a.chain.order)
     _cannot_reopen(a.exact.levels)
     _cannot_reopen(fl.algebra.power_table(5, 6))
@@ -135,6 +138,14 @@ def test_result_arrays_cannot_be_reopened() -> None:
         np.linalg.eigvalsh(m.to_sparse().toarray())[0], abs=1e-9
     )
     np.testing.assert_array_equal(a.spectrum().quasi_energies, stored)
+
+
+def test_sector_labels_cannot_be_edited() -> None:
+    answer = fl.analyze(fl.parse_model("X0 X1 + Y1 Y2 + Z2 Z3 + X3 X0 + Z1 Z3")).answer()
+    stored = answer.spectrum.provenance.sector["cycle_operators"]
+    with pytest.raises(AttributeError):
+        stored.append("Z0")
+    assert tuple(stored) == answer.cycle_strings
 
 
 def test_handed_out_matrices_are_the_callers() -> None:

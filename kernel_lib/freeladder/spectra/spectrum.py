@@ -1097,7 +1097,7 @@ def _sector_spectrum(
         sector={
             "summary": summary,
             "selection": selection,
-            "cycle_operators": [str(g) for g in struct.cycle_operators],
+            "cycle_operators": tuple(str(g) for g in struct.cycle_operators),
             "cycle_values": merged.cycle_values,
             "labels": merged.labels,
             "parity_constraints": len(merged.parity_constraints),
