@@ -338,7 +338,11 @@ def _dense_inversion(m: Model, poly: Any) -> bool:
 def _intro(f: _Facts) -> list[Cell]:
     m = f.model
     status = (
-        "A theorem guarantees this model's free spectrum; every number below is recomputed "
+        "A theorem guarantees the free spectrum of this model's ground sector (the sector of "
+        "its conserved cycle strings that holds the lowest level); every number below is "
+        "recomputed and asserted by the code cells."
+        if f.spectrum is not None and f.answer.route == "sector"
+        else "A theorem guarantees this model's free spectrum; every number below is recomputed "
         "and asserted by the code cells."
         if f.spectrum is not None
         else "**No theorem guarantees a free spectrum for this model.** The cells state the "
