@@ -311,7 +311,7 @@ class Analysis:
         >>> a.answer(sector="polynomial").status
         'refused'
         """
-        choice = _sector_key(sector) if sector not in ("polynomial", "all") else sector
+        choice = _sector_key(sector)
         return _answer(self.model, choice, bool(unproven))
 
     @property
