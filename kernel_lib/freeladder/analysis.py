@@ -106,7 +106,7 @@ def _answer(m: Model, choice: Hashable, unproven: bool) -> SpectrumAnswer:
         )
     promise = _verdict(m).guarantee
     if choice is None:  # the best the theorems allow
-        choice = "ground" if _sector_route(m) else "polynomial"
+        choice = "ground" if sector_route(m) else "polynomial"
     if choice != "polynomial":
         return _sector_answer(m, choice)
     if promise.proven:
@@ -119,11 +119,14 @@ def _answer(m: Model, choice: Hashable, unproven: bool) -> SpectrumAnswer:
     return SpectrumAnswer("unproven", sp, "polynomial", reason, promise.witness, instead)
 
 
-def _sector_route(m: Model) -> bool:
+def sector_route(m: Model) -> bool:
     """True for Pauli line-graph models whose single polynomial is not guaranteed: they are
-    free sector by sector of their conserved cycle strings (Chapman-Flammia 2020)."""
+    free sector by sector of their conserved cycle strings (Chapman-Flammia 2020).  The
+    answer and the checks (:func:`freeladder.verify`) both follow it."""
+    if m.states != 2 or m.is_symbolic or len(m) == 0:
+        return False
     verdict = _verdict(m)
-    return m.states == 2 and verdict.kind == "jordan-wigner" and not verdict.guarantee.proven
+    return verdict.kind == "jordan-wigner" and not verdict.guarantee.proven
 
 
 def _sector_answer(m: Model, choice: Hashable) -> SpectrumAnswer:

@@ -47,7 +47,7 @@ from tqdm.auto import tqdm
 
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
-from ..analysis import Analysis, analyze
+from ..analysis import Analysis, analyze, sector_route
 from ..base.errors import CheckNotApplicable, TooLargeError
 from ..base.jsonready import json_ready
 from ..base.references import (
@@ -944,12 +944,12 @@ def verify(
     checks: list[Check] = []
     notes: list[str] = []
     complete = True
-    sector_route = _sector_route(analysis)
+    sector_path = sector_route(m)
     try:
-        _commutation(parts, max_pairs, checks, claim_inversion=not sector_route)
+        _commutation(parts, max_pairs, checks, claim_inversion=not sector_path)
         if m.is_symbolic:
             notes.append("symbolic couplings: spectral checks need numbers (use m.subs first)")
-        elif sector_route:
+        elif sector_path:
             _sector_checks(parts, exact_diagonalization, checks)
             notes.append(
                 "the model is free sector by sector (Jordan-Wigner with cycle or parity "
@@ -966,9 +966,9 @@ def verify(
             "interrupted (KeyboardInterrupt): the checks after the last one listed did not run"
         )
     why = parts._spectrum[1] if parts._spectrum is not None else None
-    if sector_route and not m.is_symbolic:
+    if sector_path and not m.is_symbolic:
         why = ""
-    verdict = _verdict_text(analysis, why, sector_route)
+    verdict = _verdict_text(analysis, why, sector_path)
     guaranteed = None if why is None else not why
     return Report(tuple(checks), _short(m), tuple(notes), verdict, complete, guaranteed)
 
@@ -1066,15 +1066,6 @@ def _exact_check(parts: _Parts, spectrum: tuple[FreeSpectrum, str]) -> Check:
 
 
 # -- Jordan-Wigner models that are free sector by sector -----------------------------------------
-def _sector_route(analysis: Analysis) -> bool:
-    """True for Pauli line-graph models whose single polynomial is not guaranteed."""
-    m = analysis.model
-    if m.states != 2 or m.is_symbolic or len(m) == 0:
-        return False
-    verdict = analysis.verdict
-    return verdict.kind == "jordan-wigner" and not verdict.guarantee.proven
-
-
 def _both_routes(analysis: Analysis) -> bool:
     """True for Pauli line-graph models that the single polynomial also covers."""
     m = analysis.model
