@@ -109,15 +109,15 @@ def test_export_writes_runs_and_never_overwrites(tmp_path):
     assert "LaTeX section" in forced.stdout
 
 
-def test_export_takes_the_format_from_the_suffix(tmp_path):
+def test_export_takes_the_format_from_the_suffix(tmp_path, capsys):
+    from freeladder.output.cli import main  # in-process: the same code as the command
+
     notebook = tmp_path / "worked.ipynb"
-    done = run("export", ISING, str(notebook))
-    assert done.returncode == 0, done.stderr
+    assert main(["export", "X0 + Z0 Z1 + X1", str(notebook)]) == 0
     assert json.loads(notebook.read_text())["nbformat"] == 4  # nbformat's JSON, readable as such
     odd = tmp_path / "worked.txt"
-    refused = run("export", ISING, str(odd))
-    assert refused.returncode == 2 and "Traceback" not in refused.stderr
-    assert ".ipynb" in refused.stderr and ".py" in refused.stderr and ".tex" in refused.stderr
+    assert main(["export", ISING, str(odd)]) == 2
+    err = capsys.readouterr().err
+    assert ".ipynb" in err and ".py" in err and ".tex" in err and "Traceback" not in err
     assert not odd.exists()
-    old = run("export", ISING, "--to", "script", str(tmp_path / "x.py"))
-    assert old.returncode == 2  # the option is gone
+    assert main(["export", ISING, "--to", "script", str(tmp_path / "x.py")]) == 2  # gone
