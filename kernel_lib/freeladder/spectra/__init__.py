@@ -2,6 +2,10 @@
 edge modes.
 """
 
+from .answer import (
+    SectorRow,
+    SpectrumAnswer,
+)
 from .charges import (
     DEFAULT_LIMIT,
     ChargeStep,
@@ -54,6 +58,8 @@ from .thermo import (
 )
 
 __all__ = [
+    "SectorRow",
+    "SpectrumAnswer",
     "ChargeStep",
     "ChargeTerm",
     "DEFAULT_LIMIT",
