@@ -60,7 +60,7 @@ def test_certified_roots_against_mpmath():
         dist = np.abs(got.values - complex(z))
         assert np.min(dist) <= got.error_bounds[np.argmin(dist)] + 1e-300
     assert np.all(got.error_bounds < 1e-15)
-    assert list(got.details["multiplicities"]) == [1, 1, 1, 1]
+    assert list(got.multiplicities) == [1, 1, 1, 1]
 
 
 def test_certified_roots_of_a_chain_match_the_fast_roots():
@@ -71,9 +71,12 @@ def test_certified_roots_of_a_chain_match_the_fast_roots():
 
 
 def test_multiplicity_reported():
-    got = certified_roots([1, -2, 1])  # (1 - y)^2
-    assert list(got.details["multiplicities"]) == [2, 2] and got.count == 2
+    got = certified_roots([1, -2, 1])  # (1 - y)^2: one distinct root that counts twice
+    assert list(got.multiplicities) == [2] and got.count == 2
     assert np.all(np.abs(got.values - 1) <= got.error_bounds)
+    every = got.repeated()
+    assert list(every.multiplicities) == [1, 1]
+    assert np.all(np.abs(every.values - 1) <= every.error_bounds)
 
 
 def test_errors():

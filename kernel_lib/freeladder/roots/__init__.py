@@ -24,7 +24,6 @@ from .polynomial import (
     MAX_ROOT_DEGREE,
     ChainData,
     ExclusionPolynomial,
-    PolynomialRoots,
     SumRules,
     exclusion_polynomial,
     independence_graph,
@@ -52,7 +51,6 @@ __all__ = [
     "ChainValues",
     "ExclusionPolynomial",
     "MAX_ROOT_DEGREE",
-    "PolynomialRoots",
     "ROOT_METHODS",
     "RootMethod",
     "RootResult",
@@ -81,3 +79,10 @@ __all__ = [
     "solve_general",
     "sum_rules",
 ]
+
+
+def __getattr__(name: str) -> object:
+    """Deprecated aliases (one release)."""
+    from . import polynomial
+
+    return polynomial.__getattr__(name)

@@ -7,10 +7,13 @@ API
     of the chain polynomial ``P_M``, by certified sign changes of ``P_M`` plus the known root
     count ``S``.  ``variable="y"``, method ``"chain-certified"``; ``rigorous`` is True only
     when every interval is proved; ``details`` holds ``lower``, ``upper``, ``sign_change``.
-``certified_roots(coefficients) -> RootResult``
-    All complex roots of an exact coefficient list (int / Fraction / fmpq; constant term
+``certified_roots(coefficients, imag=None) -> RootResult``
+    The one certified isolation of exact polynomials: all complex roots of an exact
+    coefficient list (int / Fraction / fmpq, real and optional imaginary parts; constant term
     first), as isolating balls (python-flint ``acb_poly.roots`` on each squarefree factor, at
-    bounded precision); method ``"exact-certified"``, ``details["multiplicities"]``.
+    a precision doubled until it succeeds); method ``"exact-certified"``, distinct values
+    with ``multiplicities``.  ``ExclusionPolynomial.roots`` and
+    ``roots.complex.certified_complex_roots`` are entry points to it.
 
 The chain certificate
 ---------------------
@@ -50,6 +53,7 @@ midpoint-radius interval arithmetic", IEEE Trans. Comput. 66, 1281 (2017).
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from fractions import Fraction
 from typing import Any
 
@@ -367,101 +371,167 @@ def _to_fmpq(c: Any, j: int) -> flint.fmpq:
 
 
 def certified_roots(
-    coefficients: Any, *, precision: int = 106, max_precision: int = 8192
+    coefficients: Sequence[Any],
+    imag: Sequence[Any] | None = None,
+    *,
+    tolerance: float | None = None,
+    precision: int = 106,
+    max_precision: int = 8192,
+    variable: str = "y",
 ) -> RootResult:
     """Isolating balls for every complex root of a polynomial with exact coefficients.
+
+    The one certified isolation of the library: :meth:`freeladder.ExclusionPolynomial.roots`,
+    :func:`freeladder.roots.certified_complex_roots` and the ``"exact-certified"`` root
+    method all come here.
 
     Parameters
     ----------
     coefficients : sequence of int, Fraction, fmpq
-        Constant term first.  The polynomial must not be constant.
+        Constant term first (the real parts when ``imag`` is given).  The polynomial must not
+        be constant.
+    imag : sequence of int, Fraction, fmpq, optional
+        Imaginary parts of the coefficients (Gaussian rationals); None for real ones.
+    tolerance : float, optional
+        Absolute radius the balls are refined to; by default ``2**-precision``.
     precision : int
-        Starting working precision in bits; the balls are refined at least to it.
+        Starting working precision in bits (at least twice the coefficients' bit size plus
+        64 is used).
     max_precision : int
-        Largest working precision tried (doubling from ``precision``): a bounded search.
+        Largest precision tried (doubling from the start) before giving up.
+    variable : str
+        The name of the variable, for messages.
 
     Returns
     -------
     RootResult
-        ``variable="y"``, method ``"exact-certified"``, ``rigorous=True``; ``values`` the ball
-        midpoints (complex, each root repeated by its multiplicity), ``error_bounds`` proved
-        bounds on ``|root - midpoint|`` (the float rounding of the midpoint included);
-        ``details["multiplicities"]`` per value, ``details["precision"]`` bits.
+        ``variable="y"``, method ``"exact-certified"``, ``rigorous=True``; ``values`` the
+        distinct roots (ball midpoints rounded to float64, ordered by modulus, then argument),
+        ``multiplicities`` how often each counts (:meth:`RootResult.repeated` lists each root
+        as often), ``error_bounds`` proved bounds on the distance from each value to its
+        root, ``count`` the degree, ``details["precision"]`` the bits used.
 
     Raises
     ------
     ValueError
-        A coefficient that is not exact, a constant polynomial, or roots that cannot be
-        isolated within ``max_precision`` bits (roots closer than about ``2**-max_precision``
-        relative); the message says which.
+        A coefficient that is not exact, the zero or a constant polynomial, a repeated root
+        of a polynomial with non-real coefficients, or roots that cannot be isolated within
+        ``max_precision`` bits (roots closer than about ``2**-max_precision`` relative); the
+        message says which.
 
     Notes
     -----
-    Squarefree factorisation over the rationals (python-flint ``fmpq_poly.factor_squarefree``,
-    exact), then ``acb_poly.roots`` on each factor, which returns balls proved to be disjoint
-    and to hold one root each.  Practical up to a few hundred degrees.
+    Rational coefficients are split into squarefree factors exactly (python-flint
+    ``fmpq_poly.factor_squarefree``), so multiplicities are found; each factor (or the
+    Gaussian-rational polynomial, which must be squarefree) goes to ``acb_poly.roots``, which
+    returns balls proved to be disjoint and to hold one root each, at a precision doubled
+    until it succeeds.  The error bound of a value is an upper bound, computed in ball
+    arithmetic, on the distance from the float64 value to any point of its ball.  Practical up
+    to a few hundred degrees.
 
     References
     ----------
-    F. Johansson, IEEE Trans. Comput. 66, 1281 (2017).
+    F. Johansson, "Arb: efficient arbitrary-precision midpoint-radius interval arithmetic",
+    IEEE Trans. Comput. 66, 1281 (2017).
 
     Examples
     --------
     >>> r = certified_roots([1, -3, 1])  # 1 - 3y + y**2, roots (3 -+ sqrt 5) / 2
-    >>> np.allclose(sorted(r.values.real), [(3 - 5**0.5) / 2, (3 + 5**0.5) / 2])
+    >>> np.allclose(r.values.real, [(3 - 5**0.5) / 2, (3 + 5**0.5) / 2])
     True
+    >>> certified_roots([1, -2, 1]).multiplicities  # (1 - y)**2
+    array([2])
     """
-    coeffs = [_to_fmpq(c, j) for j, c in enumerate(coefficients)]
-    poly = flint.fmpq_poly(coeffs)
-    if poly.degree() < 1:
-        raise ValueError("the polynomial is constant: it has no roots to isolate")
+    re_q = [_to_fmpq(c, j) for j, c in enumerate(coefficients)]
+    im_q = (
+        [flint.fmpq(0)] * len(re_q)
+        if imag is None
+        else [_to_fmpq(c, j) for j, c in enumerate(imag)]
+    )
+    if len(im_q) != len(re_q):
+        raise ValueError("the real and imaginary coefficient lists differ in length")
+    while re_q and re_q[-1] == 0 and im_q[-1] == 0:
+        re_q.pop()
+        im_q.pop()
+    if not re_q:
+        raise ValueError(f"the zero polynomial in {variable} has no isolated roots")
+    if len(re_q) == 1:
+        raise ValueError(f"the polynomial in {variable} is constant: it has no roots to isolate")
+    bits = max(max(int(c.p).bit_length(), int(c.q).bit_length()) for c in (*re_q, *im_q))
+    start = max(int(precision), 2 * bits + 64)
+    tol = 2.0 ** -int(precision) if tolerance is None else float(tolerance)
+    pieces: list[tuple[Any, int]]  # (acb_poly-ready coefficients, multiplicity)
+    if all(c == 0 for c in im_q):
+        pieces = [
+            (factor, int(exponent))
+            for factor, exponent in flint.fmpq_poly(re_q).factor_squarefree()[1]
+        ]
+    else:
+        pieces = [(list(zip(re_q, im_q, strict=True)), 1)]
     mids: list[complex] = []
     radii: list[float] = []
     mult: list[int] = []
-    used = int(precision)
-    for factor, exponent in poly.factor_squarefree()[1]:
-        balls, bits = _isolate(factor, int(precision), int(max_precision))
-        used = max(used, bits)
+    used = start
+    for piece, exponent in pieces:
+        balls, bits_used = _isolate(piece, start, int(max_precision), tol, variable)
+        used = max(used, bits_used)
         for ball in balls:
-            re, im = float(ball.real.mid()), float(ball.imag.mid())
-            rad = float(abs(flint.acb(ball.real.rad(), ball.imag.rad())).upper())
-            # outward: the ball's own radius, the float rounding of both midpoint parts
-            radius = rad * (1 + 4 * _EPS) + (abs(re) + abs(im)) * _EPS
-            for _ in range(int(exponent)):
-                mids.append(complex(re, im))
-                radii.append(radius)
-                mult.append(int(exponent))
-    order = np.argsort(np.abs(np.asarray(mids)), kind="stable")
+            mid = complex(float(ball.real.mid()), float(ball.imag.mid()))
+            mids.append(mid)
+            radii.append(_distance_bound(ball, mid))
+            mult.append(exponent)
+    values = np.asarray(mids, dtype=np.complex128)
+    order = np.lexsort((np.angle(values), np.abs(values)))
+    degree = int(sum(mult))
     return RootResult(
-        values=np.asarray(mids, dtype=np.complex128)[order],
+        values=values[order],
         error_bounds=np.asarray(radii)[order],
+        multiplicities=np.asarray(mult, dtype=np.int64)[order],
         variable="y",
         rigorous=True,
         converged=True,
-        message=f"{len(mids)} roots isolated in certified balls ({used} bits)",
+        message=(
+            f"{degree} roots ({len(mids)} distinct) isolated in certified balls ({used} bits)"
+        ),
         method="exact-certified",
         evaluations=0,
-        count=len(mids),
-        details={"multiplicities": np.asarray(mult, dtype=np.int64)[order], "precision": used},
+        count=degree,
+        indices=(np.cumsum(mult) - np.asarray(mult))[order],
+        details={"precision": used},
     )
 
 
-def _isolate(factor: Any, precision: int, max_precision: int) -> tuple[list[Any], int]:
-    """``acb_poly.roots`` of one squarefree factor, doubling the precision up to the limit."""
+def _distance_bound(ball: Any, mid: complex) -> float:
+    """Upper bound (float, rounded up) on ``|z - mid|`` over the ball ``z``."""
+    dist = abs(ball - flint.acb(mid.real, mid.imag)).upper()
+    return float(np.nextafter(float(dist), np.inf)) * (1.0 + 2.0 * _EPS)
+
+
+def _isolate(
+    piece: Any, precision: int, max_precision: int, tol: float, variable: str
+) -> tuple[list[Any], int]:
+    """``acb_poly.roots`` of one squarefree piece, doubling the precision up to the limit."""
     saved = flint.ctx.prec
     prec = precision
+    degree = piece.degree() if isinstance(piece, flint.fmpq_poly) else len(piece) - 1
     try:
         while True:
             flint.ctx.prec = prec
+            poly = (
+                flint.acb_poly(piece)
+                if isinstance(piece, flint.fmpq_poly)
+                else flint.acb_poly([flint.acb(flint.arb(a), flint.arb(b)) for a, b in piece])
+            )
             try:
-                return list(flint.acb_poly(factor).roots(tol=2.0**-precision, maxprec=prec)), prec
+                return list(poly.roots(tol=tol, maxprec=prec)), prec
             except ValueError as exc:
                 if 2 * prec > max_precision:
                     raise ValueError(
-                        f"the {factor.degree()} roots of a factor of the exact polynomial could "
-                        f"not be isolated within {max_precision} bits (roots closer than about "
-                        f"2**-{max_precision} relative, e.g. couplings of very different "
-                        f"magnitudes): {exc}"
+                        f"the {degree} roots of the polynomial in {variable} (or of a "
+                        f"squarefree factor) could not be isolated within {max_precision} bits: "
+                        "a repeated root of a polynomial with complex coefficients, or roots "
+                        f"closer than about 2**-{max_precision} relative (e.g. couplings of "
+                        f"very different magnitudes): {exc}"
                     ) from exc
                 prec *= 2
     finally:

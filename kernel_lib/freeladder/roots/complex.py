@@ -82,10 +82,10 @@ from collections.abc import Callable, Sequence
 from fractions import Fraction
 from typing import Any, NamedTuple
 
-import flint
 import numpy as np
 from numba import njit, prange
 
+from .certify import certified_roots
 from .real import chain_back, chain_root_count
 from .result import RootResult
 
@@ -1070,6 +1070,8 @@ def certified_complex_roots(
 ) -> RootResult:
     """Certified complex roots of a polynomial with exact Gaussian-rational coefficients.
 
+    An entry point to the one certified isolation, :func:`freeladder.certified_roots`.
+
     Parameters
     ----------
     real, imag : sequences of Fraction
@@ -1084,65 +1086,17 @@ def certified_complex_roots(
     RootResult
         ``variable="y"``, method ``"exact-certified"``, ``rigorous=True``: ``values`` the
         midpoints of the isolating balls (rounded to double), ``error_bounds`` upper bounds on
-        the distance from each midpoint to the one root its ball contains (ball radius plus the
-        rounding of the midpoint to double).
+        the distance from each value to the one root its ball contains.
 
     Raises
     ------
     ValueError
-        For the zero polynomial, a repeated root, or when flint cannot isolate the roots.
+        For the zero polynomial, a repeated root of a polynomial with non-real coefficients,
+        or when flint cannot isolate the roots.
 
     References
     ----------
     F. Johansson, "Arb: efficient arbitrary-precision midpoint-radius interval arithmetic",
     IEEE Trans. Comput. 66, 1281 (2017) (``acb_poly_find_roots`` with validated isolation).
     """
-    bits = max(
-        (max(abs(v.numerator).bit_length(), v.denominator.bit_length()) for v in (*real, *imag)),
-        default=1,
-    )
-    saved = flint.ctx.prec
-    # Enough working precision that dyadic inputs (from floats) are held exactly and the
-    # balls of other rationals are far below ``tol``.
-    flint.ctx.prec = max(128, 2 * bits + 64)
-    try:
-        coeffs = [
-            flint.acb(
-                flint.fmpq(a.numerator, a.denominator), flint.fmpq(b.numerator, b.denominator)
-            )
-            for a, b in zip(real, imag, strict=True)
-        ]
-        while coeffs and coeffs[-1] == 0:
-            coeffs.pop()
-        if not coeffs:
-            raise ValueError(f"the zero polynomial in {variable} has no isolated roots")
-        degree = len(coeffs) - 1
-        if degree == 0:
-            raise ValueError(f"the polynomial in {variable} is constant: no roots to isolate")
-        try:
-            balls = flint.acb_poly(coeffs).roots(
-                tol=tol, maxprec=max(4000, 4 * flint.ctx.prec, 60 * degree)
-            )
-        except ValueError as exc:
-            raise ValueError(
-                f"flint could not isolate the {degree} roots of the polynomial in {variable} "
-                f"(a repeated root, or precision exhausted): {exc}"
-            ) from exc
-    finally:
-        flint.ctx.prec = saved
-    roots = np.array([complex(b.mid()) for b in balls], dtype=complex)
-    radii = np.array(
-        [float((b.rad() + abs(b.mid() - flint.acb(complex(b.mid())))).upper()) for b in balls]
-    )
-    order = np.argsort(np.abs(roots), kind="stable")
-    return RootResult(
-        values=roots[order],
-        error_bounds=radii[order],
-        variable="y",
-        rigorous=True,
-        converged=True,
-        message=f"{degree} roots isolated in certified balls (acb_poly.roots)",
-        method="exact-certified",
-        evaluations=0,
-        count=degree,
-    )
+    return certified_roots(real, imag, tolerance=tol, variable=variable)

@@ -39,7 +39,7 @@ import numpy as np
 
 from ..algebra.model import Model
 from .certify import certified_roots, certify_chain_roots
-from .complex import aberth_chain_roots, certified_complex_roots
+from .complex import aberth_chain_roots
 from .polynomial import exclusion_polynomial
 from .real import chain_back, chain_real_roots, fixed_reach
 from .result import RootResult
@@ -145,10 +145,7 @@ def exact_polynomial_roots(m: Model) -> RootResult:
     """
     poly = exclusion_polynomial(m)
     re_parts, im_parts = poly.exact_parts()
-    if all(v == 0 for v in im_parts):
-        found = certified_roots(list(re_parts))
-    else:
-        found = certified_complex_roots(re_parts, im_parts)
+    found = certified_roots(re_parts, im_parts).repeated()
     if np.any(found.values == 0) or found.count != poly.degree:
         raise ValueError(
             "the exclusion polynomial has a root at y = 0 or lost degree; P(0) must be 1"

@@ -83,6 +83,10 @@ class RootResult:
         chains; by modulus otherwise).
     weight_log2 : int
         The weights were divided by ``2**weight_log2`` before root finding.
+    multiplicities : numpy.ndarray of int64
+        Per value, how many roots it stands for (all 1 unless an exact polynomial has a
+        repeated root: then ``values`` lists each distinct root once, and
+        :meth:`repeated` lists it as often as it counts).
     exponents : numpy.ndarray of int64
         Per value, a power of two: the root of the scaled problem is
         ``values[i] * 2**exponents[i]`` and its bound ``error_bounds[i] * 2**exponents[i]``
@@ -106,6 +110,7 @@ class RootResult:
     weight_log2: int = 0
     details: Mapping[str, Any] = field(default_factory=dict)
     exponents: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
+    multiplicities: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
 
     def __post_init__(self) -> None:
         values = _frozen(self.values)
@@ -132,7 +137,16 @@ class RootResult:
             )
         if np.any(exponents != 0) and np.iscomplexobj(values):
             raise ValueError("exponents are for real roots only")
+        mult = np.asarray(self.multiplicities)
+        if mult.size == 0:
+            mult = np.ones(values.size, dtype=np.int64)
+        bad_kind = mult.size > 0 and (mult.dtype.kind not in "iu" or mult.min() < 1)
+        if mult.shape != values.shape or bad_kind:
+            raise ValueError(
+                f"multiplicities must be integers >= 1 shaped like values, got {mult!r}"
+            )
         set_ = object.__setattr__
+        set_(self, "multiplicities", _frozen(mult, dtype=np.int64))
         set_(self, "exponents", _frozen(exponents, dtype=np.int64))
         set_(self, "values", values)
         set_(self, "error_bounds", bounds)
@@ -142,6 +156,27 @@ class RootResult:
             set_(self, name, bool(getattr(self, name)))
         for name in ("evaluations", "count", "iterations", "weight_log2"):
             set_(self, name, int(getattr(self, name)))
+
+    def repeated(self) -> RootResult:
+        """The same roots with each value listed as often as it counts (multiplicities all 1)."""
+        if np.all(self.multiplicities == 1):
+            return self
+        k = self.multiplicities
+        return RootResult(
+            values=np.repeat(self.values, k),
+            error_bounds=np.repeat(self.error_bounds, k),
+            variable=self.variable,
+            rigorous=self.rigorous,
+            converged=self.converged,
+            message=self.message,
+            method=self.method,
+            evaluations=self.evaluations,
+            count=self.count,
+            iterations=self.iterations,
+            weight_log2=self.weight_log2,
+            details=dict(self.details),
+            exponents=np.repeat(self.exponents, k),
+        )
 
     @property
     def bound_kind(self) -> str:
@@ -294,6 +329,7 @@ class RootResult:
                 "indices": self.indices,
                 "weight_log2": self.weight_log2,
                 "exponents": self.exponents,
+                "multiplicities": self.multiplicities,
                 "details": dict(self.details),
             }
         )
