@@ -20,35 +20,43 @@ The chain certificate
 ``P_M`` has degree exactly ``S`` for positive weights (its top coefficient is a sum of
 positive products).  If ``S`` pairwise disjoint intervals each show a certified sign change of
 ``P_M`` at their two ends, each holds an odd number of roots, hence exactly one.  The sign of
-``P_M(y) = prod_k r_k`` comes from the ratios ``r_k = P_k / P_{k-1}``,
+``P_M(y)`` comes from the linear recurrence
 
-    r_k = 1 - y w_k / (r_{k-1} r_{k-2} ... r_{k-p}),      r_k = 1 for k <= 0,
+    P_k = P_{k-1} - y w_k P_{k-p-1},      P_k = 1 for k <= 0,
 
-evaluated in interval arithmetic at FIXED working precision: float64, each ``1 / r_k`` kept
-as a sign and a magnitude interval, every bound rounded outward by ``2**-51`` relative
-(round-to-nearest is off by at most ``2**-53``, so each interval provably holds the exact
-value; magnitudes below ``2**-960`` count as undecided, away from underflow), in compiled
-code (numba) over 64 end points per pass, O(M) per end point.  For reach 1 each step is a
-monotone function of one interval, so the enclosure stays at rounding level wherever the
-exact ratio map contracts; an end point too close to the root (closer than the rounding
-error amplified along the chain) stays undecided, and widening the interval decides it.
-For reach p >= 2 the p previous ratios are enclosed by a box that forgets their correlation
-(the wrapping effect): the width was measured to grow by about 1.26 per step on random
-reach-2 chains, so most end points of long chains stay undecided in float64.  Those go to
-the linear recurrence ``P_k = P_{k-1} - y w_k P_{k-p-1}`` in python-flint arb balls,
-doubling the precision from 64 bits up to ``max_precision`` (the precision needed grows with
-M: this part does not scale).  Still undecided (for reach 1 at once), an interval is widened
-(by 4, never past 0.45 of the distance to a neighbour) and tested again; an interval that
-never shows a sign change is reported, never passed.  Nothing here uses the root-count
-property of ``roots.chain_count_below``.
-The weights may be given as intervals (``weight_bounds``), so that the rounding of
-``w = c^N`` from the couplings is covered too.
+run in float64 with every rounding error bounded (and every weight an interval, so that the
+rounding of ``w = c^N`` is covered too), in compiled code (numba) over all end points at once,
+O(M) per end point.  Plain interval arithmetic on this recurrence, or on the ratios
+``P_k / P_{k-1}``, forgets how the p + 1 values of the state are correlated (the wrapping
+effect): the boxes were measured to widen about 1.26 times per step on random reach-2
+chains, so that long chains could be decided only in arb at a precision growing with M.
+Here the state is enclosed in a frame that turns with the recurrence (Lohner's method): the
+state is ``c + A e + delta``, a float64 centre, a basis ``A`` carried along by the
+recurrence, a box of coefficients ``e`` and a box ``delta`` collecting the bounded rounding
+errors; every 4 steps ``A`` is re-orthogonalised (Gram-Schmidt) and the boxes are moved into
+the new basis through a proved bound on the inverse of the computed orthogonal factor.  The
+enclosure then grows like the recurrence itself, and the end points at the first distance
+(eight error estimates, at least 64 ulps) are decided for most roots at 10^4 terms.  The
+state is balanced first by exact powers of two (``Q_k = P_k / 2**(e k)``, so that the
+coefficients are near 1 when ``y w`` is large), and where ``y w`` is large the frame is
+orthonormal relative to each component's size (the recurrence then splits into p + 1
+interleaved sequences of very different sizes).  For reach 1 the ratios
+``r_k = P_k / P_{k-1} = 1 - y w_k / r_{k-1}`` are tried first as outward-rounded float64
+intervals: each step is a monotone function of one interval, so they stay at rounding level
+wherever the ratio map contracts, tighter than the frame for the largest roots.  An
+undecided end point (too close to the root for the rounding errors accumulated along the
+chain) makes its interval widen (by 4, never past 0.45 of the distance to a neighbour) and be
+tested again; intervals still undecided go to the linear recurrence in python-flint arb balls
+at doubling precision (bounded work); an interval that never shows a sign change is reported,
+never passed.  Nothing here uses the root-count property of ``roots.chain_count_below``.
 
 References
 ----------
 R. E. Moore, R. B. Kearfott and M. J. Cloud, Introduction to Interval Analysis, SIAM (2009)
-(outward-rounded interval arithmetic).  F. Johansson, "Arb: efficient arbitrary-precision
-midpoint-radius interval arithmetic", IEEE Trans. Comput. 66, 1281 (2017).
+(outward-rounded interval arithmetic).  R. J. Lohner, "Enclosing the solutions of ordinary
+initial and boundary value problems", in Computer Arithmetic, Teubner (1987), 255-286 (the
+moving orthogonal frame against the wrapping effect).  F. Johansson, "Arb: efficient
+arbitrary-precision midpoint-radius interval arithmetic", IEEE Trans. Comput. 66, 1281 (2017).
 """
 
 from __future__ import annotations
@@ -71,8 +79,9 @@ _EPS = float(np.finfo(np.float64).eps)
 
 _DOWN = 1.0 - 2.0**-51  # v * _DOWN rounds below the exact value that v approximates
 _UP = 1.0 + 2.0**-51
-_SMALL = 2.0**-960  # magnitudes below this count as undecided (far from underflow)
-_LANES = 64  # points that share one pass over the chain
+_SMALL = 2.0**-960  # ratio magnitudes below this count as undecided (far from underflow)
+_LANES = 64  # points that share one compiled task
+_ARB_WORK = 2e8  # largest (points x terms x bits) the arb fallback may take
 
 
 @njit(cache=True, boundscheck=False, error_model="numpy")
@@ -143,6 +152,208 @@ def _interval_signs(
     return out
 
 
+_FOLD = 4  # steps between two re-orthogonalisations of the enclosure's basis
+_SLACK = 1.0 + 64.0 * _EPS  # covers the rounding of the operations of each error bound
+_FLOOR = 2.0**-1000  # absolute floor on every error bound (values stay near 1 by rescaling)
+_RESCALE = 2.0**300
+_ROWSPAN = 2.0**-30  # largest ratio of two row scales (large y w only)
+
+
+@njit(cache=True, boundscheck=False, error_model="numpy")
+def _frame_block(
+    wlo: np.ndarray,
+    whi: np.ndarray,
+    p: int,
+    log2_w: float,
+    ys: np.ndarray,
+    start: int,
+    out: np.ndarray,
+) -> None:  # pragma: no cover - compiled
+    """Signs of ``P_M`` at ``ys[start:start + _LANES]``: the linear recurrence enclosed in a
+    moving orthonormal frame (Lohner's method), for every weight vector in the box.
+
+    The state ``v = (P_k, ..., P_{k-p})`` is enclosed as ``c + A e + delta`` with ``e`` in the
+    box ``|e_i| <= rho_i`` and ``|delta_i| <= d_i``.  A step ``v' = T v`` (one new row,
+    ``P_k = P_{k-1} - a_k P_{k-p-1}``, ``a_k = y w_k`` an interval) keeps ``c`` and ``A``
+    in float64 and adds every rounding error, bounded, to ``d``.  Every ``_FOLD`` steps the
+    frame is re-orthogonalised relative to the size of each component: with ``S`` the
+    diagonal of powers of two that bring ``c`` near 1 (exact), ``S A = Q R`` (Gram-Schmidt in
+    float64), ``G = Q^T`` and
+    ``F = G Q - I`` with ``||F||_inf <= f < 1/4`` bounded, so that
+    ``Q^{-1} = (I + F)^{-1} G``; the new basis is ``S^{-1} Q`` and
+    ``e' = Q^{-1} S (A e + delta)`` lies in the box ``x + f / (1 - f) max(x)`` with
+    ``x = |G S A| rho + |G| S d``.  The box then turns with the
+    recurrence instead of wrapping it coordinate by coordinate, so it grows like the
+    recurrence itself.  Rows of ``A``, ``c`` and ``d`` are kept in a ring (the row of
+    ``P_{k-p-1}`` becomes the row of ``P_k``); ``c``, ``rho`` and ``d`` are rescaled by exact
+    powers of two.  A point whose box reaches 0 at the end, or whose frame check fails, is
+    undecided (0).
+    """
+    n_pts = min(_LANES, ys.size - start)
+    n = p + 1
+    for j in range(n_pts):
+        y = ys[start + j]
+        # balance: Q_k = P_k / 2**(e k) obeys Q_k = 2**-e Q_{k-1} - a_k 2**(-e (p + 1)) Q_{k-p-1},
+        # with coefficients near 1 when y w is large (exact scalings; the sign is that of P)
+        e = max(0, int(np.round((np.log2(y) + log2_w) / n)))
+        mu = 2.0**-e
+        shrink = 2.0 ** (-e * n)
+        # rows scaled apart only where the balanced recurrence splits into p + 1 interleaved
+        # sequences of very different sizes (large y w); elsewhere one scale measured better
+        span = _ROWSPAN if e >= 2 else 1.0
+        c = np.empty(n)
+        for i in range(n):  # Q_{-i} = 2**(e i): slot (-i) % n holds Q_{-i}, slot 0 is Q_0
+            c[(n - i) % n] = 2.0 ** (e * i)
+        a_mat = np.zeros((n, n))
+        for i in range(n):
+            a_mat[i, i] = 1.0
+        rho = np.zeros(n)
+        d = np.zeros(n)
+        q = np.empty((n, n))
+        scl = np.empty(n)
+        x = np.empty(n)
+        head = 0  # ring slot of P_{k-1}; slot (head + 1) % n holds P_{k-p-1}
+        failed = False
+        for k in range(wlo.size):
+            lo_k, hi_k = y * wlo[k] * shrink, y * whi[k] * shrink
+            a_lo = min(lo_k, hi_k)
+            a_hi = max(lo_k, hi_k)
+            a_lo = a_lo * _DOWN if a_lo > 0.0 else a_lo * _UP
+            a_hi = a_hi * _UP if a_hi > 0.0 else a_hi * _DOWN
+            am = 0.5 * (a_lo + a_hi)
+            ar = max(a_hi - am, am - a_lo) * _UP + _FLOOR
+            old = (head + 1) % n
+            t = am * c[old]
+            cn = mu * c[head] - t
+            err = (abs(cn) + abs(t)) * _EPS + ar * abs(c[old])
+            for col in range(n):
+                tj = am * a_mat[old, col]
+                mj = mu * a_mat[head, col] - tj
+                err += ((abs(mj) + abs(tj)) * _EPS + ar * abs(a_mat[old, col])) * rho[col]
+                a_mat[old, col] = mj
+            d[old] = (mu * d[head] + (am + ar) * d[old] + err * _SLACK) * _SLACK + _FLOOR
+            c[old] = cn
+            head = old
+            big = 0.0
+            for i in range(n):
+                big = max(big, abs(c[i]))
+            if big > _RESCALE or big < 1.0 / _RESCALE:
+                f = 1.0 / _RESCALE if big > _RESCALE else _RESCALE
+                for i in range(n):  # exact unless a component underflows: _FLOOR covers it
+                    c[i] *= f
+                    rho[i] = rho[i] * f + _FLOOR
+                    d[i] = d[i] * f + _FLOOR
+            if (k + 1) % _FOLD != 0 and k + 1 != wlo.size:
+                continue
+            # row scales: powers of two that bring every component of c near 1 (exact), so
+            # that the frame is orthonormal relative to each component's own size
+            top_c = 0.0
+            for i in range(n):
+                top_c = max(top_c, abs(c[i]))
+            for i in range(n):
+                mag = max(abs(c[i]), top_c * span)
+                scl[i] = 2.0 ** -int(np.floor(np.log2(mag))) if mag > 0.0 else 1.0
+                for col in range(n):
+                    a_mat[i, col] *= scl[i]
+                d[i] = d[i] * scl[i] + _FLOOR
+            # re-orthogonalise: Q from modified Gram-Schmidt on the columns of S A
+            for col in range(n):
+                for i in range(n):
+                    q[i, col] = a_mat[i, col]
+                for prev in range(col):
+                    dot = 0.0
+                    for i in range(n):
+                        dot += q[i, prev] * q[i, col]
+                    for i in range(n):
+                        q[i, col] -= dot * q[i, prev]
+                norm = 0.0
+                for i in range(n):
+                    norm += q[i, col] * q[i, col]
+                norm = np.sqrt(norm)
+                for i in range(n):
+                    q[i, col] /= norm
+            # f >= ||Q^T Q - I||_inf, rounding of the products included
+            f = 0.0
+            for r in range(n):
+                row = 0.0
+                for col in range(n):
+                    dot = 0.0
+                    dabs = 0.0
+                    for i in range(n):
+                        dot += q[i, r] * q[i, col]
+                        dabs += abs(q[i, r] * q[i, col])
+                    if r == col:
+                        dot -= 1.0
+                    row += abs(dot) + (n + 1) * _EPS * dabs
+                f = max(f, row)
+            f *= _SLACK
+            if not f < 0.25:
+                failed = True
+                break
+            # x = |Q^T A| rho + |Q^T| d, rounding of the products included
+            for r in range(n):
+                acc = 0.0
+                for col in range(n):
+                    dot = 0.0
+                    dabs = 0.0
+                    for i in range(n):
+                        dot += q[i, r] * a_mat[i, col]
+                        dabs += abs(q[i, r] * a_mat[i, col])
+                    acc += (abs(dot) + (n + 1) * _EPS * dabs) * rho[col]
+                dd = 0.0
+                for i in range(n):
+                    dd += abs(q[i, r]) * d[i]
+                x[r] = (acc + dd * (1.0 + (n + 1) * _EPS)) * _SLACK
+            top = 0.0
+            for r in range(n):
+                top = max(top, x[r])
+            spill = top * (f / (1.0 - f)) * _SLACK
+            for r in range(n):
+                rho[r] = (x[r] + spill) * _SLACK + _FLOOR
+                d[r] = 0.0
+                for col in range(n):
+                    a_mat[r, col] = q[r, col] / scl[r]
+        if failed:
+            out[start + j] = 0
+            continue
+        # P_M in c[head] + (A e)[head] + delta[head]
+        rad = 0.0
+        for col in range(n):
+            rad += abs(a_mat[head, col]) * rho[col]
+        rad = (rad * (1.0 + (n + 1) * _EPS) + d[head]) * _SLACK + _FLOOR
+        if not (np.isfinite(rad) and np.isfinite(c[head])) or abs(c[head]) <= rad:
+            out[start + j] = 0
+        else:
+            out[start + j] = 1 if c[head] > 0.0 else -1
+
+
+@njit(cache=True, parallel=True)
+def _frame_signs(
+    wlo: np.ndarray, whi: np.ndarray, p: int, ys: np.ndarray
+) -> np.ndarray:  # pragma: no cover - compiled
+    out = np.zeros(ys.size, dtype=np.int64)
+    log2_w = np.mean(np.log2(wlo))
+    for b in prange((ys.size + _LANES - 1) // _LANES):
+        _frame_block(wlo, whi, p, log2_w, ys, b * _LANES, out)
+    return out
+
+
+def _float_signs(wlo: np.ndarray, whi: np.ndarray, p: int, ys: np.ndarray) -> np.ndarray:
+    """Certified signs of ``P_M`` at ``ys`` in float64 (0 where undecided).
+
+    Reach 1: the ratio intervals first (each step monotone in one interval: tight), the frame
+    for what they leave; reach p >= 2: the frame (ratio boxes wrap).
+    """
+    ys = np.ascontiguousarray(ys, dtype=np.float64)
+    if p > 1:
+        return _frame_signs(wlo, whi, p, ys)
+    signs = _interval_signs(wlo, whi, p, ys)
+    todo = np.nonzero(signs == 0)[0]
+    if todo.size:
+        signs[todo] = _frame_signs(wlo, whi, p, ys[todo])
+    return signs
+
+
 def _arb_signs(
     wlo: np.ndarray,
     whi: np.ndarray,
@@ -181,31 +392,6 @@ def _arb_signs(
         return out
     finally:
         flint.ctx.prec = saved
-
-
-def _signs(
-    wlo: np.ndarray,
-    whi: np.ndarray,
-    p: int,
-    ys: np.ndarray,
-    max_precision: int,
-    power_of: tuple[np.ndarray, int] | None,
-) -> tuple[np.ndarray, int]:
-    """Certified signs of ``P_M`` at ``ys``: float64 intervals on the ratios, then arb.
-
-    Returns the signs (0 where still undecided) and the largest precision used (bits).
-    """
-    signs = _interval_signs(wlo, whi, p, np.ascontiguousarray(ys, dtype=np.float64))
-    precision = 53
-    prec = 64
-    while prec <= max_precision:
-        todo = np.nonzero(signs == 0)[0]
-        if todo.size == 0 or p == 1:
-            break  # reach 1: widening decides them much faster than the Python loop
-        precision = prec
-        signs[todo] = _arb_signs(wlo, whi, p, ys[todo], prec, power_of)
-        prec *= 2
-    return signs, precision
 
 
 def _weight_box(
@@ -256,9 +442,10 @@ def certify_chain_roots(
         Position of each given root among all S (ascending); by default the largest ones.
     widenings : int
         Times an interval without a sign change is widened (by 4, never past 0.45 of the
-        distance to a neighbour) before it is reported as failed.
+        distance to a neighbour) before the arb fallback, then the report as failed.
     max_precision : int
-        Largest arb precision (bits) tried for a sign the float64 intervals leave undecided.
+        Largest arb precision (bits) of the fallback for intervals the float64 enclosures
+        leave undecided after all widenings.
 
     Returns
     -------
@@ -266,7 +453,8 @@ def certify_chain_roots(
         ``values`` the interval midpoints, ``error_bounds`` their half-widths (rounded up),
         ``rigorous`` True only when all S roots were given and every interval is proved to
         hold exactly one root.  ``details``: ``lower``, ``upper``, ``sign_change`` (bool per
-        interval: it holds an odd number of roots), ``precision`` (largest bits used).
+        interval: it holds an odd number of roots), ``precision`` (largest bits used: 53
+        unless the arb fallback ran).
 
     Raises
     ------
@@ -311,18 +499,23 @@ def certify_chain_roots(
     todo = np.arange(y.size)
     for attempt in range(widenings + 1):
         lower[todo], upper[todo] = y[todo] - half[todo], y[todo] + half[todo]
-        ends = np.concatenate([lower[todo], upper[todo]])
-        signs, used = _signs(wlo, whi, p, ends, max_precision, power_of)
-        precision, evaluations, rounds = (
-            max(precision, used),
-            evaluations + 2 * todo.size,
-            rounds + 1,
-        )
+        signs = _float_signs(wlo, whi, p, np.concatenate([lower[todo], upper[todo]]))
+        evaluations, rounds = evaluations + 2 * todo.size, rounds + 1
         change[todo] = (signs[: todo.size] * signs[todo.size :]) < 0
         todo = todo[~change[todo]]
         if todo.size == 0 or attempt == widenings:
             break
         half[todo] = np.minimum(4.0 * half[todo], room[todo])
+    # Last resort for the few intervals left (e.g. roots too close to widen): the linear
+    # recurrence in arb balls at doubling precision; bounded work, else they stay reported.
+    prec = 64
+    while todo.size and prec <= max_precision and todo.size * w.size * prec <= _ARB_WORK:
+        ends = np.concatenate([lower[todo], upper[todo]])
+        signs = _arb_signs(wlo, whi, p, ends, prec, power_of)
+        precision, evaluations, rounds = prec, evaluations + 2 * todo.size, rounds + 1
+        change[todo] = (signs[: todo.size] * signs[todo.size :]) < 0
+        todo = todo[~change[todo]]
+        prec *= 2
     disjoint = bool(lower[0] > 0 and np.all(upper[:-1] < lower[1:]))
     certified = bool(np.all(change)) and disjoint and y.size == total
     if certified:
