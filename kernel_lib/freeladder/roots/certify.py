@@ -152,7 +152,7 @@ def _interval_signs(
     return out
 
 
-_FOLD = 4  # steps between two re-orthogonalisations of the enclosure's basis
+_FOLD = 6  # steps between two re-orthogonalisations of the enclosure's basis
 _SLACK = 1.0 + 64.0 * _EPS  # covers the rounding of the operations of each error bound
 _FLOOR = 2.0**-1000  # absolute floor on every error bound (values stay near 1 by rescaling)
 _RESCALE = 2.0**300
@@ -189,142 +189,180 @@ def _frame_block(
     powers of two.  A point whose box reaches 0 at the end, or whose frame check fails, is
     undecided (0).
     """
-    n_pts = min(_LANES, ys.size - start)
     n = p + 1
-    for j in range(n_pts):
-        y = ys[start + j]
-        # balance: Q_k = P_k / 2**(e k) obeys Q_k = 2**-e Q_{k-1} - a_k 2**(-e (p + 1)) Q_{k-p-1},
+    nl = _LANES
+    n_pts = min(nl, ys.size - start)
+    y = np.empty(nl)
+    mu = np.empty(nl)
+    shrink = np.empty(nl)
+    span = np.empty(nl)
+    c = np.empty((n, nl))
+    a_mat = np.zeros((n, n, nl))
+    rho = np.zeros((n, nl))
+    d = np.zeros((n, nl))
+    q = np.empty((n, n, nl))
+    scl = np.empty((n, nl))
+    x = np.empty((n, nl))
+    f = np.empty(nl)
+    acc = np.empty(nl)
+    dab = np.empty(nl)
+    top = np.empty(nl)
+    am = np.empty(nl)
+    ar = np.empty(nl)
+    failed = np.zeros(nl)
+    for j in range(nl):
+        y[j] = ys[start + min(j, n_pts - 1)]
+        if not y[j] > 0.0:
+            failed[j] = 1.0  # the outward rounding of a_k below assumes y > 0
+            y[j] = 1.0
+        # balance: Q_k = P_k / 2**(e k) obeys Q_k = 2**-e Q_{k-1} - a_k 2**(-e (p+1)) Q_{k-p-1},
         # with coefficients near 1 when y w is large (exact scalings; the sign is that of P)
-        e = max(0, int(np.round((np.log2(y) + log2_w) / n)))
-        mu = 2.0**-e
-        shrink = 2.0 ** (-e * n)
+        e = max(0, int(np.round((np.log2(y[j]) + log2_w) / n)))
+        mu[j] = 2.0**-e
+        shrink[j] = 2.0 ** (-e * n)
         # rows scaled apart only where the balanced recurrence splits into p + 1 interleaved
         # sequences of very different sizes (large y w); elsewhere one scale measured better
-        span = _ROWSPAN if e >= 2 else 1.0
-        c = np.empty(n)
+        span[j] = _ROWSPAN if e >= 2 else 1.0
         for i in range(n):  # Q_{-i} = 2**(e i): slot (-i) % n holds Q_{-i}, slot 0 is Q_0
-            c[(n - i) % n] = 2.0 ** (e * i)
-        a_mat = np.zeros((n, n))
-        for i in range(n):
-            a_mat[i, i] = 1.0
-        rho = np.zeros(n)
-        d = np.zeros(n)
-        q = np.empty((n, n))
-        scl = np.empty(n)
-        x = np.empty(n)
-        head = 0  # ring slot of P_{k-1}; slot (head + 1) % n holds P_{k-p-1}
-        failed = False
-        for k in range(wlo.size):
-            lo_k, hi_k = y * wlo[k] * shrink, y * whi[k] * shrink
-            a_lo = min(lo_k, hi_k)
-            a_hi = max(lo_k, hi_k)
-            a_lo = a_lo * _DOWN if a_lo > 0.0 else a_lo * _UP
-            a_hi = a_hi * _UP if a_hi > 0.0 else a_hi * _DOWN
-            am = 0.5 * (a_lo + a_hi)
-            ar = max(a_hi - am, am - a_lo) * _UP + _FLOOR
-            old = (head + 1) % n
-            t = am * c[old]
-            cn = mu * c[head] - t
-            err = (abs(cn) + abs(t)) * _EPS + ar * abs(c[old])
-            for col in range(n):
-                tj = am * a_mat[old, col]
-                mj = mu * a_mat[head, col] - tj
-                err += ((abs(mj) + abs(tj)) * _EPS + ar * abs(a_mat[old, col])) * rho[col]
-                a_mat[old, col] = mj
-            d[old] = (mu * d[head] + (am + ar) * d[old] + err * _SLACK) * _SLACK + _FLOOR
-            c[old] = cn
-            head = old
+            c[(n - i) % n, j] = 2.0 ** (e * i)
+            a_mat[i, i, j] = 1.0
+    head = 0  # ring slot of P_{k-1}; slot (head + 1) % n holds P_{k-p-1}
+    for k in range(wlo.size):
+        old = (head + 1) % n
+        for j in range(nl):
+            a_lo = y[j] * wlo[k] * shrink[j] * _DOWN  # y > 0 and w > 0 (checked)
+            a_hi = y[j] * whi[k] * shrink[j] * _UP
+            am[j] = 0.5 * (a_lo + a_hi)
+            ar[j] = max(a_hi - am[j], am[j] - a_lo) * _UP + _FLOOR
+            t = am[j] * c[old, j]
+            cn = mu[j] * c[head, j] - t
+            acc[j] = (abs(cn) + abs(t)) * _EPS + ar[j] * abs(c[old, j])  # rounding errors
+            dab[j] = cn
+        for col in range(n):
+            for j in range(nl):
+                tj = am[j] * a_mat[old, col, j]
+                mj = mu[j] * a_mat[head, col, j] - tj
+                acc[j] += ((abs(mj) + abs(tj)) * _EPS + ar[j] * abs(a_mat[old, col, j])) * rho[
+                    col, j
+                ]
+                a_mat[old, col, j] = mj
+        for j in range(nl):
+            d[old, j] = (mu[j] * d[head, j] + (am[j] + ar[j]) * d[old, j] + acc[j] * _SLACK) * (
+                _SLACK
+            ) + _FLOOR
+            c[old, j] = dab[j]
+        head = old
+        if (k + 1) % _FOLD != 0 and k + 1 != wlo.size:
+            continue
+        # rescale c, rho, d by an exact power of two (exact unless a component underflows:
+        # _FLOOR covers that), then fold the boxes into a new frame
+        for j in range(nl):
             big = 0.0
             for i in range(n):
-                big = max(big, abs(c[i]))
-            if big > _RESCALE or big < 1.0 / _RESCALE:
-                f = 1.0 / _RESCALE if big > _RESCALE else _RESCALE
-                for i in range(n):  # exact unless a component underflows: _FLOOR covers it
-                    c[i] *= f
-                    rho[i] = rho[i] * f + _FLOOR
-                    d[i] = d[i] * f + _FLOOR
-            if (k + 1) % _FOLD != 0 and k + 1 != wlo.size:
-                continue
-            # row scales: powers of two that bring every component of c near 1 (exact), so
-            # that the frame is orthonormal relative to each component's own size
-            top_c = 0.0
+                big = max(big, abs(c[i, j]))
+            g = 1.0
+            if big > _RESCALE:
+                g = 1.0 / _RESCALE
+            elif big < 1.0 / _RESCALE:
+                g = _RESCALE
+            top[j] = big * g
             for i in range(n):
-                top_c = max(top_c, abs(c[i]))
-            for i in range(n):
-                mag = max(abs(c[i]), top_c * span)
-                scl[i] = 2.0 ** -int(np.floor(np.log2(mag))) if mag > 0.0 else 1.0
+                c[i, j] *= g
+                rho[i, j] = rho[i, j] * g + _FLOOR
+                d[i, j] = d[i, j] * g + _FLOOR
+        # row scales: powers of two that bring every component of c near 1 (exact)
+        for i in range(n):
+            for j in range(nl):
+                mag = max(abs(c[i, j]), top[j] * span[j])
+                scl[i, j] = 2.0 ** -int(np.floor(np.log2(mag))) if mag > 0.0 else 1.0
+                d[i, j] = d[i, j] * scl[i, j] + _FLOOR
                 for col in range(n):
-                    a_mat[i, col] *= scl[i]
-                d[i] = d[i] * scl[i] + _FLOOR
-            # re-orthogonalise: Q from modified Gram-Schmidt on the columns of S A
+                    a_mat[i, col, j] *= scl[i, j]
+        # Q from modified Gram-Schmidt on the columns of S A
+        for col in range(n):
+            for i in range(n):
+                for j in range(nl):
+                    q[i, col, j] = a_mat[i, col, j]
+            for prev in range(col):
+                acc[:] = 0.0
+                for i in range(n):
+                    for j in range(nl):
+                        acc[j] += q[i, prev, j] * q[i, col, j]
+                for i in range(n):
+                    for j in range(nl):
+                        q[i, col, j] -= acc[j] * q[i, prev, j]
+            acc[:] = 0.0
+            for i in range(n):
+                for j in range(nl):
+                    acc[j] += q[i, col, j] * q[i, col, j]
+            for j in range(nl):
+                acc[j] = 1.0 / np.sqrt(acc[j])
+            for i in range(n):
+                for j in range(nl):
+                    q[i, col, j] *= acc[j]
+        # f >= ||Q^T Q - I||_inf, rounding of the products included
+        x[:, :] = 0.0  # row sums of |Q^T Q - I| (symmetric: each pair once)
+        for r in range(n):
+            for col in range(r, n):
+                acc[:] = 0.0
+                dab[:] = 0.0
+                for i in range(n):
+                    for j in range(nl):
+                        acc[j] += q[i, r, j] * q[i, col, j]
+                        dab[j] += abs(q[i, r, j] * q[i, col, j])
+                for j in range(nl):
+                    dot = acc[j] - 1.0 if r == col else acc[j]
+                    bound = abs(dot) + (n + 1) * _EPS * dab[j]
+                    x[r, j] += bound
+                    if col != r:
+                        x[col, j] += bound
+        f[:] = 0.0
+        for r in range(n):
+            for j in range(nl):
+                f[j] = max(f[j], x[r, j])
+        for j in range(nl):
+            f[j] *= _SLACK
+            if not f[j] < 0.25:
+                failed[j] = 1.0
+                f[j] = 0.0  # keep the arithmetic finite; the point is reported undecided
+        # x = |Q^T S A| rho + |Q^T| S d, rounding of the products included
+        for r in range(n):
+            x[r, :] = 0.0
             for col in range(n):
+                acc[:] = 0.0
+                dab[:] = 0.0
                 for i in range(n):
-                    q[i, col] = a_mat[i, col]
-                for prev in range(col):
-                    dot = 0.0
-                    for i in range(n):
-                        dot += q[i, prev] * q[i, col]
-                    for i in range(n):
-                        q[i, col] -= dot * q[i, prev]
-                norm = 0.0
-                for i in range(n):
-                    norm += q[i, col] * q[i, col]
-                norm = np.sqrt(norm)
-                for i in range(n):
-                    q[i, col] /= norm
-            # f >= ||Q^T Q - I||_inf, rounding of the products included
-            f = 0.0
+                    for j in range(nl):
+                        acc[j] += q[i, r, j] * a_mat[i, col, j]
+                        dab[j] += abs(q[i, r, j] * a_mat[i, col, j])
+                for j in range(nl):
+                    x[r, j] += (abs(acc[j]) + (n + 1) * _EPS * dab[j]) * rho[col, j]
+            for i in range(n):
+                for j in range(nl):
+                    x[r, j] += abs(q[i, r, j]) * d[i, j] * (1.0 + (n + 1) * _EPS)
+        for j in range(nl):
+            big = 0.0
             for r in range(n):
-                row = 0.0
+                x[r, j] *= _SLACK
+                big = max(big, x[r, j])
+            top[j] = big * (f[j] / (1.0 - f[j])) * _SLACK
+        for r in range(n):
+            for j in range(nl):
+                rho[r, j] = (x[r, j] + top[j]) * _SLACK + _FLOOR
+                d[r, j] = 0.0
                 for col in range(n):
-                    dot = 0.0
-                    dabs = 0.0
-                    for i in range(n):
-                        dot += q[i, r] * q[i, col]
-                        dabs += abs(q[i, r] * q[i, col])
-                    if r == col:
-                        dot -= 1.0
-                    row += abs(dot) + (n + 1) * _EPS * dabs
-                f = max(f, row)
-            f *= _SLACK
-            if not f < 0.25:
-                failed = True
-                break
-            # x = |Q^T A| rho + |Q^T| d, rounding of the products included
-            for r in range(n):
-                acc = 0.0
-                for col in range(n):
-                    dot = 0.0
-                    dabs = 0.0
-                    for i in range(n):
-                        dot += q[i, r] * a_mat[i, col]
-                        dabs += abs(q[i, r] * a_mat[i, col])
-                    acc += (abs(dot) + (n + 1) * _EPS * dabs) * rho[col]
-                dd = 0.0
-                for i in range(n):
-                    dd += abs(q[i, r]) * d[i]
-                x[r] = (acc + dd * (1.0 + (n + 1) * _EPS)) * _SLACK
-            top = 0.0
-            for r in range(n):
-                top = max(top, x[r])
-            spill = top * (f / (1.0 - f)) * _SLACK
-            for r in range(n):
-                rho[r] = (x[r] + spill) * _SLACK + _FLOOR
-                d[r] = 0.0
-                for col in range(n):
-                    a_mat[r, col] = q[r, col] / scl[r]
-        if failed:
-            out[start + j] = 0
-            continue
+                    a_mat[r, col, j] = q[r, col, j] / scl[r, j]
+    for j in range(n_pts):
         # P_M in c[head] + (A e)[head] + delta[head]
         rad = 0.0
         for col in range(n):
-            rad += abs(a_mat[head, col]) * rho[col]
-        rad = (rad * (1.0 + (n + 1) * _EPS) + d[head]) * _SLACK + _FLOOR
-        if not (np.isfinite(rad) and np.isfinite(c[head])) or abs(c[head]) <= rad:
+            rad += abs(a_mat[head, col, j]) * rho[col, j]
+        rad = (rad * (1.0 + (n + 1) * _EPS) + d[head, j]) * _SLACK + _FLOOR
+        value = c[head, j]
+        if failed[j] != 0.0 or not (np.isfinite(rad) and np.isfinite(value)) or abs(value) <= rad:
             out[start + j] = 0
         else:
-            out[start + j] = 1 if c[head] > 0.0 else -1
+            out[start + j] = 1 if value > 0.0 else -1
 
 
 @njit(cache=True, parallel=True)
