@@ -6,7 +6,8 @@ certificate (sign changes of the recurrence enclosed in float64, freeladder.root
 their ratio, the largest and median proved relative bound, and how many fast error estimates
 the proved intervals show to be exceeded.  Random couplings in [0.3, 1.7] (weights c**2) for
 reach 1, 2 and 3, and the uniform chain; a summary table of the ratios at the end (goal: at
-most 10).  The machines are noisy: compare ratios within one run.  ``--full`` adds 10^5 terms (minutes).
+most 10).  The machines are noisy: compare ratios within one run.  ``--full`` adds 10^5 terms
+(minutes).
 """
 
 from __future__ import annotations
