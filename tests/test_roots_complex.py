@@ -24,7 +24,7 @@ from freeladder.roots.complex import (
     evaluate_chain,
 )
 from freeladder.roots.real import chain_back, chain_root_count
-from freeladder.roots.result import RootResult
+from freeladder.roots.result import RootTable
 
 
 def _mp_chain_coefficients(w: np.ndarray, back: np.ndarray) -> list:
@@ -87,7 +87,7 @@ def test_complex_chain_against_mpmath(n_terms, reach, states, seed) -> None:
     found = aberth_chain_roots(w, reach, order=states)
     ref = _mp_roots(w, reach)
     assert len(found.values) == chain_root_count(n_terms, reach) == len(ref) == found.count
-    assert isinstance(found, RootResult) and found.variable == "x" and not found.rigorous
+    assert isinstance(found, RootTable) and found.variable == "x" and not found.rigorous
     assert found.method == "chain-aberth" and "estimate" in found.summary()
     err = _match(found.values, ref)
     assert np.all(err <= 1e-12 * np.abs(found.values) + 1e-14)

@@ -57,7 +57,7 @@ def run_case(label: str, w: np.ndarray, reach: int, limit: float) -> float | Non
     n_bad, worst = exceeded(fast, enc)
     print(
         f"{label}: fast {t_fast:.2f} s, certified {t_cert:.2f} s, ratio {t_cert / t_fast:.1f}; "
-        f"rigorous={enc.rigorous} ({enc.iterations} rounds, {enc.details['precision']} bits); "
+        f"rigorous={enc.rigorous} ({enc.sweeps} rounds, {enc.details['precision']} bits); "
         f"largest proved relative bound {np.max(enc.error_bounds / enc.values):.1e}, "
         f"median {np.median(enc.error_bounds / enc.values):.1e}; "
         f"fast estimates proved too small: {n_bad} of {fast.count}"

@@ -42,7 +42,7 @@ from .real import (
 )
 from .result import (
     BeyondFloatError,
-    RootResult,
+    RootTable,
 )
 
 __all__ = [
@@ -53,7 +53,7 @@ __all__ = [
     "MAX_ROOT_DEGREE",
     "ROOT_METHODS",
     "RootMethod",
-    "RootResult",
+    "RootTable",
     "SumRules",
     "aberth_chain_roots",
     "certified_complex_roots",
@@ -82,7 +82,14 @@ __all__ = [
 
 
 def __getattr__(name: str) -> object:
-    """Deprecated aliases (one release)."""
-    from . import polynomial
+    """Deprecated aliases (one release): ``RootResult``, ``PolynomialRoots``."""
+    import warnings
 
-    return polynomial.__getattr__(name)
+    if name in ("RootResult", "PolynomialRoots"):
+        warnings.warn(
+            f"{name} is deprecated: the root result type is now called RootTable",
+            DeprecationWarning,
+            stacklevel=2,
+        )
+        return RootTable
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

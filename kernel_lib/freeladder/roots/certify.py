@@ -2,12 +2,12 @@
 
 API
 ---
-``certify_chain_roots(weights, reach, roots, errors=None, *, weight_bounds=None) -> RootResult``
+``certify_chain_roots(weights, reach, roots, errors=None, *, weight_bounds=None) -> RootTable``
     Proves that each interval ``[lower_k, upper_k]`` around ``roots[k]`` holds exactly one root
     of the chain polynomial ``P_M``, by certified sign changes of ``P_M`` plus the known root
     count ``S``.  ``variable="y"``, method ``"chain-certified"``; ``rigorous`` is True only
     when every interval is proved; ``details`` holds ``lower``, ``upper``, ``sign_change``.
-``certified_roots(coefficients, imag=None) -> RootResult``
+``certified_roots(coefficients, imag=None) -> RootTable``
     The one certified isolation of exact polynomials: all complex roots of an exact
     coefficient list (int / Fraction / fmpq, real and optional imaginary parts; constant term
     first), as isolating balls (python-flint ``acb_poly.roots`` on each squarefree factor, at
@@ -70,7 +70,7 @@ import numpy as np
 from numba import njit, prange
 
 from .real import chain_root_count, check_chain_weights
-from .result import RootResult
+from .result import RootTable
 
 __all__ = ["certified_roots", "certify_chain_roots"]
 
@@ -457,7 +457,7 @@ def certify_chain_roots(
     indices: Any = None,
     widenings: int = 10,
     max_precision: int = 4096,
-) -> RootResult:
+) -> RootTable:
     """Prove that an interval around each given root holds exactly one root of ``P_M``.
 
     Parameters
@@ -487,7 +487,7 @@ def certify_chain_roots(
 
     Returns
     -------
-    RootResult
+    RootTable
         ``values`` the interval midpoints, ``error_bounds`` their half-widths (rounded up),
         ``rigorous`` True only when all S roots were given and every interval is proved to
         hold exactly one root.  ``details``: ``lower``, ``upper``, ``sign_change`` (bool per
@@ -572,7 +572,7 @@ def certify_chain_roots(
         )
     mid = 0.5 * lower + 0.5 * upper
     radius = np.maximum(upper - mid, mid - lower) * (1.0 + 4 * _EPS)
-    return RootResult(
+    return RootTable(
         values=mid,
         error_bounds=radius,
         variable="y",
@@ -582,7 +582,7 @@ def certify_chain_roots(
         method="chain-certified",
         evaluations=evaluations,
         count=total,
-        iterations=rounds,
+        sweeps=rounds,
         indices=np.arange(total - y.size, total) if indices is None else indices,
         details={"lower": lower, "upper": upper, "sign_change": change, "precision": precision},
     )
@@ -609,7 +609,7 @@ def certified_roots(
     precision: int = 106,
     max_precision: int = 8192,
     variable: str = "y",
-) -> RootResult:
+) -> RootTable:
     """Isolating balls for every complex root of a polynomial with exact coefficients.
 
     The one certified isolation of the library: :meth:`freeladder.ExclusionPolynomial.roots`,
@@ -635,10 +635,10 @@ def certified_roots(
 
     Returns
     -------
-    RootResult
+    RootTable
         ``variable="y"``, method ``"exact-certified"``, ``rigorous=True``; ``values`` the
         distinct roots (ball midpoints rounded to float64, ordered by modulus, then argument),
-        ``multiplicities`` how often each counts (:meth:`RootResult.repeated` lists each root
+        ``multiplicities`` how often each counts (:meth:`RootTable.repeated` lists each root
         as often), ``error_bounds`` proved bounds on the distance from each value to its
         root, ``count`` the degree, ``details["precision"]`` the bits used.
 
@@ -714,7 +714,7 @@ def certified_roots(
     values = np.asarray(mids, dtype=np.complex128)
     order = np.lexsort((np.angle(values), np.abs(values)))
     degree = int(sum(mult))
-    return RootResult(
+    return RootTable(
         values=values[order],
         error_bounds=np.asarray(radii)[order],
         multiplicities=np.asarray(mult, dtype=np.int64)[order],

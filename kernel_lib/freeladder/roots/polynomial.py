@@ -51,7 +51,7 @@ from ..base.scalars import exact_to_sympy, exact_value, to_fmpq, to_python_numbe
 from ..graphs.graph import chain_structure, frustration_adjacency
 from ..graphs.independent import Algebra, IndependenceGraph
 from .certify import certified_roots
-from .result import RootResult
+from .result import RootTable
 
 __all__ = [
     "MAX_ROOT_DEGREE",
@@ -474,7 +474,7 @@ class ExclusionPolynomial:
             truncated_at=s,
         )
 
-    def roots(self, tolerance: float = 1e-12) -> RootResult:
+    def roots(self, tolerance: float = 1e-12) -> RootTable:
         """All complex roots of this polynomial, certified (balls of python-flint / Arb).
 
         Meant for polynomials of moderate degree, such as the partial polynomials of
@@ -488,7 +488,7 @@ class ExclusionPolynomial:
 
         Returns
         -------
-        RootResult
+        RootTable
             The distinct roots (ordered by modulus, then argument), proved radii
             (``error_bounds``), ``multiplicities``; ``count`` is the degree.
 
@@ -757,7 +757,7 @@ MAX_ROOT_DEGREE = 120
 """Largest degree :meth:`ExclusionPolynomial.roots` accepts (about 0.5 s at degree 100)."""
 
 
-def _certified_roots(poly: ExclusionPolynomial, tolerance: float) -> RootResult:
+def _certified_roots(poly: ExclusionPolynomial, tolerance: float) -> RootTable:
     if poly.kind == "symbolic":
         raise TypeError(
             "the roots of a symbolic polynomial need numbers: substitute the couplings first "
@@ -771,7 +771,7 @@ def _certified_roots(poly: ExclusionPolynomial, tolerance: float) -> RootResult:
         )
     if poly.degree == 0:
         empty = np.zeros(0)
-        return RootResult(
+        return RootTable(
             values=empty.astype(complex),
             error_bounds=empty,
             variable="y",
@@ -1157,9 +1157,9 @@ def __getattr__(name: str) -> Any:
     if name == "PolynomialRoots":
         warnings.warn(
             "PolynomialRoots is deprecated: ExclusionPolynomial.roots() returns the one root "
-            "result type of freeladder.roots.result",
+            "result type, RootTable",
             DeprecationWarning,
             stacklevel=2,
         )
-        return RootResult
+        return RootTable
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
