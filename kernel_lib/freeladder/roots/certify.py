@@ -33,7 +33,7 @@ chains, so that long chains could be decided only in arb at a precision growing 
 Here the state is enclosed in a frame that turns with the recurrence (Lohner's method): the
 state is ``c + A e + delta``, a float64 centre, a basis ``A`` carried along by the
 recurrence, a box of coefficients ``e`` and a box ``delta`` collecting the bounded rounding
-errors; every 4 steps ``A`` is re-orthogonalised (Gram-Schmidt) and the boxes are moved into
+errors; every 6 steps ``A`` is re-orthogonalised (Gram-Schmidt) and the boxes are moved into
 the new basis through a proved bound on the inverse of the computed orthogonal factor.  The
 enclosure then grows like the recurrence itself, and the end points at the first distance
 (eight error estimates, at least 64 ulps) are decided for most roots at 10^4 terms.  The
@@ -155,6 +155,7 @@ def _interval_signs(
 _FOLD = 6  # steps between two re-orthogonalisations of the enclosure's basis
 _SLACK = 1.0 + 64.0 * _EPS  # covers the rounding of the operations of each error bound
 _FLOOR = 2.0**-1000  # absolute floor on every error bound (values stay near 1 by rescaling)
+_SUB = 2.0**-1060  # above the absolute rounding error of a result in the subnormal range
 _RESCALE = 2.0**300
 _ROWSPAN = 2.0**-30  # largest ratio of two row scales (large y w only)
 
@@ -242,9 +243,8 @@ def _frame_block(
             for j in range(nl):
                 tj = am[j] * a_mat[old, col, j]
                 mj = mu[j] * a_mat[head, col, j] - tj
-                acc[j] += ((abs(mj) + abs(tj)) * _EPS + ar[j] * abs(a_mat[old, col, j])) * rho[
-                    col, j
-                ]
+                bound = (abs(mj) + abs(tj)) * _EPS + ar[j] * abs(a_mat[old, col, j]) + _SUB
+                acc[j] += bound * rho[col, j]
                 a_mat[old, col, j] = mj
         for j in range(nl):
             d[old, j] = (mu[j] * d[head, j] + (am[j] + ar[j]) * d[old, j] + acc[j] * _SLACK) * (
@@ -312,7 +312,7 @@ def _frame_block(
                         dab[j] += abs(q[i, r, j] * q[i, col, j])
                 for j in range(nl):
                     dot = acc[j] - 1.0 if r == col else acc[j]
-                    bound = abs(dot) + (n + 1) * _EPS * dab[j]
+                    bound = abs(dot) + (n + 1) * _EPS * dab[j] + n * _SUB
                     x[r, j] += bound
                     if col != r:
                         x[col, j] += bound
@@ -336,10 +336,10 @@ def _frame_block(
                         acc[j] += q[i, r, j] * a_mat[i, col, j]
                         dab[j] += abs(q[i, r, j] * a_mat[i, col, j])
                 for j in range(nl):
-                    x[r, j] += (abs(acc[j]) + (n + 1) * _EPS * dab[j]) * rho[col, j]
+                    x[r, j] += (abs(acc[j]) + (n + 1) * _EPS * dab[j] + n * _SUB) * rho[col, j]
             for i in range(n):
                 for j in range(nl):
-                    x[r, j] += abs(q[i, r, j]) * d[i, j] * (1.0 + (n + 1) * _EPS)
+                    x[r, j] += (abs(q[i, r, j]) * d[i, j] + _SUB) * (1.0 + (n + 1) * _EPS)
         for j in range(nl):
             big = 0.0
             for r in range(n):
@@ -349,9 +349,14 @@ def _frame_block(
         for r in range(n):
             for j in range(nl):
                 rho[r, j] = (x[r, j] + top[j]) * _SLACK + _FLOOR
-                d[r, j] = 0.0
                 for col in range(n):
                     a_mat[r, col, j] = q[r, col, j] / scl[r, j]
+        for j in range(nl):  # S^-1 Q is exact unless an entry falls below 2**-1022
+            acc[j] = 0.0
+            for col in range(n):
+                acc[j] += rho[col, j]
+            for r in range(n):
+                d[r, j] = acc[j] * _SUB * _SLACK + _FLOOR
     for j in range(n_pts):
         # P_M in c[head] + (A e)[head] + delta[head]
         rad = 0.0

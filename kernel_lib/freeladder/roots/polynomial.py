@@ -518,8 +518,8 @@ class ExclusionPolynomial:
         --------
         >>> import freeladder as fl
         >>> r = fl.exclusion_polynomial(fl.exclusion_chain(3, reach=1)).roots()  # 1 - 3y + y^2
-        >>> [round(float(v.real), 11) for v in r.values], r.multiplicities
-        ([0.38196601125, 2.61803398875], (1, 1))
+        >>> [round(float(v.real), 11) for v in r.values], r.multiplicities.tolist()
+        ([0.38196601125, 2.61803398875], [1, 1])
         """
         return _certified_roots(self, float(tolerance))
 

@@ -201,7 +201,7 @@ class SpectrumProvenance:
     seconds : float
         Wall-clock time of :func:`free_spectrum`.
     finder : mapping
-        Details reported by the root finder (iterations, evaluations, convergence, ...).
+        Details reported by the root finder (sweeps, evaluations, convergence, ...).
     sector : mapping or None
         On the Jordan-Wigner route (``free_spectrum(m, sector=...)``): the cycle strings, their
         values in this sector, the labels merged, the parity constraints and how the sector was
