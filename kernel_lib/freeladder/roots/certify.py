@@ -629,7 +629,7 @@ def certified_roots(
     imag : sequence of int, Fraction, fmpq, optional
         Imaginary parts of the coefficients (Gaussian rationals); None for real ones.
     tolerance : float, optional
-        Absolute radius the balls are refined to; by default ``2**-precision``.
+        Absolute radius the balls are refined to (at most ``2**-precision`` in any case).
     precision : int
         Starting working precision in bits (at least twice the coefficients' bit size plus
         64 is used).
@@ -695,7 +695,9 @@ def certified_roots(
         raise ValueError(f"the polynomial in {variable} is constant: it has no roots to isolate")
     bits = max(max(int(c.p).bit_length(), int(c.q).bit_length()) for c in (*re_q, *im_q))
     start = max(int(precision), 2 * bits + 64)
-    tol = 2.0 ** -int(precision) if tolerance is None else float(tolerance)
+    tol = 2.0 ** -int(precision)  # balls at least this tight, rounded to float64 afterwards
+    if tolerance is not None:
+        tol = min(tol, float(tolerance))
     pieces: list[tuple[Any, int]]  # (acb_poly-ready coefficients, multiplicity)
     if all(c == 0 for c in im_q):
         pieces = [
