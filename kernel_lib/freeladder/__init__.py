@@ -47,7 +47,7 @@ from .roots.real import (
     chain_real_roots,
     chain_root_count,
 )
-from .roots.result import RootResult
+from .roots.result import RootTable
 from .spectra.answer import SectorRow, SpectrumAnswer
 from .spectra.charges import (
     ChargeStep,
@@ -120,7 +120,7 @@ __all__ = [
     "ChainStructure",
     "ROOT_METHODS",
     "RootMethod",
-    "RootResult",
+    "RootTable",
     "certified_roots",
     "certify_chain_roots",
     "chain_count_below",
@@ -209,3 +209,17 @@ __all__ = [
     "worked_calculation",
 ]
 __version__ = "0.1.0"
+
+
+def __getattr__(name: str) -> object:
+    """``RootResult``: deprecated alias of :class:`RootTable` (one release)."""
+    if name == "RootResult":
+        import warnings
+
+        warnings.warn(
+            "freeladder.RootResult is deprecated: the root result type is now called RootTable",
+            DeprecationWarning,
+            stacklevel=2,
+        )
+        return RootTable
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

@@ -45,7 +45,7 @@ from ..graphs.verdict import Guarantee, classify, guarantee
 from ..roots import methods as root_methods
 from ..roots.polynomial import exclusion_polynomial, sum_rules
 from ..roots.real import chain_inverse_power_sums
-from ..roots.result import BeyondFloatError, RootResult
+from ..roots.result import BeyondFloatError, RootTable
 from .ed import DENSE_LIMIT
 from .majorana import flux_sector, jordan_wigner_spectrum
 
@@ -201,7 +201,7 @@ class SpectrumProvenance:
     seconds : float
         Wall-clock time of :func:`free_spectrum`.
     finder : mapping
-        Details reported by the root finder (iterations, evaluations, convergence, ...).
+        Details reported by the root finder (sweeps, evaluations, convergence, ...).
     sector : mapping or None
         On the Jordan-Wigner route (``free_spectrum(m, sector=...)``): the cycle strings, their
         values in this sector, the labels merged, the parity constraints and how the sector was
@@ -1198,7 +1198,7 @@ def _find_roots(
     ordering: tuple[np.ndarray, np.ndarray] | None,
     method: str,
     lowest: int | None,
-) -> RootResult:
+) -> RootTable:
     """The roots of P by the method the table (:mod:`freeladder.roots.methods`) chooses.
 
     A model that is not one fixed-reach chain but has an ordering (:func:`_ordering`: an
