@@ -10,6 +10,7 @@ from .cache import (
 from .errors import (
     CheckNotApplicable,
     NoTheoremError,
+    NotExpandableError,
     TooLargeError,
 )
 from .frozen import (
@@ -74,6 +75,7 @@ __all__ = [
     "MANN_ELMAN_WOOD_CHAPMAN_2024",
     "MAX_EXPANDED_TERMS",
     "NoTheoremError",
+    "NotExpandableError",
     "PFEUTY_1970",
     "Scalar",
     "TooLargeError",

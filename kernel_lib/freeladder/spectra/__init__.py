@@ -1,5 +1,5 @@
 """Charges, free spectra, Jordan-Wigner sectors, exact diagonalization, thermodynamics,
-edge modes.
+edge modes, edge dynamics.
 """
 
 from .charges import (
@@ -15,6 +15,14 @@ from .ed import (
     SPARSE_LIMIT,
     ExactSpectrum,
     exact_spectrum,
+)
+from .dynamics import (
+    Autocorrelation,
+    EdgeExpansion,
+    TwoPoint,
+    autocorrelation,
+    edge_expansion,
+    two_point,
 )
 from .edge import (
     EdgeMode,
@@ -54,6 +62,12 @@ from .thermo import (
 )
 
 __all__ = [
+    "Autocorrelation",
+    "EdgeExpansion",
+    "TwoPoint",
+    "autocorrelation",
+    "edge_expansion",
+    "two_point",
     "ChargeStep",
     "ChargeTerm",
     "DEFAULT_LIMIT",
