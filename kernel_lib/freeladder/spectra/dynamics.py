@@ -60,6 +60,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
+from numba import njit, prange
 
 from ..algebra.model import Model
 from ..algebra.strings import WeylString
@@ -71,7 +72,6 @@ from ..graphs.graph import chain_structure
 from ..graphs.indifference import indifference_order
 from ..graphs.relations import find_relations
 from ..roots import real as real_roots
-from ..roots.complex import evaluate_chain
 from ..roots.methods import scaled_weights, solve_chain
 from .edge import component_model, components, edge_mode
 
@@ -86,6 +86,7 @@ __all__ = [
 
 _EPS = float(np.finfo(np.float64).eps)
 _CHUNK = 2_000_000  # modes x times per block of the time series
+_TINY = 2.0**-256  # a zero ratio becomes -_TINY (as in roots.real)
 
 
 @dataclass(frozen=True)
@@ -434,33 +435,131 @@ class _Edge:
 
 
 # -- weights ------------------------------------------------------------------------------------
-def _lt_real(
-    w: np.ndarray, back: np.ndarray, n: int, ym: np.ndarray, ye: np.ndarray
+@njit(cache=True, boundscheck=False, error_model="numpy")
+def _prefix_logs(lw, pw, back, ly, py, logp, php):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """``log|P_k(y)|`` and the phase of ``P_k(y)`` for k = -1 .. M-1 (stored at k + 1).
+
+    Through the ratios ``r_k = 1 - s_k``, ``s_k = y w_k / (r_{k-1} ... r_{k-b})`` kept as a
+    logarithm and a unit phase, so nothing over- or underflows; a ratio of modulus below
+    ``2**-256`` becomes ``-2**-256`` (the device of :mod:`freeladder.roots.real`).
+    """
+    m = lw.size
+    ring = 1
+    for k in range(m):
+        ring = max(ring, back[k])
+    lr = np.zeros(ring)
+    ph = np.ones(ring, dtype=pw.dtype)
+    logp[0] = 0.0
+    php[0] = ph[0]
+    for k in range(m):
+        ls = ly + lw[k]
+        ps = py * pw[k]
+        for i in range(1, back[k] + 1):
+            slot = (k - i) % ring
+            ls -= lr[slot]
+            ps = ps / ph[slot]
+        if ls < -40.0:
+            r = 1.0 - ps * np.exp(ls)
+            ar = abs(r)
+            lrk, phk = np.log(ar), r / ar
+        elif ls > 40.0:
+            t = 1.0 - np.exp(-ls) / ps
+            at = abs(t)
+            lrk, phk = ls + np.log(at), -ps * t / at
+        else:
+            r = 1.0 - ps * np.exp(ls)
+            ar = abs(r)
+            if ar < _TINY:
+                r = r * 0.0 - _TINY
+                ar = _TINY
+            lrk, phk = np.log(ar), r / ar
+        lr[k % ring] = lrk
+        ph[k % ring] = phk
+        logp[k + 1] = logp[k] + lrk
+        php[k + 1] = php[k] * phk
+
+
+@njit(cache=True, boundscheck=False, error_model="numpy")
+def _weight_at(lw, pw, back, lw_rev, pw_rev, back_rev, last, ly, py):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """``W = P_{M-2}(y) / (y sum_j w_j P_{L(j)}(y) P_{R(j)}(y))`` (the edge term last).
+
+    ``L(j)`` are the terms before j's first neighbour (a prefix, evaluated from the far end)
+    and ``R(j)`` those after its last neighbour (a suffix, evaluated from the edge end); the
+    sum is ``-P_M'(y)``.
+    """
+    m = lw.size
+    logp = np.empty(m + 1)
+    php = np.empty(m + 1, dtype=pw.dtype)
+    logq = np.empty(m + 1)
+    phq = np.empty(m + 1, dtype=pw.dtype)
+    _prefix_logs(lw, pw, back, ly, py, logp, php)
+    _prefix_logs(lw_rev, pw_rev, back_rev, ly, py, logq, phq)
+    top = -np.inf
+    for j in range(m):
+        v = lw[j] + logp[j - back[j]] + logq[m - 1 - last[j]]
+        top = max(top, v)
+    total = php[0] * 0.0
+    for j in range(m):
+        v = lw[j] + logp[j - back[j]] + logq[m - 1 - last[j]]
+        total += pw[j] * php[j - back[j]] * phq[m - 1 - last[j]] * np.exp(v - top)
+    mag = abs(total)
+    if mag == 0.0:
+        return total * 0.0 + np.inf
+    return php[m - 1] / (py * total / mag) * np.exp(logp[m - 1] - ly - top - np.log(mag))
+
+
+@njit(cache=True, parallel=True)
+def _weights(lw, pw, back, lw_rev, pw_rev, back_rev, last, ly, py, out):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    for j in prange(ly.size):
+        out[j] = _weight_at(lw, pw, back, lw_rev, pw_rev, back_rev, last, ly[j], py[j])
+
+
+def _mode_weights(
+    w: np.ndarray, back: np.ndarray, ly: np.ndarray, py: np.ndarray, rel: np.ndarray
 ) -> tuple[np.ndarray, np.ndarray]:
-    """``Lt = y P_n'/P_n`` and ``d Lt / d ln y`` of the first n terms at ``ym 2**ye``."""
-    if n == 0:
-        return np.zeros(ym.size), np.zeros(ym.size)
-    ch = real_roots._Chain(w[:n], back[:n])
-    xm, xe = real_roots._normal(ym, ye + ch.shift)
-    _, g, h = ch.evaluate(xm, xe, True)
-    return g, g - h
+    """Weights at the roots ``y = exp(ly) py`` (edge term last) and an error estimate.
+
+    The estimate is the change of W when y moves by its relative error (at least
+    ``sqrt(M) eps``: the evaluation is backward stable, so rounding acts like such a move),
+    plus ``sqrt(M) eps |W|``.  A mode localised far from the edge has a weight below that
+    change: it comes out as a number of that size, with that error.
+    """
+    m = w.size
+    lw = np.log(np.abs(w))
+    pw = w / np.abs(w)
+    first = np.arange(m) - back
+    last = np.searchsorted(first, np.arange(m), side="right") - 1
+    args = (
+        np.ascontiguousarray(lw),
+        np.ascontiguousarray(pw),
+        np.ascontiguousarray(back, dtype=np.int64),
+        np.ascontiguousarray(lw[::-1]),
+        np.ascontiguousarray(pw[::-1]),
+        _reverse_back(back),
+        np.ascontiguousarray(last, dtype=np.int64),
+    )
+    dtype = pw.dtype
+    out = np.empty(ly.size, dtype=dtype)
+    moved = np.empty(ly.size, dtype=dtype)
+    step = np.maximum(rel, np.sqrt(m) * _EPS)
+    phases = np.ascontiguousarray(py.astype(dtype))
+    _weights(*args, np.ascontiguousarray(ly), phases, out)
+    _weights(*args, np.ascontiguousarray(ly + np.log1p(step)), phases, moved)
+    errors = np.abs(moved - out) + np.sqrt(m) * _EPS * np.abs(out)
+    return out, errors
 
 
 def _weights_real(e: _Edge) -> tuple[Any, ...]:
     _, w, wl2 = scaled_weights(e.couplings, 2)
     w = np.ascontiguousarray(np.asarray(w, dtype=float))
-    back, m = e.back, w.size
+    back = e.back
     found = real_roots.chain_real_roots(w, back)
     if not found.converged:
         raise ArithmeticError(f"the chain roots did not converge: {found.message}")
-    ym, ye = real_roots._normal(np.asarray(found.values), np.asarray(found.exponents))
-    b = int(back[-1])
-    g1, d1 = _lt_real(w, back, m - 1, ym, ye)
-    g2, d2 = _lt_real(w, back, m - b - 1, ym, ye)
-    weights = 1.0 / (1.0 + g2 - g1)
-    rel_root = np.asarray(found.error_bounds) / np.asarray(found.values)
-    rounding = np.sqrt(m) * _EPS * (1.0 + np.abs(g1) + np.abs(g2) + np.abs(d1) + np.abs(d2))
-    errors = weights**2 * ((np.abs(d1) + np.abs(d2)) * rel_root + rounding)
+    values, exps = np.asarray(found.values), np.asarray(found.exponents)
+    ly = np.log(values) + exps * np.log(2.0)
+    rel = np.asarray(found.error_bounds) / values
+    weights, errors = _mode_weights(w, back, ly, np.ones(ly.size), rel)
     true = dataclasses.replace(found, weight_log2=wl2)
     log_eta, log_err = true.log_quasi_energies(2)
     eta, _ = true.quasi_energies(2, beyond_float="round")
@@ -519,30 +618,15 @@ def _weights_complex(e: _Edge) -> tuple[Any, ...]:
     n = e.model.states
     c = np.asarray(e.couplings, dtype=complex)
     w = c**n
-    back, m = e.back, w.size
+    back = e.back
     found = solve_chain(c, back, n)
     values, bounds = found.true_values()
     x = np.asarray(values, dtype=complex) if found.variable == "x" else 1.0 / values
     rel = np.asarray(bounds) / np.abs(values)
-    b = int(back[-1])
-
-    def lt(k: int, pts: np.ndarray) -> np.ndarray:
-        if k == 0:
-            return np.zeros(pts.size, dtype=complex)
-        deg = real_roots.chain_root_count(k, back[:k])
-        vals = evaluate_chain(pts, w[:k], back[:k], n)
-        return np.asarray(deg - pts * vals.dlog)
-
-    g1, g2 = lt(m - 1, x), lt(m - b - 1, x)
-    weights = 1.0 / (1.0 + g2 - g1)
-    step = np.maximum(rel, 1e3 * _EPS)
-    xs = x * (1 + step)
-    d = np.abs((lt(m - b - 1, xs) - lt(m - 1, xs)) - (g2 - g1)) / step
-    rounding = np.sqrt(m) * _EPS * (1.0 + np.abs(g1) + np.abs(g2) + d)
-    errors = np.abs(weights) ** 2 * (d * rel + rounding)
+    ly = -np.log(np.abs(x))
+    weights, errors = _mode_weights(w, back, ly, np.conj(x) / np.abs(x), rel)
     eta = np.power(x, 1.0 / n)
-    with np.errstate(divide="ignore"):
-        log_eta = np.log(np.abs(x)) / n
+    log_eta = -ly / n
     log_err = rel / n
     zero = _zero_weight(w, back)
     order = np.argsort(log_eta, kind="stable")
