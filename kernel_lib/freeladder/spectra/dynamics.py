@@ -55,6 +55,7 @@ from __future__ import annotations
 
 import dataclasses
 import html
+import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any
@@ -436,88 +437,105 @@ class _Edge:
 
 # -- weights ------------------------------------------------------------------------------------
 @njit(cache=True, boundscheck=False, error_model="numpy")
-def _prefix_logs(lw, pw, back, ly, py, logp, php):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
-    """``log|P_k(y)|`` and the phase of ``P_k(y)`` for k = -1 .. M-1 (stored at k + 1).
-
-    Through the ratios ``r_k = 1 - s_k``, ``s_k = y w_k / (r_{k-1} ... r_{k-b})`` kept as a
-    logarithm and a unit phase, so nothing over- or underflows; a ratio of modulus below
-    ``2**-256`` becomes ``-2**-256`` (the device of :mod:`freeladder.roots.real`).
-    """
-    m = lw.size
-    ring = 1
-    for k in range(m):
-        ring = max(ring, back[k])
-    lr = np.zeros(ring)
-    ph = np.ones(ring, dtype=pw.dtype)
-    logp[0] = 0.0
-    php[0] = ph[0]
-    for k in range(m):
-        ls = ly + lw[k]
-        ps = py * pw[k]
-        for i in range(1, back[k] + 1):
-            slot = (k - i) % ring
-            ls -= lr[slot]
-            ps = ps / ph[slot]
-        if ls < -40.0:
-            r = 1.0 - ps * np.exp(ls)
-            ar = abs(r)
-            lrk, phk = np.log(ar), r / ar
-        elif ls > 40.0:
-            t = 1.0 - np.exp(-ls) / ps
-            at = abs(t)
-            lrk, phk = ls + np.log(at), -ps * t / at
-        else:
-            r = 1.0 - ps * np.exp(ls)
-            ar = abs(r)
-            if ar < _TINY:
-                r = r * 0.0 - _TINY
-                ar = _TINY
-            lrk, phk = np.log(ar), r / ar
-        lr[k % ring] = lrk
-        ph[k % ring] = phk
-        logp[k + 1] = logp[k] + lrk
-        php[k + 1] = php[k] * phk
+def _norm(v):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """``v = m 2**e`` with ``|m|`` in [1/2, 1) (``m = 0, e = 0`` for zero)."""
+    a = abs(v)
+    if a == 0.0:
+        return v, 0
+    e = math.frexp(a)[1]
+    return v * math.ldexp(1.0, -e), e
 
 
 @njit(cache=True, boundscheck=False, error_model="numpy")
-def _weight_at(lw, pw, back, lw_rev, pw_rev, back_rev, last, ly, py):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+def _prefix_values(wm, we, back, ym, ye, pm, pe):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """``P_k(y)`` for k = -1 .. M-1 (stored at k + 1) as mantissas ``pm`` and powers of two
+    ``pe``, through the ratios ``r_k = 1 - s_k``, ``s_k = y w_k / (r_{k-1} ... r_{k-b})``, each
+    a mantissa and an integer exponent: nothing over- or underflows and no precision is lost
+    to large exponents.  A ratio of modulus below ``2**-256`` becomes ``-2**-256`` (the
+    device of :mod:`freeladder.roots.real`).
+    """
+    m = wm.size
+    ring = 1
+    for k in range(m):
+        ring = max(ring, back[k])
+    rm = np.ones(ring, dtype=wm.dtype)
+    re = np.zeros(ring, dtype=np.int64)
+    pm[0] = rm[0]
+    pe[0] = 0
+    for k in range(m):
+        sm = ym * wm[k]
+        se = ye + we[k]
+        for i in range(1, back[k] + 1):
+            slot = (k - i) % ring
+            sm = sm / rm[slot]
+            se -= re[slot]
+        sm, de = _norm(sm)
+        se += de
+        if se > 60:
+            t = 1.0 - math.ldexp(1.0, -se) / sm
+            r, er = _norm(-sm * t)
+            er += se
+        elif se < -60:
+            r, er = _norm(1.0 - sm * math.ldexp(1.0, se))
+        else:
+            v = 1.0 - sm * math.ldexp(1.0, se)
+            if abs(v) < _TINY:
+                v = v * 0.0 - _TINY
+            r, er = _norm(v)
+        rm[k % ring] = r
+        re[k % ring] = er
+        val, dv = _norm(pm[k] * r)
+        pm[k + 1] = val
+        pe[k + 1] = pe[k] + er + dv
+
+
+@njit(cache=True, boundscheck=False, error_model="numpy")
+def _weight_at(wm, we, back, wm_rev, we_rev, back_rev, last, ym, ye):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
     """``W = P_{M-2}(y) / (y sum_j w_j P_{L(j)}(y) P_{R(j)}(y))`` (the edge term last).
 
     ``L(j)`` are the terms before j's first neighbour (a prefix, evaluated from the far end)
     and ``R(j)`` those after its last neighbour (a suffix, evaluated from the edge end); the
     sum is ``-P_M'(y)``.
     """
-    m = lw.size
-    logp = np.empty(m + 1)
-    php = np.empty(m + 1, dtype=pw.dtype)
-    logq = np.empty(m + 1)
-    phq = np.empty(m + 1, dtype=pw.dtype)
-    _prefix_logs(lw, pw, back, ly, py, logp, php)
-    _prefix_logs(lw_rev, pw_rev, back_rev, ly, py, logq, phq)
-    top = -np.inf
+    m = wm.size
+    pm = np.empty(m + 1, dtype=wm.dtype)
+    pe = np.empty(m + 1, dtype=np.int64)
+    qm = np.empty(m + 1, dtype=wm.dtype)
+    qe = np.empty(m + 1, dtype=np.int64)
+    _prefix_values(wm, we, back, ym, ye, pm, pe)
+    _prefix_values(wm_rev, we_rev, back_rev, ym, ye, qm, qe)
+    top = -(2**62)
     for j in range(m):
-        v = lw[j] + logp[j - back[j]] + logq[m - 1 - last[j]]
-        top = max(top, v)
-    total = php[0] * 0.0
+        top = max(top, we[j] + pe[j - back[j]] + qe[m - 1 - last[j]])
+    total = wm[0] * 0.0
     for j in range(m):
-        v = lw[j] + logp[j - back[j]] + logq[m - 1 - last[j]]
-        total += pw[j] * php[j - back[j]] * phq[m - 1 - last[j]] * np.exp(v - top)
-    mag = abs(total)
-    if mag == 0.0:
-        return total * 0.0 + np.inf
-    return php[m - 1] / (py * total / mag) * np.exp(logp[m - 1] - ly - top - np.log(mag))
+        e = we[j] + pe[j - back[j]] + qe[m - 1 - last[j]] - top
+        if e > -1100:
+            total += wm[j] * pm[j - back[j]] * qm[m - 1 - last[j]] * math.ldexp(1.0, e)
+    tm, te = _norm(total)
+    if tm == 0.0:
+        return tm + np.inf
+    ratio, dr = _norm(pm[m - 1] / (ym * tm))
+    e = pe[m - 1] + dr - ye - top - te
+    return ratio * math.ldexp(1.0, max(min(e, 1100), -1100))
 
 
 @njit(cache=True, parallel=True)
-def _weights(lw, pw, back, lw_rev, pw_rev, back_rev, last, ly, py, out):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
-    for j in prange(ly.size):
-        out[j] = _weight_at(lw, pw, back, lw_rev, pw_rev, back_rev, last, ly[j], py[j])
+def _weights(wm, we, back, wm_rev, we_rev, back_rev, last, ym, ye, out):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    for j in prange(ym.size):
+        out[j] = _weight_at(wm, we, back, wm_rev, we_rev, back_rev, last, ym[j], ye[j])
+
+
+def _split(v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Mantissas (modulus in [1/2, 1)) and int64 powers of two of non-zero numbers."""
+    e = np.frexp(np.abs(v))[1].astype(np.int64)
+    return np.ascontiguousarray(v * np.ldexp(1.0, -e)), np.ascontiguousarray(e)
 
 
 def _mode_weights(
-    w: np.ndarray, back: np.ndarray, ly: np.ndarray, py: np.ndarray, rel: np.ndarray
+    w: np.ndarray, back: np.ndarray, ym: np.ndarray, ye: np.ndarray, rel: np.ndarray
 ) -> tuple[np.ndarray, np.ndarray]:
-    """Weights at the roots ``y = exp(ly) py`` (edge term last) and an error estimate.
+    """Weights at the roots ``y = ym 2**ye`` (edge term last) and an error estimate.
 
     The estimate is the change of W when y moves by its relative error (at least
     ``sqrt(M) eps``: the evaluation is backward stable, so rounding acts like such a move),
@@ -525,26 +543,27 @@ def _mode_weights(
     change: it comes out as a number of that size, with that error.
     """
     m = w.size
-    lw = np.log(np.abs(w))
-    pw = w / np.abs(w)
+    wm, we = _split(w)
     first = np.arange(m) - back
     last = np.searchsorted(first, np.arange(m), side="right") - 1
+    wr = np.ascontiguousarray(w[::-1])
+    wm_rev, we_rev = _split(wr)
     args = (
-        np.ascontiguousarray(lw),
-        np.ascontiguousarray(pw),
+        wm,
+        we,
         np.ascontiguousarray(back, dtype=np.int64),
-        np.ascontiguousarray(lw[::-1]),
-        np.ascontiguousarray(pw[::-1]),
+        wm_rev,
+        we_rev,
         _reverse_back(back),
         np.ascontiguousarray(last, dtype=np.int64),
     )
-    dtype = pw.dtype
-    out = np.empty(ly.size, dtype=dtype)
-    moved = np.empty(ly.size, dtype=dtype)
+    ym = np.ascontiguousarray(ym.astype(wm.dtype))
+    ye = np.ascontiguousarray(ye, dtype=np.int64)
+    out = np.empty(ym.size, dtype=wm.dtype)
+    moved = np.empty(ym.size, dtype=wm.dtype)
     step = np.maximum(rel, np.sqrt(m) * _EPS)
-    phases = np.ascontiguousarray(py.astype(dtype))
-    _weights(*args, np.ascontiguousarray(ly), phases, out)
-    _weights(*args, np.ascontiguousarray(ly + np.log1p(step)), phases, moved)
+    _weights(*args, ym, ye, out)
+    _weights(*args, np.ascontiguousarray(ym * (1.0 + step)), ye, moved)
     errors = np.abs(moved - out) + np.sqrt(m) * _EPS * np.abs(out)
     return out, errors
 
@@ -557,9 +576,9 @@ def _weights_real(e: _Edge) -> tuple[Any, ...]:
     if not found.converged:
         raise ArithmeticError(f"the chain roots did not converge: {found.message}")
     values, exps = np.asarray(found.values), np.asarray(found.exponents)
-    ly = np.log(values) + exps * np.log(2.0)
     rel = np.asarray(found.error_bounds) / values
-    weights, errors = _mode_weights(w, back, ly, np.ones(ly.size), rel)
+    ym, ye = _split(values)
+    weights, errors = _mode_weights(w, back, ym, ye + exps, rel)
     true = dataclasses.replace(found, weight_log2=wl2)
     log_eta, log_err = true.log_quasi_energies(2)
     eta, _ = true.quasi_energies(2, beyond_float="round")
@@ -623,10 +642,10 @@ def _weights_complex(e: _Edge) -> tuple[Any, ...]:
     values, bounds = found.true_values()
     x = np.asarray(values, dtype=complex) if found.variable == "x" else 1.0 / values
     rel = np.asarray(bounds) / np.abs(values)
-    ly = -np.log(np.abs(x))
-    weights, errors = _mode_weights(w, back, ly, np.conj(x) / np.abs(x), rel)
+    ym, ye = _split(1.0 / x)
+    weights, errors = _mode_weights(w, back, ym, ye, rel)
     eta = np.power(x, 1.0 / n)
-    log_eta = -ly / n
+    log_eta = np.log(np.abs(x)) / n
     log_err = rel / n
     zero = _zero_weight(w, back)
     order = np.argsort(log_eta, kind="stable")
