@@ -84,7 +84,9 @@ CASES = [
     # variable reach, ends j + p_j non-decreasing (Mann-Elman-Wood-Chapman 2024), 9 sites
     (
         "variable",
-        fl.exclusion_chain(7, reach=[2, 2, 3, 2, 2, 1, 1], couplings=[0.8, 1.2, 0.5, 1.4, 1, 0.6, 1.1]),
+        fl.exclusion_chain(
+            7, reach=[2, 2, 3, 2, 2, 1, 1], couplings=[0.8, 1.2, 0.5, 1.4, 1, 0.6, 1.1]
+        ),
     ),
 ]
 
@@ -112,9 +114,7 @@ def test_z3_chains_against_dense_expm() -> None:
     times = np.array([0.0, 0.4, 1.1, 2.0])
     for m in (
         fl.clock_chain(4, field=0.6, bond=1.0, states=3),
-        fl.exclusion_chain(
-            4, reach=1, states=3, couplings=list(fl.complex_couplings(4, seed=5))
-        ),
+        fl.exclusion_chain(4, reach=1, states=3, couplings=list(fl.complex_couplings(4, seed=5))),
         fl.exclusion_chain(4, reach=2, states=3, couplings=[0.9, 0.5, 1.3, 0.7]),
     ):
         a = fl.autocorrelation(m, times)
@@ -198,9 +198,7 @@ def test_ising_plateau_exact_zero_mode() -> None:
     1 - r^2 (Kemp et al. 2017, from memory); checked against exact evolution at 6 sites."""
     r = 0.5
     for sites in (6, 40, 400):
-        terms = " + ".join(
-            f"{r} X{i} + Z{i} Z{i + 1}" for i in range(sites - 1)
-        )
+        terms = " + ".join(f"{r} X{i} + Z{i} Z{i + 1}" for i in range(sites - 1))
         m = fl.parse_model(terms)
         a = fl.autocorrelation(m, np.linspace(0, 200, 5))
         assert a.plateau == pytest.approx(1 / np.sum(r ** (2 * np.arange(sites))), rel=1e-12)

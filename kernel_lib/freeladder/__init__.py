@@ -22,7 +22,7 @@ from .algebra.operators import StringSum
 from .algebra.strings import StringArray, WeylString, make_string, pauli
 from .algebra.syntax import ModelSyntaxError, parse_model
 from .analysis import Analysis, analyze
-from .base.errors import NoTheoremError, NotExpandableError
+from .base.errors import NotExpandableError, NoTheoremError
 from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .checks.verification import Check, Report, verify
 from .graphs.directed import DirectedFrustrationGraph, directed_frustration_graph
@@ -56,7 +56,6 @@ from .spectra.charges import (
     charge_series,
     transfer_matrix,
 )
-from .spectra.ed import ExactSpectrum, exact_spectrum
 from .spectra.dynamics import (
     Autocorrelation,
     EdgeExpansion,
@@ -65,6 +64,7 @@ from .spectra.dynamics import (
     edge_expansion,
     two_point,
 )
+from .spectra.ed import ExactSpectrum, exact_spectrum
 from .spectra.edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
 from .spectra.majorana import (
     FluxSector,

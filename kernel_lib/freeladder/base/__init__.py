@@ -9,8 +9,8 @@ from .cache import (
 )
 from .errors import (
     CheckNotApplicable,
-    NoTheoremError,
     NotExpandableError,
+    NoTheoremError,
     TooLargeError,
 )
 from .frozen import (

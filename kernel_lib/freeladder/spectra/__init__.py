@@ -10,12 +10,6 @@ from .charges import (
     charge_series,
     transfer_matrix,
 )
-from .ed import (
-    DENSE_LIMIT,
-    SPARSE_LIMIT,
-    ExactSpectrum,
-    exact_spectrum,
-)
 from .dynamics import (
     Autocorrelation,
     EdgeExpansion,
@@ -23,6 +17,12 @@ from .dynamics import (
     autocorrelation,
     edge_expansion,
     two_point,
+)
+from .ed import (
+    DENSE_LIMIT,
+    SPARSE_LIMIT,
+    ExactSpectrum,
+    exact_spectrum,
 )
 from .edge import (
     EdgeMode,

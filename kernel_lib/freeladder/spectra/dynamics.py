@@ -11,7 +11,8 @@ over the hidden modes,
 with weights read off the polynomial alone.  With ``P = P_G`` the exclusion polynomial and
 ``P_a = P_{G - a}`` the polynomial of the model without the term ``g_a``,
 
-    sum_n Tr[chi^dagger L^n chi] / dim * z^(-n-1) = (1/z) P_a(y) / P(y),   y = (1 - omega^m)^N / z^N,
+    sum_n Tr[chi^dagger L^n chi] / dim * z^(-n-1) = (1/z) P_a(y) / P(y),
+    y = (1 - omega^m)^N / z^N,
 
 (``L = [H, .]``), so that
 
@@ -25,22 +26,30 @@ matrix with off-diagonals ``c_j`` (the Majorana chain), counted once for ``+eta`
 Where the formula comes from.  The modes ``Psi_{+-k} = N_k^{-1} T(-+u_k) chi T(+-u_k)``
 (P. Fendley, J. Phys. A 52, 335002 (2019)) raise and lower the energy by ``2 eta_k``, so
 ``chi(t)`` is a sum of terms ``exp(+-2 i eta_k t)``; their weights follow from the moments
-``Tr[chi L^n chi] / dim``: a word in the terms has non-zero trace only when it is a multiple of
-the identity, which for independent strings means every term an N-multiple of times, and the
-sum over such walks started at ``g_a`` is the ratio of independence polynomials above (the
-first two moments, ``c_a^N`` and ``c_a^N (c_a^N + sum_{b ~ a} c_b^N)``, are derived in the
-tests; the whole identity was checked against exact evolution for reach 1, 2, 3, variable reach
-and N = 2, 3, 4 with real and complex couplings: ``tests/test_dynamics.py``).  It is derived
-here, not quoted: the N > 2 form is TESTED, not proved.
+``Tr[chi^dagger L^n chi] / dim``: a word in the terms has non-zero trace only when it is a
+multiple of the identity, which for independent strings (no relations, :func:`find_relations`)
+means every term an N-multiple of times, and the sum over such walks started at ``g_a`` is the
+ratio of independence polynomials above.  Its first two coefficients, ``c_a^N`` and
+``c_a^N (c_a^N + sum_{b ~ a} c_b^N)``, follow from counting the walks by hand; they and the
+total weight are the sum rules every result reports (``EdgeExpansion.sum_rules``).  The whole
+identity is derived here, not quoted, and was checked against exact evolution for reach 1, 2,
+variable reach and N = 2, 3 with real and complex couplings (``tests/test_dynamics.py``): for
+N > 2 it is TESTED, not proved.
 
-Evaluation (no operators are built).  The chain is oriented so that ``g_a`` comes last; then
-``P_a = P_{M-1}`` along the recurrence and, at a root of ``P_M``,
+Evaluation (no operators are built).  The chain is oriented so that ``g_a`` comes last
+(position M - 1); the roots come from :func:`freeladder.roots.real.chain_real_roots` (real
+weights, any exponent range) or :func:`freeladder.roots.methods.solve_chain` (complex), and
 
-    W_k = 1 / (1 + Lt_{M-b-1}(y_k) - Lt_{M-1}(y_k)),     Lt_j = y P_j' / P_j,
+    W_k = P_{M-2}(y_k) / (y_k S(y_k)),     S(y) = -P'(y) = sum_j w_j P_{L(j)}(y) P_{R(j)}(y),
 
-(b the back-reach of the last term), each ``Lt`` one O(M) pass per root on the recurrence of
-:mod:`freeladder.roots.real` (extended exponent range: the edge mode of an ordered chain has
-``y`` far beyond 1e308) or :func:`freeladder.roots.complex.evaluate_chain` (complex weights).
+where ``L(j)`` are the terms before j's first neighbour and ``R(j)`` those after its last one
+(every independent set that holds j splits so; ``y d/dy`` counts the weights).  The prefixes
+``P_{L(j)}`` run from the far end, the suffixes ``P_{R(j)}`` from the edge end, as mantissas
+with powers of two, O(M) per root.  The simpler ``1 / (1 + Lt_{M-b-2} - Lt_{M-2})`` (``Lt =
+y P'/P`` of prefixes) gives O(1) nonsense for modes localised far from the edge (the prefix has
+a root closer to y_k than y_k's rounding), while here such a weight comes out at the size of its
+error.  Error estimate per weight: the change of ``W`` when ``y_k`` moves by its relative error
+(at least ``sqrt(M) eps``) plus ``sqrt(M) eps |W|``.
 
 References
 ----------
@@ -88,6 +97,9 @@ __all__ = [
 _EPS = float(np.finfo(np.float64).eps)
 _CHUNK = 2_000_000  # modes x times per block of the time series
 _TINY = 2.0**-256  # a zero ratio becomes -_TINY (as in roots.real)
+_S_MAX = 2.0**1000  # the float64 ratio loop gives up beyond this
+_P_HI = 2.0**500  # prefix mantissas are renormalised outside [_P_LO, _P_HI]
+_P_LO = 2.0**-500
 
 
 @dataclass(frozen=True)
@@ -490,6 +502,47 @@ def _prefix_values(wm, we, back, ym, ye, pm, pe):  # type: ignore[no-untyped-def
 
 
 @njit(cache=True, boundscheck=False, error_model="numpy")
+def _prefix_fast(wm, we, back, ym, ye, pm, pe):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """:func:`_prefix_values` with plain float64 ratios (y and every ``s_k`` in range).
+
+    Returns False when some ``|s_k|`` left ``[0, 2**1000]`` or was not finite (then the caller
+    uses :func:`_prefix_values`); prefix values keep a mantissa and a power of two,
+    renormalised only when the mantissa leaves ``[2**-500, 2**500]``.
+    """
+    m = wm.size
+    ring = 1
+    for k in range(m):
+        ring = max(ring, back[k])
+    inv = np.ones(ring, dtype=wm.dtype)
+    y = ym * math.ldexp(1.0, ye)
+    wy = np.empty(m, dtype=wm.dtype)
+    for k in range(m):
+        wy[k] = y * wm[k] * math.ldexp(1.0, we[k])
+    cur = inv[0]
+    ce = 0
+    pm[0] = cur
+    pe[0] = 0
+    for k in range(m):
+        sk = wy[k]
+        for i in range(1, back[k] + 1):
+            sk = sk * inv[(k - i) % ring]
+        if not abs(sk) <= _S_MAX:
+            return False
+        r = 1.0 - sk
+        if abs(r) < _TINY:
+            r = r * 0.0 - _TINY
+        inv[k % ring] = 1.0 / r
+        cur = cur * r
+        a = abs(cur)
+        if a > _P_HI or a < _P_LO:
+            cur, d = _norm(cur)
+            ce += d
+        pm[k + 1] = cur
+        pe[k + 1] = ce
+    return True
+
+
+@njit(cache=True, boundscheck=False, error_model="numpy")
 def _weight_at(wm, we, back, wm_rev, we_rev, back_rev, last, ym, ye):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
     """``W = P_{M-2}(y) / (y sum_j w_j P_{L(j)}(y) P_{R(j)}(y))`` (the edge term last).
 
@@ -502,16 +555,23 @@ def _weight_at(wm, we, back, wm_rev, we_rev, back_rev, last, ym, ye):  # type: i
     pe = np.empty(m + 1, dtype=np.int64)
     qm = np.empty(m + 1, dtype=wm.dtype)
     qe = np.empty(m + 1, dtype=np.int64)
-    _prefix_values(wm, we, back, ym, ye, pm, pe)
-    _prefix_values(wm_rev, we_rev, back_rev, ym, ye, qm, qe)
+    if not (abs(ye) < 900 and _prefix_fast(wm, we, back, ym, ye, pm, pe)):
+        _prefix_values(wm, we, back, ym, ye, pm, pe)
+    if not (abs(ye) < 900 and _prefix_fast(wm_rev, we_rev, back_rev, ym, ye, qm, qe)):
+        _prefix_values(wm_rev, we_rev, back_rev, ym, ye, qm, qe)
     top = -(2**62)
     for j in range(m):
         top = max(top, we[j] + pe[j - back[j]] + qe[m - 1 - last[j]])
     total = wm[0] * 0.0
+    e_now = 0
+    scale = 1.0
     for j in range(m):
         e = we[j] + pe[j - back[j]] + qe[m - 1 - last[j]] - top
         if e > -1100:
-            total += wm[j] * pm[j - back[j]] * qm[m - 1 - last[j]] * math.ldexp(1.0, e)
+            if e != e_now:
+                e_now = e
+                scale = math.ldexp(1.0, e)
+            total += wm[j] * pm[j - back[j]] * qm[m - 1 - last[j]] * scale
     tm, te = _norm(total)
     if tm == 0.0:
         return tm + np.inf
