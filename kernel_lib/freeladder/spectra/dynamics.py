@@ -628,8 +628,18 @@ def _mode_weights(
     return out, errors
 
 
+def _common_phase(c: np.ndarray, n: int) -> float | None:
+    """The angle theta when every weight ``c_j^N`` is ``|c_j|^N exp(i theta)``, else None."""
+    angles = np.angle(np.asarray(c, dtype=complex) ** n)
+    turn = np.angle(np.exp(1j * (angles - angles[0])))
+    return float(angles[0]) if np.all(np.abs(turn) < 1e-13) else None
+
+
 def _weights_real(e: _Edge) -> tuple[Any, ...]:
-    _, w, wl2 = scaled_weights(e.couplings, 2)
+    """The real-root path: weights ``|c_j|^N`` (all of one phase theta; then
+    ``P(y) = P_|w|(exp(i theta) y)`` and the weights ``W_k`` are those of the moduli)."""
+    n = e.model.states
+    _, w, wl2 = scaled_weights(np.abs(np.asarray(e.couplings, dtype=complex)), n)
     w = np.ascontiguousarray(np.asarray(w, dtype=float))
     back = e.back
     found = real_roots.chain_real_roots(w, back)
@@ -640,8 +650,8 @@ def _weights_real(e: _Edge) -> tuple[Any, ...]:
     ym, ye = _split(values)
     weights, errors = _mode_weights(w, back, ym, ye + exps, rel)
     true = dataclasses.replace(found, weight_log2=wl2)
-    log_eta, log_err = true.log_quasi_energies(2)
-    eta, _ = true.quasi_energies(2, beyond_float="round")
+    log_eta, log_err = true.log_quasi_energies(n)
+    eta, _ = true.quasi_energies(n, beyond_float="round")
     zero = _zero_weight(w, back).real
     order = np.argsort(log_eta, kind="stable")
     return (
@@ -764,9 +774,14 @@ def edge_expansion(m: Model, operator: str | WeylString | None = None) -> EdgeEx
     e = _Edge(m, operator)
     n = m.states
     real = n == 2 and not np.iscomplexobj(e.couplings)
+    theta = 0.0 if real else _common_phase(e.couplings, n)
     eta, log_eta, log_err, weights, errors, zero, method = (
-        _weights_real(e) if real else _weights_complex(e)
+        _weights_complex(e) if theta is None else _weights_real(e)
     )
+    if not real and theta is not None:  # one phase: eta^N = exp(i theta) / y of the moduli
+        eta = np.asarray(eta, dtype=float) * np.exp(1j * theta / n)
+        weights = np.asarray(weights, dtype=complex)
+        method += f"; every weight c^N has the phase {theta:.6g} rad, taken out exactly"
     zero = float(np.real(zero)) if real else complex(zero)
     omega = np.exp(2j * np.pi * np.arange(n) / n)
     lead = 1 - np.exp(2j * np.pi * e.exponent / n)
