@@ -258,6 +258,20 @@ def test_two_point_partner_against_dense_expm() -> None:
     assert np.all(np.abs(got.values - exact) <= 1e-8 * np.maximum(1, np.abs(exact)) + got.errors)
 
 
+def test_two_point_edge_term_reach1_against_dense_expm() -> None:
+    """The boundary term g_a = i gamma_0 gamma_1 on reach-1 chains through Wick's theorem at
+    infinite temperature (common practice for free Majoranas), against dense expm."""
+    times = np.array([0.0, 0.5, 1.7, 4.0])
+    m = fl.ising_chain(6, field=0.7, bond=1.0)
+    chain = fl.exclusion_chain(7, reach=1, couplings=[0.7, 1.3, 0.4, 1.1, 0.9, 1.6, 0.5])
+    for model, a, b in ((m, "X0", "X0"), (m, "2 X0", "-X0"), (chain, "X0 Z1", "X0 Z1")):
+        got = fl.two_point(model, a, b, times)
+        exact = exact_trace(model, a, b, times)
+        assert np.max(np.abs(got.values - exact)) < 1e-11 + got.errors.max(), (a, b)
+    with pytest.raises(NotExpandableError, match="reach-1"):
+        fl.two_point(fl.exclusion_chain(6, reach=2), "X0 Z1 Z2", "X0 Z1 Z2", times)
+
+
 def test_refusals_say_why() -> None:
     m = fl.ising_chain(6, field=0.7, bond=1.0)
     with pytest.raises(NotExpandableError, match="not expandable"):

@@ -966,7 +966,11 @@ def two_point(
       ``sum p_f f / (c_a (1 - omega^m)) exp(i f t)`` (any N);
     * ``Tr[(g_a chi)^dagger chi(t)]`` and ``Tr[(g_a chi)^dagger (g_a chi)(t)]``: for Hermitian
       models (N = 2, real couplings) ``L`` is self-adjoint for the trace inner product, so they
-      are the first and second moments ``sum p_f f^k / (2 c_a)^k exp(i f t)``.
+      are the first and second moments ``sum p_f f^k / (2 c_a)^k exp(i f t)``;
+    * ``Tr[g_a^dagger g_a(t)]``, the boundary term itself, on reach-1 chains (N = 2, real
+      couplings): ``g_a = i gamma_0 gamma_1`` with the Majoranas ``gamma_0 = chi`` and
+      ``gamma_1 = i g_a chi``, so Wick's theorem at infinite temperature gives
+      ``C_00 C_11 - C_01 C_10`` from the three above (common practice for free Majoranas).
 
     Parameters
     ----------
@@ -983,8 +987,8 @@ def two_point(
     ------
     NotExpandableError
         For any other operator (the message names it and what is expandable), for
-        ``(g_a chi)^dagger`` on a non-Hermitian model, and whenever :func:`edge_expansion`
-        refuses.
+        ``(g_a chi)^dagger`` or ``g_a`` on a non-Hermitian model, ``g_a`` on reach p >= 2 or
+        paired with another operator, and whenever :func:`edge_expansion` refuses.
 
     References
     ----------
@@ -997,7 +1001,7 @@ def two_point(
     sb, cb = _as_string(m, b, "b")
     chi = edge.chi
     partner = m.strings[edge.term] * chi
-    family = {0: chi, 1: partner}
+    family = {0: chi, 1: partner, 2: m.strings[edge.term]}
 
     def locate(s: WeylString, coef: complex, name: str) -> tuple[int, complex]:
         for k, base in family.items():
@@ -1005,8 +1009,9 @@ def two_point(
             if q.is_identity_up_to_phase:
                 return k, coef * complex(np.exp(1j * np.pi * q.phase / m.states))
         raise NotExpandableError(
-            f"{name} = {s} is not expandable here: two_point covers the edge operator {chi} "
-            f"and its partner g_a chi = {partner.normalized()[0]} (term {edge.term} times chi)"
+            f"{name} = {s} is not expandable here: two_point covers the edge operator {chi}, "
+            f"its partner g_a chi = {partner.normalized()[0]} (term {edge.term} times chi) and, "
+            f"on reach-1 chains, the edge term g_a = {family[2]} itself"
         )
 
     ka, alpha = locate(sa, ca, "a")
@@ -1014,10 +1019,45 @@ def two_point(
     e = edge_expansion(m, chi)
     cpl = complex(m.coupling_array()[edge.term])
     lead = cpl * (1 - np.exp(2j * np.pi * edge.exponent / m.states))
-    if ka == 1 and not e.hermitian:
+    if (ka == 1 or ka == 2 or kb == 2) and not e.hermitian:
         raise NotExpandableError(
-            f"a = {sa} (the partner g_a chi) on the left needs a Hermitian model (N = 2, real "
-            "couplings), where [H, .] is self-adjoint for the trace; this model is not"
+            f"a = {sa}, b = {sb}: the partner g_a chi on the left, and the edge term, need a "
+            "Hermitian model (N = 2, real couplings), where [H, .] is self-adjoint for the "
+            "trace; this model is not"
+        )
+    if 2 in (ka, kb):
+        if ka != kb:
+            raise NotExpandableError(
+                f"Tr[a^dagger b(t)] of the edge term with {sa if kb == 2 else sb} vanishes by "
+                "fermion parity and is not computed; pair the edge term with itself"
+            )
+        if int(np.max(edge.back)) > 1:
+            raise NotExpandableError(
+                f"the edge term {family[2]} is a bilinear of Majoranas on reach-1 chains only "
+                "(Wick's theorem at infinite temperature); on reach p >= 2 its expansion in the "
+                "hidden modes is not built"
+            )
+        # g_a = i gamma_0 gamma_1 with gamma_0 = chi and gamma_1 = i g_a chi; Wick's theorem at
+        # infinite temperature: Tr[g_a^dagger g_a(t)] / dim = C_00 C_11 - C_10 C_01
+        c00, d00 = _series(e, t, 0, 1.0)
+        c11, d11 = _series(e, t, 2, lead)
+        c01, d01 = _series(e, t, 1, lead)  # Tr[chi^dagger B(t)] = Tr[B^dagger chi(t)] here
+        values = c00 * c11 - c01 * c01
+        errors = d00 * np.abs(c11) + d11 * np.abs(c00) + 2 * d01 * np.abs(c01)
+        factor = complex(np.conj(alpha) * beta)
+        values = values.real * factor.real if factor.imag == 0 else values * factor
+        formula = (
+            "C_00 C_11 - C_01 C_10 (Wick's theorem for g_a = i gamma_0 gamma_1, gamma_0 = chi, "
+            "gamma_1 = i g_a chi; reach 1)"
+        )
+        return TwoPoint(
+            left=str(sa),
+            right=str(sb),
+            times=t,
+            values=values,
+            errors=errors * abs(factor),
+            formula=formula,
+            expansion=e,
         )
     power = ka + kb
     # ka = 1 needs a Hermitian model, where lead = 2 c_a is real and [H, .] self-adjoint:
