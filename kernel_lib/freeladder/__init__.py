@@ -48,6 +48,7 @@ from .roots.real import (
     chain_root_count,
 )
 from .roots.result import RootResult
+from .spectra.answer import SectorRow, SpectrumAnswer
 from .spectra.charges import (
     ChargeStep,
     ChargeTerm,
@@ -112,7 +113,9 @@ __all__ = [
     "dipath_switching",
     "directed_frustration_graph",
     "FluxSector",
+    "SectorRow",
     "SectorSpectrum",
+    "SpectrumAnswer",
     "SectorStructure",
     "flux_sector",
     "flux_theorem_values",

@@ -3,9 +3,10 @@ references, scalars.
 """
 
 from .cache import (
-    cached,
-    model_store,
-    structure_store,
+    Part,
+    Store,
+    part,
+    store_of,
 )
 from .errors import (
     CheckNotApplicable,
@@ -60,6 +61,10 @@ from .scalars import (
 )
 
 __all__ = [
+    "Part",
+    "Store",
+    "part",
+    "store_of",
     "ALCARAZ_PIMENTA_2020",
     "BAXTER_1989",
     "CHAPMAN_ELMAN_MANN_2023",
@@ -80,7 +85,6 @@ __all__ = [
     "Scalar",
     "TooLargeError",
     "as_complex",
-    "cached",
     "check_scalar",
     "exact_to_sympy",
     "exact_value",
@@ -92,11 +96,9 @@ __all__ = [
     "is_number_text",
     "is_symbolic",
     "json_ready",
-    "model_store",
     "readonly_array",
     "readonly_mapping",
     "readonly_sparse",
-    "structure_store",
     "substitute",
     "substitution_map",
     "to_fmpq",

@@ -84,8 +84,8 @@ from typing import Any, NamedTuple
 
 import flint
 import numpy as np
-from numba import njit, prange
 
+from ..base.lazy import njit, prange
 from .real import chain_back, chain_root_count
 from .result import RootResult
 

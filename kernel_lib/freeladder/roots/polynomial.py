@@ -36,20 +36,24 @@ import threading
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Any, NamedTuple
+from typing import TYPE_CHECKING, Any, NamedTuple
 
 import flint
 import numpy as np
-import sympy
 
 from ..algebra.model import Model
-from ..base.cache import model_store, structure_store
+from ..base.cache import part
 from ..base.errors import TooLargeError
 from ..base.frozen import readonly_array
 from ..base.jsonready import json_ready
 from ..base.scalars import exact_to_sympy, exact_value, to_fmpq, to_python_number, to_sympy
-from ..graphs.graph import chain_structure, frustration_adjacency
+from ..graphs.graph import ADJACENCY, chain_structure
 from ..graphs.independent import Algebra, IndependenceGraph
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "MAX_ROOT_DEGREE",
@@ -64,7 +68,6 @@ __all__ = [
     "sum_rules",
 ]
 
-_CACHE_KEY = "_freeladder_polynomial"
 _BIG = 2.0**256
 _SMALL = 2.0**-256
 
@@ -460,7 +463,12 @@ class ExclusionPolynomial:
             raise ValueError(f"the order of a partial polynomial must be >= 0, got {s}")
         if s >= self.degree:
             return self
-        head = self._exact_sums[: s + 1]
+        chain = self._chain
+        if self._sums is None and chain is not None and s <= _SHORT_HEAD:
+            # the first orders of a long chain, without expanding the whole polynomial
+            head = _chain_head(_Ring(self.kind), chain[0], chain[1], s)
+        else:
+            head = self._exact_sums[: s + 1]
         while len(head) > 1 and head[-1] == 0:
             head = head[:-1]
         return ExclusionPolynomial(
@@ -1111,6 +1119,36 @@ def _chain_sums(ring: _Ring, weights: Sequence[Any], reach: int) -> list[Any]:
     return ring.exact_coefficients(window[0])
 
 
+_SHORT_HEAD = 16
+"""Partial polynomials up to this order of a chain run a truncated recurrence."""
+
+
+def _chain_head(ring: _Ring, weights: Sequence[Any], reach: int, order: int) -> list[Any]:
+    """``C_0 .. C_order`` of a chain: the recurrence of :func:`_chain_sums` modulo x^(order+1).
+
+    O(M order) exact operations instead of O(M S) for the whole polynomial.
+    """
+    if weights and all(w == weights[0] for w in weights):
+        return _chain_sums(ring, weights, reach)[: order + 1]
+    one = ring.constant(1)
+    window = [one] * (reach + 1)
+    for wk in weights:
+        new = _cut(window[0] + ring.monomial(wk) * window[reach], order)
+        window = [new, *window[:reach]]
+    return ring.exact_coefficients(window[0])
+
+
+def _cut(poly: Any, order: int) -> Any:
+    """``poly`` without its terms above x^order (any of the ring's polynomial types)."""
+    if isinstance(poly, _GaussPoly):
+        return _GaussPoly(_cut(poly.re, order), _cut(poly.im, order))
+    if isinstance(poly, _SymPoly):
+        return _SymPoly(poly.c[: order + 1])
+    if poly.degree() > order:
+        return type(poly)(poly.coeffs()[: order + 1])
+    return poly
+
+
 def _times(a: Any, b: Any) -> Any:
     """Exact product of two values of :func:`_exact` (Gaussian rationals are pairs)."""
     if isinstance(a, tuple) or isinstance(b, tuple):
@@ -1153,13 +1191,14 @@ def independence_graph(m: Model) -> IndependenceGraph:
     Chains use their chain order (every subproblem is then a suffix of the chain); other
     graphs the reverse Cuthill-McKee order.
     """
-    store = structure_store(m.strings)
-    key = _CACHE_KEY + "_graph"
-    if key not in store:
-        chain = chain_structure(m) if len(m) else None
-        order = None if chain is None else chain.order
-        store[key] = IndependenceGraph(frustration_adjacency(m), order)
-    return store[key]  # type: ignore[no-any-return]
+    return _INDEPENDENCE(m)
+
+
+@part("independence graph", "strings")
+def _INDEPENDENCE(m: Model) -> IndependenceGraph:
+    chain = chain_structure(m) if len(m) else None
+    order = None if chain is None else chain.order
+    return IndependenceGraph(ADJACENCY(m), order)
 
 
 def exclusion_polynomial(m: Model) -> ExclusionPolynomial:
@@ -1203,13 +1242,12 @@ def exclusion_polynomial(m: Model) -> ExclusionPolynomial:
     """
     if not isinstance(m, Model):
         raise TypeError(f"expected a freeladder Model, got {type(m).__name__}")
-    store = model_store(m)
-    if _CACHE_KEY not in store:
-        store[_CACHE_KEY] = _build(m)
-    return store[_CACHE_KEY]  # type: ignore[no-any-return]
+    return POLYNOMIAL(m)
 
 
-def _build(m: Model) -> ExclusionPolynomial:
+@part("polynomial", "couplings")
+def POLYNOMIAL(m: Model) -> ExclusionPolynomial:
+    """The part behind :func:`exclusion_polynomial`."""
     n = m.states
     weights: list[Any] = []
     for j, c in enumerate(m.couplings):

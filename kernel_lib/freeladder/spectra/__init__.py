@@ -2,6 +2,10 @@
 edge modes, edge dynamics.
 """
 
+from .answer import (
+    SectorRow,
+    SpectrumAnswer,
+)
 from .charges import (
     DEFAULT_LIMIT,
     ChargeStep,
@@ -68,6 +72,8 @@ __all__ = [
     "autocorrelation",
     "edge_expansion",
     "two_point",
+    "SectorRow",
+    "SpectrumAnswer",
     "ChargeStep",
     "ChargeTerm",
     "DEFAULT_LIMIT",

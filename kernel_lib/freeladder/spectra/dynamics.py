@@ -70,7 +70,6 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-from numba import njit, prange
 
 from ..algebra.model import Model
 from ..algebra.strings import WeylString
@@ -78,6 +77,7 @@ from ..algebra.syntax import parse_model
 from ..base.errors import NotExpandableError
 from ..base.frozen import readonly_array, readonly_mapping
 from ..base.jsonready import json_ready
+from ..base.lazy import njit, prange
 from ..graphs.graph import chain_structure
 from ..graphs.indifference import indifference_order
 from ..graphs.relations import find_relations
