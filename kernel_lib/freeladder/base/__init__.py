@@ -10,6 +10,7 @@ from .cache import (
 )
 from .errors import (
     CheckNotApplicable,
+    NotExpandableError,
     NoTheoremError,
     TooLargeError,
 )
@@ -79,6 +80,7 @@ __all__ = [
     "MANN_ELMAN_WOOD_CHAPMAN_2024",
     "MAX_EXPANDED_TERMS",
     "NoTheoremError",
+    "NotExpandableError",
     "PFEUTY_1970",
     "Scalar",
     "TooLargeError",

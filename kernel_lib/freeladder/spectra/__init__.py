@@ -1,5 +1,5 @@
 """Charges, free spectra, Jordan-Wigner sectors, exact diagonalization, thermodynamics,
-edge modes.
+edge modes, edge dynamics.
 """
 
 from .answer import (
@@ -13,6 +13,14 @@ from .charges import (
     charge,
     charge_series,
     transfer_matrix,
+)
+from .dynamics import (
+    Autocorrelation,
+    EdgeExpansion,
+    TwoPoint,
+    autocorrelation,
+    edge_expansion,
+    two_point,
 )
 from .ed import (
     DENSE_LIMIT,
@@ -58,6 +66,12 @@ from .thermo import (
 )
 
 __all__ = [
+    "Autocorrelation",
+    "EdgeExpansion",
+    "TwoPoint",
+    "autocorrelation",
+    "edge_expansion",
+    "two_point",
     "SectorRow",
     "SpectrumAnswer",
     "ChargeStep",
