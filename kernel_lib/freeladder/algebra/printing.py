@@ -20,12 +20,15 @@ import cmath
 import math
 from collections.abc import Sequence
 from fractions import Fraction
-from typing import Any
-
-import sympy
+from typing import TYPE_CHECKING, Any
 
 from ..base.display import number_latex, number_text, phase_fold, phase_latex, phase_text
 from .strings import WeylString
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "NOT_FINITE_NAMES",

@@ -3,9 +3,10 @@ in text, HTML and LaTeX, and the renderings of results), HTML tables, references
 """
 
 from .cache import (
-    cached,
-    model_store,
-    structure_store,
+    Part,
+    Store,
+    part,
+    store_of,
 )
 from .display import (
     DIGITS,
@@ -18,6 +19,7 @@ from .display import (
 )
 from .errors import (
     CheckNotApplicable,
+    NotExpandableError,
     NoTheoremError,
     TooLargeError,
 )
@@ -68,6 +70,10 @@ from .scalars import (
 )
 
 __all__ = [
+    "Part",
+    "Store",
+    "part",
+    "store_of",
     "ALCARAZ_PIMENTA_2020",
     "BAXTER_1989",
     "CHAPMAN_ELMAN_MANN_2023",
@@ -84,12 +90,12 @@ __all__ = [
     "MANN_ELMAN_WOOD_CHAPMAN_2024",
     "MAX_EXPANDED_TERMS",
     "NoTheoremError",
+    "NotExpandableError",
     "PFEUTY_1970",
     "Scalar",
     "TooLargeError",
     "as_complex",
     "bound_text",
-    "cached",
     "check_scalar",
     "digits_for",
     "exact_to_sympy",
@@ -102,14 +108,12 @@ __all__ = [
     "is_number_text",
     "is_symbolic",
     "json_ready",
-    "model_store",
     "number_html",
     "number_latex",
     "number_text",
     "readonly_array",
     "readonly_mapping",
     "readonly_sparse",
-    "structure_store",
     "substitute",
     "substitution_map",
     "tex_escape",
