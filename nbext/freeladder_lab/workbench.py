@@ -58,7 +58,8 @@ class _Derived:
 
 
 def _derive(a: fl.Analysis, unproven: bool, choice: Any) -> _Derived:
-    a.verdict, a.graph, a.chain, a.charge_counts  # noqa: B018 -- computed here, off the UI
+    a.verdict, a.chain, a.charge_counts  # noqa: B018 -- computed here, off the UI (the graph
+    # panel asks for the graph itself, only when the strings change)
     choices = sector_choices(a)
     if choices is None:
         choice = None

@@ -110,6 +110,20 @@ def main(quick: bool) -> None:
         f"residual {e1:.1e}, sum eta^4 {e2:.1e}"
     )
 
+    # 3b. The same chains of 10^5 terms for reach 1, 2 and 3, beside LAPACK's eigenvalue-only
+    # routine dsterf on the equivalent tridiagonal (zero diagonal, M / 2 random off-diagonals:
+    # the Ising problem with as many fermions); goal: ratio at most 1.
+    n_tri = m // 2
+    off = couplings(n_tri - 1, 5)
+    _, t_sterf = timed(scipy.linalg.lapack.dsterf, np.zeros(n_tri), off)
+    for reach in (1, 2, 3):
+        w = couplings(m, 10 + reach) ** 2
+        r, t = timed(chain_real_roots, w, reach)
+        print(
+            f"[reach {reach}, M={m}] all {r.count} roots {t:.1f} s; dsterf on {n_tri} x {n_tri} "
+            f"{t_sterf:.1f} s; ratio ours/dsterf {t / t_sterf:.2f}"
+        )
+
     # 4. Gap of a uniform reach-2 chain with 10^6 terms.
     m = 10**6
     g, t = timed(chain_real_roots, np.ones(m), 2, lowest=1)

@@ -17,12 +17,16 @@ import cmath
 import functools
 import math
 from fractions import Fraction
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import sympy
 
 from ..base.scalars import exact_value
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = ["CyclotomicField", "Element", "power_table"]
 

@@ -41,12 +41,11 @@ import math
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from itertools import combinations
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
-import sympy
 from flint import fmpq, fmpq_mat
 
 from ..algebra.cyclotomic import CyclotomicField, Element
@@ -58,6 +57,11 @@ from ..base.scalars import to_fmpq
 from ..graphs.graph import chain_structure, commutation_exponents, frustration_adjacency
 from ..roots.polynomial import exclusion_polynomial
 from ..spectra.charges import charge_series
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "MAX_COORDINATES",

@@ -42,7 +42,6 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sps
-from scipy.optimize import linear_sum_assignment
 from tqdm.auto import tqdm
 
 from ..algebra.model import Model
@@ -1112,6 +1111,8 @@ def routes_check(parts: _Parts) -> Check:
         n_extra = len(squares) - len(target)
         extra, kept = squares[order[:n_extra]], squares[order[n_extra:]]
         cost = np.abs(kept[:, None] - target[None, :])
+        from scipy.optimize import linear_sum_assignment  # on use: slow to import
+
         rows, cols = linear_sum_assignment(cost)
         worst = max(worst, float(cost[rows, cols].max()) if len(target) else 0.0)
         worst = max(worst, float(np.abs(extra).max()) if len(extra) else 0.0)

@@ -67,8 +67,8 @@ from typing import Any
 
 import flint
 import numpy as np
-from numba import njit, prange
 
+from ..base.lazy import njit, prange
 from .real import chain_root_count, check_chain_weights
 from .result import RootTable
 

@@ -83,8 +83,8 @@ from fractions import Fraction
 from typing import Any, NamedTuple
 
 import numpy as np
-from numba import njit, prange
 
+from ..base.lazy import njit, prange
 from .certify import certified_roots
 from .real import chain_back, chain_root_count
 from .result import RootTable

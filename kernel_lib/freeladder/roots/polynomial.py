@@ -37,11 +37,10 @@ import warnings
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Any, NamedTuple
+from typing import TYPE_CHECKING, Any, NamedTuple
 
 import flint
 import numpy as np
-import sympy
 
 from ..algebra.model import Model
 from ..base.cache import model_store, structure_store
@@ -52,6 +51,11 @@ from ..graphs.graph import chain_structure, frustration_adjacency
 from ..graphs.independent import Algebra, IndependenceGraph
 from .certify import certified_roots
 from .result import RootTable
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "MAX_ROOT_DEGREE",
@@ -461,7 +465,12 @@ class ExclusionPolynomial:
             raise ValueError(f"the order of a partial polynomial must be >= 0, got {s}")
         if s >= self.degree:
             return self
-        head = self._exact_sums[: s + 1]
+        chain = self._chain
+        if self._sums is None and chain is not None and s <= _SHORT_HEAD:
+            # the first orders of a long chain, without expanding the whole polynomial
+            head = _chain_head(_Ring(self.kind), chain[0], chain[1], s)
+        else:
+            head = self._exact_sums[: s + 1]
         while len(head) > 1 and head[-1] == 0:
             head = head[:-1]
         return ExclusionPolynomial(
@@ -1021,6 +1030,36 @@ def _chain_sums(ring: _Ring, weights: Sequence[Any], reach: int) -> list[Any]:
         new = window[0] + ring.monomial(wk) * window[reach]
         window = [new, *window[:reach]]
     return ring.exact_coefficients(window[0])
+
+
+_SHORT_HEAD = 16
+"""Partial polynomials up to this order of a chain run a truncated recurrence."""
+
+
+def _chain_head(ring: _Ring, weights: Sequence[Any], reach: int, order: int) -> list[Any]:
+    """``C_0 .. C_order`` of a chain: the recurrence of :func:`_chain_sums` modulo x^(order+1).
+
+    O(M order) exact operations instead of O(M S) for the whole polynomial.
+    """
+    if weights and all(w == weights[0] for w in weights):
+        return _chain_sums(ring, weights, reach)[: order + 1]
+    one = ring.constant(1)
+    window = [one] * (reach + 1)
+    for wk in weights:
+        new = _cut(window[0] + ring.monomial(wk) * window[reach], order)
+        window = [new, *window[:reach]]
+    return ring.exact_coefficients(window[0])
+
+
+def _cut(poly: Any, order: int) -> Any:
+    """``poly`` without its terms above x^order (any of the ring's polynomial types)."""
+    if isinstance(poly, _GaussPoly):
+        return _GaussPoly(_cut(poly.re, order), _cut(poly.im, order))
+    if isinstance(poly, _SymPoly):
+        return _SymPoly(poly.c[: order + 1])
+    if poly.degree() > order:
+        return type(poly)(poly.coeffs()[: order + 1])
+    return poly
 
 
 def _times(a: Any, b: Any) -> Any:

@@ -127,8 +127,8 @@ from collections.abc import Callable
 from typing import Any
 
 import numpy as np
-from numba import njit, prange
 
+from ..base.lazy import njit, prange
 from .result import RootTable
 
 __all__ = [

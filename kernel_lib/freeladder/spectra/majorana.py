@@ -47,11 +47,8 @@ from typing import Any
 
 import networkx as nx
 import numpy as np
-import scipy.linalg
-import scipy.linalg.lapack
 import scipy.sparse
 import scipy.sparse.csgraph
-from tqdm.auto import tqdm
 
 from ..algebra.model import Model
 from ..algebra.strings import WeylString, make_string
@@ -969,6 +966,8 @@ def _canonical_bipartite(h: np.ndarray, colour: np.ndarray) -> tuple[np.ndarray,
     a = np.flatnonzero(colour == 0)
     b = np.flatnonzero(colour == 1)
     block = h[np.ix_(a, b)]
+    import scipy.linalg  # on use: scipy.linalg is slow to import
+
     sv = scipy.linalg.svdvals(block) if min(len(a), len(b)) else np.zeros(0)
     e = np.concatenate([sv, np.zeros(n // 2 - len(sv))])
     if len(a) != len(b):
@@ -994,6 +993,8 @@ def _canonical_hessenberg(h: np.ndarray) -> tuple[np.ndarray, float]:
     n = h.shape[0]
     if n == 1:
         return np.zeros(0), 1.0
+    import scipy.linalg.lapack  # on use: scipy.linalg is slow to import
+
     work, info = scipy.linalg.lapack.dgehrd_lwork(n)
     if info != 0:
         raise AssertionError(f"LAPACK dgehrd workspace query failed (info {info})")
@@ -1167,6 +1168,8 @@ def jordan_wigner_spectrum(
         labels = struct.labels_where(dict(zip(struct.cycle_operators, want, strict=True)))
         selection = f"given cycle values {want}"
     dim = 2 ** len(m.sites)
+    from tqdm.auto import tqdm  # on use
+
     bar = tqdm(labels, desc="sectors", disable=len(labels) < 256, leave=False)
     solved, mismatch = [], 0.0
     spectra: dict[tuple[int, ...], tuple[tuple[np.ndarray, float | None, float], ...]] = {}

@@ -29,7 +29,6 @@ from types import MappingProxyType
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
-from scipy.optimize import curve_fit
 
 from ..algebra.model import Model
 from ..base.frozen import readonly_array, readonly_mapping
@@ -180,6 +179,8 @@ def _single_fit(
     dof = x.size - n_par
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # OptimizeWarning when the covariance is undefined
+        from scipy.optimize import curve_fit  # on use: slow to import
+
         params, cov = curve_fit(
             model, x, target, p0=p0, sigma=s, absolute_sigma=s is not None, maxfev=20000
         )
