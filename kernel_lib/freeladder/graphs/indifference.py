@@ -42,9 +42,9 @@ import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
 
 from ..algebra.model import Model
-from ..base.cache import cached, structure_store
+from ..base.cache import part
 from ..base.jsonready import json_ready
-from .graph import commutation_exponents
+from .graph import EXPONENTS
 
 __all__ = ["IndifferenceOrder", "indifference_order", "order_from_exponents", "umbrella_order"]
 
@@ -241,13 +241,15 @@ def indifference_order(m: Model) -> IndifferenceOrder | None:
     """
     if not isinstance(m, Model):
         raise TypeError(f"expected a freeladder Model, got {type(m).__name__}")
-    return cached(structure_store(m.strings), "indifference", lambda: _build(m))
+    return ORDER(m)
 
 
-def _build(m: Model) -> IndifferenceOrder | None:
+@part("indifference order", "strings")
+def ORDER(m: Model) -> IndifferenceOrder | None:
+    """The part behind :func:`indifference_order`."""
     if len(m) == 0:
         return None
-    return order_from_exponents(commutation_exponents(m), m.states)
+    return order_from_exponents(EXPONENTS(m), m.states)
 
 
 def order_from_exponents(ex: Any, states: int) -> IndifferenceOrder | None:

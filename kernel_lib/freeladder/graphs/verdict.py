@@ -47,16 +47,16 @@ from ..algebra.model import Model
 from ..algebra.printing import format_terms
 from ..algebra.strings import WeylString
 from ..base import references as ref
-from ..base.cache import cached, structure_store
-from ..base.frozen import readonly_mapping
+from ..base.cache import part
+from ..base.frozen import readonly_array, readonly_mapping
 from ..base.jsonready import json_ready
 from .clawfree import find_claw, find_even_hole, find_simplicial_clique
 from .graph import (
+    ADJACENCY,
+    EXPONENTS,
     ChainStructure,
     chain_from_exponents,
     chain_structure,
-    commutation_exponents,
-    frustration_adjacency,
 )
 from .indifference import IndifferenceOrder, order_from_exponents
 from .linegraph import LineGraphRoot, line_graph_root
@@ -476,13 +476,14 @@ def classify(m: Model) -> Verdict:
         raise TypeError(f"classify needs a freeladder Model, got {type(m).__name__}")
     # The graph theory depends only on the strings: it is kept with them, so a coupling change
     # (Model.with_couplings) only rewrites the witness texts (Verdict.for_model).
-    shared = cached(structure_store(m.strings), "verdict", lambda: _classify(m))
-    return shared.for_model(m)
+    return VERDICT(m).for_model(m)
 
 
-def _classify(m: Model) -> Verdict:
-    """The classification itself (see :func:`classify`)."""
-    adj = frustration_adjacency(m)
+@part("verdict", "strings")
+def VERDICT(m: Model) -> Verdict:
+    """The classification itself (see :func:`classify`), shared by every model with the same
+    strings (:meth:`Verdict.for_model` puts in the couplings)."""
+    adj = ADJACENCY(m)
     n_terms = len(m)
     if n_terms == 0:
         empty = ("The model has no terms: nothing to solve.",)
@@ -508,7 +509,7 @@ def _classify(m: Model) -> Verdict:
         if whole_chain is not None:
             comps[0] = _with_chain(comps[0], whole_chain)
     else:
-        ex = commutation_exponents(m)
+        ex = EXPONENTS(m)
         grouped = sps.csr_array(ex[order][:, order])
         grouped.sort_indices()
         comps = []
@@ -1184,9 +1185,7 @@ def _combine(m: Model, comps: Sequence[ComponentVerdict], relations: Relations) 
 
 
 def _frozen(order: np.ndarray) -> np.ndarray:
-    out = np.ascontiguousarray(order, dtype=np.int64)
-    out.setflags(write=False)
-    return out
+    return readonly_array(order, dtype=np.int64)
 
 
 def _string_text(m: Model, j: int) -> str:

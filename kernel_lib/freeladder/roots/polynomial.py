@@ -43,11 +43,11 @@ import flint
 import numpy as np
 
 from ..algebra.model import Model
-from ..base.cache import model_store, structure_store
+from ..base.cache import part
 from ..base.errors import TooLargeError
 from ..base.jsonready import json_ready
 from ..base.scalars import exact_to_sympy, exact_value, to_fmpq, to_python_number, to_sympy
-from ..graphs.graph import chain_structure, frustration_adjacency
+from ..graphs.graph import ADJACENCY, chain_structure
 from ..graphs.independent import Algebra, IndependenceGraph
 from .certify import certified_roots
 from .result import RootTable
@@ -69,7 +69,6 @@ __all__ = [
     "sum_rules",
 ]
 
-_CACHE_KEY = "_freeladder_polynomial"
 _BIG = 2.0**256
 _SMALL = 2.0**-256
 
@@ -1104,13 +1103,14 @@ def independence_graph(m: Model) -> IndependenceGraph:
     Chains use their chain order (every subproblem is then a suffix of the chain); other
     graphs the reverse Cuthill-McKee order.
     """
-    store = structure_store(m.strings)
-    key = _CACHE_KEY + "_graph"
-    if key not in store:
-        chain = chain_structure(m) if len(m) else None
-        order = None if chain is None else chain.order
-        store[key] = IndependenceGraph(frustration_adjacency(m), order)
-    return store[key]  # type: ignore[no-any-return]
+    return _INDEPENDENCE(m)
+
+
+@part("independence graph", "strings")
+def _INDEPENDENCE(m: Model) -> IndependenceGraph:
+    chain = chain_structure(m) if len(m) else None
+    order = None if chain is None else chain.order
+    return IndependenceGraph(ADJACENCY(m), order)
 
 
 def exclusion_polynomial(m: Model) -> ExclusionPolynomial:
@@ -1154,13 +1154,12 @@ def exclusion_polynomial(m: Model) -> ExclusionPolynomial:
     """
     if not isinstance(m, Model):
         raise TypeError(f"expected a freeladder Model, got {type(m).__name__}")
-    store = model_store(m)
-    if _CACHE_KEY not in store:
-        store[_CACHE_KEY] = _build(m)
-    return store[_CACHE_KEY]  # type: ignore[no-any-return]
+    return POLYNOMIAL(m)
 
 
-def _build(m: Model) -> ExclusionPolynomial:
+@part("polynomial", "couplings")
+def POLYNOMIAL(m: Model) -> ExclusionPolynomial:
+    """The part behind :func:`exclusion_polynomial`."""
     n = m.states
     weights: list[Any] = []
     for j, c in enumerate(m.couplings):

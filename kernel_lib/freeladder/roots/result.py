@@ -33,6 +33,7 @@ from typing import Any, Literal
 
 import numpy as np
 
+from ..base.frozen import readonly_array
 from ..base.jsonready import json_ready
 
 __all__ = ["BeyondFloatError", "RootTable"]
@@ -47,9 +48,7 @@ class BeyondFloatError(ArithmeticError, ValueError):
 
 
 def _frozen(values: Any, dtype: Any = None) -> np.ndarray:
-    arr = np.array(values, dtype=dtype, copy=True)
-    arr.setflags(write=False)
-    return arr
+    return readonly_array(values, dtype=dtype)  # setflags cannot reopen it
 
 
 @dataclass(frozen=True)

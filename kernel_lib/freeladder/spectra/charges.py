@@ -36,7 +36,7 @@ from ..algebra.model import Model
 from ..algebra.operators import StringSum
 from ..algebra.printing import format_terms, format_terms_latex
 from ..algebra.strings import StringArray, WeylString
-from ..base.cache import structure_store
+from ..base.cache import part
 from ..base.jsonready import json_ready
 from ..graphs.graph import chain_structure
 from ..graphs.indifference import indifference_order
@@ -58,8 +58,6 @@ __all__ = [
 
 DEFAULT_LIMIT = 10**6
 """Largest number of products an order may have before listing it raises an error."""
-
-_COUNTS_KEY = "_freeladder_charge_counts"
 
 
 class ChargeTerm(NamedTuple):
@@ -112,10 +110,13 @@ def charge_counts(m: Model) -> tuple[int, ...]:
     >>> charge_counts(fl.exclusion_chain(5))  # a path: 1 + 5 + 6 + 1 = 13 = Fibonacci F(7)
     (1, 5, 6, 1)
     """
-    store = structure_store(m.strings)
-    if _COUNTS_KEY not in store:
-        store[_COUNTS_KEY] = _counts(m)
-    return store[_COUNTS_KEY]  # type: ignore[no-any-return]
+    return COUNTS(m)
+
+
+@part("charge counts", "strings")
+def COUNTS(m: Model) -> tuple[int, ...]:
+    """The part behind :func:`charge_counts`."""
+    return _counts(m)
 
 
 def _counts(m: Model) -> tuple[int, ...]:

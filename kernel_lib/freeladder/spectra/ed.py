@@ -249,8 +249,8 @@ def exact_spectrum(
         vals, error, method = _sparse_lowest(mat, k, hermitian)
     scale = max(1.0, float(np.abs(vals).max())) if len(vals) else 1.0
     levels, mult = _cluster(vals, tol * scale)
-    for arr in (levels, mult, vals):
-        arr.setflags(write=False)  # the result is immutable, like every freeladder object
+    # the result is immutable, like every freeladder object
+    levels, mult, vals = readonly_array(levels), readonly_array(mult), readonly_array(vals)
     return ExactSpectrum(
         levels=levels,
         multiplicities=mult,

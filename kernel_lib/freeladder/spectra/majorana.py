@@ -52,7 +52,7 @@ import scipy.sparse.csgraph
 
 from ..algebra.model import Model
 from ..algebra.strings import WeylString, make_string
-from ..base.cache import cached, structure_store
+from ..base.cache import part
 from ..base.errors import TooLargeError
 from ..base.frozen import readonly_array, readonly_mapping
 from ..base.jsonready import json_ready
@@ -414,12 +414,14 @@ def sectors(m: Model) -> SectorStructure:
     >>> s.relations, s.count
     ((((0, 1, 2, 3, 4), 1),), 16)
     """
-    pairs = _check_model(m)
-    per_sites = structure_store(m.strings).setdefault("majorana:sectors", {})
-    key = tuple(m.sites)
-    if key not in per_sites:  # depends on the strings only: shared across couplings
-        per_sites[key] = _build_sectors(m, pairs)
-    return per_sites[key]  # type: ignore[no-any-return]
+    _check_model(m)
+    return SECTORS(m, tuple(m.sites))  # depends on the strings only: shared across couplings
+
+
+@part("sector structure", "strings")
+def SECTORS(m: Model, sites: tuple[Any, ...]) -> SectorStructure:
+    """The part behind :func:`sectors` (per list of sites)."""
+    return _build_sectors(m, _check_model(m))
 
 
 def _build_sectors(m: Model, pairs: dict[int, tuple[int, int]]) -> SectorStructure:
@@ -522,10 +524,10 @@ def _bond_kind(g: WeylString) -> tuple[int, int] | None:
     return (a1, b1) if (a1, b1) == (a2, b2) else None
 
 
-def _honeycomb_faces(
-    m: Model, pairs: Mapping[int, tuple[int, int]]
-) -> tuple[list[tuple[tuple[int, ...], tuple[int, ...]]] | None, str]:
+@part("honeycomb faces", "strings")
+def FACES(m: Model) -> tuple[list[tuple[tuple[int, ...], tuple[int, ...]]] | None, str]:
     """The hexagonal faces ``(modes, terms)`` of a root graph that tiles a torus, or why not."""
+    pairs = _check_model(m)
     kinds = {}
     for t, g in enumerate(m.strings):
         kind = _bond_kind(g)
@@ -636,9 +638,7 @@ def flux_theorem_values(m: Model) -> tuple[dict[WeylString, int] | None, str]:
     couplings = m.coupling_array()
     if np.iscomplexobj(couplings):
         return None, "complex couplings"
-    faces, why = cached(
-        structure_store(m.strings), "majorana:faces", lambda: _honeycomb_faces(m, pairs)
-    )
+    faces, why = FACES(m)
     if faces is None:
         return None, why
     by_kind: dict[tuple[int, int], list[float]] = {}
