@@ -11,9 +11,7 @@ cells as a new notebook next to the current one, or show their text to copy.
 
 from __future__ import annotations
 
-import asyncio
 import os
-import threading
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -21,7 +19,10 @@ from typing import Any
 
 import ipywidgets as widgets
 
-import freeladder as fl
+from .adapter import Model, View, export_calculation
+from .panel import Host, Section
+from .style import escape
+from .worker import Worker
 
 __all__ = [
     "COMM_TARGET",
@@ -95,23 +96,12 @@ class InsertReply:
         )
 
 
-def _later(seconds: float, action: Callable[[], None]) -> None:
-    """Run ``action`` after ``seconds`` on the kernel's event loop (a timer thread without one)."""
-    try:
-        loop = asyncio.get_running_loop()
-    except RuntimeError:
-        timer = threading.Timer(seconds, action)
-        timer.daemon = True
-        timer.start()
-    else:
-        loop.call_later(seconds, action)
-
-
 def send_cells(
-    cells: fl.WorkedCalculation | Sequence[fl.Cell],
+    cells: Sequence[Any],
     marker: str,
     on_reply: Callable[[InsertReply], None],
     timeout: float = REPLY_TIMEOUT,
+    worker: Worker | None = None,
 ) -> None:
     """Send cells to the notebook's browser half; ``on_reply`` gets its answer or a timeout.
 
@@ -128,13 +118,15 @@ def send_cells(
         that did insert the cells is not reported as missing.
     timeout : float
         Seconds to wait.
+    worker : Worker, optional
+        Whose lane "reply" waits out the timeout (a worker of its own when not given).
 
     Notes
     -----
     The wait does not block: the plugin's answer reaches the kernel as a message on the shell
     channel, which the kernel handles only after the running widget callback or cell returns,
-    so a blocking wait would always time out.  The timeout is scheduled on the kernel's event
-    loop instead.
+    so a blocking wait would always time out.  The timeout is a delayed request on the worker
+    (in a background thread) instead.
     """
     from comm import create_comm
 
@@ -168,7 +160,20 @@ def send_cells(
             )
         )
     )
-    _later(timeout, give_up)
+    waiter = worker if worker is not None and not worker.synchronous else _background()
+    waiter.submit(
+        "reply",
+        "waiting for the notebook",
+        lambda: None,
+        lambda _: give_up(),
+        delay=timeout,
+        quiet=True,
+    )
+
+
+def _background() -> Worker:
+    """A worker of its own for waits (never synchronous: a timeout must really wait)."""
+    return Worker(lambda busy: None, lambda message, trace: None)
 
 
 def fresh_notebook_path(folder: str | Path | None = None, stem: str | None = None) -> Path:
@@ -198,17 +203,21 @@ def fresh_notebook_path(folder: str | Path | None = None, stem: str | None = Non
     return candidate
 
 
-class ExportPanel(widgets.VBox):
+class ExportPanel(Section):
     """Buttons that put a model's worked calculation into the notebook, with fallbacks.
 
     Parameters
     ----------
     get_model : callable
-        Returns the model to export at the moment a button is pressed.
+        Returns the model to export at the moment a button is pressed (None when there is
+        none yet).  In the Workbench: the numeric model the views show (symbols set by the
+        sliders, named in a comment).
     folder : str or Path, optional
         Where "save as notebook" writes (default: next to the current notebook).
     timeout : float
         Seconds to wait for the browser half's answer.
+    worker : Worker, optional
+        Runs the calculation and the wait for the answer (a worker of its own by default).
 
     Examples
     --------
@@ -218,16 +227,35 @@ class ExportPanel(widgets.VBox):
         ExportPanel(lambda: model)
     """
 
+    TITLE = "Export"
+    HINT = "the worked, self-verifying calculation as notebook cells"
+
+    @classmethod
+    def attach(cls, host: Host) -> ExportPanel:
+        """The section for ``host``: it exports the model its views show."""
+
+        def shown() -> tuple[Model | None, Model | None]:
+            view = host.shown()
+            return (None, None) if view is None else (view.model, view.analysis.model)
+
+        panel = cls(worker=getattr(host, "worker", None))
+        panel._source = shown
+        return panel
+
     def __init__(
         self,
-        get_model: Callable[[], fl.Model],
+        get_model: Callable[[], Model | None] | None = None,
         folder: str | Path | None = None,
         timeout: float = REPLY_TIMEOUT,
+        worker: Worker | None = None,
     ) -> None:
-        self._get_model = get_model
+        self._source: Callable[[], tuple[Model | None, Model | None]] = (
+            (lambda: (None, None)) if get_model is None else (lambda: (get_model(), get_model()))
+        )
         self._folder = folder
         self._timeout = float(timeout)
-        self._cache: tuple[fl.Model, fl.WorkedCalculation] | None = None
+        self._worker = worker
+        self._cache: tuple[Any, Any] | None = None
         self.insert_button = widgets.Button(
             description="insert cells below",
             icon="plus",
@@ -260,19 +288,29 @@ class ExportPanel(widgets.VBox):
         self.add_class("freeladder-export")
         self.add_class(MARKER_CLASS + self.model_id)
 
+    def update(self, view: View) -> None:
+        """A new view: a message about an earlier model no longer applies."""
+        self.status.value = ""
+
     # -- the cells -----------------------------------------------------------------------------
-    def _calculation(self) -> fl.WorkedCalculation | None:
+    def _calculation(self) -> Any:
         """The current model's worked calculation (cached per model), or None after an error."""
         try:
-            model = self._get_model()
-            if self._cache is not None and self._cache[0] is model:
+            model, numeric = self._source()
+            if model is None or numeric is None:
+                self._say(
+                    "nothing to export yet: no model has parsed (fix the model text first)",
+                    error=True,
+                )
+                return None
+            if self._cache is not None and self._cache[0] is numeric:
                 return self._cache[1]
             self._say("working out the calculation ...")
-            wc = fl.worked_calculation(model)
+            wc = export_calculation(model, numeric)
         except Exception as err:  # shown to the user; the model and the notebook stay intact
-            self._say(f"could not export: {type(err).__name__}: {err}", error=True)
+            self._say(f"could not export: {escape(type(err).__name__)}: {escape(err)}", error=True)
             return None
-        self._cache = (model, wc)
+        self._cache = (numeric, wc)
         return wc
 
     def _say(self, html: str, error: bool = False) -> None:
@@ -286,7 +324,7 @@ class ExportPanel(widgets.VBox):
         if wc is None:
             return
         self._say(f"sending {len(wc)} cells to the notebook ...")
-        send_cells(wc, self.model_id, self._on_reply, timeout=self._timeout)
+        send_cells(wc, self.model_id, self._on_reply, timeout=self._timeout, worker=self._worker)
 
     def _on_reply(self, reply: InsertReply) -> None:
         if reply.status == "inserted":
@@ -296,7 +334,7 @@ class ExportPanel(widgets.VBox):
                 "(Z in command mode) removes them all"
             )
         elif reply.status == "refused":
-            self._say(f"the notebook refused the cells: {reply.reason}", error=True)
+            self._say(f"the notebook refused the cells: {escape(reply.reason)}", error=True)
         else:
             self._say(NO_EXTENSION, error=True)
 
@@ -312,9 +350,9 @@ class ExportPanel(widgets.VBox):
             except FileExistsError:
                 continue  # created meanwhile by someone else: pick the next fresh name
             except OSError as err:
-                self._say(f"could not save: {err}", error=True)
+                self._say(f"could not save: {escape(err)}", error=True)
                 return None
-            self._say(f"saved as <code>{path.name}</code> in {path.parent}")
+            self._say(f"saved as <code>{escape(path.name)}</code> in {escape(path.parent)}")
             return path
         self._say("could not find a fresh file name", error=True)
         return None
