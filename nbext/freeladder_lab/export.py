@@ -27,9 +27,11 @@ from .worker import Worker
 __all__ = [
     "COMM_TARGET",
     "MARKER_CLASS",
+    "PATH_TIMEOUT",
     "REPLY_TIMEOUT",
     "ExportPanel",
     "InsertReply",
+    "ask_notebook_path",
     "fresh_notebook_path",
     "send_cells",
 ]
@@ -42,6 +44,9 @@ MARKER_CLASS = "freeladder-export-"
 
 REPLY_TIMEOUT = 5.0
 """Seconds to wait for the plugin's answer before offering the fallbacks."""
+
+PATH_TIMEOUT = 2.0
+"""Seconds to wait for the notebook's current path before saving under the kernel's name."""
 
 NO_EXTENSION = (
     "No notebook extension answered, so nothing was inserted. This front end may not load "
@@ -169,6 +174,56 @@ def send_cells(
         delay=timeout,
         quiet=True,
     )
+
+
+def ask_notebook_path(
+    marker: str,
+    on_answer: Callable[[str | None], Any],
+    timeout: float = PATH_TIMEOUT,
+    worker: Worker | None = None,
+) -> None:
+    """Ask the browser half for the current path of the notebook showing widget ``marker``.
+
+    ``on_answer`` gets the server-relative path (it follows renames), or None when nothing
+    answered within ``timeout`` seconds; it is called once.
+    """
+    from comm import create_comm
+
+    answered = False
+
+    def answer(path: str | None) -> None:
+        nonlocal answered
+        if not answered:
+            answered = True
+            on_answer(path)
+
+    def read(msg: dict[str, Any]) -> None:
+        data = msg["content"]["data"]
+        path = data.get("path") if isinstance(data, dict) else None
+        answer(path if isinstance(path, str) and path else None)
+
+    channel = create_comm(target_name=COMM_TARGET, data={"ask": "path", "marker": str(marker)})
+    channel.on_msg(read)
+    channel.on_close(lambda msg: answer(None))
+    waiter = worker if worker is not None and not worker.synchronous else _background()
+    waiter.submit(
+        "path",
+        "waiting for the notebook",
+        lambda: None,
+        lambda _: answer(None),
+        delay=timeout,
+        quiet=True,
+    )
+
+
+def _in_kernel() -> bool:
+    """True inside a running Jupyter kernel (a front end may answer comms)."""
+    try:
+        from IPython import get_ipython
+    except ImportError:
+        return False
+    shell = get_ipython()
+    return shell is not None and getattr(shell, "kernel", None) is not None
 
 
 def _background() -> Worker:
@@ -339,12 +394,28 @@ class ExportPanel(Section):
             self._say(NO_EXTENSION, error=True)
 
     def save(self) -> Path | None:
-        """Write the cells as a new notebook next to the current one (never overwrites)."""
+        """Write the cells as a new notebook next to the current one (never overwrites).
+
+        The file is named after the notebook as it is named now (``<name>-worked.ipynb``):
+        inside a kernel the browser half is asked for the notebook's current path (it follows
+        renames), and the file is written when it answers (or after :data:`PATH_TIMEOUT`
+        seconds, under the name the kernel started with); the status line says where, and
+        None is returned.  Outside a kernel the file is written at once and its path returned.
+        """
         wc = self._calculation()
         if wc is None:
             return None
+        if not _in_kernel():
+            return self._write(wc, None)
+        self._say("asking the notebook for its current name ...")
+        ask_notebook_path(self.model_id, lambda path: self._write(wc, path), worker=self._worker)
+        return None
+
+    def _write(self, wc: Any, notebook: str | None) -> Path | None:
+        """Write ``wc`` next to the current notebook, named after ``notebook`` when known."""
+        stem = Path(notebook).stem if notebook else None
         for _ in range(100):
-            path = fresh_notebook_path(self._folder)
+            path = fresh_notebook_path(self._folder, stem)
             try:
                 wc.to_notebook(path)
             except FileExistsError:

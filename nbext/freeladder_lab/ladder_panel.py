@@ -100,7 +100,12 @@ class LadderPanel(Section):
             align="start",
         )
         self.y_axis = bq.Axis(
-            scale=sy, side="left", label="energy E", grid_lines="none", tick_format=TICKS
+            scale=sy,
+            side="left",
+            label="energy E",
+            grid_lines="none",
+            tick_format=TICKS,
+            label_offset="56px",
         )
         # The title is an HTML line above the figure, which wraps (a figure title is clipped).
         self.title = widgets.HTML()
@@ -108,9 +113,10 @@ class LadderPanel(Section):
         self.rung_figure = bq.Figure(
             marks=[self.rungs, self.exact_rungs, self.degeneracy, self.exact_labels],
             axes=[self.y_axis],
-            fig_margin={"top": 36, "bottom": 12, "left": 64, "right": 8},
+            fig_margin={"top": 36, "bottom": 12, "left": 74, "right": 8},
             layout=widgets.Layout(width="100%", height="360px"),
         )
+        self.rung_figure.add_class("freeladder-ladder-figure")
         self.plane, px, py, self.plane_guides = complex_plane(
             "lowest levels in the complex plane", "Re E", "Im E", height="360px"
         )

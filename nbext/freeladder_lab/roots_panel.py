@@ -125,6 +125,8 @@ class RootsPanel(Section):
             "|eta_k| of the quasi-energies (log scale)", "|eta_k| (log scale)"
         )
         self.logarithmic = False  # whether the magnitude plots are shown
+        for fig in (self.root_figure, self.root_spread):
+            fig.add_class("freeladder-roots-figure")
         for fig in (self.root_figure, self.eta_figure, self.root_spread, self.eta_spread):
             fig.layout.width = "50%"
         self.plots = widgets.HBox(

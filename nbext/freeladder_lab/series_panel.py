@@ -226,6 +226,7 @@ class SeriesPanel(Section):
         )
         self.count = widgets.HTML()
         self.products = widgets.HTMLMath()
+        self.products.add_class("freeladder-products")
         self.commutes = widgets.HTML()
         self.transfer = widgets.HTMLMath()
         self.polynomial = widgets.HTMLMath()

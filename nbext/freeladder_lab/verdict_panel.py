@@ -11,9 +11,13 @@ import numpy as np
 from .adapter import View, term_labels
 from .graph_layout import SMALL_GRAPH, graph_layout
 from .panel import Host, Section
-from .style import ACCENT, INK, SECOND, TICKS, escape
+from .style import ACCENT, INK, SECOND, escape
 
-__all__ = ["KIND_WORDS", "VerdictPanel"]
+__all__ = ["BAND_WINDOW", "KIND_WORDS", "VerdictPanel"]
+
+#: A graph drawn as a band shows this many positions of its order at first (the reader pans
+#: and zooms to the rest).
+BAND_WINDOW = 80
 
 #: The verdict kinds in words (the library's kind names stay visible beside them).
 KIND_WORDS = {
@@ -111,7 +115,7 @@ class VerdictPanel(Section):
         )
         self.title.add_class("freeladder-graph-title")
         self.order_axis = bq.Axis(
-            scale=sx, label="position in the chain order", tick_format=TICKS, visible=False
+            scale=sx, label="position in the order", tick_format="d", visible=False
         )
         self.figure = bq.Figure(
             marks=[self.edges, self.clique, self.witness, self.vertices, self.labels],
@@ -156,23 +160,27 @@ class VerdictPanel(Section):
             self.edges.y = pos[pairs, 1] if len(pairs) else np.zeros((0, 2))
             self.vertices.x, self.vertices.y = pos[:, 0], pos[:, 1]
             _frame(self._scales, pos, labelled=small)
+            if band and len(names) > BAND_WINDOW:  # the first terms; pan or zoom for the rest
+                self._scales[0].min, self._scales[0].max = -1.0, float(BAND_WINDOW)
             self.vertices.names = [f"{j}: {t}" for j, t in enumerate(names)]
-            self.vertices.default_size = 48 if small else 14
+            windowed = band and len(names) > BAND_WINDOW
+            self.vertices.default_size = 48 if small else (24 if windowed else 14)
             self.witness.x, self.witness.y = pos[witness, 0], pos[witness, 1]
             self.clique.x, self.clique.y = pos[clique, 0], pos[clique, 1]
             shown = names if small else []
             self.labels.x = pos[: len(shown), 0]
             self.labels.y = pos[: len(shown), 1]
             self.labels.text = shown
-            layout_name = (
-                ("chain order, in a band" + ("; drag or scroll to zoom" if band else ""))
-                if chain is not None
-                else (
-                    "force-directed"
-                    if small
-                    else "bandwidth-reducing order, in a band; drag or scroll to zoom"
-                )
+            window = (
+                f"; terms 0-{BAND_WINDOW - 1} in order shown, drag to pan, scroll to zoom"
+                if band and len(names) > BAND_WINDOW
+                else ""
             )
+            layout_name = (
+                "chain order, in a band"
+                if chain is not None
+                else ("force-directed" if small else "bandwidth-reducing order, in a band")
+            ) + window
             self.title.value = _title_html(
                 f"frustration graph: {len(names)} terms, {len(pairs)} non-commuting pairs "
                 f"({layout_name})"
