@@ -248,11 +248,13 @@ def _check_workbench_layout(page: sync_api.Page, output: sync_api.Locator) -> No
     table's rows keep their natural height beside the longer notes.
     """
     selected = output.locator("select").first.evaluate(
-        "(s) => s.options[s.selectedIndex].textContent"
+        "(s) => s.options[s.selectedIndex].textContent.replace(/\\u00a0/g, ' ')"
     )
     assert selected.startswith("exclusion chain"), f"the family selector shows {selected!r}"
     pattern = (
-        output.locator("select").nth(1).evaluate("(s) => s.options[s.selectedIndex].textContent")
+        output.locator("select")
+        .nth(1)
+        .evaluate("(s) => s.options[s.selectedIndex].textContent.replace(/\\u00a0/g, ' ')")
     )
     assert pattern.startswith("staggered"), f"the coupling pattern shows {pattern!r}"
     graph = output.locator(".bqplot").first

@@ -476,10 +476,12 @@ def partial_roots(a: fl.Analysis, s: int) -> np.ndarray | None:
     python-flint balls), repeated by multiplicity.
 
     Returns an empty array for s = 0 (no roots) and None when the library refuses (degree above
-    its limit, symbolic coefficients).
+    its limit, symbolic coefficients) or P's degree exceeds :data:`PARTIAL_DEGREE_LIMIT`.
     """
     if s == 0:
         return np.zeros(0, complex)
+    if a.polynomial.degree > PARTIAL_DEGREE_LIMIT:
+        return None  # not expanded (see partial_coefficients)
     try:
         found = a.polynomial.truncated(s).roots()
     except (TooLargeError, TypeError, ValueError):

@@ -18,7 +18,7 @@ from .adapter import Outcome, View, multiplicity_text
 from .panel import Host, Section
 from .style import ACCENT, INK, SECOND, TICKS, complex_plane, escape, number_text, origin_guides
 
-__all__ = ["LABEL_PIXELS", "RUNGS", "LadderPanel", "spread_labels"]
+__all__ = ["LABEL_PIXELS", "RUNGS", "LadderPanel", "label_groups", "spread_labels"]
 
 #: How many of the lowest levels the ladder shows.
 RUNGS = 12
@@ -26,6 +26,34 @@ RUNGS = 12
 _PLOT_PIXELS = 360 - 36 - 12
 #: Least vertical distance between two multiplicity labels, in pixels (11 px text).
 LABEL_PIXELS = 15
+
+
+def label_groups(
+    y: np.ndarray, mult: list[str], lo: float, hi: float, pixels: float = _PLOT_PIXELS
+) -> tuple[np.ndarray, list[str]]:
+    """One label per group of levels closer than a label's height (sorted ``y``).
+
+    A group of one level keeps its multiplicity text (``x2``); a group of several says how
+    many levels it holds (``3 levels x2``, or ``3 levels`` when their multiplicities differ).
+    The labels sit at each group's lowest level, moved apart by :func:`spread_labels`.
+    """
+    step = (hi - lo) * LABEL_PIXELS / pixels
+    starts: list[int] = []
+    for i in range(len(y)):
+        if i == 0 or y[i] - y[i - 1] >= step:
+            starts.append(i)
+    ends = [*starts[1:], len(y)] if starts else []
+    texts = []
+    for a, b in zip(starts, ends, strict=True):
+        group = mult[a:b]
+        if len(group) == 1:
+            texts.append(group[0])
+        elif len(set(group)) == 1:
+            texts.append(f"{len(group)} levels {group[0]}")
+        else:
+            texts.append(f"{len(group)} levels")
+    at = spread_labels(np.asarray(y, float)[starts], lo, hi, pixels)
+    return at, texts
 
 
 def spread_labels(y: np.ndarray, lo: float, hi: float, pixels: float = _PLOT_PIXELS) -> np.ndarray:
@@ -42,7 +70,8 @@ def spread_labels(y: np.ndarray, lo: float, hi: float, pixels: float = _PLOT_PIX
 class LadderPanel(Section):
     """Rungs for real spectra (N = 2), a complex plane for N > 2; exact levels beside them.
 
-    When the levels differ by less than a hundredth of their size (long chains: E near -1000
+    Levels closer than a label's height share one label (``3 levels x2``).  When the levels
+    differ by less than a hundredth of their size (long chains: E near -1000
     and gaps near 0.1), the rungs are drawn as ``E - E_0`` and the axis says so.  For one
     sector of a Jordan-Wigner model the title says that the exact column holds the lowest
     levels of the whole space (every sector), not of that sector.
@@ -195,10 +224,12 @@ class LadderPanel(Section):
         lo, hi = lo - pad, hi + pad
         # labels of near-degenerate levels are moved apart; the axis grows to hold them (the
         # spacing depends on the axis range, so grow it until the labels fit)
+        e_text = [multiplicity_text(m, states) for m in mult]
+        x_text = [multiplicity_text(m, states) for m in ex_m]
         top = hi
         for _ in range(60):
-            e_at = spread_labels(e, lo, top)
-            x_at = spread_labels(x, lo, top)
+            e_at, e_labels = label_groups(e, e_text, lo, top)
+            x_at, x_labels = label_groups(x, x_text, lo, top)
             need = max([hi, *e_at, *x_at]) + (top - lo) * LABEL_PIXELS / _PLOT_PIXELS
             if need <= top:
                 break
@@ -208,12 +239,12 @@ class LadderPanel(Section):
             self.y_axis.label = f"E - E0 (E0 = {number_text(offset, 10)})" if offset else "energy E"
             self.rungs.x = np.tile([0.1, 1.1], (len(e), 1))
             self.rungs.y = np.column_stack([e, e])
-            self.degeneracy.x, self.degeneracy.y = np.full(len(e), 1.12), e_at
-            self.degeneracy.text = [multiplicity_text(m, states) for m in mult]
+            self.degeneracy.x, self.degeneracy.y = np.full(len(e_at), 1.12), e_at
+            self.degeneracy.text = e_labels
             self.exact_rungs.x = np.tile([1.75, 2.75], (len(x), 1))
             self.exact_rungs.y = np.column_stack([x, x])
-            self.exact_labels.x, self.exact_labels.y = np.full(len(x), 2.77), x_at
-            self.exact_labels.text = [multiplicity_text(m, states) for m in ex_m]
+            self.exact_labels.x, self.exact_labels.y = np.full(len(x_at), 2.77), x_at
+            self.exact_labels.text = x_labels
 
 
 def _title(shown: Outcome, has_exact: bool) -> str:

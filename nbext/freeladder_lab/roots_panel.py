@@ -196,7 +196,7 @@ class RootsPanel(Section):
         tag = "" if guaranteed else " [UNPROVEN]"
         if shown.sector is not None:  # no polynomial: the Majorana energies, as y_k = 1 / e_k^2
             real_reason = None
-            tag = " [one sector: y_k = 1/e_k^2]"
+            tag = " [one sector, y_k = 1/e_k^2]"
         roots = np.where(np.isfinite(roots), roots, 0)  # zero modes (y infinite) at the origin
         root_names = [
             f"y_{k} = {number_text(y)}; eta_{k} = {number_text(e)} ± {b:.2g}{tag}"
@@ -232,7 +232,8 @@ class RootsPanel(Section):
             self.star.x, self.star.y = star.real, star.imag
             self.star.names = [f"{number_text(z)}" for z in star]
             n = spectrum.states
-            self.eta_figure.title = f"eta_k (filled), {n}-fold star omega^s eta_k (open)" + tag
+            short = " [one sector]" if shown.sector is not None else tag
+            self.eta_figure.title = f"eta_k (filled), {n}-fold star omega^s eta_k (open)" + short
             origin_guides(self.eta_guides, np.concatenate([eta, star]))
         self.summary.value = _summary(spectrum, real_reason, bounds)
 

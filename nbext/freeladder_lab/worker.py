@@ -91,6 +91,7 @@ class Worker:
         self._lock = threading.Lock()
         self._jobs: dict[str, Job] = {}  # the current job of each lane
         self._busy: dict[str, str] = {}
+        self._busy_lock = threading.RLock()
         self._threads: list[threading.Thread] = []
         self._apply_lock = threading.RLock()  # one apply at a time (a synchronous apply may nest)
 
@@ -157,13 +158,14 @@ class Worker:
             return self._jobs.get(job.lane) is job and not job.cancelled
 
     def _set_busy(self, lane: str, what: str | None) -> None:
-        with self._lock:
+        # one lock around the change and the report, so that reports from two threads cannot
+        # arrive in the other order (the busy line would keep a finished lane)
+        with self._busy_lock:
             if what is None:
                 self._busy.pop(lane, None)
             else:
                 self._busy[lane] = what
-            shown = dict(self._busy)
-        self._on_busy(shown)
+            self._on_busy(dict(self._busy))
 
     def _run(
         self, job: Job, compute: Callable[[], Any], apply: Callable[[Any], Any], delay: float
