@@ -755,3 +755,31 @@ def test_error_text_is_escaped() -> None:
     panel = ExportPanel(lambda: m)
     assert panel.show_text() is None
     assert "<img" not in panel.status.value and "&lt;img" in panel.status.value
+
+
+def _html_values(widget) -> list[str]:
+    """Every HTML text shown anywhere inside ``widget``."""
+    import ipywidgets as widgets
+
+    out = []
+    if isinstance(widget, (widgets.HTML, widgets.HTMLMath)):
+        out.append(widget.value)
+    for child in getattr(widget, "children", ()):
+        out += _html_values(child)
+    return out
+
+
+def test_a_symbol_named_like_markup_is_shown_as_text() -> None:
+    import sympy
+
+    evil = sympy.Symbol("<img src=x onerror=alert(1)>")
+    m = fl.exclusion_chain(4, reach=1, couplings=[evil, 1, 1, 1])
+    wb = Workbench(m, synchronous=True)
+    wb.run_checks()
+    text = wb.export.show_text()  # exported at the slider value, the symbol in a comment
+    assert text is not None and f"# {evil} = 1" in text
+    shown = "\n".join(_html_values(wb))
+    assert "<img" not in shown
+    # the numbers drawn are those of the numeric model (the symbol at its slider value, 1)
+    numeric = fl.exclusion_chain(4, reach=1)
+    _assert_roots_shown(wb, fl.free_spectrum(numeric))

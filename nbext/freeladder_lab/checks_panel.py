@@ -41,7 +41,7 @@ class ChecksPanel(Section):
 
     TITLE = "Checks"
     HINT = "on demand"
-    WIDTH = "half"
+    WIDTH = "58%"
 
     @classmethod
     def attach(cls, host: Host) -> ChecksPanel:

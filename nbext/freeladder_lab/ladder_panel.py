@@ -79,7 +79,7 @@ class LadderPanel(Section):
 
     TITLE = "Ladder"
     HINT = "lowest many-body levels"
-    WIDTH = "half"
+    WIDTH = "42%"
 
     @classmethod
     def attach(cls, host: Host) -> LadderPanel:
@@ -200,7 +200,7 @@ class LadderPanel(Section):
                     for e, m in zip(energies, mult, strict=True)
                 ]
                 self.exact_points.x, self.exact_points.y = ex_e.real, ex_e.imag
-                origin_guides(self.plane_guides, np.concatenate([energies, ex_e]))
+                origin_guides(self.plane_guides, np.concatenate([energies, ex_e]), self.plane)
             self.rungs.x = self.rungs.y = np.zeros((0, 2))
         else:
             self._draw_rungs(energies.real, mult, ex_e.real, ex_m, states)

@@ -1,10 +1,11 @@
 """The shape every Workbench section has: one file, one class, one ``update(view)``.
 
-A section is a widget class with a title, a one-line hint, a width ("full", or "half" to share
-a row with the next half-width section), an ``attach(host)`` class method that builds it for a
-Workbench, and ``update(view)``, called with the :class:`~freeladder_lab.adapter.View` of every
-model the Workbench shows.  The Workbench lists its sections in one tuple
-(``workbench.SECTIONS``): a new section is a new file and one line there.
+A section is a widget class with a title, a one-line hint, a width ("full", or a share of the
+row such as "42%": consecutive sections that are not full width share a row), an
+``attach(host)`` class method that builds it for a Workbench, and ``update(view)``, called
+with the :class:`~freeladder_lab.adapter.View` of every model the Workbench shows.  The
+Workbench lists its sections in one tuple (``workbench.SECTIONS``): a new section is a new
+file and one line there.
 
 The :class:`Host` is what a section may ask of the Workbench: run work in its one worker,
 recompute the view, hand over a new model, run the checks, and read the model on screen.

@@ -224,7 +224,7 @@ class RootsPanel(Section):
             self.root_figure.title = (
                 "roots y_k of P(y)" + (": real and positive (theorem)" if real_reason else "") + tag
             )
-            origin_guides(self.root_guides, roots)
+            origin_guides(self.root_guides, roots, self.root_figure)
         with self.eta_figure.hold_sync():
             self.eta.x, self.eta.y = eta.real, eta.imag
             self.eta.names = eta_names
@@ -234,7 +234,7 @@ class RootsPanel(Section):
             n = spectrum.states
             short = " [one sector]" if shown.sector is not None else tag
             self.eta_figure.title = f"eta_k (filled), {n}-fold star omega^s eta_k (open)" + short
-            origin_guides(self.eta_guides, np.concatenate([eta, star]))
+            origin_guides(self.eta_guides, np.concatenate([eta, star]), self.eta_figure)
         self.summary.value = _summary(spectrum, real_reason, bounds)
 
     def _clear(self) -> None:

@@ -357,4 +357,4 @@ class SeriesPanel(Section):
             self.roots.x, self.roots.y = roots.real, roots.imag
             self.roots.names = [f"y = {number_text(z)}" for z in roots]
             self.target.x, self.target.y = target.real, target.imag
-            origin_guides(self.guides, np.concatenate([roots, target]))
+            origin_guides(self.guides, np.concatenate([roots, target]), self.figure)

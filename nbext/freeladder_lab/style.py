@@ -21,6 +21,7 @@ __all__ = [
     "origin_guides",
     "escape",
     "magnitude_plot",
+    "nice_ticks",
     "number_text",
     "section",
     "spans_decades",
@@ -183,11 +184,27 @@ def magnitude_plot(title: str, y_label: str, height: str = "300px") -> tuple[bq.
     return fig, mark
 
 
-def origin_guides(guides: bq.Lines, points: np.ndarray) -> None:
+def nice_ticks(lo: float, hi: float, most: int = X_TICKS) -> np.ndarray:
+    """At most ``most`` round tick values (1, 2 or 5 times a power of ten apart) in [lo, hi]."""
+    span = hi - lo
+    if not np.isfinite(span) or span <= 0:
+        return np.array([lo])
+    step = 10.0 ** np.floor(np.log10(span / most))
+    for factor in (1.0, 2.0, 5.0, 10.0):
+        if span / (factor * step) <= most:
+            step *= factor
+            break
+    ticks = np.arange(np.ceil(lo / step), np.floor(hi / step) + 1) * step
+    return np.where(np.abs(ticks) < step * 1e-9, 0.0, ticks)  # an exact zero, not 4e-16
+
+
+def origin_guides(guides: bq.Lines, points: np.ndarray, figure: bq.Figure | None = None) -> None:
     """Stretch the dashed guides through the origin over the range of ``points``.
 
     Each axis spans at least a third of the other, so that rounding-level imaginary parts of
-    real numbers stay on the real axis instead of being blown up to fill the plot.
+    real numbers stay on the real axis instead of being blown up to fill the plot.  With
+    ``figure``, its horizontal axis gets at most :data:`X_TICKS` round ticks (labels like
+    1.2e+6 would overlap at the default density in a half-width plot).
     """
     z = np.concatenate([np.asarray(points, complex).ravel(), [0j]])
     re_lo, re_hi = float(np.min(z.real)), float(np.max(z.real))
@@ -198,6 +215,8 @@ def origin_guides(guides: bq.Lines, points: np.ndarray) -> None:
     with guides.hold_sync():
         guides.x = np.array([[re_lo, re_hi], [0.0, 0.0]])
         guides.y = np.array([[0.0, 0.0], [im_lo, im_hi]])
+    if figure is not None:
+        figure.axes[0].tick_values = nice_ticks(re_lo, re_hi)
 
 
 def _widened(lo: float, hi: float, least: float) -> tuple[float, float]:

@@ -36,7 +36,7 @@ __all__ = ["SECTIONS", "Workbench"]
 
 #: The Workbench's sections, in order: one line each.  Each is a
 #: :class:`~freeladder_lab.panel.Section` (``attach(host)``, ``update(view)``); consecutive
-#: half-width sections share a row.
+#: sections that are not full width share a row.
 SECTIONS: tuple[tuple[str, type[Section]], ...] = (
     ("input", InputPanel),
     ("verdict", VerdictPanel),
@@ -258,13 +258,14 @@ class Workbench(widgets.VBox):
 
 
 def _layout(sections: dict[str, Section]) -> list[widgets.Widget]:
-    """Each section under its numbered heading; consecutive half-width ones share a row."""
+    """Each section under its numbered heading; consecutive ones that are not full width share
+    a row."""
     out: list[widgets.Widget] = []
     row: list[widgets.Widget] = []
     for number, part in enumerate(sections.values(), start=1):
         block = widgets.VBox([section(number, part.TITLE, part.HINT), part])
-        if part.WIDTH == "half":
-            block.layout = widgets.Layout(width="50%", padding="0 12px 0 0")
+        if part.WIDTH != "full":
+            block.layout = widgets.Layout(width=part.WIDTH, padding="0 12px 0 0")
             row.append(block)
             continue
         if row:
