@@ -472,6 +472,21 @@ def _clipped(locator: sync_api.Locator) -> list[str]:
     )
 
 
+def _titles_outside(output: sync_api.Locator) -> list[str]:
+    """Plot titles that run past their figure's left or right edge (clipped on screen)."""
+    return output.evaluate(
+        """(node) => [...node.querySelectorAll('.bqplot')].flatMap(fig => {
+            const box = fig.getBoundingClientRect();
+            return [...fig.querySelectorAll('text.mainheading')]
+                .filter(t => (t.textContent || '').trim() !== '')
+                .filter(t => { const r = t.getBoundingClientRect();
+                               return r.width > 0 && (r.left < box.left - 1 ||
+                                                      r.right > box.right + 1); })
+                .map(t => t.textContent);
+        })"""
+    )
+
+
 def test_workbench_reads_at_scale_and_says_what_it_shows(
     server: tuple[str, str, Path], artifacts_dir: Path
 ) -> None:
@@ -556,6 +571,8 @@ def test_workbench_reads_at_scale_and_says_what_it_shows(
             assert right <= column["x"] + column["width"] + 1, (right, column)
             count, hits = _overlaps(ladder.locator(".freeladder-ladder-figure").first, "text")
             assert hits == [], hits
+            assert _titles_outside(ladder) == []
+            assert _titles_outside(big) == []
             _shot_whole(page, ladder, artifacts_dir / "workbench-ladder.png")
 
             # 10: nothing parsed: the box says so, and export does not show a TypeError

@@ -101,6 +101,7 @@ class InputPanel(Section):
             layout=widgets.Layout(grid_template_columns="repeat(4, 1fr)", width="100%")
         )
         self.sliders = widgets.VBox()
+        self._sliders: dict[str, widgets.FloatSlider] = {}  # by symbol name
         self.pattern_box = widgets.HBox(layout=widgets.Layout(flex_flow="row wrap"))
 
         left = widgets.VBox(
@@ -436,10 +437,9 @@ class InputPanel(Section):
     def show_symbols(self, model: Model) -> None:
         """One slider per symbol of ``model`` (kept at their values when the names stay)."""
         names = sorted(str(s) for s in model.symbols)
-        old = {
-            s.description: s for s in self.sliders.children if isinstance(s, widgets.FloatSlider)
-        }
+        old = self._sliders
         if len(names) > SLIDER_LIMIT:
+            self._sliders = {}
             self.sliders.children = [
                 widgets.HTML(
                     f"{len(names)} symbols: sliders are offered for up to {SLIDER_LIMIT}; "
@@ -465,12 +465,9 @@ class InputPanel(Section):
                 slider.observe(lambda change: self._host.recompute(), "value")
             sliders.append(slider)
         head = [widgets.HTML("<b>Symbol values</b>")] if sliders else []
+        self._sliders = dict(zip(names, sliders, strict=True))
         self.sliders.children = head + sliders
 
     def symbol_values(self) -> dict[str, float]:
         """The value each slider sets, by symbol name (a symbol without one is 1)."""
-        return {
-            s.description: float(s.value)
-            for s in self.sliders.children
-            if isinstance(s, widgets.FloatSlider)
-        }
+        return {name: float(s.value) for name, s in self._sliders.items()}
