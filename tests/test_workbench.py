@@ -783,3 +783,22 @@ def test_a_symbol_named_like_markup_is_shown_as_text() -> None:
     # the numbers drawn are those of the numeric model (the symbol at its slider value, 1)
     numeric = fl.exclusion_chain(4, reach=1)
     _assert_roots_shown(wb, fl.free_spectrum(numeric))
+
+
+def test_order_one_formula_is_broken_into_lines() -> None:
+    # issue 24, item 4: Q^(1) = H of the tour's chain ran past the right edge (MathJax does not
+    # break formulas): each line of the aligned block stays within the column's width
+    from freeladder_lab.adapter import _visible
+    from freeladder_lab.series_panel import FORMULA_WIDTH
+
+    m = fl.exclusion_chain(8, reach=2, couplings=fl.staggered(8, 1.0, 0.4))
+    wb = Workbench(m, synchronous=True)
+    wb.series.order.value = 1
+    latex = wb.series.products.value
+    assert r"\begin{aligned}" in latex
+    body = latex.split(r"\begin{aligned}")[1].split(r"\end{aligned}")[0]
+    lines = body.split(r"\\")
+    assert len(lines) >= 2
+    assert all(_visible(line.replace("&", "")) <= FORMULA_WIDTH + 12 for line in lines), lines
+    # every term of H is written once
+    assert latex.count("X_{") == len(m)
