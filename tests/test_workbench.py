@@ -802,3 +802,16 @@ def test_order_one_formula_is_broken_into_lines() -> None:
     assert all(_visible(line.replace("&", "")) <= FORMULA_WIDTH + 12 for line in lines), lines
     # every term of H is written once
     assert latex.count("X_{") == len(m)
+
+
+def test_background_export_runs_in_the_worker() -> None:
+    # the worked calculation is worked out in the Workbench's worker (lane "export"), not in
+    # the button's callback: the call returns at once and the text box fills when it is ready
+    m = fl.exclusion_chain(6, reach=1, couplings=fl.random_couplings(6, seed=3))
+    wb = Workbench(m)
+    wb.wait(60)
+    assert wb.export.show_text() is None
+    wb.wait(60)
+    assert wb.export.text.value == fl.worked_calculation(m).to_script()
+    assert "select the text" in wb.export.status.value
+    assert wb.busy.value == ""

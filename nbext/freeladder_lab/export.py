@@ -272,7 +272,10 @@ class ExportPanel(Section):
     timeout : float
         Seconds to wait for the browser half's answer.
     worker : Worker, optional
-        Runs the calculation and the wait for the answer (a worker of its own by default).
+        Works out the calculation (lane "export") and waits for the answers.  By default a
+        synchronous worker of its own: the calculation is worked out in the button's callback
+        and the methods return their results.  In the Workbench its worker (in a background
+        thread in a notebook: the methods then return None and the status line reports).
 
     Examples
     --------
@@ -309,7 +312,7 @@ class ExportPanel(Section):
         )
         self._folder = folder
         self._timeout = float(timeout)
-        self._worker = worker
+        self._worker = worker or Worker(lambda busy: None, self._failed, synchronous=True)
         self._cache: tuple[Any, Any] | None = None
         self.insert_button = widgets.Button(
             description="insert cells below",
@@ -372,12 +375,29 @@ class ExportPanel(Section):
         color = "#b00020" if error else "inherit"
         self.status.value = f'<span style="color: {color}">{html}</span>'
 
+    def _failed(self, message: str, trace: str) -> None:
+        self._say(f"could not export: {escape(message)}", error=True)
+
+    def _prepared(self, then: Callable[[Any], Any]) -> Any:
+        """Call ``then(calculation)`` once the worked calculation is ready (in the worker).
+
+        Returns what ``then`` returned when the worker ran it at once (synchronous), else None.
+        """
+        done: list[Any] = []
+
+        def apply(wc: Any) -> None:
+            if wc is not None:
+                done.append(then(wc))
+
+        self._worker.submit("export", "working out the calculation", self._calculation, apply)
+        return done[0] if done and self._worker.synchronous else None
+
     # -- actions ---------------------------------------------------------------------------------
     def insert(self) -> None:
         """Send the cells to the browser half; the status line shows its answer."""
-        wc = self._calculation()
-        if wc is None:
-            return
+        self._prepared(self._insert_now)
+
+    def _insert_now(self, wc: Any) -> None:
         self._say(f"sending {len(wc)} cells to the notebook ...")
         send_cells(wc, self.model_id, self._on_reply, timeout=self._timeout, worker=self._worker)
 
@@ -402,9 +422,10 @@ class ExportPanel(Section):
         seconds, under the name the kernel started with); the status line says where, and
         None is returned.  Outside a kernel the file is written at once and its path returned.
         """
-        wc = self._calculation()
-        if wc is None:
-            return None
+        result: Path | None = self._prepared(self._save_now)
+        return result
+
+    def _save_now(self, wc: Any) -> Path | None:
         if not _in_kernel():
             return self._write(wc, None)
         self._say("asking the notebook for its current name ...")
@@ -429,10 +450,12 @@ class ExportPanel(Section):
         return None
 
     def show_text(self) -> str | None:
-        """Show the cells as one script in a read-only text box, to copy."""
-        wc = self._calculation()
-        if wc is None:
-            return None
+        """Show the cells as one script in a read-only text box, to copy (returns the text
+        when the worker is synchronous)."""
+        result: str | None = self._prepared(self._text_now)
+        return result
+
+    def _text_now(self, wc: Any) -> str:
         self._shown_text = wc.to_script()
         self.text.value = self._shown_text
         self.text.layout.display = None
