@@ -12,6 +12,7 @@ import html
 import itertools
 import re
 import threading
+import time
 
 import networkx as nx
 import numpy as np
@@ -815,3 +816,34 @@ def test_background_export_runs_in_the_worker() -> None:
     assert wb.export.text.value == fl.worked_calculation(m).to_script()
     assert "select the text" in wb.export.status.value
     assert wb.busy.value == ""
+
+
+def test_worker_delay_waits_and_a_newer_request_cancels_the_wait() -> None:
+    # the pause after typing: only the last of several quick requests runs
+    applied: list[str] = []
+    worker = Worker(lambda lanes: None, lambda m, t: applied.append(m))
+    for text in ("X0", "X0 Z1", "X0 Z1 + X1"):
+        worker.submit("typing", "reading", lambda t=text: t, applied.append, delay=0.3)
+    worker.wait(10)
+    assert applied == ["X0 Z1 + X1"]
+    # a job that was cancelled stops at its next checkpoint
+    from freeladder_lab.worker import checkpoint
+
+    reached: list[int] = []
+    release = threading.Event()
+
+    def parts() -> str:
+        reached.append(1)
+        release.wait(10)
+        checkpoint()
+        reached.append(2)
+        return "done"
+
+    worker.submit("model", "parts", parts, applied.append)
+    deadline = time.monotonic() + 10
+    while not reached and time.monotonic() < deadline:
+        time.sleep(0.01)
+    worker.cancel("model")
+    release.set()
+    worker.wait(10)
+    assert reached == [1] and applied == ["X0 Z1 + X1"]
