@@ -144,6 +144,7 @@ class LadderPanel(Section):
             axes=[self.y_axis],
             fig_margin={"top": 36, "bottom": 12, "left": 74, "right": 8},
             layout=widgets.Layout(width="100%", height="360px"),
+            interaction=bq.PanZoom(scales={"y": [sy]}),
         )
         self.rung_figure.add_class("freeladder-ladder-figure")
         self.plane, px, py, self.plane_guides = complex_plane(
