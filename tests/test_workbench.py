@@ -715,6 +715,7 @@ def test_export_after_a_typo_says_no_model_parsed() -> None:
     assert wb.model is None
     assert "No model has parsed yet" in wb.input.message.value
     assert "last model that parsed" not in wb.input.message.value
+    assert wb.input.family.value == CUSTOM  # no family model is claimed either
     assert wb.export.show_text() is None
     assert "no model has parsed" in wb.export.status.value
     assert "TypeError" not in wb.export.status.value

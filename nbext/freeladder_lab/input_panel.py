@@ -175,17 +175,26 @@ class InputPanel(Section):
         try:
             model = parse_text(text, self.states.value)
         except ModelSyntaxError as exc:
+            self._not_parsed()
             self.show_syntax_error(exc)
             return
         except ValueError as exc:
+            self._not_parsed()
             self.show_problem(str(exc))
             return
         if len(model) == 0:
+            self._not_parsed()
             self.show_problem("the text has no operator terms (a constant alone has no spectrum)")
             return
         self.message.value = ""
         self.reflect(model)
         self._host.take_model(model)
+
+    def _not_parsed(self) -> None:
+        """Typed text that never parsed: the family controls do not claim a model."""
+        if not self.parsed_once:
+            self._base = None
+            self._show_custom()
 
     def show_syntax_error(self, exc: ModelSyntaxError) -> None:
         """The parser's message with the offending line and a caret under the column."""
