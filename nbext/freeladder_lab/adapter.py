@@ -34,7 +34,7 @@ import sympy
 import freeladder as fl
 from freeladder.algebra.operators import StringSum
 from freeladder.algebra.printing import format_terms, format_terms_latex
-from freeladder.base.errors import NoTheoremError, TooLargeError
+from freeladder.base.errors import TooLargeError
 from freeladder.base.references import CHUDNOVSKY_SEYMOUR_2007
 from freeladder.checks.verification import Check, hamiltonian_check
 
@@ -74,6 +74,7 @@ __all__ = [
     "real_roots_reason",
     "rescaled",
     "sector_choices",
+    "spectrum_outcome",
     "star_points",
     "term_labels",
     "term_text",
@@ -166,50 +167,31 @@ def _sector_label(sp: fl.FreeSpectrum) -> str:
     return f"one sector ({pairs})" if pairs else "one sector"
 
 
-def outcome(a: fl.Analysis, choice: Any = None, unproven: bool = False) -> Outcome:
-    """The spectrum for the sector chooser's value, or the library's refusal.
+def spectrum_outcome(
+    a: fl.Analysis, choice: Any = None, unproven: bool = False
+) -> fl.SpectrumAnswer:
+    """The one spectrum function of the widgets: the library's answer for the sector chooser's
+    value (:meth:`freeladder.Analysis.answer`).
 
-    The one place the Workbench reads the spectrum.  None or "polynomial": the single
-    polynomial (with ``unproven`` the numbers come back even when no theorem covers the
-    model, marked: ``provenance.guaranteed`` is False).  "ground" or a tuple of cycle values:
-    that sector.  "all": every sector's lowest level (refused beyond
-    :data:`SECTOR_CHOICE_LIMIT` sectors), with the ground sector drawn.
+    None: the best the theorems allow (the single polynomial when guaranteed, else the ground
+    sector of a Jordan-Wigner model with cycles).  "polynomial": the single polynomial only,
+    with ``unproven`` the numbers no theorem covers (marked).  "ground", "all" (every sector
+    in a table, the ground sector drawn) or a tuple of cycle values: that sector.  Either the
+    numbers or the refusal with its reason and what to do instead.
     """
-    try:
-        if choice is None or choice == "polynomial":
-            try:
-                sp = a.spectrum()
-            except NoTheoremError as exc:
-                if not unproven:
-                    return Outcome(refusal=str(exc), label="refused")
-                sp = a.spectrum(unproven=True)
-            return Outcome(spectrum=sp, label="free spectrum")
-        m = a.model
-        if choice == "all":
-            structure = fl.sectors(m)
-            if structure.count > SECTOR_CHOICE_LIMIT:
-                return Outcome(
-                    refusal=f"{structure.count} sectors: more than {SECTOR_CHOICE_LIMIT} to "
-                    "list here; choose the ground sector, or use "
-                    "fl.jordan_wigner_spectrum(m, 'all') in a cell",
-                    label="refused",
-                )
-            every = fl.jordan_wigner_spectrum(m, "all")
-            rows = tuple(
-                SectorRow(
-                    _signs(sec.label),
-                    complex(sec.ground_energy + every.constant),
-                    len(every.quasi_energies(i)),
-                    int(sec.multiplicity),
-                )
-                for i, sec in enumerate(every.sectors)
-            )
-            ground = a.spectrum(sector="ground")
-            return Outcome(spectrum=ground, sectors=rows, label=_sector_label(ground))
-        sp = a.spectrum(sector=choice)
-        return Outcome(spectrum=sp, label=_sector_label(sp))
-    except ValueError as exc:  # TooLargeError and inconsistent labels included
-        return Outcome(refusal=str(exc), label="refused")
+    return a.answer(sector=choice, unproven=unproven)
+
+
+def outcome(a: fl.Analysis, choice: Any = None, unproven: bool = False) -> Outcome:
+    """The answer of :func:`spectrum_outcome`, in the form the panels draw."""
+    answer = spectrum_outcome(a, choice, unproven)
+    if answer.spectrum is None:
+        return Outcome(refusal=answer.message, label="refused")
+    rows = tuple(
+        SectorRow(_signs(r.label), complex(r.lowest), int(r.modes), int(r.multiplicity))
+        for r in (answer.sectors or ())
+    )
+    return Outcome(spectrum=answer.spectrum, sectors=rows, label=_sector_label(answer.spectrum))
 
 
 def _signs(values: Sequence[int]) -> str:
@@ -219,8 +201,9 @@ def _signs(values: Sequence[int]) -> str:
 def sector_choices(a: fl.Analysis) -> list[tuple[str, Any]] | None:
     """The sector chooser's options for a Jordan-Wigner model with cycles, else None.
 
-    Options are (text, value) with value "ground", "all", "polynomial" (the single
-    polynomial, which the library refuses here) or a tuple of cycle-string eigenvalues
+    Options are (text, value) with value "ground", "all" (offered for at most
+    :data:`SECTOR_CHOICE_LIMIT` sectors), "polynomial" (the single polynomial, which the
+    library refuses here) or a tuple of cycle-string eigenvalues
     (listed when at most :data:`SECTOR_CHOICE_LIMIT` sets of them are consistent); each such
     option names the cycle string each value belongs to.
     """
@@ -233,10 +216,11 @@ def sector_choices(a: fl.Analysis) -> list[tuple[str, Any]] | None:
     if not structure.cycle_operators:
         return None
     options: list[tuple[str, Any]] = [
-        ("ground sector (exhaustive search / flux theorem)", "ground"),
-        ("all sectors (table)", "all"),
-        ("single polynomial (no theorem: refused)", "polynomial"),
+        ("ground sector (exhaustive search / flux theorem)", "ground")
     ]
+    if structure.count <= SECTOR_CHOICE_LIMIT:
+        options.append(("all sectors (table)", "all"))
+    options.append(("single polynomial (no theorem: refused)", "polynomial"))
     names = [format_terms([(1, w)]) for w in structure.cycle_operators]
     n_cycles = len(names)
     if structure.rank <= 10:  # at most 1024 labels to look through
@@ -290,7 +274,8 @@ def derive(model: fl.Model, numeric: fl.Model, unproven: bool, choice: Any) -> V
     one at its next part.
     """
     a = analyze(numeric)
-    for part in ("verdict", "graph", "chain", "charge_counts"):
+    # (the graph panel asks for the graph itself, only when the strings change)
+    for part in ("verdict", "chain", "charge_counts"):
         checkpoint()
         getattr(a, part)
     checkpoint()
@@ -476,12 +461,10 @@ def partial_roots(a: fl.Analysis, s: int) -> np.ndarray | None:
     python-flint balls), repeated by multiplicity.
 
     Returns an empty array for s = 0 (no roots) and None when the library refuses (degree above
-    its limit, symbolic coefficients) or P's degree exceeds :data:`PARTIAL_DEGREE_LIMIT`.
+    its limit, symbolic coefficients).
     """
     if s == 0:
         return np.zeros(0, complex)
-    if a.polynomial.degree > PARTIAL_DEGREE_LIMIT:
-        return None  # not expanded (see partial_coefficients)
     try:
         found = a.polynomial.truncated(s).roots()
     except (TooLargeError, TypeError, ValueError):
