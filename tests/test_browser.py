@@ -230,6 +230,14 @@ def _workbench_checks(page: sync_api.Page, cell: sync_api.Locator, path: Path) -
         timeout=120_000,
     )
     _check_workbench_layout(page, output)
+    # The Dynamics section: the edge autocorrelation of the tour's chain, drawn with its summary.
+    output.get_by_role("button", name="Evolve the edge").click()
+    page.wait_for_function(
+        """(node) => /plateau \\(zero-mode weight\\)|No expansion/.test(node.textContent)""",
+        arg=output.element_handle(),
+        timeout=120_000,
+    )
+    assert "plateau (zero-mode weight)" in (output.text_content() or "")
     height = int((output.bounding_box() or {"height": 2500})["height"])
     page.set_viewport_size({"width": 1400, "height": height + 400})
     output.scroll_into_view_if_needed()

@@ -848,3 +848,20 @@ def test_worker_delay_waits_and_a_newer_request_cancels_the_wait() -> None:
     release.set()
     worker.wait(10)
     assert reached == [1] and applied == ["X0 Z1 + X1"]
+
+
+def test_dynamics_section_draws_the_library_autocorrelation() -> None:
+    # The curve is fl.autocorrelation's (itself checked against dense expm in test_dynamics);
+    # the plateau of the Ising chain ending in a bond is 1 - (h/J)^2 on long chains (Kemp, Yao,
+    # Laumann and Fendley, J. Stat. Mech. (2017) 063105; from memory, checked in test_dynamics).
+    m = fl.parse_model(" + ".join(f"0.5 X{i} + Z{i} Z{i + 1}" for i in range(30)))
+    wb = Workbench(m, synchronous=True)
+    wb.dynamics.run()
+    times = np.concatenate([[0.0], np.asarray(wb.dynamics.curve.x, float)])
+    ref = fl.autocorrelation(m, times)
+    np.testing.assert_allclose(wb.dynamics.curve.y, np.real(ref.values[1:]), atol=1e-12)
+    assert abs(wb.dynamics.plateau.y[0] - 0.75) < 1e-9
+    assert "plateau (zero-mode weight) 0.75" in wb.dynamics.summary.value
+    claw = Workbench("X0 X1 X2 + Z0 + Z1 + Z2", synchronous=True)
+    claw.dynamics.run()
+    assert "No expansion of the edge operator" in claw.dynamics.summary.value

@@ -552,3 +552,36 @@ def charge_latex(step: fl.ChargeStep, max_terms: int, width: int) -> str:
         rf" \\ & - {t[1:]}" if t.startswith("-") else rf" \\ & + {t}" for t in lines[1:]
     )
     return rf"\begin{{aligned}} Q^{{({step.order})}} = {{}} & {body}{tail} \end{{aligned}}"
+
+
+#: Time points of the Workbench's edge autocorrelation (log-spaced, after t = 0).
+DYNAMICS_POINTS = 300
+
+
+def edge_dynamics(a: fl.Analysis) -> fl.Autocorrelation | str:
+    """The edge operator's infinite-temperature autocorrelation, or why there is none.
+
+    The times run from ``t = 0`` over log-spaced points from a twentieth of the fastest
+    period to twenty times the slowest one (capped at 10^8 fastest periods), so that both
+    the fast decay and the plateau of a slow edge mode show.
+
+    Returns
+    -------
+    Autocorrelation or str
+        The library's result, or the library's reason in words when the edge operator has no
+        expansion in the modes (or the model no free spectrum).
+    """
+    try:
+        expansion = fl.edge_expansion(a.model)
+    except (fl.NotExpandableError, fl.NoTheoremError, ValueError) as err:
+        return str(err)
+    eta = np.abs(np.asarray(expansion.quasi_energies, complex))
+    eta = eta[np.isfinite(eta) & (eta > 0)]
+    if not len(eta):
+        return "the modes have no nonzero quasi-energy: the edge operator does not move"
+    fast, slow = float(eta.max()), float(eta.min())
+    lo = 0.05 / fast
+    hi = max(min(20.0 / slow, 1e8 / fast), 10 * lo)
+    times = np.concatenate([[0.0], np.geomspace(lo, hi, DYNAMICS_POINTS)])
+    checkpoint()
+    return fl.autocorrelation(a.model, times)

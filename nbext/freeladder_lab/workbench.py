@@ -22,6 +22,7 @@ import traitlets
 
 from .adapter import Analysis, Model, View, derive, numeric_model
 from .checks_panel import ChecksPanel
+from .dynamics_panel import DynamicsPanel
 from .export import ExportPanel
 from .input_panel import InputPanel
 from .ladder_panel import LadderPanel
@@ -44,6 +45,7 @@ SECTIONS: tuple[tuple[str, type[Section]], ...] = (
     ("roots", RootsPanel),
     ("ladder", LadderPanel),
     ("checks", ChecksPanel),
+    ("dynamics", DynamicsPanel),
     ("export", ExportPanel),
 )
 
