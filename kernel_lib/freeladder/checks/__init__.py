@@ -22,12 +22,15 @@ from .verification import (
     charge_pairs_check,
     exact_diagonalization_check,
     hamiltonian_check,
+    hypotheses_check,
     inversion_check,
     ladder_check,
     pairwise_check,
+    power_sum_check,
     sum_rule_check,
     transfer_from_charges,
     verify,
+    window_check,
 )
 
 __all__ = [
@@ -48,12 +51,15 @@ __all__ = [
     "exact_diagonalization_check",
     "field_of",
     "hamiltonian_check",
+    "hypotheses_check",
     "inversion_check",
     "inversion_sweep",
     "ladder_check",
     "pairwise_check",
+    "power_sum_check",
     "run",
     "sum_rule_check",
     "transfer_from_charges",
     "verify",
+    "window_check",
 ]
