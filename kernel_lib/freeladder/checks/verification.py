@@ -61,11 +61,18 @@ from ..graphs.graph import chain_structure
 from ..roots.polynomial import exclusion_polynomial, sum_rules
 from ..roots.real import chain_back, chain_root_count
 from ..spectra.charges import charge
-from ..spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
+from ..spectra.ed import (
+    DENSE_LIMIT,
+    SPARSE_CHECK_LIMIT,
+    ExactSpectrum,
+    exact_spectrum,
+    sector_exact_spectrum,
+    sparse_memory,
+)
 from ..spectra.edge import components, ladder_operators
 from ..spectra.majorana import jordan_wigner_spectrum, sectors
 from ..spectra.matching import match_levels
-from ..spectra.spectrum import FreeSpectrum, _ordering
+from ..spectra.spectrum import FreeSpectrum, _ordering, free_spectrum
 from .charge_sweep import MAX_WORK, SweepResult, commutator_sweep, inversion_sweep
 from .hypotheses import independent_along, ordering_hypotheses
 from .power_sums import MOMENTS, compare_moments
@@ -84,8 +91,10 @@ __all__ = [
     "hypotheses_check",
     "inversion_check",
     "ladder_check",
+    "lowest_levels_check",
     "pairwise_check",
     "power_sum_check",
+    "sector_lowest_check",
     "sum_rule_check",
     "transfer_from_charges",
     "verify",
@@ -135,6 +144,14 @@ ROUTES = "polynomial and Jordan-Wigner routes agree"
 HYPOTHESES = "theorem hypotheses on the ordering"
 POWER_SUMS = "roots = power sums of P"
 WINDOWS = "[H, Q(s)] = 0 on windows, low orders"
+LOWEST = "lowest levels = sparse exact diagonalization"
+
+SPARSE_AUTO_DIMENSION = 2**16
+"""``exact_diagonalization="auto"`` compares the lowest levels sparsely up to this dimension
+(True: up to :data:`freeladder.spectra.ed.SPARSE_CHECK_LIMIT`, 2^22)."""
+
+SPARSE_LEVELS = 8
+"""How many lowest eigenvalues (with multiplicity) the sparse comparison takes."""
 
 WINDOW_ORDERS = 3
 """Highest order s of the window check (Q(3) is the lowest order a claw breaks)."""
@@ -266,7 +283,7 @@ class Report:
         )
         if not any(c.passed and c.decisive for c in self.checks):
             out.append("no decisive check ran (none that could fail for a model that is not free)")
-        confirmed = any(c.passed and c.name in (EXACT, SECTORS) for c in self.checks)
+        confirmed = any(c.passed and c.name in (EXACT, SECTORS, LOWEST) for c in self.checks)
         if self.guaranteed is False and not confirmed:
             out.append(
                 "no theorem guarantees the free spectrum and exact diagonalization did not "
@@ -1335,18 +1352,138 @@ def _spectral(parts: _Parts, exact_diagonalization: bool | str, checks: list[Che
         checks.append(
             _run(EXACT, _exact_check, parts, spectrum, required=exact_diagonalization is True)
         )
+    elif _sparse_wanted(m, exact_diagonalization) and (
+        exact_diagonalization is True or (spectrum[0].degeneracy or 1) == 1
+    ):
+        checks.append(
+            _run(LOWEST, lowest_levels_check, m, spectrum, required=exact_diagonalization is True)
+        )
     elif exact_diagonalization == "auto":
         checks.append(
             Check(
-                EXACT,
-                "exact diagonalization",
+                LOWEST,
+                "sparse exact diagonalization",
                 0.0,
                 float("nan"),
                 None,
-                f"not applicable: dimension {_dim(m)} > {ED_AUTO_DIMENSION}, the largest "
-                "compared automatically",
+                f"not applicable: dimension {_dim(m)} > {SPARSE_AUTO_DIMENSION}, the largest "
+                f"compared automatically, or every level {spectrum[0].degeneracy} times "
+                "degenerate (Lanczos finds one vector per level: slow and partial there); "
+                f"exact_diagonalization=True compares up to {SPARSE_CHECK_LIMIT}"
+                f"{_memory_text(m)}",
             )
         )
+
+
+def _sparse_wanted(m: Model, exact_diagonalization: bool | str) -> bool:
+    """True when the lowest levels are compared sparsely (the whole spectrum is not)."""
+    if m.is_symbolic or m.dimension <= ED_AUTO_DIMENSION:
+        return False
+    if exact_diagonalization is True:
+        return True
+    return exact_diagonalization == "auto" and m.dimension <= SPARSE_AUTO_DIMENSION
+
+
+def _memory_text(m: Model) -> str:
+    if m.dimension > 2**40:
+        return ""
+    need = sparse_memory(m, SPARSE_LEVELS)
+    return f"; a sparse solve would need about {need / 2**30:.3g} GiB"
+
+
+def _compare_lowest(
+    name: str,
+    sp: FreeSpectrum,
+    why: str,
+    ed: ExactSpectrum,
+    ref: str,
+    where: str,
+) -> Check:
+    """The distinct lowest levels of ``ed`` against the distinct lowest free levels.
+
+    Lanczos from one start vector finds one vector per eigenvalue (copies of a degenerate one
+    only through rounding), so the comparison is of distinct levels, not multiplicities.
+    """
+    exact = np.asarray(ed.levels, dtype=float)
+    scale = max(1.0, float(np.max(np.abs(exact))) if len(exact) else 1.0)
+    bound = float(np.sum(np.asarray(sp.error_bounds, dtype=float)))
+    tol = max(FLOAT_RTOL * scale, float(ed.error_estimate) + bound)
+    energies = np.sort(np.asarray(sp.levels(4 * len(ed.eigenvalues)).energies, dtype=float))
+    breaks = np.flatnonzero(np.diff(energies) > max(tol, ed.tolerance)) + 1
+    free = (
+        np.array([part.mean() for part in np.split(energies, breaks)])
+        if len(energies)
+        else energies
+    )
+    count = len(exact)
+    dev = float(np.max(np.abs(free[:count] - exact))) if len(free) >= count > 0 else float("inf")
+    detail = (
+        f"{where}: the {count} lowest distinct eigenvalues by {ed.method} of dimension "
+        f"{ed.dimension} ({len(ed.eigenvalues)} Ritz values; Lanczos does not resolve "
+        f"multiplicities) against the lowest distinct free levels; largest difference"
+    )
+    method, detail = _probe(why, "sparse exact diagonalization", detail)
+    return Check(name, method, tol, dev, dev <= tol, detail, ref)
+
+
+def lowest_levels_check(
+    m: Model, spectrum: tuple[FreeSpectrum, str] | None = None, k: int = SPARSE_LEVELS
+) -> Check:
+    """The lowest ``k`` eigenvalues from sparse exact diagonalization (scipy ARPACK) against the
+    lowest free levels with their multiplicity, up to dimension 2^22.
+
+    Raises
+    ------
+    CheckNotApplicable
+        Symbolic couplings, complex levels, a dimension above
+        :data:`freeladder.spectra.ed.SPARSE_CHECK_LIMIT` (with the memory it would need), or
+        too little memory (:class:`freeladder.base.errors.TooLargeError`).
+    """
+    if m.is_symbolic:
+        raise CheckNotApplicable("symbolic couplings")
+    if m.dimension > SPARSE_CHECK_LIMIT:
+        raise CheckNotApplicable(
+            f"dimension {_dim(m)} > {SPARSE_CHECK_LIMIT} = 2^22, the largest diagonalised "
+            f"sparsely in the checks{_memory_text(m)}"
+        )
+    sp, why = spectrum if spectrum is not None else _Parts(analyze(m)).spectrum()
+    if np.iscomplexobj(sp.quasi_energies) or sp.states != 2:
+        raise CheckNotApplicable("complex levels: the lowest are not ordered on a line")
+    try:
+        ed = sector_exact_spectrum(m, min(k, m.dimension - 2))
+    except TooLargeError as err:
+        raise CheckNotApplicable(str(err)) from err
+    ref = "scipy ARPACK (Lehoucq, Sorensen and Yang 1998; common practice)"
+    return _compare_lowest(LOWEST, sp, why, ed, ref, "whole space")
+
+
+def sector_lowest_check(m: Model, k: int = SPARSE_LEVELS) -> Check:
+    """The ground sector's lowest free levels (``free_spectrum(m, sector="ground")``) against
+    sparse exact diagonalization restricted to the same cycle values
+    (:func:`freeladder.spectra.ed.sector_exact_spectrum`), parities included on both sides.
+
+    Raises
+    ------
+    CheckNotApplicable
+        As :func:`lowest_levels_check`.
+    """
+    if m.dimension > SPARSE_CHECK_LIMIT:
+        raise CheckNotApplicable(
+            f"dimension {_dim(m)} > {SPARSE_CHECK_LIMIT} = 2^22, the largest diagonalised "
+            f"sparsely in the checks{_memory_text(m)}"
+        )
+    sp = free_spectrum(m, sector="ground")
+    if np.iscomplexobj(sp.quasi_energies):
+        raise CheckNotApplicable("complex levels: the lowest are not ordered on a line")
+    values = tuple((sp.provenance.sector or {}).get("cycle_values", ()))
+    gens = sectors(m).cycle_operators
+    fixed = [(g, int(v)) for g, v in zip(gens, values, strict=True) if g.support]
+    try:
+        ed = sector_exact_spectrum(m, min(k, m.dimension - 2), fixed)
+    except TooLargeError as err:
+        raise CheckNotApplicable(str(err)) from err
+    where = f"the ground sector (cycle values {values})"
+    return _compare_lowest(LOWEST, sp, "", ed, CHAPMAN_FLAMMIA_2020, where)
 
 
 def _exact_check(parts: _Parts, spectrum: tuple[FreeSpectrum, str]) -> Check:
@@ -1430,6 +1567,9 @@ def _sector_checks(parts: _Parts, exact_diagonalization: bool | str, checks: lis
     m = parts.model
     checks.append(_run(CONSERVED, conserved_strings_check, m))
     if exact_diagonalization is False:
+        return
+    if _sparse_wanted(m, exact_diagonalization):
+        checks.append(_run(LOWEST, sector_lowest_check, m, required=exact_diagonalization is True))
         return
     checks.append(
         _run(SECTORS, sector_spectra_check, parts, required=exact_diagonalization is True)
