@@ -1346,8 +1346,8 @@ def _spectral(parts: _Parts, exact_diagonalization: bool | str, checks: list[Che
     if m.states == 2:
         checks.append(_run(LADDER, ladder_check, m, spectrum))
     checks.append(_run(SUM_RULES, sum_rule_check, m, spectrum))
-    if exact_diagonalization is True or (
-        exact_diagonalization == "auto" and m.dimension <= ED_AUTO_DIMENSION
+    if exact_diagonalization is not False and (
+        m.dimension <= ED_AUTO_DIMENSION or m.dimension > SPARSE_CHECK_LIMIT
     ):
         checks.append(
             _run(EXACT, _exact_check, parts, spectrum, required=exact_diagonalization is True)
