@@ -365,7 +365,12 @@ class Report:
         left = "text-align:left;vertical-align:top"
         rows = []
         for c in self.checks:
-            colour = {True: "#1a7f37", False: "#cf222e", None: "#6e7781"}[c.passed]
+            colour = {
+                "passed": "#1a7f37",
+                "FAILED": "#cf222e",
+                "not run": "#6e7781",
+                "does not hold": "#6e7781",  # not claimed: reported, never a failure
+            }[c.status]
             cells = []
             for k, t in enumerate(self._cells(c)):
                 style = left + (";white-space:nowrap" if k in (2, 3, 5) else "")
