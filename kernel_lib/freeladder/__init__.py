@@ -56,7 +56,7 @@ from .spectra.charges import (
     charge_series,
     transfer_matrix,
 )
-from .spectra.ed import ExactSpectrum, exact_spectrum
+from .spectra.ed import ExactSpectrum, exact_spectrum, sector_exact_spectrum, sparse_memory
 from .spectra.edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
 from .spectra.majorana import (
     FluxSector,
@@ -154,6 +154,8 @@ __all__ = [
     "log_partition_function",
     "thermodynamics",
     "exact_spectrum",
+    "sector_exact_spectrum",
+    "sparse_memory",
     "Model",
     "ModelSyntaxError",
     "WeylString",

@@ -15,6 +15,8 @@ from .ed import (
     SPARSE_LIMIT,
     ExactSpectrum,
     exact_spectrum,
+    sector_exact_spectrum,
+    sparse_memory,
 )
 from .edge import (
     EdgeMode,
@@ -79,6 +81,8 @@ __all__ = [
     "components",
     "edge_mode",
     "exact_spectrum",
+    "sector_exact_spectrum",
+    "sparse_memory",
     "flux_sector",
     "flux_theorem_values",
     "free_spectrum",
