@@ -17,7 +17,7 @@ import pytest
 
 import freeladder as fl
 from freeladder import StringSum
-from freeladder.base.errors import CheckNotApplicable, NoTheoremError
+from freeladder.base.errors import CheckNotApplicable
 from freeladder.checks import verification
 from freeladder.checks.verification import (
     Check,
