@@ -17,7 +17,7 @@ import pytest
 
 import freeladder as fl
 from freeladder import StringSum
-from freeladder.base.errors import CheckNotApplicable
+from freeladder.base.errors import CheckNotApplicable, NoTheoremError
 from freeladder.checks import verification
 from freeladder.checks.verification import (
     Check,
@@ -389,16 +389,12 @@ def test_unproven_spectrum_needs_exact_diagonalization_to_be_ok() -> None:
 
 def test_dependent_strings_are_caught() -> None:
     # Z0 Z1, Z1 Z2, Z0 Z2 multiply to the identity, a relation the frustration graph does not
-    # show: the single polynomial is not guaranteed (its free levels differ from numpy's
-    # eigenvalues); the relation fixes the Majorana parity and there is no cycle, so the one
-    # sector is the model, solved with the parity as a constraint, and the report rests on it
+    # show: the single polynomial is refused (its free levels differ from numpy's eigenvalues)
+    # and the report rests on the sector route, which accounts for the relation
     m = fl.parse_model("Z0 Z1 + X1 + Z1 Z2 + X2 + Z0 Z2")
     exact = np.linalg.eigvalsh(m.to_sparse().toarray())
-    single = fl.free_spectrum(m)
-    assert single.guaranteed and single.parity_constraints and single.provenance.sector
-    table = single.levels(None)
-    levels = np.sort(np.repeat(np.asarray(table.energies), table.multiplicity))
-    assert np.allclose(levels, exact, atol=1e-12)
+    with pytest.raises(NoTheoremError):
+        fl.free_spectrum(m)
     free = fl.free_spectrum(m, **_unproven()).ground_energy
     assert abs(free - exact[0]) > 0.1  # the numpy reference disagrees with the free levels
     r = fl.verify(m)
@@ -406,8 +402,8 @@ def test_dependent_strings_are_caught() -> None:
     # the odd ring of 13 commuting Z Z terms: true ground energy -11 (the product of all terms
     # is 1, so an even number of them is -1; brute force over the diagonal with numpy)
     ring = fl.parse_model(" + ".join(f"Z{i} Z{(i + 1) % 13}" for i in range(13)))
-    single = fl.free_spectrum(ring)  # no cycle: one sector, the relation a parity constraint
-    assert single.parity_constraints and single.ground_energy == pytest.approx(-11)
+    with pytest.raises(NoTheoremError):
+        fl.free_spectrum(ring)
     spins = 1 - 2 * ((np.arange(2**13)[:, None] >> np.arange(13)[None, :]) & 1)
     diagonal = (spins * np.roll(spins, -1, axis=1)).sum(axis=1)
     assert diagonal.min() == -11

@@ -1129,8 +1129,9 @@ def _sector_spectrum(
 
 
 def _one_cycle_sector(m: Model) -> bool:
-    """True for a Jordan-Wigner model whose consistent sectors all share one set of cycle
-    values (the relations among the cycle and parity strings fix every cycle value)."""
+    """True for a Jordan-Wigner model with cycles whose consistent sectors all share one set of
+    cycle values (the relations among the cycle and parity strings fix every cycle value).
+    Models without cycles that are refused for a relation keep their refusal."""
     if m.states != 2 or classify(m).kind != "jordan-wigner":
         return False
     try:
@@ -1139,7 +1140,7 @@ def _one_cycle_sector(m: Model) -> bool:
     except ValueError:  # too many sectors to list
         return False
     cycles = len(structure.cycle_operators)
-    return len({label[:cycles] for label in labels}) == 1
+    return cycles > 0 and len({label[:cycles] for label in labels}) == 1
 
 
 def _real_rooted(eta: np.ndarray, bounds: np.ndarray) -> np.ndarray:
