@@ -283,7 +283,7 @@ def test_an_exception_is_shown_with_its_traceback(monkeypatch: pytest.MonkeyPatc
     def broken(a, choice, unproven):
         raise RuntimeError("deliberately broken for the test")
 
-    monkeypatch.setattr(workbench_module, "sector_spectrum", broken)
+    monkeypatch.setattr(workbench_module, "spectrum_outcome", broken)
     wb.set_text("X0 Z1 + X1 Z2 + X2 Z3")
     assert "deliberately broken" in wb.error.value
     assert "RuntimeError" in wb.traceback.value and "Traceback" in wb.traceback.value

@@ -18,7 +18,6 @@ roots of claw-free independence polynomials).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from itertools import islice
 from typing import Any
 
@@ -27,7 +26,7 @@ import numpy as np
 import freeladder as fl
 from freeladder.algebra.operators import StringSum
 from freeladder.algebra.printing import format_terms
-from freeladder.base.errors import NoTheoremError, TooLargeError
+from freeladder.base.errors import TooLargeError
 from freeladder.base.references import CHUDNOVSKY_SEYMOUR_2007
 from freeladder.checks.verification import Check, hamiltonian_check
 
@@ -37,8 +36,6 @@ __all__ = [
     "ED_OVERLAY_DIMENSION",
     "PARTIAL_DEGREE_LIMIT",
     "SECTOR_CHOICE_LIMIT",
-    "Refusal",
-    "SectorOverview",
     "analyze",
     "charge_step",
     "exact_overlay",
@@ -47,8 +44,7 @@ __all__ = [
     "partial_roots",
     "real_roots_reason",
     "sector_choices",
-    "sector_spectrum",
-    "spectrum_or_refusal",
+    "spectrum_outcome",
     "star_points",
     "term_labels",
 ]
@@ -84,33 +80,28 @@ def charge_step(a: fl.Analysis, s: int) -> fl.ChargeStep:
     return next(islice(a.charge_series(), s, None))
 
 
-@dataclass(frozen=True)
-class Refusal:
-    """The library's refusal to give a spectrum, with its reason."""
+def spectrum_outcome(
+    a: fl.Analysis, choice: Any = None, unproven: bool = False
+) -> fl.SpectrumAnswer:
+    """The one spectrum function of the widgets: the library's answer for the sector chooser's
+    value (:meth:`freeladder.Analysis.answer`).
 
-    reason: str
-
-
-def spectrum_or_refusal(a: fl.Analysis, unproven: bool) -> fl.FreeSpectrum | Refusal:
-    """The spectrum, or the library's stated reason for refusing it.
-
-    With ``unproven`` the numbers come back even when no theorem covers the model (marked:
-    ``provenance.guaranteed`` is False).
+    None: the best the theorems allow (the single polynomial when guaranteed, else the ground
+    sector of a Jordan-Wigner model with cycles).  "polynomial": the single polynomial only,
+    with ``unproven`` the numbers no theorem covers (marked).  "ground", "all" (every sector
+    in a table, the ground sector drawn) or a tuple of cycle values: that sector.  Either the
+    numbers or the refusal with its reason and what to do instead.
     """
-    try:
-        return a.spectrum()
-    except NoTheoremError as exc:
-        if not unproven:
-            return Refusal(str(exc))
-        return a.spectrum(unproven=True)
+    return a.answer(sector=choice, unproven=unproven)
 
 
 def sector_choices(a: fl.Analysis) -> list[tuple[str, Any]] | None:
     """The sector chooser's options for a Jordan-Wigner model with cycles, else None.
 
-    Options are (text, value) with value "ground", "all", "polynomial" (the single
-    polynomial, which the library refuses here) or a tuple of cycle-operator eigenvalues
-    (listed when at most :data:`SECTOR_CHOICE_LIMIT` sets of them are consistent).
+    Options are (text, value) with value "ground", "all" (offered for at most
+    :data:`SECTOR_CHOICE_LIMIT` sectors), "polynomial" (the single polynomial, which the
+    library refuses here) or a tuple of cycle-operator eigenvalues (listed when at most
+    :data:`SECTOR_CHOICE_LIMIT` sets of them are consistent).
     """
     m = a.model
     if m.states != 2 or m.is_symbolic or len(m) == 0:
@@ -121,10 +112,11 @@ def sector_choices(a: fl.Analysis) -> list[tuple[str, Any]] | None:
     if not structure.cycle_operators:
         return None
     options: list[tuple[str, Any]] = [
-        ("ground sector (exhaustive search / flux theorem)", "ground"),
-        ("all sectors (table)", "all"),
-        ("single polynomial (no theorem: refused)", "polynomial"),
+        ("ground sector (exhaustive search / flux theorem)", "ground")
     ]
+    if structure.count <= SECTOR_CHOICE_LIMIT:
+        options.append(("all sectors (table)", "all"))
+    options.append(("single polynomial (no theorem: refused)", "polynomial"))
     n_cycles = len(structure.cycle_operators)
     if structure.rank <= 10:  # at most 1024 labels to look through
         patterns = sorted({label[:n_cycles] for label in structure.sectors}, reverse=True)
@@ -133,55 +125,6 @@ def sector_choices(a: fl.Analysis) -> list[tuple[str, Any]] | None:
                 signs = ", ".join("+1" if v > 0 else "-1" for v in values)
                 options.append((f"cycle strings W = ({signs})", values))
     return options
-
-
-@dataclass(frozen=True)
-class SectorOverview:
-    """Every sector of a Jordan-Wigner model: one row per label, and the ground sector's
-    spectrum for the plots."""
-
-    rows: tuple[tuple[str, Any, int, int], ...]  # label text, lowest level, modes, multiplicity
-    spectrum: fl.FreeSpectrum
-    selection: str
-
-
-def sector_spectrum(
-    a: fl.Analysis, choice: Any, unproven: bool
-) -> fl.FreeSpectrum | Refusal | SectorOverview:
-    """The spectrum for the sector chooser's value (see :func:`sector_choices`).
-
-    None or "polynomial": the single polynomial (:func:`spectrum_or_refusal`).  "ground" or a
-    tuple of cycle values: ``fl.free_spectrum(model, sector=choice)``.  "all": every sector's
-    lowest level (``fl.jordan_wigner_spectrum``), refused beyond :data:`SECTOR_CHOICE_LIMIT`
-    sectors, with the ground sector drawn.  A refusal of the library comes back as a
-    :class:`Refusal`.
-    """
-    if choice is None or choice == "polynomial":
-        return spectrum_or_refusal(a, unproven)
-    m = a.model
-    try:
-        if choice == "all":
-            structure = fl.sectors(m)
-            if structure.count > SECTOR_CHOICE_LIMIT:
-                return Refusal(
-                    f"{structure.count} sectors: more than {SECTOR_CHOICE_LIMIT} to list here; "
-                    "choose the ground sector, or use fl.jordan_wigner_spectrum(m, 'all') in "
-                    "a cell"
-                )
-            every = fl.jordan_wigner_spectrum(m, "all")
-            rows = tuple(
-                (
-                    ", ".join("+1" if v > 0 else "-1" for v in sec.label),
-                    sec.ground_energy + every.constant,
-                    len(every.quasi_energies(i)),
-                    sec.multiplicity,
-                )
-                for i, sec in enumerate(every.sectors)
-            )
-            return SectorOverview(rows, fl.free_spectrum(m, sector="ground"), every.selection)
-        return fl.free_spectrum(m, sector=choice)
-    except ValueError as exc:  # TooLargeError and inconsistent labels included
-        return Refusal(str(exc))
 
 
 def term_labels(model: fl.Model) -> list[str]:

@@ -14,7 +14,6 @@ import numpy as np
 
 import freeladder as fl
 
-from .adapter import Refusal
 from .style import ACCENT, INK, SECOND, TICKS, complex_plane, escape, number_text, origin_guides
 
 __all__ = ["RUNGS", "LadderPanel"]
@@ -101,13 +100,11 @@ class LadderPanel(widgets.VBox):
         self.summary = widgets.HTML()
         super().__init__([self.rung_figure, self.summary])
 
-    def show(
-        self, spectrum: fl.FreeSpectrum | Refusal, exact: fl.ExactSpectrum | None, states: int
-    ) -> None:
-        """Draw the lowest levels of ``spectrum`` (none when refused) and of ``exact``."""
+    def show(self, answer: fl.SpectrumAnswer, exact: fl.ExactSpectrum | None, states: int) -> None:
+        """Draw the lowest levels of the answer's spectrum (none when refused) and of ``exact``."""
         free: list[fl.Level] = []
-        if not isinstance(spectrum, Refusal):
-            free = list(spectrum.levels(RUNGS))
+        if answer.spectrum is not None:
+            free = list(answer.spectrum.levels(RUNGS))
         energies = np.array([lv.energy for lv in free], complex)
         mult = [lv.multiplicity for lv in free]
         ex_e = np.zeros(0, complex)
@@ -140,12 +137,13 @@ class LadderPanel(widgets.VBox):
                 self.exact_labels.x, self.exact_labels.y = np.full(len(x), 2.77), x
                 self.exact_labels.text = [f"x{m}" for m in ex_m]
             self.levels.x = self.levels.y = []
-        self.summary.value = _summary(spectrum, exact)
+        self.summary.value = _summary(answer, exact)
 
 
-def _summary(spectrum: fl.FreeSpectrum | Refusal, exact: fl.ExactSpectrum | None) -> str:
+def _summary(answer: fl.SpectrumAnswer, exact: fl.ExactSpectrum | None) -> str:
     parts = []
-    if isinstance(spectrum, Refusal):
+    spectrum = answer.spectrum
+    if spectrum is None:
         parts.append("free-spectrum levels: refused (no theorem; see the roots section)")
     else:
         try:

@@ -14,7 +14,7 @@ import numpy as np
 
 import freeladder as fl
 
-from .adapter import Refusal, SectorOverview, star_points
+from .adapter import star_points
 from .style import (
     ACCENT,
     INK,
@@ -121,19 +121,15 @@ class RootsPanel(widgets.VBox):
         self.sector.value = value
         self.sector.layout.display = ""
 
-    def show(
-        self, spectrum: fl.FreeSpectrum | Refusal | SectorOverview, real_reason: str | None
-    ) -> None:
-        """Show the spectrum's roots and quasi-energies, or the library's refusal."""
-        self.sectors_table.value = ""
-        if isinstance(spectrum, SectorOverview):
-            self.sectors_table.value = _sector_rows(spectrum)
-            spectrum = spectrum.spectrum
-        if isinstance(spectrum, Refusal):
+    def show(self, answer: fl.SpectrumAnswer, real_reason: str | None) -> None:
+        """Show the answer's roots and quasi-energies, or the library's refusal."""
+        self.sectors_table.value = "" if answer.sectors is None else _sector_rows(answer.sectors)
+        spectrum = answer.spectrum
+        if spectrum is None:
             self.refusal.value = (
                 f'<div role="alert" style="color:{WARN}; border-left:4px solid {WARN};'
                 f' padding-left:8px;"><b>&#9888; No free spectrum is claimed.</b> '
-                f"{escape(spectrum.reason)}<br>Tick the box above to see the numbers the "
+                f"{escape(answer.message)}<br>Tick the box above to see the numbers the "
                 "single polynomial would give, marked as unproven.</div>"
             )
             self.summary.value = ""
@@ -222,16 +218,17 @@ def _summary(spectrum: fl.FreeSpectrum, real_reason: str | None, bounds: np.ndar
     )
 
 
-def _sector_rows(overview: SectorOverview) -> str:
+def _sector_rows(table: tuple[fl.SectorRow, ...]) -> str:
     """Every sector's lowest level, as a small table."""
     rows = "".join(
-        f"<tr><td style='padding-right:10px'>({escape(label)})</td>"
-        f"<td style='padding-right:10px'>{escape(number_text(low, 10))}</td>"
-        f"<td style='padding-right:10px'>{modes}</td><td>x{mult}</td></tr>"
-        for label, low, modes, mult in overview.rows
+        f"<tr><td style='padding-right:10px'>"
+        f"({escape(', '.join('+1' if v > 0 else '-1' for v in row.label))})</td>"
+        f"<td style='padding-right:10px'>{escape(number_text(row.lowest, 10))}</td>"
+        f"<td style='padding-right:10px'>{row.modes}</td><td>x{row.multiplicity}</td></tr>"
+        for row in table
     )
     return (
-        f'<div style="font-size:12.5px; color:{INK};"><b>{len(overview.rows)} sectors</b> '
+        f'<div style="font-size:12.5px; color:{INK};"><b>{len(table)} sectors</b> '
         "(eigenvalues of the cycle strings, then the parity strings); the plots show the "
         f"ground sector<table style='border-collapse:collapse'><tr><th>label</th>"
         "<th>lowest level</th><th>modes</th><th>multiplicity</th></tr>"

@@ -24,13 +24,11 @@ import traitlets
 import freeladder as fl
 
 from .adapter import (
-    Refusal,
-    SectorOverview,
     analyze,
     exact_overlay,
     real_roots_reason,
     sector_choices,
-    sector_spectrum,
+    spectrum_outcome,
 )
 from .checks_panel import ChecksPanel
 from .export import ExportPanel
@@ -50,7 +48,7 @@ class _Derived:
     """Everything the panels draw for one model, gathered in the worker."""
 
     analysis: fl.Analysis
-    spectrum: fl.FreeSpectrum | Refusal | SectorOverview
+    answer: fl.SpectrumAnswer
     exact: fl.ExactSpectrum | None
     real_reason: str | None
     choices: list[tuple[str, Any]] | None
@@ -58,14 +56,15 @@ class _Derived:
 
 
 def _derive(a: fl.Analysis, unproven: bool, choice: Any) -> _Derived:
-    a.verdict, a.graph, a.chain, a.charge_counts  # noqa: B018 -- computed here, off the UI
+    a.verdict, a.chain, a.charge_counts  # noqa: B018 -- computed here, off the UI (the graph
+    # panel asks for the graph itself, only when the strings change)
     choices = sector_choices(a)
     if choices is None:
         choice = None
     elif choice not in [value for _, value in choices]:
         choice = "ground"  # a Jordan-Wigner model with cycles: its ground sector first
-    spectrum = sector_spectrum(a, choice, unproven)
-    return _Derived(a, spectrum, exact_overlay(a), real_roots_reason(a), choices, choice)
+    answer = spectrum_outcome(a, choice, unproven)
+    return _Derived(a, answer, exact_overlay(a), real_roots_reason(a), choices, choice)
 
 
 class Workbench(widgets.VBox):
@@ -248,9 +247,8 @@ class Workbench(widgets.VBox):
             self.roots.show_sector_choices(d.choices, d.choice)
         finally:
             self._showing_sectors = False
-        self.roots.show(d.spectrum, d.real_reason)
-        drawn = d.spectrum.spectrum if isinstance(d.spectrum, SectorOverview) else d.spectrum
-        self.ladder.show(drawn, d.exact, d.analysis.model.states)
+        self.roots.show(d.answer, d.real_reason)
+        self.ladder.show(d.answer, d.exact, d.analysis.model.states)
         self.series.show(d.analysis)
 
     def _sector_chosen(self, change: dict[str, Any]) -> None:

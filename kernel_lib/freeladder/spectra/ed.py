@@ -24,7 +24,6 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sps
-import scipy.sparse.linalg as spla
 
 from ..algebra.model import Model
 from ..algebra.strings import WeylString
@@ -263,8 +262,8 @@ def exact_spectrum(
         vals, error, method = _sparse_lowest(mat, k, hermitian)
     scale = max(1.0, float(np.abs(vals).max())) if len(vals) else 1.0
     levels, mult = _cluster(vals, tol * scale)
-    for arr in (levels, mult, vals):
-        arr.setflags(write=False)  # the result is immutable, like every freeladder object
+    # the result is immutable, like every freeladder object
+    levels, mult, vals = readonly_array(levels), readonly_array(mult), readonly_array(vals)
     return ExactSpectrum(
         levels=levels,
         multiplicities=mult,
@@ -380,6 +379,8 @@ def _dense_solve(mat: sps.sparray, hermitian: bool) -> tuple[np.ndarray, float, 
 
 
 def _sparse_lowest(mat: sps.sparray, k: int, hermitian: bool) -> tuple[np.ndarray, float, str]:
+    import scipy.sparse.linalg as spla  # on use: slow to import
+
     rng = np.random.default_rng(12345)  # fixed start vector: reproducible results
     v0 = rng.standard_normal(mat.shape[0])
     ncv = min(mat.shape[0] - 1, max(2 * k + 1, 24))  # a wider Krylov space: fewer restarts
