@@ -35,7 +35,8 @@ from .graphs.graph import ChainStructure, chain_structure, frustration_graph
 from .graphs.indifference import IndifferenceOrder, indifference_order
 from .graphs.relations import Relations, find_relations
 from .graphs.verdict import Verdict, classify
-from .roots.polynomial import ExclusionPolynomial, PolynomialRoots, exclusion_polynomial
+from .roots.polynomial import ExclusionPolynomial, exclusion_polynomial
+from .roots.result import RootTable
 from .spectra.answer import SectorRow, SpectrumAnswer
 from .spectra.charges import ChargeStep, charge_counts, charge_series
 from .spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
@@ -68,7 +69,7 @@ def _relations(m: Model) -> Relations:
 
 
 @part("roots", "couplings")
-def _roots(m: Model) -> PolynomialRoots:
+def _roots(m: Model) -> RootTable:
     return exclusion_polynomial(m).roots()
 
 
@@ -242,7 +243,7 @@ class Analysis:
         return exclusion_polynomial(self.model)
 
     @property
-    def roots(self) -> PolynomialRoots:
+    def roots(self) -> RootTable:
         """Every root of the polynomial, certified (:meth:`ExclusionPolynomial.roots`)."""
         return _roots(self.model)
 

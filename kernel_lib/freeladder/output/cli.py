@@ -28,6 +28,8 @@ from typing import Any, TextIO
 from ..algebra.model import Model
 from ..algebra.syntax import parse_model
 from ..analysis import Analysis, analyze
+from ..base import display
+from ..base.jsonready import json_ready
 
 __all__ = ["EXPORT_SUFFIXES", "main", "report_data"]
 
@@ -77,8 +79,8 @@ def _number(v: Any) -> str:
         return "-"
     if isinstance(v, list):
         re, im = v
-        return f"{re:.12g}{im:+.12g}i"
-    return f"{v:.12g}"
+        return display.number_text(complex(re, im))
+    return display.number_text(v)
 
 
 def _print_report(data: dict[str, Any], out: TextIO) -> None:
@@ -116,7 +118,7 @@ def _print_report(data: dict[str, Any], out: TextIO) -> None:
         eta, bounds = sp["quasi_energies"], sp["error_bounds"]
         w(f"quasi-energies ({len(eta)}, smallest first; bound on each):\n")
         for e, b in list(zip(eta, bounds, strict=True))[:_SHOWN_ENERGIES]:
-            w(f"  {_number(e):>28}  +- {'-' if b is None else format(b, '.2g')}\n")
+            w(f"  {_number(e):>28}  +- {'-' if b is None else display.bound_text(b)}\n")
         if len(eta) > _SHOWN_ENERGIES:
             w(f"  ... {len(eta) - _SHOWN_ENERGIES} more (use --json for all)\n")
         w(f"ground energy: {_number(sp['ground_energy'])}\n")
@@ -177,7 +179,26 @@ def _parser() -> argparse.ArgumentParser:
     )
     exp.add_argument("--states", type=int, default=2, help="states per site N (default 2)")
     exp.add_argument("--force", action="store_true", help="overwrite an existing file")
+    cen = sub.add_parser("census", help="classify every chain of a few short-range term types")
+    cen.add_argument("--states", type=int, default=2, help="states per site N (default 2)")
+    cen.add_argument("--support", type=int, default=2, help="sites a term type covers at most")
+    cen.add_argument("--types", type=int, default=2, help="term types in one chain at most")
+    cen.add_argument("--json", action="store_true", help="print the rows as one JSON list")
+    cen.add_argument("--out", help="also write the table to this .csv or .parquet file")
     return parser
+
+
+def _census(args: argparse.Namespace) -> int:
+    from ..studies.census import census
+
+    table = census(args.states, args.support, args.types, progress=False, path=args.out)
+    if args.json:
+        rows = json_ready(table.astype(object).where(table.notna(), None).to_dict("records"))
+        print(json.dumps(rows, allow_nan=False))
+    else:
+        cols = ["types", "verdict", "spectrum", "name"]
+        print(table[cols].to_string(index=False))
+    return 0
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -187,6 +208,12 @@ def main(argv: Sequence[str] | None = None) -> int:
         args = parser.parse_args(argv)
     except SystemExit as exit_:  # argparse already printed its message
         return int(exit_.code or 0)
+    if args.command == "census":
+        try:
+            return _census(args)
+        except (ValueError, TypeError, ImportError) as err:
+            print(f"freeladder: {err}", file=sys.stderr)
+            return 2
     try:
         m = _read_model(args.model, args.states)
         if args.command == "export":
