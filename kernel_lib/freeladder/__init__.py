@@ -65,7 +65,7 @@ from .spectra.dynamics import (
     edge_expansion,
     two_point,
 )
-from .spectra.ed import ExactSpectrum, exact_spectrum
+from .spectra.ed import ExactSpectrum, exact_spectrum, sector_exact_spectrum, sparse_memory
 from .spectra.edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
 from .spectra.majorana import (
     FluxSector,
@@ -166,6 +166,8 @@ __all__ = [
     "log_partition_function",
     "thermodynamics",
     "exact_spectrum",
+    "sector_exact_spectrum",
+    "sparse_memory",
     "Model",
     "ModelSyntaxError",
     "WeylString",

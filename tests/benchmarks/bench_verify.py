@@ -1,18 +1,29 @@
-"""Benchmark: ``verify`` on reach-2 exclusion chains of 20 to 60 terms, every even size.
+"""Benchmark: ``verify`` from 20 to 10^5 terms, and the sparse exact check to dimension 2^22.
 
-Goal (issue 14): the time ratio between consecutive sizes stays below 2 (no jump where the
-route changes from listing charges to the exact sweep) and 60 terms take under 30 s.  Prints,
-per size, the total time, the route taken by ``[Q(r), Q(s)]``, the slowest check and the ratio
-to the previous size; then the largest ratio.
-Run:  bash tools/bench.sh tests/benchmarks/bench_verify.py
+Three tables.  (1) Reach-2 exclusion chains of 20 to 60 terms, every even size (issue 14):
+the time ratio between consecutive sizes stays below 2 and 60 terms take under 30 s.
+(2) ``--large``: reach-1 and reach-2 chains of 10^2 .. 10^5 terms (disordered couplings):
+time and peak memory (resident set size, one process per size) of ``verify``, the time of
+the spectrum inside it, the
+decisive checks that passed, and the ratio to the previous size (10x the terms); goal 10^5
+terms under 60 s.  (3) ``--sparse``: :func:`freeladder.spectra.ed.sector_exact_spectrum` for
+the 8 lowest levels of the open XY chain in a field in its even-parity sector, dimensions 2^14
+.. 2^22 (sites 15 .. 23), time, peak memory and the estimate checked beforehand.
+Run:  bash tools/bench.sh tests/benchmarks/bench_verify.py [--large] [--sparse]
 """
 
 from __future__ import annotations
 
+import resource
+import subprocess
 import sys
 import time
+import tracemalloc
+
+import numpy as np
 
 import freeladder as fl
+from freeladder.spectra.ed import sector_exact_spectrum, sparse_memory
 
 
 def main(sizes: list[int]) -> None:
@@ -39,6 +50,84 @@ def main(sizes: list[int]) -> None:
     print(f"largest ratio between consecutive sizes: {worst:.2f} (goal < 2)")
 
 
+def one(reach: int, terms: int) -> None:
+    """One size, in its own process: time of verify, of the spectrum in it, peak RSS."""
+    rng = np.random.default_rng(terms)
+    m = fl.exclusion_chain(terms, reach=reach, couplings=rng.uniform(0.5, 1.5, terms))
+    t0 = time.perf_counter()
+    analysis = fl.analyze(m)
+    analysis.spectrum()
+    t_spectrum = time.perf_counter() - t0
+    report = fl.verify(analysis)
+    seconds = time.perf_counter() - t0
+    peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024  # KiB on Linux
+    slow = max(report.checks, key=lambda c: c.seconds)
+    decisive = ", ".join(c.name for c in report.checks if c.passed and c.decisive)
+    print(
+        f"{seconds:.2f} {t_spectrum:.2f} {peak:.0f} {report.ok} "
+        f"{slow.name} ({slow.seconds:.1f} s) | {decisive}"
+    )
+
+
+def large(sizes: tuple[int, ...] = (100, 1000, 10_000, 100_000)) -> None:
+    print(
+        f"{'reach':>5} {'terms':>7} {'seconds':>8} {'spectrum':>8} {'peak MiB':>9} {'ratio':>6}"
+        "  ok     slowest check | decisive checks passed"
+    )
+    for reach in (1, 2):
+        previous = None
+        for terms in sizes:
+            out = subprocess.run(
+                [sys.executable, __file__, "--one", str(reach), str(terms)],
+                capture_output=True,
+                text=True,
+                check=True,
+            ).stdout.split()
+            seconds, t_spectrum, peak, ok = float(out[0]), float(out[1]), float(out[2]), out[3]
+            ratio = seconds / previous if previous else float("nan")
+            previous = seconds
+            print(
+                f"{reach:>5} {terms:>7} {seconds:>8.2f} {t_spectrum:>8.2f} {peak:>9.0f} "
+                f"{ratio:>6.2f}  {ok:<6} {' '.join(out[4:])}",
+                flush=True,
+            )
+
+
+def sparse() -> None:
+    print(
+        f"{'sites':>5} {'dimension':>10} {'sector':>8} {'seconds':>8} {'peak MiB':>9} "
+        f"{'estimate MiB':>12} {'ratio':>6}"
+    )
+    previous = None
+    for sites in range(15, 24, 2):
+        bonds = [f"- 0.7 X{i} X{i + 1} - 0.3 Y{i} Y{i + 1}" for i in range(sites - 1)]
+        m = fl.parse_model(" ".join(bonds + [f"- 0.6 Z{i}" for i in range(sites)]))
+        parity = fl.sectors(m).parity_operators[0]
+        estimate = sparse_memory(m, 8) / 2**20
+        tracemalloc.start()
+        t0 = time.perf_counter()
+        ed = sector_exact_spectrum(m, 8, [(parity, 1)])
+        seconds = time.perf_counter() - t0
+        peak = tracemalloc.get_traced_memory()[1] / 2**20
+        tracemalloc.stop()
+        ratio = seconds / previous if previous else float("nan")
+        previous = seconds
+        print(
+            f"{sites:>5} {m.dimension:>10} {ed.dimension:>8} {seconds:>8.2f} {peak:>9.1f} "
+            f"{estimate:>12.1f} {ratio:>6.2f}",
+            flush=True,
+        )
+
+
 if __name__ == "__main__":
-    args = [int(a) for a in sys.argv[1:]]
-    main(args if args else list(range(20, 62, 2)))
+    flags = {a for a in sys.argv[1:] if a.startswith("--")}
+    args = [int(a) for a in sys.argv[1:] if not a.startswith("--")]
+    if "--one" in flags:
+        one(args[0], args[1])
+        sys.exit()
+    if "--large" in flags:
+        large()
+    if "--sparse" in flags:
+        sparse()
+    if not flags:
+        main(args if args else list(range(20, 62, 2)))

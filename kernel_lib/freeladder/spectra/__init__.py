@@ -27,6 +27,8 @@ from .ed import (
     SPARSE_LIMIT,
     ExactSpectrum,
     exact_spectrum,
+    sector_exact_spectrum,
+    sparse_memory,
 )
 from .edge import (
     EdgeMode,
@@ -99,6 +101,8 @@ __all__ = [
     "components",
     "edge_mode",
     "exact_spectrum",
+    "sector_exact_spectrum",
+    "sparse_memory",
     "flux_sector",
     "flux_theorem_values",
     "free_spectrum",

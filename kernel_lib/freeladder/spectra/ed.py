@@ -17,6 +17,7 @@ restarted Lanczos / Arnoldi iterations.
 from __future__ import annotations
 
 import os
+from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -24,18 +25,30 @@ import numpy as np
 import scipy.sparse as sps
 
 from ..algebra.model import Model
+from ..algebra.strings import WeylString
 from ..base import display
 from ..base.errors import TooLargeError
 from ..base.frozen import readonly_array
 from ..base.jsonready import json_ready
 
-__all__ = ["DENSE_LIMIT", "SPARSE_LIMIT", "ExactSpectrum", "exact_spectrum"]
+__all__ = [
+    "DENSE_LIMIT",
+    "SPARSE_CHECK_LIMIT",
+    "SPARSE_LIMIT",
+    "ExactSpectrum",
+    "exact_spectrum",
+    "sector_exact_spectrum",
+    "sparse_memory",
+]
 
 DENSE_LIMIT = 4096
 """Largest dimension diagonalised densely."""
 
 SPARSE_LIMIT = 2**31
 """Largest dimension the sparse solver handles (32-bit sparse indices)."""
+
+SPARSE_CHECK_LIMIT = 2**22
+"""Largest dimension the checks diagonalise sparsely (:func:`sector_exact_spectrum`)."""
 
 _EPS = float(np.finfo(float).eps)
 
@@ -334,9 +347,12 @@ def _sparse_lowest(mat: sps.sparray, k: int, hermitian: bool) -> tuple[np.ndarra
 
     rng = np.random.default_rng(12345)  # fixed start vector: reproducible results
     v0 = rng.standard_normal(mat.shape[0])
+    ncv = min(mat.shape[0] - 1, max(2 * k + 1, 24))  # a wider Krylov space: fewer restarts
     if hermitian:
-        herm = (mat + mat.conj().T) / 2
-        vals, vecs = spla.eigsh(herm, k=k, which="SA", v0=v0)
+        herm = sps.csr_array((mat + mat.conj().T) / 2)
+        if herm.nnz and not np.any(herm.data.imag):
+            herm = sps.csr_array(herm.real)  # real arithmetic: half the work
+        vals, vecs = spla.eigsh(herm, k=k, which="SA", v0=v0, ncv=ncv)
         method = "sparse-eigsh"
         res = herm @ vecs - vecs * vals[None, :]
     else:
@@ -345,6 +361,110 @@ def _sparse_lowest(mat: sps.sparray, k: int, hermitian: bool) -> tuple[np.ndarra
         res = mat @ vecs - vecs * vals[None, :]
     error = float(np.linalg.norm(res, axis=0).max())
     return _sorted(vals, hermitian), error, method
+
+
+def sparse_memory(m: Model, k: int) -> float:
+    """Estimated bytes of a sparse solve for the ``k`` lowest levels of ``m`` (matrix and
+    Lanczos basis), the estimate :func:`exact_spectrum` compares with the memory available."""
+    return _sparse_bytes(m.dimension, _row_count(m), k)
+
+
+def _diagonal_values(g: WeylString, sites: tuple[Any, ...]) -> np.ndarray | None:
+    """The diagonal of a Z-type string on the basis states (None if it is not diagonal)."""
+    if any(a % g.states for a, _ in g.exponents().values()):
+        return None
+    return np.asarray(g.to_sparse(sites).diagonal())
+
+
+def sector_exact_spectrum(
+    m: Model,
+    k: int,
+    fixed: Sequence[tuple[WeylString, int]] = (),
+    tol: float = 1e-9,
+) -> ExactSpectrum:
+    """The ``k`` lowest eigenvalues of H where each conserved string ``g`` has the value ``v``.
+
+    Diagonal (Z-type) strings select basis states, which shrinks the matrix; any other string
+    adds ``lam (1 - v g) / 2`` with ``lam = 2 sum |c_j| + 1``, which lifts every other sector
+    above the whole spectrum of H without changing this one (the strings commute with H).
+
+    Parameters
+    ----------
+    m : Model
+        Numeric couplings, N = 2 when ``fixed`` is not empty.
+    k : int
+        How many lowest eigenvalues.
+    fixed : sequence of (WeylString, +1 or -1)
+        Hermitian strings that commute with every term, and their values.
+    tol : float
+        Clustering tolerance, as in :func:`exact_spectrum`.
+
+    Returns
+    -------
+    ExactSpectrum
+        ``dimension`` is the sector's (the number of selected basis states when every string is
+        diagonal); ``complete`` when all its eigenvalues were found.
+
+    Raises
+    ------
+    TooLargeError
+        When the estimated memory (:func:`sparse_memory`) exceeds what is available.
+    ValueError
+        For a string that does not commute with H, a value other than +-1, or ``k`` beyond
+        the sector's dimension.
+
+    References
+    ----------
+    ARPACK Users' Guide (1998); LAPACK Users' Guide (1999).
+    """
+    _validate(m, None, tol, "auto")
+    for g, v in fixed:
+        if v not in (1, -1):
+            raise ValueError(f"the value of {g} must be +1 or -1, not {v!r}")
+        if any(not g.commutes_with(t) for t in m.strings):
+            raise ValueError(f"{g} does not commute with every term: it labels no sector")
+    _check_size(m, int(k), m.dimension <= DENSE_LIMIT, "auto")
+    mat = sps.csr_array(m.to_sparse())
+    keep = np.ones(mat.shape[0], dtype=bool)
+    penalty = 2.0 * float(np.sum(np.abs(m.coupling_array()))) + 1.0
+    lifts = []
+    for g, v in fixed:
+        diag = _diagonal_values(g, m.sites)
+        if diag is None:
+            lifts.append((g, v))
+        else:
+            keep &= np.abs(diag - v) < 0.5
+    rows = np.flatnonzero(keep)
+    mat = sps.csr_array(mat[rows][:, rows])
+    for g, v in lifts:
+        gm = sps.csr_array(g.to_sparse(m.sites))[rows][:, rows]
+        mat = sps.csr_array(mat + penalty * 0.5 * (sps.identity(len(rows), format="csr") - v * gm))
+    dim = len(rows)
+    if not 1 <= k <= dim:
+        raise ValueError(f"k must be in 1..{dim} (the sector's dimension), got {k!r}")
+    scale_h = float(abs(mat).max()) if mat.nnz else 0.0
+    diff = mat - mat.conj().T
+    hermitian = (float(abs(diff).max()) if diff.nnz else 0.0) <= 1e-12 * max(scale_h, 1e-300)
+    if dim <= DENSE_LIMIT or k > dim - 2:
+        vals, error, method = _dense_solve(mat, hermitian)
+        vals = vals[:k]
+    else:
+        vals, error, method = _sparse_lowest(mat, int(k), hermitian)
+    scale = max(1.0, float(np.abs(vals).max())) if len(vals) else 1.0
+    levels, mult = _cluster(vals, tol * scale)
+    for arr in (levels, mult, vals):
+        arr.setflags(write=False)
+    return ExactSpectrum(
+        levels=levels,
+        multiplicities=mult,
+        eigenvalues=vals,
+        method=method,
+        tolerance=tol * scale,
+        dimension=dim,
+        complete=len(vals) == dim,
+        hermitian=hermitian,
+        error_estimate=float(error),
+    )
 
 
 def _sorted(vals: np.ndarray, hermitian: bool) -> np.ndarray:

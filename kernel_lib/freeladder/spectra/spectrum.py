@@ -46,7 +46,7 @@ from ..roots.polynomial import exclusion_polynomial, sum_rules
 from ..roots.real import chain_inverse_power_sums
 from ..roots.result import BeyondFloatError, RootTable
 from .ed import DENSE_LIMIT
-from .majorana import flux_sector, jordan_wigner_spectrum
+from .majorana import flux_sector, jordan_wigner_spectrum, sectors
 
 __all__ = [
     "LEVEL_LIMIT",
@@ -864,6 +864,9 @@ def free_spectrum(
         )
     promise = guarantee(m)
     if not promise.proven and not unproven:
+        if method != "certified" and _one_cycle_sector(m):
+            # the relations fix every cycle value: that single sector is the whole model
+            return _sector_spectrum(m, "all", method, lowest, start_time)
         raise NoTheoremError(_refusal_message(m, promise))
     found = _find_roots(m, couplings, chain, ordering, method, lowest)
     prov = root_methods.provenance(found)
@@ -875,6 +878,8 @@ def free_spectrum(
     true = found.true_values()[0]
     with np.errstate(divide="ignore", over="ignore", under="ignore"):
         y_vals = np.asarray(true if found.variable == "y" else 1.0 / true, dtype=complex)
+    if n == 2 and promise.proven and np.isrealobj(couplings) and np.iscomplexobj(eta):
+        eta = _real_rooted(eta, eta_err)
     sort = np.argsort(log_eta, kind="stable")
     eta, eta_err, y_vals, log_eta = eta[sort], eta_err[sort], y_vals[sort], log_eta[sort]
     count = int(prov.pop("count", len(eta)))
@@ -1014,6 +1019,38 @@ def _sector_spectrum(
         provenance,
         parity_constraints=merged.parity_constraints if complete else (),
     )
+
+
+def _one_cycle_sector(m: Model) -> bool:
+    """True for a Jordan-Wigner model with cycles whose consistent sectors all share one set of
+    cycle values (the relations among the cycle and parity strings fix every cycle value).
+    Models without cycles that are refused for a relation keep their refusal."""
+    if m.states != 2 or classify(m).kind != "jordan-wigner":
+        return False
+    try:
+        structure = sectors(m)
+        labels = structure.sectors
+    except ValueError:  # too many sectors to list
+        return False
+    cycles = len(structure.cycle_operators)
+    return cycles > 0 and len({label[:cycles] for label in labels}) == 1
+
+
+def _real_rooted(eta: np.ndarray, bounds: np.ndarray) -> np.ndarray:
+    """Real quasi-energies of a real-rooted theorem, from a complex root finder's output.
+
+    For N = 2 with real couplings the weights ``c^2`` are positive and every theorem that
+    guarantees the spectrum makes ``P`` real-rooted with positive roots (the independence
+    polynomial of a claw-free graph has only real roots: M. Chudnovsky and P. Seymour,
+    J. Combin. Theory B 97, 350 (2007); line graphs and chains are claw-free), so each exact
+    ``eta`` is real and positive.  The real parts are returned when every imaginary part lies
+    within its error bound (the bound covers the distance to the exact, real, value); the
+    complex array is kept otherwise.
+    """
+    within = np.abs(eta.imag) <= bounds + 4 * np.finfo(float).eps * np.abs(eta)
+    if not np.all(within & (eta.real > 0)):
+        return eta
+    return np.ascontiguousarray(eta.real, dtype=float)
 
 
 def _residuals(
