@@ -59,7 +59,7 @@ from ..base.references import (
 from ..roots.polynomial import exclusion_polynomial
 from ..spectra.charges import charge
 from ..spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
-from ..spectra.edge import components, ladder_operators
+from ..spectra.edge import _live_terms, components, ladder_operators
 from ..spectra.majorana import jordan_wigner_spectrum, sectors
 from ..spectra.matching import match_levels
 from ..spectra.spectrum import FreeSpectrum
@@ -234,7 +234,7 @@ class Report:
             for c in self.checks
             if c.required and c.passed is None
         )
-        if not any(c.passed and c.decisive for c in self.checks):
+        if not any(c.passed is not None and c.decisive for c in self.checks):
             out.append("no decisive check ran (none that could fail for a model that is not free)")
         confirmed = any(c.passed and c.name in (EXACT, SECTORS) for c in self.checks)
         if self.guaranteed is False and not confirmed:
@@ -740,7 +740,7 @@ def ladder_check(m: Model, spectrum: tuple[FreeSpectrum, str] | None = None) -> 
         raise CheckNotApplicable(f"dimension {m.dimension} > {LADDER_DIMENSION}")
     why = spectrum[1] if spectrum is not None else ""
     etas = None
-    if spectrum is not None and len(components(m)) == 1:
+    if spectrum is not None and len(components(_live_terms(m))) == 1:
         etas = spectrum[0].quasi_energies  # one component: the model's own spectrum
     try:
         lad = ladder_operators(m, etas)
@@ -1031,7 +1031,17 @@ def _not_listed(parts: _Parts) -> Check:
 
 def _spectral(parts: _Parts, exact_diagonalization: bool | str, checks: list[Check]) -> None:
     m = parts.model
-    spectrum = parts.spectrum()
+    try:
+        spectrum = parts.spectrum()
+    except (ValueError, ArithmeticError) as err:
+        # no spectrum to test (no terms, no convergence, ...): every spectral check fails
+        # with the reason, rather than the report being lost
+        def spectrum_failed(*_: Any) -> Check:
+            raise err
+
+        names = ((LADDER,) if m.states == 2 else ()) + (SUM_RULES, EXACT)
+        checks.extend(_run(name, spectrum_failed) for name in names)
+        return
     if m.states == 2:
         checks.append(_run(LADDER, ladder_check, m, spectrum))
     checks.append(_run(SUM_RULES, sum_rule_check, m, spectrum))

@@ -980,7 +980,7 @@ def free_spectrum(
     eta, eta_err = found.quasi_energies(n, beyond_float="round")
     log_eta = found.log_quasi_energies(n)[0]
     true = found.true_values()[0]
-    with np.errstate(divide="ignore", over="ignore", under="ignore"):
+    with np.errstate(divide="ignore", over="ignore", under="ignore", invalid="ignore"):
         y_vals = np.asarray(true if found.variable == "y" else 1.0 / true, dtype=complex)
     sort = np.argsort(log_eta, kind="stable")
     eta, eta_err, y_vals, log_eta = eta[sort], eta_err[sort], y_vals[sort], log_eta[sort]

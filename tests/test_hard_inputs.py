@@ -1,0 +1,110 @@
+"""Ordinary inputs that used to crash or be misread (issue 21): each case is checked against an
+outside reference -- numpy dense exact diagonalization (common practice) -- or against the
+refusal the documentation promises.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+import numpy as np
+import pytest
+from helpers import dense_string
+
+import freeladder as fl
+
+
+def _dense(m: fl.Model) -> np.ndarray:
+    """Dense H from the definitions (tests/helpers.py), independent of the library's matrices."""
+    sites = list(m.sites)
+    h = complex(m.constant) * np.eye(m.dimension, dtype=complex)
+    for c, g in m.terms:
+        h = h + complex(c) * dense_string(g, sites)
+    return h
+
+
+def _matched(free: np.ndarray, exact: np.ndarray, tol: float) -> bool:
+    """Every exact eigenvalue paired one to one with a free level within ``tol``."""
+    left = list(np.asarray(free, dtype=complex))
+    for e in np.asarray(exact, dtype=complex):
+        j = int(np.argmin(np.abs(np.asarray(left) - e)))
+        if abs(left[j] - e) > tol:
+            return False
+        left.pop(j)
+    return not left
+
+
+def _all_levels(sp: fl.FreeSpectrum) -> np.ndarray:
+    table = sp.levels(None)
+    return np.repeat(np.asarray(table.energies, dtype=complex), int(table.multiplicity or 1))
+
+
+# -- item 2: cancelling partial sums, zero couplings, no terms ------------------------------------
+CHAINS: list[Sequence[complex]] = [
+    [2, 2j, 1, 1],  # partial sums of the weights c^2 cancel: a leaf root at x = 0
+    [1, 1j],  # P = 1: the quasi-energy is exactly 0 (H nilpotent)
+    [1, 1, 0, 1, 1],  # a zero coupling splits the chain into two equal pieces: a double root
+    [1, 0.5j, 0, 1j, 1],
+    [0, 1, 2],
+    [1, 1, 0, 1, 1, 0, 1, 1],
+]
+
+
+@pytest.mark.parametrize("couplings", CHAINS, ids=str)
+@pytest.mark.parametrize("method", ["auto", "fast"])
+def test_chain_with_cancelling_or_zero_couplings_matches_dense_ed(
+    couplings: Sequence[complex], method: str
+) -> None:
+    m = fl.exclusion_chain(len(couplings), couplings=couplings)
+    sp = fl.free_spectrum(m, method=method)
+    exact = np.linalg.eigvals(_dense(m))
+    # a nilpotent H is defective: its dense eigenvalues scatter by about sqrt(eps)
+    tol = 1e-6 if np.any(np.abs(sp.quasi_energies) < 1e-12) else 1e-9
+    assert _matched(_all_levels(sp), exact, tol)
+
+
+def test_nilpotent_chain_has_quasi_energy_zero() -> None:
+    # (X0 Z1 + i X1 Z2)^2 = 1 - 1 = 0: the anticommuting terms square to +1 and -1
+    m = fl.exclusion_chain(2, couplings=[1, 1j])
+    h = _dense(m)
+    assert np.allclose(h @ h, 0)
+    assert np.allclose(fl.free_spectrum(m).quasi_energies, 0)
+
+
+def test_zero_coupling_certified_route() -> None:
+    m = fl.exclusion_chain(5, couplings=[1, 1, 0, 1, 1])
+    sp = fl.free_spectrum(m, method="certified")
+    assert sp.provenance.finder["rigorous"]
+    assert _matched(_all_levels(sp), np.linalg.eigvalsh(_dense(m)), 1e-9)
+
+
+def test_lost_degree_certified_refuses_with_reason() -> None:
+    with pytest.raises(ValueError, match="exactly 0"):
+        fl.free_spectrum(fl.exclusion_chain(2, couplings=[1, 1j]), method="certified")
+
+
+@pytest.mark.parametrize("couplings", [[2, 2j, 1, 1], [1, 1, 0, 1, 1], [1, 1j]], ids=str)
+def test_verify_reports_instead_of_raising(couplings: Sequence[complex]) -> None:
+    report = fl.verify(fl.exclusion_chain(len(couplings), couplings=couplings))
+    exact = [c for c in report.checks if c.name == "spectrum = exact diagonalization"]
+    assert exact and exact[0].passed is not None
+
+
+def test_zero_coupling_chain_verifies() -> None:
+    # the ladder operators of each piece (the zero term links nothing)
+    assert fl.verify(fl.exclusion_chain(5, couplings=[1, 1, 0, 1, 1])).ok
+
+
+def test_verify_of_a_model_without_terms_reports_failure() -> None:
+    m = fl.Model(fl.parse_model("X0").strings.take(np.zeros(0, dtype=np.int64)), [], 3)
+    report = fl.verify(m)
+    assert not report.ok
+    assert any("no terms" in c.detail for c in report.failed)
+
+
+@pytest.mark.parametrize("n_sites", [3, 4, 5, 6])
+def test_ising_chain_with_imaginary_field(n_sites: int) -> None:
+    # partial sums of the weights cancel (field^2 = -1 against bond^2 = 1)
+    m = fl.ising_chain(n_sites, field=1j)
+    sp = fl.free_spectrum(m)
+    assert _matched(_all_levels(sp), np.linalg.eigvals(_dense(m)), 1e-8)
