@@ -1036,8 +1036,10 @@ def _spectral(parts: _Parts, exact_diagonalization: bool | str, checks: list[Che
     except (ValueError, ArithmeticError) as err:
         # no spectrum to test (no terms, no convergence, ...): every spectral check fails
         # with the reason, rather than the report being lost
+        failure = err
+
         def spectrum_failed(*_: Any) -> Check:
-            raise err
+            raise failure
 
         names = ((LADDER,) if m.states == 2 else ()) + (SUM_RULES, EXACT)
         checks.extend(_run(name, spectrum_failed) for name in names)
