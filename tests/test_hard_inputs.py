@@ -108,3 +108,71 @@ def test_ising_chain_with_imaginary_field(n_sites: int) -> None:
     m = fl.ising_chain(n_sites, field=1j)
     sp = fl.free_spectrum(m)
     assert _matched(_all_levels(sp), np.linalg.eigvals(_dense(m)), 1e-8)
+
+
+# -- item 3: sector labels are exactly the ones the structure lists -------------------------------
+SECTOR_MODELS = [
+    "Z0 + X0 X1 + Y0 Y1 + Z1 + X0 Y1",  # two cycle strings equal to the identity
+    "Z0 Z1 + Z1 Z2 + Z2 Z0 + 0.5 X0 + 0.3 X1",
+    "X0 X1 + Y1 Y2 + X2 X3 + Y3 Y0 + 0.6 Z0 Z2",
+    "X0 X1 + Y0 Y1 + Z0 + 0.3 Z1 + 0.7 X1 X2 + 0.4 Y1 Y2 + 0.2 Z2 + 0.9 X2 X0 + 1.1 Y2 Y0",
+    "X0 X1 + Y1 Y2 + Z2 Z3 + X3 X4 + Y4 Y5 + Z5 Z0 + 0.3 Z1 Z4",
+]
+
+
+@pytest.mark.parametrize("text", SECTOR_MODELS)
+def test_every_listed_sector_label_is_accepted_and_the_union_is_dense_ed(text: str) -> None:
+    m = fl.parse_model(text)
+    assert fl.classify(m).kind == "jordan-wigner"
+    levels: list[complex] = []
+    for label in fl.sectors(m).sectors:
+        levels.extend(_all_levels(fl.free_spectrum(m, sector=label)))
+    assert _matched(np.asarray(levels), np.linalg.eigvalsh(_dense(m)), 1e-9)
+
+
+@pytest.mark.parametrize(
+    "bad",
+    [
+        [-1, 1],  # both cycle strings are the identity: -1 is not a consistent value
+        [1, 1.9],
+        [1.0, 1.0],
+        "11",
+        "+1",
+        [True, True],
+        {1, -1},
+        frozenset({1}),
+        np.array([1, -1]),
+        np.array([1.0, 1.0]),
+        np.array([[1, 1]]),
+        (1, 1, 1, 1),
+        (),
+        [2, 1],
+        {"Z0": 1},
+        3,
+        None.__class__,
+    ],
+    ids=repr,
+)
+def test_sector_labels_not_listed_are_refused_with_the_list(bad: object) -> None:
+    m = fl.parse_model(SECTOR_MODELS[0])
+    with pytest.raises((TypeError, ValueError)) as err:
+        fl.free_spectrum(m, sector=bad)  # type: ignore[arg-type]
+    assert "(1, 1, 1), (1, 1, -1)" in str(err.value)
+    with pytest.raises((TypeError, ValueError)):
+        fl.jordan_wigner_spectrum(m, bad)  # type: ignore[arg-type]
+
+
+def test_sector_label_numpy_integers_are_accepted() -> None:
+    m = fl.parse_model(SECTOR_MODELS[0])
+    a = fl.free_spectrum(m, sector=np.array([1, 1, -1]))
+    b = fl.free_spectrum(m, sector=(1, 1, -1))
+    assert np.allclose(a.quasi_energies, b.quasi_energies)
+
+
+def test_mapping_values_must_be_integers() -> None:
+    m = fl.parse_model(SECTOR_MODELS[1])
+    struct = fl.sectors(m)
+    key = struct.generators[-1]
+    for bad in (True, 1.0, 0.5, "1"):
+        with pytest.raises(TypeError):
+            struct.select({key: bad})
