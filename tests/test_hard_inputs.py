@@ -5,6 +5,7 @@ refusal the documentation promises.
 
 from __future__ import annotations
 
+import time
 from collections.abc import Sequence
 
 import numpy as np
@@ -176,3 +177,63 @@ def test_mapping_values_must_be_integers() -> None:
     for bad in (True, 1.0, 0.5, "1"):
         with pytest.raises(TypeError):
             struct.select({key: bad})
+
+
+# -- item 5: the parser's limits hold while reading, in linear time ------------------------------
+def _parse_seconds(text: str) -> float:
+    best = float("inf")
+    for _ in range(2):
+        start = time.perf_counter()
+        fl.parse_model(text)
+        best = min(best, time.perf_counter() - start)
+    return best
+
+
+def test_distinct_coupling_names_parse_in_linear_time() -> None:
+    # n distinct names on two strings, then 4n: linear time gives a ratio near 4, the old
+    # term-by-term sympy sum about 16 (a generous bound against a loaded machine)
+    def text(n: int) -> str:
+        return " + ".join(f"a{k} X{k % 2}" for k in range(n))
+
+    _parse_seconds(text(50))  # warm sympy's caches
+    ratio = _parse_seconds(text(800)) / _parse_seconds(text(200))
+    assert ratio < 9, ratio
+
+
+def test_too_many_terms_on_one_coupling_refused() -> None:
+    with pytest.raises(ValueError, match="at most 1000 terms"):
+        fl.parse_model(" + ".join(f"a{k}" for k in range(1200)) + " + X0")
+
+
+@pytest.mark.parametrize(
+    ("text", "message"),
+    [
+        ("*".join(["(2^1000)"] * 50) + " X0", "3321 bits"),
+        ("(2^1000)*(2^1000)*(2^1000)*(2^1000) X0", "3321 bits"),
+        ("(2^1000)/(3^1000)/(5^1000) X0", "3321 bits"),
+        ("*".join(["g"] * 100_000) + " X0", "more than 1000 numbers and names"),
+        ("g^1000*g^1000 X0", "exponents are at most 1000"),
+        ("g^600*g^600 X0 + X1", "exponents are at most 1000"),
+        ("1e-400 X0", "too small for double precision"),
+        ("0.5 X0 + 1e-400j X1", "too small for double precision"),
+        ("1e-200*1e-200 X0", "too small for double precision"),
+    ],
+)
+def test_parser_limits_refuse_with_position(text: str, message: str) -> None:
+    with pytest.raises(fl.ModelSyntaxError, match=message) as err:
+        fl.parse_model(text)
+    assert "^" in str(err.value).splitlines()[-1]  # the caret line
+
+
+def test_largest_exact_coupling_still_prints_and_verifies() -> None:
+    # 3 factors of 2^1000 and one of 2^300: 3300 bits, 994 digits: the printed text reads back
+    c = "*".join(["(2^1000)"] * 3) + "*2^300"
+    m = fl.parse_model(f"{c} X0 Z1 + {c} X1 Z2")
+    again = fl.parse_model(str(m))
+    assert again.couplings == m.couplings == (2**3300, 2**3300)
+    assert str(again) == str(m)
+    assert str(fl.verify(m))  # reports (the couplings exceed float64) instead of raising
+
+
+def test_zero_literal_is_still_zero() -> None:
+    assert fl.parse_model("0e-400 X0 + X1").couplings[0] == 0

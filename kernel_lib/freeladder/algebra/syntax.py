@@ -41,8 +41,11 @@ How the tokens are told apart:
   written ``X0^2``).
 * Limits, each reported with the line and column: parentheses and signs nest at most 64 deep
   in one coefficient, number literals have at most 1000 digits, exponents are at most 1000 in
-  absolute value, an exact number produced by a power has at most 2^16 bits, and a coefficient
-  may not expand to more than 1000 terms.
+  absolute value (also for a power built by repeated products, ``g*g*...``), an exact number
+  in a coefficient has at most 3321 bits (under 1000 digits, so that the printed model reads
+  back), a
+  coefficient holds at most 1000 numbers and names and may not expand to more than 1000 terms,
+  and a number or coefficient too small for double precision is refused rather than read as 0.
 * ``w`` is the phase ``exp(i pi / N)`` (``w^2 = omega``).  As a factor of the whole coefficient
   (``g*w^3 X0 Z0``) it is kept as an exact phase of the operator string; inside parentheses it is
   the exact sympy number ``exp(i pi / N)``.  Printing uses it for strings whose normalisation
@@ -83,8 +86,12 @@ _MAX_DEPTH = 64
 """Deepest nesting of parentheses and signs inside one coefficient."""
 _MAX_DIGITS = 1000
 """Longest number literal, in characters."""
-_MAX_BITS = 1 << 16
-"""Largest exact number a power may produce, in bits (about 19 700 decimal digits)."""
+_MAX_BITS = 3321
+"""Largest exact number a coefficient may hold, in bits: 2^3321 < 10^1000, so that the printed
+model reads back (number literals have at most ``_MAX_DIGITS`` digits), far within Python's
+limit of 4300 digits for turning an integer into text."""
+_MAX_FACTORS = 1000
+"""Most numbers and names in one coefficient."""
 _MAX_TERMS = MAX_EXPANDED_TERMS
 _DIGITS = frozenset("0123456789")
 _ACCEPTED_FORM = "0.5 X0 Z1"
@@ -357,6 +364,7 @@ class _Parser:
         self.tokens = _Tokenizer(text).tokens()
         self.i = 0
         self.depth = 0
+        self.factors = 0  # numbers and names read in the current coefficient
         self.w = sympy.exp(sympy.I * sympy.pi / states)
 
     # -- helpers ---------------------------------------------------------------------------------
@@ -506,6 +514,7 @@ class _Parser:
         """``power {("*" | "/") power}``; powers of ``w`` become the string's phase."""
         value: Any = sympy.Integer(1)
         phase = 0
+        self.factors = 0
         op = "*"
         op_tok: _Token | None = None
         while True:
@@ -524,6 +533,7 @@ class _Parser:
                     self._check_size(value, t.offset)
                 else:
                     value = self._divide(value, factor, op_tok)
+                    self._check_size(value, t.offset)
             if self.tok.kind in ("*", "/"):
                 nxt = self.tokens[self.i + 1]
                 if self.tok.kind == "*" and nxt.kind == "operator":
@@ -593,6 +603,14 @@ class _Parser:
 
     def _atom(self) -> Any:
         t = self.tok
+        if t.kind in ("number", "name"):
+            self.factors += 1
+            if self.factors > _MAX_FACTORS:
+                raise self.error(
+                    f"more than {_MAX_FACTORS} numbers and names in one coefficient; "
+                    "write a power (g^3) or a shorter product",
+                    t.offset,
+                )
         if t.kind == "number":
             self.advance()
             return self._number_value(t)
@@ -672,13 +690,34 @@ class _Parser:
                 )
 
     def _check_size(self, value: Any, offset: int) -> None:
-        """Refuse a coefficient whose expansion would exceed ``_MAX_TERMS`` terms."""
+        """Refuse a coefficient whose expansion would exceed ``_MAX_TERMS`` terms, an exact
+        number beyond ``_MAX_BITS`` bits or a power of a name beyond ``_MAX_EXPONENT``
+        (checked after every product, so ``g*g*...`` and ``(2^1000)*(2^1000)*...`` stop at
+        the factor that crosses the limit)."""
         if expanded_terms_bound(value, _MAX_TERMS) > _MAX_TERMS:
             raise self.error(
                 f"the coefficient would expand to more than {_MAX_TERMS} terms; "
                 "write a smaller power or product",
                 offset,
             )
+        numbers = (value,) if value.is_Rational else value.atoms(sympy.Rational)
+        for q in numbers:
+            bits = max(int(q.p).bit_length(), int(q.q).bit_length())
+            if bits > _MAX_BITS:
+                raise self.error(
+                    f"the coefficient's exact number has about 2^{bits} as numerator or "
+                    f"denominator; exact numbers in a coefficient are limited to {_MAX_BITS} bits "
+                    f"(the {_MAX_DIGITS} digits a number literal may have; write a decimal, "
+                    "as in 1e300, for a large value)",
+                    offset,
+                )
+        for p in () if value.is_Atom else value.atoms(sympy.Pow):
+            if p.exp.is_Number and abs(p.exp) > _MAX_EXPONENT:
+                raise self.error(
+                    f"the coefficient holds the power {p}: exponents are at most "
+                    f"{_MAX_EXPONENT} in absolute value",
+                    offset,
+                )
 
     def _number_value(self, t: _Token) -> Any:
         body = t.text[:-1] if t.text.endswith("j") else t.text
@@ -688,6 +727,12 @@ class _Parser:
             as_float = float(body)
             if not cmath.isfinite(as_float):
                 raise self.error(f"number {t.text} is not finite (overflow)", t.offset)
+            if as_float == 0 and any(ch in "123456789" for ch in body.split("e")[0].split("E")[0]):
+                raise self.error(
+                    f"number {t.text} is too small for double precision and would become 0 "
+                    "(the smallest is about 5e-324)",
+                    t.offset,
+                )
             value = sympy.Float(as_float)
         return value * sympy.I if t.text.endswith("j") else value
 
@@ -696,9 +741,16 @@ class _Parser:
         if value.has(sympy.nan, sympy.zoo, sympy.oo, -sympy.oo):
             raise self.error("the coefficient is not finite", offset)
         try:
-            return to_python_number(value)
+            number = to_python_number(value)
         except ValueError:
             raise self.error("the coefficient is not finite (overflow)", offset) from None
+        if number == 0 and value != 0:
+            raise self.error(
+                "the coefficient is too small for double precision and would become 0 "
+                "(the smallest is about 5e-324)",
+                offset,
+            )
+        return number
 
 
 def _underscore_note(tokens: Sequence[_Token]) -> str:
