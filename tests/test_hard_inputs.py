@@ -237,3 +237,27 @@ def test_largest_exact_coupling_still_prints_and_verifies() -> None:
 
 def test_zero_literal_is_still_zero() -> None:
     assert fl.parse_model("0e-400 X0 + X1").couplings[0] == 0
+
+
+# -- item 6: a grid key named like the injected random stream ------------------------------------
+def _seeded(seed: object, size: int) -> dict[str, object]:
+    return {"got": seed, "draw": float(np.random.default_rng(seed).random())}  # type: ignore[arg-type]
+
+
+def _rng_user(rng: object, seed: object) -> dict[str, object]:
+    return {"got_rng": type(rng).__name__, "got_seed": type(seed).__name__}
+
+
+def test_sweep_grid_seed_wins_over_the_injected_stream() -> None:
+    first = fl.sweep(_seeded, {"seed": [3, 4], "size": [1]}, progress=False)
+    again = fl.sweep(_seeded, {"seed": [3, 4], "size": [1]}, progress=False)
+    assert first["got"].tolist() == [3, 4]
+    # numpy's own generator seeded with the grid values (the outside reference)
+    assert first["draw"].tolist() == [np.random.default_rng(s).random() for s in (3, 4)]
+    assert first["draw"].tolist() == again["draw"].tolist()
+
+
+def test_sweep_grid_rng_wins_and_seed_still_gets_a_stream() -> None:
+    df = fl.sweep(_rng_user, {"rng": ["given"]}, progress=False, seed=1)
+    assert df["got_rng"].tolist() == ["str"]
+    assert df["got_seed"].tolist() == ["SeedSequence"]
