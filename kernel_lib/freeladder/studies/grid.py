@@ -165,8 +165,8 @@ def sweep(
         (``numpy.random.default_rng`` accepts both).  A grid key named ``rng`` or ``seed`` is
         passed as the grid gives it: the grid value wins, and no stream is injected under that
         name (``seed`` still gets one when ``rng`` is the grid key).  A dict result becomes
-        columns; anything else becomes the column ``result``.  For ``"processes"`` and dask it must be picklable
-        (a function defined at module level).
+        columns; anything else becomes the column ``result``.  For ``"processes"`` and dask it
+        must be picklable (a function defined at module level).
     grid : dict of lists
         ``{name: values}``; the points are ``itertools.product`` of the values in key order.
     executor : None, "processes", concurrent.futures.Executor, distributed.Client or str
