@@ -261,3 +261,32 @@ def test_sweep_grid_rng_wins_and_seed_still_gets_a_stream() -> None:
     df = fl.sweep(_rng_user, {"rng": ["given"]}, progress=False, seed=1)
     assert df["got_rng"].tolist() == ["str"]
     assert df["got_seed"].tolist() == ["SeedSequence"]
+
+
+# -- item 7: text that means something else is refused, with a caret -----------------------------
+@pytest.mark.parametrize(
+    ("text", "message", "column"),
+    [
+        ("X_0 Z1 + 0.8 Z1 Z2 + X1", "'X_0' would be read as a coupling name", 1),
+        ("0.5 * XZI + 0.3 * IIY", "'XZI' would be read as a coupling name", 7),
+        ("2*ZZ X0", "'ZZ' would be read as a coupling name", 3),
+        ("3", "no operator term", 1),
+        ("g + 2", "no operator term", 1),
+        ("XYZ", "'XYZ' would be read as a coupling name", 1),
+    ],
+)
+def test_text_that_means_something_else_is_refused(text: str, message: str, column: int) -> None:
+    with pytest.raises(fl.ModelSyntaxError, match=message) as err:
+        fl.parse_model(text)
+    assert err.value.column == column
+    assert str(err.value).splitlines()[-1] == " " * (column - 1) + "^"
+
+
+def test_ordinary_names_still_read() -> None:
+    m = fl.parse_model("J_2 X0 Z1 + hx Z1 + Xa X1 + I_g Z0")
+    assert {str(s) for c in m.couplings for s in getattr(c, "free_symbols", ())} == {
+        "J_2",
+        "hx",
+        "Xa",
+        "I_g",
+    }

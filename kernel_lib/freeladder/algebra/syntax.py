@@ -26,6 +26,8 @@ How the tokens are told apart:
   X, Y or Z alone, not followed by a site label, is an error (missing site), and so are
   lower-case look-alikes such as ``x0`` (write ``x_0`` for a coupling of that name).
 * A NAME is any other identifier (``g``, ``J_2``, ``hx``); it becomes a :class:`sympy.Symbol`.
+  A name made only of the letters X, Y, Z, I, ``_`` and digits that holds X, Y or Z (``X_0``,
+  ``XZI``, ``ZZ``) is an error: it would read operators written another way as a coupling.
   The names ``w`` (the phase ``exp(i pi / N)``) and ``I``, ``E``, ``pi``, ``j``, ``nan``,
   ``inf``, ``infinity``, ``oo``, ``zoo`` are reserved.  Symbols are created without assumptions.
 * A NUMBER is an integer, a decimal (``0.25``, ``1e-3``) or an imaginary literal (``2j``,
@@ -51,7 +53,8 @@ How the tokens are told apart:
   the exact sympy number ``exp(i pi / N)``.  Printing uses it for strings whose normalisation
   (``g^N = 1``) needs an odd power of ``w`` (N even, ``X Z`` on one site).
 
-A term without operators is a constant (a multiple of the identity).  Factors on a repeated site
+A term without operators is a constant (a multiple of the identity); a model must have at
+least one term with operators.  Factors on a repeated site
 are multiplied exactly in the written order (``Z0 X0 = omega X0 Z0``).  ``#`` starts a comment
 that runs to the end of the line; newlines are ordinary white space.
 """
@@ -68,7 +71,7 @@ import sympy
 
 from ..base.scalars import MAX_EXPANDED_TERMS, expanded_terms_bound, to_python_number
 from .model import Model
-from .printing import NOT_FINITE_NAMES
+from .printing import NOT_FINITE_NAMES, OPERATOR_LOOKALIKE
 from .strings import WeylString, check_sites, check_states, make_string
 
 __all__ = ["ModelSyntaxError", "parse_model"]
@@ -346,6 +349,17 @@ class _Tokenizer:
             raise self.error(f"{name!r} is not a finite number; couplings must be finite", start)
         if name in _RESERVED:
             raise self.error(f"{name!r} is a reserved name: {_RESERVED[name]}", start)
+        if set(name) <= OPERATOR_LOOKALIKE and set(name) & set("XYZ"):
+            hint = "X0 Z1"
+            if len(name) > 2 and name[0] in "XYZ" and name[1] == "_" and _all_digits(name[2:]):
+                hint = f"{name[0]}{name[2:]}"
+            raise self.error(
+                f"{name!r} would be read as a coupling name, but it looks like operators "
+                "written another way: an operator is its letter followed directly by the site, "
+                f"as in {hint} (or X(0,1)), with the factors of a term separated by spaces; a "
+                "coupling name needs a character other than X, Y, Z, I, '_' and digits",
+                start,
+            )
         return _Token("name", name, start)
 
 
@@ -365,6 +379,7 @@ class _Parser:
         self.i = 0
         self.depth = 0
         self.factors = 0  # numbers and names read in the current coefficient
+        self.operators_seen = False  # some term has an operator factor
         self.w = sympy.exp(sympy.I * sympy.pi / states)
 
     # -- helpers ---------------------------------------------------------------------------------
@@ -400,6 +415,13 @@ class _Parser:
             terms.append(self._term(sign, sign_tok))
             t = self.tok
             if t.kind == "end":
+                if not self.operators_seen:
+                    raise self.error(
+                        "the model has no operator term: every term is a constant (operators "
+                        "are X, Y or Z followed directly by the site, as in "
+                        f"{_ACCEPTED_FORM})",
+                        0,
+                    )
                 return terms
             if t.kind in ("+", "-"):
                 sign_tok = self.advance()
@@ -410,15 +432,13 @@ class _Parser:
             if t.kind in ("number", "name", "("):
                 raise self.error(
                     f"unexpected {self._describe(t)} after the operators of a term: a coefficient "
-                    "goes before the operators, and terms are joined with '+' or '-'"
-                    + _underscore_note([t]),
+                    "goes before the operators, and terms are joined with '+' or '-'",
                     t.offset,
                 )
             raise self.error(f"unexpected {self._describe(t)} after a term", t.offset)
 
     def _term(self, sign: int, sign_tok: _Token | None) -> tuple[Any, WeylString]:
         start = self.tok
-        start_i = self.i
         coef = _Coefficient(sympy.Integer(1), 0)
         has_coef = False
         if self._starts_atom(start):
@@ -445,6 +465,7 @@ class _Parser:
             if self.sites is not None and site not in self.sites:
                 raise self.error(f"site {site!r} is not in the given site list", t.offset)
             factors.append((site, a, b))
+            self.operators_seen = True
             extra_phase += y
         if not has_coef and not factors:
             t = self.tok
@@ -459,8 +480,7 @@ class _Parser:
             t = self.tok
             raise self.error(
                 f"expected '*' or an operator before {self._describe(t)} "
-                "(coefficients are multiplied with '*')"
-                + _underscore_note(self.tokens[start_i : self.i + 1]),
+                "(coefficients are multiplied with '*')",
                 t.offset,
             )
         value = self._finish_value(sign * coef.value, start.offset)
@@ -751,24 +771,6 @@ class _Parser:
                 offset,
             )
         return number
-
-
-def _underscore_note(tokens: Sequence[_Token]) -> str:
-    """A note for names such as ``X_0`` that look like operators written with an underscore."""
-    for t in tokens:
-        text = t.text
-        if (
-            t.kind == "name"
-            and len(text) > 2
-            and text[0] in "XYZ"
-            and text[1] == "_"
-            and _all_digits(text[2:])
-        ):
-            return (
-                f"; {text!r} was read as a coupling name: an operator is its letter followed "
-                f"directly by the site, as in {text[0]}{text[2:]} (for example X0 Z1)"
-            )
-    return ""
 
 
 def parse_model(text: str, states: int = 2, sites: Sequence[Any] | None = None) -> Model:
