@@ -5,8 +5,11 @@ refusal the documentation promises.
 
 from __future__ import annotations
 
+import subprocess
+import sys
 import time
 from collections.abc import Sequence
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -290,3 +293,52 @@ def test_ordinary_names_still_read() -> None:
         "Xa",
         "I_g",
     }
+
+
+# -- item 8: the command line's export and report wording ----------------------------------------
+def _cli(*args: str) -> subprocess.CompletedProcess[str]:
+    return subprocess.run(
+        [sys.executable, "-m", "freeladder", *args],
+        capture_output=True,
+        text=True,
+        timeout=300,
+        check=False,
+    )
+
+
+ISING = "X0 + 0.5 Z0 Z1 + X1"
+
+
+def test_export_into_a_missing_folder_is_bad_input(tmp_path: Path) -> None:
+    done = _cli("export", ISING, "--to", "script", str(tmp_path / "nodir" / "x.py"))
+    assert done.returncode == 2, done.stderr
+    assert "Traceback" not in done.stderr
+    assert "does not exist" in done.stderr
+    assert not (tmp_path / "nodir").exists()
+
+
+def test_export_refuses_a_dangling_symlink(tmp_path: Path) -> None:
+    link = tmp_path / "x.py"
+    link.symlink_to(tmp_path / "elsewhere.py")
+    for extra in ((), ("--force",)):
+        done = _cli("export", ISING, "--to", "script", str(link), *extra)
+        assert done.returncode == 2, done.stderr
+        assert "symbolic link" in done.stderr
+        assert not (tmp_path / "elsewhere.py").exists()
+    with pytest.raises(FileExistsError):
+        fl.worked_calculation(fl.parse_model(ISING)).to_notebook(link)
+    assert not (tmp_path / "elsewhere.py").exists()
+
+
+def test_export_wording(tmp_path: Path) -> None:
+    done = _cli("export", ISING, "--to", "latex", str(tmp_path / "x.tex"))
+    assert done.returncode == 0, done.stderr
+    assert "as a LaTeX document" in done.stdout
+    assert "a latex" not in done.stdout
+
+
+def test_failed_checks_are_not_called_not_run() -> None:
+    # a defective (nilpotent) H: exact diagonalization cannot confirm its zero quasi-energy
+    report = fl.verify(fl.exclusion_chain(2, couplings=[1, 1j]))
+    assert report.failed
+    assert not any("no decisive check ran" in p for p in report.problems)

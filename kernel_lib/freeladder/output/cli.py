@@ -88,7 +88,7 @@ def report_data(m: Model, checks: bool = True) -> dict[str, Any]:
     else:
         try:
             sp = a.spectrum()
-        except NoTheoremError as err:
+        except (NoTheoremError, ArithmeticError) as err:  # no theorem, or no convergence
             out["refusal"] = str(err)
         else:
             out["quasi_energies"] = sp.quasi_energies
@@ -171,14 +171,27 @@ def _export(m: Model, kind: str, path: str, force: bool) -> str:
         raise _UsageError("this installation has no export module") from None
     calc = worked_calculation(m)
     target = Path(path)
+    if target.is_symlink() and not target.exists():
+        raise _UsageError(
+            f"{path} is a symbolic link to a file that does not exist; nothing was written "
+            "(remove the link or choose another path)"
+        )
     if target.exists() and not force:
         raise _UsageError(f"{path} exists; pass --force to overwrite it")
-    if kind == "notebook":
-        calc.to_notebook(target, overwrite=force)
-    else:
-        text = calc.to_script() if kind == "script" else calc.to_latex()
-        target.write_text(text, encoding="utf-8")
-    return f"wrote the worked calculation ({len(calc)} cells) as a {kind} to {path}"
+    if not target.parent.is_dir():
+        raise _UsageError(f"cannot write {path}: the folder {target.parent} does not exist")
+    try:
+        if kind == "notebook":
+            calc.to_notebook(target, overwrite=force)
+        else:
+            text = calc.to_script() if kind == "script" else calc.to_latex()
+            # "x" never replaces a file that appeared meanwhile (nor follows a link)
+            with open(target, "w" if force else "x", encoding="utf-8") as handle:
+                handle.write(text)
+    except OSError as err:
+        raise _UsageError(f"cannot write {path}: {err.strerror or err}") from None
+    what = {"notebook": "a notebook", "script": "a Python script", "latex": "a LaTeX document"}
+    return f"wrote the worked calculation ({len(calc)} cells) as {what[kind]} to {path}"
 
 
 def _parser() -> argparse.ArgumentParser:

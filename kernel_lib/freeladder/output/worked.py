@@ -145,7 +145,7 @@ class WorkedCalculation(Sequence[Cell]):
         import nbformat
 
         target = Path(path)
-        if target.exists() and not overwrite:
+        if (target.exists() or target.is_symlink()) and not overwrite:  # a dangling link too
             raise FileExistsError(
                 f"{target} already exists; the worked calculation was not written (choose "
                 "another name, or pass overwrite=True to replace the file)"
