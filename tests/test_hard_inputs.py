@@ -342,3 +342,45 @@ def test_failed_checks_are_not_called_not_run() -> None:
     report = fl.verify(fl.exclusion_chain(2, couplings=[1, 1j]))
     assert report.failed
     assert not any("no decisive check ran" in p for p in report.problems)
+
+
+# -- item 10: verify's time follows the frontier of the term order --------------------------------
+def _tree_model(n_terms: int, seed: int) -> fl.Model:
+    # Majorana bilinears on the edges of a random recursive tree (a line-graph frustration graph,
+    # Chapman-Flammia 2020), as in tests/benchmarks/bench_verify_trees.py
+    rng = np.random.default_rng(seed)
+    terms = []
+    for k in range(1, n_terms + 1):
+        a, b = sorted((int(rng.integers(0, k)), k))
+        sa, sb = a // 2, b // 2
+        letters = {sa: "Z"} if sa == sb else {sa: "Y" if a % 2 == 0 else "X"}
+        if sa != sb:
+            letters.update({s: "Z" for s in range(sa + 1, sb)})
+            letters[sb] = "X" if b % 2 == 0 else "Y"
+        terms.append(
+            f"{rng.uniform(0.3, 1.5):.3f} "
+            + " ".join(f"{p}{s}" for s, p in sorted(letters.items()))
+        )
+    return fl.parse_model(" + ".join(terms))
+
+
+def test_wide_frontier_tree_does_not_run_for_minutes() -> None:
+    # 24 terms: the exact sweeps used to take about 2.5 minutes here (frontier of 1152
+    # rational coordinates); now their cost is estimated first and they are refused
+    m = _tree_model(24, 0)
+    assert fl.classify(m).kind == "jordan-wigner"
+    start = time.perf_counter()
+    report = fl.verify(m, exact_diagonalization=False)
+    assert time.perf_counter() - start < 30
+    pairs = report["[Q(r), Q(s)] = 0"]
+    assert pairs.status == "not run" and "time budget" in pairs.detail
+    assert not report.failed
+
+
+def test_sweep_estimate_follows_the_frontier() -> None:
+    from freeladder.checks import verification
+
+    chain = verification._Parts(fl.analyze(fl.exclusion_chain(24, reach=2)))
+    tree = verification._Parts(fl.analyze(_tree_model(24, 1)))
+    # the same number of terms; the tree's frontier is 28 times wider (512 vs 18 coordinates)
+    assert tree.sweep_seconds() > 50 * chain.sweep_seconds()
