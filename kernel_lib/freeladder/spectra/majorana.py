@@ -727,6 +727,8 @@ def flux_theorem_values(m: Model) -> tuple[dict[WeylString, int] | None, str]:
     E. H. Lieb, Phys. Rev. Lett. 73, 2158 (1994); A. Kitaev, Ann. Phys. 321, 2 (2006).
     """
     pairs = _check_model(m)
+    if len(m) == 0:
+        return None, "the model has no terms"
     couplings = m.coupling_array()
     if np.iscomplexobj(couplings):
         return None, "complex couplings"
