@@ -70,6 +70,7 @@ from .spectra.majorana import (
 from .spectra.matching import LevelMatch, match_levels
 from .spectra.spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .spectra.thermo import Thermodynamics, log_partition_function, thermodynamics
+from .studies.census import census
 from .studies.disorder import (
     LogGapStatistics,
     disorder_couplings,
@@ -93,6 +94,7 @@ from .studies.scaling import (
 )
 
 __all__ = [
+    "census",
     "honeycomb_hexagons",
     "kitaev_torus",
     "IndifferenceOrder",

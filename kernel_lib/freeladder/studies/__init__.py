@@ -1,5 +1,8 @@
 """Studies over many models: scaling, disorder, parameter sweeps."""
 
+from .census import (
+    census,
+)
 from .disorder import (
     LogGapStatistics,
     disorder_couplings,
@@ -25,6 +28,7 @@ from .scaling import (
 )
 
 __all__ = [
+    "census",
     "EnergyDensity",
     "GapScaling",
     "LogGapStatistics",
