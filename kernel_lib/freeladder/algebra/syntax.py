@@ -417,7 +417,7 @@ class _Parser:
             if t.kind == "end":
                 if not self.operators_seen:
                     raise self.error(
-                        "the model has no operator term: every term is a constant (operators "
+                        "the model has no operator terms: every term is a constant (operators "
                         "are X, Y or Z followed directly by the site, as in "
                         f"{_ACCEPTED_FORM})",
                         0,
