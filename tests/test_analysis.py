@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 
 import freeladder as fl
-from freeladder.base.cache import structure_store
+from freeladder.base.cache import store_of
 
 
 def test_parts_agree_with_the_library_functions():
@@ -37,14 +37,16 @@ def test_coupling_change_reuses_structure_and_recomputes_values():
     m = fl.exclusion_chain(8, reach=2)
     a = fl.analyze(m)
     _ = a.verdict, a.charge_counts, a.spectrum()
-    shared = dict(structure_store(m.strings))
+    shared = dict(store_of(m).strings.values)
     assert shared, "structure parts are kept with the strings"
     b = a.with_couplings(fl.staggered(8, 1.0, 0.3))
     assert b.model.strings is m.strings
     assert b.verdict.model is b.model  # the witness text prints the new couplings
     assert b.verdict.kind == a.verdict.kind
+    assert store_of(b.model).strings is store_of(m).strings
     for key, value in shared.items():
-        assert structure_store(b.model.strings)[key] is value
+        assert store_of(b.model).strings.values[key] is value
+    assert store_of(b.model).couplings is not store_of(m).couplings
     # values that depend on the couplings are new, and right (numpy dense reference)
     h = b.model.to_sparse().toarray()
     assert abs(np.linalg.eigvalsh(h)[0] - b.spectrum().ground_energy) < 1e-9
@@ -60,7 +62,9 @@ def test_failures_are_raised_again_not_hidden():
         a.spectrum()
     assert a.exact is None  # symbolic couplings: no numbers to diagonalize
     d = a.to_dict()
-    assert d["spectrum"]["error"] == "ValueError"
+    assert d["spectrum"]["status"] == "refused" and d["spectrum"]["quasi_energies"] is None
+    assert "symbolic" in d["spectrum"]["refusal"]["reason"]
+    assert "subs" in d["spectrum"]["refusal"]["instead"]
 
 
 def test_analysis_is_immutable_and_json_ready():

@@ -242,14 +242,21 @@ def _workbench_checks(page: sync_api.Page, cell: sync_api.Locator, path: Path) -
 def _check_workbench_layout(page: sync_api.Page, output: sync_api.Locator) -> None:
     """What a newcomer saw wrong once, measured in the page.
 
-    The tour's chain (couplings 1, 0.4, ...) is no family pattern, so the family selector says
-    so; the frustration graph's title is not under bqplot's toolbar (hovered, so it shows);
-    the k / eta_k / bound table's rows keep their natural height beside the longer notes.
+    The tour's chain (couplings 1, 0.4, 1, 0.4, ...) is the chain family with staggered
+    couplings, so the family selector shows that family (not "(custom)"); the frustration
+    graph's title is not under bqplot's toolbar (hovered, so it shows); the k / eta_k / bound
+    table's rows keep their natural height beside the longer notes.
     """
     selected = output.locator("select").first.evaluate(
-        "(s) => s.options[s.selectedIndex].textContent"
+        "(s) => s.options[s.selectedIndex].textContent.replace(/\\u00a0/g, ' ')"
     )
-    assert selected.startswith("(custom"), f"the family selector shows {selected!r}"
+    assert selected.startswith("exclusion chain"), f"the family selector shows {selected!r}"
+    pattern = (
+        output.locator("select")
+        .nth(1)
+        .evaluate("(s) => s.options[s.selectedIndex].textContent.replace(/\\u00a0/g, ' ')")
+    )
+    assert pattern.startswith("staggered"), f"the coupling pattern shows {pattern!r}"
     graph = output.locator(".bqplot").first
     graph.hover()
     page.wait_for_timeout(300)

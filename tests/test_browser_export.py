@@ -427,3 +427,222 @@ def test_workbench_renders_follows_edits_and_exports(
             raise
         finally:
             browser.close()
+
+
+LARGE_CELL = """import freeladder as fl
+from freeladder_lab import Workbench
+
+Workbench(fl.exclusion_chain(2000, reach=2))"""
+LADDER_CELL = """Workbench(
+    "0.9 X0 X1 + 1.2 Y1 Y2 + 0.7 X3 X4 + 1.1 Y4 Y5 + 0.8 Z0 Z3 + 1.3 Z1 Z4 + 0.6 Z2 Z5"
+)"""
+TYPO_CELL = """Workbench("X0 Z1 + 0.5 X1 Z2 + Q7")"""
+
+# Boxes of the text elements of one figure that overlap another (the label boxes as drawn).
+_OVERLAPS = """(node) => {
+    const boxes = [...node.querySelectorAll(SELECTOR)]
+        .filter(t => (t.textContent || '').trim() !== '')
+        .map(t => [t.textContent, t.getBoundingClientRect()])
+        .filter(([_, r]) => r.width > 0 && r.height > 0);
+    const hits = [];
+    for (let i = 0; i < boxes.length; i++) {
+        for (let j = i + 1; j < boxes.length; j++) {
+            const [a, p] = boxes[i], [b, q] = boxes[j];
+            if (p.left < q.right - 0.5 && q.left < p.right - 0.5 &&
+                p.top < q.bottom - 0.5 && q.top < p.bottom - 0.5) hits.push([a, b]);
+        }
+    }
+    return [boxes.length, hits];
+}"""
+
+
+def _overlaps(locator: sync_api.Locator, selector: str) -> tuple[int, list]:
+    count, hits = locator.evaluate(_OVERLAPS.replace("SELECTOR", repr(selector)))
+    return int(count), hits
+
+
+def _clipped(locator: sync_api.Locator) -> list[str]:
+    """Elements wider than their box (text cut off or running past the right edge)."""
+    return locator.evaluate(
+        """(node) => [node, ...node.querySelectorAll('*')]
+            .filter(e => e.clientWidth > 0 && e.scrollWidth > e.clientWidth + 1 &&
+                         getComputedStyle(e).overflowX !== 'auto' &&
+                         getComputedStyle(e).overflowX !== 'scroll')
+            .map(e => e.className + ': ' + (e.textContent || '').slice(0, 80))"""
+    )
+
+
+def _titles_outside(output: sync_api.Locator) -> list[str]:
+    """Plot titles that run past their figure's left or right edge (clipped on screen)."""
+    return output.evaluate(
+        """(node) => [...node.querySelectorAll('.bqplot')].flatMap(fig => {
+            const box = fig.getBoundingClientRect();
+            return [...fig.querySelectorAll('text.mainheading')]
+                .filter(t => (t.textContent || '').trim() !== '')
+                .filter(t => { const r = t.getBoundingClientRect();
+                               return r.width > 0 && (r.left < box.left - 1 ||
+                                                      r.right > box.right + 1); })
+                .map(t => t.textContent);
+        })"""
+    )
+
+
+def test_workbench_reads_at_scale_and_says_what_it_shows(
+    server: tuple[str, str, Path], artifacts_dir: Path
+) -> None:
+    # Issue 24, items 1-5, 10 and 12, measured in the page: a 2000-term chain (multiplicities as
+    # powers, ticks and labels that do not overlap, summary not cut off, log axes), a ladder
+    # with cycle strings (the sector chooser names them, the ladder says what its exact column
+    # holds) and a typo (the error box says that nothing parsed; export says so too).
+    url, token, root = server
+    name = "scale.ipynb"
+    nb = nbformat.v4.new_notebook()
+    nb.metadata["kernelspec"] = {
+        "name": "python3",
+        "display_name": "Python 3",
+        "language": "python",
+    }
+    nb.cells = [
+        nbformat.v4.new_markdown_cell("Workbenches at scale."),
+        nbformat.v4.new_code_cell(LARGE_CELL),
+        nbformat.v4.new_code_cell(LADDER_CELL),
+        nbformat.v4.new_code_cell(TYPO_CELL),
+    ]
+    nbformat.write(nb, root / name)
+    address = f"{url}lab/workspaces/t{uuid.uuid4().hex[:10]}/tree/{name}?reset&token={token}"
+    with sync_api.sync_playwright() as pw:
+        browser = pw.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
+        page = browser.new_page(viewport={"width": 1400, "height": 1000})
+        try:
+            page.goto(address)
+            notebook = page.locator(".jp-Notebook:visible").first
+            cells = notebook.locator(".jp-Cell")
+            cells.first.wait_for(timeout=90_000)
+            _wait_cell_count(page, 4)
+            _wait_kernel_idle(url, token, name)
+            _run_all(page)
+            _wait_all_ran(page, 3)
+            big = cells.nth(1).locator(".jp-OutputArea-output").first
+            ladder = cells.nth(2).locator(".jp-OutputArea-output").first
+            typo = cells.nth(3).locator(".jp-OutputArea-output").first
+            big.locator(".freeladder-ladder-figure text", has_text="x 2^").first.wait_for(
+                timeout=180_000
+            )
+            ladder.locator(".freeladder-ladder-title", has_text="whole space").wait_for(
+                timeout=120_000
+            )
+            page.wait_for_timeout(2000)  # the figures settle their layout
+
+            # 1, 2: multiplicities as powers; labels and ticks never overlap
+            labels = big.locator(".freeladder-ladder-figure").first
+            texts = labels.locator("text").all_text_contents()
+            multiplicities = [t for t in texts if t.startswith("x")]
+            assert multiplicities and all(len(t) < 12 for t in multiplicities), texts
+            count, hits = _overlaps(labels, "text")
+            assert count >= 12 and hits == [], hits
+            assert "E - E0" in labels.text_content()
+            for fig in big.locator(".bqplot").all():
+                for axis in fig.locator("g.axis").all():
+                    n, hits = _overlaps(axis, ".tick text")
+                    assert hits == [], (fig.text_content()[:80], hits)
+            # 12: the roots span decades: a log axis that says so
+            roots = big.locator(".freeladder-roots-figure").first
+            assert "log scale" in roots.text_content()
+            # 1: nothing cut off at the right (the roots summary, the ladder title)
+            assert _clipped(big.locator(".freeladder-roots-notes").first) == []
+            assert _clipped(big.locator(".freeladder-ladder-title").first) == []
+            _shot_whole(page, big, artifacts_dir / "workbench-large.png")
+
+            # 3, 5: the sector chooser names the cycle strings; the ladder title says what the
+            # exact column holds; 4: the order-1 formula stays inside its column
+            option = ladder.locator("select option", has_text="cycle strings").first
+            # (the chooser pads with no-break spaces)
+            assert "Y0 Y1 Y3 Y4 = " in option.text_content().replace("\xa0", " ")
+            assert _clipped(ladder.locator(".freeladder-ladder-title").first) == []
+            ladder.locator(".freeladder-products mjx-container, .freeladder-products .MathJax")
+            products = ladder.locator(".freeladder-products").first
+            box = products.bounding_box()
+            column = products.locator("xpath=..").bounding_box()
+            assert box is not None and column is not None
+            right = products.evaluate(
+                "(n) => Math.max(...[...n.querySelectorAll('*')]"
+                ".map(e => e.getBoundingClientRect().right))"
+            )
+            assert right <= column["x"] + column["width"] + 1, (right, column)
+            count, hits = _overlaps(ladder.locator(".freeladder-ladder-figure").first, "text")
+            assert hits == [], hits
+            assert _titles_outside(ladder) == []
+            assert _titles_outside(big) == []
+            _shot_whole(page, ladder, artifacts_dir / "workbench-ladder.png")
+
+            # 10: nothing parsed: the box says so, and export does not show a TypeError
+            message = typo.text_content()
+            assert "No model has parsed yet" in message, message[:500]
+            assert "last model that parsed" not in message
+            typo.get_by_role("button", name="copy text").click()
+            typo.locator(".freeladder-export", has_text="nothing to export yet").wait_for(
+                timeout=30_000
+            )
+            assert "TypeError" not in typo.text_content()
+            _shot_whole(page, typo, artifacts_dir / "workbench-typo.png")
+        except Exception:
+            page.screenshot(path=str(artifacts_dir / "workbench-scale-failure.png"))
+            raise
+        finally:
+            browser.close()
+
+
+def _shot_whole(page: sync_api.Page, output: sync_api.Locator, path: Path) -> None:
+    """A screenshot of one whole output (the viewport grown to hold it)."""
+    height = int((output.bounding_box() or {"height": 2500})["height"])
+    page.set_viewport_size({"width": 1400, "height": height + 400})
+    output.scroll_into_view_if_needed()
+    page.wait_for_timeout(1500)
+    output.screenshot(path=str(path))
+    page.set_viewport_size({"width": 1400, "height": 1000})
+
+
+def test_save_as_notebook_follows_a_rename(
+    server: tuple[str, str, Path], artifacts_dir: Path
+) -> None:
+    # Issue 24, item 6: "save as notebook" names the file after the notebook as it is named
+    # now, not as it was named when the kernel started.
+    url, token, root = server
+    name = "before-rename.ipynb"
+    _write_notebook(root / name)
+    address = f"{url}lab/workspaces/t{uuid.uuid4().hex[:10]}/tree/{name}?reset&token={token}"
+    with sync_api.sync_playwright() as pw:
+        browser = pw.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
+        page = browser.new_page(viewport={"width": 1400, "height": 1000})
+        try:
+            page.goto(address)
+            notebook = page.locator(".jp-Notebook:visible").first
+            notebook.locator(".jp-Cell").first.wait_for(timeout=90_000)
+            _wait_cell_count(page, 3)
+            _wait_kernel_idle(url, token, name)
+            _run_all(page)
+            _wait_all_ran(page, 2)
+            notebook.get_by_role("button", name="save as notebook").wait_for(timeout=60_000)
+            page.locator(".lm-MenuBar-itemLabel", has_text="File").first.click()
+            page.locator(".lm-Menu-itemLabel", has_text="Rename Notebook").first.click()
+            field = page.locator(".jp-Dialog input").first
+            field.fill("after-rename.ipynb")
+            page.locator(".jp-Dialog button", has_text="Rename").first.click()
+            page.locator(".lm-TabBar-tab", has_text="after-rename.ipynb").first.wait_for(
+                timeout=30_000
+            )
+            notebook.get_by_role("button", name="save as notebook").click()
+            panel = notebook.locator(".freeladder-export")
+            panel.filter(has_text="saved as").wait_for(timeout=60_000)
+            status = panel.text_content()
+            _shot(page, notebook.locator(".jp-Cell").nth(1), artifacts_dir / "export-renamed.png")
+        except Exception:
+            page.screenshot(path=str(artifacts_dir / "export-rename-failure.png"))
+            raise
+        finally:
+            browser.close()
+    assert "after-rename-worked.ipynb" in status, status
+    saved = root / "after-rename-worked.ipynb"
+    assert saved.exists()
+    assert nbformat.read(saved, as_version=4).cells[0].source.startswith("# Worked")
+    assert not (root / "before-rename-worked.ipynb").exists()

@@ -224,3 +224,25 @@ def test_orbit_counts_for_single_types() -> None:
     # N = 2, one type on at most 2 sites: X/Y/Z on one site (1 orbit), two equal letters
     # (XX, YY, ZZ: 1 orbit), two different letters (6 words, 1 orbit): 3 (counted by hand).
     assert len(census_orbits(2, 2, 1)) == 3
+
+
+def test_command_line_prints_the_same_rows(small: object) -> None:
+    import json
+    import subprocess
+    import sys
+
+    out = subprocess.run(
+        [sys.executable, "-m", "freeladder", "census", "--support", "2", "--types", "2", "--json"],
+        capture_output=True,
+        text=True,
+        check=True,
+    ).stdout
+    rows = json.loads(out)
+    assert [tuple(r["types"]) for r in rows] == list(small["types"])
+    assert [r["verdict"] for r in rows] == list(small["verdict"])
+    bad = subprocess.run(
+        [sys.executable, "-m", "freeladder", "census", "--support", "0"],
+        capture_output=True,
+        text=True,
+    )
+    assert bad.returncode == 2 and "support must be a positive integer" in bad.stderr

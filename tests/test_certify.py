@@ -10,6 +10,7 @@ import numpy as np
 import pytest
 from test_roots import exact_coefficients, mpmath_roots, random_weights
 
+import freeladder as fl
 from freeladder.roots.certify import certified_roots, certify_chain_roots
 from freeladder.roots.methods import solve_chain
 from freeladder.roots.real import chain_real_roots
@@ -60,7 +61,7 @@ def test_certified_roots_against_mpmath():
         dist = np.abs(got.values - complex(z))
         assert np.min(dist) <= got.error_bounds[np.argmin(dist)] + 1e-300
     assert np.all(got.error_bounds < 1e-15)
-    assert list(got.details["multiplicities"]) == [1, 1, 1, 1]
+    assert list(got.multiplicities) == [1, 1, 1, 1]
 
 
 def test_certified_roots_of_a_chain_match_the_fast_roots():
@@ -71,9 +72,12 @@ def test_certified_roots_of_a_chain_match_the_fast_roots():
 
 
 def test_multiplicity_reported():
-    got = certified_roots([1, -2, 1])  # (1 - y)^2
-    assert list(got.details["multiplicities"]) == [2, 2] and got.count == 2
+    got = certified_roots([1, -2, 1])  # (1 - y)^2: one distinct root that counts twice
+    assert list(got.multiplicities) == [2] and got.count == 2
     assert np.all(np.abs(got.values - 1) <= got.error_bounds)
+    every = got.repeated()
+    assert list(every.multiplicities) == [1, 1]
+    assert np.all(np.abs(every.values - 1) <= every.error_bounds)
 
 
 def test_errors():
@@ -170,3 +174,97 @@ def test_back_reach_arrays_are_refused_with_the_route_to_take():
     # array) is certified through the exact polynomial instead (root_methods, spectrum).
     with pytest.raises(ValueError, match="back-reach array.*exact polynomial"):
         certify_chain_roots([1.0, 1.0, 1.0], np.array([0, 1, 1]), [0.5])
+
+
+def _arb_sign(w: np.ndarray, reach: int, y: float, prec: int = 4000) -> int:
+    """Sign of P_M(y) from the linear recurrence in python-flint arb balls (independent check)."""
+    saved = flint.ctx.prec
+    flint.ctx.prec = prec
+    try:
+        ya = flint.arb(float(y))
+        hist = [flint.arb(1)] * (reach + 1)
+        for wk in w:
+            hist = hist[1:] + [hist[-1] - ya * flint.arb(float(wk)) * hist[0]]
+        value = hist[-1]
+        assert value > 0 or value < 0, "arb at this precision does not decide the sign"
+        return 1 if value > 0 else -1
+    finally:
+        flint.ctx.prec = saved
+
+
+@pytest.mark.parametrize(("reach", "seed"), [(2, 11), (3, 12)])
+def test_thousand_term_certificate_in_float64_checked_by_arb(reach, seed):
+    # The enclosing frame decides every sign in float64 (53 bits: the earlier ratio boxes
+    # widened 1.26x per step and needed arb at growing precision here).  Independent check:
+    # python-flint arb at 4000 bits on the same recurrence finds a sign change at both ends of
+    # 30 sampled intervals.
+    w = np.random.default_rng(seed).uniform(0.3, 1.7, 1000) ** 2
+    r = chain_real_roots(w, reach)
+    enc = certify_chain_roots(w, reach, r.values, r.error_bounds)
+    assert enc.rigorous and enc.details["precision"] == 53, enc.message
+    assert np.median(enc.error_bounds / enc.values) < 1e-12
+    lower, upper = enc.details["lower"], enc.details["upper"]
+    picks = np.random.default_rng(seed).choice(r.count, 30, replace=False)
+    for k in picks:
+        assert _arb_sign(w, reach, lower[k]) * _arb_sign(w, reach, upper[k]) < 0
+
+
+def test_wrong_root_in_a_long_chain_is_not_certified():
+    # One value moved to the middle between two roots of a 1000-term reach-3 chain: its interval
+    # can never show a sign change (it stays within 0.45 of the gaps), so the result must not be
+    # rigorous, name the failure, and keep the other intervals' sign changes.
+    w = np.random.default_rng(13).uniform(0.3, 1.7, 1000) ** 2
+    r = chain_real_roots(w, 3)
+    wrong = r.values.copy()
+    wrong[100] = 0.5 * (r.values[100] + r.values[101])
+    enc = certify_chain_roots(w, 3, wrong, r.error_bounds, widenings=3)
+    assert not enc.rigorous and "NOT certified" in enc.message
+    change = enc.details["sign_change"]
+    assert not change[100] and change.sum() == r.count - 1
+
+
+def _mp(q: Fraction) -> mpmath.mpf:
+    return mpmath.mpf(q.numerator) / q.denominator
+
+
+@pytest.mark.parametrize(("reach", "m", "seed"), [(1, 10, 21), (2, 12, 22)])
+def test_complex_clock_chain_roots_contain_mpmath_roots(reach, m, seed):
+    # Z_3 exclusion chains with complex couplings: the one certified isolation (through the
+    # exact exclusion polynomial) against mpmath.polyroots at 60 digits of the same exact
+    # Gaussian-rational coefficients; every reference root lies in its ball.
+    c = fl.complex_couplings(m, seed=seed)
+    poly = fl.exclusion_polynomial(fl.exclusion_chain(m, reach=reach, states=3, couplings=list(c)))
+    re, im = poly.exact_parts()
+    found = certified_roots(re, im)
+    assert found.rigorous and found.count == poly.degree and np.all(found.multiplicities == 1)
+    with mpmath.workdps(60):
+        ref = mpmath.polyroots(
+            [
+                mpmath.mpc(
+                    mpmath.mpf(a.numerator) / a.denominator, mpmath.mpf(b.numerator) / b.denominator
+                )
+                for a, b in zip(re[::-1], im[::-1], strict=True)
+            ],
+            maxsteps=400,
+            extraprec=400,
+        )
+        for z in ref:
+            dist = [abs(mpmath.mpc(v.real, v.imag) - z) for v in found.values]
+            k = int(np.argmin([float(x) for x in dist]))
+            assert dist[k] <= mpmath.mpf(float(found.error_bounds[k]))
+    # the same balls come out of ExclusionPolynomial.roots (one isolation, one result type)
+    again = poly.roots()
+    assert isinstance(again, fl.RootTable) and again.values.size == found.values.size
+
+
+def test_deprecated_names_warn_and_still_work():
+    with pytest.warns(DeprecationWarning, match="RootTable"):
+        old = fl.RootResult
+    assert old is fl.RootTable
+    import freeladder.roots as roots
+
+    with pytest.warns(DeprecationWarning):
+        assert roots.PolynomialRoots is fl.RootTable
+    enc = certify_chain_roots([1.0, 1.0], 1, [0.5])
+    with pytest.warns(DeprecationWarning, match="sweeps"):
+        assert enc.iterations == enc.sweeps

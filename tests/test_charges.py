@@ -69,6 +69,64 @@ def test_counts_and_sets_match_brute_force_on_random_models() -> None:
             assert sorted(listed) == sorted(brute[st.order])
 
 
+def _variable_chain(size: int, rng: np.random.Generator, states: int = 3) -> fl.Model:
+    """A chain whose reach changes along it (random reaches 1-3), terms relabelled at random."""
+    ends = np.maximum.accumulate(np.arange(size) + rng.integers(1, 4, size))
+    chain = fl.exclusion_chain(size, reach=list(ends - np.arange(size)), states=states)
+    order = rng.permutation(size)
+    return fl.Model(chain.strings.take(order), [chain.couplings[int(j)] for j in order])
+
+
+def test_counts_on_variable_reach_chains_match_brute_force() -> None:
+    # Reference: networkx enumeration of independent sets (cliques of the complement graph) on
+    # chains whose reach varies along the chain (counted by the transfer recurrence along the
+    # indifference ordering, not by the general recursion).
+    rng = np.random.default_rng(11)
+    for size in (1, 2, 5, 9, 14, 18):
+        for states in (2, 3):
+            m = _variable_chain(size, rng, states)
+            graph = fl.frustration_graph(m)
+            graph = graph.to_undirected() if graph.is_directed() else graph
+            brute = _brute_sets(graph)
+            assert fl.charge_counts(m) == tuple(len(brute[s]) for s in range(len(brute)))
+
+
+def test_counts_of_chain_orderings_against_networkx_on_unit_interval_graphs() -> None:
+    # Reference: networkx enumeration on unit interval graphs drawn at random (points on a line,
+    # an edge when two lie closer than 1: common practice for indifference graphs).
+    from freeladder.spectra.charges import _ordered_counts
+
+    rng = np.random.default_rng(5)
+    for _ in range(30):
+        n = int(rng.integers(1, 16))
+        points = np.sort(rng.uniform(0, n / 2, n))
+        graph = nx.Graph()
+        graph.add_nodes_from(range(n))
+        graph.add_edges_from(
+            (a, b) for a in range(n) for b in range(a + 1, n) if points[b] - points[a] < 1
+        )
+        first = [min([k, *graph.neighbors(k)]) for k in range(n)]
+        brute = _brute_sets(graph)
+        assert _ordered_counts(first) == tuple(len(brute[s]) for s in range(len(brute)))
+
+
+def test_long_chain_counts_are_exact_binomials() -> None:
+    # Common practice: the p-th power of a path on M vertices has C(M - p(s-1), s) independent
+    # sets of size s; here checked against math.comb at 3000 terms (the counts have up to about
+    # 2000 digits), and the variable-reach recurrence against the same binomials when every
+    # reach is equal (its ordering given directly).
+    from freeladder.spectra.charges import _chain_counts, _ordered_counts
+
+    for reach in (1, 2, 3):
+        expected = tuple(
+            math.comb(3000 - reach * (s - 1), s) for s in range((3000 + reach) // (reach + 1) + 1)
+        )
+        expected = tuple(c for c in expected if c)
+        assert _chain_counts(3000, reach) == expected
+        first = [max(0, k - reach) for k in range(3000)]
+        assert _ordered_counts(first) == expected
+
+
 def _dense(g: fl.WeylString, sites: tuple) -> np.ndarray:
     return g.to_sparse(sites).toarray()
 

@@ -27,16 +27,19 @@ def test_report_json_matches_exact_diagonalization():
     done = run("report", ISING, "--json")
     assert done.returncode == 0, done.stderr
     data = json.loads(done.stdout)
-    for key in ("verdict", "quasi_energies", "ground_energy", "gap", "checks"):
+    for key in ("verdict", "spectrum", "report"):
         assert key in data
+    sp = data["spectrum"]
+    assert sp["status"] == "proven" and sp["route"] == "polynomial"
     # reference: numpy dense diagonalization of the same Hamiltonian (common practice)
     h = fl.parse_model(ISING).to_sparse().toarray()
     levels = np.linalg.eigvalsh(h)
-    assert abs(data["ground_energy"] - levels[0]) < 1e-10
-    assert abs(data["gap"] - (levels[1] - levels[0])) < 1e-10
-    assert data["ok"] is True
-    assert all(c["status"] in ("passed", "not run") for c in data["checks"])
-    assert any(c["status"] == "passed" for c in data["checks"])
+    assert abs(sp["ground_energy"] - levels[0]) < 1e-10
+    assert abs(sp["gap"] - (levels[1] - levels[0])) < 1e-10
+    report = data["report"]
+    assert report["ok"] is True
+    assert all(c["status"] in ("passed", "not run") for c in report["checks"])
+    assert any(c["status"] == "passed" for c in report["checks"])
 
 
 def test_report_text_and_model_file(tmp_path):
@@ -61,17 +64,15 @@ def test_clock_model_gives_complex_numbers_as_pairs():
     done = run("report", text, "--states", "3", "--json", "--no-checks")
     assert done.returncode == 0, done.stderr
     data = json.loads(done.stdout)
-    eta = data["quasi_energies"]
+    assert data["report"] is None
+    eta = data["spectrum"]["quasi_energies"]
     assert eta and all(isinstance(e, list) and len(e) == 2 for e in eta)
     # reference: every free level is an eigenvalue of the dense matrix (numpy); the ground
     # energy of a Z3 chain with unit couplings is -sum eta (BACKGROUND section 8)
     h = fl.parse_model(text, states=3).to_sparse().toarray()
     exact = np.linalg.eigvals(h)
-    e0 = (
-        complex(*data["ground_energy"])
-        if isinstance(data["ground_energy"], list)
-        else data["ground_energy"]
-    )
+    e0 = data["spectrum"]["ground_energy"]
+    e0 = complex(*e0) if isinstance(e0, list) else e0
     assert np.min(np.abs(exact - e0)) < 1e-9
 
 
@@ -91,7 +92,7 @@ def test_bad_options_exit_2():
 
 def test_export_writes_runs_and_never_overwrites(tmp_path):
     target = tmp_path / "worked.py"
-    done = run("export", ISING, "--to", "script", str(target))
+    done = run("export", ISING, str(target))
     assert done.returncode == 0, done.stderr
     # the exported script recomputes and asserts every step (it runs clean with this Python)
     ran = subprocess.run(
@@ -99,8 +100,24 @@ def test_export_writes_runs_and_never_overwrites(tmp_path):
     )
     assert ran.returncode == 0, ran.stderr[-2000:]
     before = target.read_text()
-    again = run("export", "X0 + Z0 Z1 + X1", "--to", "script", str(target))
+    again = run("export", "X0 + Z0 Z1 + X1", str(target))
     assert again.returncode == 2 and "--force" in again.stderr
     assert target.read_text() == before  # the user's file is untouched
-    forced = run("export", "X0 + Z0 Z1 + X1", "--to", "latex", str(target), "--force")
-    assert forced.returncode == 0 and "\\section" in target.read_text()
+    tex = tmp_path / "worked.tex"
+    forced = run("export", "X0 + Z0 Z1 + X1", str(tex))
+    assert forced.returncode == 0 and "\\section" in tex.read_text()
+    assert "LaTeX section" in forced.stdout
+
+
+def test_export_takes_the_format_from_the_suffix(tmp_path, capsys):
+    from freeladder.output.cli import main  # in-process: the same code as the command
+
+    notebook = tmp_path / "worked.ipynb"
+    assert main(["export", "X0 + Z0 Z1 + X1", str(notebook)]) == 0
+    assert json.loads(notebook.read_text())["nbformat"] == 4  # nbformat's JSON, readable as such
+    odd = tmp_path / "worked.txt"
+    assert main(["export", ISING, str(odd)]) == 2
+    err = capsys.readouterr().err
+    assert ".ipynb" in err and ".py" in err and ".tex" in err and "Traceback" not in err
+    assert not odd.exists()
+    assert main(["export", ISING, "--to", "script", str(tmp_path / "x.py")]) == 2  # gone

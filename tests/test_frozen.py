@@ -149,22 +149,22 @@ CASES: list[tuple[str, Callable[[], Any], list[str] | None, str | None]] = [
     ("Report", lambda: fl.verify(_ising()), None, "verify"),
     ("Check", lambda: fl.verify(_ising()).checks[0], None, "verify"),
     ("ChainStructure", lambda: fl.chain_structure(_chain()), None, "graph.py / linegraph.py owner"),
-    ("RootResult-count", lambda: roots.chain_real_roots([1.0, 0.5, 1.5, 0.7], 1), None, None),
+    ("RootTable-count", lambda: roots.chain_real_roots([1.0, 0.5, 1.5, 0.7], 1), None, None),
     (
-        "RootResult-aberth",
+        "RootTable-aberth",
         lambda: roots_complex.aberth_chain_roots([1.0, 0.5j + 1, 1.5, 0.7], 1),
         None,
         None,
     ),
     (
-        "RootResult-certified",
+        "RootTable-certified",
         lambda: certify.certify_chain_roots(
             [1.0, 0.5, 1.5, 0.7], 1, roots.chain_real_roots([1.0, 0.5, 1.5, 0.7], 1).values
         ),
         None,
         None,
     ),
-    ("RootResult-exact", lambda: certify.certified_roots([1, -3, 1]), None, None),
+    ("RootTable-exact", lambda: certify.certified_roots([1, -3, 1]), None, None),
     (
         "LineGraphRoot",
         lambda: line_graph_root(_path_adjacency(4), [0, 1, 2, 3]),

@@ -310,7 +310,7 @@ ISING = "X0 + 0.5 Z0 Z1 + X1"
 
 
 def test_export_into_a_missing_folder_is_bad_input(tmp_path: Path) -> None:
-    done = _cli("export", ISING, "--to", "script", str(tmp_path / "nodir" / "x.py"))
+    done = _cli("export", ISING, str(tmp_path / "nodir" / "x.py"))
     assert done.returncode == 2, done.stderr
     assert "Traceback" not in done.stderr
     assert "does not exist" in done.stderr
@@ -321,7 +321,7 @@ def test_export_refuses_a_dangling_symlink(tmp_path: Path) -> None:
     link = tmp_path / "x.py"
     link.symlink_to(tmp_path / "elsewhere.py")
     for extra in ((), ("--force",)):
-        done = _cli("export", ISING, "--to", "script", str(link), *extra)
+        done = _cli("export", ISING, str(link), *extra)
         assert done.returncode == 2, done.stderr
         assert "symbolic link" in done.stderr
         assert not (tmp_path / "elsewhere.py").exists()
@@ -331,9 +331,9 @@ def test_export_refuses_a_dangling_symlink(tmp_path: Path) -> None:
 
 
 def test_export_wording(tmp_path: Path) -> None:
-    done = _cli("export", ISING, "--to", "latex", str(tmp_path / "x.tex"))
+    done = _cli("export", ISING, str(tmp_path / "x.tex"))
     assert done.returncode == 0, done.stderr
-    assert "as a LaTeX document" in done.stdout
+    assert "as a LaTeX section" in done.stdout
     assert "a latex" not in done.stdout
 
 

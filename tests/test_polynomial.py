@@ -370,7 +370,7 @@ def test_roots_refuse_symbolic_and_too_large_degree() -> None:
     big = fl.exclusion_polynomial(fl.exclusion_chain(2 * MAX_ROOT_DEGREE + 4, reach=1))
     with pytest.raises(TooLargeError, match="MAX_ROOT_DEGREE"):
         big.roots()
-    assert big.truncated(5).roots().degree == 5
+    assert big.truncated(5).roots().count == 5
 
 
 def _sympy_targets(poly: fl.ExclusionPolynomial) -> tuple[sympy.Expr, sympy.Expr]:
@@ -424,3 +424,40 @@ def test_sum_rules_do_not_overflow_for_huge_couplings() -> None:
     rules = sum_rules(poly, eta)
     assert max(rules.residuals) < 1e-13
     assert json.loads(json.dumps(rules.to_dict(), allow_nan=False))["sums"][0] == [None, 0.0]
+
+
+def test_partial_polynomial_of_a_chain_needs_only_its_orders() -> None:
+    # Reference: sums over the independent sets of size <= s listed by networkx (cliques of the
+    # complement of the frustration graph), C_r = sum prod c_j^2, on chains whose full
+    # polynomial was never expanded (the truncated recurrence), for float, complex and
+    # symbolic couplings; the types match the full polynomial's.
+    rng = np.random.default_rng(9)
+    for reach in (1, 2, 3):
+        size = 11
+        for couplings in (
+            [Fraction(int(a), 7) for a in rng.integers(1, 20, size)],
+            [complex(a, b) for a, b in rng.uniform(0.3, 1.7, (size, 2))],
+            [sympy.Symbol("g"), *[Fraction(1, 2)] * (size - 1)],
+        ):
+            m = fl.exclusion_chain(size, reach=reach, couplings=couplings)
+            graph = fl.frustration_graph(m)
+            sets = [()] + [tuple(c) for c in nx.enumerate_all_cliques(nx.complement(graph))]
+            for s in (1, 2, 3):
+                part = fl.exclusion_polynomial(m).truncated(s)
+                for r in range(s + 1):
+                    want = sum(
+                        (math.prod(couplings[j] ** 2 for j in c) for c in sets if len(c) == r),
+                        start=0,
+                    )
+                    got = part.weight_sums[r]
+                    if isinstance(want, sympy.Basic):
+                        assert sympy.expand(want - got) == 0
+                    else:
+                        assert abs(complex(want) - complex(got)) < 1e-12 * max(
+                            1, abs(complex(want))
+                        )
+                full = fl.exclusion_polynomial(
+                    fl.exclusion_chain(size, reach=reach, couplings=couplings)
+                )
+                full.coefficients  # noqa: B018 -- expand the whole polynomial first
+                assert full.truncated(s).coefficients == part.coefficients

@@ -23,7 +23,7 @@ from freeladder.roots.real import (
     chain_root_count,
     fixed_reach,
 )
-from freeladder.roots.result import RootResult
+from freeladder.roots.result import RootTable
 
 
 def exact_coefficients(weights: np.ndarray, reach: int) -> list[Fraction]:
@@ -201,7 +201,7 @@ def test_progress_and_interrupt_leave_nothing_broken():
 
 def test_root_result_is_frozen_and_json_ready():
     r = chain_real_roots(random_weights(40, 11), 2)
-    assert isinstance(r, RootResult) and r.variable == "y" and r.method == "chain-count"
+    assert isinstance(r, RootTable) and r.variable == "y" and r.method == "chain-count"
     assert not r.rigorous and "estimate" in r.summary() and "estimate" in repr(r)
     assert r.count == chain_root_count(40, 2) == r.values.size
     with pytest.raises(dataclasses.FrozenInstanceError):
@@ -215,7 +215,7 @@ def test_root_result_is_frozen_and_json_ready():
 
 
 def test_method_table_routes_and_labels():
-    # Every entry returns a RootResult carrying its own key; only rigorous entries say so.
+    # Every entry returns a RootTable carrying its own key; only rigorous entries say so.
     c = np.random.default_rng(3).uniform(0.3, 1.7, 24)
     for key in ("chain-count", "chain-certified"):
         found = solve_chain(c, 2, 2, key)
@@ -267,7 +267,7 @@ def test_spectrum_is_scale_invariant(reach):
             assert np.all(np.isfinite(sp.error_bounds))
             assert np.all(sp.error_bounds / sp.quasi_energies < 1e-9)
             found = sp.provenance.finder["roots"]
-            assert isinstance(found, RootResult) and found.converged
+            assert isinstance(found, RootTable) and found.converged
             if method == "fast":
                 assert "estimate" in sp.provenance.bounds and not found.rigorous
             else:

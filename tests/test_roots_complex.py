@@ -24,7 +24,7 @@ from freeladder.roots.complex import (
     evaluate_chain,
 )
 from freeladder.roots.real import chain_back, chain_root_count
-from freeladder.roots.result import RootResult
+from freeladder.roots.result import RootTable
 
 
 def _mp_chain_coefficients(w: np.ndarray, back: np.ndarray) -> list:
@@ -87,7 +87,7 @@ def test_complex_chain_against_mpmath(n_terms, reach, states, seed) -> None:
     found = aberth_chain_roots(w, reach, order=states)
     ref = _mp_roots(w, reach)
     assert len(found.values) == chain_root_count(n_terms, reach) == len(ref) == found.count
-    assert isinstance(found, RootResult) and found.variable == "x" and not found.rigorous
+    assert isinstance(found, RootTable) and found.variable == "x" and not found.rigorous
     assert found.method == "chain-aberth" and "estimate" in found.summary()
     err = _match(found.values, ref)
     assert np.all(err <= 1e-12 * np.abs(found.values) + 1e-14)
@@ -255,8 +255,13 @@ def test_certified_complex_roots_against_mpmath() -> None:
     err = _match(roots, ref_c)
     assert np.all(err <= radii + 1e-16)
     assert np.all(radii < 1e-15)
+    # (y - i)^2 = -1 - 2i y + y^2: a repeated root with non-real coefficients is refused ...
     with pytest.raises(ValueError, match="repeated root"):
-        certified_complex_roots([Fraction(1), Fraction(-2), Fraction(1)], [Fraction(0)] * 3)
+        certified_complex_roots([Fraction(-1), Fraction(0), Fraction(1)], [0, Fraction(-2), 0])
+    # ... while real coefficients are split into squarefree factors: (1 - y)^2 counts twice.
+    double = certified_complex_roots([Fraction(1), Fraction(-2), Fraction(1)], [Fraction(0)] * 3)
+    assert list(double.multiplicities) == [2] and double.count == 2
+    assert abs(double.values[0] - 1) <= double.error_bounds[0]
 
 
 # -- through fl.free_spectrum: variable-range clock chains ---------------------------------------

@@ -12,6 +12,7 @@ import html
 import itertools
 import re
 import threading
+import time
 
 import networkx as nx
 import numpy as np
@@ -83,7 +84,8 @@ def test_reach_two_chain_marks_hold_the_library_numbers_and_match_exact_levels()
     # the degeneracy written beside each rung: dim / 2^S (Fendley 2019), from numpy's count
     ground = _dense_eigenvalues(m).real
     multiplicity = int(np.sum(np.abs(ground - ground.min()) < 1e-8))
-    assert wb.ladder.degeneracy.text[0] == f"x{multiplicity}"
+    # (levels closer than a label's height share one label: "3 levels x4")
+    assert re.fullmatch(rf"(\d+ levels )?x{multiplicity}", wb.ladder.degeneracy.text[0])
     np.testing.assert_allclose(np.asarray(wb.ladder.exact_rungs.y)[:5, 0], exact[:5], atol=1e-8)
 
 
@@ -111,7 +113,7 @@ def test_clock_chain_with_complex_couplings_star_and_levels() -> None:
         _by_value(_xy(wb.roots.star)), _by_value(np.concatenate([omega * eta, omega**2 * eta]))
     )
     # N > 2: levels drawn in the complex plane, each one an eigenvalue numpy finds
-    assert wb.ladder.children[0] is wb.ladder.plane
+    assert wb.ladder.children[1] is wb.ladder.plane
     shown = _xy(wb.ladder.levels)
     assert len(shown) > 0
     eig = _dense_eigenvalues(m)
@@ -280,14 +282,18 @@ def test_an_exception_is_shown_with_its_traceback(monkeypatch: pytest.MonkeyPatc
     wb = Workbench(fl.exclusion_chain(5, reach=1), synchronous=True)
     roots = _xy(wb.roots.roots)
 
-    def broken(a, choice, unproven):
+    def broken(model, numeric, unproven, choice):
         raise RuntimeError("deliberately broken for the test")
 
-    monkeypatch.setattr(workbench_module, "sector_spectrum", broken)
+    before = wb.model
+    monkeypatch.setattr(workbench_module, "derive", broken)
     wb.set_text("X0 Z1 + X1 Z2 + X2 Z3")
     assert "deliberately broken" in wb.error.value
     assert "RuntimeError" in wb.traceback.value and "Traceback" in wb.traceback.value
     np.testing.assert_array_equal(_xy(wb.roots.roots), roots)  # last result kept
+    # the model and the views agree after the crash (issue 21, item 9: wb.model held the new
+    # model while the views kept the old one)
+    assert wb.model is before and wb.analysis.model is before
 
 
 def test_background_mode_fills_the_marks_and_clears_the_busy_line() -> None:
@@ -303,7 +309,7 @@ def test_background_mode_fills_the_marks_and_clears_the_busy_line() -> None:
 def test_worker_newer_request_supersedes_older() -> None:
     applied: list[str] = []
     busy: list[bool] = []
-    worker = Worker(lambda flag, what: busy.append(flag), lambda m, t: applied.append(m))
+    worker = Worker(lambda lanes: busy.append(bool(lanes)), lambda m, t: applied.append(m))
     release = threading.Event()
     started = threading.Event()
     old_thread: list[threading.Thread] = []
@@ -314,9 +320,9 @@ def test_worker_newer_request_supersedes_older() -> None:
         release.wait(10)
         return "old"
 
-    worker.submit("old", slow, applied.append)
+    worker.submit("model", "old", slow, applied.append)
     assert started.wait(10)
-    worker.submit("new", lambda: "new", applied.append)
+    worker.submit("model", "new", lambda: "new", applied.append)
     worker.wait(10)
     release.set()
     old_thread[0].join(10)
@@ -326,9 +332,9 @@ def test_worker_newer_request_supersedes_older() -> None:
 
 def test_worker_cancel_drops_the_running_result() -> None:
     applied: list[str] = []
-    worker = Worker(lambda flag, what: None, lambda m, t: applied.append(m))
+    worker = Worker(lambda lanes: None, lambda m, t: applied.append(m))
     release = threading.Event()
-    worker.submit("slow", lambda: release.wait(10) and "late", applied.append)
+    worker.submit("model", "slow", lambda: release.wait(10) and "late", applied.append)
     worker.cancel()
     release.set()
     worker.wait(10)
@@ -341,10 +347,10 @@ def test_the_export_panel_exports_the_current_model() -> None:
 
     wb = Workbench(fl.exclusion_chain(5, reach=2), synchronous=True)
     wb.set_text("X0 + 0.5 Z0 Z1 + X1")
-    exported = wb.export._get_model()
+    model, exported = wb.export._source()
     assert str(exported) == str(wb.model) == str(fl.parse_model("X0 + 0.5 Z0 Z1 + X1"))
-    cells = fl.worked_calculation(exported)
-    assert any("0.5" in c.source for c in cells if c.kind == "code")
+    text = wb.export.show_text()
+    assert text == fl.worked_calculation(exported).to_script()
 
 
 def test_family_controls_follow_a_chain_passed_in() -> None:
@@ -354,14 +360,14 @@ def test_family_controls_follow_a_chain_passed_in() -> None:
 
     wb = Workbench(fl.exclusion_chain(8, reach=2, states=3), synchronous=True)
     assert (wb.input.size.value, wb.input.reach.value, wb.input.states.value) == (8, 2, 3)
-    wb.input.reach.value = 1
-    assert len(wb.model) == 8 and fl.chain_structure(wb.model).reach == 1
+    wb.input.reach.value = 3
+    assert len(wb.model) == 8 and fl.chain_structure(wb.model).reach == 3
 
 
 def test_family_selector_says_custom_for_a_model_the_controls_do_not_build() -> None:
-    # the tour's chain: couplings 1, 0.4, 1, 0.4, ...; no family pattern as it stands builds
-    # it, so the selector must not claim "uniform, a = 1"
-    given = fl.exclusion_chain(8, reach=2, couplings=fl.staggered(8, 1.0, 0.4))
+    # couplings 1, 0.4, 0.7, 1, ...: neither uniform nor staggered, so the selector must not
+    # claim a family pattern
+    given = fl.exclusion_chain(8, reach=2, couplings=[1, 0.4, 0.7, 1, 0.4, 0.7, 1, 0.4])
     wb = Workbench(given, synchronous=True)
     panel = wb.input
     assert panel.family.value == CUSTOM
@@ -491,3 +497,354 @@ def test_sector_chooser_hidden_and_kept_across_coupling_changes() -> None:
     wb.set_text("X0 Z1 + 0.5 X1 Z2 + 0.8 X2 Z3")  # a chain: no cycles, no chooser
     assert wb.roots.sector.layout.display == "none"
     assert wb.roots.sectors_table.value == ""
+
+
+# -- one panel protocol, one worker, one door into the library ----------------------------------
+
+
+def test_only_the_adapter_imports_freeladder() -> None:
+    # the adapter is the one door into the library: no other module of freeladder_lab imports
+    # freeladder (issue 19, item 5: input_panel, presets and export did)
+    import ast
+    import pathlib
+
+    import freeladder_lab
+
+    folder = pathlib.Path(freeladder_lab.__file__).parent
+    offenders = []
+    for path in sorted(folder.glob("*.py")):
+        if path.name == "adapter.py":
+            continue
+        for node in ast.walk(ast.parse(path.read_text())):
+            names = []
+            if isinstance(node, ast.Import):
+                names = [a.name for a in node.names]
+            elif isinstance(node, ast.ImportFrom) and node.level == 0:
+                names = [node.module or ""]
+            offenders += [f"{path.name}: {n}" for n in names if n.split(".")[0] == "freeladder"]
+    assert offenders == []
+
+
+def test_every_section_has_one_shape_and_one_registration_line() -> None:
+    from freeladder_lab.panel import Section
+    from freeladder_lab.workbench import SECTIONS
+
+    wb = Workbench(fl.exclusion_chain(5, reach=2), synchronous=True)
+    assert [name for name, _ in SECTIONS] == list(wb.sections)
+    for name, kind in SECTIONS:
+        assert issubclass(kind, Section) and kind.update is not Section.update, name
+        assert getattr(wb, name) is wb.sections[name]
+        assert kind.TITLE and kind.HINT
+
+
+def test_a_superseded_analysis_stops_at_its_next_part(monkeypatch: pytest.MonkeyPatch) -> None:
+    # cooperative cancellation: an older model's analysis stops between parts once a newer
+    # edit took over, instead of computing every remaining part (issue 21, item 9)
+    from freeladder_lab import adapter
+
+    entered = threading.Event()
+    release = threading.Event()
+    later_parts: list[str] = []
+    real_choices = adapter.sector_choices
+
+    def slow_choices(a):  # the part after the structure parts
+        if len(a.model) == 30:  # the old, superseded model
+            entered.set()
+            release.wait(30)
+        return real_choices(a)
+
+    real_outcome = adapter.outcome
+
+    def counting_outcome(a, choice=None, unproven=False):
+        later_parts.append(str(len(a.model)))
+        return real_outcome(a, choice, unproven)
+
+    monkeypatch.setattr(adapter, "sector_choices", slow_choices)
+    monkeypatch.setattr(adapter, "outcome", counting_outcome)
+    wb = Workbench(fl.exclusion_chain(6, reach=1))
+    wb.wait(60)
+    wb.take_model(fl.exclusion_chain(30, reach=1))
+    assert entered.wait(30)
+    newer = fl.exclusion_chain(7, reach=1)
+    wb.take_model(newer)
+    wb.wait(60)  # the newer model is shown while the old one still waits
+    assert wb.model is newer
+    release.set()
+    wb.wait(60)
+    assert "30" not in later_parts  # the old analysis stopped before its spectrum
+    assert wb.model is newer
+    _assert_roots_shown(wb, fl.free_spectrum(newer))
+
+
+# -- statuses (issue 20, item 3) -------------------------------------------------------------
+
+
+def test_checks_panel_shows_does_not_hold_and_takes_the_headline_from_ok() -> None:
+    # a ladder free sector by sector (Chapman and Flammia 2020): the single-polynomial identity
+    # T(u) T(-u) = P(u^2) is not claimed, so it "does not hold" without being a failure
+    text = "X0 X1 + Y1 Y2 + Z2 Z3 + X3 X0 + Z1 Z3"
+    wb = Workbench(text, synchronous=True)
+    wb.run_checks()
+    report = fl.verify(fl.parse_model(text))
+    assert report.ok
+    table = wb.checks.table.value
+    statuses = [c.status for c in report.checks]
+    assert "does not hold" in statuses
+    row = table.split("T(u) T(-u) = P(u^2)")[1].split("</tr>")[0]
+    assert "does not hold" in row and "FAILED" not in row
+    assert "FAILED" not in table
+    assert "verified: every check that ran passed" in table
+    assert table.count("does not hold (not claimed)") == statuses.count("does not hold")
+
+
+# -- large models (issue 24, items 1, 2, 12) -------------------------------------------------
+
+
+def test_a_long_chain_reads_at_two_thousand_terms() -> None:
+    m = fl.exclusion_chain(2000, reach=2)
+    wb = Workbench(m, synchronous=True)
+    sp = fl.free_spectrum(m)
+    # multiplicity dim / 2^S (Fendley 2019): written as a power, never as 400 digits
+    dim, modes = 2 ** len(m.sites), len(sp.quasi_energies)
+    assert sp.degeneracy == dim // 2**modes
+    k = len(m.sites) - modes
+    assert all(re.fullmatch(rf"(\d+ levels )?x 2\^{k}", t) for t in wb.ladder.degeneracy.text)
+    assert (
+        f"x 2^{k}" in wb.ladder.summary.value and str(sp.degeneracy) not in wb.ladder.summary.value
+    )
+    # the levels differ by far less than their size: drawn as E - E0, and the axis says so
+    e0 = float(sp.ground_energy)
+    assert wb.ladder.offset == pytest.approx(e0)
+    assert "E - E0" in wb.ladder.y_axis.label
+    rungs = np.asarray(wb.ladder.rungs.y)[:, 0] + wb.ladder.offset
+    np.testing.assert_allclose(rungs, [lv.energy for lv in sp.levels(len(rungs))], atol=1e-9)
+    # label heights at least one label apart (in data units of the drawn axis)
+    labels = np.asarray(wb.ladder.degeneracy.y, float)
+    scale = wb.ladder._y_scale
+    from freeladder_lab.ladder_panel import _PLOT_PIXELS, LABEL_PIXELS
+
+    step = (scale.max - scale.min) * LABEL_PIXELS / _PLOT_PIXELS
+    assert np.all(np.diff(labels) >= step * (1 - 1e-9))
+    assert labels.max() <= scale.max
+    # the roots span decades: plotted as magnitudes on a log axis that says so
+    assert wb.roots.logarithmic
+    assert wb.roots.plots.children == (wb.roots.root_spread, wb.roots.eta_spread)
+    assert "log scale" in wb.roots.root_spread.axes[1].label
+    np.testing.assert_allclose(
+        np.sort(np.asarray(wb.roots.root_magnitudes.y)), np.sort(np.abs(sp.roots)), rtol=1e-12
+    )
+    # the graph is drawn as its band: the chain order along the horizontal axis
+    x = _xy(wb.verdict.vertices).real
+    order = list(fl.chain_structure(m).order)
+    assert np.all(np.diff(x[order]) > 0)
+    assert wb.verdict.order_axis.visible
+
+
+def test_multiplicity_text_writes_powers() -> None:
+    from freeladder_lab.adapter import multiplicity_text
+
+    assert multiplicity_text(4, 2) == "x4"
+    assert multiplicity_text(2**1000, 2) == "x 2^1000"
+    assert multiplicity_text(3**20, 3) == "x 3^20"
+    assert multiplicity_text(10**500 + 7, 2) == "x 1.0e500"
+
+
+def test_near_degenerate_labels_are_moved_apart() -> None:
+    from freeladder_lab.ladder_panel import LABEL_PIXELS, label_groups, spread_labels
+
+    y = np.array([0.0, 1e-6, 2e-6, 0.5, 1.0])
+    out = spread_labels(y, 0.0, 1.0, pixels=300)
+    assert np.all(np.diff(out) >= LABEL_PIXELS / 300 - 1e-12)
+    assert out[0] == 0.0 and out[3] == 0.5
+    # levels closer than a label share one label that says how many they are
+    at, texts = label_groups(y, ["x2", "x2", "x2", "x4", "x2"], 0.0, 1.0, pixels=300)
+    assert texts == ["3 levels x2", "x4", "x2"]
+    np.testing.assert_allclose(at, [0.0, 0.5, 1.0])
+
+
+# -- words on screen (issue 24, items 3-5, 8, 10, 11) ---------------------------------------
+
+
+def test_products_have_no_float_noise_and_k_counts_from_one() -> None:
+    from freeladder_lab.adapter import product_text
+
+    m = fl.parse_model("0.6 X0 Z1 + X1 Z2 + 3 X2 Z3")
+    step = list(fl.charge_series(m))[2]
+    assert any(str(t.coupling) == "1.7999999999999998" for t in step.terms)  # the raw product
+    texts = [product_text(t) for t in step.terms]
+    assert any(t.startswith("1.8 ") for t in texts), texts  # 0.6 * 3, not 1.7999999999999998
+    assert not any("99999" in t for t in texts)
+    wb = Workbench(m, synchronous=True)
+    wb.series.order.value = 2
+    assert "1.8 X_{0}" in wb.series.products.value
+    assert "99999" not in wb.series.products.value
+    rows = re.findall(
+        r"<tr><td style='text-align:right; padding-right:10px'>(\d+)</td>", wb.roots.summary.value
+    )
+    assert rows[0] == "1"
+    assert wb.roots.roots.names[0].startswith("y_1 = ")
+
+
+def test_sector_chooser_names_the_cycle_strings() -> None:
+    m = fl.parse_model(_ladder_text())
+    wb = Workbench(m, synchronous=True)
+    names = [str(w) for w in fl.sectors(m).cycle_operators]
+    for text, value in wb.roots.sector.options[3:]:
+        for name, v in zip(names, value, strict=True):
+            assert f"{name} = {'+1' if v > 0 else '-1'}" in text
+    # the ladder says what its exact column holds for one sector
+    assert "whole space" in wb.ladder.title.value
+    assert names[0] in wb.ladder.title.value
+
+
+def test_the_tours_staggered_chain_is_the_chain_family() -> None:
+    given = fl.exclusion_chain(8, reach=2, couplings=fl.staggered(8, 1.0, 0.4))
+    wb = Workbench(given, synchronous=True)
+    panel = wb.input
+    assert panel.family.value == next(iter(FAMILIES))
+    assert panel.pattern.value == "staggered"
+    assert (panel.a.value, panel.b.value) == (1.0, 0.4)
+    panel.size.value = 10  # the family controls are in charge: they rebuild this pattern
+    assert str(wb.model) == str(
+        fl.exclusion_chain(10, reach=2, couplings=fl.staggered(10, 1.0, 0.4))
+    )
+
+
+def test_export_after_a_typo_says_no_model_parsed() -> None:
+    wb = Workbench("X0 Z1 + 0.5 X1 Z2 + Q7", synchronous=True)
+    assert wb.model is None
+    assert "No model has parsed yet" in wb.input.message.value
+    assert "last model that parsed" not in wb.input.message.value
+    assert wb.input.family.value == CUSTOM  # no family model is claimed either
+    assert wb.export.show_text() is None
+    assert "no model has parsed" in wb.export.status.value
+    assert "TypeError" not in wb.export.status.value
+    wb.set_text("X0 Z1 + 0.5 X1 Z2")  # fixed: the stale message goes, export works
+    assert wb.export.status.value == ""
+    assert wb.export.show_text() == fl.worked_calculation(wb.model).to_script()
+
+
+# -- symbols and escaping (issue 21, item 9) ---------------------------------------------------
+
+
+def test_symbolic_model_exports_the_numbers_the_views_show() -> None:
+    wb = Workbench("g X0 + Z0 Z1 + X1", synchronous=True)
+    slider = wb.input.sliders.children[1]
+    slider.value = 0.7
+    numeric = fl.parse_model("0.7 X0 + Z0 Z1 + X1")
+    _assert_roots_shown(wb, fl.free_spectrum(numeric))
+    text = wb.export.show_text()
+    assert text is not None, wb.export.status.value
+    assert "# g = 0.7" in text
+    expected = fl.worked_calculation(numeric).to_script()
+    assert (
+        text.replace(
+            "# The Workbench's model 'g X0 + Z0 Z1 + X1' with its symbols set by "
+            "the sliders:\n# g = 0.7\n",
+            "",
+        )
+        == expected
+    )
+
+
+def test_error_text_is_escaped() -> None:
+    import sympy
+
+    from freeladder_lab.export import ExportPanel
+
+    evil = sympy.Symbol("<img src=x onerror=alert(1)>")
+    m = fl.exclusion_chain(3, reach=1, couplings=[evil, 1, 1])
+    panel = ExportPanel(lambda: m)
+    assert panel.show_text() is None
+    assert "<img" not in panel.status.value and "&lt;img" in panel.status.value
+
+
+def _html_values(widget) -> list[str]:
+    """Every HTML text shown anywhere inside ``widget``."""
+    import ipywidgets as widgets
+
+    out = []
+    if isinstance(widget, (widgets.HTML, widgets.HTMLMath)):
+        out.append(widget.value)
+    for child in getattr(widget, "children", ()):
+        out += _html_values(child)
+    return out
+
+
+def test_a_symbol_named_like_markup_is_shown_as_text() -> None:
+    import sympy
+
+    evil = sympy.Symbol("<img src=x onerror=alert(1)>")
+    m = fl.exclusion_chain(4, reach=1, couplings=[evil, 1, 1, 1])
+    wb = Workbench(m, synchronous=True)
+    wb.run_checks()
+    text = wb.export.show_text()  # exported at the slider value, the symbol in a comment
+    assert text is not None and f"# {evil} = 1" in text
+    shown = "\n".join(_html_values(wb))
+    assert "<img" not in shown
+    # the numbers drawn are those of the numeric model (the symbol at its slider value, 1)
+    numeric = fl.exclusion_chain(4, reach=1)
+    _assert_roots_shown(wb, fl.free_spectrum(numeric))
+
+
+def test_order_one_formula_is_broken_into_lines() -> None:
+    # issue 24, item 4: Q^(1) = H of the tour's chain ran past the right edge (MathJax does not
+    # break formulas): each line of the aligned block stays within the column's width
+    from freeladder_lab.adapter import _visible
+    from freeladder_lab.series_panel import FORMULA_WIDTH
+
+    m = fl.exclusion_chain(8, reach=2, couplings=fl.staggered(8, 1.0, 0.4))
+    wb = Workbench(m, synchronous=True)
+    wb.series.order.value = 1
+    latex = wb.series.products.value
+    assert r"\begin{aligned}" in latex
+    body = latex.split(r"\begin{aligned}")[1].split(r"\end{aligned}")[0]
+    lines = body.split(r"\\")
+    assert len(lines) >= 2
+    assert all(_visible(line.replace("&", "")) <= FORMULA_WIDTH + 12 for line in lines), lines
+    # every term of H is written once
+    assert latex.count("X_{") == len(m)
+
+
+def test_background_export_runs_in_the_worker() -> None:
+    # the worked calculation is worked out in the Workbench's worker (lane "export"), not in
+    # the button's callback: the call returns at once and the text box fills when it is ready
+    m = fl.exclusion_chain(6, reach=1, couplings=fl.random_couplings(6, seed=3))
+    wb = Workbench(m)
+    wb.wait(60)
+    assert wb.export.show_text() is None
+    wb.wait(60)
+    assert wb.export.text.value == fl.worked_calculation(m).to_script()
+    assert "select the text" in wb.export.status.value
+    assert wb.busy.value == ""
+
+
+def test_worker_delay_waits_and_a_newer_request_cancels_the_wait() -> None:
+    # the pause after typing: only the last of several quick requests runs
+    applied: list[str] = []
+    worker = Worker(lambda lanes: None, lambda m, t: applied.append(m))
+    for text in ("X0", "X0 Z1", "X0 Z1 + X1"):
+        worker.submit("typing", "reading", lambda t=text: t, applied.append, delay=0.3)
+    worker.wait(10)
+    assert applied == ["X0 Z1 + X1"]
+    # a job that was cancelled stops at its next checkpoint
+    from freeladder_lab.worker import checkpoint
+
+    reached: list[int] = []
+    release = threading.Event()
+
+    def parts() -> str:
+        reached.append(1)
+        release.wait(10)
+        checkpoint()
+        reached.append(2)
+        return "done"
+
+    worker.submit("model", "parts", parts, applied.append)
+    deadline = time.monotonic() + 10
+    while not reached and time.monotonic() < deadline:
+        time.sleep(0.01)
+    worker.cancel("model")
+    release.set()
+    worker.wait(10)
+    assert reached == [1] and applied == ["X0 Z1 + X1"]

@@ -22,7 +22,7 @@ from .algebra.operators import StringSum
 from .algebra.strings import StringArray, WeylString, make_string, pauli
 from .algebra.syntax import ModelSyntaxError, parse_model
 from .analysis import Analysis, analyze
-from .base.errors import NoTheoremError
+from .base.errors import NotExpandableError, NoTheoremError
 from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .checks.verification import Check, Report, verify
 from .graphs.directed import DirectedFrustrationGraph, directed_frustration_graph
@@ -47,7 +47,8 @@ from .roots.real import (
     chain_real_roots,
     chain_root_count,
 )
-from .roots.result import RootResult
+from .roots.result import RootTable
+from .spectra.answer import SectorRow, SpectrumAnswer
 from .spectra.charges import (
     ChargeStep,
     ChargeTerm,
@@ -55,6 +56,14 @@ from .spectra.charges import (
     charge_counts,
     charge_series,
     transfer_matrix,
+)
+from .spectra.dynamics import (
+    Autocorrelation,
+    EdgeExpansion,
+    TwoPoint,
+    autocorrelation,
+    edge_expansion,
+    two_point,
 )
 from .spectra.ed import ExactSpectrum, exact_spectrum
 from .spectra.edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
@@ -104,7 +113,9 @@ __all__ = [
     "dipath_switching",
     "directed_frustration_graph",
     "FluxSector",
+    "SectorRow",
     "SectorSpectrum",
+    "SpectrumAnswer",
     "SectorStructure",
     "flux_sector",
     "flux_theorem_values",
@@ -117,7 +128,7 @@ __all__ = [
     "ChainStructure",
     "ROOT_METHODS",
     "RootMethod",
-    "RootResult",
+    "RootTable",
     "certified_roots",
     "certify_chain_roots",
     "chain_count_below",
@@ -134,6 +145,7 @@ __all__ = [
     "ComponentVerdict",
     "Guarantee",
     "NoTheoremError",
+    "NotExpandableError",
     "Relation",
     "Relations",
     "SpectrumProvenance",
@@ -160,9 +172,15 @@ __all__ = [
     "StringSum",
     "Check",
     "EdgeMode",
+    "EdgeExpansion",
+    "Autocorrelation",
+    "TwoPoint",
     "LadderOperators",
     "Report",
     "edge_mode",
+    "edge_expansion",
+    "autocorrelation",
+    "two_point",
     "ladder_operators",
     "verify",
     "LevelMatch",
@@ -206,3 +224,17 @@ __all__ = [
     "worked_calculation",
 ]
 __version__ = "0.1.0"
+
+
+def __getattr__(name: str) -> object:
+    """``RootResult``: deprecated alias of :class:`RootTable` (one release)."""
+    if name == "RootResult":
+        import warnings
+
+        warnings.warn(
+            "freeladder.RootResult is deprecated: the root result type is now called RootTable",
+            DeprecationWarning,
+            stacklevel=2,
+        )
+        return RootTable
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

@@ -1,9 +1,13 @@
 """Where the Workbench gets its numbers: the one module between the widgets and ``freeladder``.
 
-Every number the Workbench shows comes through here from the kernel library.  The Workbench
-holds a :class:`freeladder.Analysis` (``fl.analyze(model)``: each part computed once, the
-coupling-independent ones shared by every model with the same strings); the panels read it and
-the few helpers below.
+Every number the Workbench shows, every model it parses or builds and every export comes
+through here from the kernel library; no other module of ``freeladder_lab`` calls it (a test
+reads their imports).  :func:`derive` gathers, in the worker, one :class:`View` per model: the
+:class:`freeladder.Analysis` (each part computed once, the coupling-independent ones shared by
+every model with the same strings), the spectrum or the refusal (:func:`outcome`, the one
+function that reads the spectrum), and what the panels draw beside it.  It calls
+:func:`freeladder_lab.worker.checkpoint` between the parts, so a superseded model stops at the
+next part.
 
 The partial polynomial ``P_s`` (P truncated after order s) and its certified roots come from
 :meth:`freeladder.ExclusionPolynomial.truncated`, drawn to show the roots settling on those of
@@ -18,18 +22,23 @@ roots of claw-free independence polynomials).
 
 from __future__ import annotations
 
+import dataclasses
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from itertools import islice
 from typing import Any
 
 import numpy as np
+import sympy
 
 import freeladder as fl
 from freeladder.algebra.operators import StringSum
-from freeladder.algebra.printing import format_terms
-from freeladder.base.errors import NoTheoremError, TooLargeError
+from freeladder.algebra.printing import format_terms, format_terms_latex
+from freeladder.base.errors import TooLargeError
 from freeladder.base.references import CHUDNOVSKY_SEYMOUR_2007
 from freeladder.checks.verification import Check, hamiltonian_check
+
+from .worker import checkpoint
 
 __all__ = [
     "CLAW_FREE_KINDS",
@@ -37,21 +46,47 @@ __all__ = [
     "ED_OVERLAY_DIMENSION",
     "PARTIAL_DEGREE_LIMIT",
     "SECTOR_CHOICE_LIMIT",
-    "Refusal",
-    "SectorOverview",
+    "Analysis",
+    "ExactSpectrum",
+    "Model",
+    "ModelSyntaxError",
+    "Outcome",
+    "SectorRow",
+    "View",
     "analyze",
+    "build_family",
+    "chain_reach",
     "charge_step",
+    "derive",
     "exact_overlay",
+    "export_calculation",
+    "family_couplings",
+    "multiplicity_text",
     "order_commutes",
+    "outcome",
+    "parse_text",
     "partial_coefficients",
     "partial_roots",
+    "charge_latex",
+    "product_latex",
+    "product_text",
+    "numeric_model",
     "real_roots_reason",
+    "rescaled",
     "sector_choices",
-    "sector_spectrum",
-    "spectrum_or_refusal",
+    "spectrum_outcome",
     "star_points",
     "term_labels",
+    "term_text",
 ]
+
+#: The library's types the panels name in their signatures.
+Analysis = fl.Analysis
+Model = fl.Model
+ExactSpectrum = fl.ExactSpectrum
+Report = fl.Report
+FreeSpectrum = fl.FreeSpectrum
+ModelSyntaxError = fl.ModelSyntaxError
 
 #: Largest Hilbert-space dimension for which the ladder shows exact diagonalization beside it.
 ED_OVERLAY_DIMENSION = 1024
@@ -84,33 +119,93 @@ def charge_step(a: fl.Analysis, s: int) -> fl.ChargeStep:
     return next(islice(a.charge_series(), s, None))
 
 
+# -- the spectrum, or why there is none -----------------------------------------------------------
 @dataclass(frozen=True)
-class Refusal:
-    """The library's refusal to give a spectrum, with its reason."""
+class SectorRow:
+    """One sector of a Jordan-Wigner model in the "all sectors" table."""
 
-    reason: str
+    label: str  # the cycle and parity values, e.g. "+1, -1, +1"
+    lowest: complex
+    modes: int
+    multiplicity: int
 
 
-def spectrum_or_refusal(a: fl.Analysis, unproven: bool) -> fl.FreeSpectrum | Refusal:
-    """The spectrum, or the library's stated reason for refusing it.
+@dataclass(frozen=True)
+class Outcome:
+    """What the Workbench shows for the spectrum: the numbers, or the library's refusal.
 
-    With ``unproven`` the numbers come back even when no theorem covers the model (marked:
-    ``provenance.guaranteed`` is False).
+    Exactly one of ``spectrum`` and ``refusal`` is set.  ``sectors`` holds the "all sectors"
+    table (empty otherwise); ``spectrum`` is then the ground sector's, drawn in the plots.
+    ``label`` says in words which spectrum is drawn (for plot titles and the ladder).
     """
-    try:
-        return a.spectrum()
-    except NoTheoremError as exc:
-        if not unproven:
-            return Refusal(str(exc))
-        return a.spectrum(unproven=True)
+
+    spectrum: fl.FreeSpectrum | None = None
+    refusal: str = ""
+    sectors: tuple[SectorRow, ...] = ()
+    label: str = "free spectrum"
+
+    @property
+    def guaranteed(self) -> bool:
+        """True when a theorem guarantees the numbers drawn."""
+        return self.spectrum is not None and bool(self.spectrum.provenance.guaranteed)
+
+    @property
+    def sector(self) -> Mapping[str, Any] | None:
+        """The library's description of the sector drawn, or None for the whole model."""
+        if self.spectrum is None:
+            return None
+        return self.spectrum.provenance.sector
+
+
+def _sector_label(sp: fl.FreeSpectrum) -> str:
+    sector = sp.provenance.sector
+    if sector is None:
+        return "free spectrum"
+    ops = sector.get("cycle_operators", ())
+    values = sector.get("cycle_values", ())
+    pairs = ", ".join(f"{op} = {v:+d}" for op, v in zip(ops, values, strict=False))
+    return f"one sector ({pairs})" if pairs else "one sector"
+
+
+def spectrum_outcome(
+    a: fl.Analysis, choice: Any = None, unproven: bool = False
+) -> fl.SpectrumAnswer:
+    """The one spectrum function of the widgets: the library's answer for the sector chooser's
+    value (:meth:`freeladder.Analysis.answer`).
+
+    None: the best the theorems allow (the single polynomial when guaranteed, else the ground
+    sector of a Jordan-Wigner model with cycles).  "polynomial": the single polynomial only,
+    with ``unproven`` the numbers no theorem covers (marked).  "ground", "all" (every sector
+    in a table, the ground sector drawn) or a tuple of cycle values: that sector.  Either the
+    numbers or the refusal with its reason and what to do instead.
+    """
+    return a.answer(sector=choice, unproven=unproven)
+
+
+def outcome(a: fl.Analysis, choice: Any = None, unproven: bool = False) -> Outcome:
+    """The answer of :func:`spectrum_outcome`, in the form the panels draw."""
+    answer = spectrum_outcome(a, choice, unproven)
+    if answer.spectrum is None:
+        return Outcome(refusal=answer.message, label="refused")
+    rows = tuple(
+        SectorRow(_signs(r.label), complex(r.lowest), int(r.modes), int(r.multiplicity))
+        for r in (answer.sectors or ())
+    )
+    return Outcome(spectrum=answer.spectrum, sectors=rows, label=_sector_label(answer.spectrum))
+
+
+def _signs(values: Sequence[int]) -> str:
+    return ", ".join("+1" if v > 0 else "-1" for v in values)
 
 
 def sector_choices(a: fl.Analysis) -> list[tuple[str, Any]] | None:
     """The sector chooser's options for a Jordan-Wigner model with cycles, else None.
 
-    Options are (text, value) with value "ground", "all", "polynomial" (the single
-    polynomial, which the library refuses here) or a tuple of cycle-operator eigenvalues
-    (listed when at most :data:`SECTOR_CHOICE_LIMIT` sets of them are consistent).
+    Options are (text, value) with value "ground", "all" (offered for at most
+    :data:`SECTOR_CHOICE_LIMIT` sectors), "polynomial" (the single polynomial, which the
+    library refuses here) or a tuple of cycle-string eigenvalues
+    (listed when at most :data:`SECTOR_CHOICE_LIMIT` sets of them are consistent); each such
+    option names the cycle string each value belongs to.
     """
     m = a.model
     if m.states != 2 or m.is_symbolic or len(m) == 0:
@@ -121,67 +216,227 @@ def sector_choices(a: fl.Analysis) -> list[tuple[str, Any]] | None:
     if not structure.cycle_operators:
         return None
     options: list[tuple[str, Any]] = [
-        ("ground sector (exhaustive search / flux theorem)", "ground"),
-        ("all sectors (table)", "all"),
-        ("single polynomial (no theorem: refused)", "polynomial"),
+        ("ground sector (exhaustive search / flux theorem)", "ground")
     ]
-    n_cycles = len(structure.cycle_operators)
+    if structure.count <= SECTOR_CHOICE_LIMIT:
+        options.append(("all sectors (table)", "all"))
+    options.append(("single polynomial (no theorem: refused)", "polynomial"))
+    names = [format_terms([(1, w)]) for w in structure.cycle_operators]
+    n_cycles = len(names)
     if structure.rank <= 10:  # at most 1024 labels to look through
         patterns = sorted({label[:n_cycles] for label in structure.sectors}, reverse=True)
         if len(patterns) <= SECTOR_CHOICE_LIMIT:
             for values in patterns:
-                signs = ", ".join("+1" if v > 0 else "-1" for v in values)
-                options.append((f"cycle strings W = ({signs})", values))
+                pairs = ", ".join(
+                    f"{name} = {'+1' if v > 0 else '-1'}"
+                    for name, v in zip(names, values, strict=True)
+                )
+                options.append((f"cycle strings: {pairs}", tuple(values)))
     return options
 
 
+# -- one model's view ------------------------------------------------------------------------------
 @dataclass(frozen=True)
-class SectorOverview:
-    """Every sector of a Jordan-Wigner model: one row per label, and the ground sector's
-    spectrum for the plots."""
+class View:
+    """Everything the panels draw for one model, gathered in the worker by :func:`derive`.
 
-    rows: tuple[tuple[str, Any, int, int], ...]  # label text, lowest level, modes, multiplicity
-    spectrum: fl.FreeSpectrum
-    selection: str
-
-
-def sector_spectrum(
-    a: fl.Analysis, choice: Any, unproven: bool
-) -> fl.FreeSpectrum | Refusal | SectorOverview:
-    """The spectrum for the sector chooser's value (see :func:`sector_choices`).
-
-    None or "polynomial": the single polynomial (:func:`spectrum_or_refusal`).  "ground" or a
-    tuple of cycle values: ``fl.free_spectrum(model, sector=choice)``.  "all": every sector's
-    lowest level (``fl.jordan_wigner_spectrum``), refused beyond :data:`SECTOR_CHOICE_LIMIT`
-    sectors, with the ground sector drawn.  A refusal of the library comes back as a
-    :class:`Refusal`.
+    Attributes
+    ----------
+    model : Model
+        The model as given (its couplings may be symbols).
+    analysis : Analysis
+        The analysis of the numeric model on screen.
+    outcome : Outcome
+        The spectrum drawn, or the refusal.
+    exact : ExactSpectrum or None
+        Exact diagonalization for the ladder (None above :data:`ED_OVERLAY_DIMENSION`).
+    real_reason : str or None
+        Why every root is real and positive (:func:`real_roots_reason`).
+    choices : list of (text, value) or None
+        The sector chooser's options (:func:`sector_choices`).
+    choice : Any
+        The sector chosen.
     """
-    if choice is None or choice == "polynomial":
-        return spectrum_or_refusal(a, unproven)
-    m = a.model
-    try:
-        if choice == "all":
-            structure = fl.sectors(m)
-            if structure.count > SECTOR_CHOICE_LIMIT:
-                return Refusal(
-                    f"{structure.count} sectors: more than {SECTOR_CHOICE_LIMIT} to list here; "
-                    "choose the ground sector, or use fl.jordan_wigner_spectrum(m, 'all') in "
-                    "a cell"
-                )
-            every = fl.jordan_wigner_spectrum(m, "all")
-            rows = tuple(
-                (
-                    ", ".join("+1" if v > 0 else "-1" for v in sec.label),
-                    sec.ground_energy + every.constant,
-                    len(every.quasi_energies(i)),
-                    sec.multiplicity,
-                )
-                for i, sec in enumerate(every.sectors)
-            )
-            return SectorOverview(rows, fl.free_spectrum(m, sector="ground"), every.selection)
-        return fl.free_spectrum(m, sector=choice)
-    except ValueError as exc:  # TooLargeError and inconsistent labels included
-        return Refusal(str(exc))
+
+    model: fl.Model
+    analysis: fl.Analysis
+    outcome: Outcome
+    exact: fl.ExactSpectrum | None
+    real_reason: str | None
+    choices: list[tuple[str, Any]] | None
+    choice: Any
+
+
+def derive(model: fl.Model, numeric: fl.Model, unproven: bool, choice: Any) -> View:
+    """Compute every part the panels draw, one part at a time.
+
+    Between parts it calls :func:`~freeladder_lab.worker.checkpoint`: a newer edit stops this
+    one at its next part.
+    """
+    a = analyze(numeric)
+    # (the graph panel asks for the graph itself, only when the strings change)
+    for part in ("verdict", "chain", "charge_counts"):
+        checkpoint()
+        getattr(a, part)
+    checkpoint()
+    choices = sector_choices(a)
+    if choices is None:
+        choice = None
+    elif choice not in [value for _, value in choices]:
+        choice = "ground"  # a Jordan-Wigner model with cycles: its ground sector first
+    checkpoint()
+    shown = outcome(a, choice, unproven)
+    checkpoint()
+    exact = exact_overlay(a)
+    return View(model, a, shown, exact, real_roots_reason(a), choices, choice)
+
+
+# -- text of the model ----------------------------------------------------------------------------
+def parse_text(text: str, states: int) -> fl.Model:
+    """The model the text describes (raises :class:`ModelSyntaxError` or ValueError)."""
+    return fl.parse_model(text, states=states)
+
+
+def term_text(string: Any) -> str:
+    """One operator string in the text syntax (no coupling)."""
+    return format_terms([(1, string)])
+
+
+def chain_reach(model: fl.Model) -> int | None:
+    """The reach of ``model`` when its terms form an exclusion chain, else None."""
+    chain = fl.chain_structure(model)
+    return None if chain is None else int(chain.reach)
+
+
+def build_family(kind: str, size: int, reach: int, states: int) -> fl.Model:
+    """A preset family's model with the builder's own (uniform) couplings."""
+    if kind == "chain":
+        return fl.exclusion_chain(size, reach=reach, states=states)
+    if kind == "ising":
+        return fl.ising_chain(size)
+    if kind == "clock":
+        return fl.clock_chain(size, states=states)
+    if kind == "lattice":
+        return fl.ising_lattice(size, size)
+    if kind == "honeycomb":
+        return fl.kitaev_honeycomb(size, 2)
+    raise ValueError(f"unknown family {kind!r}")
+
+
+def family_couplings(
+    kind: str, count: int, a: Any, b: Any, low: float, high: float, seed: int, phases: bool
+) -> list[Any]:
+    """Coupling factors of a pattern: "uniform", "staggered", "random" (complex with random
+    ``phases``) or "symbols" (the symbols a, b, a, b, ...)."""
+    if kind == "uniform":
+        return [a] * count
+    if kind == "staggered":
+        return list(fl.staggered(count, a, b))
+    if kind == "random":
+        if phases:
+            return list(np.asarray(fl.complex_couplings(count, (low, high), seed=seed)))
+        return list(np.asarray(fl.random_couplings(count, low, high, seed=seed)))
+    if kind == "symbols":
+        return list(fl.staggered(count, sympy.Symbol("a"), sympy.Symbol("b")))
+    raise ValueError(f"unknown coupling pattern {kind!r}")
+
+
+def rescaled(model: fl.Model, factors: Sequence[Any]) -> fl.Model:
+    """The model with coupling j multiplied by ``factors[j]``."""
+    return model.with_couplings([c * f for c, f in zip(model.couplings, factors, strict=True)])
+
+
+def numeric_model(model: fl.Model, values: dict[str, float]) -> fl.Model:
+    """``model`` with each symbol set to ``values[name]`` (1 when not given)."""
+    if not model.is_symbolic:
+        return model
+    return model.subs({sym: values.get(str(sym), 1.0) for sym in model.symbols})
+
+
+# -- export ---------------------------------------------------------------------------------------
+def export_calculation(model: fl.Model, numeric: fl.Model) -> fl.WorkedCalculation:
+    """The worked calculation of the numeric model the views show.
+
+    When ``model`` has symbols, the cells are those of ``numeric`` (the slider values), and a
+    comment in the first code cell names each symbol's value.
+    """
+    if not isinstance(numeric, fl.Model):
+        raise ValueError("no model to export yet: the model text has not parsed")
+    wc = fl.worked_calculation(numeric)
+    if not model.is_symbolic:
+        return wc
+    values = _symbol_values(model, numeric)
+    note = "# The Workbench's model " + repr(str(model)) + " with its symbols set by the sliders:\n"
+    note += "".join(f"# {name} = {value}\n" for name, value in values)
+    cells = list(wc.cells)
+    for i, cell in enumerate(cells):
+        if cell.kind == "code":
+            cells[i] = fl.Cell("code", note + cell.source)
+            break
+    return dataclasses.replace(wc, cells=tuple(cells))
+
+
+def _symbol_values(model: fl.Model, numeric: fl.Model) -> list[tuple[str, str]]:
+    """(name, value) of each symbol of ``model``, read from where ``numeric`` put it."""
+    out = []
+    for sym in sorted(model.symbols, key=str):
+        for c, n in zip(model.couplings, numeric.couplings, strict=True):
+            if isinstance(c, sympy.Expr) and c == sym:
+                out.append((str(sym), _plain(n)))
+                break
+        else:
+            out.append((str(sym), "(set by a slider)"))
+    return out
+
+
+def _plain(v: Any) -> str:
+    z = complex(v)
+    return f"{z.real:.12g}" if z.imag == 0 else f"{z.real:.12g}{z.imag:+.12g}j"
+
+
+# -- numbers as text ------------------------------------------------------------------------------
+def multiplicity_text(n: int | None, states: int) -> str:
+    """A multiplicity as the panels write it: ``x4``, ``x 2^1000``, ``x 3^20``.
+
+    Powers of N (or of 2) above a thousand are written as powers; other large numbers in
+    scientific notation (``x 7.5e301``), so that a 400-digit integer never fills a panel.
+    """
+    if n is None:
+        return "x?"
+    if n < 1000:
+        return f"x{n}"
+    for base in sorted({states, 2}):
+        k = n.bit_length() if base == 2 else 0
+        if base == 2 and n == 1 << (k - 1):
+            return f"x {base}^{k - 1}"
+        if base != 2:
+            power, k = 1, 0
+            while power < n:
+                power *= base
+                k += 1
+            if power == n:
+                return f"x {base}^{k}"
+    digits = len(str(n)) - 1
+    return f"x {int(str(n)[:2]) / 10:.1f}e{digits}"
+
+
+def _tidy(c: Any) -> Any:
+    """A product of couplings without floating-point noise: 12 significant digits."""
+    if isinstance(c, (int, sympy.Expr)) and not isinstance(c, bool):
+        return c
+    z = complex(c)
+    re, im = float(f"{z.real:.12g}"), float(f"{z.imag:.12g}")
+    return re if im == 0 else complex(re, im)
+
+
+def product_text(term: Any) -> str:
+    """One product of a charge in the text syntax, its coupling without float noise."""
+    return format_terms([(_tidy(term.coupling), term.string)])
+
+
+def product_latex(term: Any) -> str:
+    """One product of a charge in LaTeX, its coupling without float noise."""
+    return format_terms_latex([(_tidy(term.coupling), term.string)])
 
 
 def term_labels(model: fl.Model) -> list[str]:
@@ -256,3 +511,44 @@ def star_points(sp: fl.FreeSpectrum) -> np.ndarray:
     eta = np.asarray(sp.quasi_energies, complex)
     omega = np.exp(2j * np.pi * np.arange(1, n) / n)
     return np.asarray((omega[:, None] * eta[None, :]).ravel())
+
+
+def _visible(latex: str) -> int:
+    """About how many characters a LaTeX snippet shows (markup left out)."""
+    for markup in ("_{", "^{", "}", "{", "\\,", "\\"):
+        latex = latex.replace(markup, "")
+    return len(latex.replace(" ", ""))
+
+
+def charge_latex(step: fl.ChargeStep, max_terms: int, width: int) -> str:
+    """``Q^(s) = ...`` in LaTeX (no dollars), its first ``max_terms`` products, broken into
+    lines of at most about ``width`` visible characters (MathJax does not break formulas)."""
+    shown = step.head(max_terms)
+    more = step.count - len(shown)
+    tail = rf" + \dots \; (\text{{{more} more products}})" if more > 0 else ""
+    lines: list[str] = []
+    used = width  # start a first line
+    for t in shown:
+        text = product_latex(t)
+        size = _visible(text) + 3
+        if used + size > width and lines and lines[-1]:
+            lines.append("")
+            used = 0
+        elif not lines:
+            lines.append("")
+            used = 0
+        line = lines[-1]
+        if line:
+            line += rf" - {text[1:]}" if text.startswith("-") else f" + {text}"
+        else:
+            line = text
+        lines[-1] = line
+        used += size
+    if not lines:
+        lines = ["0"]
+    if len(lines) == 1:
+        return f"Q^{{({step.order})}} = {lines[0]}{tail}"
+    body = lines[0] + "".join(
+        rf" \\ & - {t[1:]}" if t.startswith("-") else rf" \\ & + {t}" for t in lines[1:]
+    )
+    return rf"\begin{{aligned}} Q^{{({step.order})}} = {{}} & {body}{tail} \end{{aligned}}"

@@ -1,9 +1,9 @@
 """Where to draw each vertex of a frustration graph: a drawing decision, no physics.
 
 Small graphs get a force-directed layout.  Large ones (or any exclusion chain) are laid out in
-a *band*: vertices in a low-bandwidth order (the chain order, or reverse Cuthill-McKee) along a
-line that wraps into rows, so that every edge stays short and hundreds of terms read as a
-ribbon instead of a tangle.
+a *band*: vertices in a low-bandwidth order (the chain order, or reverse Cuthill-McKee) along
+one horizontal line, so that every edge stays short and thousands of terms read as a ribbon
+(the order on the horizontal axis) instead of a tangle.
 
 References
 ----------
@@ -24,8 +24,9 @@ __all__ = ["SMALL_GRAPH", "band_layout", "graph_layout"]
 SMALL_GRAPH = 40
 
 
-def band_layout(order: Sequence[int], width: int, per_row: int = 60) -> np.ndarray:
-    """Positions ``(n, 2)`` for vertices listed in ``order``, in rows of ``per_row``.
+def band_layout(order: Sequence[int], width: int, per_row: int | None = None) -> np.ndarray:
+    """Positions ``(n, 2)`` for vertices listed in ``order``, in rows of ``per_row`` (default
+    one row: the position in the order is the horizontal coordinate).
 
     Within a row, consecutive vertices step right and cycle through ``width`` heights on a
     convex arc (``k^2 / (width - 1)``, not evenly spaced: evenly spaced heights put every third
@@ -35,6 +36,7 @@ def band_layout(order: Sequence[int], width: int, per_row: int = 60) -> np.ndarr
     next.
     """
     n = len(order)
+    per_row = max(1, n if per_row is None else per_row)
     pos = np.zeros((n, 2))
     width = max(1, int(width))
     rank = np.arange(n)

@@ -2,16 +2,11 @@
 
 from __future__ import annotations
 
-import threading
-from collections.abc import Callable
-from typing import Any
-
 import ipywidgets as widgets
-import sympy
 
-import freeladder as fl
-
-from .presets import FAMILIES, CouplingPattern, build, pattern_values, scaled
+from .adapter import Model, ModelSyntaxError, View, chain_reach, parse_text, term_text
+from .panel import Host, Section
+from .presets import FAMILIES, CouplingPattern, build, factors_of, pattern_values, scaled
 from .style import WARN, escape
 
 __all__ = ["CUSTOM", "DEBOUNCE_SECONDS", "TABLE_LIMIT", "InputPanel", "SLIDER_LIMIT"]
@@ -37,35 +32,30 @@ def _labelled(widget: widgets.Widget, label: str) -> widgets.Widget:
     return widget
 
 
-class InputPanel(widgets.VBox):
+class InputPanel(Section):
     """Text area with inline errors, family presets, coupling patterns and symbol sliders.
 
     Parameters
     ----------
-    on_model : callable(Model, bool)
-        Called with a new model and whether it has the same strings as the previous one
-        (only the couplings changed).
-    on_values : callable()
-        Called when a symbol slider moved (the numeric model changed, the model did not).
-    synchronous : bool
-        Parse at once on every edit instead of after a pause in typing.
+    host : Host
+        The Workbench: it takes each new model (``take_model``), recomputes when a symbol
+        slider moves, and runs the pause after typing in its worker.
     states : int
         The initial N (for typed text and the families that take it).
     """
 
-    def __init__(
-        self,
-        on_model: Callable[[fl.Model, bool], Any],
-        on_values: Callable[[], Any],
-        synchronous: bool = False,
-        states: int = 2,
-    ) -> None:
-        self._on_model = on_model
-        self._on_values = on_values
-        self._synchronous = synchronous
-        self._timer: threading.Timer | None = None
+    TITLE = "Model"
+    HINT = "type it, or build it from a family"
+
+    @classmethod
+    def attach(cls, host: Host) -> InputPanel:
+        """The section for ``host`` (N starts at the host's ``states``)."""
+        return cls(host, int(getattr(host, "states", 2)))
+
+    def __init__(self, host: Host, states: int = 2) -> None:
+        self._host = host
         self._quiet = False  # True while the panel writes the text area itself
-        self._base: fl.Model | None = None  # the family's model before the coupling pattern
+        self._base: Model | None = None  # the family's model before the coupling pattern
 
         self.text = widgets.Textarea(
             placeholder="e.g.  0.9 X0 Z1 Z2 + g X1 Z2 Z3 - 0.4 X2 Z3 Z4",
@@ -111,6 +101,7 @@ class InputPanel(widgets.VBox):
             layout=widgets.Layout(grid_template_columns="repeat(4, 1fr)", width="100%")
         )
         self.sliders = widgets.VBox()
+        self._sliders: dict[str, widgets.FloatSlider] = {}  # by symbol name
         self.pattern_box = widgets.HBox(layout=widgets.Layout(flex_flow="row wrap"))
 
         left = widgets.VBox(
@@ -132,6 +123,7 @@ class InputPanel(widgets.VBox):
             layout=widgets.Layout(width="44%"),
         )
         super().__init__([widgets.HBox([left, right])])
+        self.parsed_once = False  # whether any model reached the views
 
         self.text.observe(self._typed, "value")
         self.family.observe(self._family_changed, "value")
@@ -153,37 +145,58 @@ class InputPanel(widgets.VBox):
             self._quiet = False
         self.parse_now()
 
+    def update(self, view: View) -> None:
+        """A model reached the views: one slider per symbol it has."""
+        self.parsed_once = True
+        self.show_symbols(view.model)
+
     def _typed(self, change: dict) -> None:
         if self._quiet:
             return
-        if self._synchronous:
-            self.parse_now()
-            return
-        if self._timer is not None:
-            self._timer.cancel()
-        self._timer = threading.Timer(DEBOUNCE_SECONDS, self.parse_now)
-        self._timer.daemon = True
-        self._timer.start()
+        # parse after a pause in typing: a newer keystroke supersedes the waiting parse
+        self._host.submit(
+            "typing",
+            "reading the text",
+            lambda: None,
+            lambda _: self.parse_now(),
+            delay=DEBOUNCE_SECONDS,
+            quiet=True,
+        )
+
+    def _kept(self) -> str:
+        """What the views show while the text does not parse."""
+        if self.parsed_once:
+            return "The views below still show the last model that parsed."
+        return "No model has parsed yet: the views below are empty until one does."
 
     def parse_now(self) -> None:
         """Parse the text area; show the error inline and keep the last good model on failure."""
         text = self.text.value
         try:
-            model = fl.parse_model(text, states=self.states.value)
-        except fl.ModelSyntaxError as exc:
+            model = parse_text(text, self.states.value)
+        except ModelSyntaxError as exc:
+            self._not_parsed()
             self.show_syntax_error(exc)
             return
         except ValueError as exc:
+            self._not_parsed()
             self.show_problem(str(exc))
             return
         if len(model) == 0:
+            self._not_parsed()
             self.show_problem("the text has no operator terms (a constant alone has no spectrum)")
             return
         self.message.value = ""
         self.reflect(model)
-        self._on_model(model, False)
+        self._host.take_model(model)
 
-    def show_syntax_error(self, exc: fl.ModelSyntaxError) -> None:
+    def _not_parsed(self) -> None:
+        """Typed text that never parsed: the family controls do not claim a model."""
+        if not self.parsed_once:
+            self._base = None
+            self._show_custom()
+
+    def show_syntax_error(self, exc: ModelSyntaxError) -> None:
         """The parser's message with the offending line and a caret under the column."""
         lines = exc.text.split("\n")
         source = lines[exc.line - 1] if exc.line - 1 < len(lines) else ""
@@ -193,7 +206,7 @@ class InputPanel(widgets.VBox):
             f' padding-left: 8px;"><b>&#9888; Not parsed</b> (line {exc.line}, column'
             f" {exc.column}): {escape(exc.problem)}"
             f'<pre style="margin:2px 0; color:inherit;">{escape(source)}\n{escape(caret)}</pre>'
-            "The views below still show the last model that parsed.</div>"
+            f"{self._kept()}</div>"
         )
 
     def show_problem(self, text: str) -> None:
@@ -201,10 +214,10 @@ class InputPanel(widgets.VBox):
         self.message.value = (
             f'<div role="alert" style="color:{WARN}; border-left: 4px solid {WARN};'
             f' padding-left: 8px;"><b>&#9888; Not used:</b> {escape(text)}<br>'
-            "The views below still show the last good model.</div>"
+            f"{self._kept()}</div>"
         )
 
-    def show_model_text(self, model: fl.Model) -> None:
+    def show_model_text(self, model: Model) -> None:
         """Write a model built elsewhere into the text area without re-parsing it."""
         self._quiet = True
         try:
@@ -218,7 +231,7 @@ class InputPanel(widgets.VBox):
         finally:
             self._quiet = False
 
-    def reflect(self, model: fl.Model) -> None:
+    def reflect(self, model: Model) -> None:
         """Make the family controls say whether they build ``model`` (typed or passed in).
 
         When the model is an exclusion chain and the family shown is the chain family, the
@@ -234,6 +247,7 @@ class InputPanel(widgets.VBox):
         try:
             self._match_controls(model)
             base = build(self.family.value, self.size.value, self.reach.value, self.states.value)
+            self._match_pattern(model, base)
             built = scaled(base, pattern_values(self._pattern(), len(base)))
         except ValueError:
             built = None
@@ -263,20 +277,33 @@ class InputPanel(widgets.VBox):
     def _build_controls(self) -> list[widgets.Widget]:
         return [self.size, self.reach, self.pattern, self.pattern_box]
 
-    def _match_controls(self, model: fl.Model) -> None:
+    def _match_controls(self, model: Model) -> None:
         """Set the chain family's controls to an exclusion chain's size, reach and N (quietly)."""
         if not FAMILIES[self.family.value].has_reach:
             return
-        chain = fl.chain_structure(model)
-        if chain is None:
+        reach = chain_reach(model)
+        if reach is None:
             return
         for control, value in (
             (self.size, len(model)),
-            (self.reach, chain.reach),
+            (self.reach, reach),
             (self.states, model.states),
         ):
             if control.min <= value <= control.max:
                 control.value = value
+
+    def _match_pattern(self, model: Model, base: Model) -> None:
+        """Set a uniform or staggered pattern (a, b) that turns ``base`` into ``model`` (quietly);
+        leave the pattern alone when neither does."""
+        factors = factors_of(model, base)
+        if not factors or any(f.imag != 0 for f in factors):
+            return
+        real = [f.real for f in factors]
+        a, b = real[0], real[1] if len(real) > 1 else real[0]
+        if all(f == a for f in real):
+            self.pattern.value, self.a.value = "uniform", a
+        elif all(f == (a if j % 2 == 0 else b) for j, f in enumerate(real)):
+            self.pattern.value, self.a.value, self.b.value = "staggered", a, b
 
     # -- families and couplings ----------------------------------------------------------------
     def _family_changed(self, change: dict) -> None:
@@ -340,7 +367,7 @@ class InputPanel(widgets.VBox):
         if self._base is None:
             self.build_family()
         else:
-            self._apply_pattern(same_strings=True)
+            self._apply_pattern()
 
     def build_family(self) -> None:
         """Build the chosen family at the chosen size and apply the coupling pattern."""
@@ -354,7 +381,7 @@ class InputPanel(widgets.VBox):
             self.show_problem(str(exc))
             return
         self._fill_table()
-        self._apply_pattern(same_strings=False)
+        self._apply_pattern()
 
     def _fill_table(self) -> None:
         base = self._base
@@ -365,7 +392,7 @@ class InputPanel(widgets.VBox):
         for j, term in enumerate(base.terms):
             cell = widgets.Text(
                 "1",
-                description=f"{j}: {fl.algebra.printing.format_terms([(1, term.string)])}",
+                description=f"{j}: {term_text(term.string)}",
                 style={"description_width": "initial"},
                 layout=widgets.Layout(width="auto"),
                 continuous_update=False,
@@ -402,7 +429,7 @@ class InputPanel(widgets.VBox):
             values=values,
         )
 
-    def _apply_pattern(self, same_strings: bool) -> None:
+    def _apply_pattern(self) -> None:
         base = self._base
         if base is None:
             return
@@ -413,16 +440,15 @@ class InputPanel(widgets.VBox):
             self.show_problem(str(exc))
             return
         self.show_model_text(model)
-        self._on_model(model, same_strings)
+        self._host.take_model(model)
 
     # -- symbols -----------------------------------------------------------------------------
-    def show_symbols(self, model: fl.Model) -> None:
+    def show_symbols(self, model: Model) -> None:
         """One slider per symbol of ``model`` (kept at their values when the names stay)."""
         names = sorted(str(s) for s in model.symbols)
-        old = {
-            s.description: s for s in self.sliders.children if isinstance(s, widgets.FloatSlider)
-        }
+        old = self._sliders
         if len(names) > SLIDER_LIMIT:
+            self._sliders = {}
             self.sliders.children = [
                 widgets.HTML(
                     f"{len(names)} symbols: sliders are offered for up to {SLIDER_LIMIT}; "
@@ -445,16 +471,12 @@ class InputPanel(widgets.VBox):
                 layout=widgets.Layout(width="95%"),
             )
             if name not in old:
-                slider.observe(lambda change: self._on_values(), "value")
+                slider.observe(lambda change: self._host.recompute(), "value")
             sliders.append(slider)
         head = [widgets.HTML("<b>Symbol values</b>")] if sliders else []
+        self._sliders = dict(zip(names, sliders, strict=True))
         self.sliders.children = head + sliders
 
-    def symbol_values(self, model: fl.Model) -> dict[sympy.Symbol, float]:
-        """The value each symbol of ``model`` takes (its slider, or 1 without one)."""
-        set_by = {
-            s.description: s.value
-            for s in self.sliders.children
-            if isinstance(s, widgets.FloatSlider)
-        }
-        return {sym: set_by.get(str(sym), 1.0) for sym in model.symbols}
+    def symbol_values(self) -> dict[str, float]:
+        """The value each slider sets, by symbol name (a symbol without one is 1)."""
+        return {name: float(s.value) for name, s in self._sliders.items()}

@@ -1,4 +1,5 @@
-"""Model families the Workbench offers, each built by a ``freeladder`` builder."""
+"""Model families the Workbench offers, each built by a ``freeladder`` builder (through the
+adapter)."""
 
 from __future__ import annotations
 
@@ -6,10 +7,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
 
-import numpy as np
-import sympy
-
-import freeladder as fl
+from .adapter import Model, build_family, family_couplings, rescaled
 
 __all__ = ["FAMILIES", "CouplingPattern", "Family", "build", "pattern_values", "scaled"]
 
@@ -58,44 +56,45 @@ class CouplingPattern:
     values: tuple[complex, ...] = ()
 
 
-def build(name: str, size: int, reach: int, states: int) -> fl.Model:
+def build(name: str, size: int, reach: int, states: int) -> Model:
     """The family's model with the builder's own (uniform) couplings."""
-    kind = FAMILIES[name].label
-    if kind == "chain":
-        return fl.exclusion_chain(size, reach=reach, states=states)
-    if kind == "ising":
-        return fl.ising_chain(size)
-    if kind == "clock":
-        return fl.clock_chain(size, states=states)
-    if kind == "lattice":
-        return fl.ising_lattice(size, size)
-    if kind == "honeycomb":
-        return fl.kitaev_honeycomb(size, 2)
-    raise ValueError(f"unknown family {name!r}")
+    return build_family(FAMILIES[name].label, size, reach, states)
 
 
 def pattern_values(pattern: CouplingPattern, count: int) -> Sequence[Any]:
     """The factors that multiply the builder's couplings (symbols ``a, b, a, ...`` for the
     symbols pattern, set by sliders)."""
-    if pattern.kind == "uniform":
-        return [pattern.a] * count
-    if pattern.kind == "staggered":
-        return fl.staggered(count, pattern.a, pattern.b)
-    if pattern.kind == "random":
-        if pattern.complex_phase:
-            values = fl.complex_couplings(count, (pattern.low, pattern.high), seed=pattern.seed)
-        else:
-            values = fl.random_couplings(count, pattern.low, pattern.high, seed=pattern.seed)
-        return list(np.asarray(values))
     if pattern.kind == "table":
         if len(pattern.values) != count:
             raise ValueError(f"the table has {len(pattern.values)} values, {count} needed")
         return list(pattern.values)
-    if pattern.kind == "symbols":
-        return fl.staggered(count, sympy.Symbol("a"), sympy.Symbol("b"))
-    raise ValueError(f"unknown coupling pattern {pattern.kind!r}")
+    return family_couplings(
+        pattern.kind,
+        count,
+        pattern.a,
+        pattern.b,
+        pattern.low,
+        pattern.high,
+        pattern.seed,
+        pattern.complex_phase,
+    )
 
 
-def scaled(model: fl.Model, factors: Sequence[Any]) -> fl.Model:
+def scaled(model: Model, factors: Sequence[Any]) -> Model:
     """The model with coupling j multiplied by ``factors[j]`` (the builder's signs kept)."""
-    return model.with_couplings([c * f for c, f in zip(model.couplings, factors, strict=True)])
+    return rescaled(model, factors)
+
+
+def factors_of(model: Model, base: Model) -> list[complex] | None:
+    """The factors that turn ``base``'s couplings into ``model``'s, when both are numeric and
+    have the same strings; else None."""
+    if model.is_symbolic or base.is_symbolic or len(model) != len(base):
+        return None
+    if [t.string for t in model.terms] != [t.string for t in base.terms]:
+        return None
+    out = []
+    for c, b in zip(model.couplings, base.couplings, strict=True):
+        if complex(b) == 0:
+            return None
+        out.append(complex(c) / complex(b))
+    return out

@@ -8,7 +8,6 @@ S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021).
 
 from __future__ import annotations
 
-from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any
 
@@ -16,15 +15,18 @@ import bqplot as bq
 import ipywidgets as widgets
 import numpy as np
 
-import freeladder as fl
-
 from .adapter import (
     PARTIAL_DEGREE_LIMIT,
+    Analysis,
+    View,
+    charge_latex,
     charge_step,
     order_commutes,
     partial_coefficients,
     partial_roots,
+    product_text,
 )
+from .panel import Host, Section
 from .style import (
     ACCENT,
     INK,
@@ -60,17 +62,17 @@ AUTO_LIST_TERMS = 300
 class OrderView:
     """What the series panel shows for one order s (all numbers from the library)."""
 
-    analysis: fl.Analysis
+    analysis: Analysis
     order: int
     count: int
     products_html: str
-    commutes: fl.Check | None
+    commutes: Any
     partial: tuple[Any, ...] | None
     roots: np.ndarray | None
     target: np.ndarray | None
 
 
-def order_view(a: fl.Analysis, s: int, page: int, listed: bool = True) -> OrderView:
+def order_view(a: Analysis, s: int, page: int, listed: bool = True) -> OrderView:
     """Collect everything the panel shows for order ``s``.
 
     The products are written out in LaTeX when there are few; otherwise page ``page`` of the
@@ -98,16 +100,20 @@ def order_view(a: fl.Analysis, s: int, page: int, listed: bool = True) -> OrderV
     )
 
 
-def _products_html(step: fl.ChargeStep, page: int) -> str:
+#: About how many characters of a charge's formula fit on one line of the half-width column.
+FORMULA_WIDTH = 44
+
+
+def _products_html(step: Any, page: int) -> str:
     s = step.order
     if step.count <= LATEX_PRODUCTS:
-        body = step.latex(LATEX_PRODUCTS, letters_per_line=18)
+        body = charge_latex(step, LATEX_PRODUCTS, FORMULA_WIDTH)
         sign = "" if s % 2 == 0 else "-"
         power = "" if s == 0 else ("u" if s == 1 else f"u^{{{s}}}")
         return f"$${sign}{power}\\,{body}$$" if s else f"$${body}$$"
     start = page * PAGE
     shown = step.head(start + PAGE)[start:]
-    lines = "\n".join(f"{start + r:>6}  {t.text()}" for r, t in enumerate(shown))
+    lines = "\n".join(f"{start + r:>6}  {product_text(t)}" for r, t in enumerate(shown))
     return (
         f"<div>products {start}..{start + len(shown) - 1} of {step.count} in Q^({s}) "
         f"(each multiplied by (-u)^{s}):</div>"
@@ -165,18 +171,26 @@ def _polynomial_latex(s: int, coeffs: tuple[Any, ...] | None, degree: int) -> st
     return f"$$\\begin{{aligned}} P_{{{s}}}(y) &= {body} \\end{{aligned}}$$"
 
 
-class SeriesPanel(widgets.HBox):
+class SeriesPanel(Section):
     """Order control, play button, the products of order s, T_s(u), P_s(y) and its roots.
 
     Parameters
     ----------
-    submit : callable(what, compute, apply)
-        Runs ``compute`` (in the Workbench's worker) and then ``apply`` with its result.
+    host : Host
+        Runs each order's view in the Workbench's worker (lane "order").
     """
 
-    def __init__(self, submit: Callable[[str, Callable[[], Any], Callable[[Any], Any]], Any]):
-        self._submit = submit
-        self._analysis: fl.fl.Analysis | None = None
+    TITLE = "Charges and transfer matrix"
+    HINT = "order by order"
+
+    @classmethod
+    def attach(cls, host: Host) -> SeriesPanel:
+        """The section for ``host``."""
+        return cls(host)
+
+    def __init__(self, host: Host) -> None:
+        self._host = host
+        self._analysis: Analysis | None = None
         self.order = widgets.IntSlider(
             0,
             min=0,
@@ -212,6 +226,7 @@ class SeriesPanel(widgets.HBox):
         )
         self.count = widgets.HTML()
         self.products = widgets.HTMLMath()
+        self.products.add_class("freeladder-products")
         self.commutes = widgets.HTML()
         self.transfer = widgets.HTMLMath()
         self.polynomial = widgets.HTMLMath()
@@ -259,7 +274,7 @@ class SeriesPanel(widgets.HBox):
             layout=widgets.Layout(width="52%", padding="0 12px 0 0", overflow="auto"),
         )
         right = widgets.VBox([self.figure, self.legend], layout=widgets.Layout(width="48%"))
-        super().__init__([left, right])
+        super().__init__([widgets.HBox([left, right])])
         self.order.observe(lambda change: self.show_order(), "value")
         self.page.observe(lambda change: self.show_order(), "value")
         self.listed.observe(lambda change: self.show_order(), "value")
@@ -269,12 +284,13 @@ class SeriesPanel(widgets.HBox):
         """The highest order alpha(G) of the model on screen."""
         return int(self.order.max)
 
-    def show(self, a: fl.Analysis) -> None:
+    def update(self, view: View) -> None:
         """A new model: the order control spans 0..alpha(G).
 
         It starts at alpha, where P_s = P, when the partial polynomials are drawn; for larger
         models (whose highest orders take long to list) at order 1, Q^(1) = H.
         """
+        a = view.analysis
         self._analysis = a
         alpha = len(a.charge_counts) - 1
         start = alpha if alpha <= PARTIAL_DEGREE_LIMIT else min(1, alpha)
@@ -296,13 +312,15 @@ class SeriesPanel(widgets.HBox):
         self.page.max = pages
         page = min(int(self.page.value), pages)
         listed = bool(self.listed.value)
-        self._submit(f"order {s}", lambda: order_view(a, s, page, listed), self._apply)
+        self._host.submit(
+            "order", f"order {s}", lambda: order_view(a, s, page, listed), self._apply
+        )
 
     def _apply(self, view: OrderView) -> None:
         if view.analysis is not self._analysis:
             return
         s, count = view.order, view.count
-        total = self._analysis.charge_counts
+        total = view.analysis.charge_counts
         what = (
             "the identity, Q<sup>(0)</sup> = 1"
             if s == 0
@@ -328,7 +346,7 @@ class SeriesPanel(widgets.HBox):
             )
         else:
             self.commutes.value = (
-                f"[H, Q<sup>({s})</sup>] = 0: <b>{status_words(c.passed)}</b> "
+                f"[H, Q<sup>({s})</sup>] = 0: <b>{status_words(c.status)}</b> "
                 f"({escape(c.method)}; largest residual {c.value:.3g})"
             )
         self.transfer.value = _transfer_latex(s)
@@ -339,4 +357,4 @@ class SeriesPanel(widgets.HBox):
             self.roots.x, self.roots.y = roots.real, roots.imag
             self.roots.names = [f"y = {number_text(z)}" for z in roots]
             self.target.x, self.target.y = target.real, target.imag
-            origin_guides(self.guides, np.concatenate([roots, target]))
+            origin_guides(self.guides, np.concatenate([roots, target]), self.figure)

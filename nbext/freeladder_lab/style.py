@@ -20,8 +20,11 @@ __all__ = [
     "complex_plane",
     "origin_guides",
     "escape",
+    "magnitude_plot",
+    "nice_ticks",
     "number_text",
     "section",
+    "spans_decades",
     "status_words",
     "text_style",
 ]
@@ -78,11 +81,18 @@ def number_text(v: Any, digits: int = 6) -> str:
     return f"{z.real:.{digits}g} {sign} {abs(z.imag):.{digits}g}i"
 
 
-def status_words(passed: bool | None) -> str:
-    """Pass / fail / not run in a symbol and words (never colour alone)."""
-    if passed is None:
-        return "&#8211; not run"
-    return "&#10003; passed" if passed else "&#10007; FAILED"
+#: A check's status (``Check.status``) in a symbol and words (never colour alone).
+STATUS_WORDS = {
+    "passed": "&#10003; passed",
+    "FAILED": "&#10007; FAILED",
+    "not run": "&#8211; not run",
+    "does not hold": "&#9675; does not hold (not claimed)",
+}
+
+
+def status_words(status: str) -> str:
+    """A check's status (passed, FAILED, not run, does not hold) in a symbol and words."""
+    return STATUS_WORDS[status]
 
 
 def complex_plane(
@@ -94,7 +104,7 @@ def complex_plane(
     :func:`origin_guides` when the data range changes).
     """
     sx, sy = bq.LinearScale(), bq.LinearScale()
-    ax = bq.Axis(scale=sx, label=x_label, grid_lines="none", tick_format=TICKS)
+    ax = bq.Axis(scale=sx, label=x_label, grid_lines="none", tick_format=TICKS, num_ticks=X_TICKS)
     ay = bq.Axis(
         scale=sy,
         label=y_label,
@@ -119,15 +129,82 @@ def complex_plane(
         fig_margin={"top": 36, "bottom": 44, "left": 66, "right": 16},
         layout=widgets.Layout(width="100%", height=height),
         title_style={"font-size": "14px"},
+        interaction=bq.PanZoom(scales={"x": [sx], "y": [sy]}),
     )
     return fig, sx, sy, guides
 
 
-def origin_guides(guides: bq.Lines, points: np.ndarray) -> None:
+#: At most this many ticks on a horizontal axis (a half-width plot fits five labels like 1.5e+6).
+X_TICKS = 5
+#: Values whose magnitudes span more than this ratio are plotted on logarithmic axes.
+DECADES = 1e3
+
+
+def spans_decades(values: np.ndarray) -> bool:
+    """True when the nonzero magnitudes of ``values`` span more than :data:`DECADES`."""
+    size = np.abs(np.asarray(values, complex))
+    size = size[np.isfinite(size) & (size > 0)]
+    return bool(len(size) > 1 and size.max() > DECADES * size.min())
+
+
+def magnitude_plot(title: str, y_label: str, height: str = "300px") -> tuple[bq.Figure, bq.Scatter]:
+    """A plot of magnitudes against k = 1, 2, ... on a logarithmic vertical axis, zoomable.
+
+    Returns the figure and its scatter mark (set ``x`` to k, ``y`` to the magnitudes).
+    """
+    sx, sy = bq.LinearScale(), bq.LogScale()
+    ax = bq.Axis(scale=sx, label="k", grid_lines="none", tick_format="d", num_ticks=X_TICKS)
+    ay = bq.Axis(
+        scale=sy,
+        label=y_label,
+        side="left",
+        grid_lines="solid",
+        tick_format=".0e",
+        label_offset="50px",
+    )
+    mark = bq.Scatter(
+        x=[],
+        y=[],
+        scales={"x": sx, "y": sy},
+        colors=[ACCENT],
+        default_size=20,
+        names=[],
+        display_names=False,
+        tooltip=bq.Tooltip(fields=["name"], labels=["value"]),
+    )
+    fig = bq.Figure(
+        marks=[mark],
+        axes=[ax, ay],
+        title=title,
+        fig_margin={"top": 36, "bottom": 44, "left": 66, "right": 16},
+        layout=widgets.Layout(width="100%", height=height),
+        title_style={"font-size": "14px"},
+        interaction=bq.PanZoom(scales={"x": [sx], "y": [sy]}),
+    )
+    return fig, mark
+
+
+def nice_ticks(lo: float, hi: float, most: int = X_TICKS) -> np.ndarray:
+    """At most ``most`` round tick values (1, 2 or 5 times a power of ten apart) in [lo, hi]."""
+    span = hi - lo
+    if not np.isfinite(span) or span <= 0:
+        return np.array([lo])
+    step = 10.0 ** np.floor(np.log10(span / most))
+    for factor in (1.0, 2.0, 5.0, 10.0):
+        if span / (factor * step) <= most:
+            step *= factor
+            break
+    ticks = np.arange(np.ceil(lo / step), np.floor(hi / step) + 1) * step
+    return np.where(np.abs(ticks) < step * 1e-9, 0.0, ticks)  # an exact zero, not 4e-16
+
+
+def origin_guides(guides: bq.Lines, points: np.ndarray, figure: bq.Figure | None = None) -> None:
     """Stretch the dashed guides through the origin over the range of ``points``.
 
     Each axis spans at least a third of the other, so that rounding-level imaginary parts of
-    real numbers stay on the real axis instead of being blown up to fill the plot.
+    real numbers stay on the real axis instead of being blown up to fill the plot.  With
+    ``figure``, its horizontal axis gets at most :data:`X_TICKS` round ticks (labels like
+    1.2e+6 would overlap at the default density in a half-width plot).
     """
     z = np.concatenate([np.asarray(points, complex).ravel(), [0j]])
     re_lo, re_hi = float(np.min(z.real)), float(np.max(z.real))
@@ -138,6 +215,8 @@ def origin_guides(guides: bq.Lines, points: np.ndarray) -> None:
     with guides.hold_sync():
         guides.x = np.array([[re_lo, re_hi], [0.0, 0.0]])
         guides.y = np.array([[0.0, 0.0], [im_lo, im_hi]])
+    if figure is not None:
+        figure.axes[0].tick_values = nice_ticks(re_lo, re_hi)
 
 
 def _widened(lo: float, hi: float, least: float) -> tuple[float, float]:

@@ -8,13 +8,16 @@ import bqplot as bq
 import ipywidgets as widgets
 import numpy as np
 
-import freeladder as fl
-
-from .adapter import term_labels
+from .adapter import View, term_labels
 from .graph_layout import SMALL_GRAPH, graph_layout
+from .panel import Host, Section
 from .style import ACCENT, INK, SECOND, escape
 
-__all__ = ["KIND_WORDS", "VerdictPanel"]
+__all__ = ["BAND_WINDOW", "KIND_WORDS", "VerdictPanel"]
+
+#: A graph drawn as a band shows this many positions of its order at first (the reader pans
+#: and zooms to the rest).
+BAND_WINDOW = 80
 
 #: The verdict kinds in words (the library's kind names stay visible beside them).
 KIND_WORDS = {
@@ -31,8 +34,21 @@ _KIND_MARK = {
 }
 
 
-class VerdictPanel(widgets.HBox):
-    """The verdict in words with its reasons and papers, and the graph with the witness marked."""
+class VerdictPanel(Section):
+    """The verdict in words with its reasons and papers, and the graph with the witness marked.
+
+    A long chain (or any graph above :data:`~freeladder_lab.graph_layout.SMALL_GRAPH` terms) is
+    drawn as its band: the terms in chain order along the horizontal axis, which the reader
+    can zoom and pan.
+    """
+
+    TITLE = "Verdict"
+    HINT = "which theorem applies, and why"
+
+    @classmethod
+    def attach(cls, host: Host) -> VerdictPanel:
+        """The section for ``host``."""
+        return cls()
 
     def __init__(self) -> None:
         self.summary = widgets.HTML(layout=widgets.Layout(width="42%", padding="0 12px 0 0"))
@@ -98,17 +114,23 @@ class VerdictPanel(widgets.HBox):
             layout=widgets.Layout(margin="0 0 0 8px"),
         )
         self.title.add_class("freeladder-graph-title")
+        self.order_axis = bq.Axis(
+            scale=sx, label="position in the order", tick_format="d", visible=False
+        )
         self.figure = bq.Figure(
             marks=[self.edges, self.clique, self.witness, self.vertices, self.labels],
+            axes=[self.order_axis],
             fig_margin={"top": 34, "bottom": 8, "left": 8, "right": 8},
             layout=widgets.Layout(width="100%", height="320px"),
+            interaction=bq.PanZoom(scales={"x": [sx]}),
         )
         self._drawn_for: Any = None  # the strings whose graph is on screen
         graph_box = widgets.VBox([self.title, self.figure], layout=widgets.Layout(width="58%"))
-        super().__init__([self.summary, graph_box])
+        super().__init__([widgets.HBox([self.summary, graph_box])])
 
-    def show(self, a: fl.Analysis) -> None:
-        """Show the verdict of ``a`` and draw its graph (laid out only when the strings changed)."""
+    def update(self, view: View) -> None:
+        """Show the verdict and draw the graph (laid out only when the strings changed)."""
+        a = view.analysis
         v = a.verdict
         self.summary.value = _summary_html(v, len(a.model))
         if a.model.strings is self._drawn_for:
@@ -125,24 +147,40 @@ class VerdictPanel(widgets.HBox):
         cliques = v.simplicial_cliques
         clique = list(cliques[0]) if cliques else []
         small = len(names) <= SMALL_GRAPH
+        band = not small  # drawn as a band: the order along the horizontal axis
         with self.figure.hold_sync():
+            self.order_axis.visible = band
+            self.figure.fig_margin = {
+                "top": 34,
+                "bottom": 40 if band else 8,
+                "left": 8,
+                "right": 8,
+            }
             self.edges.x = pos[pairs, 0] if len(pairs) else np.zeros((0, 2))
             self.edges.y = pos[pairs, 1] if len(pairs) else np.zeros((0, 2))
             self.vertices.x, self.vertices.y = pos[:, 0], pos[:, 1]
             _frame(self._scales, pos, labelled=small)
+            if band and len(names) > BAND_WINDOW:  # the first terms; pan or zoom for the rest
+                self._scales[0].min, self._scales[0].max = -1.0, float(BAND_WINDOW)
             self.vertices.names = [f"{j}: {t}" for j, t in enumerate(names)]
-            self.vertices.default_size = 48 if small else 14
+            windowed = band and len(names) > BAND_WINDOW
+            self.vertices.default_size = 48 if small else (24 if windowed else 14)
             self.witness.x, self.witness.y = pos[witness, 0], pos[witness, 1]
             self.clique.x, self.clique.y = pos[clique, 0], pos[clique, 1]
             shown = names if small else []
             self.labels.x = pos[: len(shown), 0]
             self.labels.y = pos[: len(shown), 1]
             self.labels.text = shown
+            window = (
+                f"; terms 0-{BAND_WINDOW - 1} in order shown, drag to pan, scroll to zoom"
+                if band and len(names) > BAND_WINDOW
+                else ""
+            )
             layout_name = (
                 "chain order, in a band"
                 if chain is not None
                 else ("force-directed" if small else "bandwidth-reducing order, in a band")
-            )
+            ) + window
             self.title.value = _title_html(
                 f"frustration graph: {len(names)} terms, {len(pairs)} non-commuting pairs "
                 f"({layout_name})"
@@ -154,7 +192,7 @@ def _title_html(text: str) -> str:
     return f'<div style="font-size:13px; color:{INK};">{escape(text)}</div>'
 
 
-def _summary_html(v: fl.Verdict, n_terms: int) -> str:
+def _summary_html(v: Any, n_terms: int) -> str:
     words = KIND_WORDS.get(v.kind, v.kind)
     mark = _KIND_MARK.get(v.kind, "")
     reasons = "".join(f"<li>{escape(r)}</li>" for r in v.reasons)

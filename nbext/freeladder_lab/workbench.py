@@ -14,58 +14,38 @@ Math. Phys. 388, 969 (2021); F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 
 
 from __future__ import annotations
 
-import threading
-from dataclasses import dataclass
+from collections.abc import Callable
 from typing import Any
 
 import ipywidgets as widgets
 import traitlets
 
-import freeladder as fl
-
-from .adapter import (
-    Refusal,
-    SectorOverview,
-    analyze,
-    exact_overlay,
-    real_roots_reason,
-    sector_choices,
-    sector_spectrum,
-)
+from .adapter import Analysis, Model, View, derive, numeric_model
 from .checks_panel import ChecksPanel
 from .export import ExportPanel
 from .input_panel import InputPanel
 from .ladder_panel import LadderPanel
+from .panel import Section
 from .roots_panel import RootsPanel
 from .series_panel import SeriesPanel
 from .style import ACCENT, INK, ROOT_CLASS, WARN, escape, section, text_style
 from .verdict_panel import VerdictPanel
-from .worker import Worker
+from .worker import Job, Worker
 
-__all__ = ["Workbench"]
+__all__ = ["SECTIONS", "Workbench"]
 
-
-@dataclass(frozen=True)
-class _Derived:
-    """Everything the panels draw for one model, gathered in the worker."""
-
-    analysis: fl.Analysis
-    spectrum: fl.FreeSpectrum | Refusal | SectorOverview
-    exact: fl.ExactSpectrum | None
-    real_reason: str | None
-    choices: list[tuple[str, Any]] | None
-    choice: Any
-
-
-def _derive(a: fl.Analysis, unproven: bool, choice: Any) -> _Derived:
-    a.verdict, a.graph, a.chain, a.charge_counts  # noqa: B018 -- computed here, off the UI
-    choices = sector_choices(a)
-    if choices is None:
-        choice = None
-    elif choice not in [value for _, value in choices]:
-        choice = "ground"  # a Jordan-Wigner model with cycles: its ground sector first
-    spectrum = sector_spectrum(a, choice, unproven)
-    return _Derived(a, spectrum, exact_overlay(a), real_roots_reason(a), choices, choice)
+#: The Workbench's sections, in order: one line each.  Each is a
+#: :class:`~freeladder_lab.panel.Section` (``attach(host)``, ``update(view)``); consecutive
+#: sections that are not full width share a row.
+SECTIONS: tuple[tuple[str, type[Section]], ...] = (
+    ("input", InputPanel),
+    ("verdict", VerdictPanel),
+    ("series", SeriesPanel),
+    ("roots", RootsPanel),
+    ("ladder", LadderPanel),
+    ("checks", ChecksPanel),
+    ("export", ExportPanel),
+)
 
 
 class Workbench(widgets.VBox):
@@ -76,8 +56,9 @@ class Workbench(widgets.VBox):
     model : Model or str, optional
         A model, or model text in freeladder's syntax.  Without one, the family controls
         build a reach-2 exclusion chain.  A model those controls would not build (as they
-        stand, or for a chain with its size, reach and N) sets the family selector to
-        "(custom: the model text)" and disables them until a family is picked.
+        stand, or for a chain with its size, reach and N, uniform or staggered couplings) sets
+        the family selector to "(custom: the model text)" and hides them until a family is
+        picked.
     states : int
         N used to parse text (the states control can change it later).
     synchronous : bool
@@ -87,9 +68,13 @@ class Workbench(widgets.VBox):
     Attributes
     ----------
     model : Model
-        The model as given (its couplings may be symbols; sliders set their values).
+        The model the views show (its couplings may be symbols; sliders set their values).
+        It changes only when the views do: after a failed computation it is still the model
+        on screen.
     analysis : freeladder.Analysis
         The analysis of the numeric model on screen.
+    sections : dict
+        The sections by name (see :data:`SECTIONS`); each is also an attribute of that name.
 
     Examples
     --------
@@ -99,19 +84,22 @@ class Workbench(widgets.VBox):
     3
     """
 
-    model = traitlets.Instance(fl.Model, allow_none=True)
-    analysis = traitlets.Instance(fl.Analysis, allow_none=True)
+    model = traitlets.Instance(Model, allow_none=True)
+    analysis = traitlets.Instance(Analysis, allow_none=True)
 
     def __init__(
-        self, model: fl.Model | str | None = None, *, states: int = 2, synchronous: bool = False
+        self, model: Model | str | None = None, *, states: int = 2, synchronous: bool = False
     ) -> None:
-        self._busy: dict[str, str] = {}  # lane -> what it is doing
-        self._busy_lock = threading.Lock()
+        self.synchronous = synchronous
+        self.states = states
+        self._view: View | None = None
+        self._pending: Model | None = None  # the model being computed, before it is shown
+        self._applying = False  # True while _show sets the model trait
         self.busy = widgets.HTML()
         self.cancel = widgets.Button(
             description="Cancel",
             icon="stop",
-            tooltip="drop the computation in progress",
+            tooltip="stop the computation in progress",
             layout=widgets.Layout(width="100px", display="none"),
         )
         self.error = widgets.HTML()
@@ -123,70 +111,42 @@ class Workbench(widgets.VBox):
             titles=("traceback",),
             layout=widgets.Layout(display="none"),
         )
-        self._lanes = {
-            name: Worker(self._on_busy_for(name), self._on_error, synchronous)
-            for name in ("model", "order", "checks")
-        }
+        self.worker = Worker(self._on_busy, self._on_error, synchronous)
         self.cancel.on_click(lambda _: self._cancel())
-
-        self.input = InputPanel(self._model_from_input, self._recompute, synchronous, states)
-        self.verdict = VerdictPanel()
-        self.series = SeriesPanel(self._lanes["order"].submit)
-        self.roots = RootsPanel()
-        self.ladder = LadderPanel()
-        self.checks = ChecksPanel(self.run_checks)
-        self.export = ExportPanel(lambda: self.model)
-        self.roots.unproven.observe(lambda change: self._recompute(), "value")
-        self._showing_sectors = False  # True while _show sets the sector chooser
-        self.roots.sector.observe(self._sector_chosen, "value")
-
+        self.sections: dict[str, Section] = {}
+        for name, kind in SECTIONS:
+            self.sections[name] = kind.attach(self)
         header = widgets.HTML(
             f'<div style="font-size:19px; font-weight:700; color:{INK};">freeladder workbench'
             f'<span style="font-weight:400; font-size:13px; color:{ACCENT};">&#8195;from a sum '
             "of operator strings to its free spectrum, step by step</span></div>"
         )
-        lower = widgets.HBox(
-            [
-                widgets.VBox(
-                    [section(5, "Ladder", "lowest many-body levels"), self.ladder],
-                    layout=widgets.Layout(width="42%", padding="0 12px 0 0"),
-                ),
-                widgets.VBox(
-                    [section(6, "Checks", "on demand"), self.checks],
-                    layout=widgets.Layout(width="58%"),
-                ),
-            ]
-        )
         super().__init__(
             [
+                text_style(),
                 header,
                 widgets.HBox([self.busy, self.cancel]),
                 self.error,
                 self.traceback_box,
-                section(1, "Model", "type it, or build it from a family"),
-                self.input,
-                section(2, "Verdict", "which theorem applies, and why"),
-                self.verdict,
-                section(3, "Charges and transfer matrix", "order by order"),
-                self.series,
-                section(4, "Roots and quasi-energies", "hover a point for its bound"),
-                self.roots,
-                lower,
-                section(7, "Export", "the worked, self-verifying calculation as notebook cells"),
-                self.export,
+                *_layout(self.sections),
             ],
             layout=widgets.Layout(width="100%", max_width="1280px"),
         )
         self.add_class(ROOT_CLASS)
-        self.children = (text_style(), *self.children)
         if isinstance(model, str):
             self.set_text(model)
         elif model is not None:
             self.input.show_model_text(model)
             self.input.reflect(model)
-            self.model = model
+            self.take_model(model)
         else:
             self.input.build_family()
+
+    def __getattr__(self, name: str) -> Any:
+        sections = self.__dict__.get("sections", {})
+        if name in sections:
+            return sections[name]
+        raise AttributeError(name)
 
     # -- public ------------------------------------------------------------------------------
     def set_text(self, text: str) -> None:
@@ -195,107 +155,123 @@ class Workbench(widgets.VBox):
 
     def run_checks(self) -> None:
         """Run ``verify`` on the model on screen (in the worker) and show the table."""
-        a = self.analysis
-        if a is None:
+        view = self._view
+        if view is None:
             return
-        self._lanes["checks"].submit("running the checks", a.report, self._show_report(a))
+        a = view.analysis
+
+        def apply(report: Any) -> None:
+            if self._view is not None and self._view.analysis is a:
+                self.checks.show(report)
+
+        self.worker.submit("checks", "running the checks", a.report, apply)
 
     def wait(self, timeout: float | None = None) -> None:
         """Block until background work has finished (for scripts; tests use synchronous)."""
-        for lane in self._lanes.values():
-            lane.wait(timeout)
+        self.worker.wait(timeout)
+
+    # -- the host of the sections --------------------------------------------------------------
+    def submit(
+        self,
+        lane: str,
+        what: str,
+        compute: Callable[[], Any],
+        apply: Callable[[Any], Any],
+        delay: float = 0.0,
+        quiet: bool = False,
+    ) -> Job:
+        """Run ``compute`` in the Workbench's worker (newest request per lane wins)."""
+        return self.worker.submit(lane, what, compute, apply, delay=delay, quiet=quiet)
+
+    def shown(self) -> View | None:
+        """The view on screen (None before the first model)."""
+        return self._view
+
+    def take_model(self, model: Model) -> None:
+        """A new model: compute its view; the views and :attr:`model` change together."""
+        self._pending = model
+        self.recompute()
+
+    def recompute(self) -> None:
+        """Derive the view of the current model again with the current options."""
+        model = self._pending if self._pending is not None else self.model
+        if model is None:
+            return
+        numeric = numeric_model(model, self.input.symbol_values())
+        options = self.roots.options()
+
+        def compute() -> View:
+            return derive(model, numeric, options["unproven"], options["sector"])
+
+        self.submit("model", "analysing the model", compute, self._show)
 
     # -- model flow --------------------------------------------------------------------------
-    def _model_from_input(self, model: fl.Model, same_strings: bool) -> None:
-        if model is self.model:
-            self._recompute()
-        self.model = model
-
     @traitlets.observe("model")
-    def _model_changed(self, change: dict[str, Any]) -> None:
-        new = change["new"]
-        if new is None:
-            return
-        self.input.show_symbols(new)
-        self.checks.clear()
-        self._recompute()
+    def _model_set(self, change: dict[str, Any]) -> None:
+        """``wb.model = m`` from outside works like typing ``m``."""
+        if not self._applying and change["new"] is not None:
+            self.take_model(change["new"])
 
-    def _numeric(self) -> fl.Model:
-        m = self.model
-        assert m is not None
-        return m.subs(self.input.symbol_values(m)) if m.is_symbolic else m
-
-    def _recompute(self) -> None:
-        if self.model is None:
-            return
-        numeric = self._numeric()
-        unproven = bool(self.roots.unproven.value)
-        choice = self.roots.sector.value
-
-        def compute() -> _Derived:
-            # same strings as before: the library reuses graph, verdict and counts
-            return _derive(analyze(numeric), unproven, choice)
-
-        self._lanes["model"].submit("analysing the model", compute, self._show)
-
-    def _show(self, d: _Derived) -> None:
+    def _show(self, view: View) -> None:
         self.error.value = ""
         self.traceback_box.layout.display = "none"
-        self.analysis = d.analysis
-        self.verdict.show(d.analysis)
-        self._showing_sectors = True
+        self._view = view
+        self._pending = None
+        self._applying = True
         try:
-            self.roots.show_sector_choices(d.choices, d.choice)
+            self.model = view.model
+            self.analysis = view.analysis
         finally:
-            self._showing_sectors = False
-        self.roots.show(d.spectrum, d.real_reason)
-        drawn = d.spectrum.spectrum if isinstance(d.spectrum, SectorOverview) else d.spectrum
-        self.ladder.show(drawn, d.exact, d.analysis.model.states)
-        self.series.show(d.analysis)
-
-    def _sector_chosen(self, change: dict[str, Any]) -> None:
-        if not self._showing_sectors:
-            self._recompute()
-
-    def _show_report(self, a: fl.Analysis) -> Any:
-        def apply(report: fl.Report) -> None:
-            if a is self.analysis:
-                self.checks.show(report)
-
-        return apply
+            self._applying = False
+        for section_ in self.sections.values():
+            section_.update(view)
 
     # -- busy, cancel, errors ------------------------------------------------------------------
-    def _on_busy_for(self, lane: str) -> Any:
-        def on_busy(flag: bool, what: str) -> None:
-            with self._busy_lock:
-                if flag:
-                    self._busy[lane] = what
-                else:
-                    self._busy.pop(lane, None)
-                shown = [self._busy[k] for k in sorted(self._busy)]
-            self.busy.value = (
-                f'<span role="status" style="color:{ACCENT};">&#8987; working: '
-                f"{escape(', '.join(shown))}&hellip;</span>"
-                if shown
-                else ""
-            )
-            self.cancel.layout.display = "" if shown else "none"
-
-        return on_busy
+    def _on_busy(self, busy: dict[str, str]) -> None:
+        shown = [busy[k] for k in sorted(busy)]
+        self.busy.value = (
+            f'<span role="status" style="color:{ACCENT};">&#8987; working: '
+            f"{escape(', '.join(shown))}&hellip;</span>"
+            if shown
+            else ""
+        )
+        self.cancel.layout.display = "" if shown else "none"
 
     def _cancel(self) -> None:
-        for lane in self._lanes.values():
-            lane.cancel()
+        self.worker.cancel()
+        self._pending = None
         self.busy.value = (
             f'<span role="status" style="color:{WARN};">cancelled: the views keep the last '
             "finished result</span>"
         )
 
     def _on_error(self, message: str, trace: str) -> None:
+        self._pending = None
         self.error.value = (
             f'<div role="alert" style="color:{WARN}; border-left:4px solid {WARN};'
             f' padding-left:8px;"><b>&#9888; The computation failed:</b> {escape(message)}'
-            "<br>The views keep the last finished result; the traceback is below.</div>"
+            "<br>The views keep the last finished result (and <code>.model</code> the model "
+            "they show); the traceback is below.</div>"
         )
         self.traceback.value = trace
         self.traceback_box.layout.display = ""
+
+
+def _layout(sections: dict[str, Section]) -> list[widgets.Widget]:
+    """Each section under its numbered heading; consecutive ones that are not full width share
+    a row."""
+    out: list[widgets.Widget] = []
+    row: list[widgets.Widget] = []
+    for number, part in enumerate(sections.values(), start=1):
+        block = widgets.VBox([section(number, part.TITLE, part.HINT), part])
+        if part.WIDTH != "full":
+            block.layout = widgets.Layout(width=part.WIDTH, padding="0 12px 0 0")
+            row.append(block)
+            continue
+        if row:
+            out.append(widgets.HBox(row))
+            row = []
+        out.append(block)
+    if row:
+        out.append(widgets.HBox(row))
+    return out

@@ -1,41 +1,87 @@
-"""Run the Workbench's computations off the kernel's main thread, newest request first.
+"""The Workbench's one way of running work off the kernel's main thread.
 
-Each request gets a generation number.  A newer request supersedes older ones: their results
-are dropped when they arrive.  Cancel drops the running request's result the same way (a
-library call in progress cannot be stopped from outside; it finishes in the background and is
-ignored).  Exceptions are handed to the caller's ``on_error`` with their traceback text.
+Every request names a *lane* (what kind of work it is: "model", "order", "checks", "export",
+"typing" ...).  A newer request on a lane supersedes the older one: the older one's
+:class:`Job` is cancelled, and its result, if it still arrives, is dropped.  Cancellation is
+cooperative: the work calls :func:`checkpoint` between its parts, which raises
+:class:`Superseded` once the job was cancelled, so a superseded analysis stops at its next part
+instead of keeping a core busy until it ends (a library call in progress runs to its end).
 
-With ``synchronous=True`` every request runs at once in the caller's thread (tests and
-benchmarks use this: no waiting, no sleeps).
+A request may wait before it starts (``delay``): typing uses that to parse only after a pause,
+and the export uses it for the time it waits for the notebook's answer.  A newer request on the
+lane cancels a waiting one at once.
+
+With ``synchronous=True`` every request runs at once in the caller's thread and delays are
+skipped (tests and benchmarks use this: no waiting, no sleeps).  Exceptions go to the caller's
+``on_error`` with their traceback text.
 """
 
 from __future__ import annotations
 
 import threading
+import time
 import traceback
 from collections.abc import Callable
 from typing import Any
 
-__all__ = ["Worker"]
+__all__ = ["Job", "Superseded", "Worker", "checkpoint"]
+
+_local = threading.local()
+
+
+class Superseded(Exception):
+    """Raised by :func:`checkpoint` in work whose request was superseded or cancelled."""
+
+
+class Job:
+    """One request: its lane, what it does, and whether it was cancelled."""
+
+    def __init__(self, lane: str, what: str) -> None:
+        self.lane = lane
+        self.what = what
+        self._cancelled = threading.Event()
+
+    @property
+    def cancelled(self) -> bool:
+        """True once a newer request on the lane (or Cancel) took over."""
+        return self._cancelled.is_set()
+
+    def cancel(self) -> None:
+        """Ask the work to stop at its next :func:`checkpoint`."""
+        self._cancelled.set()
+
+    def sleep(self, seconds: float) -> bool:
+        """Wait ``seconds`` unless cancelled first; True when the wait ran to its end."""
+        return not self._cancelled.wait(seconds)
+
+
+def checkpoint() -> None:
+    """Stop here when the job running in this thread was cancelled (raises :class:`Superseded`).
+
+    Call it between the parts of a long computation.  Outside a worker job it does nothing.
+    """
+    job: Job | None = getattr(_local, "job", None)
+    if job is not None and job.cancelled:
+        raise Superseded(f"{job.what}: superseded")
 
 
 class Worker:
-    """One background lane of work with supersede and cancel.
+    """Runs requests in background threads, newest request per lane wins.
 
     Parameters
     ----------
-    on_busy : callable(bool, str)
-        Called with ``(True, what)`` when a request starts and ``(False, "")`` when the lane
-        is idle again.
+    on_busy : callable(dict)
+        Called with ``{lane: what}`` for every lane at work whenever that changes (an empty
+        dict when everything is idle).  Lanes started with ``quiet=True`` are not listed.
     on_error : callable(str, str)
         Called with ``(message, traceback_text)`` when a request raised.
     synchronous : bool
-        Run requests in the calling thread.
+        Run requests in the calling thread, skipping delays.
     """
 
     def __init__(
         self,
-        on_busy: Callable[[bool, str], Any],
+        on_busy: Callable[[dict[str, str]], Any],
         on_error: Callable[[str, str], Any],
         synchronous: bool = False,
     ) -> None:
@@ -43,51 +89,107 @@ class Worker:
         self._on_error = on_error
         self.synchronous = synchronous
         self._lock = threading.Lock()
-        self._generation = 0
-        self._thread: threading.Thread | None = None
-        self._apply_lock = threading.Lock()  # one apply at a time, newest wins
+        self._jobs: dict[str, Job] = {}  # the current job of each lane
+        self._busy: dict[str, str] = {}
+        self._busy_lock = threading.RLock()
+        self._threads: list[threading.Thread] = []
+        self._apply_lock = threading.RLock()  # one apply at a time (a synchronous apply may nest)
 
-    def submit(self, what: str, compute: Callable[[], Any], apply: Callable[[Any], Any]) -> None:
-        """Run ``compute()``; if still current when it returns, call ``apply(result)``.
+    def submit(
+        self,
+        lane: str,
+        what: str,
+        compute: Callable[[], Any],
+        apply: Callable[[Any], Any],
+        delay: float = 0.0,
+        quiet: bool = False,
+    ) -> Job:
+        """Run ``compute()`` (after ``delay`` seconds); if still current, ``apply(result)``.
 
-        ``apply`` runs in the worker thread too, after ``compute``; it only sets widget state.
+        A newer request on the same lane cancels this one.  ``apply`` runs in the worker
+        thread too, after ``compute``; it only sets widget state.  ``quiet`` keeps the request
+        off the busy line (waiting for an answer is not work).
         """
+        job = Job(lane, what)
         with self._lock:
-            self._generation += 1
-            gen = self._generation
-        self._on_busy(True, what)
+            old = self._jobs.get(lane)
+            if old is not None:
+                old.cancel()
+            self._jobs[lane] = job
+            self._threads = [t for t in self._threads if t.is_alive()]
+        if not quiet:
+            self._set_busy(lane, what)
         if self.synchronous:
-            self._run(gen, compute, apply)
-            return
-        thread = threading.Thread(target=self._run, args=(gen, compute, apply), daemon=True)
-        self._thread = thread
-        thread.start()
-
-    def cancel(self) -> None:
-        """Drop the result of whatever is running and report the lane idle."""
+            self._run(job, compute, apply, 0.0)
+            return job
+        thread = threading.Thread(target=self._run, args=(job, compute, apply, delay), daemon=True)
         with self._lock:
-            self._generation += 1
-        self._on_busy(False, "")
+            self._threads.append(thread)
+        thread.start()
+        return job
+
+    def cancel(self, lane: str | None = None) -> None:
+        """Cancel the job of ``lane`` (every lane when None); the views keep what they show."""
+        with self._lock:
+            lanes = list(self._jobs) if lane is None else [lane]
+            for name in lanes:
+                job = self._jobs.pop(name, None)
+                if job is not None:
+                    job.cancel()
+        for name in lanes:
+            self._set_busy(name, None)
 
     def wait(self, timeout: float | None = None) -> None:
-        """Block until the latest background request has finished (for scripts and tests)."""
-        thread = self._thread
-        if thread is not None:
-            thread.join(timeout)
+        """Block until every background request has finished, including those they started
+        (for scripts and tests)."""
+        deadline = None if timeout is None else time.monotonic() + timeout
+        while True:
+            with self._lock:
+                threads = [t for t in self._threads if t.is_alive()]
+            if not threads:
+                return
+            left = None if deadline is None else deadline - time.monotonic()
+            if left is not None and left <= 0:
+                return
+            threads[0].join(left)
 
-    def _current(self, gen: int) -> bool:
+    def _current(self, job: Job) -> bool:
         with self._lock:
-            return gen == self._generation
+            return self._jobs.get(job.lane) is job and not job.cancelled
 
-    def _run(self, gen: int, compute: Callable[[], Any], apply: Callable[[Any], Any]) -> None:
+    def _set_busy(self, lane: str, what: str | None) -> None:
+        # one lock around the change and the report, so that reports from two threads cannot
+        # arrive in the other order (the busy line would keep a finished lane)
+        with self._busy_lock:
+            if what is None:
+                self._busy.pop(lane, None)
+            else:
+                self._busy[lane] = what
+            self._on_busy(dict(self._busy))
+
+    def _run(
+        self, job: Job, compute: Callable[[], Any], apply: Callable[[Any], Any], delay: float
+    ) -> None:
+        outer = getattr(_local, "job", None)  # a synchronous request inside another one
+        _local.job = job
         try:
+            if delay > 0 and not job.sleep(delay):
+                return
+            checkpoint()
             result = compute()
             with self._apply_lock:
-                if self._current(gen):
+                if self._current(job):
                     apply(result)
+        except Superseded:
+            pass
         except Exception as exc:  # shown in the widget with its traceback, never swallowed
-            if self._current(gen):
+            if self._current(job):
                 self._on_error(f"{type(exc).__name__}: {exc}", traceback.format_exc())
         finally:
-            if self._current(gen):
-                self._on_busy(False, "")
+            _local.job = outer
+            with self._lock:
+                finished = self._jobs.get(job.lane) is job
+                if finished:
+                    del self._jobs[job.lane]
+            if finished:
+                self._set_busy(job.lane, None)

@@ -7,6 +7,10 @@
  * when no output holds it, below the active cell), in one transaction of the notebook's shared
  * model, so that one undo removes them all.  Existing cells are never replaced or reordered.  It
  * answers on the same comm with what it inserted, or with why it inserted nothing.
+ *
+ * A message ``{ask: "path", marker}`` instead asks where the notebook showing the widget is
+ * now (its path changes when the notebook is renamed; the kernel only knows the name it was
+ * started with): the answer is ``{status: "path", path}``.
  */
 import {
   JupyterFrontEnd,
@@ -136,8 +140,18 @@ function listen(
       if (handled.has(comm.commId) || panel.isDisposed) {
         return;
       }
-      const data = msg.content.data as { marker?: unknown };
+      const data = msg.content.data as { marker?: unknown; ask?: unknown };
       const marker = typeof data.marker === 'string' ? data.marker : '';
+      if (data.ask === 'path') {
+        // the notebook that shows the widget answers (or the one in front, when none does)
+        if (findAnchor(panel, marker) < 0 && tracker.currentWidget !== panel) {
+          return;
+        }
+        handled.add(comm.commId);
+        comm.send({ status: 'path', path: panel.context.path });
+        comm.close();
+        return;
+      }
       let cells: IOutgoingCell[];
       try {
         cells = readCells(msg.content.data);

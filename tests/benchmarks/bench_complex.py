@@ -150,7 +150,7 @@ def run_scale(sizes: tuple[int, ...] = (1000, 10_000), old_large: bool = False) 
             n = found.count
             steps = found.details["chain_steps"] / (found.count * m)
             print(
-                f"  M={m:>6} {label:>8}: {n} roots in {t_all:7.2f} s, {found.iterations} sweeps "
+                f"  M={m:>6} {label:>8}: {n} roots in {t_all:7.2f} s, {found.sweeps} sweeps "
                 f"over {len(found.details['sweeps_per_level'])} levels, cost {steps:.2f} full "
                 f"sweeps, max residual: |P|/P~ {found.details['max_residual']:.1e}, relative "
                 f"Newton step {found.details['max_newton_step']:.1e}; converged+isolated "

@@ -92,7 +92,7 @@ def main(huge: bool) -> None:
             log_eta = float(r.log_quasi_energies(2)[0][0])
             log10 = log_eta / math.log(10.0)
             line = (
-                f"reach {reach}, M = {m:>8}: {ours:7.2f} s, {r.iterations} sweeps, "
+                f"reach {reach}, M = {m:>8}: {ours:7.2f} s, {r.sweeps} sweeps, "
                 f"{r.evaluations} evaluations, eta_1 = 10^{log10:.6f} "
                 f"(estimated rel. error {r.error_bounds[0] / r.values[0]:.1e})"
             )

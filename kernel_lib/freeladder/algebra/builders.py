@@ -5,15 +5,19 @@ from __future__ import annotations
 import math
 import numbers
 from collections.abc import Sequence
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.sparse as sps
-import sympy
 
 from ..base.scalars import check_scalar
 from .model import Coupling, Model
 from .strings import StringArray, WeylString, check_states, make_string, pauli
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "honeycomb_hexagons",

@@ -17,12 +17,17 @@ import cmath
 import functools
 import math
 from fractions import Fraction
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import sympy
 
+from ..base.frozen import readonly_array
 from ..base.scalars import exact_value
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = ["CyclotomicField", "Element", "power_table"]
 
@@ -60,8 +65,7 @@ def power_table(order: int, count: int) -> np.ndarray:
         table[k] = cur
         carry = cur[-1]
         cur = np.concatenate([[0], cur[:-1]]) - carry * low
-    table.flags.writeable = False
-    return table
+    return readonly_array(table)  # kept by lru_cache: no one may change it
 
 
 Element = tuple[Fraction, ...]

@@ -13,10 +13,9 @@ from __future__ import annotations
 
 import functools
 from collections.abc import Iterable, Mapping, Sequence
-from typing import Any, NamedTuple
+from typing import TYPE_CHECKING, Any, NamedTuple
 
 import numpy as np
-import sympy
 
 from ..base.jsonready import json_ready
 from ..base.scalars import (
@@ -32,6 +31,11 @@ from ..base.scalars import (
 )
 from .printing import coefficient_text, format_terms, format_terms_latex
 from .strings import StringArray, WeylString, check_states, unit_phase
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = ["Coupling", "Model", "Term", "coupling_fields", "times_phase"]
 

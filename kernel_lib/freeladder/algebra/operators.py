@@ -26,11 +26,10 @@ import functools
 import math
 from collections.abc import Iterable, Mapping, Sequence
 from fractions import Fraction
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.sparse as sps
-import sympy
 
 from ..base.jsonready import json_ready
 from ..base.scalars import (
@@ -48,6 +47,11 @@ from .cyclotomic import power_table
 from .model import Model, coupling_fields
 from .printing import format_terms, format_terms_latex
 from .strings import StringArray, WeylString, unit_phase
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "PAIR_CHUNK",

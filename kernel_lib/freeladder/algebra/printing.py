@@ -19,11 +19,14 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 from fractions import Fraction
-from typing import Any
-
-import sympy
+from typing import TYPE_CHECKING, Any
 
 from .strings import WeylString
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "NOT_FINITE_NAMES",

@@ -65,14 +65,17 @@ import cmath
 import unicodedata
 from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any
-
-import sympy
+from typing import TYPE_CHECKING, Any
 
 from ..base.scalars import MAX_EXPANDED_TERMS, expanded_terms_bound, to_python_number
 from .model import Model
 from .printing import NOT_FINITE_NAMES, OPERATOR_LOOKALIKE
 from .strings import WeylString, check_sites, check_states, make_string
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = ["ModelSyntaxError", "parse_model"]
 

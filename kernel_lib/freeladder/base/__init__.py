@@ -3,12 +3,14 @@ references, scalars.
 """
 
 from .cache import (
-    cached,
-    model_store,
-    structure_store,
+    Part,
+    Store,
+    part,
+    store_of,
 )
 from .errors import (
     CheckNotApplicable,
+    NotExpandableError,
     NoTheoremError,
     TooLargeError,
 )
@@ -59,6 +61,10 @@ from .scalars import (
 )
 
 __all__ = [
+    "Part",
+    "Store",
+    "part",
+    "store_of",
     "ALCARAZ_PIMENTA_2020",
     "BAXTER_1989",
     "CHAPMAN_ELMAN_MANN_2023",
@@ -74,11 +80,11 @@ __all__ = [
     "MANN_ELMAN_WOOD_CHAPMAN_2024",
     "MAX_EXPANDED_TERMS",
     "NoTheoremError",
+    "NotExpandableError",
     "PFEUTY_1970",
     "Scalar",
     "TooLargeError",
     "as_complex",
-    "cached",
     "check_scalar",
     "exact_to_sympy",
     "exact_value",
@@ -90,11 +96,9 @@ __all__ = [
     "is_number_text",
     "is_symbolic",
     "json_ready",
-    "model_store",
     "readonly_array",
     "readonly_mapping",
     "readonly_sparse",
-    "structure_store",
     "substitute",
     "substitution_map",
     "to_fmpq",

@@ -6,7 +6,7 @@ the built-in type keeps working; catch the specific class to react to one situat
 
 from __future__ import annotations
 
-__all__ = ["CheckNotApplicable", "NoTheoremError", "TooLargeError"]
+__all__ = ["CheckNotApplicable", "NoTheoremError", "NotExpandableError", "TooLargeError"]
 
 
 class NoTheoremError(ValueError):
@@ -29,3 +29,13 @@ class CheckNotApplicable(Exception):
 
 class TooLargeError(ValueError):
     """The requested exact computation exceeds a stated size limit; the message says which."""
+
+
+class NotExpandableError(ValueError):
+    """An operator or model the hidden-mode expansion of the dynamics does not cover.
+
+    Raised by :func:`freeladder.edge_expansion`, :func:`freeladder.autocorrelation` and
+    :func:`freeladder.two_point`; the message names the operator or the structure that is
+    missing (an edge operator next to one end term, a chain or indifference order, independent
+    strings) and what is expandable instead.
+    """

@@ -1,4 +1,5 @@
-"""Read-only views for the fields of result objects, so that a result cannot be changed.
+"""Immutable arrays and views for the fields of result objects, so that a result cannot be
+changed (not even by ``setflags(write=True)``).
 
 Result classes are frozen dataclasses (or classes that refuse ``__setattr__``); their array
 fields go through :func:`readonly_array` and their dict fields through
@@ -27,12 +28,32 @@ __all__ = ["readonly_array", "readonly_mapping", "readonly_sparse"]
 
 
 def readonly_array(values: Any, dtype: Any = None) -> np.ndarray:
-    """A read-only numpy array with the given values (a copy unless already read-only)."""
+    """A numpy array with the given values that no one can change (a copy unless it already is).
+
+    The values live in an immutable ``bytes`` buffer, so ``setflags(write=True)`` raises on the
+    array, on its views and on its base alike (a read-only array that owns its data can be
+    reopened; these cannot).  Object arrays (exact or symbolic entries) cannot live in a
+    buffer: they are copied and marked read-only.
+    """
     arr = np.asarray(values, dtype=dtype)
-    if arr.flags.writeable or arr.base is not None:
+    if arr.dtype.hasobject:
         arr = arr.copy()
-    arr.setflags(write=False)
-    return arr
+        arr.setflags(write=False)
+        return arr
+    if _is_immutable(arr):
+        return arr
+    frozen = np.frombuffer(np.ascontiguousarray(arr).tobytes(), dtype=arr.dtype)
+    return frozen.reshape(arr.shape)
+
+
+def _is_immutable(arr: np.ndarray) -> bool:
+    """True when ``arr`` is read-only and its memory belongs to an immutable bytes object."""
+    if arr.flags.writeable:
+        return False
+    base: Any = arr
+    while isinstance(base, np.ndarray):
+        base = base.base
+    return isinstance(base, bytes)
 
 
 def readonly_mapping(values: Mapping[Any, Any]) -> MappingProxyType[Any, Any]:
@@ -50,6 +71,7 @@ def readonly_sparse(matrix: Any) -> sps.csr_array:
     out = sps.csr_array(matrix, copy=True)
     out.sum_duplicates()
     out.sort_indices()
-    for arr in (out.data, out.indices, out.indptr):
-        arr.setflags(write=False)
+    out.data = readonly_array(out.data)
+    out.indices = readonly_array(out.indices)
+    out.indptr = readonly_array(out.indptr)
     return out

@@ -19,10 +19,14 @@ import math
 import numbers
 from collections.abc import Mapping
 from fractions import Fraction
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import sympy
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from .lazy import sympy
 
 __all__ = ["json_ready"]
 

@@ -24,10 +24,14 @@ import numbers
 from collections.abc import Iterable, Mapping
 from decimal import Decimal
 from fractions import Fraction
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import sympy
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from .lazy import sympy
 
 __all__ = [
     "MAX_EXPANDED_TERMS",
@@ -53,7 +57,12 @@ Scalar = Any
 MAX_EXPANDED_TERMS = 1000
 """Largest number of terms a symbolic coupling may expand to (estimated before expanding)."""
 
-_NOT_FINITE = (sympy.nan, sympy.zoo, sympy.oo, -sympy.oo)
+
+def _not_finite() -> tuple[Any, ...]:
+    """sympy's non-finite values (sympy is loaded when a sympy value is checked)."""
+    return (sympy.nan, sympy.zoo, sympy.oo, -sympy.oo)
+
+
 _HOW = (
     "pass a number (int, float, complex, fractions.Fraction) or a sympy expression "
     "such as sympy.Symbol('g')"
@@ -153,7 +162,7 @@ def _check_sympy(value: sympy.Basic, where: str, what: str) -> Scalar:
             f"{where}: {what} {_describe(value)} is a sympy {type(value).__name__}, "
             f"not a scalar expression; {_HOW}"
         )
-    if value.has(*_NOT_FINITE):
+    if value.has(*_not_finite()):
         raise ValueError(f"{where}: {what} {value} is not finite")
     if expanded_terms_bound(value, MAX_EXPANDED_TERMS) > MAX_EXPANDED_TERMS:
         raise ValueError(
@@ -226,7 +235,7 @@ def to_python_number(value: Scalar) -> Scalar:
         return int(value)
     if value.is_Rational:
         return Fraction(int(value.p), int(value.q))  # type: ignore[attr-defined]
-    if value.has(*_NOT_FINITE):
+    if value.has(*_not_finite()):
         raise ValueError(f"{_describe(value)} is not finite")
     number = complex(value.evalf(30))
     if not cmath.isfinite(number):
@@ -391,6 +400,6 @@ def substitute(value: Scalar, mapping: Mapping[sympy.Symbol, sympy.Expr]) -> Sca
     if not isinstance(value, sympy.Basic):
         return value
     out = sympy.expand(value.xreplace(mapping))
-    if out.has(*_NOT_FINITE):
+    if out.has(*_not_finite()):
         raise ValueError(f"substituting gives a value that is not finite: {_describe(out)}")
     return to_python_number(out)

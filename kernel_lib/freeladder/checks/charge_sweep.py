@@ -41,12 +41,11 @@ import math
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from itertools import combinations
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
-import sympy
 from flint import fmpq, fmpq_mat
 
 from ..algebra.cyclotomic import CyclotomicField, Element
@@ -55,9 +54,14 @@ from ..algebra.strings import WeylString, make_string, unit_phase
 from ..base.frozen import readonly_mapping
 from ..base.jsonready import json_ready
 from ..base.scalars import to_fmpq
-from ..graphs.graph import chain_structure, commutation_exponents, frustration_adjacency
+from ..graphs.graph import ADJACENCY, EXPONENTS, chain_structure
 from ..roots.polynomial import exclusion_polynomial
 from ..spectra.charges import charge_series
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "MAX_COORDINATES",
@@ -224,7 +228,7 @@ class _Plan:
 
     def _build(self) -> None:
         m, k = self.model, self.copies
-        ex = commutation_exponents(m)
+        ex = EXPONENTS(m)
         pos = np.empty(len(m), dtype=np.int64)
         pos[self.order] = np.arange(len(m))
         last = _last_neighbour(ex, pos)
@@ -349,7 +353,7 @@ def _term_order(m: Model) -> np.ndarray:
     chain = chain_structure(m) if len(m) else None
     if chain is not None:
         candidates.insert(0, np.asarray(chain.order, dtype=np.int64))
-    adj = frustration_adjacency(m)
+    adj = ADJACENCY(m)
     if len(m):
         rcm = csgraph.reverse_cuthill_mckee(sps.csr_matrix(adj.astype(np.int8)), True)
         candidates.append(np.asarray(rcm, dtype=np.int64))

@@ -43,13 +43,12 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sps
-from scipy.optimize import linear_sum_assignment
 from tqdm.auto import tqdm
 
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
-from ..analysis import Analysis, analyze
-from ..base.errors import CheckNotApplicable, NoTheoremError, TooLargeError
+from ..analysis import Analysis, analyze, sector_route
+from ..base.errors import CheckNotApplicable, TooLargeError
 from ..base.jsonready import json_ready
 from ..base.references import (
     ALCARAZ_PIMENTA_2020,
@@ -404,15 +403,13 @@ class _Parts:
         return list(self.analysis.charge_counts)
 
     def spectrum(self) -> tuple[FreeSpectrum, str]:
-        """The free spectrum and, when no theorem guarantees it, why (empty when one does)."""
+        """The single polynomial's spectrum and, when no theorem guarantees it, why (empty when
+        one does): :meth:`Analysis.answer` with ``unproven=True``, so the checks probe it."""
         if self._spectrum is None:
-            try:
-                sp, why = self.analysis.spectrum(), ""
-            except NoTheoremError as err:
-                sp, why = self.analysis.spectrum(unproven=True), str(err)
-            if not why and not sp.provenance.guaranteed:
-                why = str(sp.provenance.guarantee or "no theorem covers this model")
-            self._spectrum = (sp, why)
+            answer = self.analysis.answer(sector="polynomial", unproven=True)
+            if answer.spectrum is None:
+                raise ValueError(answer.message)
+            self._spectrum = (answer.spectrum, "" if answer.guaranteed else answer.reason)
         return self._spectrum
 
     def charges(self) -> list[StringSum]:
@@ -967,12 +964,12 @@ def verify(
     checks: list[Check] = []
     notes: list[str] = []
     complete = True
-    sector_route = _sector_route(analysis)
+    sector_path = sector_route(m)
     try:
-        _commutation(parts, max_pairs, checks, claim_inversion=not sector_route)
+        _commutation(parts, max_pairs, checks, claim_inversion=not sector_path)
         if m.is_symbolic:
             notes.append("symbolic couplings: spectral checks need numbers (use m.subs first)")
-        elif sector_route:
+        elif sector_path:
             _sector_checks(parts, exact_diagonalization, checks)
             notes.append(
                 "the model is free sector by sector (Jordan-Wigner with cycle or parity "
@@ -989,9 +986,9 @@ def verify(
             "interrupted (KeyboardInterrupt): the checks after the last one listed did not run"
         )
     why = parts._spectrum[1] if parts._spectrum is not None else None
-    if sector_route and not m.is_symbolic:
+    if sector_path and not m.is_symbolic:
         why = ""
-    verdict = _verdict_text(analysis, why, sector_route)
+    verdict = _verdict_text(analysis, why, sector_path)
     guaranteed = None if why is None else not why
     return Report(tuple(checks), _short(m), tuple(notes), verdict, complete, guaranteed)
 
@@ -1115,15 +1112,6 @@ def _exact_check(parts: _Parts, spectrum: tuple[FreeSpectrum, str]) -> Check:
 
 
 # -- Jordan-Wigner models that are free sector by sector -----------------------------------------
-def _sector_route(analysis: Analysis) -> bool:
-    """True for Pauli line-graph models whose single polynomial is not guaranteed."""
-    m = analysis.model
-    if m.states != 2 or m.is_symbolic or len(m) == 0:
-        return False
-    verdict = analysis.verdict
-    return verdict.kind == "jordan-wigner" and not verdict.guarantee.proven
-
-
 def _both_routes(analysis: Analysis) -> bool:
     """True for Pauli line-graph models that the single polynomial also covers."""
     m = analysis.model
@@ -1159,6 +1147,8 @@ def routes_check(parts: _Parts) -> Check:
         n_extra = len(squares) - len(target)
         extra, kept = squares[order[:n_extra]], squares[order[n_extra:]]
         cost = np.abs(kept[:, None] - target[None, :])
+        from scipy.optimize import linear_sum_assignment  # on use: slow to import
+
         rows, cols = linear_sum_assignment(cost)
         worst = max(worst, float(cost[rows, cols].max()) if len(target) else 0.0)
         worst = max(worst, float(np.abs(extra).max()) if len(extra) else 0.0)

@@ -26,7 +26,7 @@ import numpy as np
 from ..algebra.model import Model
 from ..algebra.printing import format_terms, format_terms_latex
 from ..base.jsonready import json_ready
-from .graph import commutation_exponents
+from .graph import EXPONENTS
 
 __all__ = ["DirectedFrustrationGraph", "directed_frustration_graph", "omega_power_text"]
 
@@ -156,7 +156,7 @@ def directed_frustration_graph(m: Model) -> DirectedFrustrationGraph:
     """
     if not isinstance(m, Model):
         raise TypeError(f"expected a freeladder Model, got {type(m).__name__}")
-    ex = commutation_exponents(m)
+    ex = EXPONENTS(m)
     n = m.states
     rows = np.repeat(np.arange(len(m)), np.diff(ex.indptr))
     edges = []

@@ -4,7 +4,7 @@ The frustration graph has one vertex per term and an edge where two terms fail t
 (BACKGROUND of the project, section 2).  Here it is available three ways:
 
 * :func:`commutation_exponents` -- the sparse matrix of exponents m_ab (mod N) with
-  ``g_a g_b = omega^{m_ab} g_b g_a`` (cached on the model);
+  ``g_a g_b = omega^{m_ab} g_b g_a``;
 * :func:`frustration_adjacency` -- the plain undirected adjacency as a boolean CSR array, for
   work at scale without networkx;
 * :func:`frustration_graph` -- a networkx graph with the terms as node attributes (directed,
@@ -31,8 +31,8 @@ import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
 
 from ..algebra.model import Model
-from ..base.cache import cached, structure_store
-from ..base.frozen import readonly_array
+from ..base.cache import part
+from ..base.frozen import readonly_array, readonly_sparse
 from ..base.jsonready import json_ready
 
 __all__ = [
@@ -45,22 +45,33 @@ __all__ = [
 ]
 
 
-def _cached(m: Model, key: str, build: Any) -> Any:
-    """Compute ``build(m)`` once per list of strings (these values ignore the couplings)."""
-    return cached(structure_store(m.strings), "graph:" + key, lambda: build(m))
-
-
 def _check_model(m: Any) -> Model:
     if not isinstance(m, Model):
         raise TypeError(f"expected a freeladder Model, got {type(m).__name__}")
     return m
 
 
+@part("commutation exponents", "strings")
+def EXPONENTS(m: Model) -> sps.csr_array:
+    """The part behind :func:`commutation_exponents` (read-only arrays, shared: never hand it
+    out)."""
+    return readonly_sparse(m.strings.commutation_matrix())
+
+
+@part("frustration adjacency", "strings")
+def ADJACENCY(m: Model) -> sps.csr_array:
+    """The part behind :func:`frustration_adjacency` (read-only arrays, shared)."""
+    ex = EXPONENTS(m)
+    return readonly_sparse(
+        sps.csr_array((np.ones(ex.nnz, dtype=bool), ex.indices, ex.indptr), shape=ex.shape)
+    )
+
+
 def commutation_exponents(m: Model) -> sps.csr_array:
     """Sparse ``(M, M)`` matrix of exponents ``m_ab`` in ``[1, N)``, ``g_a g_b = omega^m g_b g_a``.
 
     Only pairs that fail to commute are stored; the matrix satisfies ``m_ba = -m_ab (mod N)``.
-    The result is cached on the model and must not be modified.
+    Computed once per list of strings; each call returns a fresh copy, the caller's to change.
 
     Parameters
     ----------
@@ -70,19 +81,14 @@ def commutation_exponents(m: Model) -> sps.csr_array:
     -------
     scipy.sparse.csr_array of int64, indices sorted.
     """
-
-    def build(model: Model) -> sps.csr_array:
-        mat = model.strings.commutation_matrix()
-        mat.sort_indices()
-        return mat
-
-    return _cached(_check_model(m), "exponents", build)  # type: ignore[no-any-return]
+    return sps.csr_array(EXPONENTS(_check_model(m)), copy=True)
 
 
 def frustration_adjacency(m: Model) -> sps.csr_array:
     """The undirected frustration graph as a symmetric boolean CSR array (no diagonal).
 
-    Entry ``(a, b)`` is True when terms ``a`` and ``b`` fail to commute.  Cached on the model.
+    Entry ``(a, b)`` is True when terms ``a`` and ``b`` fail to commute.  Computed once per list
+    of strings; each call returns a fresh copy, the caller's to change.
 
     Examples
     --------
@@ -93,14 +99,7 @@ def frustration_adjacency(m: Model) -> sps.csr_array:
            [1, 1, 0, 1],
            [0, 1, 1, 0]])
     """
-
-    def build(model: Model) -> sps.csr_array:
-        ex = commutation_exponents(model)
-        return sps.csr_array(
-            (np.ones(ex.nnz, dtype=bool), ex.indices.copy(), ex.indptr.copy()), shape=ex.shape
-        )
-
-    return _cached(_check_model(m), "adjacency", build)  # type: ignore[no-any-return]
+    return sps.csr_array(ADJACENCY(_check_model(m)), copy=True)
 
 
 def frustration_graph(m: Model) -> nx.Graph | nx.DiGraph:
@@ -128,7 +127,7 @@ def frustration_graph(m: Model) -> nx.Graph | nx.DiGraph:
     A. Chapman and S. T. Flammia, Quantum 4, 278 (2020), arXiv:2003.05465 (frustration graph).
     """
     m = _check_model(m)
-    ex = commutation_exponents(m)
+    ex = EXPONENTS(m)
     n = len(m)
     rows = np.repeat(np.arange(n), np.diff(ex.indptr))
     graph: nx.Graph | nx.DiGraph
@@ -243,7 +242,7 @@ def chain_structure(m: Model) -> ChainStructure | None:
     increases strictly along the chain, except among vertices adjacent to everything, which
     are then ordered by the orientation (in-neighbours minus out-neighbours).  The candidate
     order is finally checked against every stored exponent, so a positive answer is always
-    exact.  The result is cached on the model.
+    exact.  Computed once per list of strings.
 
     References
     ----------
@@ -256,11 +255,13 @@ def chain_structure(m: Model) -> ChainStructure | None:
     >>> chain_structure(exclusion_chain(5, reach=2, states=3))
     ChainStructure(M=5, reach=2, orientation=+1, N=3, order=[0, 1, 2, 3, 4])
     """
+    return CHAIN(_check_model(m))
 
-    def build(model: Model) -> ChainStructure | None:
-        return chain_from_exponents(commutation_exponents(model), model.states)
 
-    return _cached(_check_model(m), "chain", build)  # type: ignore[no-any-return]
+@part("chain structure", "strings")
+def CHAIN(m: Model) -> ChainStructure | None:
+    """The part behind :func:`chain_structure`."""
+    return chain_from_exponents(EXPONENTS(m), m.states)
 
 
 def chain_from_exponents(ex: sps.csr_array, states: int) -> ChainStructure | None:
@@ -346,6 +347,4 @@ def _is_chain(
 
 
 def _make_chain(order: np.ndarray, reach: int, orientation: int, states: int) -> ChainStructure:
-    order = np.ascontiguousarray(order, dtype=np.int64)
-    order.setflags(write=False)
     return ChainStructure(order, int(reach), int(orientation), int(states))

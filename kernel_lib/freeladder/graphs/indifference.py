@@ -42,9 +42,9 @@ import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
 
 from ..algebra.model import Model
-from ..base.cache import cached, structure_store
+from ..base.cache import part
 from ..base.jsonready import json_ready
-from .graph import commutation_exponents
+from .graph import EXPONENTS
 
 __all__ = ["IndifferenceOrder", "indifference_order", "order_from_exponents", "umbrella_order"]
 
@@ -241,13 +241,15 @@ def indifference_order(m: Model) -> IndifferenceOrder | None:
     """
     if not isinstance(m, Model):
         raise TypeError(f"expected a freeladder Model, got {type(m).__name__}")
-    return cached(structure_store(m.strings), "indifference", lambda: _build(m))
+    return ORDER(m)
 
 
-def _build(m: Model) -> IndifferenceOrder | None:
+@part("indifference order", "strings")
+def ORDER(m: Model) -> IndifferenceOrder | None:
+    """The part behind :func:`indifference_order`."""
     if len(m) == 0:
         return None
-    return order_from_exponents(commutation_exponents(m), m.states)
+    return order_from_exponents(EXPONENTS(m), m.states)
 
 
 def order_from_exponents(ex: Any, states: int) -> IndifferenceOrder | None:
@@ -259,6 +261,11 @@ def order_from_exponents(ex: Any, states: int) -> IndifferenceOrder | None:
     adj = sps.csr_array(ex)
     adj.sort_indices()
     n = int(adj.shape[0])
+    quick = _quick_order(adj, states)
+    if quick is not None:
+        return quick
+    if _has_hole_component(adj):
+        return None
     order = umbrella_order(adj)
     if order is None:
         return None
@@ -295,6 +302,164 @@ def order_from_exponents(ex: Any, states: int) -> IndifferenceOrder | None:
         first.append(int(min(k, nb.min())) if len(nb) else k)
     exponent_out = 1 if states == 2 else int(exponent or 1)
     return IndifferenceOrder(tuple(final), tuple(first), exponent_out, states)
+
+
+def _bfs_levels(adj: sps.csr_array, sources: np.ndarray) -> np.ndarray:
+    """Distance of every vertex from the nearest of ``sources`` (one per component)."""
+    n = adj.shape[0]
+    hub = sps.csr_array(
+        (np.ones(len(sources), dtype=bool), (np.full(len(sources), n), sources)),
+        shape=(n + 1, n + 1),
+    )
+    grown = sps.csr_array(
+        sps.block_diag((adj.astype(bool), sps.csr_array((1, 1), dtype=bool)), format="csr") + hub
+    )
+    dist = csgraph.shortest_path(grown, unweighted=True, indices=n, directed=True)
+    return np.asarray(dist[:n] - 1, dtype=np.int64)
+
+
+def _has_hole_component(adj: sps.csr_array) -> bool:
+    """Whether some component is a chordless cycle of four or more vertices (every degree 2).
+
+    Indifference graphs are chordal, so such a graph has no indifference ordering (common
+    practice); rings of terms are told apart at once instead of by three LexBFS sweeps.
+    """
+    sym = sps.csr_array(adj.astype(bool))
+    sym.setdiag(False)
+    sym.eliminate_zeros()
+    n_comp, labels = csgraph.connected_components(sym, directed=False)
+    degree = np.diff(sym.indptr)
+    size = np.bincount(labels, minlength=n_comp)
+    off = np.bincount(labels[degree != 2], minlength=n_comp)
+    return bool(np.any((off == 0) & (size >= 4)))
+
+
+def _row_extent(
+    indptr: np.ndarray, values: np.ndarray, own: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
+    """Per row, the least and greatest of its ``values`` and its ``own`` value."""
+    lo, hi = own.copy(), own.copy()
+    filled = np.flatnonzero(np.diff(indptr) > 0)
+    if len(filled):
+        starts = indptr[filled]
+        lo[filled] = np.minimum(lo[filled], np.minimum.reduceat(values, starts))
+        hi[filled] = np.maximum(hi[filled], np.maximum.reduceat(values, starts))
+    return lo, hi
+
+
+def _quick_order(adj: sps.csr_array, states: int) -> IndifferenceOrder | None:
+    """An oriented indifference ordering found in linear time by breadth-first levels, or None.
+
+    In a connected indifference graph, distances from an end of the ordering grow along it,
+    and within one level the vertices are ordered by how far back and how far forward their
+    neighbourhoods reach (common practice).  An end is sought as the farthest vertex of two
+    breadth-first searches.  The candidate is checked exactly (every closed neighbourhood a
+    contiguous block, every edge forward with one exponent); None means only that this quick
+    route did not find one (the LexBFS route then decides).
+    """
+    n = int(adj.shape[0])
+    if n == 0:
+        return None
+    sym = sps.csr_array(adj.astype(bool))
+    sym.setdiag(False)
+    sym.eliminate_zeros()
+    n_comp, labels = csgraph.connected_components(sym, directed=False)
+    degree = np.diff(sym.indptr)
+    # one start per component, then twice: the farthest vertex, of least degree
+    start = np.zeros(n_comp, dtype=np.int64)
+    start[labels[::-1]] = np.arange(n)[::-1]
+    for _ in range(2):
+        dist = _bfs_levels(sym, start)
+        pick = np.lexsort((degree, -dist, labels))
+        first_of = np.flatnonzero(np.r_[True, labels[pick][1:] != labels[pick][:-1]])
+        start = pick[first_of]
+    dist = _bfs_levels(sym, start)
+    rows = np.repeat(np.arange(n), degree)
+    cols = sym.indices
+    step = dist[cols] - dist[rows]
+    if np.any(np.abs(step) > 1):
+        return None
+    back = np.bincount(rows[step < 0], minlength=n)
+    ahead = np.bincount(rows[step > 0], minlength=n)
+    order = np.lexsort((ahead, -back, dist, labels))
+    pos = np.empty(n, dtype=np.int64)
+    pos[order] = np.arange(n)
+    # every closed neighbourhood a contiguous block: [lo, hi] holds exactly degree + 1 vertices
+    lo, hi = _row_extent(sym.indptr, pos[cols], pos)
+    if np.any(hi - lo != degree):
+        return None
+    if states == 2:
+        first = lo[order]
+        return IndifferenceOrder(tuple(order.tolist()), tuple(first.tolist()), 1, states)
+    return _quick_orientation(adj, states, order, pos, lo, hi, labels)
+
+
+def _quick_orientation(
+    adj: sps.csr_array,
+    states: int,
+    order: np.ndarray,
+    pos: np.ndarray,
+    lo: np.ndarray,
+    hi: np.ndarray,
+    labels: np.ndarray,
+) -> IndifferenceOrder | None:
+    """Turn each component and sort its twins so that every edge points forward with one
+    exponent; None when the quick route cannot (the LexBFS route then decides)."""
+    n = len(order)
+    rows = np.repeat(np.arange(n), np.diff(adj.indptr))
+    cols = adj.indices
+    expo = np.asarray(adj.data, dtype=np.int64) % states
+    keep = rows != cols
+    rows, cols, expo = rows[keep], cols[keep], expo[keep]
+    # twins (same closed neighbourhood) are the runs of equal (lo, hi) along the ordering
+    key_lo, key_hi = lo[order], hi[order]
+    new_run = np.r_[True, (key_lo[1:] != key_lo[:-1]) | (key_hi[1:] != key_hi[:-1])]
+    run_of = np.empty(n, dtype=np.int64)
+    run_of[order] = np.cumsum(new_run) - 1
+    forward = pos[cols] > pos[rows]
+    across = forward & (run_of[rows] != run_of[cols])
+    comp_want = np.full(labels.max() + 1, -1, dtype=np.int64)
+    comp_want[labels[rows[across]][::-1]] = expo[across][::-1]
+    # components that are one clique of twins: the exponent of their first pair
+    inside = forward & (run_of[rows] == run_of[cols])
+    lone = comp_want[labels[rows[inside]]] < 0
+    first_pair = np.full(labels.max() + 1, -1, dtype=np.int64)
+    first_pair[labels[rows[inside][lone]][::-1]] = expo[inside][lone][::-1]
+    comp_want = np.where(comp_want < 0, first_pair, comp_want)
+    # score: in-run neighbours reached with the wanted exponent; higher first
+    want_of = comp_want[labels]
+    hit = (run_of[rows] == run_of[cols]) & (expo == want_of[rows])
+    score = np.bincount(rows[hit], minlength=n)
+    new_order = np.lexsort((-score, run_of))
+    new_pos = np.empty(n, dtype=np.int64)
+    new_pos[new_order] = np.arange(n)
+    ahead = new_pos[cols] > new_pos[rows]
+    comp_of_edge = labels[rows[ahead]]
+    got = expo[ahead]
+    if np.any(got != comp_want[comp_of_edge]):
+        return None
+    wants = np.unique(comp_want[comp_want >= 0])
+    flip = np.zeros(labels.max() + 1, dtype=bool)
+    if len(wants) > 1:  # components may be turned around: forward exponent m becomes N - m
+        target = int(comp_want[labels[new_order[0]]])
+        if target < 0:
+            target = int(wants[0])
+        flip = (comp_want >= 0) & (comp_want != target)
+        if np.any((states - comp_want[flip]) % states != target):
+            return None
+        common = target
+    else:
+        common = int(wants[0]) if len(wants) else 1
+    if math.gcd(common, states) != 1:
+        return None
+    if np.any(flip):
+        blocks = np.split(new_order, np.flatnonzero(np.diff(labels[new_order])) + 1)
+        new_order = np.concatenate([b[::-1] if flip[labels[b[0]]] else b for b in blocks])
+        new_pos[new_order] = np.arange(n)
+    first, _hi = _row_extent(adj.indptr, new_pos[adj.indices], new_pos)
+    return IndifferenceOrder(
+        tuple(new_order.tolist()), tuple(first[new_order].tolist()), common, states
+    )
 
 
 def _neighbours(adj: sps.csr_array, v: int) -> list[tuple[int, int]]:

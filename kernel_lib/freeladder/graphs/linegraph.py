@@ -76,13 +76,14 @@ class LineGraphRoot:
         Flammia 2020): these are the conserved cycle operators.  The basis has
         ``|E| - |V| + 1`` members for a connected root graph.
         """
-        root = self.graph()
+        adj: list[dict[int, int]] = [{} for _ in range(self.n_modes)]
+        for term, (a, b) in self.pairs.items():
+            adj[a][b] = term
+            adj[b][a] = term
         out = []
-        for cycle in nx.cycle_basis(root):
+        for cycle in _cycle_basis(adj):
             ring = [*cycle, cycle[0]]
-            out.append(
-                [int(root.edges[u, v]["term"]) for u, v in zip(ring, ring[1:], strict=False)]
-            )
+            out.append([int(adj[u][v]) for u, v in zip(ring, ring[1:], strict=False)])
         return out
 
 
@@ -210,6 +211,42 @@ def line_graph_root(
     final = candidates[0]
     pairs = {t: (min(a, b), max(a, b)) for t, (a, b) in final.ends.items()}
     return LineGraphRoot(pairs, len(final.at))
+
+
+def _cycle_basis(adj: Sequence[Mapping[int, int]]) -> list[list[int]]:
+    """The cycles ``networkx.cycle_basis`` gives for the simple graph with these neighbours.
+
+    The same spanning-tree walk (components from the last node back, neighbours in insertion
+    order), on plain lists instead of a networkx graph.
+    """
+    remaining = dict.fromkeys(range(len(adj)))
+    cycles: list[list[int]] = []
+    while remaining:
+        root = remaining.popitem()[0]
+        stack = [root]
+        pred = {root: root}
+        used: dict[int, set[int]] = {root: set()}
+        while stack:
+            z = stack.pop()
+            zused = used[z]
+            for nbr in adj[z]:
+                if nbr not in used:
+                    pred[nbr] = z
+                    stack.append(nbr)
+                    used[nbr] = {z}
+                elif nbr not in zused:
+                    pn = used[nbr]
+                    cycle = [nbr, z]
+                    q = pred[z]
+                    while q not in pn:
+                        cycle.append(q)
+                        q = pred[q]
+                    cycle.append(q)
+                    cycles.append(cycle)
+                    used[nbr].add(z)
+        for node in pred:
+            remaining.pop(node, None)
+    return cycles
 
 
 def _bfs_order(adjacency: Sequence[set[int]], start: int) -> list[int]:

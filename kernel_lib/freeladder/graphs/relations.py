@@ -33,6 +33,7 @@ terms and its centre); common practice: Gaussian elimination over GF(p).
 from __future__ import annotations
 
 import cmath
+import heapq
 import math
 from collections.abc import Iterator
 from dataclasses import dataclass
@@ -248,26 +249,57 @@ def _dependencies(
     by_lead = np.argsort(leading, kind="stable")
     if p == 2:
         return out + _dependencies_gf2(rows, cols, bounds, by_lead)
-    pivots: dict[int, tuple[dict[int, int], dict[int, int]]] = {}
+    # Each reduced row remembers only which pivots it subtracted; the combination of terms is
+    # expanded only for the rows that vanish (carrying every combination along is quadratic on
+    # long cycles).
+    pivots: dict[int, tuple[dict[int, int], int]] = {}  # column -> (normalised row, node)
+    scale: dict[int, int] = {}  # pivot node -> the factor that normalised it
+    steps: list[list[tuple[int, int]]] = []  # node -> (pivot node, coefficient) subtracted
+    origin: list[int] = []  # node -> its term
     for i in by_lead.tolist():
         lo, hi = int(bounds[i]), int(bounds[i + 1])
         row = dict(zip(cols[lo:hi].tolist(), vals[lo:hi].tolist(), strict=True))
-        combo = {int(rows[lo]): 1}
+        node = len(origin)
+        origin.append(int(rows[lo]))
+        taken: list[tuple[int, int]] = []
+        steps.append(taken)
         while row:
             col = min(row)
             if col not in pivots:
                 inv = pow(row[col], -1, p)
-                pivots[col] = (
-                    {c: v * inv % p for c, v in row.items()},
-                    {c: v * inv % p for c, v in combo.items()},
-                )
+                pivots[col] = ({c: v * inv % p for c, v in row.items()}, node)
+                scale[node] = inv
                 break
             f = row[col]
-            prow, pcombo = pivots[col]
+            prow, pnode = pivots[col]
             _axpy(row, -f, prow, p)
-            _axpy(combo, -f, pcombo, p)
+            taken.append((pnode, f * scale[pnode] % p))
         else:
-            out.append(combo)
+            out.append(_expand(node, origin, steps, p))
+    return out
+
+
+def _expand(
+    node: int, origin: list[int], steps: list[list[tuple[int, int]]], p: int
+) -> dict[int, int]:
+    """The combination of terms behind ``node``: ``C_n = e_term - sum_k c_k C_(pivot k)``.
+
+    Pivots are older nodes, so the nodes are settled newest first, each once.
+    """
+    coef = {node: 1}
+    pending = [-node]
+    out: dict[int, int] = {}
+    while pending:
+        n = -heapq.heappop(pending)
+        c = coef.pop(n) % p
+        if not c:
+            continue
+        out[origin[n]] = c
+        for q, g in steps[n]:
+            if q not in coef:
+                coef[q] = 0
+                heapq.heappush(pending, -q)
+            coef[q] -= c * g
     return out
 
 

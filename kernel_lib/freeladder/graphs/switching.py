@@ -73,10 +73,10 @@ from typing import Any, Literal
 import scipy.sparse as sps
 
 from ..algebra.model import Model
-from ..base.cache import cached, structure_store
+from ..base.cache import part
 from ..base.jsonready import json_ready
 from .clawfree import find_claw
-from .graph import commutation_exponents
+from .graph import EXPONENTS
 
 __all__ = ["DipathSwitching", "ObstructionKind", "dipath_from_exponents", "dipath_switching"]
 
@@ -187,11 +187,13 @@ def dipath_switching(m: Model) -> DipathSwitching:
     """
     if not isinstance(m, Model):
         raise TypeError(f"expected a freeladder Model, got {type(m).__name__}")
-    return cached(  # type: ignore[no-any-return]
-        structure_store(m.strings),
-        "dipath",
-        lambda: dipath_from_exponents(commutation_exponents(m), m.states),
-    )
+    return DIPATH(m)
+
+
+@part("dipath switching", "strings")
+def DIPATH(m: Model) -> DipathSwitching:
+    """The part behind :func:`dipath_switching`."""
+    return dipath_from_exponents(EXPONENTS(m), m.states)
 
 
 def dipath_from_exponents(

@@ -33,6 +33,7 @@ F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.
 from __future__ import annotations
 
 import html
+from collections import deque
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field, replace
 from typing import Any, Literal
@@ -46,16 +47,16 @@ from ..algebra.model import Model
 from ..algebra.printing import format_terms
 from ..algebra.strings import WeylString
 from ..base import references as ref
-from ..base.cache import cached, structure_store
-from ..base.frozen import readonly_mapping
+from ..base.cache import part
+from ..base.frozen import readonly_array, readonly_mapping
 from ..base.jsonready import json_ready
 from .clawfree import find_claw, find_even_hole, find_simplicial_clique
 from .graph import (
+    ADJACENCY,
+    EXPONENTS,
     ChainStructure,
     chain_from_exponents,
     chain_structure,
-    commutation_exponents,
-    frustration_adjacency,
 )
 from .indifference import IndifferenceOrder, order_from_exponents
 from .linegraph import LineGraphRoot, line_graph_root
@@ -200,7 +201,7 @@ class ComponentVerdict:
 
     def __post_init__(self) -> None:
         def ints(values: Any) -> tuple[int, ...]:
-            return tuple(int(v) for v in values)
+            return tuple(np.fromiter(values, dtype=np.int64).tolist())
 
         fix: dict[str, Any] = {
             "terms": ints(self.terms),
@@ -475,13 +476,14 @@ def classify(m: Model) -> Verdict:
         raise TypeError(f"classify needs a freeladder Model, got {type(m).__name__}")
     # The graph theory depends only on the strings: it is kept with them, so a coupling change
     # (Model.with_couplings) only rewrites the witness texts (Verdict.for_model).
-    shared = cached(structure_store(m.strings), "verdict", lambda: _classify(m))
-    return shared.for_model(m)
+    return VERDICT(m).for_model(m)
 
 
-def _classify(m: Model) -> Verdict:
-    """The classification itself (see :func:`classify`)."""
-    adj = frustration_adjacency(m)
+@part("verdict", "strings")
+def VERDICT(m: Model) -> Verdict:
+    """The classification itself (see :func:`classify`), shared by every model with the same
+    strings (:meth:`Verdict.for_model` puts in the couplings)."""
+    adj = ADJACENCY(m)
     n_terms = len(m)
     if n_terms == 0:
         empty = ("The model has no terms: nothing to solve.",)
@@ -507,7 +509,7 @@ def _classify(m: Model) -> Verdict:
         if whole_chain is not None:
             comps[0] = _with_chain(comps[0], whole_chain)
     else:
-        ex = commutation_exponents(m)
+        ex = EXPONENTS(m)
         grouped = sps.csr_array(ex[order][:, order])
         grouped.sort_indices()
         comps = []
@@ -684,6 +686,9 @@ def _even_cycle_block(pairs: Mapping[int, tuple[int, int]]) -> tuple[int, ...]:
     an odd cycle (common practice); an even cycle of the root graph is an even hole of its
     line graph.
     """
+    quick = _cycles_of_core(pairs)
+    if quick is not None:
+        return quick
     root = nx.Graph()
     for term, (a, b) in pairs.items():
         root.add_edge(a, b, term=term)
@@ -698,6 +703,62 @@ def _even_cycle_block(pairs: Mapping[int, tuple[int, int]]) -> tuple[int, ...]:
             edges = list(block)
         return tuple(sorted(int(root.edges[a, b]["term"]) for a, b in edges))
     return ()
+
+
+def _cycles_of_core(pairs: Mapping[int, tuple[int, int]]) -> tuple[int, ...] | None:
+    """:func:`_even_cycle_block` in linear time when the root graph's cycles are disjoint rings.
+
+    Pruning vertices of degree one leaves the 2-core; when every vertex of the core has degree
+    two, its components are the cycles and the blocks of the root graph (common practice).
+    The answer is then ``()`` when all are odd, and the terms of the one even cycle when there
+    is exactly one; None leaves every other case to the general search (so the witness chosen
+    among several even blocks stays the same).
+    """
+    if not pairs:
+        return ()
+    terms = np.fromiter(pairs.keys(), dtype=np.int64, count=len(pairs))
+    ends = np.array(list(pairs.values()), dtype=np.int64).reshape(-1, 2)
+    modes, flat = np.unique(ends, return_inverse=True)
+    ends = flat.reshape(-1, 2)
+    n = len(modes)
+    if len(np.unique(ends[:, 0] * n + ends[:, 1])) < len(ends):
+        return None  # parallel edges: networkx's simple graph keeps one of them
+    degree = np.bincount(ends.ravel(), minlength=n)
+    alive = np.ones(len(ends), dtype=bool)
+    if np.any(degree == 1):  # prune trees hanging off the cycles, one leaf at a time
+        incident: list[list[int]] = [[] for _ in range(n)]
+        for e, (a, b) in enumerate(ends.tolist()):
+            incident[a].append(e)
+            incident[b].append(e)
+        left = degree.tolist()
+        queue = deque(v for v in range(n) if left[v] == 1)
+        while queue:
+            v = queue.popleft()
+            for e in incident[v]:
+                if alive[e]:
+                    alive[e] = False
+                    for w in ends[e].tolist():
+                        left[w] -= 1
+                        if left[w] == 1:
+                            queue.append(w)
+        degree = np.array(left)
+    core = np.flatnonzero(alive)
+    if not len(core):
+        return ()
+    if np.any((degree != 0) & (degree != 2)):
+        return None
+    n_comp, labels = csgraph.connected_components(
+        sps.csr_array((np.ones(len(core)), (ends[core, 0], ends[core, 1])), shape=(n, n)),
+        directed=False,
+    )
+    sizes = np.bincount(labels[ends[core, 0]], minlength=n_comp)
+    even = np.flatnonzero((sizes > 0) & (sizes % 2 == 0))
+    if len(even) == 0:
+        return ()
+    if len(even) > 1:
+        return None
+    ring = core[labels[ends[core, 0]] == even[0]]
+    return tuple(sorted(int(t) for t in terms[ring]))
 
 
 def _refusal(m: Model, reference: str, reason: str, witness: Sequence[int]) -> Guarantee:
@@ -972,6 +1033,58 @@ def _with_chain(comp: ComponentVerdict, chain: ChainStructure) -> ComponentVerdi
     )
 
 
+def _first_cycle(edges: Sequence[tuple[int, int]]) -> list[tuple[int, int]] | None:
+    """The directed cycle ``networkx.find_cycle(networkx.DiGraph(edges))`` reports, or None.
+
+    The same depth-first search over edges (nodes in order of first appearance, each node's
+    out-edges in the order given), on plain lists: linear time without networkx's per-node
+    views.
+    """
+    succ: dict[int, list[int]] = {}
+    for a, b in edges:
+        succ.setdefault(a, []).append(b)
+        succ.setdefault(b, [])
+    explored: set[int] = set()
+    for start in succ:
+        if start in explored:
+            continue
+        path: list[tuple[int, int]] = []
+        seen = {start}
+        active = {start}
+        previous: int | None = None
+        cursor = {start: 0}
+        stack = [start]
+        while stack:
+            node = stack[-1]
+            out = succ[node]
+            k = cursor.setdefault(node, 0)
+            if k == len(out):
+                stack.pop()
+                continue
+            cursor[node] = k + 1
+            head = out[k]
+            stack.append(head)  # each edge is visited once: it leaves a node once
+            if head in explored:
+                continue
+            if previous is not None and node != previous:  # backtracked
+                while True:
+                    if not path:
+                        active = {node}
+                        break
+                    active.discard(path.pop()[1])
+                    if path and path[-1][1] == node:
+                        break
+            path.append((node, head))
+            if head in active:
+                i = next(i for i, (tail, _h) in enumerate(path) if tail == head)
+                return path[i:]
+            seen.add(head)
+            active.add(head)
+            previous = head
+        explored.update(seen)
+    return None
+
+
 def _clock_obstruction(ex: sps.csr_array, n: int) -> tuple[tuple[int, ...], str]:
     """Terms of a connected clock model that break the exclusion pattern, and a sentence.
 
@@ -1020,10 +1133,8 @@ def _clock_obstruction(ex: sps.csr_array, n: int) -> tuple[tuple[int, ...], str]
                             "orientation, but those two commute: in an exclusion chain the "
                             "partners on one side of a term are all within reach of each other."
                         )
-    digraph = nx.DiGraph((a, b) for a in range(size) for b in forward[a])
-    try:
-        cycle = nx.find_cycle(digraph)
-    except nx.NetworkXNoCycle:
+    cycle = _first_cycle([(a, b) for a in range(size) for b in forward[a]])
+    if cycle is None:
         return (), (
             "The exponents are all omega^+-1 with a consistent orientation, but the non-commuting "
             "pairs do not form the p-th power of a path for any reach p."
@@ -1074,9 +1185,7 @@ def _combine(m: Model, comps: Sequence[ComponentVerdict], relations: Relations) 
 
 
 def _frozen(order: np.ndarray) -> np.ndarray:
-    out = np.ascontiguousarray(order, dtype=np.int64)
-    out.setflags(write=False)
-    return out
+    return readonly_array(order, dtype=np.int64)
 
 
 def _string_text(m: Model, j: int) -> str:

@@ -3,7 +3,10 @@
 Usage::
 
     freeladder report MODEL_TEXT_OR_FILE [--states N] [--json] [--no-checks]
-    freeladder export MODEL_TEXT_OR_FILE --to notebook|script|latex PATH [--states N] [--force]
+    freeladder export MODEL_TEXT_OR_FILE PATH [--states N] [--force]
+
+``export`` writes a notebook, a script or a LaTeX section, chosen by the suffix of ``PATH``
+(:data:`EXPORT_SUFFIXES`: ``.ipynb``, ``.py``, ``.tex``).
 
 ``MODEL_TEXT_OR_FILE`` is model text in freeladder's syntax (quote it in the shell) or the path
 of a file holding such text.  ``python -m freeladder`` runs the same command.
@@ -24,13 +27,15 @@ from typing import Any, TextIO
 
 from ..algebra.model import Model
 from ..algebra.syntax import parse_model
-from ..analysis import analyze
-from ..base.errors import NoTheoremError
+from ..analysis import Analysis, analyze
 from ..base.jsonready import json_ready
 
-__all__ = ["main", "report_data"]
+__all__ = ["EXPORT_SUFFIXES", "main", "report_data"]
 
 _SHOWN_ENERGIES = 12
+
+EXPORT_SUFFIXES = {".ipynb": "notebook", ".py": "script", ".tex": "LaTeX section"}
+"""What ``freeladder export`` writes, by the suffix of the file it is given."""
 
 
 class _UsageError(Exception):
@@ -56,70 +61,16 @@ def _read_model(source: str, states: int) -> Model:
         raise _UsageError(f"{where}: {err}") from None
 
 
-def report_data(m: Model, checks: bool = True) -> dict[str, Any]:
+def report_data(m: Model | Analysis, checks: bool = True) -> dict[str, Any]:
     """The report of one model as JSON-ready data (what ``freeladder report --json`` prints).
 
-    Keys: ``model``, ``verdict`` (kind, reasons, witness), ``quasi_energies`` and
-    ``error_bounds`` (None when no theorem guarantees the spectrum; ``refusal`` then says why),
-    ``ground_energy``, ``gap``, ``checks`` (one entry per check: name, method, status, value,
-    tolerance).  Complex numbers are ``[re, im]`` pairs.
+    The same data as :meth:`freeladder.Analysis.to_dict` (one schema): ``model``, ``states``,
+    ``terms``, ``sites``, ``verdict``, ``charge_counts``, ``polynomial``, ``spectrum`` (the
+    numbers, or the refusal with its reason, witness and what to do instead: see
+    :meth:`freeladder.SpectrumAnswer.to_dict`) and ``report`` (the checks, with ``ok`` and
+    ``problems``; None with ``checks=False``).  Complex numbers are ``[re, im]`` pairs.
     """
-    a = analyze(m)
-    verdict = a.verdict
-    out: dict[str, Any] = {
-        "model": str(m),
-        "states": m.states,
-        "terms": len(m),
-        "sites": len(m.sites),
-        "verdict": {
-            "kind": verdict.kind,
-            "reasons": list(verdict.reasons),
-            "witness": list(verdict.witness),
-        },
-        "quasi_energies": None,
-        "error_bounds": None,
-        "ground_energy": None,
-        "gap": None,
-        "refusal": None,
-        "checks": [],
-    }
-    if m.is_symbolic:
-        out["refusal"] = "symbolic couplings: substitute numbers to get a spectrum"
-    else:
-        try:
-            sp = a.spectrum()
-        except (NoTheoremError, ArithmeticError) as err:  # no theorem, or no convergence
-            out["refusal"] = str(err)
-        else:
-            out["quasi_energies"] = sp.quasi_energies
-            out["error_bounds"] = sp.error_bounds
-            out["ground_energy"] = sp.ground_energy
-            out["gap"] = _gap(sp)
-    if checks:
-        report = a.report()
-        out["ok"] = bool(report.ok)
-        out["problems"] = list(report.problems)
-        out["checks"] = [_check_data(c) for c in report.checks]
-    return json_ready(out)  # type: ignore[no-any-return]
-
-
-def _gap(sp: Any) -> Any:
-    try:
-        return sp.gap
-    except ValueError:  # complex spectra have no ordered gap
-        return None
-
-
-def _check_data(check: Any) -> dict[str, Any]:
-    return {
-        "name": check.name,
-        "method": check.method,
-        "status": check.status,
-        "value": check.value,
-        "passed": check.passed,
-        "tolerance": check.tolerance,
-        "detail": check.detail,
-    }
+    return analyze(m).to_dict(checks=checks)
 
 
 def _number(v: Any) -> str:
@@ -137,40 +88,66 @@ def _print_report(data: dict[str, Any], out: TextIO) -> None:
     text = data["model"]
     w((text if len(text) <= 200 else text[:197] + "...") + "\n\n")
     v = data["verdict"]
-    w(f"verdict: {v['kind']}\n")
+    if "error" in v:
+        w(f"verdict: not decided ({v['message']})\n")
+        v = {"reasons": [], "witness": []}
+    else:
+        w(f"verdict: {v['kind']}\n")
     for reason in v["reasons"]:
         w(f"  - {reason}\n")
     if v["witness"]:
         w(f"  witness terms: {v['witness']}\n")
     w("\n")
-    if data["quasi_energies"] is None:
-        w(f"no free spectrum: {data['refusal']}\n")
+    sp = data["spectrum"]
+    if "error" in sp:
+        w(f"no free spectrum: {sp['message']}\n")
+    elif sp["quasi_energies"] is None:
+        refusal = sp["refusal"]
+        w(f"no free spectrum: {refusal['reason']}\n  instead: {refusal['instead']}\n")
     else:
-        eta, bounds = data["quasi_energies"], data["error_bounds"]
+        if sp["status"] == "unproven":
+            w(f"NOT GUARANTEED: {sp['refusal']['reason']}\n")
+        if sp["sector"] is not None:
+            sector = sp["sector"]
+            values = ", ".join(
+                f"{g} = {v:+d}"
+                for g, v in zip(sector["cycle_strings"], sector["cycle_values"], strict=True)
+            )
+            w(f"sector: {sector['selection']} ({values})\n")
+        eta, bounds = sp["quasi_energies"], sp["error_bounds"]
         w(f"quasi-energies ({len(eta)}, smallest first; bound on each):\n")
         for e, b in list(zip(eta, bounds, strict=True))[:_SHOWN_ENERGIES]:
             w(f"  {_number(e):>28}  +- {'-' if b is None else format(b, '.2g')}\n")
         if len(eta) > _SHOWN_ENERGIES:
             w(f"  ... {len(eta) - _SHOWN_ENERGIES} more (use --json for all)\n")
-        w(f"ground energy: {_number(data['ground_energy'])}\n")
-        w(f"gap: {_number(data['gap'])}\n")
-    if data["checks"]:
+        w(f"ground energy: {_number(sp['ground_energy'])}\n")
+        w(f"gap: {_number(sp['gap'])}\n")
+    report = data["report"]
+    if report is not None and "error" in report:
+        w(f"\nchecks: could not run ({report['message']})\n")
+    elif report is not None and report["checks"]:
         w("\nchecks:\n")
-        width = max(len(c["name"]) for c in data["checks"])
-        for c in data["checks"]:
+        width = max(len(c["name"]) for c in report["checks"])
+        for c in report["checks"]:
             w(f"  {c['status']:<8} {c['name']:<{width}}  {c['method']}\n")
-        w(f"verified: {'yes' if data['ok'] else 'NO'}\n")
-        for problem in data.get("problems", []):
+        w(f"verified: {'yes' if report['ok'] else 'NO'}\n")
+        for problem in report["problems"]:
             w(f"  - {problem}\n")
 
 
-def _export(m: Model, kind: str, path: str, force: bool) -> str:
+def _export(m: Model, path: str, force: bool) -> str:
     try:
         from .worked import worked_calculation
     except ImportError:  # pragma: no cover - the export module ships with the package
         raise _UsageError("this installation has no export module") from None
-    calc = worked_calculation(m)
     target = Path(path)
+    kind = EXPORT_SUFFIXES.get(target.suffix.lower())
+    if kind is None:
+        known = ", ".join(f"{suffix} ({what})" for suffix, what in EXPORT_SUFFIXES.items())
+        raise _UsageError(
+            f"cannot tell what to write from the name {path!r}: the file name must end in {known}"
+        )
+    calc = worked_calculation(analyze(m))
     if target.is_symlink() and not target.exists():
         raise _UsageError(
             f"{path} is a symbolic link to a file that does not exist; nothing was written "
@@ -190,8 +167,8 @@ def _export(m: Model, kind: str, path: str, force: bool) -> str:
                 handle.write(text)
     except OSError as err:
         raise _UsageError(f"cannot write {path}: {err.strerror or err}") from None
-    what = {"notebook": "a notebook", "script": "a Python script", "latex": "a LaTeX document"}
-    return f"wrote the worked calculation ({len(calc)} cells) as {what[kind]} to {path}"
+    what = {"notebook": "a notebook", "script": "a Python script"}.get(kind, f"a {kind}")
+    return f"wrote the worked calculation ({len(calc)} cells) as {what} to {path}"
 
 
 def _parser() -> argparse.ArgumentParser:
@@ -207,11 +184,33 @@ def _parser() -> argparse.ArgumentParser:
     rep.add_argument("--no-checks", action="store_true", help="skip fl.verify")
     exp = sub.add_parser("export", help="write the worked, self-verifying calculation")
     exp.add_argument("model", help="model text in freeladder's syntax, or a file holding it")
-    exp.add_argument("--to", required=True, choices=("notebook", "script", "latex"))
-    exp.add_argument("path", help="the file to write (never overwritten without --force)")
+    exp.add_argument(
+        "path",
+        help="the file to write, by its suffix: .ipynb (notebook), .py (script), .tex (LaTeX "
+        "section); never overwritten without --force",
+    )
     exp.add_argument("--states", type=int, default=2, help="states per site N (default 2)")
     exp.add_argument("--force", action="store_true", help="overwrite an existing file")
+    cen = sub.add_parser("census", help="classify every chain of a few short-range term types")
+    cen.add_argument("--states", type=int, default=2, help="states per site N (default 2)")
+    cen.add_argument("--support", type=int, default=2, help="sites a term type covers at most")
+    cen.add_argument("--types", type=int, default=2, help="term types in one chain at most")
+    cen.add_argument("--json", action="store_true", help="print the rows as one JSON list")
+    cen.add_argument("--out", help="also write the table to this .csv or .parquet file")
     return parser
+
+
+def _census(args: argparse.Namespace) -> int:
+    from ..studies.census import census
+
+    table = census(args.states, args.support, args.types, progress=False, path=args.out)
+    if args.json:
+        rows = json_ready(table.astype(object).where(table.notna(), None).to_dict("records"))
+        print(json.dumps(rows, allow_nan=False))
+    else:
+        cols = ["types", "verdict", "spectrum", "name"]
+        print(table[cols].to_string(index=False))
+    return 0
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -221,10 +220,16 @@ def main(argv: Sequence[str] | None = None) -> int:
         args = parser.parse_args(argv)
     except SystemExit as exit_:  # argparse already printed its message
         return int(exit_.code or 0)
+    if args.command == "census":
+        try:
+            return _census(args)
+        except (ValueError, TypeError, ImportError) as err:
+            print(f"freeladder: {err}", file=sys.stderr)
+            return 2
     try:
         m = _read_model(args.model, args.states)
         if args.command == "export":
-            print(_export(m, args.to, args.path, args.force))
+            print(_export(m, args.path, args.force))
             return 0
         data = report_data(m, checks=not args.no_checks)
     except _UsageError as err:
@@ -237,4 +242,5 @@ def main(argv: Sequence[str] | None = None) -> int:
         print(json.dumps(data, allow_nan=False))
     else:
         _print_report(data, sys.stdout)
-    return 1 if data.get("ok") is False else 0
+    report = data["report"]
+    return 1 if report is not None and report.get("ok") is not True else 0

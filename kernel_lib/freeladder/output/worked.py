@@ -24,15 +24,14 @@ from typing import Any, NamedTuple, overload
 import numpy as np
 
 from ..algebra.model import Model
+from ..analysis import Analysis, analyze
 from ..base import references as refs
-from ..base.errors import NoTheoremError
 from ..base.jsonready import json_ready
-from ..checks.verification import Report, verify
-from ..graphs.graph import frustration_graph
-from ..graphs.verdict import classify
-from ..roots.polynomial import exclusion_polynomial
-from ..spectra.charges import charge_series, transfer_matrix
-from ..spectra.spectrum import FreeSpectrum, free_spectrum
+from ..checks.verification import Report
+from ..graphs.graph import ADJACENCY
+from ..spectra.answer import SpectrumAnswer
+from ..spectra.charges import transfer_matrix
+from ..spectra.spectrum import FreeSpectrum
 
 __all__ = ["STEPS", "Cell", "WorkedCalculation", "worked_calculation"]
 
@@ -290,41 +289,37 @@ class _Facts:
     no_theorem: str
     report: Report
     inversion_holds: bool | None
+    answer: SpectrumAnswer
 
 
-def _collect(m: Model) -> _Facts:
-    verdict = classify(m)
-    edges = sorted({tuple(sorted(e[:2])) for e in frustration_graph(m).edges()})
-    counts = [step.count for step in charge_series(m)]
-    poly = exclusion_polynomial(m)
+def _collect(a: Analysis) -> _Facts:
+    """The facts, every one read from the analysis (each part computed once, there)."""
+    m = a.model
+    adjacency = ADJACENCY(m)
+    rows, cols = adjacency.nonzero()
+    edges = sorted((int(r), int(c)) for r, c in zip(rows, cols, strict=True) if r < c)
+    counts = list(a.charge_counts)
+    poly = a.polynomial
     coefficients = poly.coefficients
     exact = all(isinstance(c, (int, Fraction)) for c in coefficients)
-    spectrum: FreeSpectrum | None
-    try:
-        spectrum = free_spectrum(m)
-    except NoTheoremError as err:
-        spectrum, no_theorem = None, str(err)
-    else:
-        no_theorem = ""
-        if not spectrum.provenance.guaranteed:
-            no_theorem = str(spectrum.provenance.guarantee or "no theorem applies")
-            spectrum = None
-    report = verify(m)
+    answer = a.answer()
+    spectrum = answer.spectrum if answer.guaranteed else None
     inversion: bool | None = None
     if m.dimension <= DENSE_LIMIT and sum(counts) <= DENSE_SETS:
         inversion = _dense_inversion(m, poly)
     return _Facts(
         m,
-        verdict,
-        [(int(a), int(b)) for a, b in edges],
+        a.verdict,
+        edges,
         counts,
         coefficients,
         exact,
         poly._repr_latex_().strip("$"),
         spectrum,
-        no_theorem,
-        report,
+        "" if answer.guaranteed else answer.message,
+        a.report(),
         inversion,
+        answer,
     )
 
 
@@ -343,7 +338,11 @@ def _dense_inversion(m: Model, poly: Any) -> bool:
 def _intro(f: _Facts) -> list[Cell]:
     m = f.model
     status = (
-        "A theorem guarantees this model's free spectrum; every number below is recomputed "
+        "A theorem guarantees the free spectrum of this model's ground sector (the sector of "
+        "its conserved cycle strings that holds the lowest level); every number below is "
+        "recomputed and asserted by the code cells."
+        if f.spectrum is not None and f.answer.route == "sector"
+        else "A theorem guarantees this model's free spectrum; every number below is recomputed "
         "and asserted by the code cells."
         if f.spectrum is not None
         else "**No theorem guarantees a free spectrum for this model.** The cells state the "
@@ -515,15 +514,27 @@ def _spectrum_cells(f: _Facts) -> list[Cell]:
         return [Cell("markdown", md), Cell("code", code)]
     n = m.states
     prov = sp.provenance
+    ans = f.answer
+    sector = ans.route == "sector"
     rows = ["| $k$ | root $y_k$ | $\\eta_k$ | bound on $\\eta_k$ |", "| --- | --- | --- | --- |"]
     for k, (y, eta, b) in enumerate(
         zip(sp.roots, sp.quasi_energies, sp.error_bounds, strict=True), start=1
     ):
         rows.append(f"| {k} | {_num(complex(y))} | {_num(eta)} | {_bound(float(b))} |")
+    where = ""
+    if sector:
+        values = ", ".join(
+            f"{g} = {v:+d}" for g, v in zip(ans.cycle_strings, ans.cycle_values, strict=True)
+        )
+        where = (
+            "The single polynomial is not guaranteed here; the model is free sector by sector "
+            f"of its conserved cycle strings. Sector: {ans.selection}, with {values}; "
+            "$y_k = 1 / \\eta_k^2$ stands for the Majorana energies of that sector.\n\n"
+        )
     md = (
         "## Roots and quasi-energies\n\n"
         "$$P(y_k) = 0, \\qquad \\eta_k^N = 1 / y_k$$\n\n"
-        f"Theorem: {prov.guarantee}. Root finder: {prov.path}; "
+        f"{where}Theorem: {prov.guarantee}. Root finder: {prov.path}; "
         f"bounds: {prov.bounds}.\n\n"
         + "\n".join(rows)
         + "\n\nTolerance of the check below: the exported bound plus the recomputed bound "
@@ -533,20 +544,31 @@ def _spectrum_cells(f: _Facts) -> list[Cell]:
         "order)."
     )
     tol_exported = _tolerances(sp)
-    code = (
-        "sp = fl.free_spectrum(m)\n"
-        "assert sp.provenance.guaranteed, sp.provenance.guarantee\n"
-        f"expected_eta = np.array({_array_literal(sp.quasi_energies)})\n"
+    call = "fl.free_spectrum(m" + (', sector="ground")' if sector else ")")
+    label = (
+        'assert tuple(sp.provenance.sector["cycle_operators"]) == '
+        f"{tuple(ans.cycle_strings)!r}\n"
+        'assert tuple(sp.provenance.sector["cycle_values"]) == '
+        f"{tuple(ans.cycle_values)!r}\n"
+    )
+    roots = (
         f"expected_y = np.array({_array_literal(complex(y) for y in sp.roots)})\n"
+        f"y_tol = 2 * {n} * np.abs(expected_y) * tol / np.abs(expected_eta)\n"
+        "y_error = np.abs(np.asarray(sp.roots, dtype=complex) - expected_y)\n"
+        'assert np.all(y_error <= y_tol), ("roots moved", y_error, y_tol)\n'
+    )
+    code = (
+        f"sp = {call}\n"
+        "assert sp.provenance.guaranteed, sp.provenance.guarantee\n"
+        + (label if sector else "")
+        + f"expected_eta = np.array({_array_literal(sp.quasi_energies)})\n"
         f"exported_tol = np.array({_array_literal(float(t) for t in tol_exported)})\n"
         "assert len(sp.quasi_energies) == len(expected_eta), len(sp.quasi_energies)\n"
         "tol = exported_tol + np.asarray(sp.error_bounds, dtype=float)\n"
         "eta_error = np.abs(sp.quasi_energies - expected_eta)\n"
         'assert np.all(eta_error <= tol), ("quasi-energies moved", eta_error, tol)\n'
-        f"y_tol = 2 * {n} * np.abs(expected_y) * tol / np.abs(expected_eta)\n"
-        "y_error = np.abs(np.asarray(sp.roots, dtype=complex) - expected_y)\n"
-        'assert np.all(y_error <= y_tol), ("roots moved", y_error, y_tol)\n'
-        "print(sp)"
+        + ("" if sector else roots)  # on a sector, y_k = 1 / eta_k^2 adds nothing
+        + "print(sp)"
     )
     return [Cell("markdown", md), Cell("code", code)]
 
@@ -674,13 +696,19 @@ def _latex_section(f: _Facts) -> str:
     return "\n".join(out)
 
 
-def worked_calculation(m: Model, steps: str | Iterable[str] = "all") -> WorkedCalculation:
+def worked_calculation(
+    m: Model | Analysis, steps: str | Iterable[str] = "all"
+) -> WorkedCalculation:
     """Every step of a model's solution as cells whose code recomputes and asserts it.
 
     Parameters
     ----------
-    m : Model
-        Numeric couplings (substitute symbols first with ``m.subs``).
+    m : Model or Analysis
+        Numeric couplings (substitute symbols first with ``m.subs``).  A Model is analysed
+        first (:func:`freeladder.analyze`); every number comes from the analysis, so after
+        ``a.report()`` no check runs again, and the spectrum is the one
+        :meth:`Analysis.answer` decided (for a Jordan-Wigner model with cycles, its ground
+        sector).
     steps : "all" or iterable of str
         Which steps to include, from :data:`STEPS`; "model" is always included.
 
@@ -701,9 +729,8 @@ def worked_calculation(m: Model, steps: str | Iterable[str] = "all") -> WorkedCa
     Tolerances come from the stated error bounds: a recomputed quasi-energy must lie within
     the exported bound plus the recomputed bound (plus a few units in the last place) of the
     exported value; levels add the bounds of their quasi-energies; exact coefficients must be
-    equal.  When no theorem guarantees the spectrum (``fl.free_spectrum`` refuses, or marks
-    its result as not guaranteed) the cells state the verdict and the probes and assert no
-    spectrum.
+    equal.  When :meth:`Analysis.answer` refuses, the cells state the verdict, the reason and
+    the probes and assert no spectrum.
 
     References
     ----------
@@ -718,8 +745,16 @@ def worked_calculation(m: Model, steps: str | Iterable[str] = "all") -> WorkedCa
     >>> wc[0].kind, wc[1].kind
     ('markdown', 'code')
     """
-    if not isinstance(m, Model):
-        raise TypeError(f"worked_calculation needs a Model, got {type(m).__name__}")
+    if not isinstance(m, (Model, Analysis)):
+        raise TypeError(f"worked_calculation needs a Model or an Analysis, got {type(m).__name__}")
+    if isinstance(steps, str):
+        return analyze(m).worked(steps)
+    return analyze(m).worked(tuple(steps))
+
+
+def build_worked(a: Analysis, steps: str | Sequence[str] = "all") -> WorkedCalculation:
+    """The part behind :func:`worked_calculation` (:meth:`Analysis.worked` keeps it)."""
+    m = a.model
     if len(m) == 0:
         raise ValueError("the model has no terms: there is nothing to work out")
     if m.is_symbolic:
@@ -737,7 +772,7 @@ def worked_calculation(m: Model, steps: str | Iterable[str] = "all") -> WorkedCa
         unknown = chosen - set(STEPS)
         if unknown:
             raise ValueError(f"unknown step(s) {sorted(unknown)}; choose from {STEPS}")
-    facts = _collect(m)
+    facts = _collect(a)
     cells = _intro(facts)
     builders = {
         "verdict": _verdict_cells,

@@ -24,7 +24,6 @@ from .polynomial import (
     MAX_ROOT_DEGREE,
     ChainData,
     ExclusionPolynomial,
-    PolynomialRoots,
     SumRules,
     exclusion_polynomial,
     independence_graph,
@@ -43,7 +42,7 @@ from .real import (
 )
 from .result import (
     BeyondFloatError,
-    RootResult,
+    RootTable,
 )
 
 __all__ = [
@@ -52,10 +51,9 @@ __all__ = [
     "ChainValues",
     "ExclusionPolynomial",
     "MAX_ROOT_DEGREE",
-    "PolynomialRoots",
     "ROOT_METHODS",
     "RootMethod",
-    "RootResult",
+    "RootTable",
     "SumRules",
     "aberth_chain_roots",
     "certified_complex_roots",
@@ -81,3 +79,17 @@ __all__ = [
     "solve_general",
     "sum_rules",
 ]
+
+
+def __getattr__(name: str) -> object:
+    """Deprecated aliases (one release): ``RootResult``, ``PolynomialRoots``."""
+    import warnings
+
+    if name in ("RootResult", "PolynomialRoots"):
+        warnings.warn(
+            f"{name} is deprecated: the root result type is now called RootTable",
+            DeprecationWarning,
+            stacklevel=2,
+        )
+        return RootTable
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

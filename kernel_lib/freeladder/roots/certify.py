@@ -2,63 +2,75 @@
 
 API
 ---
-``certify_chain_roots(weights, reach, roots, errors=None, *, weight_bounds=None) -> RootResult``
+``certify_chain_roots(weights, reach, roots, errors=None, *, weight_bounds=None) -> RootTable``
     Proves that each interval ``[lower_k, upper_k]`` around ``roots[k]`` holds exactly one root
     of the chain polynomial ``P_M``, by certified sign changes of ``P_M`` plus the known root
     count ``S``.  ``variable="y"``, method ``"chain-certified"``; ``rigorous`` is True only
     when every interval is proved; ``details`` holds ``lower``, ``upper``, ``sign_change``.
-``certified_roots(coefficients) -> RootResult``
-    All complex roots of an exact coefficient list (int / Fraction / fmpq; constant term
+``certified_roots(coefficients, imag=None) -> RootTable``
+    The one certified isolation of exact polynomials: all complex roots of an exact
+    coefficient list (int / Fraction / fmpq, real and optional imaginary parts; constant term
     first), as isolating balls (python-flint ``acb_poly.roots`` on each squarefree factor, at
-    bounded precision); method ``"exact-certified"``, ``details["multiplicities"]``.
+    a precision doubled until it succeeds); method ``"exact-certified"``, distinct values
+    with ``multiplicities``.  ``ExclusionPolynomial.roots`` and
+    ``roots.complex.certified_complex_roots`` are entry points to it.
 
 The chain certificate
 ---------------------
 ``P_M`` has degree exactly ``S`` for positive weights (its top coefficient is a sum of
 positive products).  If ``S`` pairwise disjoint intervals each show a certified sign change of
 ``P_M`` at their two ends, each holds an odd number of roots, hence exactly one.  The sign of
-``P_M(y) = prod_k r_k`` comes from the ratios ``r_k = P_k / P_{k-1}``,
+``P_M(y)`` comes from the linear recurrence
 
-    r_k = 1 - y w_k / (r_{k-1} r_{k-2} ... r_{k-p}),      r_k = 1 for k <= 0,
+    P_k = P_{k-1} - y w_k P_{k-p-1},      P_k = 1 for k <= 0,
 
-evaluated in interval arithmetic at FIXED working precision: float64, each ``1 / r_k`` kept
-as a sign and a magnitude interval, every bound rounded outward by ``2**-51`` relative
-(round-to-nearest is off by at most ``2**-53``, so each interval provably holds the exact
-value; magnitudes below ``2**-960`` count as undecided, away from underflow), in compiled
-code (numba) over 64 end points per pass, O(M) per end point.  For reach 1 each step is a
-monotone function of one interval, so the enclosure stays at rounding level wherever the
-exact ratio map contracts; an end point too close to the root (closer than the rounding
-error amplified along the chain) stays undecided, and widening the interval decides it.
-For reach p >= 2 the p previous ratios are enclosed by a box that forgets their correlation
-(the wrapping effect): the width was measured to grow by about 1.26 per step on random
-reach-2 chains, so most end points of long chains stay undecided in float64.  Those go to
-the linear recurrence ``P_k = P_{k-1} - y w_k P_{k-p-1}`` in python-flint arb balls,
-doubling the precision from 64 bits up to ``max_precision`` (the precision needed grows with
-M: this part does not scale).  Still undecided (for reach 1 at once), an interval is widened
-(by 4, never past 0.45 of the distance to a neighbour) and tested again; an interval that
-never shows a sign change is reported, never passed.  Nothing here uses the root-count
-property of ``roots.chain_count_below``.
-The weights may be given as intervals (``weight_bounds``), so that the rounding of
-``w = c^N`` from the couplings is covered too.
+run in float64 with every rounding error bounded (and every weight an interval, so that the
+rounding of ``w = c^N`` is covered too), in compiled code (numba) over all end points at once,
+O(M) per end point.  Plain interval arithmetic on this recurrence, or on the ratios
+``P_k / P_{k-1}``, forgets how the p + 1 values of the state are correlated (the wrapping
+effect): the boxes were measured to widen about 1.26 times per step on random reach-2
+chains, so that long chains could be decided only in arb at a precision growing with M.
+Here the state is enclosed in a frame that turns with the recurrence (Lohner's method): the
+state is ``c + A e + delta``, a float64 centre, a basis ``A`` carried along by the
+recurrence, a box of coefficients ``e`` and a box ``delta`` collecting the bounded rounding
+errors; every 6 steps ``A`` is re-orthogonalised (Gram-Schmidt) and the boxes are moved into
+the new basis through a proved bound on the inverse of the computed orthogonal factor.  The
+enclosure then grows like the recurrence itself, and the end points at the first distance
+(eight error estimates, at least 64 ulps) are decided for most roots at 10^4 terms.  The
+state is balanced first by exact powers of two (``Q_k = P_k / 2**(e k)``, so that the
+coefficients are near 1 when ``y w`` is large), and where ``y w`` is large the frame is
+orthonormal relative to each component's size (the recurrence then splits into p + 1
+interleaved sequences of very different sizes).  For reach 1 the ratios
+``r_k = P_k / P_{k-1} = 1 - y w_k / r_{k-1}`` are tried first as outward-rounded float64
+intervals: each step is a monotone function of one interval, so they stay at rounding level
+wherever the ratio map contracts, tighter than the frame for the largest roots.  An
+undecided end point (too close to the root for the rounding errors accumulated along the
+chain) makes its interval widen (by 4, never past 0.45 of the distance to a neighbour) and be
+tested again; intervals still undecided go to the linear recurrence in python-flint arb balls
+at doubling precision (bounded work); an interval that never shows a sign change is reported,
+never passed.  Nothing here uses the root-count property of ``roots.chain_count_below``.
 
 References
 ----------
 R. E. Moore, R. B. Kearfott and M. J. Cloud, Introduction to Interval Analysis, SIAM (2009)
-(outward-rounded interval arithmetic).  F. Johansson, "Arb: efficient arbitrary-precision
-midpoint-radius interval arithmetic", IEEE Trans. Comput. 66, 1281 (2017).
+(outward-rounded interval arithmetic).  R. J. Lohner, "Enclosing the solutions of ordinary
+initial and boundary value problems", in Computer Arithmetic, Teubner (1987), 255-286 (the
+moving orthogonal frame against the wrapping effect).  F. Johansson, "Arb: efficient
+arbitrary-precision midpoint-radius interval arithmetic", IEEE Trans. Comput. 66, 1281 (2017).
 """
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from fractions import Fraction
 from typing import Any
 
 import flint
 import numpy as np
-from numba import njit, prange
 
+from ..base.lazy import njit, prange
 from .real import chain_root_count, check_chain_weights
-from .result import RootResult
+from .result import RootTable
 
 __all__ = ["certified_roots", "certify_chain_roots"]
 
@@ -67,8 +79,9 @@ _EPS = float(np.finfo(np.float64).eps)
 
 _DOWN = 1.0 - 2.0**-51  # v * _DOWN rounds below the exact value that v approximates
 _UP = 1.0 + 2.0**-51
-_SMALL = 2.0**-960  # magnitudes below this count as undecided (far from underflow)
-_LANES = 64  # points that share one pass over the chain
+_SMALL = 2.0**-960  # ratio magnitudes below this count as undecided (far from underflow)
+_LANES = 64  # points that share one compiled task
+_ARB_WORK = 2e8  # largest (points x terms x bits) the arb fallback may take
 
 
 @njit(cache=True, boundscheck=False, error_model="numpy")
@@ -139,6 +152,251 @@ def _interval_signs(
     return out
 
 
+_FOLD = 6  # steps between two re-orthogonalisations of the enclosure's basis
+_SLACK = 1.0 + 64.0 * _EPS  # covers the rounding of the operations of each error bound
+_FLOOR = 2.0**-1000  # absolute floor on every error bound (values stay near 1 by rescaling)
+_SUB = 2.0**-1060  # above the absolute rounding error of a result in the subnormal range
+_RESCALE = 2.0**300
+_ROWSPAN = 2.0**-30  # largest ratio of two row scales (large y w only)
+
+
+@njit(cache=True, boundscheck=False, error_model="numpy")
+def _frame_block(
+    wlo: np.ndarray,
+    whi: np.ndarray,
+    p: int,
+    log2_w: float,
+    ys: np.ndarray,
+    start: int,
+    out: np.ndarray,
+) -> None:  # pragma: no cover - compiled
+    """Signs of ``P_M`` at ``ys[start:start + _LANES]``: the linear recurrence enclosed in a
+    moving orthonormal frame (Lohner's method), for every weight vector in the box.
+
+    The state ``v = (P_k, ..., P_{k-p})`` is enclosed as ``c + A e + delta`` with ``e`` in the
+    box ``|e_i| <= rho_i`` and ``|delta_i| <= d_i``.  A step ``v' = T v`` (one new row,
+    ``P_k = P_{k-1} - a_k P_{k-p-1}``, ``a_k = y w_k`` an interval) keeps ``c`` and ``A``
+    in float64 and adds every rounding error, bounded, to ``d``.  Every ``_FOLD`` steps the
+    frame is re-orthogonalised relative to the size of each component: with ``S`` the
+    diagonal of powers of two that bring ``c`` near 1 (exact), ``S A = Q R`` (Gram-Schmidt in
+    float64), ``G = Q^T`` and
+    ``F = G Q - I`` with ``||F||_inf <= f < 1/4`` bounded, so that
+    ``Q^{-1} = (I + F)^{-1} G``; the new basis is ``S^{-1} Q`` and
+    ``e' = Q^{-1} S (A e + delta)`` lies in the box ``x + f / (1 - f) max(x)`` with
+    ``x = |G S A| rho + |G| S d``.  The box then turns with the
+    recurrence instead of wrapping it coordinate by coordinate, so it grows like the
+    recurrence itself.  Rows of ``A``, ``c`` and ``d`` are kept in a ring (the row of
+    ``P_{k-p-1}`` becomes the row of ``P_k``); ``c``, ``rho`` and ``d`` are rescaled by exact
+    powers of two.  A point whose box reaches 0 at the end, or whose frame check fails, is
+    undecided (0).
+    """
+    n = p + 1
+    nl = _LANES
+    n_pts = min(nl, ys.size - start)
+    y = np.empty(nl)
+    mu = np.empty(nl)
+    shrink = np.empty(nl)
+    span = np.empty(nl)
+    c = np.empty((n, nl))
+    a_mat = np.zeros((n, n, nl))
+    rho = np.zeros((n, nl))
+    d = np.zeros((n, nl))
+    q = np.empty((n, n, nl))
+    scl = np.empty((n, nl))
+    x = np.empty((n, nl))
+    f = np.empty(nl)
+    acc = np.empty(nl)
+    dab = np.empty(nl)
+    top = np.empty(nl)
+    am = np.empty(nl)
+    ar = np.empty(nl)
+    failed = np.zeros(nl)
+    for j in range(nl):
+        y[j] = ys[start + min(j, n_pts - 1)]
+        if not y[j] > 0.0:
+            failed[j] = 1.0  # the outward rounding of a_k below assumes y > 0
+            y[j] = 1.0
+        # balance: Q_k = P_k / 2**(e k) obeys Q_k = 2**-e Q_{k-1} - a_k 2**(-e (p+1)) Q_{k-p-1},
+        # with coefficients near 1 when y w is large (exact scalings; the sign is that of P)
+        e = max(0, int(np.round((np.log2(y[j]) + log2_w) / n)))
+        mu[j] = 2.0**-e
+        shrink[j] = 2.0 ** (-e * n)
+        # rows scaled apart only where the balanced recurrence splits into p + 1 interleaved
+        # sequences of very different sizes (large y w); elsewhere one scale measured better
+        span[j] = _ROWSPAN if e >= 2 else 1.0
+        for i in range(n):  # Q_{-i} = 2**(e i): slot (-i) % n holds Q_{-i}, slot 0 is Q_0
+            c[(n - i) % n, j] = 2.0 ** (e * i)
+            a_mat[i, i, j] = 1.0
+    head = 0  # ring slot of P_{k-1}; slot (head + 1) % n holds P_{k-p-1}
+    for k in range(wlo.size):
+        old = (head + 1) % n
+        for j in range(nl):
+            a_lo = y[j] * wlo[k] * shrink[j] * _DOWN  # y > 0 and w > 0 (checked)
+            a_hi = y[j] * whi[k] * shrink[j] * _UP
+            am[j] = 0.5 * (a_lo + a_hi)
+            ar[j] = max(a_hi - am[j], am[j] - a_lo) * _UP + _FLOOR
+            t = am[j] * c[old, j]
+            cn = mu[j] * c[head, j] - t
+            acc[j] = (abs(cn) + abs(t)) * _EPS + ar[j] * abs(c[old, j])  # rounding errors
+            dab[j] = cn
+        for col in range(n):
+            for j in range(nl):
+                tj = am[j] * a_mat[old, col, j]
+                mj = mu[j] * a_mat[head, col, j] - tj
+                bound = (abs(mj) + abs(tj)) * _EPS + ar[j] * abs(a_mat[old, col, j]) + _SUB
+                acc[j] += bound * rho[col, j]
+                a_mat[old, col, j] = mj
+        for j in range(nl):
+            d[old, j] = (mu[j] * d[head, j] + (am[j] + ar[j]) * d[old, j] + acc[j] * _SLACK) * (
+                _SLACK
+            ) + _FLOOR
+            c[old, j] = dab[j]
+        head = old
+        if (k + 1) % _FOLD != 0 and k + 1 != wlo.size:
+            continue
+        # rescale c, rho, d by an exact power of two (exact unless a component underflows:
+        # _FLOOR covers that), then fold the boxes into a new frame
+        for j in range(nl):
+            big = 0.0
+            for i in range(n):
+                big = max(big, abs(c[i, j]))
+            g = 1.0
+            if big > _RESCALE:
+                g = 1.0 / _RESCALE
+            elif big < 1.0 / _RESCALE:
+                g = _RESCALE
+            top[j] = big * g
+            for i in range(n):
+                c[i, j] *= g
+                rho[i, j] = rho[i, j] * g + _FLOOR
+                d[i, j] = d[i, j] * g + _FLOOR
+        # row scales: powers of two that bring every component of c near 1 (exact)
+        for i in range(n):
+            for j in range(nl):
+                mag = max(abs(c[i, j]), top[j] * span[j])
+                scl[i, j] = 2.0 ** -int(np.floor(np.log2(mag))) if mag > 0.0 else 1.0
+                d[i, j] = d[i, j] * scl[i, j] + _FLOOR
+                for col in range(n):
+                    a_mat[i, col, j] *= scl[i, j]
+        # Q from modified Gram-Schmidt on the columns of S A
+        for col in range(n):
+            for i in range(n):
+                for j in range(nl):
+                    q[i, col, j] = a_mat[i, col, j]
+            for prev in range(col):
+                acc[:] = 0.0
+                for i in range(n):
+                    for j in range(nl):
+                        acc[j] += q[i, prev, j] * q[i, col, j]
+                for i in range(n):
+                    for j in range(nl):
+                        q[i, col, j] -= acc[j] * q[i, prev, j]
+            acc[:] = 0.0
+            for i in range(n):
+                for j in range(nl):
+                    acc[j] += q[i, col, j] * q[i, col, j]
+            for j in range(nl):
+                acc[j] = 1.0 / np.sqrt(acc[j])
+            for i in range(n):
+                for j in range(nl):
+                    q[i, col, j] *= acc[j]
+        # f >= ||Q^T Q - I||_inf, rounding of the products included
+        x[:, :] = 0.0  # row sums of |Q^T Q - I| (symmetric: each pair once)
+        for r in range(n):
+            for col in range(r, n):
+                acc[:] = 0.0
+                dab[:] = 0.0
+                for i in range(n):
+                    for j in range(nl):
+                        acc[j] += q[i, r, j] * q[i, col, j]
+                        dab[j] += abs(q[i, r, j] * q[i, col, j])
+                for j in range(nl):
+                    dot = acc[j] - 1.0 if r == col else acc[j]
+                    bound = abs(dot) + (n + 1) * _EPS * dab[j] + n * _SUB
+                    x[r, j] += bound
+                    if col != r:
+                        x[col, j] += bound
+        f[:] = 0.0
+        for r in range(n):
+            for j in range(nl):
+                f[j] = max(f[j], x[r, j])
+        for j in range(nl):
+            f[j] *= _SLACK
+            if not f[j] < 0.25:
+                failed[j] = 1.0
+                f[j] = 0.0  # keep the arithmetic finite; the point is reported undecided
+        # x = |Q^T S A| rho + |Q^T| S d, rounding of the products included
+        for r in range(n):
+            x[r, :] = 0.0
+            for col in range(n):
+                acc[:] = 0.0
+                dab[:] = 0.0
+                for i in range(n):
+                    for j in range(nl):
+                        acc[j] += q[i, r, j] * a_mat[i, col, j]
+                        dab[j] += abs(q[i, r, j] * a_mat[i, col, j])
+                for j in range(nl):
+                    x[r, j] += (abs(acc[j]) + (n + 1) * _EPS * dab[j] + n * _SUB) * rho[col, j]
+            for i in range(n):
+                for j in range(nl):
+                    x[r, j] += (abs(q[i, r, j]) * d[i, j] + _SUB) * (1.0 + (n + 1) * _EPS)
+        for j in range(nl):
+            big = 0.0
+            for r in range(n):
+                x[r, j] *= _SLACK
+                big = max(big, x[r, j])
+            top[j] = big * (f[j] / (1.0 - f[j])) * _SLACK
+        for r in range(n):
+            for j in range(nl):
+                rho[r, j] = (x[r, j] + top[j]) * _SLACK + _FLOOR
+                for col in range(n):
+                    a_mat[r, col, j] = q[r, col, j] / scl[r, j]
+        for j in range(nl):  # S^-1 Q is exact unless an entry falls below 2**-1022
+            acc[j] = 0.0
+            for col in range(n):
+                acc[j] += rho[col, j]
+            for r in range(n):
+                d[r, j] = acc[j] * _SUB * _SLACK + _FLOOR
+    for j in range(n_pts):
+        # P_M in c[head] + (A e)[head] + delta[head]
+        rad = 0.0
+        for col in range(n):
+            rad += abs(a_mat[head, col, j]) * rho[col, j]
+        rad = (rad * (1.0 + (n + 1) * _EPS) + d[head, j]) * _SLACK + _FLOOR
+        value = c[head, j]
+        if failed[j] != 0.0 or not (np.isfinite(rad) and np.isfinite(value)) or abs(value) <= rad:
+            out[start + j] = 0
+        else:
+            out[start + j] = 1 if value > 0.0 else -1
+
+
+@njit(cache=True, parallel=True)
+def _frame_signs(
+    wlo: np.ndarray, whi: np.ndarray, p: int, ys: np.ndarray
+) -> np.ndarray:  # pragma: no cover - compiled
+    out = np.zeros(ys.size, dtype=np.int64)
+    log2_w = np.mean(np.log2(wlo))
+    for b in prange((ys.size + _LANES - 1) // _LANES):
+        _frame_block(wlo, whi, p, log2_w, ys, b * _LANES, out)
+    return out
+
+
+def _float_signs(wlo: np.ndarray, whi: np.ndarray, p: int, ys: np.ndarray) -> np.ndarray:
+    """Certified signs of ``P_M`` at ``ys`` in float64 (0 where undecided).
+
+    Reach 1: the ratio intervals first (each step monotone in one interval: tight), the frame
+    for what they leave; reach p >= 2: the frame (ratio boxes wrap).
+    """
+    ys = np.ascontiguousarray(ys, dtype=np.float64)
+    if p > 1:
+        return _frame_signs(wlo, whi, p, ys)
+    signs = _interval_signs(wlo, whi, p, ys)
+    todo = np.nonzero(signs == 0)[0]
+    if todo.size:
+        signs[todo] = _frame_signs(wlo, whi, p, ys[todo])
+    return signs
+
+
 def _arb_signs(
     wlo: np.ndarray,
     whi: np.ndarray,
@@ -179,31 +437,6 @@ def _arb_signs(
         flint.ctx.prec = saved
 
 
-def _signs(
-    wlo: np.ndarray,
-    whi: np.ndarray,
-    p: int,
-    ys: np.ndarray,
-    max_precision: int,
-    power_of: tuple[np.ndarray, int] | None,
-) -> tuple[np.ndarray, int]:
-    """Certified signs of ``P_M`` at ``ys``: float64 intervals on the ratios, then arb.
-
-    Returns the signs (0 where still undecided) and the largest precision used (bits).
-    """
-    signs = _interval_signs(wlo, whi, p, np.ascontiguousarray(ys, dtype=np.float64))
-    precision = 53
-    prec = 64
-    while prec <= max_precision:
-        todo = np.nonzero(signs == 0)[0]
-        if todo.size == 0 or p == 1:
-            break  # reach 1: widening decides them much faster than the Python loop
-        precision = prec
-        signs[todo] = _arb_signs(wlo, whi, p, ys[todo], prec, power_of)
-        prec *= 2
-    return signs, precision
-
-
 def _weight_box(
     w: np.ndarray, weight_bounds: tuple[Any, Any] | None
 ) -> tuple[np.ndarray, np.ndarray]:
@@ -229,7 +462,7 @@ def certify_chain_roots(
     indices: Any = None,
     widenings: int = 10,
     max_precision: int = 4096,
-) -> RootResult:
+) -> RootTable:
     """Prove that an interval around each given root holds exactly one root of ``P_M``.
 
     Parameters
@@ -252,17 +485,19 @@ def certify_chain_roots(
         Position of each given root among all S (ascending); by default the largest ones.
     widenings : int
         Times an interval without a sign change is widened (by 4, never past 0.45 of the
-        distance to a neighbour) before it is reported as failed.
+        distance to a neighbour) before the arb fallback, then the report as failed.
     max_precision : int
-        Largest arb precision (bits) tried for a sign the float64 intervals leave undecided.
+        Largest arb precision (bits) of the fallback for intervals the float64 enclosures
+        leave undecided after all widenings.
 
     Returns
     -------
-    RootResult
+    RootTable
         ``values`` the interval midpoints, ``error_bounds`` their half-widths (rounded up),
         ``rigorous`` True only when all S roots were given and every interval is proved to
         hold exactly one root.  ``details``: ``lower``, ``upper``, ``sign_change`` (bool per
-        interval: it holds an odd number of roots), ``precision`` (largest bits used).
+        interval: it holds an odd number of roots), ``precision`` (largest bits used: 53
+        unless the arb fallback ran).
 
     Raises
     ------
@@ -307,18 +542,23 @@ def certify_chain_roots(
     todo = np.arange(y.size)
     for attempt in range(widenings + 1):
         lower[todo], upper[todo] = y[todo] - half[todo], y[todo] + half[todo]
-        ends = np.concatenate([lower[todo], upper[todo]])
-        signs, used = _signs(wlo, whi, p, ends, max_precision, power_of)
-        precision, evaluations, rounds = (
-            max(precision, used),
-            evaluations + 2 * todo.size,
-            rounds + 1,
-        )
+        signs = _float_signs(wlo, whi, p, np.concatenate([lower[todo], upper[todo]]))
+        evaluations, rounds = evaluations + 2 * todo.size, rounds + 1
         change[todo] = (signs[: todo.size] * signs[todo.size :]) < 0
         todo = todo[~change[todo]]
         if todo.size == 0 or attempt == widenings:
             break
         half[todo] = np.minimum(4.0 * half[todo], room[todo])
+    # Last resort for the few intervals left (e.g. roots too close to widen): the linear
+    # recurrence in arb balls at doubling precision; bounded work, else they stay reported.
+    prec = 64
+    while todo.size and prec <= max_precision and todo.size * w.size * prec <= _ARB_WORK:
+        ends = np.concatenate([lower[todo], upper[todo]])
+        signs = _arb_signs(wlo, whi, p, ends, prec, power_of)
+        precision, evaluations, rounds = prec, evaluations + 2 * todo.size, rounds + 1
+        change[todo] = (signs[: todo.size] * signs[todo.size :]) < 0
+        todo = todo[~change[todo]]
+        prec *= 2
     disjoint = bool(lower[0] > 0 and np.all(upper[:-1] < lower[1:]))
     certified = bool(np.all(change)) and disjoint and y.size == total
     if certified:
@@ -337,7 +577,7 @@ def certify_chain_roots(
         )
     mid = 0.5 * lower + 0.5 * upper
     radius = np.maximum(upper - mid, mid - lower) * (1.0 + 4 * _EPS)
-    return RootResult(
+    return RootTable(
         values=mid,
         error_bounds=radius,
         variable="y",
@@ -347,7 +587,7 @@ def certify_chain_roots(
         method="chain-certified",
         evaluations=evaluations,
         count=total,
-        iterations=rounds,
+        sweeps=rounds,
         indices=np.arange(total - y.size, total) if indices is None else indices,
         details={"lower": lower, "upper": upper, "sign_change": change, "precision": precision},
     )
@@ -367,101 +607,169 @@ def _to_fmpq(c: Any, j: int) -> flint.fmpq:
 
 
 def certified_roots(
-    coefficients: Any, *, precision: int = 106, max_precision: int = 8192
-) -> RootResult:
+    coefficients: Sequence[Any],
+    imag: Sequence[Any] | None = None,
+    *,
+    tolerance: float | None = None,
+    precision: int = 106,
+    max_precision: int = 8192,
+    variable: str = "y",
+) -> RootTable:
     """Isolating balls for every complex root of a polynomial with exact coefficients.
+
+    The one certified isolation of the library: :meth:`freeladder.ExclusionPolynomial.roots`,
+    :func:`freeladder.roots.certified_complex_roots` and the ``"exact-certified"`` root
+    method all come here.
 
     Parameters
     ----------
     coefficients : sequence of int, Fraction, fmpq
-        Constant term first.  The polynomial must not be constant.
+        Constant term first (the real parts when ``imag`` is given).  The polynomial must not
+        be constant.
+    imag : sequence of int, Fraction, fmpq, optional
+        Imaginary parts of the coefficients (Gaussian rationals); None for real ones.
+    tolerance : float, optional
+        Absolute radius the balls are refined to (at most ``2**-precision`` in any case).
     precision : int
-        Starting working precision in bits; the balls are refined at least to it.
+        Starting working precision in bits (at least twice the coefficients' bit size plus
+        64 is used).
     max_precision : int
-        Largest working precision tried (doubling from ``precision``): a bounded search.
+        Largest precision tried (doubling from the start) before giving up.
+    variable : str
+        The name of the variable, for messages.
 
     Returns
     -------
-    RootResult
-        ``variable="y"``, method ``"exact-certified"``, ``rigorous=True``; ``values`` the ball
-        midpoints (complex, each root repeated by its multiplicity), ``error_bounds`` proved
-        bounds on ``|root - midpoint|`` (the float rounding of the midpoint included);
-        ``details["multiplicities"]`` per value, ``details["precision"]`` bits.
+    RootTable
+        ``variable="y"``, method ``"exact-certified"``, ``rigorous=True``; ``values`` the
+        distinct roots (ball midpoints rounded to float64, ordered by modulus, then argument),
+        ``multiplicities`` how often each counts (:meth:`RootTable.repeated` lists each root
+        as often), ``error_bounds`` proved bounds on the distance from each value to its
+        root, ``count`` the degree, ``details["precision"]`` the bits used.
 
     Raises
     ------
     ValueError
-        A coefficient that is not exact, a constant polynomial, or roots that cannot be
-        isolated within ``max_precision`` bits (roots closer than about ``2**-max_precision``
-        relative); the message says which.
+        A coefficient that is not exact, the zero or a constant polynomial, a repeated root
+        of a polynomial with non-real coefficients, or roots that cannot be isolated within
+        ``max_precision`` bits (roots closer than about ``2**-max_precision`` relative); the
+        message says which.
 
     Notes
     -----
-    Squarefree factorisation over the rationals (python-flint ``fmpq_poly.factor_squarefree``,
-    exact), then ``acb_poly.roots`` on each factor, which returns balls proved to be disjoint
-    and to hold one root each.  Practical up to a few hundred degrees.
+    Rational coefficients are split into squarefree factors exactly (python-flint
+    ``fmpq_poly.factor_squarefree``), so multiplicities are found; each factor (or the
+    Gaussian-rational polynomial, which must be squarefree) goes to ``acb_poly.roots``, which
+    returns balls proved to be disjoint and to hold one root each, at a precision doubled
+    until it succeeds.  The error bound of a value is an upper bound, computed in ball
+    arithmetic, on the distance from the float64 value to any point of its ball.  Practical up
+    to a few hundred degrees.
 
     References
     ----------
-    F. Johansson, IEEE Trans. Comput. 66, 1281 (2017).
+    F. Johansson, "Arb: efficient arbitrary-precision midpoint-radius interval arithmetic",
+    IEEE Trans. Comput. 66, 1281 (2017).
 
     Examples
     --------
     >>> r = certified_roots([1, -3, 1])  # 1 - 3y + y**2, roots (3 -+ sqrt 5) / 2
-    >>> np.allclose(sorted(r.values.real), [(3 - 5**0.5) / 2, (3 + 5**0.5) / 2])
+    >>> np.allclose(r.values.real, [(3 - 5**0.5) / 2, (3 + 5**0.5) / 2])
     True
+    >>> certified_roots([1, -2, 1]).multiplicities  # (1 - y)**2
+    array([2])
     """
-    coeffs = [_to_fmpq(c, j) for j, c in enumerate(coefficients)]
-    poly = flint.fmpq_poly(coeffs)
-    if poly.degree() < 1:
-        raise ValueError("the polynomial is constant: it has no roots to isolate")
+    re_q = [_to_fmpq(c, j) for j, c in enumerate(coefficients)]
+    im_q = (
+        [flint.fmpq(0)] * len(re_q)
+        if imag is None
+        else [_to_fmpq(c, j) for j, c in enumerate(imag)]
+    )
+    if len(im_q) != len(re_q):
+        raise ValueError("the real and imaginary coefficient lists differ in length")
+    while re_q and re_q[-1] == 0 and im_q[-1] == 0:
+        re_q.pop()
+        im_q.pop()
+    if not re_q:
+        raise ValueError(f"the zero polynomial in {variable} has no isolated roots")
+    if len(re_q) == 1:
+        raise ValueError(f"the polynomial in {variable} is constant: it has no roots to isolate")
+    bits = max(max(int(c.p).bit_length(), int(c.q).bit_length()) for c in (*re_q, *im_q))
+    start = max(int(precision), 2 * bits + 64)
+    tol = 2.0 ** -int(precision)  # balls at least this tight, rounded to float64 afterwards
+    if tolerance is not None:
+        tol = min(tol, float(tolerance))
+    pieces: list[tuple[Any, int]]  # (acb_poly-ready coefficients, multiplicity)
+    if all(c == 0 for c in im_q):
+        pieces = [
+            (factor, int(exponent))
+            for factor, exponent in flint.fmpq_poly(re_q).factor_squarefree()[1]
+        ]
+    else:
+        pieces = [(list(zip(re_q, im_q, strict=True)), 1)]
     mids: list[complex] = []
     radii: list[float] = []
     mult: list[int] = []
-    used = int(precision)
-    for factor, exponent in poly.factor_squarefree()[1]:
-        balls, bits = _isolate(factor, int(precision), int(max_precision))
-        used = max(used, bits)
+    used = start
+    for piece, exponent in pieces:
+        balls, bits_used = _isolate(piece, start, int(max_precision), tol, variable)
+        used = max(used, bits_used)
         for ball in balls:
-            re, im = float(ball.real.mid()), float(ball.imag.mid())
-            rad = float(abs(flint.acb(ball.real.rad(), ball.imag.rad())).upper())
-            # outward: the ball's own radius, the float rounding of both midpoint parts
-            radius = rad * (1 + 4 * _EPS) + (abs(re) + abs(im)) * _EPS
-            for _ in range(int(exponent)):
-                mids.append(complex(re, im))
-                radii.append(radius)
-                mult.append(int(exponent))
-    order = np.argsort(np.abs(np.asarray(mids)), kind="stable")
-    return RootResult(
-        values=np.asarray(mids, dtype=np.complex128)[order],
+            mid = complex(float(ball.real.mid()), float(ball.imag.mid()))
+            mids.append(mid)
+            radii.append(_distance_bound(ball, mid))
+            mult.append(exponent)
+    values = np.asarray(mids, dtype=np.complex128)
+    order = np.lexsort((np.angle(values), np.abs(values)))
+    degree = int(sum(mult))
+    return RootTable(
+        values=values[order],
         error_bounds=np.asarray(radii)[order],
+        multiplicities=np.asarray(mult, dtype=np.int64)[order],
         variable="y",
         rigorous=True,
         converged=True,
-        message=f"{len(mids)} roots isolated in certified balls ({used} bits)",
+        message=(
+            f"{degree} roots ({len(mids)} distinct) isolated in certified balls ({used} bits)"
+        ),
         method="exact-certified",
         evaluations=0,
-        count=len(mids),
-        details={"multiplicities": np.asarray(mult, dtype=np.int64)[order], "precision": used},
+        count=degree,
+        indices=(np.cumsum(mult) - np.asarray(mult))[order],
+        details={"precision": used},
     )
 
 
-def _isolate(factor: Any, precision: int, max_precision: int) -> tuple[list[Any], int]:
-    """``acb_poly.roots`` of one squarefree factor, doubling the precision up to the limit."""
+def _distance_bound(ball: Any, mid: complex) -> float:
+    """Upper bound (float, rounded up) on ``|z - mid|`` over the ball ``z``."""
+    dist = abs(ball - flint.acb(mid.real, mid.imag)).upper()
+    return float(np.nextafter(float(dist), np.inf)) * (1.0 + 2.0 * _EPS)
+
+
+def _isolate(
+    piece: Any, precision: int, max_precision: int, tol: float, variable: str
+) -> tuple[list[Any], int]:
+    """``acb_poly.roots`` of one squarefree piece, doubling the precision up to the limit."""
     saved = flint.ctx.prec
     prec = precision
+    degree = piece.degree() if isinstance(piece, flint.fmpq_poly) else len(piece) - 1
     try:
         while True:
             flint.ctx.prec = prec
+            poly = (
+                flint.acb_poly(piece)
+                if isinstance(piece, flint.fmpq_poly)
+                else flint.acb_poly([flint.acb(flint.arb(a), flint.arb(b)) for a, b in piece])
+            )
             try:
-                return list(flint.acb_poly(factor).roots(tol=2.0**-precision, maxprec=prec)), prec
+                return list(poly.roots(tol=tol, maxprec=prec)), prec
             except ValueError as exc:
                 if 2 * prec > max_precision:
                     raise ValueError(
-                        f"the {factor.degree()} roots of a factor of the exact polynomial could "
-                        f"not be isolated within {max_precision} bits (roots closer than about "
-                        f"2**-{max_precision} relative, e.g. couplings of very different "
-                        f"magnitudes): {exc}"
+                        f"the {degree} roots of the polynomial in {variable} (or of a "
+                        f"squarefree factor) could not be isolated within {max_precision} bits: "
+                        "a repeated root of a polynomial with complex coefficients, or roots "
+                        f"closer than about 2**-{max_precision} relative (e.g. couplings of "
+                        f"very different magnitudes): {exc}"
                     ) from exc
                 prec *= 2
     finally:

@@ -82,12 +82,12 @@ from collections.abc import Callable, Sequence
 from fractions import Fraction
 from typing import Any, NamedTuple
 
-import flint
 import numpy as np
-from numba import njit, prange
 
+from ..base.lazy import njit, prange
+from .certify import certified_roots
 from .real import chain_back, chain_root_count
-from .result import RootResult
+from .result import RootTable
 
 __all__ = [
     "ChainValues",
@@ -852,7 +852,7 @@ def aberth_chain_roots(
     max_iter: int = 500,
     lowest: int | None = None,
     progress: ProgressCallback | None = None,
-) -> RootResult:
+) -> RootTable:
     """Roots of a chain polynomial by the Aberth-Ehrlich iteration on its recurrence.
 
     Parameters
@@ -878,7 +878,7 @@ def aberth_chain_roots(
 
     Returns
     -------
-    RootResult
+    RootTable
         ``variable="x"`` (the reciprocal roots ``x_k = 1 / y_k = eta_k^N``, sorted by modulus),
         method ``"chain-aberth"``, ``rigorous=False``.  All roots: ``error_bounds`` are the
         inclusion radii ``n |W_k|`` (Weierstrass correction ``W_k = Q(x_k) / prod_{j != k}
@@ -886,7 +886,7 @@ def aberth_chain_roots(
         arithmetic the discs hold all roots and an isolated disc exactly one (Braess-Hadeler),
         in floating point they are estimates; ``converged`` is True when every root converged
         and every disc is isolated.  ``lowest=k``: the Newton radii ``n |Q / Q'|`` (estimates
-        of the same kind), ``count`` is still the number of all roots.  ``iterations`` is the
+        of the same kind), ``count`` is still the number of all roots.  ``sweeps`` is the
         number of sweeps (all levels).  ``details``: ``isolated``, ``root_converged``,
         ``newton_radius`` (all roots), ``sweeps_per_level`` (leaves first), ``chain_steps``
         (points x terms evaluated), ``max_residual`` (largest ``|P(y)| / P~(|y|)`` at the
@@ -944,7 +944,7 @@ def aberth_chain_roots(
             g, _, _, log_cond, _ = ch.evaluate(
                 z, np.zeros(z.size, np.int64), np.full(z.size, ch.m), np.full(z.size, n)
             )
-            return RootResult(
+            return RootTable(
                 values=scale * z,
                 error_bounds=scale * radius,
                 variable="x",
@@ -954,7 +954,7 @@ def aberth_chain_roots(
                 method="chain-aberth",
                 evaluations=evaluations,
                 count=n,
-                iterations=n_sweeps,
+                sweeps=n_sweeps,
                 indices=np.arange(z.size),
                 details={
                     "chain_steps": ch.steps,
@@ -986,7 +986,7 @@ def aberth_chain_roots(
                 "root was computed and the smallest kept"
             )
     idx = sort[keep]
-    return RootResult(
+    return RootTable(
         values=scale * z[idx],
         error_bounds=scale * radius[idx],
         variable="x",
@@ -996,7 +996,7 @@ def aberth_chain_roots(
         method="chain-aberth",
         evaluations=evaluations,
         count=n,
-        iterations=total,
+        sweeps=total,
         indices=np.arange(idx.size),
         details={
             "isolated": isolated[idx],
@@ -1080,8 +1080,10 @@ def inclusion_radii(
 
 def certified_complex_roots(
     real: Sequence[Fraction], imag: Sequence[Fraction], tol: float = 1e-18, variable: str = "y"
-) -> RootResult:
+) -> RootTable:
     """Certified complex roots of a polynomial with exact Gaussian-rational coefficients.
+
+    An entry point to the one certified isolation, :func:`freeladder.certified_roots`.
 
     Parameters
     ----------
@@ -1094,68 +1096,20 @@ def certified_complex_roots(
 
     Returns
     -------
-    RootResult
+    RootTable
         ``variable="y"``, method ``"exact-certified"``, ``rigorous=True``: ``values`` the
         midpoints of the isolating balls (rounded to double), ``error_bounds`` upper bounds on
-        the distance from each midpoint to the one root its ball contains (ball radius plus the
-        rounding of the midpoint to double).
+        the distance from each value to the one root its ball contains.
 
     Raises
     ------
     ValueError
-        For the zero polynomial, a repeated root, or when flint cannot isolate the roots.
+        For the zero polynomial, a repeated root of a polynomial with non-real coefficients,
+        or when flint cannot isolate the roots.
 
     References
     ----------
     F. Johansson, "Arb: efficient arbitrary-precision midpoint-radius interval arithmetic",
     IEEE Trans. Comput. 66, 1281 (2017) (``acb_poly_find_roots`` with validated isolation).
     """
-    bits = max(
-        (max(abs(v.numerator).bit_length(), v.denominator.bit_length()) for v in (*real, *imag)),
-        default=1,
-    )
-    saved = flint.ctx.prec
-    # Enough working precision that dyadic inputs (from floats) are held exactly and the
-    # balls of other rationals are far below ``tol``.
-    flint.ctx.prec = max(128, 2 * bits + 64)
-    try:
-        coeffs = [
-            flint.acb(
-                flint.fmpq(a.numerator, a.denominator), flint.fmpq(b.numerator, b.denominator)
-            )
-            for a, b in zip(real, imag, strict=True)
-        ]
-        while coeffs and coeffs[-1] == 0:
-            coeffs.pop()
-        if not coeffs:
-            raise ValueError(f"the zero polynomial in {variable} has no isolated roots")
-        degree = len(coeffs) - 1
-        if degree == 0:
-            raise ValueError(f"the polynomial in {variable} is constant: no roots to isolate")
-        try:
-            balls = flint.acb_poly(coeffs).roots(
-                tol=tol, maxprec=max(4000, 4 * flint.ctx.prec, 60 * degree)
-            )
-        except ValueError as exc:
-            raise ValueError(
-                f"flint could not isolate the {degree} roots of the polynomial in {variable} "
-                f"(a repeated root, or precision exhausted): {exc}"
-            ) from exc
-    finally:
-        flint.ctx.prec = saved
-    roots = np.array([complex(b.mid()) for b in balls], dtype=complex)
-    radii = np.array(
-        [float((b.rad() + abs(b.mid() - flint.acb(complex(b.mid())))).upper()) for b in balls]
-    )
-    order = np.argsort(np.abs(roots), kind="stable")
-    return RootResult(
-        values=roots[order],
-        error_bounds=radii[order],
-        variable="y",
-        rigorous=True,
-        converged=True,
-        message=f"{degree} roots isolated in certified balls (acb_poly.roots)",
-        method="exact-certified",
-        evaluations=0,
-        count=degree,
-    )
+    return certified_roots(real, imag, tolerance=tol, variable=variable)

@@ -2,7 +2,7 @@
 
 ``ROOT_METHODS`` maps a method name to a :class:`RootMethod` (what it applies to, whether its
 bounds are proofs, the function).  Every method returns a
-:class:`~freeladder.RootResult`.
+:class:`~freeladder.RootTable`.
 
 =================== ============== ========= ==================================================
 name                applies to     rigorous  how
@@ -39,10 +39,10 @@ import numpy as np
 
 from ..algebra.model import Model
 from .certify import certified_roots, certify_chain_roots
-from .complex import aberth_chain_roots, certified_complex_roots
+from .complex import aberth_chain_roots
 from .polynomial import exclusion_polynomial
 from .real import chain_back, chain_real_roots, fixed_reach
-from .result import RootResult
+from .result import RootTable
 
 __all__ = [
     "ROOT_METHODS",
@@ -79,14 +79,14 @@ class RootMethod:
     applies_to: Literal["real chain", "complex chain", "any graph"]
     rigorous: bool
     description: str
-    solve: Callable[..., RootResult]
+    solve: Callable[..., RootTable]
 
 
-def _count(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootResult:
+def _count(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootTable:
     return chain_real_roots(w, reach, lowest=lowest)
 
 
-def _certified(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootResult:
+def _certified(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootTable:
     """All roots (the proof needs all S intervals), certified; then the ``lowest`` kept.
 
     With the couplings ``c`` given, the proof covers the exact weights ``c**N`` (one rounding
@@ -128,16 +128,16 @@ def _certified(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: An
         error_bounds=enc.error_bounds[keep],
         indices=enc.indices[keep],
         evaluations=enc.evaluations + found.evaluations,
-        iterations=found.iterations,
+        sweeps=found.sweeps,
         details=details,
     )
 
 
-def _aberth(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootResult:
+def _aberth(w: np.ndarray, reach: Any, states: int, lowest: int | None, c: Any) -> RootTable:
     return aberth_chain_roots(w, reach, order=states, lowest=lowest)
 
 
-def exact_polynomial_roots(m: Model) -> RootResult:
+def exact_polynomial_roots(m: Model) -> RootTable:
     """Certified roots of the model's exact exclusion polynomial (any frustration graph).
 
     Raises ``ValueError`` when the roots cannot be isolated at bounded precision, or when the
@@ -152,10 +152,7 @@ def exact_polynomial_roots(m: Model) -> RootResult:
             f"exactly, so {poly.degree - top} quasi-energies are exactly 0; the certified route "
             "isolates the roots of P only (none at infinity): method='auto' returns all of them"
         )
-    if all(v == 0 for v in im_parts):
-        found = certified_roots(list(re_parts))
-    else:
-        found = certified_complex_roots(re_parts, im_parts)
+    found = certified_roots(re_parts, im_parts).repeated()
     if np.any(found.values == 0) or found.count != poly.degree:
         raise ValueError(
             "the exclusion polynomial has a root at y = 0 or lost degree; P(0) must be 1"
@@ -272,7 +269,7 @@ def solve_chain(
     lowest: int | None = None,
     *,
     allow_unconverged: bool = False,
-) -> RootResult:
+) -> RootTable:
     """Roots of an exclusion chain's polynomial from its couplings in chain order.
 
     ``reach`` is an int p >= 1 or a back-reach array (position k's earlier neighbours are
@@ -349,7 +346,7 @@ def _components(w: np.ndarray, reach: Any) -> list[tuple[np.ndarray, Any]]:
     ]
 
 
-def _merged(pieces: list[RootResult], lowest: int | None) -> RootResult:
+def _merged(pieces: list[RootTable], lowest: int | None) -> RootTable:
     """One result from the roots of independent pieces (their polynomial is the product)."""
     first = pieces[0]
     values = np.concatenate([p.values for p in pieces])
@@ -364,7 +361,7 @@ def _merged(pieces: list[RootResult], lowest: int | None) -> RootResult:
     if lowest is not None and int(lowest) < order.size:
         order = order[-int(lowest) :] if first.variable == "y" else order[: int(lowest)]
     start = count - order.size if first.variable == "y" else 0
-    return RootResult(
+    return RootTable(
         values=values[order],
         error_bounds=bounds[order],
         variable=first.variable,
@@ -375,14 +372,14 @@ def _merged(pieces: list[RootResult], lowest: int | None) -> RootResult:
         method=first.method,
         evaluations=sum(p.evaluations for p in pieces),
         count=count,
-        iterations=sum(p.iterations for p in pieces),
+        sweeps=sum(p.sweeps for p in pieces),
         indices=np.arange(start, start + order.size, dtype=np.int64),
         details={"pieces": len(pieces)},
         exponents=exponents[order],
     )
 
 
-def _unscaled(found: RootResult) -> RootResult:
+def _unscaled(found: RootTable) -> RootTable:
     """The result in true units (``weight_log2 = 0``) when float64 holds it without loss."""
     if found.weight_log2 == 0 and not np.any(found.exponents != 0):
         return found
@@ -405,13 +402,13 @@ def _unscaled(found: RootResult) -> RootResult:
     )
 
 
-def solve_general(m: Model, method: str = "auto") -> RootResult:
+def solve_general(m: Model, method: str = "auto") -> RootTable:
     """Roots for any frustration graph through the exact polynomial (``exact-certified``)."""
     key = choose_method("any graph", method)
     return ROOT_METHODS[key].solve(m)
 
 
-def provenance(found: RootResult) -> dict[str, Any]:
+def provenance(found: RootTable) -> dict[str, Any]:
     """The provenance entries :func:`freeladder.free_spectrum` records for a root result."""
     paths = {
         "chain-count": "real roots of the chain recurrence (count bisection + Laguerre steps)",
@@ -441,7 +438,7 @@ def provenance(found: RootResult) -> dict[str, Any]:
         "method": "certified" if found.rigorous else "fast",
         "root_method": found.method,
         "path": paths[found.method],
-        "iterations": found.iterations,
+        "sweeps": found.sweeps,
         "evaluations": found.evaluations,
         "converged": found.converged,
         "rigorous": found.rigorous,

@@ -33,29 +33,34 @@ from __future__ import annotations
 import math
 import numbers
 import threading
+import warnings
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Any, NamedTuple
+from typing import TYPE_CHECKING, Any, NamedTuple
 
 import flint
 import numpy as np
-import sympy
 
 from ..algebra.model import Model
-from ..base.cache import model_store, structure_store
+from ..base.cache import part
 from ..base.errors import TooLargeError
-from ..base.frozen import readonly_array
 from ..base.jsonready import json_ready
 from ..base.scalars import exact_to_sympy, exact_value, to_fmpq, to_python_number, to_sympy
-from ..graphs.graph import chain_structure, frustration_adjacency
+from ..graphs.graph import ADJACENCY, chain_structure
 from ..graphs.independent import Algebra, IndependenceGraph
+from .certify import certified_roots
+from .result import RootTable
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "MAX_ROOT_DEGREE",
     "ChainData",
     "ExclusionPolynomial",
-    "PolynomialRoots",
     "SumRules",
     "exclusion_polynomial",
     "independence_graph",
@@ -64,7 +69,6 @@ __all__ = [
     "sum_rules",
 ]
 
-_CACHE_KEY = "_freeladder_polynomial"
 _BIG = 2.0**256
 _SMALL = 2.0**-256
 
@@ -464,7 +468,12 @@ class ExclusionPolynomial:
             raise ValueError(f"the order of a partial polynomial must be >= 0, got {s}")
         if s >= self.degree:
             return self
-        head = self._exact_sums[: s + 1]
+        chain = self._chain
+        if self._sums is None and chain is not None and s <= _SHORT_HEAD:
+            # the first orders of a long chain, without expanding the whole polynomial
+            head = _chain_head(_Ring(self.kind), chain[0], chain[1], s)
+        else:
+            head = self._exact_sums[: s + 1]
         while len(head) > 1 and head[-1] == 0:
             head = head[:-1]
         return ExclusionPolynomial(
@@ -477,7 +486,7 @@ class ExclusionPolynomial:
             truncated_at=s,
         )
 
-    def roots(self, tolerance: float = 1e-12) -> PolynomialRoots:
+    def roots(self, tolerance: float = 1e-12) -> RootTable:
         """All complex roots of this polynomial, certified (balls of python-flint / Arb).
 
         Meant for polynomials of moderate degree, such as the partial polynomials of
@@ -487,13 +496,13 @@ class ExclusionPolynomial:
         Parameters
         ----------
         tolerance : float
-            Requested absolute accuracy of each root (Gaussian kind); the rational kinds are
-            isolated to about 15 significant digits.
+            Requested absolute radius of each root's ball.
 
         Returns
         -------
-        PolynomialRoots
-            Values, certified radii, multiplicities.
+        RootTable
+            The distinct roots (ordered by modulus, then argument), proved radii
+            (``error_bounds``), ``multiplicities``; ``count`` is the degree.
 
         Raises
         ------
@@ -508,10 +517,10 @@ class ExclusionPolynomial:
         -----
         Expanded coefficients are useless in floating point beyond a few dozen terms (numpy's
         companion-matrix roots of a 90-term chain polynomial are off by 8e-2); here the exact
-        coefficients enter ball arithmetic, so each root comes with a proven radius.  Integer
-        and rational coefficients use ``fmpq_poly.complex_roots`` (multiplicities included);
-        Gaussian rationals ``acb_poly.roots`` on the exact dyadic values, which needs
-        squarefree input.
+        coefficients enter ball arithmetic, so each root comes with a proven radius: the one
+        certified isolation of :func:`freeladder.certified_roots`
+        (squarefree factors of rational coefficients, so multiplicities are found; Gaussian
+        rationals must have simple roots).
 
         References
         ----------
@@ -521,8 +530,8 @@ class ExclusionPolynomial:
         --------
         >>> import freeladder as fl
         >>> r = fl.exclusion_polynomial(fl.exclusion_chain(3, reach=1)).roots()  # 1 - 3y + y^2
-        >>> [round(float(v.real), 11) for v in r.values], r.multiplicities
-        ([0.38196601125, 2.61803398875], (1, 1))
+        >>> [round(float(v.real), 11) for v in r.values], r.multiplicities.tolist()
+        ([0.38196601125, 2.61803398875], [1, 1])
         """
         return _certified_roots(self, float(tolerance))
 
@@ -760,62 +769,7 @@ MAX_ROOT_DEGREE = 120
 """Largest degree :meth:`ExclusionPolynomial.roots` accepts (about 0.5 s at degree 100)."""
 
 
-@dataclass(frozen=True)
-class PolynomialRoots:
-    """Certified complex roots of a polynomial of moderate degree (immutable).
-
-    Attributes
-    ----------
-    values : numpy.ndarray of complex (read-only)
-        The distinct roots, midpoints of their balls, sorted by real then imaginary part.
-    error_bounds : numpy.ndarray of float (read-only)
-        Proven bounds on ``|value - root|``: radius of the real part plus radius of the
-        imaginary part of each ball, plus the rounding of the midpoint to float64.
-    multiplicities : tuple of int
-    degree : int
-    rigorous : bool
-        Always True here: each ball is proven to hold exactly one distinct root.
-    method : str
-    message : str
-    """
-
-    values: np.ndarray
-    error_bounds: np.ndarray
-    multiplicities: tuple[int, ...]
-    degree: int
-    rigorous: bool
-    method: str
-    message: str
-
-    def __post_init__(self) -> None:
-        object.__setattr__(self, "values", readonly_array(self.values, dtype=complex))
-        object.__setattr__(self, "error_bounds", readonly_array(self.error_bounds, dtype=float))
-        object.__setattr__(self, "multiplicities", tuple(int(k) for k in self.multiplicities))
-
-    def to_dict(self) -> dict[str, Any]:
-        """JSON-ready fields (complex values as ``[re, im]``)."""
-        return json_ready(  # type: ignore[no-any-return]
-            {
-                "values": self.values.astype(complex),
-                "error_bounds": self.error_bounds,
-                "multiplicities": self.multiplicities,
-                "degree": self.degree,
-                "rigorous": self.rigorous,
-                "method": self.method,
-                "message": self.message,
-            }
-        )
-
-    def __repr__(self) -> str:
-        shown = ", ".join(f"{complex(v):.6g}" for v in self.values[:6])
-        more = ", ..." if len(self.values) > 6 else ""
-        return (
-            f"PolynomialRoots(degree={self.degree}, {len(self.values)} distinct: [{shown}{more}], "
-            f"max error bound {float(np.max(self.error_bounds, initial=0.0)):.2g})"
-        )
-
-
-def _certified_roots(poly: ExclusionPolynomial, tolerance: float) -> PolynomialRoots:
+def _certified_roots(poly: ExclusionPolynomial, tolerance: float) -> RootTable:
     if poly.kind == "symbolic":
         raise TypeError(
             "the roots of a symbolic polynomial need numbers: substitute the couplings first "
@@ -827,55 +781,21 @@ def _certified_roots(poly: ExclusionPolynomial, tolerance: float) -> PolynomialR
             "coefficients; use truncated(s) with a smaller s, or freeladder.free_spectrum, "
             "which evaluates the chain recurrence instead"
         )
-    re, im = poly.exact_parts()
     if poly.degree == 0:
         empty = np.zeros(0)
-        return PolynomialRoots(empty.astype(complex), empty, (), 0, True, "constant", "no roots")
-    balls: list[Any]  # (ball, multiplicity) pairs
-    if poly.kind != "gaussian":
-        balls = list(flint.fmpq_poly([to_fmpq(c) for c in re]).complex_roots())
-        method = "python-flint fmpq_poly.complex_roots (Arb balls)"
-    else:
-        bits = max(
-            max(abs(c.numerator).bit_length(), c.denominator.bit_length()) for c in (*re, *im)
+        return RootTable(
+            values=empty.astype(complex),
+            error_bounds=empty,
+            variable="y",
+            rigorous=True,
+            converged=True,
+            message="a constant polynomial: no roots",
+            method="exact-certified",
+            evaluations=0,
+            count=0,
         )
-        old = flint.ctx.prec
-        try:
-            flint.ctx.prec = max(old, bits + 64)
-            coefficients = [
-                flint.acb(flint.arb(to_fmpq(a)), flint.arb(to_fmpq(b)))
-                for a, b in zip(re, im, strict=True)
-            ]
-            try:
-                found: list[Any] = flint.acb_poly(coefficients).roots(tol=tolerance)
-            except ValueError as err:
-                raise ValueError(
-                    f"the roots of this degree-{poly.degree} Gaussian-rational polynomial could "
-                    f"not be isolated ({err}); multiple roots are not supported for complex "
-                    "couplings"
-                ) from None
-        finally:
-            flint.ctx.prec = old
-        balls = [(ball, 1) for ball in found]
-        method = "python-flint acb_poly.roots (Arb balls)"
-    values = np.array([complex(float(b.real.mid()), float(b.imag.mid())) for b, _ in balls])
-    # Ball radii, plus the rounding of each midpoint to float64, rounded up once more.
-    eps = float(np.finfo(np.float64).eps)
-    radii = np.array([float(b.real.rad()) + float(b.imag.rad()) for b, _ in balls]) + eps * (
-        np.abs(values.real) + np.abs(values.imag)
-    )
-    radii = radii * (1 + 4 * eps)
-    mult = [int(k) for _, k in balls]
-    order = np.lexsort((values.imag, values.real))
-    return PolynomialRoots(
-        values[order],
-        radii[order],
-        tuple(mult[i] for i in order),
-        poly.degree,
-        True,
-        method,
-        f"{len(values)} distinct roots, each isolated in a proven ball",
-    )
+    re, im = poly.exact_parts()
+    return certified_roots(re, im, tolerance=tolerance)
 
 
 # -- sum rules -----------------------------------------------------------------------------------
@@ -1115,6 +1035,36 @@ def _chain_sums(ring: _Ring, weights: Sequence[Any], reach: int) -> list[Any]:
     return ring.exact_coefficients(window[0])
 
 
+_SHORT_HEAD = 16
+"""Partial polynomials up to this order of a chain run a truncated recurrence."""
+
+
+def _chain_head(ring: _Ring, weights: Sequence[Any], reach: int, order: int) -> list[Any]:
+    """``C_0 .. C_order`` of a chain: the recurrence of :func:`_chain_sums` modulo x^(order+1).
+
+    O(M order) exact operations instead of O(M S) for the whole polynomial.
+    """
+    if weights and all(w == weights[0] for w in weights):
+        return _chain_sums(ring, weights, reach)[: order + 1]
+    one = ring.constant(1)
+    window = [one] * (reach + 1)
+    for wk in weights:
+        new = _cut(window[0] + ring.monomial(wk) * window[reach], order)
+        window = [new, *window[:reach]]
+    return ring.exact_coefficients(window[0])
+
+
+def _cut(poly: Any, order: int) -> Any:
+    """``poly`` without its terms above x^order (any of the ring's polynomial types)."""
+    if isinstance(poly, _GaussPoly):
+        return _GaussPoly(_cut(poly.re, order), _cut(poly.im, order))
+    if isinstance(poly, _SymPoly):
+        return _SymPoly(poly.c[: order + 1])
+    if poly.degree() > order:
+        return type(poly)(poly.coeffs()[: order + 1])
+    return poly
+
+
 def _times(a: Any, b: Any) -> Any:
     """Exact product of two values of :func:`_exact` (Gaussian rationals are pairs)."""
     if isinstance(a, tuple) or isinstance(b, tuple):
@@ -1157,13 +1107,14 @@ def independence_graph(m: Model) -> IndependenceGraph:
     Chains use their chain order (every subproblem is then a suffix of the chain); other
     graphs the reverse Cuthill-McKee order.
     """
-    store = structure_store(m.strings)
-    key = _CACHE_KEY + "_graph"
-    if key not in store:
-        chain = chain_structure(m) if len(m) else None
-        order = None if chain is None else chain.order
-        store[key] = IndependenceGraph(frustration_adjacency(m), order)
-    return store[key]  # type: ignore[no-any-return]
+    return _INDEPENDENCE(m)
+
+
+@part("independence graph", "strings")
+def _INDEPENDENCE(m: Model) -> IndependenceGraph:
+    chain = chain_structure(m) if len(m) else None
+    order = None if chain is None else chain.order
+    return IndependenceGraph(ADJACENCY(m), order)
 
 
 def exclusion_polynomial(m: Model) -> ExclusionPolynomial:
@@ -1207,13 +1158,12 @@ def exclusion_polynomial(m: Model) -> ExclusionPolynomial:
     """
     if not isinstance(m, Model):
         raise TypeError(f"expected a freeladder Model, got {type(m).__name__}")
-    store = model_store(m)
-    if _CACHE_KEY not in store:
-        store[_CACHE_KEY] = _build(m)
-    return store[_CACHE_KEY]  # type: ignore[no-any-return]
+    return POLYNOMIAL(m)
 
 
-def _build(m: Model) -> ExclusionPolynomial:
+@part("polynomial", "couplings")
+def POLYNOMIAL(m: Model) -> ExclusionPolynomial:
+    """The part behind :func:`exclusion_polynomial`."""
     n = m.states
     weights: list[Any] = []
     for j, c in enumerate(m.couplings):
@@ -1242,3 +1192,16 @@ def _build(m: Model) -> ExclusionPolynomial:
         )
     sums = _graph_sums(ring, independence_graph(m), weights) if len(m) else [1]
     return ExclusionPolynomial(lambda: sums, weights, n, ring.kind, None, rounded=rounded)
+
+
+def __getattr__(name: str) -> Any:
+    """``PolynomialRoots``: deprecated alias of the one root result type (one release)."""
+    if name == "PolynomialRoots":
+        warnings.warn(
+            "PolynomialRoots is deprecated: ExclusionPolynomial.roots() returns the one root "
+            "result type, RootTable",
+            DeprecationWarning,
+            stacklevel=2,
+        )
+        return RootTable
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

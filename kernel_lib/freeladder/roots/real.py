@@ -12,15 +12,15 @@ are exactly positions ``k - back[k] .. k - 1``, so that
 reach p is ``back[k] = min(p, k)``; an indifference ordering
 (:class:`freeladder.IndifferenceOrder`) gives ``back[k] = k - first_neighbour[k]``.
 
-``chain_real_roots(weights, reach, lowest=None, *, rtol=..., progress=None) -> RootResult``
+``chain_real_roots(weights, reach, lowest=None, *, rtol=..., progress=None) -> RootTable``
     All roots (or, with ``lowest=k``, the k LARGEST roots y, i.e. the k smallest
     quasi-energies eta = y**(-1/N)) of ``P_M(y)`` for real positive weights ``w_k`` (N = 2 real
-    couplings: ``w = c**2``), as a :class:`~freeladder.RootResult`
+    couplings: ``w = c**2``), as a :class:`~freeladder.RootTable`
     (``variable="y"``, ascending, method ``"chain-count"``, ``rigorous=False``: the error
     bounds are estimates, not proofs; ``certify.certify_chain_roots`` turns them into proofs).
     Roots anywhere in about ``[2**-13000, 2**13000]`` converge as well as inside float64's
     range (to the accuracy of the float64 evaluation, see below): a root outside float64's
-    normal range is returned as a mantissa with a power of two (``RootResult.exponents``).
+    normal range is returned as a mantissa with a power of two (``RootTable.exponents``).
 ``chain_back(reach, n_terms) -> int64 array``
     The back-reach array of an int reach, or a validated copy of a given array.
 ``check_chain_weights(weights, reach) -> (float64 array, int)``
@@ -127,9 +127,9 @@ from collections.abc import Callable
 from typing import Any
 
 import numpy as np
-from numba import njit, prange
 
-from .result import RootResult
+from ..base.lazy import njit, prange
+from .result import RootTable
 
 __all__ = [
     "chain_back",
@@ -970,7 +970,7 @@ def chain_real_roots(
     rtol: float = 16 * _EPS,
     max_sweeps: int = 400,
     progress: ProgressCallback | None = None,
-) -> RootResult:
+) -> RootTable:
     """Roots of the chain polynomial ``P_M`` for real positive weights.
 
     Parameters
@@ -993,13 +993,13 @@ def chain_real_roots(
 
     Returns
     -------
-    RootResult
+    RootTable
         ``variable="y"``, ascending; ``rigorous=False``: the error bounds are estimates (the
         last Laguerre step, or half the final bracket), method ``"chain-count"``;
-        ``iterations`` counts the sweeps.  When every root lies in float64's normal range
+        ``sweeps`` counts the sweeps.  When every root lies in float64's normal range
         ``values`` are the roots; otherwise ``values`` are mantissas in [1/2, 1) and
-        ``exponents`` their powers of two (``RootResult.true_values``,
-        ``RootResult.log_quasi_energies``).  :func:`freeladder.certify_chain_roots`
+        ``exponents`` their powers of two (``RootTable.true_values``,
+        ``RootTable.log_quasi_energies``).  :func:`freeladder.certify_chain_roots`
         turns the bounds into proofs.
 
     Raises
@@ -1082,7 +1082,7 @@ def chain_real_roots(
     else:  # mantissas with their powers of two; each bound shares its root's exponent
         values, exponents = rm, re_
         bounds = _to_float(em, ee - re_)
-    return RootResult(
+    return RootTable(
         values=values,
         error_bounds=bounds,
         variable="y",
@@ -1092,7 +1092,7 @@ def chain_real_roots(
         method="chain-count",
         evaluations=chain.evaluations,
         count=total,
-        iterations=sweeps,
+        sweeps=sweeps,
         indices=want[order],
         exponents=exponents,
     )

@@ -2,7 +2,7 @@
 
 Every finder (real chain roots by counting, Aberth-Ehrlich complex roots on the recurrence,
 certified sign-change enclosures, certified roots of the exact polynomial) returns a
-:class:`RootResult`.  ``rigorous`` is True only when ``error_bounds`` are proofs; otherwise
+:class:`RootTable`.  ``rigorous`` is True only when ``error_bounds`` are proofs; otherwise
 they are estimates and every printed form says so with the word "estimate".
 
 Scale
@@ -12,19 +12,20 @@ exact) before they work, so that accuracy does not depend on the overall scale. 
 and ``error_bounds`` are then those of the scaled problem, and ``weight_log2`` records the
 scale: the weights ``w_j = c_j^N`` were divided by ``2**weight_log2``, so the true roots are
 ``y = values * 2**-weight_log2`` (variable "y") or ``x = values * 2**weight_log2``
-(variable "x").  :meth:`RootResult.quasi_energies` applies it without overflow.
+(variable "x").  :meth:`RootTable.quasi_energies` applies it without overflow.
 
 Roots beyond float64.  Real chain roots may lie far outside float64's range (disordered
 chains have exponentially small quasi-energies).  Then ``values`` hold mantissas and
 ``exponents`` a power of two per value (the value of the scaled problem is
 ``values[i] * 2**exponents[i]``, its bound ``error_bounds[i] * 2**exponents[i]``).
-:meth:`RootResult.log_quasi_energies` gives ``ln |eta|`` exactly to rounding for any root;
-:meth:`RootResult.quasi_energies` refuses (``ArithmeticError``) a quasi-energy that float64
+:meth:`RootTable.log_quasi_energies` gives ``ln |eta|`` exactly to rounding for any root;
+:meth:`RootTable.quasi_energies` refuses (``ArithmeticError``) a quasi-energy that float64
 cannot hold, unless asked to round it.
 """
 
 from __future__ import annotations
 
+import warnings
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from types import MappingProxyType
@@ -32,9 +33,10 @@ from typing import Any, Literal
 
 import numpy as np
 
+from ..base.frozen import readonly_array
 from ..base.jsonready import json_ready
 
-__all__ = ["BeyondFloatError", "RootResult"]
+__all__ = ["BeyondFloatError", "RootTable"]
 
 
 class BeyondFloatError(ArithmeticError, ValueError):
@@ -46,13 +48,11 @@ class BeyondFloatError(ArithmeticError, ValueError):
 
 
 def _frozen(values: Any, dtype: Any = None) -> np.ndarray:
-    arr = np.array(values, dtype=dtype, copy=True)
-    arr.setflags(write=False)
-    return arr
+    return readonly_array(values, dtype=dtype)  # setflags cannot reopen it
 
 
 @dataclass(frozen=True)
-class RootResult:
+class RootTable:
     """Roots of an exclusion polynomial with per-root error bounds and how they were found.
 
     Attributes
@@ -76,13 +76,17 @@ class RootResult:
         Point evaluations of the polynomial (each O(M) for the chain methods).
     count : int
         Number of roots of the whole problem (``values`` may hold fewer, with ``lowest=``).
-    iterations : int
-        Sweeps over the chain (or precision steps) done.
+    sweeps : int
+        Sweeps over the chain (or rounds of the certificate) done.
     indices : numpy.ndarray of int64
         0-based position of each value among all ``count`` roots (ascending ``y`` for real
         chains; by modulus otherwise).
     weight_log2 : int
         The weights were divided by ``2**weight_log2`` before root finding.
+    multiplicities : numpy.ndarray of int64
+        Per value, how many roots it stands for (all 1 unless an exact polynomial has a
+        repeated root: then ``values`` lists each distinct root once, and
+        :meth:`repeated` lists it as often as it counts).
     exponents : numpy.ndarray of int64
         Per value, a power of two: the root of the scaled problem is
         ``values[i] * 2**exponents[i]`` and its bound ``error_bounds[i] * 2**exponents[i]``
@@ -101,11 +105,12 @@ class RootResult:
     method: str
     evaluations: int
     count: int
-    iterations: int = 0
+    sweeps: int = 0
     indices: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
     weight_log2: int = 0
     details: Mapping[str, Any] = field(default_factory=dict)
     exponents: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
+    multiplicities: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
 
     def __post_init__(self) -> None:
         values = _frozen(self.values)
@@ -132,7 +137,16 @@ class RootResult:
             )
         if np.any(exponents != 0) and np.iscomplexobj(values):
             raise ValueError("exponents are for real roots only")
+        mult = np.asarray(self.multiplicities)
+        if mult.size == 0:
+            mult = np.ones(values.size, dtype=np.int64)
+        bad_kind = mult.size > 0 and (mult.dtype.kind not in "iu" or mult.min() < 1)
+        if mult.shape != values.shape or bad_kind:
+            raise ValueError(
+                f"multiplicities must be integers >= 1 shaped like values, got {mult!r}"
+            )
         set_ = object.__setattr__
+        set_(self, "multiplicities", _frozen(mult, dtype=np.int64))
         set_(self, "exponents", _frozen(exponents, dtype=np.int64))
         set_(self, "values", values)
         set_(self, "error_bounds", bounds)
@@ -140,8 +154,39 @@ class RootResult:
         set_(self, "details", MappingProxyType(details))
         for name in ("rigorous", "converged"):
             set_(self, name, bool(getattr(self, name)))
-        for name in ("evaluations", "count", "iterations", "weight_log2"):
+        for name in ("evaluations", "count", "sweeps", "weight_log2"):
             set_(self, name, int(getattr(self, name)))
+
+    def repeated(self) -> RootTable:
+        """The same roots with each value listed as often as it counts (multiplicities all 1)."""
+        if np.all(self.multiplicities == 1):
+            return self
+        k = self.multiplicities
+        return RootTable(
+            values=np.repeat(self.values, k),
+            error_bounds=np.repeat(self.error_bounds, k),
+            variable=self.variable,
+            rigorous=self.rigorous,
+            converged=self.converged,
+            message=self.message,
+            method=self.method,
+            evaluations=self.evaluations,
+            count=self.count,
+            sweeps=self.sweeps,
+            weight_log2=self.weight_log2,
+            details=dict(self.details),
+            exponents=np.repeat(self.exponents, k),
+        )
+
+    @property
+    def iterations(self) -> int:
+        """Deprecated name of :attr:`sweeps` (one release)."""
+        warnings.warn(
+            "RootTable.iterations is deprecated: use RootTable.sweeps",
+            DeprecationWarning,
+            stacklevel=2,
+        )
+        return self.sweeps
 
     @property
     def bound_kind(self) -> str:
@@ -274,7 +319,7 @@ class RootResult:
         )
 
     def __repr__(self) -> str:
-        return f"RootResult({self.summary()})"
+        return f"RootTable({self.summary()})"
 
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready fields (see :func:`freeladder.base.jsonready.json_ready`)."""
@@ -290,10 +335,23 @@ class RootResult:
                 "method": self.method,
                 "evaluations": self.evaluations,
                 "count": self.count,
-                "iterations": self.iterations,
+                "sweeps": self.sweeps,
                 "indices": self.indices,
                 "weight_log2": self.weight_log2,
                 "exponents": self.exponents,
+                "multiplicities": self.multiplicities,
                 "details": dict(self.details),
             }
         )
+
+
+def __getattr__(name: str) -> Any:
+    """``RootResult``: the former name of :class:`RootTable`, deprecated (one release)."""
+    if name == "RootResult":
+        warnings.warn(
+            "RootResult is deprecated: the root result type is now called RootTable",
+            DeprecationWarning,
+            stacklevel=2,
+        )
+        return RootTable
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

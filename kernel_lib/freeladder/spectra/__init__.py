@@ -1,7 +1,11 @@
 """Charges, free spectra, Jordan-Wigner sectors, exact diagonalization, thermodynamics,
-edge modes.
+edge modes, edge dynamics.
 """
 
+from .answer import (
+    SectorRow,
+    SpectrumAnswer,
+)
 from .charges import (
     DEFAULT_LIMIT,
     ChargeStep,
@@ -9,6 +13,14 @@ from .charges import (
     charge,
     charge_series,
     transfer_matrix,
+)
+from .dynamics import (
+    Autocorrelation,
+    EdgeExpansion,
+    TwoPoint,
+    autocorrelation,
+    edge_expansion,
+    two_point,
 )
 from .ed import (
     DENSE_LIMIT,
@@ -54,6 +66,14 @@ from .thermo import (
 )
 
 __all__ = [
+    "Autocorrelation",
+    "EdgeExpansion",
+    "TwoPoint",
+    "autocorrelation",
+    "edge_expansion",
+    "two_point",
+    "SectorRow",
+    "SpectrumAnswer",
     "ChargeStep",
     "ChargeTerm",
     "DEFAULT_LIMIT",

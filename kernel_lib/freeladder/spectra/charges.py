@@ -26,20 +26,26 @@ from collections.abc import Iterator, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
 from itertools import islice
-from typing import Any, NamedTuple
+from typing import TYPE_CHECKING, Any, NamedTuple
 
+import flint
 import numpy as np
 import scipy.sparse as sps
-import sympy
 
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
 from ..algebra.printing import format_terms, format_terms_latex
 from ..algebra.strings import StringArray, WeylString
-from ..base.cache import structure_store
+from ..base.cache import part
 from ..base.jsonready import json_ready
 from ..graphs.graph import chain_structure
+from ..graphs.indifference import indifference_order
 from ..roots.polynomial import exclusion_polynomial, independence_graph, independent_set_counts
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = [
     "DEFAULT_LIMIT",
@@ -52,8 +58,6 @@ __all__ = [
 
 DEFAULT_LIMIT = 10**6
 """Largest number of products an order may have before listing it raises an error."""
-
-_COUNTS_KEY = "_freeladder_charge_counts"
 
 
 class ChargeTerm(NamedTuple):
@@ -95,8 +99,10 @@ def _check_model(m: Any) -> Model:
 def charge_counts(m: Model) -> tuple[int, ...]:
     """Number of independent sets of each size ``0 .. alpha(G)``: the products in each charge.
 
-    Counted, never listed (binomials for exclusion chains, the independence polynomial with
-    unit weights otherwise); kept with the model's strings, so a coupling change reuses it.
+    Counted, never listed: binomials for exclusion chains (each from the previous one), a
+    transfer-matrix product along the ordering for chains whose reach varies (oriented
+    indifference orderings), the independence polynomial with unit weights otherwise.  Kept
+    with the model's strings, so a coupling change reuses it.
 
     Examples
     --------
@@ -104,19 +110,124 @@ def charge_counts(m: Model) -> tuple[int, ...]:
     >>> charge_counts(fl.exclusion_chain(5))  # a path: 1 + 5 + 6 + 1 = 13 = Fibonacci F(7)
     (1, 5, 6, 1)
     """
-    store = structure_store(m.strings)
-    if _COUNTS_KEY not in store:
-        chain = chain_structure(m) if len(m) else None
-        if chain is not None:
-            size, p = len(m), chain.reach
-            top = (size + p) // (p + 1)
-            counts = [math.comb(size - p * (s - 1), s) if s else 1 for s in range(top + 1)]
-        elif len(m):
-            counts = list(independent_set_counts(independence_graph(m)))
+    return COUNTS(m)
+
+
+@part("charge counts", "strings")
+def COUNTS(m: Model) -> tuple[int, ...]:
+    """The part behind :func:`charge_counts`."""
+    return _counts(m)
+
+
+def _counts(m: Model) -> tuple[int, ...]:
+    if not len(m):
+        return (1,)
+    chain = chain_structure(m)
+    if chain is not None:
+        return _chain_counts(len(m), chain.reach)
+    ordering = indifference_order(m)
+    if ordering is not None:
+        return _ordered_counts(ordering.first_neighbour)
+    return tuple(int(c) for c in independent_set_counts(independence_graph(m)))
+
+
+def _chain_counts(size: int, reach: int) -> tuple[int, ...]:
+    """``C(M - p(s-1), s)`` for s = 0 .. alpha: independent sets of the p-th power of a path.
+
+    Each binomial follows from the previous one by one multiplication and one exact division
+    by machine-size integers, so the whole list costs about as much as writing it down.
+
+    Examples
+    --------
+    >>> _chain_counts(5, 1)
+    (1, 5, 6, 1)
+    """
+    out = [1]
+    value = 1
+    for s in range(1, (size + reach) // (reach + 1) + 1):
+        # C(n - p, s) = C(n, s - 1) * prod_{i<=p} (n - s + 1 - i) / (s * prod_{i<p} (n - i)),
+        # with n = M - p(s - 2), the top of the previous binomial (common practice).
+        n = size - reach * (s - 2)
+        if s == 1:
+            value = size
         else:
-            counts = [1]
-        store[_COUNTS_KEY] = tuple(int(c) for c in counts)
-    return store[_COUNTS_KEY]  # type: ignore[no-any-return]
+            num = math.prod(n - s + 1 - i for i in range(reach + 1))
+            den = s * math.prod(n - i for i in range(reach))
+            value = value * num // den
+        if value == 0:
+            break
+        out.append(value)
+    return tuple(out)
+
+
+def _ordered_counts(first_neighbour: Sequence[int]) -> tuple[int, ...]:
+    """Independent-set counts of a graph given by an indifference ordering, per size.
+
+    Along the ordering the prefix polynomials obey ``I_{k+1} = I_k + x I_{f(k)}`` with f(k)
+    the first position adjacent to k (or k itself).  The steps are (R+1) x (R+1) transfer
+    matrices over Z[x] (R the largest ``k - f(k)``), multiplied as a balanced product tree with
+    FLINT's polynomial arithmetic: quasi-linear in the size of the answer.
+
+    Examples
+    --------
+    >>> _ordered_counts([0, 0, 1, 2])  # the path 0-1-2-3
+    (1, 4, 3)
+    """
+    first = [int(f) for f in first_neighbour]
+    if not first:
+        return (1,)
+    width = max(k - f for k, f in enumerate(first)) + 1
+    row = _row_product(first, 0, len(first), width)
+    # the state before position 0 is I = 1 for every (empty) prefix
+    total = sum(row, flint.fmpz_poly(0))
+    return tuple(int(c) for c in total.coeffs())
+
+
+_LEAF = 48
+
+
+def _leaf(first: list[int], lo: int, hi: int, width: int) -> list[list[Any]]:
+    """Transfer matrix of positions lo .. hi-1: column j evolves the unit state e_j."""
+    x = flint.fmpz_poly([0, 1])
+    zero = flint.fmpz_poly(0)
+    columns = []
+    for j in range(width):
+        state = [zero] * width
+        state[j] = flint.fmpz_poly(1)
+        for k in range(lo, hi):
+            state = [state[0] + x * state[k - first[k]], *state[: width - 1]]
+        columns.append(state)
+    return [[columns[j][i] for j in range(width)] for i in range(width)]
+
+
+def _matrix_product(first: list[int], lo: int, hi: int, width: int) -> list[list[Any]]:
+    if hi - lo <= _LEAF:
+        return _leaf(first, lo, hi, width)
+    mid = (lo + hi) // 2
+    left = _matrix_product(first, lo, mid, width)
+    right = _matrix_product(first, mid, hi, width)
+    return [_times_matrix(r, left, width) for r in right]
+
+
+def _row_product(first: list[int], lo: int, hi: int, width: int) -> list[Any]:
+    """Row 0 of the transfer matrix of lo .. hi-1 (all that the final count needs)."""
+    if hi - lo <= _LEAF:
+        return _leaf(first, lo, hi, width)[0]
+    mid = (lo + hi) // 2
+    return _times_matrix(
+        _row_product(first, mid, hi, width), _matrix_product(first, lo, mid, width), width
+    )
+
+
+def _times_matrix(row: list[Any], matrix: list[list[Any]], width: int) -> list[Any]:
+    out = []
+    for j in range(width):
+        acc = flint.fmpz_poly(0)
+        for i in range(width):
+            if row[i] and matrix[i][j]:
+                acc += row[i] * matrix[i][j]
+        out.append(acc)
+    return out
 
 
 @dataclass(frozen=True)

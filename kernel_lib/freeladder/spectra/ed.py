@@ -23,7 +23,6 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sps
-import scipy.sparse.linalg as spla
 
 from ..algebra.model import Model
 from ..base.errors import TooLargeError
@@ -250,8 +249,8 @@ def exact_spectrum(
         vals, error, method = _sparse_lowest(mat, k, hermitian)
     scale = max(1.0, float(np.abs(vals).max())) if len(vals) else 1.0
     levels, mult = _cluster(vals, tol * scale)
-    for arr in (levels, mult, vals):
-        arr.setflags(write=False)  # the result is immutable, like every freeladder object
+    # the result is immutable, like every freeladder object
+    levels, mult, vals = readonly_array(levels), readonly_array(mult), readonly_array(vals)
     return ExactSpectrum(
         levels=levels,
         multiplicities=mult,
@@ -367,6 +366,8 @@ def _dense_solve(mat: sps.sparray, hermitian: bool) -> tuple[np.ndarray, float, 
 
 
 def _sparse_lowest(mat: sps.sparray, k: int, hermitian: bool) -> tuple[np.ndarray, float, str]:
+    import scipy.sparse.linalg as spla  # on use: slow to import
+
     rng = np.random.default_rng(12345)  # fixed start vector: reproducible results
     v0 = rng.standard_normal(mat.shape[0])
     if hermitian:

@@ -38,7 +38,7 @@ from ..base.errors import NoTheoremError
 from ..base.frozen import readonly_array, readonly_sparse
 from ..base.jsonready import json_ready
 from ..graphs.clawfree import find_simplicial_clique
-from ..graphs.graph import chain_structure, frustration_adjacency
+from ..graphs.graph import ADJACENCY, chain_structure
 from .charges import transfer_matrix
 from .spectrum import free_spectrum
 
@@ -122,13 +122,13 @@ class EdgeMode:
 
 def components(m: Model) -> list[tuple[int, ...]]:
     """The connected components of the frustration graph (term indices, ascending)."""
-    adj = frustration_adjacency(m)
+    adj = ADJACENCY(m)
     n_comp, labels = csgraph.connected_components(adj, directed=False)
     return [tuple(int(v) for v in np.nonzero(labels == c)[0]) for c in range(n_comp)]
 
 
 def _neighbours(m: Model) -> list[set[int]]:
-    adj = frustration_adjacency(m)
+    adj = ADJACENCY(m)
     return [set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist()) for v in range(len(m))]
 
 

@@ -47,15 +47,12 @@ from typing import Any
 
 import networkx as nx
 import numpy as np
-import scipy.linalg
-import scipy.linalg.lapack
 import scipy.sparse
 import scipy.sparse.csgraph
-from tqdm.auto import tqdm
 
 from ..algebra.model import Model
 from ..algebra.strings import WeylString, make_string
-from ..base.cache import cached, structure_store
+from ..base.cache import part
 from ..base.errors import TooLargeError
 from ..base.frozen import readonly_array, readonly_mapping
 from ..base.jsonready import json_ready
@@ -508,12 +505,14 @@ def sectors(m: Model) -> SectorStructure:
     >>> s.relations, s.count
     ((((0, 1, 2, 3, 4), 1),), 16)
     """
-    pairs = _check_model(m)
-    per_sites = structure_store(m.strings).setdefault("majorana:sectors", {})
-    key = tuple(m.sites)
-    if key not in per_sites:  # depends on the strings only: shared across couplings
-        per_sites[key] = _build_sectors(m, pairs)
-    return per_sites[key]  # type: ignore[no-any-return]
+    _check_model(m)
+    return SECTORS(m, tuple(m.sites))  # depends on the strings only: shared across couplings
+
+
+@part("sector structure", "strings")
+def SECTORS(m: Model, sites: tuple[Any, ...]) -> SectorStructure:
+    """The part behind :func:`sectors` (per list of sites)."""
+    return _build_sectors(m, _check_model(m))
 
 
 def _build_sectors(m: Model, pairs: dict[int, tuple[int, int]]) -> SectorStructure:
@@ -616,10 +615,10 @@ def _bond_kind(g: WeylString) -> tuple[int, int] | None:
     return (a1, b1) if (a1, b1) == (a2, b2) else None
 
 
-def _honeycomb_faces(
-    m: Model, pairs: Mapping[int, tuple[int, int]]
-) -> tuple[list[tuple[tuple[int, ...], tuple[int, ...]]] | None, str]:
+@part("honeycomb faces", "strings")
+def FACES(m: Model) -> tuple[list[tuple[tuple[int, ...], tuple[int, ...]]] | None, str]:
     """The hexagonal faces ``(modes, terms)`` of a root graph that tiles a torus, or why not."""
+    pairs = _check_model(m)
     kinds = {}
     for t, g in enumerate(m.strings):
         kind = _bond_kind(g)
@@ -732,9 +731,7 @@ def flux_theorem_values(m: Model) -> tuple[dict[WeylString, int] | None, str]:
     couplings = m.coupling_array()
     if np.iscomplexobj(couplings):
         return None, "complex couplings"
-    faces, why = cached(
-        structure_store(m.strings), "majorana:faces", lambda: _honeycomb_faces(m, pairs)
-    )
+    faces, why = FACES(m)
     if faces is None:
         return None, why
     by_kind: dict[tuple[int, int], list[float]] = {}
@@ -1062,6 +1059,8 @@ def _canonical_bipartite(h: np.ndarray, colour: np.ndarray) -> tuple[np.ndarray,
     a = np.flatnonzero(colour == 0)
     b = np.flatnonzero(colour == 1)
     block = h[np.ix_(a, b)]
+    import scipy.linalg  # on use: scipy.linalg is slow to import
+
     sv = scipy.linalg.svdvals(block) if min(len(a), len(b)) else np.zeros(0)
     e = np.concatenate([sv, np.zeros(n // 2 - len(sv))])
     if len(a) != len(b):
@@ -1087,6 +1086,8 @@ def _canonical_hessenberg(h: np.ndarray) -> tuple[np.ndarray, float]:
     n = h.shape[0]
     if n == 1:
         return np.zeros(0), 1.0
+    import scipy.linalg.lapack  # on use: scipy.linalg is slow to import
+
     work, info = scipy.linalg.lapack.dgehrd_lwork(n)
     if info != 0:
         raise AssertionError(f"LAPACK dgehrd workspace query failed (info {info})")
@@ -1267,6 +1268,8 @@ def jordan_wigner_spectrum(
         else:
             selection = f"the sector {tuple(int(v) for v in sector)}"
     dim = 2 ** len(m.sites)
+    from tqdm.auto import tqdm  # on use
+
     bar = tqdm(labels, desc="sectors", disable=len(labels) < 256, leave=False)
     solved, mismatch = [], 0.0
     spectra: dict[tuple[int, ...], tuple[tuple[np.ndarray, float | None, float], ...]] = {}

@@ -13,7 +13,6 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-from scipy.spatial import cKDTree
 
 from ..base.jsonready import json_ready
 from .ed import ExactSpectrum
@@ -207,6 +206,8 @@ def _match(free_all: np.ndarray, exact_all: np.ndarray, tol: float, compared: st
     left_f = [len(g) for g in f_groups]
     matched, distance = 0, 0.0
     if len(f_centres) and len(e_centres):
+        from scipy.spatial import cKDTree  # on use: scipy.spatial is slow to import
+
         tree = cKDTree(np.column_stack([e_centres.real, e_centres.imag]))
         dist, nearest = tree.query(
             np.column_stack([f_centres.real, f_centres.imag]), distance_upper_bound=2 * tol

@@ -45,7 +45,7 @@ from ..graphs.verdict import Guarantee, classify, guarantee
 from ..roots import methods as root_methods
 from ..roots.polynomial import exclusion_polynomial, sum_rules
 from ..roots.real import chain_inverse_power_sums
-from ..roots.result import BeyondFloatError, RootResult
+from ..roots.result import BeyondFloatError, RootTable
 from .ed import DENSE_LIMIT
 from .majorana import flux_sector, jordan_wigner_spectrum
 
@@ -120,8 +120,8 @@ class LevelTable(Sequence[Level]):
     multiplicity: int | None
 
     def __init__(self, energies: np.ndarray, occupations: np.ndarray, multiplicity: int | None):
-        energies.setflags(write=False)
-        occupations.setflags(write=False)
+        energies = readonly_array(energies)
+        occupations = readonly_array(occupations)
         object.__setattr__(self, "energies", energies)
         object.__setattr__(self, "occupations", occupations)
         object.__setattr__(self, "multiplicity", multiplicity)
@@ -201,7 +201,7 @@ class SpectrumProvenance:
     seconds : float
         Wall-clock time of :func:`free_spectrum`.
     finder : mapping
-        Details reported by the root finder (iterations, evaluations, convergence, ...).
+        Details reported by the root finder (sweeps, evaluations, convergence, ...).
     sector : mapping or None
         On the Jordan-Wigner route (``free_spectrum(m, sector=...)``): the cycle strings, their
         values in this sector, the labels merged, the parity constraints and how the sector was
@@ -358,8 +358,9 @@ class FreeSpectrum:
         if log_quasi_energies is None:
             with np.errstate(divide="ignore"):
                 log_quasi_energies = np.log(np.abs(quasi_energies))
-        for arr in (roots_y, quasi_energies, error_bounds, log_quasi_energies):
-            arr.setflags(write=False)
+        roots_y, quasi_energies, error_bounds, log_quasi_energies = (
+            readonly_array(a) for a in (roots_y, quasi_energies, error_bounds, log_quasi_energies)
+        )
         constraints = tuple((tuple(int(k) for k in ks), int(p)) for ks, p in parity_constraints)
         if constraints and int(states) != 2:
             raise ValueError("parity constraints are for N = 2 (Majorana sectors)")
@@ -1096,7 +1097,7 @@ def _sector_spectrum(
         sector={
             "summary": summary,
             "selection": selection,
-            "cycle_operators": [str(g) for g in struct.cycle_operators],
+            "cycle_operators": tuple(str(g) for g in struct.cycle_operators),
             "cycle_values": merged.cycle_values,
             "labels": merged.labels,
             "parity_constraints": len(merged.parity_constraints),
@@ -1166,22 +1167,28 @@ def _checked_request(m: Model, method: str, lowest: int | None) -> np.ndarray:
 
 def _refusal_message(m: Model, promise: Guarantee) -> str:
     """Why free_spectrum refuses, and what to do instead."""
-    text = "no theorem guarantees that the single exclusion polynomial gives this spectrum. "
-    text += promise.reason
+    reason, instead = refusal_text(m, promise)
+    return f"{reason} Instead: {instead}"
+
+
+def refusal_text(m: Model, promise: Guarantee) -> tuple[str, str]:
+    """Why no theorem guarantees the single polynomial's spectrum, and what to do instead."""
+    reason = "no theorem guarantees that the single exclusion polynomial gives this spectrum. "
+    reason += promise.reason
     if promise.witness_text:
-        text += f" Witness terms: {promise.witness_text}."
-    text += " Instead: "
+        reason += f" Witness terms: {promise.witness_text}."
+    instead = ""
     if m.states == 2 and classify(m).kind == "jordan-wigner":
-        text += (
+        instead += (
             'the terms are Majorana bilinears, so free_spectrum(m, sector="ground") solves '
             "the model exactly in the sector holding the ground state (sector=(+1, -1, ...) "
             'for a chosen one; fl.jordan_wigner_spectrum(m, "all") gives every sector); '
         )
-    text += "fl.verify(m) probes the model numerically"
+    instead += "fl.verify(m) probes the model numerically"
     if m.dimension <= DENSE_LIMIT:
-        text += f"; fl.exact_spectrum(m) gives the exact levels (dimension {m.dimension})"
-    text += "; free_spectrum(m, unproven=True) returns the numbers, marked NOT GUARANTEED."
-    return text
+        instead += f"; fl.exact_spectrum(m) gives the exact levels (dimension {m.dimension})"
+    instead += "; free_spectrum(m, unproven=True) returns the numbers, marked NOT GUARANTEED."
+    return reason, instead
 
 
 def _find_roots(
@@ -1191,7 +1198,7 @@ def _find_roots(
     ordering: tuple[np.ndarray, np.ndarray] | None,
     method: str,
     lowest: int | None,
-) -> RootResult:
+) -> RootTable:
     """The roots of P by the method the table (:mod:`freeladder.roots.methods`) chooses.
 
     A model that is not one fixed-reach chain but has an ordering (:func:`_ordering`: an

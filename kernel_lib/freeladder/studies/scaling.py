@@ -29,14 +29,13 @@ from types import MappingProxyType
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
-from scipy.optimize import curve_fit
 
 from ..algebra.model import Model
 from ..base.frozen import readonly_array, readonly_mapping
 from ..base.jsonready import json_ready
 from ..graphs.graph import chain_structure
 from ..roots.real import chain_real_roots
-from ..roots.result import RootResult
+from ..roots.result import RootTable
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -180,6 +179,8 @@ def _single_fit(
     dof = x.size - n_par
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # OptimizeWarning when the covariance is undefined
+        from scipy.optimize import curve_fit  # on use: slow to import
+
         params, cov = curve_fit(
             model, x, target, p0=p0, sigma=s, absolute_sigma=s is not None, maxfev=20000
         )
@@ -330,10 +331,10 @@ def _residue(m: Model) -> tuple[int | None, int | None]:
 
 def _largest_root(
     couplings: Sequence[complex] | np.ndarray, reach: int, states: int
-) -> RootResult | None:
+) -> RootTable | None:
     """The largest real root of the chain with weights ``|c_j^N|`` when they share one phase.
 
-    Returns the :class:`~freeladder.RootResult` of
+    Returns the :class:`~freeladder.RootTable` of
     :func:`freeladder.chain_real_roots` (``lowest=1``), or None for weights of several phases.
     Raises ``ArithmeticError`` when the root did not converge.
     """

@@ -1,0 +1,43 @@
+"""Benchmark: ``import freeladder`` in a fresh interpreter, beside the imports it cannot avoid.
+
+Baseline, measured in the same run: a fresh interpreter importing numpy, scipy.sparse,
+scipy.sparse.csgraph, networkx and flint (what the library needs at import).  sympy, numba and
+pandas load on first use (tests/test_import.py checks which modules load).  Goal: under 0.5 s.
+Each time is the best of five fresh interpreters.
+
+Run with ``bash tools/bench.sh tests/benchmarks/bench_import.py``.
+"""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+import time
+
+REPEATS = 5
+
+
+def fresh(code: str) -> float:
+    """Best wall-clock time of a fresh interpreter running ``code``, minus an empty one."""
+    best = float("inf")
+    for _ in range(REPEATS):
+        start = time.perf_counter()
+        subprocess.run([sys.executable, "-c", code], check=True)
+        best = min(best, time.perf_counter() - start)
+    return best
+
+
+def main() -> None:
+    empty = fresh("pass")
+    base = fresh("import numpy, scipy.sparse, scipy.sparse.csgraph, networkx, flint") - empty
+    mine = fresh("import freeladder") - empty
+    heavy = fresh("import sympy, numba, pandas") - empty
+    print(f"{'what':<44} {'seconds':>8} {'ratio':>7}")
+    print(f"{'numpy, scipy.sparse, networkx, flint (base)':<44} {base:>8.3f} {1:>7.2f}")
+    print(f"{'import freeladder':<44} {mine:>8.3f} {mine / base:>7.2f}")
+    print(f"{'sympy, numba, pandas (left for first use)':<44} {heavy:>8.3f} {heavy / base:>7.2f}")
+    print(f"import freeladder / 0.5 s goal: {mine / 0.5:.2f}")
+
+
+if __name__ == "__main__":
+    main()
