@@ -352,7 +352,7 @@ def test_one_number_format_for_display() -> None:
     for x in (np.pi, -np.e * 1e-7, 6.02214076e23):
         assert float(format_number(x)) == pytest.approx(x, rel=1e-11)
     latex = parse_model("0.16000000000000003 X0 + (1-2j) Z0 Z1 - X1")._repr_latex_()
-    assert "0.16 X_{0}" in latex and r"\left(1-2i\right) Z_{0} Z_{1}" in latex
+    assert "0.16 X_{0}" in latex and r"\left(1 - 2i\right) Z_{0} Z_{1}" in latex
     assert "0.16000000000000003" not in latex and latex.endswith("- X_{1}$")
     # the text syntax keeps every digit, so that it reads back exactly
     assert "0.16000000000000003" in str(parse_model("0.16000000000000003 X0"))

@@ -199,10 +199,10 @@ def test_a_crash_inside_a_check_is_a_failure_with_traceback(
     monkeypatch: pytest.MonkeyPatch,
 ) -> None:
     # inject a broadcasting bug into a helper of the sum-rule check: a failure, not "not run"
-    def broken(v: complex) -> str:
+    def broken(*args: object) -> str:
         return str(np.ones(3) + np.ones(4))
 
-    monkeypatch.setattr(verification, "_num", broken)
+    monkeypatch.setattr(verification, "_sum_rule_detail", broken)
     r = fl.verify(fl.exclusion_chain(7, reach=2, couplings=rational(7)))
     check = r[verification.SUM_RULES]
     assert check.passed is False and check.status == "FAILED"

@@ -29,24 +29,25 @@ from helpers import dense_string, run_notebook
 
 import freeladder as fl
 
-# name -> (model, the literal of term 0's coupling in the cells, an altered literal)
+# name -> (model, the start of the model text in the cells (term 0), an altered start)
 MODELS = {
     # transverse-field Ising chain, 4 sites, floats (Pfeuty 1970)
-    "ising": (lambda: fl.ising_chain(4), "-1.0", "-1.2"),
+    "ising": (lambda: fl.ising_chain(4), "-1.0 X0", "-1.2 X0"),
     # reach-2 exclusion chain with exact staggered couplings (Alcaraz-Pimenta 2020)
     "reach2": (
         lambda: fl.exclusion_chain(
             6, reach=2, couplings=fl.staggered(6, Fraction(1), Fraction(2, 5))
         ),
-        "Fraction(1, 1)",
-        "Fraction(6, 5)",
+        "X0 Z1 Z2",
+        "6/5 X0 Z1 Z2",
     ),
     # Z3 clock chain (Baxter 1989; Fendley 2014): complex quasi-energies
-    "clock3": (lambda: fl.clock_chain(4, states=3), "-1.0", "-1.2"),
+    "clock3": (lambda: fl.clock_chain(4, states=3), "-1.0 X0", "-1.2 X0"),
 }
 
-# The steps whose exported numbers depend on the couplings, and those that do not.
-COUPLING_DEPENDENT = {"charges", "polynomial", "spectrum", "levels"}
+# The steps whose exported numbers depend on the couplings (the model's identity among them),
+# and those that do not.
+COUPLING_DEPENDENT = {"identity", "charges", "polynomial", "spectrum", "levels", "exact"}
 COUPLING_FREE = {"model", "verdict", "checks"}
 
 
@@ -58,13 +59,15 @@ def calculations() -> dict[str, fl.WorkedCalculation]:
 def _step_of(source: str) -> str:
     """Which step a code cell holds, read from what it computes."""
     for needle, step in (
-        ("fl.Model.from_terms", "model"),
+        ("fingerprint", "identity"),
+        ("fl.parse_model", "model"),
         ("fl.classify", "verdict"),
         ("fl.charge_series", "charges"),
         ("fl.exclusion_polynomial", "polynomial"),
         ("sp.levels(", "levels"),
         ("fl.free_spectrum", "spectrum"),
         ("fl.verify", "checks"),
+        ("fl.exact_spectrum", "exact"),
     ):
         if needle in source:
             return step
@@ -72,10 +75,10 @@ def _step_of(source: str) -> str:
 
 
 def _alter(source: str, old: str, new: str) -> str:
-    """Change the coupling of term 0 in the model cell."""
-    pattern = re.compile(r"^(terms = \[\n    \()" + re.escape(old) + r"(, fl\.make_string)", re.M)
-    altered, n = pattern.subn(r"\g<1>" + new.replace("\\", "\\\\") + r"\g<2>", source)
-    assert n == 1, f"term 0 with coupling {old} not found in:\n{source[:400]}"
+    """Change the coupling of term 0 in the model cell's text."""
+    pattern = re.compile(r'^(m = fl\.parse_model\(\n?\s*")' + re.escape(old), re.M)
+    altered, n = pattern.subn(r"\g<1>" + new, source)
+    assert n == 1, f"term 0 written {old!r} not found in:\n{source[:600]}"
     return altered
 
 
@@ -154,8 +157,9 @@ def test_cells_pass_as_exported_and_fail_when_a_coupling_changes(
             if variant == "exported":
                 assert errors == {}, (name, errors)
             else:
-                # Every step whose numbers depend on the couplings fails with an AssertionError;
-                # the graph, the verdict and the checks of the altered model still pass.
+                # Every step whose numbers depend on the couplings fails with an AssertionError,
+                # the model's own text and fingerprint first; the graph, the verdict and the
+                # checks of the altered model still pass.
                 assert errors == dict.fromkeys(COUPLING_DEPENDENT, "AssertionError"), (
                     name,
                     errors,
@@ -223,14 +227,14 @@ def test_to_notebook_refuses_to_overwrite(calculations: dict, tmp_path: Path) ->
 def test_latex_section_holds_the_quasi_energy_table(calculations: dict) -> None:
     tex = calculations["ising"].to_latex()
     assert tex.lstrip().startswith("%") and "\\section{Worked calculation}" in tex
-    assert tex.count("\\begin{tabular}") == tex.count("\\end{tabular}") == 2
-    rows = re.findall(r"^(\d+) & \$([-0-9.e+]+)\$ & \$([-0-9.e+]+)\$ \\\\$", tex, flags=re.M)
+    assert tex.count("\\begin{longtable}") == tex.count("\\end{longtable}") == 2
+    rows = re.findall(r"^(\d+) & ([-0-9.e+]+) & ([-0-9.e+]+) \\\\$", tex, flags=re.M)
     assert [int(k) for k, _, _ in rows] == [1, 2, 3, 4]
     # Pfeuty 1970: eta_k = 2 cos(pi k / 9) for the uniform 4-site chain (7 terms).
     expected = np.sort(2 * np.cos(np.pi * np.arange(1, 5) / 9))
     assert np.allclose([float(eta) for _, eta, _ in rows], expected, atol=1e-13)
     assert all(float(b) < 1e-13 for _, _, b in rows)
-    assert "P(y) = 1 - 7 y + 15 y^{2} - 10 y^{3} + 1 y^{4}" in tex
+    assert "P(y) = 1 - 7 y + 15 y^{2} - 10 y^{3} + y^{4}" in tex
     assert "spectrum = exact diagonalization" in tex and "passed" in tex
     # Text from the verdict is escaped: no bare underscores outside math.
     assert "g\\_j" in tex
@@ -243,7 +247,11 @@ def test_model_cell_rebuilds_the_same_model(calculations: dict) -> None:
         original = build()
         assert str(ns["m"]) == str(original)
         assert ns["m"].couplings == original.couplings
-        assert [type(c) for c in ns["m"].couplings] == [type(c) for c in original.couplings]
+        # the same arithmetic: floats stay floats, exact rationals exact (1 for Fraction(1))
+        kinds = [float if isinstance(c, float) else type(c) for c in original.couplings]
+        assert [Fraction if isinstance(c, int) else type(c) for c in ns["m"].couplings] == [
+            Fraction if k is int else k for k in kinds
+        ]
 
 
 def test_model_without_theorem_asserts_no_spectrum(tmp_path: Path) -> None:
@@ -280,7 +288,7 @@ def test_bad_requests_get_clear_errors() -> None:
 
 def test_steps_select_cells_and_dicts_are_json_ready() -> None:
     wc = fl.worked_calculation(fl.ising_chain(3), steps=["verdict"])
-    assert [_step_of(c.source) for c in wc if c.kind == "code"] == ["model", "verdict"]
+    assert [_step_of(c.source) for c in wc if c.kind == "code"] == ["model", "identity", "verdict"]
     json.dumps(wc.to_dicts(), allow_nan=False)
     d = json.loads(json.dumps(wc.to_dict(), allow_nan=False))
     assert d["guaranteed"] is True and d["cells"] == wc.to_dicts()
@@ -323,3 +331,168 @@ def test_panel_reports_a_broken_model_without_raising() -> None:
     panel = ExportPanel(broken)
     assert panel.save() is None
     assert "could not export" in panel.status.value and "ModelSyntaxError" in panel.status.value
+
+
+# -- what the exported cells say: readable, lint-clean, pinned to their model -----------------
+TRIANGLE = "Z0 Z1 + Z1 Z2 + Z2 Z0 + 0.5 X0 + 0.3 X1"
+
+
+def _ruff() -> Path:
+    ruff = Path(sys.executable).parent / "ruff"
+    if not ruff.exists():
+        pytest.fail(f"ruff is missing beside {sys.executable} (the test extra installs it)")
+    return ruff
+
+
+def test_exported_notebook_and_script_pass_the_projects_lint(tmp_path: Path) -> None:
+    # The project's own ruff configuration (pyproject.toml), as a user's export saved in
+    # example_notebooks/ meets it: no unused import, no useless expression, no long line.
+    repo = Path(__file__).resolve().parent.parent
+    models = {
+        "triangle": fl.parse_model(TRIANGLE),
+        "clock": fl.parse_model("Z0 Z1^2 + w X0 + 1.2*w X1 + 3/4 Z1 Z2^2 + X2", states=3),
+        "long": fl.exclusion_chain(40, reach=2, couplings=fl.staggered(40, 1.0, 0.4)),
+        "claw": fl.Model.from_terms(
+            [*fl.exclusion_chain(6, reach=2).terms, (1, fl.pauli("ZZ", [2, 5]))], states=2
+        ),
+    }
+    paths = []
+    for name, m in models.items():
+        wc = fl.worked_calculation(m)
+        paths.append(wc.to_notebook(tmp_path / f"{name}.ipynb"))
+        script = tmp_path / f"{name}.py"
+        script.write_text(wc.to_script())
+        paths.append(script)
+    for path in paths:
+        assert path.read_text().endswith("\n") and not path.read_text().endswith("\n\n\n")
+    done = subprocess.run(
+        [str(_ruff()), "check", "--no-cache", "--config", str(repo / "pyproject.toml")]
+        + [str(p) for p in paths],
+        capture_output=True,
+        text=True,
+        cwd=repo,
+    )
+    assert done.returncode == 0, done.stdout[-3000:] + done.stderr[-2000:]
+
+
+def test_exported_model_reads_as_its_text() -> None:
+    m = fl.parse_model("Z0 Z1^2 + w X0 + 1.2*w X1 + 3/4 Z1 Z2^2 + X2", states=3)
+    wc = fl.worked_calculation(m)
+    code = "\n".join(c.source for c in wc if c.kind == "code")
+    markdown = "\n".join(c.source for c in wc if c.kind == "markdown")
+    assert 'fl.parse_model("Z0 Z1^2 + w X0 + 1.2*w X1 + 3/4 Z1 Z2^2 + X2", states=3)' in code
+    assert "make_string" not in code and "0.6000000000000001" not in code
+    # the text reads back as exactly the same couplings (floats to the bit, 3/4 exact)
+    assert fl.parse_model(str(m), states=3).terms == m.terms
+    assert Fraction(3, 4) in m.couplings
+    # the LaTeX shows the phase exactly, with i; quasi-energies are numbered from k = 1
+    assert r"1.2 e^{\pi i/3} X_{1}" in markdown and r"\frac{3}{4}" in markdown
+    assert re.search(r"^\| 1 \| ", markdown, flags=re.M) and not re.search(
+        r"^\| 0 \| [^|]+ \| [^|]+ \| [^|]+ \|$", markdown, flags=re.M
+    )
+    # no doubled full stop after a reference (the guarantee ends in "...2005.14622).")
+    for text in (markdown, wc.to_latex()):
+        assert not re.search(r"\)\.\.", text), re.findall(r".{40}\)\.\..{10}", text)
+
+
+def test_a_sign_flip_fails_the_exported_checks(tmp_path: Path) -> None:
+    # Issue: where the strings have a relation, the cells used to assert only quantities that
+    # depend on c^N, so -0.5 X0 for 0.5 X0 passed.  The ground energy moves (numpy exact
+    # diagonalization below), and the exported cells now fail.
+    m = fl.parse_model(TRIANGLE)
+    flipped = fl.parse_model(TRIANGLE.replace("+ Z2 Z0", "- Z2 Z0"))
+    ground = [
+        np.linalg.eigvalsh(sum(complex(c) * dense_string(g, model.sites) for c, g in model.terms))[
+            0
+        ]
+        for model in (m, flipped)
+    ]
+    assert abs(ground[0] - ground[1]) > 1  # about -1.61 against -3.08
+    assert fl.exclusion_polynomial(m).coefficients == fl.exclusion_polynomial(flipped).coefficients
+    script = fl.worked_calculation(m).to_script()
+    path = tmp_path / "triangle.py"
+    path.write_text(script)
+    done = subprocess.run([sys.executable, str(path)], capture_output=True, text=True)
+    assert done.returncode == 0, done.stderr[-2000:]
+    assert 'fl.parse_model("Z0 Z1 + Z1 Z2 + Z0 Z2 + 0.5 X0 + 0.3 X1")' in script
+    # the model's own text and fingerprint fail first ...
+    path.write_text(script.replace("+ Z0 Z2 +", "- Z0 Z2 +", 1))
+    done = subprocess.run([sys.executable, str(path)], capture_output=True, text=True)
+    assert done.returncode != 0 and "AssertionError" in done.stderr, done.stderr[-2000:]
+    assert "assert str(m) ==" in done.stderr
+    # ... and with that cell removed, the exported exact levels fail on their own
+    cells = [c for c in fl.worked_calculation(m) if c.kind == "code"]
+    ns: dict = {}
+    exec(compile(cells[0].source.replace("+ Z0 Z2 +", "- Z0 Z2 +"), "model", "exec"), ns)
+    exact_cell = next(c.source for c in cells if "fl.exact_spectrum" in c.source)
+    with pytest.raises(AssertionError, match="exact levels moved"):
+        exec(compile(exact_cell, "exact", "exec"), ns)
+    # the levels it asserts are numpy's (dense exact diagonalization above)
+    unflipped: dict = {}
+    exec(compile(cells[0].source + "\n" + exact_cell, "exact", "exec"), unflipped)
+    assert abs(unflipped["expected_exact"][0] - ground[0]) < 1e-9
+
+
+def test_every_number_in_a_code_cell_is_the_models_own(tmp_path: Path) -> None:
+    # The model cell's numbers and the identity cell's fingerprint come from the same model:
+    # the fingerprint of the rebuilt model equals the one exported.
+    m = fl.parse_model(TRIANGLE)
+    wc = fl.worked_calculation(m)
+    ns: dict = {}
+    exec(compile(wc[1].source + "\n" + wc[3].source, "model", "exec"), ns)
+    assert ns["fingerprint"] in wc[3].source and str(ns["m"]) == str(m)
+
+
+# -- the LaTeX export compiles with a real TeX engine ---------------------------------------------
+def _pdflatex() -> str:
+    import os
+    import shutil
+    import warnings
+
+    engine = shutil.which("pdflatex")
+    if engine is None:
+        message = (
+            "pdflatex is missing, so the LaTeX export is NOT compiled "
+            "(Debian: apt-get install --no-install-recommends texlive-latex-base)"
+        )
+        if os.environ.get("CI", "").lower() in ("1", "true", "yes"):
+            pytest.fail(f"{message}; .ci/run must install it", pytrace=False)
+        warnings.warn(message, stacklevel=2)
+        print(f"\n== NOTE: {message}")
+        pytest.skip(message)
+    return engine
+
+
+@pytest.mark.parametrize(
+    "name",
+    ["chain", "clock", "ladder"],
+)
+def test_latex_export_compiles(name: str, tmp_path: Path) -> None:
+    models = {
+        # a 3-term chain (Pfeuty 1970)
+        "chain": lambda: fl.parse_model("X0 + 0.5 Z0 Z1 + X1"),
+        # a Z3 chain with complex couplings: exact phases and i in the tables
+        "clock": lambda: fl.parse_model(
+            "Z0 Z1^2 + w X0 + 1.2*w X1 + 3/4 Z1 Z2^2 + X2 + 0.7*w^2 Z2 Z3^2 + X3", states=3
+        ),
+        # a two-leg ladder: no single polynomial (the sentence and the checks table wrap)
+        "ladder": lambda: fl.parse_model(
+            "1.3 Z0 Z1 + 0.9 Z2 Z3 + 1.1 Z4 Z5 + 0.8 X0 X2 + 1.2 Y2 Y4 + 0.7 Y1 Y3 + X3 X5"
+        ),
+    }
+    engine = _pdflatex()
+    tex = fl.worked_calculation(models[name]()).to_latex(standalone=True)
+    # one imaginary unit in LaTeX: i (no Python 2j, no 1e-3j)
+    assert not re.search(r"\d\.?\d*(e-?\d+)?j\b", tex), re.findall(r".{20}\dj\b", tex)
+    (tmp_path / "worked.tex").write_text(tex)
+    done = subprocess.run(
+        [engine, "-interaction=nonstopmode", "-halt-on-error", "worked.tex"],
+        capture_output=True,
+        text=True,
+        cwd=tmp_path,
+        timeout=120,
+    )
+    assert done.returncode == 0, done.stdout[-3000:]
+    assert (tmp_path / "worked.pdf").stat().st_size > 1000
+    log = (tmp_path / "worked.log").read_text(errors="replace")
+    assert "Overfull \\hbox" not in log, re.findall(r"Overfull.*\n.*", log)[:3]

@@ -17,6 +17,7 @@ from typing import TYPE_CHECKING, Any, NamedTuple
 
 import numpy as np
 
+from ..base import display
 from ..base.jsonready import json_ready
 from ..base.scalars import (
     MAX_EXPANDED_TERMS,
@@ -361,7 +362,9 @@ class Model:
         return format_terms(self.terms, self.constant)
 
     def _repr_latex_(self) -> str:
-        return "$" + format_terms_latex(self.terms, self.constant) + "$"
+        pieces = [format_terms_latex([], self.constant)] if self.constant != 0 else []
+        pieces += [format_terms_latex([term]) for term in self.terms]
+        return "$" + display.aligned_sum(pieces) + "$"
 
 
 def _unpack_term(term: Any, idx: int) -> tuple[Coupling, WeylString]:

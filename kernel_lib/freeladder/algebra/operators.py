@@ -853,7 +853,7 @@ class StringSum:
         )
 
     def __str__(self) -> str:
-        return format_terms(self.terms)
+        return format_terms(self.terms, display=True)
 
     def __repr__(self) -> str:
         text = str(self)

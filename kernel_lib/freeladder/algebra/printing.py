@@ -16,11 +16,13 @@ stays exact.
 
 from __future__ import annotations
 
+import cmath
 import math
 from collections.abc import Sequence
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
+from ..base.display import number_latex, number_text, phase_fold, phase_latex, phase_text
 from .strings import WeylString
 
 if TYPE_CHECKING:
@@ -118,8 +120,9 @@ def _is_negative(c: Any) -> bool:
 def coefficient_text(c: Any, states: int | None = None) -> str:
     """A coefficient in the text syntax: ``3``, ``0.25``, ``3/4``, ``(1.0+2.0j)``, ``2*g``.
 
-    ``states`` is needed only to print phases ``exp(i pi k / N)`` of sympy expressions as
-    powers of ``w``.
+    ``states`` is needed only to print phases ``exp(i pi k / N)`` as powers of ``w``; a
+    complex coupling that is a decimal times a power of ``w`` prints as ``1.2*w`` when that
+    text reads back as exactly the same number.
     """
     if isinstance(c, bool):
         raise TypeError("booleans are not couplings")
@@ -132,10 +135,57 @@ def coefficient_text(c: Any, states: int | None = None) -> str:
     if isinstance(c, complex):
         if c.imag == 0:
             return repr(c.real)
+        phased = _phase_multiple(c, states) if states else None
+        if phased is not None:
+            return phased
         return "(" + repr(c.real) + ("+" if c.imag >= 0 else "-") + repr(abs(c.imag)) + "j)"
     if isinstance(c, sympy.Basic):
         return _expr(c, states)[0]
     return str(c)
+
+
+def _phase_multiple(c: complex, states: int, extra: int = 0) -> str | None:
+    """``r*w^(k + extra)`` (shortest decimal r) when the parser reads it back as exactly ``c``
+    on a string whose letters carry ``w^extra``.
+
+    The parser turns ``1.2*w X0`` into the complex coupling ``1.2 exp(i pi / N)``; printing it
+    back as ``1.2*w`` rather than ``(0.6000000000000001+1.0392304845413263j)`` keeps the text
+    readable, and a candidate is accepted only when it gives the same float bits.
+    """
+    from .model import times_phase  # model imports this module
+    from .strings import unit_phase
+
+    for k in range(2 * states):
+        r = c * unit_phase(k, states).conjugate()
+        imaginary = abs(r.real) < 1e-12 * abs(c)
+        if abs(r.imag) > 1e-12 * abs(c) and not imaginary:
+            continue
+        part = r.imag if imaginary else r.real
+        for digits in range(1, 18):
+            text = f"{part:.{digits}g}"
+            if "e" in text or "inf" in text or "nan" in text:
+                break
+            value: complex | int | float = int(text) if text.lstrip("-").isdigit() else float(text)
+            if imaginary:
+                value, text = complex(0, value), text + "j"
+            if times_phase(value, k, states) == c:
+                total = (k + extra) % (2 * states)
+                if total == 0:
+                    return text
+                w = "w" if total == 1 else f"w^{total}"
+                return w if text == "1" else ("-" + w if text == "-1" else f"{text}*{w}")
+    return None
+
+
+def _split_phase(c: Any, states: int) -> tuple[Any, int]:
+    """``(r, k)`` with ``c = r w^k`` to rounding and r real, for display; else ``(c, 0)``."""
+    if not isinstance(c, complex) or c.imag == 0:
+        return c, 0
+    k = cmath.phase(c) * states / math.pi
+    near = round(k)
+    if abs(k - near) > 1e-12 * states:
+        return c, 0
+    return abs(c), near % (2 * states)
 
 
 def _wrap(part: tuple[str, int], level: int) -> str:
@@ -231,15 +281,28 @@ def _power_text(e: Any, states: int | None) -> tuple[str, int]:
     return f"{base_text}^({sympy.sstr(expo).replace(' ', '').replace('**', '^')})", _POWER
 
 
-def format_terms(terms: Sequence[tuple[Any, WeylString]], constant: Any = 0) -> str:
-    """The terms ``c_j g_j`` (and a constant) as one line of text syntax."""
+def format_terms(
+    terms: Sequence[tuple[Any, WeylString]],
+    constant: Any = 0,
+    *,
+    display: bool = False,
+    keep_types: bool = False,
+) -> str:
+    """The terms ``c_j g_j`` (and a constant) as one line of text.
+
+    By default in the text syntax, every digit kept so that it reads back exactly; with
+    ``keep_types=True`` a float coupling 1.0 is written ``1.0`` (not left out), so that the
+    text also reads back as the same Python types.  With ``display=True`` the text is for
+    reading: numbers as :func:`freeladder.base.display.number_text` shows them (``1.8`` for
+    ``1.7999999999999998``, ``i`` for the imaginary unit).
+    """
     pieces: list[tuple[bool, str]] = []
     states = terms[0][1].states if terms else None
     if constant != 0:
-        pieces.append(_signed(constant, 0, "", states))
+        pieces.append(_signed(constant, 0, "", states, display, keep_types))
     for c, g in terms:
         text, _, extra = letters_and_factor(g)
-        pieces.append(_signed(c, extra, text, g.states))
+        pieces.append(_signed(c, extra, text, g.states, display, keep_types))
     if not pieces:
         return "0"
     out = ("-" if pieces[0][0] else "") + pieces[0][1]
@@ -248,107 +311,99 @@ def format_terms(terms: Sequence[tuple[Any, WeylString]], constant: Any = 0) -> 
     return out
 
 
-def _signed(c: Any, phase: int, letters: str, states: int | None) -> tuple[bool, str]:
+def _signed(
+    c: Any,
+    phase: int,
+    letters: str,
+    states: int | None,
+    display: bool = False,
+    keep_types: bool = False,
+) -> tuple[bool, str]:
     """Sign and magnitude text of ``c * w^phase * letters``."""
+    if display and states:
+        c, k = _split_phase(c, states)
+        phase = (phase + k) % (2 * states)
+        power = phase_fold(Fraction(phase, states))
+        if power is not None:
+            c, phase = _times_unit(c, power), 0
     neg = _is_negative(c)
     mag = -c if neg else c
-    coef = coefficient_text(mag, states)
+    if display:
+        coef = number_text(mag)
+        body = coef.lstrip("-")
+        if "+" in body or "-" in body.replace("e-", "") or " " in body:
+            coef = f"({coef})"
+    else:
+        phased = None
+        if isinstance(mag, complex) and mag.imag and states:
+            phased = _phase_multiple(mag, states, phase)
+        if phased is not None:
+            coef, phase = phased, 0  # the string's own phase is part of the text
+        else:
+            coef = coefficient_text(mag, states)
+        if coef.startswith("-"):
+            neg, coef = not neg, coef[1:]
     if isinstance(mag, sympy.Basic) and mag.is_Add:
         coef = f"({coef})"
     if phase:
         w = "w" if phase == 1 else f"w^{phase}"
-        coef = w if coef == "1" else f"{coef}*{w}"
-    if letters and coef in ("1", "1.0"):
+        if display:
+            w = phase_text(Fraction(phase, states or 1))
+        coef = w if coef == "1" else f"{coef}{' ' if display else '*'}{w}"
+    if letters and (coef == "1" or (coef == "1.0" and not keep_types)):
         return neg, letters
     return neg, f"{coef} {letters}".strip()
 
 
-def _real_text(x: float, digits: int) -> str:
-    if x == 0:
-        return "0"
-    if not math.isfinite(x):
-        return str(x)
-    text = f"{x:.{digits}g}"
-    return text.replace("e+", "e")
-
-
-def format_number(value: Any, digits: int = 12) -> str:
-    """One number format for display: reals to ``digits`` significant digits, complex ``a+bi``.
-
-    Integers and fractions print exactly; floats print with at most ``digits`` significant
-    digits, so rounding noise disappears (``0.16`` for ``0.16000000000000003``); a complex
-    number prints as ``a+bi`` (``1.5-2i``, ``2i``, ``-i``), its real form when the imaginary
-    part is zero.  Symbol-free sympy numbers print as the Python number they equal; expressions
-    with symbols print in sympy's notation with floats rounded the same way.  This is the format
-    for reading; the text syntax (:func:`format_terms`) keeps every digit so that it reads back
-    exactly.
-
-    Examples
-    --------
-    >>> format_number(0.1 + 0.06)
-    '0.16'
-    >>> format_number(1.5 - 2j), format_number(1j), format_number(Fraction(3, 4))
-    ('1.5-2i', 'i', '3/4')
-    """
-    if isinstance(value, bool):
-        return str(value)
-    if isinstance(value, sympy.Basic):
-        if value.free_symbols or not value.is_number:
-            return sympy.sstr(value, full_prec=False)
-        if value.is_Integer:
-            return str(int(value))
-        if value.is_Rational:
-            value = Fraction(int(value.p), int(value.q))  # type: ignore[attr-defined]
-        else:
-            value = complex(value.evalf(digits + 3))
-    if isinstance(value, int):
-        return str(value)
-    if isinstance(value, Fraction):
-        return str(value.numerator) if value.denominator == 1 else str(value)
-    if hasattr(value, "item") and not isinstance(value, (float, complex)):
-        value = value.item()  # numpy scalars
-    z = complex(value)
-    if z.imag == 0:
-        return _real_text(z.real, digits)
-    imag = _real_text(abs(z.imag), digits)
-    imag = "i" if imag == "1" else imag + "i"
-    sign = "-" if z.imag < 0 else "+"
-    if z.real == 0:
-        return imag if sign == "+" else "-" + imag
-    return _real_text(z.real, digits) + sign + imag
+format_number = number_text
+"""The display's number format (:func:`freeladder.base.display.number_text`), kept under the
+name this module gave it first."""
 
 
 def format_terms_latex(terms: Sequence[tuple[Any, WeylString]], constant: Any = 0) -> str:
-    """The terms as a LaTeX expression (without surrounding dollars)."""
+    """The terms as a LaTeX expression (without surrounding dollars).
+
+    Numbers follow :func:`freeladder.base.display.number_latex` (``i`` for the imaginary unit,
+    exact fractions and phases, no float noise).  A phase ``w^k`` that the letters do not carry
+    is folded into the coefficient when it is ``±1`` or ``±i`` (an N = 2 string with ``w^2``
+    prints ``-0.28``, not a power of ``e``) and written ``e^{k\\pi i/N}`` otherwise.
+    """
     pieces = []
     if constant != 0:
-        pieces.append(_latex_number(constant))
+        pieces.append(number_latex(constant))
     for c, g in terms:
         _, tex, extra = letters_and_factor(g)
-        coef = _latex_number(c)
-        if coef in ("1", "1.0"):
+        c, k = _split_phase(c, g.states)
+        q = Fraction(extra + k, g.states)
+        power = phase_fold(q)
+        if power is not None:
+            c = _times_unit(c, power)
+        coef = number_latex(c)
+        if coef == "1":
             coef = ""
-        elif coef in ("-1", "-1.0"):
+        elif coef == "-1":
             coef = "-"
-        elif (isinstance(c, sympy.Basic) and c.is_Add) or _is_complex_sum(c):
+        elif _is_sum(coef):
             coef = rf"\left({coef}\right)"
-        if extra:
-            coef += rf" e^{{{extra} i \pi / {g.states}}}"
-        pieces.append(f"-{tex}" if coef == "-" else f"{coef} {tex}".strip())
+        if power is None:
+            coef = f"{coef} {phase_latex(q)}".strip() if coef != "-" else f"-{phase_latex(q)}"
+        pieces.append(f"-{tex}" if coef == "-" else (f"{coef} {tex}".strip() or "1"))
     return " + ".join(pieces).replace("+ -", "- ") if pieces else "0"
 
 
-def _is_complex_sum(c: Any) -> bool:
-    return isinstance(c, complex) and c.real != 0 and c.imag != 0
-
-
-def _latex_number(c: Any) -> str:
+def _times_unit(c: Any, power: int) -> Any:
+    """``c i^power`` (exactly for exact couplings)."""
+    if power % 2 == 0:
+        return c if power == 0 else -c
+    unit = sympy.I if power == 1 else -sympy.I
+    if isinstance(c, (int, Fraction)):
+        return sympy.Rational(c.numerator, c.denominator) * unit
     if isinstance(c, sympy.Basic):
-        return sympy.latex(c, full_prec=False)
-    if isinstance(c, Fraction):
-        return sympy.latex(sympy.Rational(c.numerator, c.denominator))
-    text = format_number(c)
-    if "e" in text:
-        mant, _, e10 = text.partition("e")
-        return rf"{mant} \times 10^{{{int(e10)}}}"
-    return text
+        return c * unit
+    return complex(c) * (1j if power == 1 else -1j)
+
+
+def _is_sum(tex: str) -> bool:
+    """True when a LaTeX number has a sum in it (``1 - 2i``, ``a + b``): parenthesise it."""
+    body = tex.lstrip("-")
+    return " + " in body or " - " in body or (tex.startswith("-") and "+" in body)

@@ -1,5 +1,5 @@
-"""Foundations shared by every part: frozen results, errors, caches, JSON, HTML tables,
-references, scalars.
+"""Foundations shared by every part: frozen results, errors, caches, JSON, the display (numbers
+in text, HTML and LaTeX, and the renderings of results), HTML tables, references, scalars.
 """
 
 from .cache import (
@@ -7,6 +7,15 @@ from .cache import (
     Store,
     part,
     store_of,
+)
+from .display import (
+    DIGITS,
+    bound_text,
+    digits_for,
+    number_html,
+    number_latex,
+    number_text,
+    tex_escape,
 )
 from .errors import (
     CheckNotApplicable,
@@ -71,6 +80,7 @@ __all__ = [
     "CHAPMAN_FLAMMIA_2020",
     "CHUDNOVSKY_SEYMOUR_2007",
     "CheckNotApplicable",
+    "DIGITS",
     "ELMAN_CHAPMAN_FLAMMIA_2021",
     "FENDLEY_2014",
     "FENDLEY_2019",
@@ -85,7 +95,9 @@ __all__ = [
     "Scalar",
     "TooLargeError",
     "as_complex",
+    "bound_text",
     "check_scalar",
+    "digits_for",
     "exact_to_sympy",
     "exact_value",
     "expand_exact",
@@ -96,11 +108,15 @@ __all__ = [
     "is_number_text",
     "is_symbolic",
     "json_ready",
+    "number_html",
+    "number_latex",
+    "number_text",
     "readonly_array",
     "readonly_mapping",
     "readonly_sparse",
     "substitute",
     "substitution_map",
+    "tex_escape",
     "to_fmpq",
     "to_python_number",
     "to_sympy",

@@ -51,6 +51,7 @@ from flint import fmpq, fmpq_mat
 from ..algebra.cyclotomic import CyclotomicField, Element
 from ..algebra.model import Model
 from ..algebra.strings import WeylString, make_string, unit_phase
+from ..base import display
 from ..base.frozen import readonly_mapping
 from ..base.jsonready import json_ready
 from ..base.scalars import to_fmpq
@@ -134,7 +135,9 @@ class Witness:
         )
 
     def __repr__(self) -> str:
-        shown = ", ".join(f"{k}: {c:.6g}" for k, c in sorted(self.coefficients.items())[:4])
+        shown = ", ".join(
+            f"{k}: {display.number_text(c)}" for k, c in sorted(self.coefficients.items())[:4]
+        )
         more = " ..." if len(self.coefficients) > 4 else ""
         kind = "independent" if self.independent else "dependent"
         return f"Witness({self.string}, {{{shown}{more}}}, {kind} strings)"

@@ -32,7 +32,6 @@ chains, general p and N).
 
 from __future__ import annotations
 
-import html
 import math
 import time
 import traceback
@@ -48,6 +47,7 @@ from tqdm.auto import tqdm
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
 from ..analysis import Analysis, analyze, sector_route
+from ..base import display
 from ..base.errors import CheckNotApplicable, TooLargeError
 from ..base.jsonready import json_ready
 from ..base.references import (
@@ -190,9 +190,6 @@ class Check:
         return json_ready(out)  # type: ignore[no-any-return]
 
 
-_COLUMNS = ("check", "method", "tolerance", "value", "status", "time", "reference")
-
-
 @dataclass(frozen=True)
 class Report:
     """The checks run by :func:`verify`.
@@ -277,43 +274,8 @@ class Report:
             }
         )
 
-    def _head(self) -> str:
-        if self.ok:
-            return "ok: every check that ran passed"
-        return "NOT ok: " + "; ".join(self.problems)
-
-    def _cells(self, c: Check) -> tuple[str, ...]:
-        ran = c.passed is not None and c.value == c.value
-        return (
-            c.name,
-            c.method,
-            ("exact" if c.tolerance == 0 else f"{c.tolerance:.2g}") if c.passed is not None else "",
-            f"{c.value:.3g}" if ran else "",
-            c.status,
-            "<0.01 s" if c.seconds < 0.01 else f"{c.seconds:.2f} s",
-            c.reference,
-        )
-
     def __str__(self) -> str:
-        lines = [f"verification of {self.model_text}: {self._head()}"]
-        if self.verdict:
-            lines.append(f"verdict: {self.verdict}")
-        rows = [_COLUMNS] + [self._cells(c) for c in self.checks]
-        # the last column (reference) is printed whole; the others are clipped to align
-        clipped = [
-            tuple(t if len(t) <= 48 or k == len(r) - 1 else t[:45] + "..." for k, t in enumerate(r))
-            for r in rows
-        ]
-        widths = [max(len(r[k]) for r in clipped) for k in range(len(_COLUMNS))]
-        for r in clipped:
-            cells = [t.ljust(w) for t, w in zip(r, widths, strict=True)]
-            lines.append(("  " + "  ".join(cells)).rstrip())
-        for c in self.checks:
-            lines.append(f"  {c.name} ({c.status}): {c.detail}")
-            if c.traceback:
-                lines.extend("    " + t for t in c.traceback.rstrip().splitlines())
-        lines.extend(f"  note: {n}" for n in self.notes)
-        return "\n".join(lines)
+        return display.report_text(self)
 
     def __repr__(self) -> str:
         return (
@@ -322,30 +284,7 @@ class Report:
         )
 
     def _repr_html_(self) -> str:
-        left = "text-align:left;vertical-align:top"
-        rows = []
-        for c in self.checks:
-            colour = {True: "#1a7f37", False: "#cf222e", None: "#6e7781"}[c.passed]
-            cells = []
-            for k, t in enumerate(self._cells(c)):
-                style = left + (";white-space:nowrap" if k in (2, 3, 5) else "")
-                if k == 4:
-                    style += f";color:{colour};font-weight:bold"
-                text = f"<small>{html.escape(t)}</small>" if k == 6 else html.escape(t)
-                cells.append(f'<td style="{style}">{text}</td>')
-            detail = html.escape(c.detail)
-            if c.traceback:
-                detail += f"<pre>{html.escape(c.traceback)}</pre>"
-            cells.append(f'<td style="{left}">{detail}</td>')
-            rows.append("<tr>" + "".join(cells) + "</tr>")
-        head = "".join(f'<th style="{left}">{h}</th>' for h in (*_COLUMNS, "detail"))
-        notes = "".join(f"<p><small>{html.escape(n)}</small></p>" for n in self.notes)
-        verdict = f"<p>Verdict: {html.escape(self.verdict)}</p>" if self.verdict else ""
-        return (
-            f"<p><b>Verification</b> of <code>{html.escape(self.model_text)}</code>: "
-            f"{html.escape(self._head())}</p>{verdict}"
-            f"<table><thead><tr>{head}</tr></thead><tbody>{''.join(rows)}</tbody></table>{notes}"
-        )
+        return display.report_html(self)
 
 
 def _run(name: str, fn: Callable[..., Check], *args: Any, required: bool = False) -> Check:
@@ -630,7 +569,9 @@ def _sweep_check(name: str, res: SweepResult, keys: str, ref: str) -> Check:
         return Check(name, _SWEEP, 0.0, 0.0, True, "holds trivially: fewer than two orders", ref)
     if w is None:
         return Check(name, _SWEEP, 0.0, 0.0, True, f"every word vanishes; {size}", ref)
-    shown = ", ".join(f"{k}: {_num(c)}" for k, c in sorted(w.coefficients.items())[:6])
+    shown = ", ".join(
+        f"{k}: {display.number_text(c)}" for k, c in sorted(w.coefficients.items())[:6]
+    )
     found = f"the string {w.string} has coefficients {{{shown}}} ({keys})"
     if res.vanishes is False:
         return Check(
@@ -808,22 +749,18 @@ def sum_rule_check(m: Model, spectrum: tuple[FreeSpectrum, str] | None = None) -
     scale2 = max(float(np.sum(np.abs(eta) ** (2 * n))), abs(rhs2), 1e-300)
     dev = max(abs(lhs1 - rhs1) / scale1, abs(lhs2 - rhs2) / scale2)
     tol = FLOAT_RTOL
-    detail = (
-        f"{len(eta)} quasi-energies; sum eta^N = {_num(lhs1)} vs {_num(rhs1)}, "
-        f"sum eta^2N = {_num(lhs2)} vs {_num(rhs2)} (relative deviation)"
-    )
+    detail = _sum_rule_detail(len(eta), (lhs1, rhs1), (lhs2, rhs2))
     method, detail = _probe(why, "floating point vs exact coefficients", detail)
     ref = "coefficients of P: Newton's identities (common practice)"
     return Check(SUM_RULES, method, tol, dev, dev <= tol, detail, ref, decisive=False)
 
 
-def _num(v: complex) -> str:
-    v = complex(v)
-    if abs(v.imag) <= 1e-12 * max(1.0, abs(v)):
-        return f"{v.real:.10g}"
-    if abs(v.real) <= 1e-12 * abs(v):
-        return f"{v.imag:.10g}i"
-    return f"{v.real:.10g}{v.imag:+.10g}i"
+def _sum_rule_detail(count: int, first: tuple[Any, Any], second: tuple[Any, Any]) -> str:
+    num = display.number_text
+    return (
+        f"{count} quasi-energies; sum eta^N = {num(first[0])} vs {num(first[1])}, "
+        f"sum eta^2N = {num(second[0])} vs {num(second[1])} (relative deviation)"
+    )
 
 
 def exact_diagonalization_check(

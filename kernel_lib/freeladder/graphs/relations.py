@@ -37,6 +37,7 @@ import heapq
 import math
 from collections.abc import Iterator
 from dataclasses import dataclass
+from fractions import Fraction
 
 import numpy as np
 import scipy.sparse as sps
@@ -44,6 +45,7 @@ import scipy.sparse as sps
 from ..algebra.model import Model
 from ..algebra.printing import format_terms
 from ..algebra.strings import StringArray, make_string
+from ..base import display
 from ..base.jsonready import json_ready
 
 __all__ = ["Relation", "Relations", "find_relations"]
@@ -344,10 +346,10 @@ def _axpy(target: dict[int, int], f: int, source: dict[int, int], p: int) -> Non
 
 
 def _phase_text(z: complex) -> str:
-    for value, text in ((1, "1"), (-1, "-1"), (1j, "i"), (-1j, "-i")):
-        if abs(z - value) < 1e-12:
-            return text
-    return f"exp({cmath.phase(z) / math.pi:.6g} i pi)"
+    q = Fraction(cmath.phase(z) / math.pi).limit_denominator(1000)
+    if abs(abs(z) - 1) < 1e-12 and abs(cmath.exp(1j * math.pi * float(q)) - z) < 1e-12:
+        return display.phase_text(q)
+    return display.number_text(z)
 
 
 def _prime_factors(n: int) -> list[int]:

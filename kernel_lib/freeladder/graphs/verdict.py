@@ -32,7 +32,6 @@ F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.
 
 from __future__ import annotations
 
-import html
 from collections import deque
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field, replace
@@ -46,6 +45,7 @@ import scipy.sparse.csgraph as csgraph
 from ..algebra.model import Model
 from ..algebra.printing import format_terms
 from ..algebra.strings import WeylString
+from ..base import display
 from ..base import references as ref
 from ..base.cache import part
 from ..base.frozen import readonly_array, readonly_mapping
@@ -375,7 +375,7 @@ class Verdict:
         """The witness terms in the model's text syntax, or an empty string."""
         if not self.witness:
             return ""
-        return "; ".join(f"[{j}] {_term_text(self.model, j)}" for j in self.witness)
+        return "; ".join(f"[{j}] {text}" for j, text in self.witness_terms())
 
     def __repr__(self) -> str:
         return (
@@ -383,48 +383,19 @@ class Verdict:
             f"components={len(self.components)}, witness={self.witness!r})"
         )
 
+    def witness_terms(self) -> list[tuple[int, str]]:
+        """The witness terms as ``(index, text)`` pairs (empty when there is no witness)."""
+        return [(j, _term_text(self.model, j)) for j in self.witness]
+
+    # -- display (freeladder.base.display) ----------------------------------------------------
     def __str__(self) -> str:
-        lines = [f"Verdict: {self.kind}"]
-        lines += [f"  - {r}" for r in self.reasons]
-        if self.witness:
-            lines.append(f"  witness: {self.witness_text()}")
-        lines.append(f"  single polynomial gives the spectrum: {self.guarantee}")
-        return "\n".join(lines)
+        return display.verdict_text(self)
 
     def _repr_markdown_(self) -> str:
-        lines = [f"**Verdict: `{self.kind}`** ({len(self.model)} terms, "]
-        lines[0] += f"{len(self.components)} component{'s' if len(self.components) != 1 else ''})"
-        lines.append("")
-        lines += [f"* {r}" for r in self.reasons]
-        if self.witness:
-            lines.append("")
-            lines.append("Witness terms:")
-            lines.append("")
-            lines += [f"* `[{j}]` `{_term_text(self.model, j)}`" for j in self.witness]
-        lines += ["", f"Single polynomial gives the spectrum: {self.guarantee}"]
-        return "\n".join(lines)
+        return display.verdict_markdown(self)
 
     def _repr_html_(self) -> str:
-        esc = html.escape
-        n_comp = len(self.components)
-        parts = [
-            f"<div><b>Verdict: <code>{esc(self.kind)}</code></b> "
-            f"({len(self.model)} terms, {n_comp} component{'s' if n_comp != 1 else ''})",
-            "<ul>" + "".join(f"<li>{esc(r)}</li>" for r in self.reasons) + "</ul>",
-        ]
-        if self.witness:
-            rows = "".join(
-                f"<tr><td>{j}</td><td><code>{esc(_term_text(self.model, j))}</code></td></tr>"
-                for j in self.witness
-            )
-            parts.append(f"<table><tr><th>term</th><th>witness</th></tr>{rows}</table>")
-        head = "proven" if self.guarantee.proven else "NOT GUARANTEED"
-        parts.append(
-            f"<p>Single polynomial gives the spectrum: <b>{head}</b>: "
-            f"{esc(self.guarantee.reason)}</p>"
-        )
-        parts.append("</div>")
-        return "".join(parts)
+        return display.verdict_html(self)
 
 
 def classify(m: Model) -> Verdict:

@@ -28,6 +28,7 @@ from typing import Any, TextIO
 from ..algebra.model import Model
 from ..algebra.syntax import parse_model
 from ..analysis import Analysis, analyze
+from ..base import display
 from ..base.jsonready import json_ready
 
 __all__ = ["EXPORT_SUFFIXES", "main", "report_data"]
@@ -78,8 +79,8 @@ def _number(v: Any) -> str:
         return "-"
     if isinstance(v, list):
         re, im = v
-        return f"{re:.12g}{im:+.12g}i"
-    return f"{v:.12g}"
+        return display.number_text(complex(re, im))
+    return display.number_text(v)
 
 
 def _print_report(data: dict[str, Any], out: TextIO) -> None:
@@ -117,7 +118,7 @@ def _print_report(data: dict[str, Any], out: TextIO) -> None:
         eta, bounds = sp["quasi_energies"], sp["error_bounds"]
         w(f"quasi-energies ({len(eta)}, smallest first; bound on each):\n")
         for e, b in list(zip(eta, bounds, strict=True))[:_SHOWN_ENERGIES]:
-            w(f"  {_number(e):>28}  +- {'-' if b is None else format(b, '.2g')}\n")
+            w(f"  {_number(e):>28}  +- {'-' if b is None else display.bound_text(b)}\n")
         if len(eta) > _SHOWN_ENERGIES:
             w(f"  ... {len(eta) - _SHOWN_ENERGIES} more (use --json for all)\n")
         w(f"ground energy: {_number(sp['ground_energy'])}\n")

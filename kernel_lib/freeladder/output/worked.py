@@ -12,9 +12,11 @@ LaTeX section for a supplement (:meth:`WorkedCalculation.to_latex`).
 
 from __future__ import annotations
 
+import hashlib
 import json
 import math
 import numbers
+import textwrap
 from collections.abc import Iterable, Iterator, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
@@ -24,13 +26,17 @@ from typing import Any, NamedTuple, overload
 import numpy as np
 
 from ..algebra.model import Model
+from ..algebra.printing import format_terms, format_terms_latex
+from ..algebra.syntax import parse_model
 from ..analysis import Analysis, analyze
+from ..base import display
 from ..base import references as refs
 from ..base.jsonready import json_ready
 from ..checks.verification import Report
 from ..graphs.graph import ADJACENCY
 from ..spectra.answer import SpectrumAnswer
 from ..spectra.charges import transfer_matrix
+from ..spectra.ed import ExactSpectrum
 from ..spectra.spectrum import FreeSpectrum
 
 __all__ = ["STEPS", "Cell", "WorkedCalculation", "worked_calculation"]
@@ -162,7 +168,7 @@ class WorkedCalculation(Sequence[Cell]):
             else:
                 nb.cells.append(nbformat.v4.new_markdown_cell(cell.source))
         nbformat.validate(nb)
-        target.write_text(nbformat.writes(nb), encoding="utf-8")
+        target.write_text(nbformat.writes(nb) + "\n", encoding="utf-8")
         return target
 
     def to_script(self) -> str:
@@ -172,16 +178,25 @@ class WorkedCalculation(Sequence[Cell]):
             if cell.kind == "code":
                 parts.append(cell.source.rstrip() + "\n")
             else:
-                lines = cell.source.rstrip().splitlines()
-                parts.append("\n".join(("# " + ln).rstrip() for ln in lines) + "\n")
+                lines = []
+                for line in cell.source.rstrip().splitlines():
+                    wrapped = textwrap.wrap(
+                        line, width=97, break_long_words=False, break_on_hyphens=False
+                    )
+                    lines += [("# " + w).rstrip() for w in wrapped] or ["#"]
+                parts.append("\n".join(lines) + "\n")
         return "\n".join(parts) + '\nprint("every step of the worked calculation checked out")\n'
 
-    def to_latex(self) -> str:
-        """A standalone LaTeX section for a supplement (needs ``amsmath`` only).
+    def to_latex(self, standalone: bool = False) -> str:
+        """A LaTeX section for a supplement (needs the packages ``amsmath``, ``longtable``
+        and ``array``), or with ``standalone=True`` a whole document that compiles as it is.
 
-        It holds the model, the theorem that applies (or the statement that none does), the
-        exclusion polynomial, a table of quasi-energies with their bounds and the checks.
+        It holds the model (broken over lines), the theorem that applies (or the statement
+        that none does), the exclusion polynomial, a table of quasi-energies with their bounds
+        and the checks (tables that break across pages, cells that wrap).
         """
+        if standalone:
+            return _LATEX_PREAMBLE + self.latex + "\\end{document}\n"
         return self.latex
 
 
@@ -213,47 +228,177 @@ def _array_literal(values: Iterable[Any]) -> str:
     return "[" + ", ".join(_literal(v) for v in values) + "]"
 
 
-def _num(v: Any, digits: int = 12) -> str:
-    """A number for reading (markdown and LaTeX), not for recomputation."""
-    if isinstance(v, np.generic):
-        v = v.item()
-    if isinstance(v, complex):
-        if v.imag == 0:
-            return f"{v.real:.{digits}g}"
-        return f"{v.real:.{digits}g} {'+' if v.imag >= 0 else '-'} {abs(v.imag):.{digits}g}i"
-    if isinstance(v, float):
-        return f"{v:.{digits}g}"
-    return str(v)
+def _num(v: Any) -> str:
+    """A number for reading (markdown): the display's text form."""
+    return display.number_text(v)
 
 
-def _bound(b: float) -> str:
-    return f"{b:.2g}" if math.isfinite(b) else "none"
+def _sentence(text: str) -> str:
+    """``text`` ending in exactly one full stop."""
+    text = text.rstrip()
+    return text if text.endswith((".", "!", "?")) else text + "."
 
 
-_TEX_SPECIAL = {
-    "\\": r"\textbackslash{}",
-    "&": r"\&",
-    "%": r"\%",
-    "$": r"\$",
-    "#": r"\#",
-    "_": r"\_",
-    "{": r"\{",
-    "}": r"\}",
-    "~": r"\textasciitilde{}",
-    "^": r"\textasciicircum{}",
-    "<": r"\textless{}",
-    ">": r"\textgreater{}",
-    "[": "{[}",
-    "]": "{]}",
-}
+def _wrapped(head: str, items: Sequence[str], tail: str) -> str:
+    """``head + ", ".join(items) + tail``, reflowed by :func:`_fit` when too long."""
+    return _fit(head + ", ".join(items) + tail)
 
 
-def _tex(text: str) -> str:
-    return "".join(_TEX_SPECIAL.get(ch, ch) for ch in text)
+def _fit(code: str, width: int = 100) -> str:
+    """Code lines longer than ``width`` with their longest bracketed list broken over lines,
+    as many items per line as fit (lint-clean exports: no line past the project's limit)."""
+    out = []
+    for line in code.split("\n"):
+        out.append(_fit_line(line, width) if len(line) > width else line)
+    return "\n".join(out)
+
+
+def _fit_line(line: str, width: int) -> str:
+    spans = [(a, b) for a, b in _bracket_spans(line) if len(_top_level_items(line[a + 1 : b])) > 1]
+    if not spans:
+        return line
+    start, end = max(spans, key=lambda se: se[1] - se[0])
+    items = _top_level_items(line[start + 1 : end])
+    indent = " " * (len(line) - len(line.lstrip()))
+    inner = indent + "    "
+    rows: list[str] = []
+    current = ""
+    for item in items:
+        piece = f"{current} {item}," if current else f"{inner}{item},"
+        if current and len(piece) > width:
+            rows.append(current)
+            current = f"{inner}{item},"
+        else:
+            current = piece
+    rows.append(current)
+    return "\n".join([line[: start + 1], *rows, indent + line[end:]])
+
+
+def _bracket_spans(line: str) -> list[tuple[int, int]]:
+    """``(open, close)`` index pairs of the brackets of ``line`` outside string literals."""
+    spans, stack = [], []
+    quote = ""
+    for k, ch in enumerate(line):
+        if quote:
+            if ch == quote and line[k - 1] != "\\":
+                quote = ""
+        elif ch in "\"'":
+            quote = ch
+        elif ch in "([{":
+            stack.append(k)
+        elif ch in ")]}" and stack:
+            spans.append((stack.pop(), k))
+    return spans
+
+
+def _top_level_items(text: str) -> list[str]:
+    """The comma-separated items of ``text`` at bracket depth 0, outside string literals."""
+    items, depth, quote, current = [], 0, "", ""
+    for k, ch in enumerate(text):
+        if quote:
+            if ch == quote and text[k - 1] != "\\":
+                quote = ""
+        elif ch in "\"'":
+            quote = ch
+        elif ch in "([{":
+            depth += 1
+        elif ch in ")]}":
+            depth -= 1
+        elif ch == "," and depth == 0:
+            items.append(current.strip())
+            current = ""
+            continue
+        current += ch
+    if current.strip():
+        items.append(current.strip())
+    return items
+
+
+def _text_literal(text: str, indent: str = "    ", width: int = 92) -> list[str]:
+    """A long ASCII string as adjacent double-quoted literals, split before ``+`` and ``-``."""
+    pieces: list[str] = []
+    current = ""
+    for token in text.split(" "):
+        candidate = f"{current} {token}" if current else token
+        if current and token in ("+", "-") and len(candidate) > width - 20:
+            pieces.append(current + " ")
+            current = token
+        elif len(candidate) > width and current:
+            pieces.append(current + " ")
+            current = token
+        else:
+            current = candidate
+    pieces.append(current)
+    return [indent + json.dumps(p) for p in pieces]
+
+
+def _model_text(m: Model) -> str | None:
+    """The model's text, when parsing it gives the same model back (strings, coupling values
+    and kinds, constant, sites); None otherwise."""
+    text = format_terms(m.terms, m.constant, keep_types=True)
+    try:
+        again = parse_model(text, states=m.states, sites=list(m.sites))
+    except (ValueError, TypeError):
+        return None
+    same = (
+        [(_kind(c), c, g) for c, g in again.terms] == [(_kind(c), c, g) for c, g in m.terms]
+        and _kind(again.constant) == _kind(m.constant)
+        and again.constant == m.constant
+        and again.sites == m.sites
+    )
+    return text if same else None
+
+
+def _kind(c: Any) -> str:
+    """ "exact" for int and Fraction (the same arithmetic), else the type's name."""
+    return "exact" if isinstance(c, (int, Fraction)) else type(c).__name__
+
+
+def _rebuilt(m: Model) -> Model:
+    """The model as the exported cells build it (from its text where that reads back)."""
+    text = _model_text(m)
+    return m if text is None else parse_model(text, states=m.states, sites=list(m.sites))
+
+
+def _fingerprint(m: Model) -> str:
+    """SHA-256 (16 hex digits) of the model's strings, exact couplings, constant and sites.
+
+    The exported cells compute the same expression (:data:`_FINGERPRINT_SOURCE`).
+    """
+    parts = [(t.string.factors, t.string.phase, t.coupling) for t in m.terms]
+    exact = repr(parts + [m.constant, m.sites])
+    return hashlib.sha256(exact.encode()).hexdigest()[:16]
+
+
+_FINGERPRINT_SOURCE = (
+    "parts = [(t.string.factors, t.string.phase, t.coupling) for t in m.terms]\n"
+    "exact = repr(parts + [m.constant, m.sites])\n"
+    "fingerprint = hashlib.sha256(exact.encode()).hexdigest()[:16]"
+)
 
 
 def _model_source(m: Model) -> str:
-    lines = ["terms = ["]
+    """The model rebuilt from its text, or (when the text does not read back exactly) from
+    its strings with every coupling written literally."""
+    text = _model_text(m)
+    if text is not None:
+        options = [] if m.states == 2 else [f"states={m.states}"]
+        if parse_model(text, states=m.states).sites != m.sites:
+            options.append(f"sites={list(m.sites)!r}")
+        call = f"m = fl.parse_model({', '.join([json.dumps(text), *options])})"
+        if len(call) <= 100:
+            return call
+        literal = _text_literal(text)
+        literal[-1] += ","
+        return "\n".join(
+            ["m = fl.parse_model(", *literal]
+            + ([f"    {', '.join(options)},"] if options else [])
+            + [")"]
+        )
+    lines = [
+        "# The model, every coupling written literally (floats round-trip through repr).",
+        "terms = [",
+    ]
     for term in m.terms:
         g = term.string
         factors = ", ".join(f"({site!r}, {a}, {b})" for site, a, b in g.factors)
@@ -270,7 +415,20 @@ def _model_source(m: Model) -> str:
 
 
 def _model_latex(m: Model) -> str:
-    return m._repr_latex_().strip("$")
+    """``H = ...`` in LaTeX, broken over lines where it is long."""
+    pieces = [format_terms_latex([], m.constant)] if m.constant != 0 else []
+    pieces += [format_terms_latex([term]) for term in m.terms]
+    return display.aligned_sum(pieces, "H")
+
+
+def _display_block(formula: str) -> list[str]:
+    """A display formula for the LaTeX export: an ``aligned`` block becomes ``align*`` (it
+    may break across pages with ``\\allowdisplaybreaks``), anything else ``equation*``."""
+    head, tail = r"\begin{aligned} ", r" \end{aligned}"
+    if formula.startswith(head) and formula.endswith(tail):
+        rows = formula[len(head) : -len(tail)].split(r" \\ ")
+        return ["\\begin{align*}", *[r + " \\\\" for r in rows[:-1]], rows[-1], "\\end{align*}"]
+    return ["\\begin{equation*}", formula, "\\end{equation*}"]
 
 
 # -- the steps -----------------------------------------------------------------------------------
@@ -290,6 +448,7 @@ class _Facts:
     report: Report
     inversion_holds: bool | None
     answer: SpectrumAnswer
+    exact: ExactSpectrum | None
 
 
 def _collect(a: Analysis) -> _Facts:
@@ -307,6 +466,7 @@ def _collect(a: Analysis) -> _Facts:
     inversion: bool | None = None
     if m.dimension <= DENSE_LIMIT and sum(counts) <= DENSE_SETS:
         inversion = _dense_inversion(m, poly)
+    dense = a.exact
     return _Facts(
         m,
         a.verdict,
@@ -320,6 +480,7 @@ def _collect(a: Analysis) -> _Facts:
         a.report(),
         inversion,
         answer,
+        dense,
     )
 
 
@@ -352,21 +513,57 @@ def _intro(f: _Facts) -> list[Cell]:
         "# Worked calculation\n\n"
         f"The model has {len(m)} terms on {len(m.sites)} sites with N = {m.states} states per "
         f"site (Hilbert-space dimension {m.states}^{len(m.sites)}):\n\n"
-        f"$$H = {_model_latex(m)}$$\n\n"
+        f"$$\n{_model_latex(m)}\n$$\n\n"
         "written as $H = \\sum_j c_j g_j$ with operator strings normalised to $g_j^N = 1$.\n\n"
         f"{status} Each code cell rebuilds what it needs with `freeladder` and fails with an "
         "`AssertionError` when a recomputed value leaves its stated tolerance: change a coupling "
         "below and the cells say so."
     )
+    # the imports are filled in by worked_calculation once every cell is known
+    code = f"{_model_source(m)}\nprint(m)"
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+def _imports(cells: Sequence[Cell]) -> str:
+    """The imports the code cells use, and only those (lint-clean exports)."""
+    code = "\n".join(c.source for c in cells if c.kind == "code")
+    lines = ["import hashlib"] if "hashlib." in code else []
+    if "Fraction(" in code:
+        lines.append("from fractions import Fraction")
+    if "np." in code:
+        lines += ["", "import numpy as np"]
+    lines += ["", "import freeladder as fl"]
+    if "NoTheoremError" in code:
+        lines.append("from freeladder.base.errors import NoTheoremError")
+    return "\n".join(lines).lstrip("\n") + "\n\n"
+
+
+def _model_check_cells(f: _Facts) -> list[Cell]:
+    m = _rebuilt(f.model)
+    text = str(m)
+    md = (
+        "## The model itself\n\n"
+        "The cells below check this model and no other: its text, its size and a fingerprint "
+        "(SHA-256 of its strings, exact couplings, constant and sites) must be as exported. "
+        "Change a coupling above and this cell fails first; the steps after it say which "
+        "numbers moved."
+    )
+    if len(f"assert str(m) == {json.dumps(text)}, str(m)") <= 100:
+        text_check = f"assert str(m) == {json.dumps(text)}, str(m)"
+    else:
+        text_check = "\n".join(
+            [
+                "expected_text = (",
+                *_text_literal(text),
+                ")",
+                "assert str(m) == expected_text, str(m)",
+            ]
+        )
     code = (
-        "from fractions import Fraction\n\n"
-        "import numpy as np\n\n"
-        "import freeladder as fl\n"
-        "from freeladder.base.errors import NoTheoremError\n\n"
-        "# The model, every coupling written literally (floats round-trip through repr).\n"
-        f"{_model_source(m)}\n"
-        f"assert len(m) == {len(m)} and m.states == {m.states}\n"
-        "print(m)"
+        f"{text_check}\n"
+        f"assert (len(m), m.states, len(m.sites)) == ({len(m)}, {m.states}, {len(m.sites)})\n"
+        f"{_FINGERPRINT_SOURCE}\n"
+        f"assert fingerprint == {_fingerprint(m)!r}, fingerprint"
     )
     return [Cell("markdown", md), Cell("code", code)]
 
@@ -480,9 +677,9 @@ def _polynomial_cells(f: _Facts) -> list[Cell]:
             "residual = np.abs(product - target).max()",
             "print('inversion relation residual:', residual)",
             "holds = residual <= 1e-9 * max(1.0, float(np.abs(target).max()))",
-            f"assert holds == {f.inversion_holds!r}, residual",
+            f"assert {'' if f.inversion_holds else 'not '}holds, residual",
         ]
-    lines.append("P")
+    lines.append("print(P)")
     return [Cell("markdown", md), Cell("code", "\n".join(lines))]
 
 
@@ -520,7 +717,9 @@ def _spectrum_cells(f: _Facts) -> list[Cell]:
     for k, (y, eta, b) in enumerate(
         zip(sp.roots, sp.quasi_energies, sp.error_bounds, strict=True), start=1
     ):
-        rows.append(f"| {k} | {_num(complex(y))} | {_num(eta)} | {_bound(float(b))} |")
+        digits = display.digits_for(eta, float(b))
+        shown = (display.number_text(v, digits) for v in (y, eta))
+        rows.append(f"| {k} | {' | '.join(shown)} | {display.bound_text(float(b))} |")
     where = ""
     if sector:
         values = ", ".join(
@@ -534,8 +733,8 @@ def _spectrum_cells(f: _Facts) -> list[Cell]:
     md = (
         "## Roots and quasi-energies\n\n"
         "$$P(y_k) = 0, \\qquad \\eta_k^N = 1 / y_k$$\n\n"
-        f"{where}Theorem: {prov.guarantee}. Root finder: {prov.path}; "
-        f"bounds: {prov.bounds}.\n\n"
+        f"{where}Theorem: {_sentence(str(prov.guarantee))} Root finder: {prov.path}; "
+        f"bounds: {_sentence(str(prov.bounds))}\n\n"
         + "\n".join(rows)
         + "\n\nTolerance of the check below: the exported bound plus the recomputed bound "
         f"plus {ULPS} units in the last place, so both values lie within their bounds of the "
@@ -582,7 +781,7 @@ def _level_cells(f: _Facts) -> list[Cell]:
     mult = (
         f"each with multiplicity {sp.degeneracy} ({sp.degeneracy_reason})" if sp.degeneracy else ""
     )
-    lines = ", ".join(_num(e, 10) for e in energies)
+    lines = ", ".join(_num(e) for e in energies)
     md = (
         "## Levels\n\n"
         "$$E = E_0 + \\sum_k \\omega^{s_k} \\eta_k, \\qquad s_k \\in \\{0, \\dots, N-1\\}$$\n\n"
@@ -602,7 +801,46 @@ def _level_cells(f: _Facts) -> list[Cell]:
         "distance = np.abs(energies[:, None] - expected_levels[None, :])\n"
         "worst = max(distance.min(axis=0).max(), distance.min(axis=1).max())\n"
         'assert worst <= level_tol, ("levels moved", worst, level_tol)\n'
-        "levels"
+        "print(levels)"
+    )
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+SHOWN_EXACT = 4
+"""How many of the lowest exact levels are exported."""
+
+
+def _exact_cells(f: _Facts) -> list[Cell]:
+    """The lowest levels of exact diagonalization, asserted: they move with any coupling,
+    also where the charges and the polynomial see only the couplings' N-th powers."""
+    ed = f.exact
+    if ed is None:
+        return []
+    shown = min(SHOWN_EXACT, len(ed.levels))
+    levels = [complex(v) for v in ed.levels[:shown]]
+    mults = [int(d) for d in ed.multiplicities[:shown]]
+    listed = ", ".join(f"{_num(v)} (x{d})" for v, d in zip(levels, mults, strict=True))
+    md = (
+        "## Exact diagonalization\n\n"
+        f"The Hamiltonian as a dense {ed.dimension} x {ed.dimension} matrix ({ed.method}): "
+        f"its {shown} lowest levels, with multiplicities, are {listed}. They depend on every "
+        "coupling, signs included, so they pin the model where the charges and $P$ see only "
+        "the $c_j^N$. Tolerance: twice the clustering tolerance of the diagonalization "
+        f"({display.bound_text(ed.tolerance)}; rounding of a dense eigensolver, common practice)."
+    )
+    code = (
+        "ed = fl.exact_spectrum(m)\n"
+        "exact_levels = np.asarray(ed.levels, dtype=complex)\n"
+        f"expected_exact = np.array({_array_literal(levels)})\n"
+        f"exact_tol = 2 * max(ed.tolerance, {_float_literal(float(ed.tolerance))})\n"
+        "# each exported level beside its nearest exact level (order-free: conjugate pairs)\n"
+        "nearest = np.abs(expected_exact[:, None] - exact_levels[None, :]).argmin(axis=1)\n"
+        "exact_error = np.abs(exact_levels[nearest] - expected_exact)\n"
+        'assert np.all(exact_error <= exact_tol), ("exact levels moved", exact_error, exact_tol)\n'
+        f"assert [int(ed.multiplicities[k]) for k in nearest] == {mults!r}, ed.multiplicities\n"
+        "lowest = exact_levels.real.min() - expected_exact.real.min()\n"
+        'assert abs(lowest) <= exact_tol, ("exact levels moved", lowest, exact_tol)\n'
+        "print(ed)"
     )
     return [Cell("markdown", md), Cell("code", code)]
 
@@ -611,16 +849,19 @@ def _check_cells(f: _Facts) -> list[Cell]:
     r = f.report
     rows = ["| check | method | tolerance | value | result |", "| --- | --- | --- | --- | --- |"]
     for c in r.checks:
-        tol = "exact" if c.tolerance == 0 else f"{c.tolerance:.2g}"
-        name, method = (t.replace("|", "\\|") for t in (c.name, c.method))
-        rows.append(f"| {name} | {method} | {tol} | {c.value:.3g} | {c.status} |")
+        name, method, tol, value, status = (
+            t.replace("|", "\\|") for t in display.check_cells(c)[:5]
+        )
+        rows.append(f"| {name} | {method} | {tol} | {value} | {status} |")
     sources = sorted({c.reference for c in r.checks if c.reference})
     notes = "\n".join(f"* {n}" for n in r.notes)
     md = (
         "## Checks\n\n"
         "`fl.verify` checks the charges against $H$ and each other, the inversion relation "
         "and, where the size allows, the spectrum against exact diagonalization. A check that "
-        "could not run is reported as not run and never counts as passed.\n\n"
+        "could not run is reported as not run and never counts as passed. A value is the "
+        "check's residual: the cell asserts each check's result, that is, that the residual "
+        "stays within its tolerance.\n\n"
         + "\n".join(rows)
         + ("\n\nSources: " + "; ".join(sources) if sources else "")
         + ("\n\n" + notes if notes else "")
@@ -630,7 +871,12 @@ def _check_cells(f: _Facts) -> list[Cell]:
         "report = fl.verify(m)\n"
         "print(report)\n"
         "statuses = {check.name: check.status for check in report.checks}\n"
-        f"assert statuses == {json.dumps(statuses, indent=1)}, statuses\n"
+        + _wrapped(
+            "assert statuses == {",
+            [f"{json.dumps(k)}: {json.dumps(v)}" for k, v in statuses.items()],
+            "}, statuses",
+        )
+        + "\n"
         + (
             'assert report.ok, report.problems\nprint("all checks passed")'
             if r.ok
@@ -640,59 +886,71 @@ def _check_cells(f: _Facts) -> list[Cell]:
     return [Cell("markdown", md), Cell("code", code)]
 
 
+_LATEX_PREAMBLE = (
+    "\\documentclass{article}\n"
+    "\\usepackage[margin=2.5cm]{geometry}\n"
+    "\\usepackage{amsmath}\n"
+    "\\usepackage{longtable}\n"
+    "\\usepackage{array}\n"
+    "\\allowdisplaybreaks\n"
+    "\\begin{document}\n"
+)
+
+
 def _latex_section(f: _Facts) -> str:
     m, sp, r = f.model, f.spectrum, f.report
+    tex = display.tex_escape
     out = [
-        "% Worked calculation exported by freeladder; needs \\usepackage{amsmath}.",
+        "% Worked calculation exported by freeladder; needs the packages amsmath, longtable and",
+        "% array (to_latex(standalone=True) gives a whole document).",
         "\\section{Worked calculation}",
         f"The model has {len(m)} terms on {len(m.sites)} sites with $N = {m.states}$:",
-        "\\begin{equation*}",
-        f"H = {_model_latex(m)}",
-        "\\end{equation*}",
-        f"Verdict: \\emph{{{_tex(f.verdict.kind)}}}.",
+        *_display_block(_model_latex(m)),
+        f"Verdict: \\emph{{{tex(f.verdict.kind)}}}.",
         "\\begin{itemize}",
-        *[f"\\item {_tex(reason)}" for reason in f.verdict.reasons],
+        *[f"\\item {tex(reason)}" for reason in f.verdict.reasons],
         "\\end{itemize}",
     ]
     if sp is not None:
-        out.append(f"\\paragraph{{Theorem.}} {_tex(str(sp.provenance.guarantee))}.")
+        out.append(f"\\paragraph{{Theorem.}} {tex(_sentence(str(sp.provenance.guarantee)))}")
     else:
-        out.append(f"\\paragraph{{No theorem.}} {_tex(f.no_theorem)} No spectrum is claimed.")
+        out.append(
+            f"\\paragraph{{No theorem.}} {tex(_sentence(f.no_theorem))} No spectrum is claimed."
+        )
     out += [
         "The exclusion polynomial, $P(y) = \\sum_s (-1)^s C_s y^s$ with "
         "$C_s = \\sum_{|S| = s} \\prod_{j \\in S} c_j^N$ over independent sets "
-        f"({_tex(refs.FENDLEY_2019)}; {_tex(refs.ALCARAZ_PIMENTA_2020)}):",
+        f"({tex(refs.FENDLEY_2019)}; {tex(refs.ALCARAZ_PIMENTA_2020)}):",
         "\\begin{equation*}",
         f.polynomial_latex,
         "\\end{equation*}",
     ]
     if sp is not None:
         out += [
-            "\\begin{table}[h]",
-            "\\centering",
+            "\\begin{longtable}{r>{$}l<{$}>{$}l<{$}}",
             f"\\caption{{Quasi-energies $\\eta_k$, $\\eta_k^N = 1/y_k$, with their bounds "
-            f"({_tex(str(sp.provenance.bounds))}).}}",
-            "\\begin{tabular}{rll}",
-            "$k$ & $\\eta_k$ & bound \\\\",
+            f"({tex(str(sp.provenance.bounds))}).}} \\\\",
+            "$k$ & \\eta_k & \\text{bound} \\\\",
             "\\hline",
+            "\\endhead",
         ]
         for k, (eta, b) in enumerate(zip(sp.quasi_energies, sp.error_bounds, strict=True), 1):
-            out.append(f"{k} & ${_num(eta, 15)}$ & ${_bound(float(b))}$ \\\\")
-        out += ["\\end{tabular}", "\\end{table}"]
+            shown = display.number_latex(eta, display.digits_for(eta, float(b)))
+            out.append(f"{k} & {shown} & {display.bound_text(float(b))} \\\\")
+        out += ["\\end{longtable}"]
     out += [
-        "\\begin{table}[h]",
-        "\\centering",
-        "\\caption{Checks run by freeladder's \\texttt{verify}.}",
-        "\\begin{tabular}{llll}",
+        "\\begin{longtable}{p{0.22\\linewidth}p{0.36\\linewidth}p{0.2\\linewidth}"
+        "p{0.1\\linewidth}}",
+        "\\caption{Checks run by freeladder's \\texttt{verify}.} \\\\",
         "check & method & value (tolerance) & result \\\\",
         "\\hline",
+        "\\endhead",
     ]
     for c in r.checks:
-        tol = "exact" if c.tolerance == 0 else f"{c.tolerance:.2g}"
-        out.append(
-            f"{_tex(c.name)} & {_tex(c.method)} & {c.value:.3g} ({tol}) & {_tex(c.status)} \\\\"
-        )
-    out += ["\\end{tabular}", "\\end{table}", ""]
+        name, method, tol, value, status = display.check_cells(c)[:5]
+        shown = f"{value} ({tol})" if value else tol
+        out.append(f"{tex(name)} & {tex(method)} & {tex(shown)} & {tex(status)} \\\\")
+    out += ["\\end{longtable}", ""]
     return "\n".join(out)
 
 
@@ -773,20 +1031,22 @@ def build_worked(a: Analysis, steps: str | Sequence[str] = "all") -> WorkedCalcu
         if unknown:
             raise ValueError(f"unknown step(s) {sorted(unknown)}; choose from {STEPS}")
     facts = _collect(a)
-    cells = _intro(facts)
+    cells = _intro(facts) + _model_check_cells(facts)
     builders = {
         "verdict": _verdict_cells,
         "charges": _charge_cells,
         "polynomial": _polynomial_cells,
         "spectrum": _spectrum_cells,
         "levels": _level_cells,
-        "checks": _check_cells,
+        "checks": lambda facts: _exact_cells(facts) + _check_cells(facts),
     }
     for name in STEPS[1:]:
         if name in chosen:
             if name == "levels" and "spectrum" not in chosen:
                 raise ValueError("the 'levels' step needs the 'spectrum' step")
             cells += builders[name](facts)
+    cells[1] = Cell("code", _imports(cells) + cells[1].source)
+    cells = [Cell(c.kind, _fit(c.source)) if c.kind == "code" else c for c in cells]
     return WorkedCalculation(
         tuple(cells), str(m), facts.spectrum is not None, _latex_section(facts)
     )

@@ -43,6 +43,7 @@ import flint
 import numpy as np
 
 from ..algebra.model import Model
+from ..base import display
 from ..base.cache import part
 from ..base.errors import TooLargeError
 from ..base.jsonready import json_ready
@@ -604,41 +605,12 @@ class ExclusionPolynomial:
             mant[i], expo[i] = _split(vr, vi, complex_out)
         return mant, expo
 
-    # -- display ---------------------------------------------------------------------------------
-    def _shown_orders(self) -> list[int]:
-        if self.degree <= 8:
-            return list(range(self.degree + 1))
-        return [0, 1, 2, 3, -1, self.degree]
-
+    # -- display (freeladder.base.display) ----------------------------------------------------
     def __repr__(self) -> str:
-        pieces = []
-        for s in self._shown_orders():
-            if s < 0:
-                pieces.append("...")
-                continue
-            text = _short_text(self.coefficients[s])
-            if s and (" " in text.lstrip("-") or "+" in text.lstrip("-")):
-                text = f"({text})"
-            pieces.append(text if s == 0 else f"{text} y^{s}")
-        chain = f", chain reach {self._chain[1]}" if self._chain is not None else ""
-        return (
-            f"ExclusionPolynomial(degree={self.degree}, N={self.states}, {self.kind}{chain}: "
-            + _signed_terms(pieces)
-            + ")"
-        )
+        return display.polynomial_text(self)
 
     def _repr_latex_(self) -> str:
-        pieces = []
-        for s in self._shown_orders():
-            if s < 0:
-                pieces.append(r"\cdots")
-                continue
-            coef = _latex_number(self.coefficients[s])
-            if s and ("+" in coef or " - " in coef or coef.startswith(r"\approx")):
-                coef = rf"\left({coef}\right)"
-            mono = "" if s == 0 else ("y" if s == 1 else f"y^{{{s}}}")
-            pieces.append(f"{coef} {mono}".strip())
-        return "$P(y) = " + _signed_terms(pieces) + "$"
+        return "$" + display.polynomial_latex(self) + "$"
 
 
 def _to_exact_number(w: Any) -> Any:
@@ -668,50 +640,6 @@ def _as_float(c: Any) -> float:
         return float(c)
     except OverflowError:
         return math.inf if c > 0 else -math.inf
-
-
-def _short_text(c: Any) -> str:
-    """A coefficient for display: exact when short, about 6 digits (marked ``~``) when long."""
-    if isinstance(c, sympy.Basic):
-        text = sympy.sstr(c)
-        return text if len(text) <= 60 else text[:57] + "..."
-    if isinstance(c, (int, Fraction)):
-        value = Fraction(c)
-        if value.numerator.bit_length() + value.denominator.bit_length() > 130:
-            return _approx(value)
-        return str(c) if value.denominator != 1 else str(value.numerator)
-    text = str(c)
-    return text if len(text) <= 40 else _approx(c)
-
-
-def _approx(c: Any) -> str:
-    """About 6 significant digits of a long exact number, written as approximate."""
-    if isinstance(c, complex):
-        return f"~{c:.6g}"
-    value = Fraction(c)
-    if value == 0:
-        return "0"
-    e10 = math.floor(math.log10(abs(value.numerator)) - math.log10(value.denominator))
-    mant = float(value / Fraction(10) ** e10)
-    return f"~{mant:.6f}e{e10:+d}"
-
-
-def _signed_terms(texts: Sequence[str]) -> str:
-    """Join ``coefficient monomial`` pieces, turning ``+ -`` into ``-``."""
-    out = texts[0]
-    for t in texts[1:]:
-        out += " - " + t[1:] if t.startswith("-") else " + " + t
-    return out
-
-
-def _latex_number(c: Any) -> str:
-    text = _short_text(c)
-    if text.startswith("~"):
-        mant, _, e10 = text[1:].partition("e")
-        if not e10:
-            return r"\approx " + mant
-        return rf"\approx {mant} \times 10^{{{int(e10)}}}"
-    return sympy.latex(to_sympy(c))
 
 
 def _split(vr: Fraction, vi: Fraction, complex_out: bool) -> tuple[complex | float, int]:

@@ -288,9 +288,9 @@ class ChargeStep:
         )
 
     def text(self, max_terms: int = 12) -> str:
-        """``Q^(s) = ...`` in text syntax, the first ``max_terms`` products then a count."""
+        """``Q^(s) = ...`` for reading, the first ``max_terms`` products then a count."""
         shown = self.head(max_terms)
-        body = format_terms([(t.coupling, t.string) for t in shown]) if shown else "0"
+        body = format_terms([(t.coupling, t.string) for t in shown], display=True) if shown else "0"
         more = self.count - len(shown)
         tail = f" + ... ({more} more products)" if more > 0 else ""
         return f"Q^({self.order}) = {body}{tail}"

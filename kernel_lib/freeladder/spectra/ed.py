@@ -16,7 +16,6 @@ restarted Lanczos / Arnoldi iterations.
 
 from __future__ import annotations
 
-import html
 import os
 from dataclasses import dataclass
 from typing import Any
@@ -25,9 +24,9 @@ import numpy as np
 import scipy.sparse as sps
 
 from ..algebra.model import Model
+from ..base import display
 from ..base.errors import TooLargeError
 from ..base.frozen import readonly_array
-from ..base.htmltable import grid_table
 from ..base.jsonready import json_ready
 
 __all__ = ["DENSE_LIMIT", "SPARSE_LIMIT", "ExactSpectrum", "exact_spectrum"]
@@ -107,45 +106,10 @@ class ExactSpectrum:
         )
 
     def __repr__(self) -> str:
-        shown = ", ".join(
-            f"{_num(v)} (x{int(d)})"
-            for v, d in zip(self.levels[:8], self.multiplicities[:8], strict=True)
-        )
-        more = f", ... {len(self.levels) - 8} more" if len(self.levels) > 8 else ""
-        part = "all" if self.complete else f"lowest {len(self.eigenvalues)}"
-        return (
-            f"ExactSpectrum(dimension={self.dimension}, {part} eigenvalues, {self.method}, "
-            f"levels: {shown}{more}; clustering tolerance {self.tolerance:.2g}, "
-            f"error estimate {self.error_estimate:.2g})"
-        )
+        return display.exact_spectrum_repr(self)
 
     def _repr_html_(self) -> str:
-        table = grid_table(
-            ("level", "multiplicity"),
-            [
-                (_num(v), str(int(d)))
-                for v, d in zip(self.levels[:30], self.multiplicities[:30], strict=True)
-            ],
-            numeric=(0, 1),
-        )
-        more = (
-            f"<p><small>... and {len(self.levels) - 30} more levels</small></p>"
-            if len(self.levels) > 30
-            else ""
-        )
-        part = "all" if self.complete else f"the lowest {len(self.eigenvalues)}"
-        return (
-            f"<div><b>Exact spectrum</b>: {part} of {self.dimension} eigenvalues "
-            f"({html.escape(self.method)}); levels clustered within {self.tolerance:.2g}; "
-            f"error estimate {self.error_estimate:.2g}{table}{more}</div>"
-        )
-
-
-def _num(v: complex | float) -> str:
-    v = complex(v)
-    if v.imag == 0:
-        return f"{v.real:.10g}"
-    return f"{v.real:.10g}{v.imag:+.10g}j"
+        return display.exact_spectrum_html(self)
 
 
 def available_memory() -> int:

@@ -34,6 +34,7 @@ import scipy.sparse.csgraph as csgraph
 
 from ..algebra.model import Model
 from ..algebra.strings import StringArray, WeylString
+from ..base import display
 from ..base.errors import NoTheoremError
 from ..base.frozen import readonly_array, readonly_sparse
 from ..base.jsonready import json_ready
@@ -373,7 +374,7 @@ class LadderOperators:
         )
 
     def __repr__(self) -> str:
-        etas = ", ".join(f"{v:.6g}" for v in self.quasi_energies[:6])
+        etas = ", ".join(display.number_text(v) for v in self.quasi_energies[:6])
         more = ", ..." if len(self.quasi_energies) > 6 else ""
         return (
             f"LadderOperators(k = 1..{len(self.quasi_energies)}, eta = [{etas}{more}], "

@@ -14,6 +14,7 @@ from typing import Any
 
 import numpy as np
 
+from ..base import display
 from ..base.jsonready import json_ready
 from .ed import ExactSpectrum
 
@@ -67,25 +68,10 @@ class LevelMatch:
         )
 
     def __str__(self) -> str:
-        head = "levels match" if self.ok else "levels DO NOT match"
-        text = (
-            f"{head}: {self.matched} eigenvalues matched, largest distance {self.distance:.3g} "
-            f"(tolerance {self.tolerance:.3g}); {self.compared}"
-        )
-        for side, rows in (("free", self.unmatched_free), ("exact", self.unmatched_exact)):
-            if rows:
-                shown = ", ".join(f"{_num(v)} (x{c})" for v, c in rows[:6])
-                more = f", ... {len(rows) - 6} more" if len(rows) > 6 else ""
-                text += f"; unmatched {side}: {shown}{more}"
-        return text
+        return display.match_text(self)
 
     def _repr_html_(self) -> str:
         return f"<p>{html.escape(str(self))}</p>"
-
-
-def _num(v: complex | float) -> str:
-    v = complex(v)
-    return f"{v.real:.10g}" if v.imag == 0 else f"{v.real:.10g}{v.imag:+.10g}j"
 
 
 def _free_eigenvalues(free: Any) -> np.ndarray | None:

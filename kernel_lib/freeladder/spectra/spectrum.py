@@ -23,7 +23,6 @@ from __future__ import annotations
 
 import dataclasses
 import heapq
-import html
 import math
 import time
 from collections.abc import Iterator, Mapping, Sequence
@@ -34,9 +33,9 @@ from typing import Any, overload
 import numpy as np
 
 from ..algebra.model import Model
+from ..base import display
 from ..base.errors import NoTheoremError
 from ..base.frozen import readonly_array
-from ..base.htmltable import field_table, grid_table, is_number_text
 from ..base.jsonready import json_ready
 from ..base.references import CHAPMAN_FLAMMIA_2020
 from ..graphs.graph import ChainStructure, chain_structure
@@ -164,9 +163,7 @@ class LevelTable(Sequence[Level]):
         return (self[i] for i in range(len(self)))
 
     def __repr__(self) -> str:
-        shown = ", ".join(f"{_fmt(e)}" for e in self.energies[:6])
-        more = ", ..." if len(self) > 6 else ""
-        return f"LevelTable({len(self)} levels, multiplicity {self.multiplicity}: {shown}{more})"
+        return display.level_table_repr(self)
 
 
 @dataclass(frozen=True)
@@ -467,8 +464,8 @@ class FreeSpectrum:
             gap = float(2.0 * np.min(self.quasi_energies))
             if gap < np.finfo(np.float64).tiny and math.isfinite(self.log_gap):
                 raise BeyondFloatError(
-                    f"the gap 2 eta_1 = {_exp_text(self.log_gap)} lies below float64's range; "
-                    f"FreeSpectrum.log_gap = {self.log_gap:.10g} gives its natural logarithm"
+                    f"the gap 2 eta_1 = {display.log_text(self.log_gap)} lies below float64's "
+                    f"range; FreeSpectrum.log_gap = {self.log_gap:.10g} gives its natural logarithm"
                 )
             return gap
         vals, _ = self._mode_table()
@@ -486,18 +483,6 @@ class FreeSpectrum:
             return float(math.log(2.0) + np.min(self.log_quasi_energies))
         with np.errstate(divide="ignore"):
             return float(np.log(self.gap))
-
-    def _eta_item(self, k: int, digits: int = 6) -> str:
-        """Quasi-energy ``k`` as text (from its logarithm where it lies below float64)."""
-        e, log_e = self.quasi_energies[k], float(self.log_quasi_energies[k])
-        if abs(e) < np.finfo(np.float64).tiny and math.isfinite(log_e):
-            return _exp_text(log_e)
-        return _fmt(e, digits)
-
-    def _eta_text(self, count: int) -> str:
-        """The first ``count`` quasi-energies as text (from the logarithm beyond float64)."""
-        parts = [self._eta_item(k) for k in range(min(count, len(self)))]
-        return ", ".join(parts) + (", ..." if len(self) > count else "")
 
     def levels(self, k: int | None = 10) -> LevelTable:
         """The ``k`` lowest many-body levels in increasing order of their real part.
@@ -675,89 +660,15 @@ class FreeSpectrum:
         shift = float(np.abs(eta - h * steps).sum())
         return DensityOfStates(edges, frac, counts, shift, f"grid convolution, spacing {h:.3g}")
 
-    # -- display --------------------------------------------------------------------------------
-    def _warning(self) -> str:
-        """The loud mark of an unguaranteed spectrum ('' when a theorem guarantees it)."""
-        if self.provenance.guaranteed:
-            return ""
-        reason = self.provenance.guarantee.removeprefix("NOT GUARANTEED: ")
-        return f"NOT GUARANTEED (these numbers need not be the spectrum): {reason}"
-
+    # -- display (freeladder.base.display) ----------------------------------------------------
     def __repr__(self) -> str:
-        eta = self._eta_text(6)
-        mark = "" if self.guaranteed else "NOT GUARANTEED, "
-        return (
-            f"FreeSpectrum({mark}N={self.states}, {len(self)} quasi-energies [{eta}], "
-            f"method={self.provenance.method}, "
-            f"max error {self.provenance.max_error_bound:.2g}"
-            f" ({'proved bound' if self.provenance.finder.get('rigorous') else 'estimate'}))"
-        )
-
-    def _summary_rows(self) -> list[tuple[str, str]]:
-        prov = self.provenance
-        rows = []
-        if self.complete:
-            rows.append(("ground energy", _fmt(self.ground_energy)))
-        log_gap = self.log_gap
-        small = math.isfinite(log_gap) and log_gap < math.log(np.finfo(np.float64).tiny)
-        rows.append(("gap", _exp_text(log_gap) if small else f"{self.gap:.6g}"))
-        rows.append(
-            (
-                "degeneracy",
-                str(self.degeneracy) if self.degeneracy else f"unknown ({self.degeneracy_reason})",
-            )
-        )
-        rows.append(("method", f"{prov.method}: {prov.path}"))
-        if prov.sector is not None:
-            rows.append(("sector", str(prov.sector.get("summary", ""))))
-        rows.append(("guarantee", prov.guarantee if prov.guaranteed else "NOT GUARANTEED (above)"))
-        rows.append(("largest error bound", f"{prov.max_error_bound:.3g} ({prov.bounds})"))
-        if prov.sum_rules:
-            rows.append(
-                (
-                    "sum rules (relative residuals)",
-                    ", ".join(f"{k}: {v:.2g}" for k, v in prov.sum_rules.items()),
-                )
-            )
-        return rows
+        return display.spectrum_repr(self)
 
     def __str__(self) -> str:
-        eta, more = self._eta_text(12), ""
-        lines = []
-        if not self.guaranteed:
-            lines.append(self._warning())
-        lines.append(
-            f"Free spectrum: N = {self.states}, {len(self)} quasi-energies"
-            f"{'' if self.complete else ' (lowest only)'}: eta = {eta}{more}"
-        )
-        lines += [f"  {a}: {b}" for a, b in self._summary_rows()]
-        return "\n".join(lines)
+        return display.spectrum_text(self)
 
     def _repr_html_(self) -> str:
-        shown = min(len(self), 12)
-        eta = grid_table(
-            ("k", "eta_k", "bound"),
-            [
-                (str(k), self._eta_item(k, 10), f"\u00b1 {self.error_bounds[k]:.2g}")
-                for k in range(shown)
-            ],
-            numeric=(0, 1, 2),
-        )
-        more = (
-            f"<p><small>... and {len(self) - shown} more</small></p>" if len(self) > shown else ""
-        )
-        rows = self._summary_rows()
-        numbers = field_table([(a, b) for a, b in rows if is_number_text(b)])
-        notes = field_table([(a, b) for a, b in rows if not is_number_text(b)])
-        warning = ""
-        if not self.guaranteed:
-            warning = (
-                f"<p style='color:#b00020;font-weight:bold'>{html.escape(self._warning())}</p>"
-            )
-        return (
-            f"<div>{warning}<b>Free spectrum</b>: N = {self.states}, {len(self)} quasi-energies"
-            f"{'' if self.complete else ' (lowest only)'}{eta}{more}{numbers}{notes}</div>"
-        )
+        return display.spectrum_html(self)
 
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready fields: quasi-energies, error bounds, roots, ground energy, gap (when
@@ -769,7 +680,7 @@ class FreeSpectrum:
         return json_ready(
             {
                 "guaranteed": self.guaranteed,
-                "warning": self._warning() or None,
+                "warning": display.spectrum_warning(self) or None,
                 "states": self.states,
                 "sites": self.sites,
                 "quasi_energies": self.quasi_energies,
@@ -845,25 +756,6 @@ def _maybe_real(values: np.ndarray) -> np.ndarray:
 def _scalar(v: Any) -> complex | float:
     v = complex(v)
     return v.real if v.imag == 0 else v
-
-
-def _exp_text(log_value: float) -> str:
-    """``exp(log_value)`` as decimal text, also far outside float64 (e.g. ``1.234e-400``)."""
-    if not math.isfinite(log_value):
-        return "0" if log_value < 0 else "inf"
-    ten = log_value / math.log(10.0)
-    exponent = math.floor(ten)
-    mantissa = 10.0 ** (ten - exponent)
-    if mantissa >= 9.999995:
-        mantissa, exponent = mantissa / 10.0, exponent + 1
-    return f"{mantissa:.6g}e{exponent:+d}"
-
-
-def _fmt(v: Any, digits: int = 6) -> str:
-    v = complex(v)
-    if v.imag == 0:
-        return f"{v.real:.{digits}g}"
-    return f"{v.real:.{digits}g}{v.imag:+.{digits}g}j"
 
 
 # -- computing the spectrum ----------------------------------------------------------------------
