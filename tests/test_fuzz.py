@@ -371,3 +371,69 @@ def test_fuzz_alphabet_is_not_trivial() -> None:
     joined = "".join(FRAGMENTS)
     assert set("+-*/^()") <= set(joined) and any(not ch.isascii() for ch in joined)
     assert all(ch in joined for ch in string.digits) and math.isnan(WILD_VALUES[9])
+
+
+# -- issue 21: every public function of a model, on the inputs the audit listed -------------------
+ISSUE_MODELS: list[Any] = [
+    lambda: fl.exclusion_chain(4, couplings=[2, 2j, 1, 1]),
+    lambda: fl.exclusion_chain(2, couplings=[1, 1j]),
+    lambda: fl.exclusion_chain(5, couplings=[1, 1, 0, 1, 1]),
+    lambda: fl.ising_chain(4, field=1j),
+    lambda: fl.ising_chain(8, field=1j),  # an exceptional point: double roots in one piece
+    lambda: fl.parse_model("Z0 + X0 X1 + Y0 Y1 + Z1 + X0 Y1"),
+    lambda: fl.parse_model("X0 X1 X2 + Z0 + Z1 + Z2"),
+    lambda: fl.parse_model("Z0 Z1 + Z1 Z2 + Z2 Z0 + 0.5 X0 + 0.3 X1"),
+    lambda: fl.parse_model("g X0 + Z0 Z1 + X1"),
+    lambda: fl.parse_model("(2^1000)*(2^1000)*(2^1000) X0 Z1 + X1 Z2"),
+    lambda: fl.parse_model("1e-300 X0 Z1 + X1 Z2 + 1e300 X2 Z3"),
+    lambda: fl.Model.from_terms([], states=2),
+]
+# calls beyond the model alone: the arguments the issue's reproductions used
+ISSUE_EXTRA: dict[str, list[tuple[Any, ...]]] = {
+    "free_spectrum": [(), ("fast",), ("certified",)],
+    "charge": [(2,)],
+    "transfer_matrix": [(0.5,)],
+    "jordan_wigner_spectrum": [("all",), ((-1, 1),), ((1, 1.9),), (np.array([1, -1]),)],
+}
+DOCUMENTED = (ValueError, TypeError, ArithmeticError)
+"""What a model function may raise: ValueError / TypeError subclasses (NoTheoremError,
+TooLargeError, ModelSyntaxError, BeyondFloatError) and the plain ArithmeticError that
+free_spectrum documents for roots that did not converge -- each with a message; never a
+ZeroDivisionError, OverflowError or FloatingPointError from inside."""
+
+
+def _model_functions() -> list[tuple[str, Callable[..., Any]]]:
+    import inspect
+
+    out = []
+    for name in fl.__all__:
+        f = getattr(fl, name)
+        if not inspect.isfunction(f):
+            continue
+        params = list(inspect.signature(f).parameters.values())
+        required = [p for p in params if p.default is p.empty and p.kind != p.VAR_KEYWORD]
+        if params and params[0].name == "m" and (len(required) == 1 or name in ISSUE_EXTRA):
+            out.append((name, f))
+    return out
+
+
+@pytest.mark.parametrize("build", ISSUE_MODELS, ids=range(len(ISSUE_MODELS)))
+def test_issue_21_inputs_through_every_model_function(build: Callable[[], fl.Model]) -> None:
+    m = build()
+    functions = _model_functions()
+    assert len(functions) > 20  # the listing found the model functions
+    for name, f in functions:
+        for extra in ISSUE_EXTRA.get(name, [()]):
+            if name == "verify" and m.dimension > 2**12:
+                continue  # one check per model would take long; the spectra are tried
+            try:
+                with _time_limit(30.0):
+                    f(m, *extra)
+            except DOCUMENTED as err:
+                assert str(err).strip(), f"{name}{extra}: {type(err).__name__} without a message"
+                internal = (ZeroDivisionError, OverflowError, FloatingPointError)
+                assert not isinstance(err, internal), f"{name}{extra}: {type(err).__name__}: {err}"
+            except _Hang:
+                pytest.fail(f"{name}{extra}: no answer within 30 s of CPU time")
+            except Exception as err:  # noqa: BLE001 - the point of the test
+                pytest.fail(f"{name}{extra} on {m!r:.80}: {type(err).__name__}: {err}")

@@ -153,7 +153,7 @@ def test_errors_say_what_is_wrong():
     with pytest.raises(ValueError, match="N = 2"):
         fl.sectors(fl.clock_chain(3))
     m = ladder(3, np.random.default_rng(1))
-    with pytest.raises(ValueError, match="one per cycle operator"):
+    with pytest.raises(ValueError, match="only the 2 cycle values, not 1"):
         fl.jordan_wigner_spectrum(m, sector=(1,))
     with pytest.raises(ValueError, match="sector must be"):
         fl.jordan_wigner_spectrum(m, sector="lowest")

@@ -20,6 +20,7 @@ import numpy as np
 from ..base import display
 from ..base.jsonready import json_ready
 from ..base.scalars import (
+    MAX_EXPANDED_TERMS,
     as_complex,
     check_scalar,
     expand_exact,
@@ -27,6 +28,7 @@ from ..base.scalars import (
     substitute,
     substitution_map,
     to_python_number,
+    to_sympy,
 )
 from .printing import coefficient_text, format_terms, format_terms_latex
 from .strings import StringArray, WeylString, check_states, unit_phase
@@ -156,7 +158,9 @@ class Model:
         ValueError
             For mixed N, non-finite couplings, or an empty model with no ``states``.
         """
-        merged: dict[tuple, list] = {}
+        # the couplings of each string are summed once at the end (a sympy sum built one term
+        # at a time re-sorts all its terms at every step: quadratic in the number of names)
+        merged: dict[tuple, list] = {(): [[], [], None]}
         order: list[tuple] = []
         const = check_scalar(constant, "constant")
         if states is not None:
@@ -177,19 +181,24 @@ class Model:
                 c = times_phase(c, e, states)
             except ValueError as err:
                 raise ValueError(f"term {idx}: {err}") from None
-            if not g.factors:
-                const = _merge(const, c, idx)
-                continue
             key = g.factors
-            if key in merged:
-                merged[key][0] = _merge(merged[key][0], c, idx)
-            else:
-                merged[key] = [c, g]
+            if key not in merged:
+                merged[key] = [[], [], g]
                 order.append(key)
+            values, where, _ = merged[key]
+            values.append(c)
+            where.append(idx)
+            if isinstance(c, sympy.Basic) and len(values) > MAX_EXPANDED_TERMS:
+                raise ValueError(
+                    f"term {idx}: more than {MAX_EXPANDED_TERMS} terms add to the coupling of "
+                    f"{'the constant' if not key else str(g)}; a coupling may have at most "
+                    f"{MAX_EXPANDED_TERMS} terms"
+                )
         if states is None:
             raise ValueError("a model without terms needs states=N")
-        strings = [merged[k][1] for k in order]
-        couplings = [expand_exact(merged[k][0]) for k in order]
+        const = _total([const, *merged[()][0]], [-1, *merged[()][1]])
+        strings = [merged[k][2] for k in order]
+        couplings = [expand_exact(_total(merged[k][0], merged[k][1])) for k in order]
         arr = StringArray.from_strings(strings, sites, states)
         return cls(arr, couplings, to_python_number(const))
 
@@ -369,6 +378,16 @@ def _unpack_term(term: Any, idx: int) -> tuple[Coupling, WeylString]:
             f"got {type(g).__name__}"
         )
     return check_scalar(c, f"term {idx}"), g
+
+
+def _total(values: Sequence[Coupling], where: Sequence[int]) -> Coupling:
+    """The sum of the couplings of one string: numbers in order, symbolic ones in one sum."""
+    if any(isinstance(v, sympy.Basic) for v in values):
+        return sympy.Add(*(to_sympy(v) for v in values))
+    total: Coupling = values[0]
+    for v, idx in zip(values[1:], where[1:], strict=True):
+        total = _merge(total, v, idx)
+    return total
 
 
 def _merge(a: Coupling, b: Coupling, idx: int) -> Coupling:

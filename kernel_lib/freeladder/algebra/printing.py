@@ -47,6 +47,10 @@ _ATOM, _POWER, _PRODUCT, _SUM = 3, 2, 1, 0
 RESERVED_NAMES = frozenset({"w", "I", "E", "pi", "j"})
 """Names the text syntax keeps for itself (``w`` is the phase ``exp(i pi / N)``)."""
 NOT_FINITE_NAMES = frozenset({"nan", "inf", "infinity", "oo", "zoo"})
+
+OPERATOR_LOOKALIKE = frozenset("XYZI_0123456789")
+"""A name made only of these characters that holds X, Y or Z (``X_0``, ``XZI``) is refused by
+the parser: it looks like operators written another way."""
 """Names (in any letter case) rejected as non-finite numbers."""
 
 
@@ -54,7 +58,8 @@ def is_plain_name(name: str) -> bool:
     """True when ``name`` reads back as a coupling name in the text syntax.
 
     A name is an ASCII identifier that is not reserved, not a non-finite number's name, and
-    not one capital letter followed by a digit (that is an operator, like ``X3``).
+    not one capital letter followed by a digit (that is an operator, like ``X3``), and not made
+    only of X, Y, Z, I, ``_`` and digits (``X_0``, ``XZI``: operators written another way).
     """
     if not name or not (name.isascii() and name.isidentifier()):
         return False
@@ -62,6 +67,8 @@ def is_plain_name(name: str) -> bool:
         return False
     if name[0] in "xyz" and name[1:].isdigit():
         return False  # looks like a lower-case operator
+    if set(name) <= OPERATOR_LOOKALIKE and set(name) & set("XYZ"):
+        return False  # operators written another way (X_0, XZI)
     return not (name[0].isupper() and len(name) > 1 and name[1].isdigit())
 
 

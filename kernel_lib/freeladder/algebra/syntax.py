@@ -26,6 +26,8 @@ How the tokens are told apart:
   X, Y or Z alone, not followed by a site label, is an error (missing site), and so are
   lower-case look-alikes such as ``x0`` (write ``x_0`` for a coupling of that name).
 * A NAME is any other identifier (``g``, ``J_2``, ``hx``); it becomes a :class:`sympy.Symbol`.
+  A name made only of the letters X, Y, Z, I, ``_`` and digits that holds X, Y or Z (``X_0``,
+  ``XZI``, ``ZZ``) is an error: it would read operators written another way as a coupling.
   The names ``w`` (the phase ``exp(i pi / N)``) and ``I``, ``E``, ``pi``, ``j``, ``nan``,
   ``inf``, ``infinity``, ``oo``, ``zoo`` are reserved.  Symbols are created without assumptions.
 * A NUMBER is an integer, a decimal (``0.25``, ``1e-3``) or an imaginary literal (``2j``,
@@ -41,14 +43,18 @@ How the tokens are told apart:
   written ``X0^2``).
 * Limits, each reported with the line and column: parentheses and signs nest at most 64 deep
   in one coefficient, number literals have at most 1000 digits, exponents are at most 1000 in
-  absolute value, an exact number produced by a power has at most 2^16 bits, and a coefficient
-  may not expand to more than 1000 terms.
+  absolute value (also for a power built by repeated products, ``g*g*...``), an exact number
+  in a coefficient has at most 3321 bits (under 1000 digits, so that the printed model reads
+  back), a
+  coefficient holds at most 1000 numbers and names and may not expand to more than 1000 terms,
+  and a number or coefficient too small for double precision is refused rather than read as 0.
 * ``w`` is the phase ``exp(i pi / N)`` (``w^2 = omega``).  As a factor of the whole coefficient
   (``g*w^3 X0 Z0``) it is kept as an exact phase of the operator string; inside parentheses it is
   the exact sympy number ``exp(i pi / N)``.  Printing uses it for strings whose normalisation
   (``g^N = 1``) needs an odd power of ``w`` (N even, ``X Z`` on one site).
 
-A term without operators is a constant (a multiple of the identity).  Factors on a repeated site
+A term without operators is a constant (a multiple of the identity); a model must have at
+least one term with operators.  Factors on a repeated site
 are multiplied exactly in the written order (``Z0 X0 = omega X0 Z0``).  ``#`` starts a comment
 that runs to the end of the line; newlines are ordinary white space.
 """
@@ -63,7 +69,7 @@ from typing import TYPE_CHECKING, Any
 
 from ..base.scalars import MAX_EXPANDED_TERMS, expanded_terms_bound, to_python_number
 from .model import Model
-from .printing import NOT_FINITE_NAMES
+from .printing import NOT_FINITE_NAMES, OPERATOR_LOOKALIKE
 from .strings import WeylString, check_sites, check_states, make_string
 
 if TYPE_CHECKING:
@@ -86,8 +92,12 @@ _MAX_DEPTH = 64
 """Deepest nesting of parentheses and signs inside one coefficient."""
 _MAX_DIGITS = 1000
 """Longest number literal, in characters."""
-_MAX_BITS = 1 << 16
-"""Largest exact number a power may produce, in bits (about 19 700 decimal digits)."""
+_MAX_BITS = 3321
+"""Largest exact number a coefficient may hold, in bits: 2^3321 < 10^1000, so that the printed
+model reads back (number literals have at most ``_MAX_DIGITS`` digits), far within Python's
+limit of 4300 digits for turning an integer into text."""
+_MAX_FACTORS = 1000
+"""Most numbers and names in one coefficient."""
 _MAX_TERMS = MAX_EXPANDED_TERMS
 _DIGITS = frozenset("0123456789")
 _ACCEPTED_FORM = "0.5 X0 Z1"
@@ -342,6 +352,17 @@ class _Tokenizer:
             raise self.error(f"{name!r} is not a finite number; couplings must be finite", start)
         if name in _RESERVED:
             raise self.error(f"{name!r} is a reserved name: {_RESERVED[name]}", start)
+        if set(name) <= OPERATOR_LOOKALIKE and set(name) & set("XYZ"):
+            hint = "X0 Z1"
+            if len(name) > 2 and name[0] in "XYZ" and name[1] == "_" and _all_digits(name[2:]):
+                hint = f"{name[0]}{name[2:]}"
+            raise self.error(
+                f"{name!r} would be read as a coupling name, but it looks like operators "
+                "written another way: an operator is its letter followed directly by the site, "
+                f"as in {hint} (or X(0,1)), with the factors of a term separated by spaces; a "
+                "coupling name needs a character other than X, Y, Z, I, '_' and digits",
+                start,
+            )
         return _Token("name", name, start)
 
 
@@ -360,6 +381,8 @@ class _Parser:
         self.tokens = _Tokenizer(text).tokens()
         self.i = 0
         self.depth = 0
+        self.factors = 0  # numbers and names read in the current coefficient
+        self.operators_seen = False  # some term has an operator factor
         self.w = sympy.exp(sympy.I * sympy.pi / states)
 
     # -- helpers ---------------------------------------------------------------------------------
@@ -395,6 +418,13 @@ class _Parser:
             terms.append(self._term(sign, sign_tok))
             t = self.tok
             if t.kind == "end":
+                if not self.operators_seen:
+                    raise self.error(
+                        "the model has no operator terms: every term is a constant (operators "
+                        "are X, Y or Z followed directly by the site, as in "
+                        f"{_ACCEPTED_FORM})",
+                        0,
+                    )
                 return terms
             if t.kind in ("+", "-"):
                 sign_tok = self.advance()
@@ -405,15 +435,13 @@ class _Parser:
             if t.kind in ("number", "name", "("):
                 raise self.error(
                     f"unexpected {self._describe(t)} after the operators of a term: a coefficient "
-                    "goes before the operators, and terms are joined with '+' or '-'"
-                    + _underscore_note([t]),
+                    "goes before the operators, and terms are joined with '+' or '-'",
                     t.offset,
                 )
             raise self.error(f"unexpected {self._describe(t)} after a term", t.offset)
 
     def _term(self, sign: int, sign_tok: _Token | None) -> tuple[Any, WeylString]:
         start = self.tok
-        start_i = self.i
         coef = _Coefficient(sympy.Integer(1), 0)
         has_coef = False
         if self._starts_atom(start):
@@ -440,6 +468,7 @@ class _Parser:
             if self.sites is not None and site not in self.sites:
                 raise self.error(f"site {site!r} is not in the given site list", t.offset)
             factors.append((site, a, b))
+            self.operators_seen = True
             extra_phase += y
         if not has_coef and not factors:
             t = self.tok
@@ -454,8 +483,7 @@ class _Parser:
             t = self.tok
             raise self.error(
                 f"expected '*' or an operator before {self._describe(t)} "
-                "(coefficients are multiplied with '*')"
-                + _underscore_note(self.tokens[start_i : self.i + 1]),
+                "(coefficients are multiplied with '*')",
                 t.offset,
             )
         value = self._finish_value(sign * coef.value, start.offset)
@@ -509,6 +537,7 @@ class _Parser:
         """``power {("*" | "/") power}``; powers of ``w`` become the string's phase."""
         value: Any = sympy.Integer(1)
         phase = 0
+        self.factors = 0
         op = "*"
         op_tok: _Token | None = None
         while True:
@@ -527,6 +556,7 @@ class _Parser:
                     self._check_size(value, t.offset)
                 else:
                     value = self._divide(value, factor, op_tok)
+                    self._check_size(value, t.offset)
             if self.tok.kind in ("*", "/"):
                 nxt = self.tokens[self.i + 1]
                 if self.tok.kind == "*" and nxt.kind == "operator":
@@ -596,6 +626,14 @@ class _Parser:
 
     def _atom(self) -> Any:
         t = self.tok
+        if t.kind in ("number", "name"):
+            self.factors += 1
+            if self.factors > _MAX_FACTORS:
+                raise self.error(
+                    f"more than {_MAX_FACTORS} numbers and names in one coefficient; "
+                    "write a power (g^3) or a shorter product",
+                    t.offset,
+                )
         if t.kind == "number":
             self.advance()
             return self._number_value(t)
@@ -675,13 +713,34 @@ class _Parser:
                 )
 
     def _check_size(self, value: Any, offset: int) -> None:
-        """Refuse a coefficient whose expansion would exceed ``_MAX_TERMS`` terms."""
+        """Refuse a coefficient whose expansion would exceed ``_MAX_TERMS`` terms, an exact
+        number beyond ``_MAX_BITS`` bits or a power of a name beyond ``_MAX_EXPONENT``
+        (checked after every product, so ``g*g*...`` and ``(2^1000)*(2^1000)*...`` stop at
+        the factor that crosses the limit)."""
         if expanded_terms_bound(value, _MAX_TERMS) > _MAX_TERMS:
             raise self.error(
                 f"the coefficient would expand to more than {_MAX_TERMS} terms; "
                 "write a smaller power or product",
                 offset,
             )
+        numbers = (value,) if value.is_Rational else value.atoms(sympy.Rational)
+        for q in numbers:
+            bits = max(int(q.p).bit_length(), int(q.q).bit_length())
+            if bits > _MAX_BITS:
+                raise self.error(
+                    f"the coefficient's exact number has about 2^{bits} as numerator or "
+                    f"denominator; exact numbers in a coefficient are limited to {_MAX_BITS} bits "
+                    f"(the {_MAX_DIGITS} digits a number literal may have; write a decimal, "
+                    "as in 1e300, for a large value)",
+                    offset,
+                )
+        for p in () if value.is_Atom else value.atoms(sympy.Pow):
+            if p.exp.is_Number and abs(p.exp) > _MAX_EXPONENT:
+                raise self.error(
+                    f"the coefficient holds the power {p}: exponents are at most "
+                    f"{_MAX_EXPONENT} in absolute value",
+                    offset,
+                )
 
     def _number_value(self, t: _Token) -> Any:
         body = t.text[:-1] if t.text.endswith("j") else t.text
@@ -691,6 +750,12 @@ class _Parser:
             as_float = float(body)
             if not cmath.isfinite(as_float):
                 raise self.error(f"number {t.text} is not finite (overflow)", t.offset)
+            if as_float == 0 and any(ch in "123456789" for ch in body.split("e")[0].split("E")[0]):
+                raise self.error(
+                    f"number {t.text} is too small for double precision and would become 0 "
+                    "(the smallest is about 5e-324)",
+                    t.offset,
+                )
             value = sympy.Float(as_float)
         return value * sympy.I if t.text.endswith("j") else value
 
@@ -699,27 +764,16 @@ class _Parser:
         if value.has(sympy.nan, sympy.zoo, sympy.oo, -sympy.oo):
             raise self.error("the coefficient is not finite", offset)
         try:
-            return to_python_number(value)
+            number = to_python_number(value)
         except ValueError:
             raise self.error("the coefficient is not finite (overflow)", offset) from None
-
-
-def _underscore_note(tokens: Sequence[_Token]) -> str:
-    """A note for names such as ``X_0`` that look like operators written with an underscore."""
-    for t in tokens:
-        text = t.text
-        if (
-            t.kind == "name"
-            and len(text) > 2
-            and text[0] in "XYZ"
-            and text[1] == "_"
-            and _all_digits(text[2:])
-        ):
-            return (
-                f"; {text!r} was read as a coupling name: an operator is its letter followed "
-                f"directly by the site, as in {text[0]}{text[2:]} (for example X0 Z1)"
+        if number == 0 and value != 0:
+            raise self.error(
+                "the coefficient is too small for double precision and would become 0 "
+                "(the smallest is about 5e-324)",
+                offset,
             )
-    return ""
+        return number
 
 
 def parse_model(text: str, states: int = 2, sites: Sequence[Any] | None = None) -> Model:

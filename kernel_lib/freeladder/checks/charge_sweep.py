@@ -602,6 +602,33 @@ def _orders(m: Model) -> int:
     return sum(1 for _ in charge_series(m)) - 1
 
 
+_COMMUTATOR = (Product(1, (0, 1), (0, 0)), Product(-1, (1, 0), (0, 0)))
+"""``T(u) T(v) - T(v) T(u)``: the products of :func:`commutator_sweep`."""
+
+
+def _commutator_work(m: Model) -> float:
+    """The cost model of :func:`commutator_sweep`: evaluation points times the sum over the
+    terms of the squared number of rational coordinates of each step (the forward-space
+    reductions dominate, and their size follows the frontier, not the number of terms);
+    ``inf`` when the frontier is too wide to run.  Cheap: the plan's states only."""
+    alpha = _orders(m)
+    return _work(m, _COMMUTATOR, False, alpha * (alpha - 1) / 2)
+
+
+def _inversion_work(m: Model) -> float:
+    """The cost model of :func:`inversion_sweep`, as :func:`_commutator_work`."""
+    n = m.states
+    return _work(m, [Product(1, (0,) * n, tuple(range(n)))], True, n * _orders(m))
+
+
+def _work(m: Model, products: Sequence[Product], scalar: bool, points: float) -> float:
+    try:
+        plan = _Plan(m, products, scalar)
+    except ValueError:
+        return math.inf
+    return points * sum(plan.coordinates(s) ** 2 for s in plan.sizes[1:])
+
+
 def commutator_sweep(
     m: Model, max_work: int = MAX_WORK, progress: Callable[[int, int], Any] | None = None
 ) -> SweepResult:
@@ -635,9 +662,8 @@ def commutator_sweep(
     S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021).
     """
     alpha = _orders(m)
-    products = [Product(1, (0, 1), (0, 0)), Product(-1, (1, 0), (0, 0))]
     points = list(combinations(range(1, alpha + 1), 2))
-    result = run(m, products, 2, points, max_work=max_work, progress=progress)
+    result = run(m, _COMMUTATOR, 2, points, max_work=max_work, progress=progress)
     w = result.witness
     if w is None:
         return result

@@ -32,6 +32,7 @@ chains, general p and N).
 
 from __future__ import annotations
 
+import math
 import time
 import traceback
 from collections.abc import Callable, Sequence
@@ -68,10 +69,11 @@ from ..spectra.ed import (
     sector_exact_spectrum,
     sparse_memory,
 )
-from ..spectra.edge import components, ladder_operators
+from ..spectra.edge import _live_terms, components, ladder_operators
 from ..spectra.majorana import jordan_wigner_spectrum, sectors
 from ..spectra.matching import match_levels
 from ..spectra.spectrum import FreeSpectrum, _ordering, free_spectrum
+from . import charge_sweep
 from .charge_sweep import SweepResult, commutator_sweep, inversion_sweep
 from .hypotheses import independent_along, ordering_hypotheses
 from .power_sums import MOMENTS, compare_moments
@@ -117,9 +119,15 @@ MAX_PAIRS = 2_000_000
 FLOAT_RTOL = 1e-9
 """Relative tolerance of floating-point checks (string algebra and spectra)."""
 
-SWEEP_STEP_SECONDS = 5e-4
-"""Cost of one (evaluation point, term) step of a sweep: 6.1 s for the 11400 steps of the
-commutator sweep of a 60-term reach-2 chain, measured here (2-core machine)."""
+SWEEP_COORDINATE_SECONDS = 2.5e-6
+"""Cost of a sweep per evaluation point and squared rational coordinate of each step (see
+``charge_sweep._commutator_work``): 1.6e-6 s on reach-2 chains (18 coordinates per step) and
+2.6e-6 s on line graphs of random trees of 24 terms (up to 512 coordinates: 66 points, 135 s),
+measured here (2-core machine, loaded)."""
+
+CHECK_BUDGET_SECONDS = 20.0
+"""A commutation route estimated to take longer is not started; the check is "not run" with
+both estimates (so that verify's time grows with the model's frontier, not in jumps)."""
 
 PRODUCT_SECONDS = 3e-7
 """Cost of one product of two strings in the string algebra: 1.05 s for the 3.8 x 10^6 products
@@ -281,7 +289,7 @@ class Report:
             for c in self.checks
             if c.required and c.passed is None
         )
-        if not any(c.passed and c.decisive for c in self.checks):
+        if not any(c.passed is not None and c.decisive for c in self.checks):
             out.append("no decisive check ran (none that could fail for a model that is not free)")
         confirmed = any(c.passed and c.name in (EXACT, SECTORS, LOWEST) for c in self.checks)
         if self.guaranteed is False and not confirmed:
@@ -385,6 +393,7 @@ class _Parts:
         self.model = analysis.model
         self._spectrum: tuple[FreeSpectrum, str] | None = None
         self._charges: list[StringSum] | None = None
+        self._sweep_seconds: float | None = None
 
     @property
     def counts(self) -> list[int]:
@@ -417,9 +426,12 @@ class _Parts:
         return _seconds(Fraction(LIST_SECONDS) * total + Fraction(PRODUCT_SECONDS) * products)
 
     def sweep_seconds(self) -> float:
-        """Estimated time of the commutator sweep (points x terms steps)."""
-        alpha = len(self.counts) - 1
-        return SWEEP_STEP_SECONDS * alpha * (alpha - 1) / 2 * len(self.model)
+        """Estimated time of the commutator sweep (``inf`` when it cannot run)."""
+        if self._sweep_seconds is None:
+            self._sweep_seconds = SWEEP_COORDINATE_SECONDS * charge_sweep._commutator_work(
+                self.model
+            )
+        return self._sweep_seconds
 
 
 def _residual(op: StringSum) -> tuple[bool, float]:
@@ -679,9 +691,16 @@ def inversion_check(
     n = m.states
     name = _inversion_name(n)
     ref = _ECF if n == 2 else _AP
-    decided, reason = _try_sweep(m, inversion_sweep, name, "powers of u", ref, progress)
-    if decided is not None:
-        return decided
+    cost = SWEEP_COORDINATE_SECONDS * charge_sweep._inversion_work(m)
+    if cost > CHECK_BUDGET_SECONDS:
+        reason = (
+            f"the exact sweep is estimated at {_seconds_text(cost)}, over the time budget of "
+            f"{CHECK_BUDGET_SECONDS:.0f} s"
+        )
+    else:
+        decided, reason = _try_sweep(m, inversion_sweep, name, "powers of u", ref, progress)
+        if decided is not None:
+            return decided
     if charges is None:
         raise CheckNotApplicable(
             f"the sweep cannot decide ({reason}) and the charges are not listed"
@@ -738,7 +757,7 @@ def ladder_check(m: Model, spectrum: tuple[FreeSpectrum, str] | None = None) -> 
         raise CheckNotApplicable(f"dimension {_dim(m)} > {LADDER_DIMENSION}")
     why = spectrum[1] if spectrum is not None else ""
     etas = None
-    if spectrum is not None and len(components(m)) == 1:
+    if spectrum is not None and len(components(_live_terms(m))) == 1:
         etas = spectrum[0].quasi_energies  # one component: the model's own spectrum
     try:
         lad = ladder_operators(m, etas)
@@ -904,8 +923,10 @@ def verify(
     -----
     ``[H, Q(s)]`` and ``[Q(r), Q(s)]`` are decided either by the exact sweep (read both off it,
     nothing listed) or pair by pair in the string algebra, whichever the cost estimate
-    (:data:`SWEEP_STEP_SECONDS`, :data:`PRODUCT_SECONDS`, :data:`LIST_SECONDS`) says is cheaper;
-    when the sweep cannot decide, the pairs are tried within ``max_pairs``.  Checks longer than
+    (:data:`SWEEP_COORDINATE_SECONDS`, :data:`PRODUCT_SECONDS`, :data:`LIST_SECONDS`) says is
+    cheaper; when the sweep cannot decide, the pairs are tried within ``max_pairs``.  When both
+    routes are estimated above :data:`CHECK_BUDGET_SECONDS`, neither starts and the two checks
+    are "not run" with the estimates.  Checks longer than
     about 2 s show a ``tqdm`` progress bar; KeyboardInterrupt stops the run and returns the
     checks finished so far, with ``complete=False`` (not ok).
 
@@ -981,11 +1002,21 @@ def _commutation(
     m = parts.model
     if _beyond_listing_and_sweeps(parts, checks, claim_inversion):
         return
-    sweep_first = not m.is_symbolic and parts.sweep_seconds() <= parts.pairwise_seconds()
-    listable = sum(parts.counts) <= 10**6
+    sweep_cost = math.inf if m.is_symbolic else parts.sweep_seconds()
+    pair_cost = parts.pairwise_seconds()
+    sweep_first = sweep_cost <= pair_cost
+    listable = sum(parts.counts) <= 10**6 and pair_cost <= CHECK_BUDGET_SECONDS
     charges: list[StringSum] | None = None
     h = StringSum.from_model(m)
-    if sweep_first:
+    if min(sweep_cost, pair_cost) > CHECK_BUDGET_SECONDS:
+        why = (
+            f"over the time budget of {CHECK_BUDGET_SECONDS:.0f} s: the exact sweep is "
+            f"estimated at {_seconds_text(sweep_cost)} and pair by pair at "
+            f"{_seconds_text(pair_cost)}"
+        )
+        pairs = Check(PAIRS, "", 0.0, float("nan"), None, f"not applicable: {why}")
+        h_check = replace(pairs, name=H_CHARGES)
+    elif sweep_first:
         pairs = _shown(PAIRS, _sweep_pairs, m)
         if pairs.passed is None and listable:  # the sweep could not decide: pair by pair
             charges = parts.charges()
@@ -1054,6 +1085,10 @@ def _beyond_listing_and_sweeps(parts: _Parts, checks: list[Check], claim_inversi
             check = replace(check, claimed=False)
         checks.append(check)
     return True
+
+
+def _seconds_text(seconds: float) -> str:
+    return "no bound (too wide to run)" if math.isinf(seconds) else f"about {seconds:.3g} s"
 
 
 def _shown(name: str, fn: Callable[..., Check], *args: Any) -> Check:
@@ -1290,7 +1325,19 @@ def _spectral(
     parts: _Parts, exact_diagonalization: bool | str, checks: list[Check], notes: list[str]
 ) -> None:
     m = parts.model
-    spectrum = parts.spectrum()
+    try:
+        spectrum = parts.spectrum()
+    except (ValueError, ArithmeticError) as err:
+        # no spectrum to test (no terms, no convergence, ...): every spectral check fails
+        # with the reason, rather than the report being lost
+        failure = err
+
+        def spectrum_failed(*_: Any) -> Check:
+            raise failure
+
+        names = ((LADDER,) if m.states == 2 else ()) + (SUM_RULES, EXACT)
+        checks.extend(_run(name, spectrum_failed) for name in names)
+        return
     if _tamper is not None:
         spectrum = (_tamper(spectrum[0]), spectrum[1])
     estimate = linear_seconds(m)

@@ -149,14 +149,27 @@ def _export(m: Model, path: str, force: bool) -> str:
             f"cannot tell what to write from the name {path!r}: the file name must end in {known}"
         )
     calc = worked_calculation(analyze(m))
+    if target.is_symlink() and not target.exists():
+        raise _UsageError(
+            f"{path} is a symbolic link to a file that does not exist; nothing was written "
+            "(remove the link or choose another path)"
+        )
     if target.exists() and not force:
         raise _UsageError(f"{path} exists; pass --force to overwrite it")
-    if kind == "notebook":
-        calc.to_notebook(target, overwrite=force)
-    else:
-        text = calc.to_script() if kind == "script" else calc.to_latex()
-        target.write_text(text, encoding="utf-8")
-    return f"wrote the worked calculation ({len(calc)} cells) as a {kind} to {path}"
+    if not target.parent.is_dir():
+        raise _UsageError(f"cannot write {path}: the folder {target.parent} does not exist")
+    try:
+        if kind == "notebook":
+            calc.to_notebook(target, overwrite=force)
+        else:
+            text = calc.to_script() if kind == "script" else calc.to_latex()
+            # "x" never replaces a file that appeared meanwhile (nor follows a link)
+            with open(target, "w" if force else "x", encoding="utf-8") as handle:
+                handle.write(text)
+    except OSError as err:
+        raise _UsageError(f"cannot write {path}: {err.strerror or err}") from None
+    what = {"notebook": "a notebook", "script": "a Python script"}.get(kind, f"a {kind}")
+    return f"wrote the worked calculation ({len(calc)} cells) as {what} to {path}"
 
 
 def _parser() -> argparse.ArgumentParser:

@@ -150,7 +150,7 @@ class WorkedCalculation(Sequence[Cell]):
         import nbformat
 
         target = Path(path)
-        if target.exists() and not overwrite:
+        if (target.exists() or target.is_symlink()) and not overwrite:  # a dangling link too
             raise FileExistsError(
                 f"{target} already exists; the worked calculation was not written (choose "
                 "another name, or pass overwrite=True to replace the file)"
@@ -623,7 +623,8 @@ def _charge_cells(f: _Facts) -> list[Cell]:
         if s < 0:
             table.append(f"| ... | ({len(f.counts) - 11} orders not shown) | ... |")
         else:
-            table.append(f"| {s} | {f.counts[s]} | {_num(sums[s])} |")
+            c_s = sums[s] if s < len(sums) else 0  # orders only a zero coupling reaches
+            table.append(f"| {s} | {f.counts[s]} | {_num(c_s)} |")
     md = (
         "## Conserved charges, order by order\n\n"
         "$$Q^{(s)} = \\sum_{S \\text{ independent},\\ |S| = s}\\ \\prod_{j \\in S} c_j g_j, "

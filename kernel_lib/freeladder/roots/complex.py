@@ -99,6 +99,8 @@ __all__ = [
 
 _U = float(np.finfo(float).eps) / 2
 _TINY = 2.0**-300  # a ratio that is exactly zero is replaced by this (as in roots.py)
+_XZERO = 2.0**-200  # a point x = 0 is evaluated here (the weights are scaled to |w| <= 1)
+_START_OFF_ZERO = 2.0**-20  # where an iteration starts instead of x = 0 (scaled units)
 _HUGE = 2.0**200  # renormalisation thresholds of the running products
 _LANES = 16  # points per block of the compiled pass
 _STEPS_PER_CALL = 2e7  # chain steps x points per compiled call: keeps Ctrl-C responsive
@@ -132,6 +134,8 @@ def _block(
     ay = np.empty(_LANES)
     for j in range(_LANES):
         v = x[first + min(j, size - 1)]
+        if v.real == 0.0 and v.imag == 0.0:  # x = 0 (eta = 0: P lost degree), y = 1/x finite
+            v = complex(_XZERO, 0.0)
         xr[j] = v.real
         xi[j] = v.imag
         y = 1.0 / v
@@ -662,6 +666,8 @@ def _all_roots(
         fresh = np.repeat([p not in below for p in level], [d for _, _, d in level])
         if start is None and len(level) == len(levels[-1]):
             fresh = np.array([d > 1 for _, _, d in level]).repeat([d for _, _, d in level])
+        # a leaf root x = 0 (its weights cancel) is a poor start: Q'/Q is singular there
+        z[fresh & (z == 0)] = _START_OFF_ZERO * np.exp(0.4j)
         vals = _Values(z.size)
         conv, s, e = _aberth(ch, z, pc, fresh, max_iter, progress, vals)
         converged = np.where(fresh, conv, converged)
@@ -679,7 +685,8 @@ def _radii(
     vals.refresh(ch, z, pc)
     g, log_abs_p, rel_err = vals.g, vals.log_abs, vals.rel
     n = pc.deg.astype(float)
-    log_q = n * np.log(np.abs(z)) + log_abs_p + np.log1p(rel_err)
+    with np.errstate(divide="ignore"):  # a root x = 0 has radius 0
+        log_q = n * np.log(np.abs(z)) + log_abs_p + np.log1p(rel_err)
     rows = np.arange(z.size)
     log_prod = _pair_sums(z, pc.seg_lo, pc.seg_hi, rows, True).real
     with np.errstate(divide="ignore", over="ignore"):
@@ -952,7 +959,7 @@ def aberth_chain_roots(
                 details={
                     "chain_steps": ch.steps,
                     "max_residual": float(np.exp(-log_cond.min())),
-                    "max_newton_step": float(np.max(1.0 / np.abs(g * z))),
+                    "max_newton_step": _max_step(g, z),
                     "start": "circles inside the counted disc",
                 },
             )
@@ -998,10 +1005,16 @@ def aberth_chain_roots(
             "sweeps_per_level": tuple(sweeps),
             "chain_steps": ch.steps,
             "max_residual": float(np.exp(-log_cond.min())),
-            "max_newton_step": float(np.max(1.0 / np.abs(vals.g * z))),
+            "max_newton_step": _max_step(vals.g, z),
             "start": "given" if z0 is not None else "divide and conquer from single terms",
         },
     )
+
+
+def _max_step(g: np.ndarray, z: np.ndarray) -> float:
+    """Largest relative Newton correction ``|Q / (x Q')|`` over the roots other than x = 0."""
+    nonzero = z != 0
+    return float(np.max(1.0 / np.abs(g[nonzero] * z[nonzero]), initial=0.0))
 
 
 def evaluate_chain(

@@ -145,6 +145,13 @@ def exact_polynomial_roots(m: Model) -> RootTable:
     """
     poly = exclusion_polynomial(m)
     re_parts, im_parts = poly.exact_parts()
+    top = max((s for s in range(len(re_parts)) if re_parts[s] or im_parts[s]), default=0)
+    if top < poly.degree:
+        raise ValueError(
+            f"the exclusion polynomial's coefficients of degree {top + 1}..{poly.degree} cancel "
+            f"exactly, so {poly.degree - top} quasi-energies are exactly 0; the certified route "
+            "isolates the roots of P only (none at infinity): method='auto' returns all of them"
+        )
     found = certified_roots(re_parts, im_parts).repeated()
     if np.any(found.values == 0) or found.count != poly.degree:
         raise ValueError(
@@ -279,14 +286,23 @@ def solve_chain(
     """
     c = np.asarray(couplings)
     cs, w, weight_log2 = scaled_weights(c, states)
-    real = int(states) == 2 and not np.iscomplexobj(c) and bool(np.all(w > 0))
+    parts = _components(w, reach)
+    real = int(states) == 2 and not np.iscomplexobj(c) and bool(np.all(w[w != 0] > 0))
     key = choose_method("real chain" if real else "complex chain", method)
     if key == "exact-certified":
-        raise ValueError("method 'exact-certified' needs the model: call solve_general(model)")
-    if real:
-        found = ROOT_METHODS[key].solve(np.asarray(w, dtype=float), reach, states, lowest, cs)
-    else:
-        found = ROOT_METHODS[key].solve(np.asarray(w, dtype=complex), reach, states, lowest, None)
+        raise ValueError(
+            "these couplings have complex or negative weights, whose roots the chain methods "
+            "do not certify; the certified route is the exact polynomial of the model "
+            "(free_spectrum(model, method='certified'))"
+        )
+    dtype = float if real else complex
+    pieces = [
+        ROOT_METHODS[key].solve(
+            np.asarray(w[idx], dtype=dtype), back, states, lowest, cs[idx] if real else None
+        )
+        for idx, back in parts
+    ]
+    found = pieces[0] if len(pieces) == 1 else _merged(pieces, lowest)
     if ROOT_METHODS[key].rigorous and not found.rigorous:
         raise ValueError(f"the chain roots could not be certified ({key}): {found.message}")
     if not found.converged and not allow_unconverged:
@@ -297,6 +313,70 @@ def solve_chain(
         )
     found = dataclasses.replace(found, weight_log2=found.weight_log2 + weight_log2)
     return _unscaled(found)
+
+
+def _components(w: np.ndarray, reach: Any) -> list[tuple[np.ndarray, Any]]:
+    """The chain without its zero-weight terms, cut into connected pieces.
+
+    A term with coupling 0 drops out of the polynomial (its weight multiplies every monomial
+    holding it), and what remains may fall apart: a zero in a chain of reach 1 splits it.
+    Each piece is ``(term positions, reach)``: the original reach when the piece is the whole
+    chain, else its back-reach array (each kept term's earlier kept neighbours, re-counted).
+    Solving the pieces apart keeps equal pieces from handing the root finder the double roots
+    of their product.
+    """
+    back = chain_back(reach, w.size)
+    keep = w != 0
+    if np.all(keep):
+        starts = np.nonzero(back[1:] == 0)[0] + 1
+        if starts.size == 0:
+            return [(np.arange(w.size), reach)]
+        positions = np.arange(w.size)
+    else:
+        kept_before = np.concatenate([[0], np.cumsum(keep)])
+        k = np.arange(w.size)
+        back = (kept_before[k] - kept_before[k - back])[keep]
+        positions = np.nonzero(keep)[0]
+        starts = np.nonzero(back[1:] == 0)[0] + 1
+    bounds = np.concatenate([[0], starts, [positions.size]])
+    return [
+        (positions[a:b], back[a:b])
+        for a, b in zip(bounds[:-1].tolist(), bounds[1:].tolist(), strict=True)
+        if b > a
+    ]
+
+
+def _merged(pieces: list[RootTable], lowest: int | None) -> RootTable:
+    """One result from the roots of independent pieces (their polynomial is the product)."""
+    first = pieces[0]
+    values = np.concatenate([p.values for p in pieces])
+    bounds = np.concatenate([p.error_bounds for p in pieces])
+    exponents = np.concatenate([p.exponents for p in pieces])
+    with np.errstate(divide="ignore"):
+        size = np.log2(np.abs(values).astype(float)) + exponents
+    # ascending y for real chains, by modulus of x otherwise; the lowest quasi-energies are
+    # the largest y, the smallest |x|
+    order = np.argsort(size, kind="stable")
+    count = sum(p.count for p in pieces)
+    if lowest is not None and int(lowest) < order.size:
+        order = order[-int(lowest) :] if first.variable == "y" else order[: int(lowest)]
+    start = count - order.size if first.variable == "y" else 0
+    return RootTable(
+        values=values[order],
+        error_bounds=bounds[order],
+        variable=first.variable,
+        rigorous=all(p.rigorous for p in pieces),
+        converged=all(p.converged for p in pieces),
+        message=f"{len(pieces)} independent pieces (zero couplings or separate components): "
+        + "; ".join(p.message for p in pieces if p.message),
+        method=first.method,
+        evaluations=sum(p.evaluations for p in pieces),
+        count=count,
+        sweeps=sum(p.sweeps for p in pieces),
+        indices=np.arange(start, start + order.size, dtype=np.int64),
+        details={"pieces": len(pieces)},
+        exponents=exponents[order],
+    )
 
 
 def _unscaled(found: RootTable) -> RootTable:

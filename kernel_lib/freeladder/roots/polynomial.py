@@ -360,8 +360,12 @@ class ExclusionPolynomial:
     # -- exact data ------------------------------------------------------------------------------
     @property
     def weight_sums(self) -> tuple[Any, ...]:
-        """``C_s``, s = 0 .. degree (exact; see the class docstring for the types)."""
-        return tuple(_public(c, self._rounded) for c in self._exact_sums)
+        """``C_s``, s = 0 .. degree (exact; see the class docstring for the types).  When the
+        top sums cancel exactly (``c = (1, 1j)``: ``C_1 = 1 - 1``) they are listed as 0 up to
+        the degree, the independence number."""
+        sums = self._exact_sums
+        padding = (0,) * max(0, self.degree + 1 - len(sums))
+        return tuple(_public(c, self._rounded) for c in sums + padding)
 
     @property
     def coefficients(self) -> tuple[Any, ...]:

@@ -489,7 +489,8 @@ def transfer_matrix(m: Model, u: Any, limit: int = DEFAULT_LIMIT) -> StringSum:
     Raises
     ------
     ValueError
-        If the total number of independent sets exceeds ``limit``.
+        If the total number of independent sets exceeds ``limit``, or a float ``u`` meets
+        exact couplings too large for a float.
 
     References
     ----------
@@ -509,6 +510,12 @@ def transfer_matrix(m: Model, u: Any, limit: int = DEFAULT_LIMIT) -> StringSum:
         xs.append(strings.x)
         zs.append(strings.z)
         phases.append(strings.phase)
-        coefs.extend(factor * c for c in couplings)
+        try:
+            coefs.extend(factor * c for c in couplings)
+        except OverflowError:
+            raise ValueError(
+                f"the products of order {s} of the exact couplings are too large for a float "
+                f"times u = {u!r}; give u as an exact number (a Fraction or an int)"
+            ) from None
     arr = StringArray(sps.vstack(xs), sps.vstack(zs), np.concatenate(phases), m.states, m.sites)
     return StringSum(arr, coefs)

@@ -698,6 +698,11 @@ def _zero_weight(w: np.ndarray, back: np.ndarray) -> complex:
     m = w.size
     d_a, man_a, ex_a = _top_coefficient(w, back, m - 1)
     d, man, ex = _top_coefficient(w, back, m)
+    if man == 0:  # e.g. couplings (1, 1j): the top coefficient cancels, a quasi-energy is 0
+        raise ValueError(
+            "the exclusion polynomial's top coefficient cancels (a quasi-energy is exactly 0): "
+            "the edge expansion divides by it and does not apply"
+        )
     if d_a != d:
         return 0.0
     return complex(man_a / man * 2.0 ** max(ex_a - ex, -1100))

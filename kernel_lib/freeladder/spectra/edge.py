@@ -401,6 +401,18 @@ def component_model(m: Model, terms: Sequence[int]) -> Model:
     return Model(m.strings.take(idx), [m.couplings[int(j)] for j in idx])
 
 
+def _live_terms(m: Model) -> Model:
+    """``m`` without its terms of coupling 0, on all of ``m``'s sites (``m`` itself when none).
+
+    A term with coupling 0 is not part of the Hamiltonian: it links no components (a zero
+    coupling splits a chain in two) and its string constrains no mode.
+    """
+    live = [j for j, c in enumerate(m.couplings) if c != 0]
+    if len(live) == len(m) or not live:
+        return m
+    return component_model(m, live)
+
+
 def _etas(values: Any) -> np.ndarray:
     eta = np.asarray(values, dtype=complex)
     return eta.real if np.allclose(eta.imag, 0) else eta
@@ -441,6 +453,7 @@ def ladder_operators(
     P. Fendley, J. Phys. A 52, 335002 (2019), arXiv:1901.08078, section 4.
     """
     _check_ladder_model(m)
+    m = _live_terms(m)
     comps = components(m)
     if quasi_energies is not None and len(comps) > 1:
         raise ValueError(

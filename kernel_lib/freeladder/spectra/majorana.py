@@ -194,6 +194,85 @@ class SectorStructure:
             equations.append((_mask(members), value * zeta))
         return _solve_signs(equations, len(gens))
 
+    def select(
+        self, sector: Sequence[int] | Mapping[WeylString, int]
+    ) -> tuple[tuple[int, ...], ...]:
+        """The consistent labels a sector choice selects, or a refusal listing the valid ones.
+
+        Parameters
+        ----------
+        sector : sequence of int or mapping
+            A label as :attr:`sectors` lists it (cycle values, then parity values: that sector
+            alone); the cycle values only (every consistent parity kept); or a mapping of
+            conserved strings (:class:`WeylString`) to their values.  Every value is the
+            integer +1 or -1 (Python or numpy integers; not bools, not floats); a sequence is a
+            tuple, a list or a 1-d numpy integer array.
+
+        Raises
+        ------
+        TypeError
+            For any other kind of choice or value (a string, a set, a float, a bool, ...).
+        ValueError
+            For a label of the wrong length, or values the relations do not allow; the message
+            lists the valid labels.
+        """
+        n_cycles, n_gens = len(self.cycle_operators), len(self.generators)
+        if isinstance(sector, Mapping):
+            values = {}
+            for key, value in sector.items():
+                if not isinstance(key, WeylString):
+                    raise TypeError(
+                        f"a sector mapping's keys are conserved strings (WeylString), not "
+                        f"{key!r}; {self._valid_text()}"
+                    )
+                values[key] = _label_sign(value, f"the value of {key}", self)
+            return self.labels_where(values)
+        if isinstance(sector, np.ndarray):
+            if sector.ndim != 1 or sector.dtype.kind not in "iu":
+                raise TypeError(
+                    f"a sector label array must be 1-d of integers, got shape {sector.shape} and "
+                    f"dtype {sector.dtype}; {self._valid_text()}"
+                )
+            sector = sector.tolist()
+        if not isinstance(sector, (tuple, list)):
+            raise TypeError(
+                f"a sector is a tuple of +-1 or a mapping of conserved strings to +-1, not "
+                f"{type(sector).__name__} {sector!r}; {self._valid_text()}"
+            )
+        want = [
+            _label_sign(v, f"entry {k} of the sector label", self) for k, v in enumerate(sector)
+        ]
+        if len(want) not in (n_cycles, n_gens):
+            raise ValueError(
+                f"a sector label has {n_gens} values (the {n_cycles} cycle values, then the "
+                f"{n_gens - n_cycles} parity values) or only the {n_cycles} cycle values, not "
+                f"{len(want)}; {self._valid_text()}"
+            )
+        # one equation per generator by position: equal generators (e.g. two cycle strings
+        # that are both the identity) keep their own values and must agree with the relations
+        equations = [(_mask(members), sign) for members, sign in self.relations]
+        equations += [(1 << k, v) for k, v in enumerate(want)]
+        try:
+            return _solve_signs(equations, n_gens)
+        except ValueError as err:
+            if "contradict" not in str(err):
+                raise
+            raise ValueError(
+                f"the sector label {tuple(want)} is not consistent with the relations among the "
+                f"conserved strings; {self._valid_text()}"
+            ) from None
+
+    def _valid_text(self) -> str:
+        """The valid labels, for error messages."""
+        n_cycles = len(self.cycle_operators)
+        if self.rank > 6:
+            return (
+                f"the valid labels are {self.count} tuples of {len(self.generators)} values +-1 "
+                f"(the first {n_cycles} are cycle values; see sectors(m).sectors)"
+            )
+        listed = ", ".join(str(label) for label in self.sectors)
+        return f"the valid labels (cycle values, then parity values) are {listed}"
+
     def sector_of(self, vector: Any, atol: float = 1e-8) -> tuple[int, ...]:
         """Eigenvalues of the generators on a state (an exact eigenvector or a basis state).
 
@@ -348,6 +427,18 @@ def _express(
     if prod.factors != g.factors or abs(phase.imag) > 1e-12:
         raise AssertionError("a product of commuting Hermitian strings has a non-real phase")
     return members, 1 if phase.real > 0 else -1
+
+
+def _label_sign(value: Any, what: str, struct: SectorStructure) -> int:
+    """``value`` as +1 or -1 when it is exactly that integer; else a refusal."""
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)):
+        raise TypeError(
+            f"{what} must be the integer +1 or -1, not {type(value).__name__} {value!r}; "
+            f"{struct._valid_text()}"
+        )
+    if int(value) not in (1, -1):
+        raise ValueError(f"{what} must be +1 or -1, not {value!r}; {struct._valid_text()}")
+    return int(value)
 
 
 def _solve_signs(equations: Sequence[tuple[int, int]], n: int) -> tuple[tuple[int, ...], ...]:
@@ -637,6 +728,8 @@ def flux_theorem_values(m: Model) -> tuple[dict[WeylString, int] | None, str]:
     E. H. Lieb, Phys. Rev. Lett. 73, 2158 (1994); A. Kitaev, Ann. Phys. 321, 2 (2006).
     """
     pairs = _check_model(m)
+    if len(m) == 0:
+        return None, "the model has no terms"
     couplings = m.coupling_array()
     if np.iscomplexobj(couplings):
         return None, "complex couplings"
@@ -1188,10 +1281,12 @@ def jordan_wigner_spectrum(
         "all": every consistent sector (their union, with multiplicities, is the whole
         spectrum).  "ground": the sectors with the cycle values of the one holding the lowest
         level (by real part; every parity value kept), see Notes.
-        A sequence: eigenvalues of the cycle operators
-        (:attr:`SectorStructure.cycle_operators`, in order); every consistent parity
-        assignment is kept.  A mapping: conserved strings (e.g. plaquettes) to their values;
-        every consistent completion is kept (:meth:`SectorStructure.labels_where`).
+        A sequence: a label as :attr:`SectorStructure.sectors` lists it (that sector alone),
+        or the eigenvalues of the cycle operators only (:attr:`SectorStructure.cycle_operators`,
+        in order; every consistent parity assignment kept).  A mapping: conserved strings
+        (e.g. plaquettes) to their values; every consistent completion is kept
+        (:meth:`SectorStructure.labels_where`).  Values are the integers +1 and -1
+        (:meth:`SectorStructure.select` says exactly what is accepted).
 
     Returns
     -------
@@ -1200,7 +1295,10 @@ def jordan_wigner_spectrum(
     Raises
     ------
     ValueError
-        For a label of the wrong length or not consistent, or too many sectors to enumerate.
+        For a label of the wrong length or not consistent, or too many sectors to enumerate
+        (the message lists the valid labels).
+    TypeError
+        For a choice that is not a string, a sequence of integers or a mapping.
     TooLargeError
         For ``sector="ground"`` when the flux theorem does not apply and there are more than
         ``2^16`` sectors to search.
@@ -1241,20 +1339,22 @@ def jordan_wigner_spectrum(
     n_cycles = len(struct.cycle_operators)
     if isinstance(sector, str):
         if sector not in ("all", "ground"):
-            raise ValueError(f"sector must be 'all', 'ground' or a tuple of +-1, not {sector!r}")
+            raise ValueError(
+                f"sector must be 'all', 'ground', a tuple of +-1 or a mapping, not {sector!r}; "
+                + struct._valid_text()
+            )
         if sector == "ground":
             labels, selection = _ground_candidates(m, struct)
         else:
             labels, selection = struct.sectors, f"all {struct.count} sectors"
-    elif isinstance(sector, Mapping):
-        labels = struct.labels_where(sector)
-        selection = f"given values of {len(sector)} conserved string(s)"
     else:
-        want = tuple(int(s) for s in sector)
-        if len(want) != n_cycles or any(s not in (1, -1) for s in want):
-            raise ValueError(f"a sector label is {n_cycles} values +-1 (one per cycle operator)")
-        labels = struct.labels_where(dict(zip(struct.cycle_operators, want, strict=True)))
-        selection = f"given cycle values {want}"
+        labels = struct.select(sector)
+        if isinstance(sector, Mapping):
+            selection = f"given values of {len(sector)} conserved string(s)"
+        elif len(sector) == n_cycles:
+            selection = f"given cycle values {tuple(int(v) for v in sector)}"
+        else:
+            selection = f"the sector {tuple(int(v) for v in sector)}"
     dim = 2 ** len(m.sites)
     from tqdm.auto import tqdm  # on use
 
@@ -1269,7 +1369,8 @@ def jordan_wigner_spectrum(
         solved.append(levels)
         mismatch = max(mismatch, miss)
     bar.close()
-    if sector == "ground":  # the flux sector of the lowest level, with its parity values
+    # "ground": the flux sector of the lowest level, with its parity values
+    if isinstance(sector, str) and sector == "ground":
         best = min(solved, key=lambda s: _re(s.ground_energy)).label[:n_cycles]
         solved = [s for s in solved if s.label[:n_cycles] == best]
     hnorm = float(np.abs(couplings).sum()) if len(couplings) else 0.0

@@ -795,11 +795,15 @@ def free_spectrum(
         quadratic form of one sector (:func:`freeladder.jordan_wigner_spectrum`), guaranteed
         sector by sector (Chapman-Flammia 2020).  "ground": the sector holding the lowest
         level (exhaustive search up to ``2^16`` sectors, else Lieb's flux theorem where
-        :func:`freeladder.flux_theorem_values` applies, else refused).  A sequence: the
-        eigenvalues of :attr:`SectorStructure.cycle_operators`.  A mapping: conserved strings
-        to their values, which must leave one set of cycle values.  "all": only when there is
-        one (no cycles).  The parity strings are not fixed by the choice: every consistent
-        value is included, and a parity the relations fix becomes
+        :func:`freeladder.flux_theorem_values` applies, else refused).  A sequence: a label
+        as ``fl.sectors(m).sectors`` lists it (cycle values then parity values: that sector
+        alone), or the eigenvalues of :attr:`SectorStructure.cycle_operators` only.  A
+        mapping: conserved strings to their values, which must leave one set of cycle values.
+        "all": only when there is one (no cycles).  Values are the integers +1 and -1; any
+        other label is refused with the list of valid ones
+        (:meth:`SectorStructure.select`).  Unless a full label fixes them, the parity strings
+        are not fixed by the choice: every consistent value is included, and a parity the
+        relations fix becomes
         :attr:`FreeSpectrum.parity_constraints`.  Real or complex couplings; ``method``
         "auto" or "fast".
 
@@ -876,7 +880,7 @@ def free_spectrum(
     eta, eta_err = found.quasi_energies(n, beyond_float="round")
     log_eta = found.log_quasi_energies(n)[0]
     true = found.true_values()[0]
-    with np.errstate(divide="ignore", over="ignore", under="ignore"):
+    with np.errstate(divide="ignore", over="ignore", under="ignore", invalid="ignore"):
         y_vals = np.asarray(true if found.variable == "y" else 1.0 / true, dtype=complex)
     if n == 2 and promise.proven and np.isrealobj(couplings) and np.iscomplexobj(eta):
         eta = _real_rooted(eta, eta_err)
@@ -938,11 +942,7 @@ def _sector_spectrum(
             "the sector route diagonalises the single-particle matrix in floating point "
             "(error estimates, not enclosures): use method='auto'"
         )
-    if isinstance(sector, str) and sector not in ("ground", "all"):
-        raise ValueError(
-            f"sector must be 'ground', 'all', a tuple of +-1 or a mapping, not {sector!r}"
-        )
-    if sector == "ground":
+    if isinstance(sector, str) and sector == "ground":
         jw = jordan_wigner_spectrum(m, "ground")
         selection = f"the ground sector, by {jw.selection}"
     else:

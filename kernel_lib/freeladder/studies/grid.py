@@ -65,13 +65,16 @@ def _points(
     return keys, points, labels
 
 
-def _random_keyword(function: Callable[..., Any]) -> str | None:
-    """``"rng"`` or ``"seed"`` when ``function`` takes that keyword, else None."""
+def _random_keyword(function: Callable[..., Any], keys: Sequence[str]) -> str | None:
+    """``"rng"`` or ``"seed"`` when ``function`` takes that keyword and it is not a grid key
+    (a grid key is passed as given: the grid value wins), else None."""
     try:
         params = inspect.signature(function).parameters
     except (TypeError, ValueError):
         return None
     for name in ("rng", "seed"):
+        if name in keys:
+            continue
         p = params.get(name)
         if p is not None and p.kind in (p.POSITIONAL_OR_KEYWORD, p.KEYWORD_ONLY):
             return name
@@ -159,9 +162,11 @@ def sweep(
     function : callable
         Called with one keyword per grid key.  If it takes a keyword ``rng`` it also gets a
         ``numpy.random.Generator``; else, if it takes ``seed``, a ``numpy.random.SeedSequence``
-        (``numpy.random.default_rng`` accepts both).  A dict result becomes columns; anything
-        else becomes the column ``result``.  For ``"processes"`` and dask it must be picklable
-        (a function defined at module level).
+        (``numpy.random.default_rng`` accepts both).  A grid key named ``rng`` or ``seed`` is
+        passed as the grid gives it: the grid value wins, and no stream is injected under that
+        name (``seed`` still gets one when ``rng`` is the grid key).  A dict result becomes
+        columns; anything else becomes the column ``result``.  For ``"processes"`` and dask it
+        must be picklable (a function defined at module level).
     grid : dict of lists
         ``{name: values}``; the points are ``itertools.product`` of the values in key order.
     executor : None, "processes", concurrent.futures.Executor, distributed.Client or str
@@ -217,7 +222,7 @@ def sweep(
     if not callable(function):
         raise ValueError(f"function must be callable, got {type(function).__name__}")
     keys, points, labels = _points(grid, repeat)
-    keyword = _random_keyword(function)
+    keyword = _random_keyword(function, keys)
     streams: list[np.random.SeedSequence | None]
     entropy: Any = None
     if keyword is not None or seed is not None:
