@@ -30,10 +30,12 @@ import html
 import math
 import re
 from fractions import Fraction
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-import sympy
-from sympy.printing.str import StrPrinter
+if TYPE_CHECKING:
+    import sympy
+else:
+    from .lazy import sympy
 
 __all__ = [
     "DIGITS",
@@ -80,14 +82,25 @@ their leading digits."""
 _MINUS = "\u2212"
 
 
-class _Printer(StrPrinter):  # type: ignore[misc]
-    """sympy's text printer with ``i`` for the imaginary unit and rounded floats."""
+def _printer() -> Any:
+    """sympy's text printer with ``i`` for the imaginary unit and rounded floats (built on
+    first use, so that importing freeladder does not import sympy)."""
+    global _PRINTER
+    if _PRINTER is None:
+        from sympy.printing.str import StrPrinter
 
-    def _print_ImaginaryUnit(self, expr: Any) -> str:  # noqa: N802 (sympy's naming)
-        return "i"
+        class Printer(StrPrinter):  # type: ignore[misc]
+            def _print_ImaginaryUnit(self, expr: Any) -> str:  # noqa: N802 (sympy's naming)
+                return "i"
 
-    def _print_Float(self, expr: Any) -> str:  # noqa: N802
-        return _real(float(expr), DIGITS)
+            def _print_Float(self, expr: Any) -> str:  # noqa: N802
+                return _real(float(expr), DIGITS)
+
+        _PRINTER = Printer({"full_prec": False})
+    return _PRINTER
+
+
+_PRINTER: Any = None
 
 
 def _real(x: float, digits: int) -> str:
@@ -231,7 +244,7 @@ def number_text(value: Any, digits: int = DIGITS) -> str:
         return str(value.numerator) if value.denominator == 1 else str(value)
     if isinstance(value, sympy.Basic):
         if value.free_symbols or not value.is_number:
-            return str(_Printer({"full_prec": False}).doprint(value))
+            return str(_printer().doprint(value))
         unit = _unity(value)
         if unit is not None:
             r, q = unit

@@ -194,6 +194,10 @@ def compare_moments(
             top = [high[0] / high[0]] + [high[i] / high[0] for i in range(1, count + 1)]
             negative = _newton(top, count)
         xs: list[Any] = []
+        # a bound below a few units in the last place of the float eta_k is an estimate too
+        # tight to hold through the rounding of eta_k itself: widen it to 4 ulp
+        floor = 4 * np.finfo(float).eps * np.abs(eta)
+        bounds = np.maximum(np.asarray(bounds, float), floor)
         for e, r in zip(eta.tolist(), bounds.tolist(), strict=True):
             if complex_:
                 xs.append(acb(arb(complex(e).real, r), arb(complex(e).imag, r)) ** states)
