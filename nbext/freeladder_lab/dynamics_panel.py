@@ -56,7 +56,7 @@ class DynamicsPanel(Section):
         self.trace = bq.Figure(
             marks=[self.curve, self.plateau],
             axes=[
-                bq.Axis(scale=sx, label="time t (log scale)", tick_format=".0e"),
+                bq.Axis(scale=sx, label="time t (log scale)", tick_format=".0e", num_ticks=6),
                 bq.Axis(scale=sy, label="Re C(t)", orientation="vertical", tick_format=".2~f"),
             ],
             title="edge autocorrelation C(t) (dashed: plateau)",
@@ -65,7 +65,9 @@ class DynamicsPanel(Section):
             layout=widgets.Layout(width="58%", height="300px"),
             interaction=bq.PanZoom(scales={"x": [sx], "y": [sy]}),
         )
-        wx, wy = bq.LogScale(), bq.LogScale()
+        # The weights and frequencies span many decades on long chains: their logarithms are
+        # drawn on linear axes (clean ticks at every range; the axis labels say log10).
+        wx, wy = bq.LinearScale(), bq.LinearScale()
         self.weights = bq.Scatter(
             x=[],
             y=[],
@@ -79,8 +81,14 @@ class DynamicsPanel(Section):
         self.spectral = bq.Figure(
             marks=[self.weights],
             axes=[
-                bq.Axis(scale=wx, label="frequency |eta_k| (log)", tick_format=".0e"),
-                bq.Axis(scale=wy, label="weight (log)", orientation="vertical", tick_format=".0e"),
+                bq.Axis(scale=wx, label="log10 |eta_k|", tick_format=".3~g", num_ticks=5),
+                bq.Axis(
+                    scale=wy,
+                    label="log10 weight",
+                    orientation="vertical",
+                    tick_format=".3~g",
+                    num_ticks=5,
+                ),
             ],
             title="spectral weights of the modes",
             title_style={"font-size": "14px"},
@@ -128,7 +136,7 @@ class DynamicsPanel(Section):
             self.curve.x, self.curve.y = t, values.real
             self.plateau.x, self.plateau.y = [t[0], t[-1]], [plateau.real, plateau.real]
         with self.spectral.hold_sync():
-            self.weights.x, self.weights.y = eta[keep], w[keep]
+            self.weights.x, self.weights.y = np.log10(eta[keep]), np.log10(w[keep])
             self.weights.names = [
                 f"k = {k + 1}: |eta| = {number_text(a)}, weight {number_text(b)}"
                 for k, (a, b) in enumerate(zip(eta, w, strict=True))
