@@ -238,6 +238,13 @@ def _workbench_checks(page: sync_api.Page, cell: sync_api.Locator, path: Path) -
         timeout=120_000,
     )
     assert "plateau (zero-mode weight)" in (output.text_content() or "")
+    # the time trace is drawn: its line has a path through the 300 time points
+    page.wait_for_function(
+        """(node) => Array.from(node.querySelectorAll(".freeladder-dynamics-trace path"))
+            .some((p) => (p.getAttribute("d") || "").length > 1000)""",
+        arg=output.element_handle(),
+        timeout=60_000,
+    )
     height = int((output.bounding_box() or {"height": 2500})["height"])
     page.set_viewport_size({"width": 1400, "height": height + 400})
     output.scroll_into_view_if_needed()

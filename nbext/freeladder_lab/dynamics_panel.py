@@ -22,7 +22,7 @@ import numpy as np
 
 from .adapter import View, edge_dynamics
 from .panel import Host, Section
-from .style import ACCENT, MUTED, SECOND, WARN, escape, number_text
+from .style import ACCENT, MUTED, SECOND, WARN, escape, nice_ticks, number_text
 
 __all__ = ["DynamicsPanel"]
 
@@ -56,7 +56,7 @@ class DynamicsPanel(Section):
         self.trace = bq.Figure(
             marks=[self.curve, self.plateau],
             axes=[
-                bq.Axis(scale=sx, label="time t (log scale)", tick_format=".0e", num_ticks=6),
+                bq.Axis(scale=sx, label="time t (log scale)", tick_format=".0e"),
                 bq.Axis(scale=sy, label="Re C(t)", orientation="vertical", tick_format=".2~f"),
             ],
             title="edge autocorrelation C(t) (dashed: plateau)",
@@ -68,6 +68,14 @@ class DynamicsPanel(Section):
         # The weights and frequencies span many decades on long chains: their logarithms are
         # drawn on linear axes (clean ticks at every range; the axis labels say log10).
         wx, wy = bq.LinearScale(), bq.LinearScale()
+        self._weight_x = bq.Axis(scale=wx, label="log10 |eta_k|", tick_format=".3~g")
+        self._weight_y = bq.Axis(
+            scale=wy,
+            label="log10 weight",
+            orientation="vertical",
+            tick_format=".3~g",
+            label_offset="46px",
+        )
         self.weights = bq.Scatter(
             x=[],
             y=[],
@@ -80,22 +88,14 @@ class DynamicsPanel(Section):
         )
         self.spectral = bq.Figure(
             marks=[self.weights],
-            axes=[
-                bq.Axis(scale=wx, label="log10 |eta_k|", tick_format=".3~g", num_ticks=5),
-                bq.Axis(
-                    scale=wy,
-                    label="log10 weight",
-                    orientation="vertical",
-                    tick_format=".3~g",
-                    num_ticks=5,
-                ),
-            ],
+            axes=[self._weight_x, self._weight_y],
             title="spectral weights of the modes",
             title_style={"font-size": "14px"},
             fig_margin={"top": 36, "bottom": 44, "left": 60, "right": 16},
             layout=widgets.Layout(width="42%", height="300px"),
             interaction=bq.PanZoom(scales={"x": [wx], "y": [wy]}),
         )
+        self.trace.add_class("freeladder-dynamics-trace")
         self.summary = widgets.HTML("<i>Not run yet for this model.</i>")
         self.figures = widgets.HBox([self.trace, self.spectral])
         self.figures.layout.display = "none"
@@ -136,7 +136,14 @@ class DynamicsPanel(Section):
             self.curve.x, self.curve.y = t, values.real
             self.plateau.x, self.plateau.y = [t[0], t[-1]], [plateau.real, plateau.real]
         with self.spectral.hold_sync():
-            self.weights.x, self.weights.y = np.log10(eta[keep]), np.log10(w[keep])
+            lx, ly = np.log10(eta[keep]), np.log10(w[keep])
+            self.weights.x, self.weights.y = lx, ly
+            for axis, values in ((self._weight_x, lx), (self._weight_y, ly)):
+                if len(values):  # round ticks (bqplot's own split the range into odd values)
+                    lo, hi = float(values.min()), float(values.max())
+                    pad = max(0.05 * (hi - lo), 0.05)
+                    axis.scale.min, axis.scale.max = lo - pad, hi + pad
+                    axis.tick_values = nice_ticks(lo - pad, hi + pad, 5)
             self.weights.names = [
                 f"k = {k + 1}: |eta| = {number_text(a)}, weight {number_text(b)}"
                 for k, (a, b) in enumerate(zip(eta, w, strict=True))
