@@ -192,14 +192,7 @@ def test_export_inserts_runs_and_undoes(
         browser = pw.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
         page = browser.new_page(viewport={"width": 1400, "height": 1000})
         try:
-            page.goto(address)
-            notebook = page.locator(".jp-Notebook:visible").first
-            cells = notebook.locator(".jp-Cell")
-            cells.first.wait_for(timeout=90_000)
-            _wait_cell_count(page, 3)
-
-            _wait_kernel_idle(url, token, name)
-            _run_all(page)
+            notebook, cells = _open_and_run(page, address, url, token, name, 3)
             insert = notebook.get_by_role("button", name="insert cells below")
             insert.wait_for(timeout=120_000)
             _wait_all_ran(page, 2)
@@ -263,6 +256,23 @@ def _wait_kernel_idle(url: str, token: str, name: str) -> None:
             return
         time.sleep(0.5)
     raise AssertionError(f"no idle kernel for {name} within 120 s: {sessions}")
+
+
+def _open_and_run(
+    page: sync_api.Page, address: str, url: str, token: str, name: str, count: int
+) -> tuple[sync_api.Locator, sync_api.Locator]:
+    """Open the notebook, wait for its ``count`` cells and an idle kernel, then Run All.
+
+    Returns the notebook and its cells.
+    """
+    page.goto(address)
+    notebook = page.locator(".jp-Notebook:visible").first
+    cells = notebook.locator(".jp-Cell")
+    cells.first.wait_for(timeout=90_000)
+    _wait_cell_count(page, count)
+    _wait_kernel_idle(url, token, name)
+    _run_all(page)
+    return notebook, cells
 
 
 def _wait_cell_count(page: sync_api.Page, count: int) -> None:
@@ -374,13 +384,7 @@ def test_workbench_renders_follows_edits_and_exports(
         browser = pw.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
         page = browser.new_page(viewport={"width": 1400, "height": 1000})
         try:
-            page.goto(address)
-            notebook = page.locator(".jp-Notebook:visible").first
-            cells = notebook.locator(".jp-Cell")
-            cells.first.wait_for(timeout=90_000)
-            _wait_cell_count(page, 3)
-            _wait_kernel_idle(url, token, name)
-            _run_all(page)
+            notebook, cells = _open_and_run(page, address, url, token, name, 3)
             _wait_all_ran(page, 2)
             # every plot of the Workbench has drawn (bqplot figures inside the output)
             page.wait_for_function(
@@ -514,13 +518,7 @@ def test_workbench_reads_at_scale_and_says_what_it_shows(
         browser = pw.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
         page = browser.new_page(viewport={"width": 1400, "height": 1000})
         try:
-            page.goto(address)
-            notebook = page.locator(".jp-Notebook:visible").first
-            cells = notebook.locator(".jp-Cell")
-            cells.first.wait_for(timeout=90_000)
-            _wait_cell_count(page, 4)
-            _wait_kernel_idle(url, token, name)
-            _run_all(page)
+            notebook, cells = _open_and_run(page, address, url, token, name, 4)
             _wait_all_ran(page, 3)
             big = cells.nth(1).locator(".jp-OutputArea-output").first
             ladder = cells.nth(2).locator(".jp-OutputArea-output").first
