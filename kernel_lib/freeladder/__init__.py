@@ -62,6 +62,7 @@ from .spectra.dynamics import (
     EdgeExpansion,
     TwoPoint,
     autocorrelation,
+    certified_edge_weights,
     edge_expansion,
     two_point,
 )
@@ -79,6 +80,7 @@ from .spectra.majorana import (
 from .spectra.matching import LevelMatch, match_levels
 from .spectra.spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .spectra.thermo import Thermodynamics, log_partition_function, thermodynamics
+from .spectra.weight_balls import WeightBalls
 from .studies.census import census
 from .studies.disorder import (
     LogGapStatistics,
@@ -177,11 +179,13 @@ __all__ = [
     "EdgeExpansion",
     "Autocorrelation",
     "TwoPoint",
+    "WeightBalls",
     "LadderOperators",
     "Report",
     "edge_mode",
     "edge_expansion",
     "autocorrelation",
+    "certified_edge_weights",
     "two_point",
     "ladder_operators",
     "verify",

@@ -19,6 +19,7 @@ from .dynamics import (
     EdgeExpansion,
     TwoPoint,
     autocorrelation,
+    certified_edge_weights,
     edge_expansion,
     two_point,
 )
@@ -66,12 +67,15 @@ from .thermo import (
     log_partition_function,
     thermodynamics,
 )
+from .weight_balls import WeightBalls
 
 __all__ = [
     "Autocorrelation",
     "EdgeExpansion",
     "TwoPoint",
+    "WeightBalls",
     "autocorrelation",
+    "certified_edge_weights",
     "edge_expansion",
     "two_point",
     "SectorRow",
