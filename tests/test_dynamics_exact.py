@@ -134,3 +134,50 @@ def test_weights_many_decades_against_squared_components() -> None:
     big = ref > 1e-6
     assert np.allclose(e.weights[big], ref[big], rtol=1e-6)
     assert abs(e.zero_weight + e.weights.sum() - 1) < 1e-10
+
+
+# -- the checked summary in the report and the JSON ---------------------------------------------
+def test_report_json_carries_the_checked_dynamics() -> None:
+    """``report --json`` (Analysis.to_dict(checks=True)) holds the weights, frequencies,
+    plateau and values; the values equal exact evolution computed here (scipy.linalg.expm,
+    full trace) and the weights sum to 1 with the plateau (Fendley 2019)."""
+    from freeladder.output.cli import report_data
+
+    m = fl.parse_model("0.5 X0 + Z0 Z1 + 0.7 X1 + 1.3 Z1 Z2")
+    d = report_data(m)["dynamics"]
+    assert d["operator"] == "Z0" and d["verified"]["passed"] is True
+    assert d["verified"]["method"].startswith("dense exact evolution")
+    assert abs(d["plateau"] + sum(d["weights"]) - 1) < 1e-12
+    assert len(d["frequencies"]) == len(d["weights"])
+    sites = list(m.sites)
+    h = np.asarray(sum(complex(c) * dense_string(g, sites) for c, g in m.terms))
+    z0 = dense_string(fl.parse_model("Z0", sites=m.sites).strings[0], sites)
+    for t, v in zip(d["times"], d["values"], strict=True):
+        ref = np.trace(z0 @ sla.expm(1j * t * h) @ z0 @ sla.expm(-1j * t * h)).real / len(h)
+        assert abs(v - ref) < 1e-10
+    assert fl.analyze(m).to_dict()["dynamics"] is None  # only with the checks
+    # no edge operator for a model whose only string is the identity's multiple: a reason
+    bad = fl.analyze(fl.parse_model("X0 X1 + Z0 Z1 + Y0 Y1")).to_dict(checks=True)["dynamics"]
+    assert bad["error"] == "NotExpandableError" and bad["message"]
+
+
+def test_dense_reference_of_the_check_matches_scipy_expm_and_can_fail() -> None:
+    """The check's dense reference (numpy eig, non-Hermitian Z3 chain) against
+    scipy.linalg.expm, and a wrong value is caught: the tolerance is far below it."""
+    from freeladder.checks.edge_dynamics import dense_autocorrelation
+
+    m = fl.clock_chain(3, states=3)
+    t = np.array([0.0, 0.3, 0.8])
+    got, rounding, hermitian = dense_autocorrelation(m, "Z0", t)
+    assert not hermitian
+    sites = list(m.sites)
+    h = np.asarray(sum(complex(c) * dense_string(g, sites) for c, g in m.terms))
+    z0 = dense_string(fl.parse_model("Z0", states=3, sites=m.sites).strings[0], sites)
+    ref = [
+        np.trace(z0.conj().T @ sla.expm(1j * s * h) @ z0 @ sla.expm(-1j * s * h)) / len(h)
+        for s in t
+    ]
+    assert np.all(np.abs(got - np.array(ref)) < 1e-10)
+    c = fl.check_autocorrelation(m, t)
+    assert c.passed and all(c.compared) and c.tolerance < 1e-6
+    assert not c.hermitian

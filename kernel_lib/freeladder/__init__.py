@@ -24,6 +24,7 @@ from .algebra.syntax import ModelSyntaxError, parse_model
 from .analysis import Analysis, analyze
 from .base.errors import NotExpandableError, NoTheoremError
 from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
+from .checks.edge_dynamics import DynamicsCheck, check_autocorrelation
 from .checks.verification import Check, Report, verify
 from .graphs.directed import DirectedFrustrationGraph, directed_frustration_graph
 from .graphs.graph import (
@@ -105,6 +106,8 @@ from .studies.scaling import (
 )
 
 __all__ = [
+    "DynamicsCheck",
+    "check_autocorrelation",
     "census",
     "honeycomb_hexagons",
     "kitaev_torus",

@@ -44,6 +44,7 @@ from .spectra.majorana import jordan_wigner_spectrum, sectors
 from .spectra.spectrum import FreeSpectrum, free_spectrum, refusal_text
 
 if TYPE_CHECKING:
+    from .checks.edge_dynamics import DynamicsCheck
     from .checks.verification import Report
     from .output.worked import WorkedCalculation
 
@@ -174,6 +175,13 @@ def _report(m: Model, options: tuple[tuple[str, Any], ...]) -> Report:
     from .checks.verification import verify  # the checks build on the parts above
 
     return verify(Analysis(m), **dict(options))
+
+
+@part("edge dynamics", "couplings")
+def _dynamics(m: Model) -> DynamicsCheck:
+    from .checks.edge_dynamics import check_autocorrelation  # a check: above the parts
+
+    return check_autocorrelation(m)
 
 
 @part("worked calculation", "couplings")
@@ -332,6 +340,12 @@ class Analysis:
         """The :func:`freeladder.verify` report, kept per set of options."""
         return _report(self.model, tuple(sorted(options.items())))
 
+    def dynamics(self) -> DynamicsCheck:
+        """The edge autocorrelation at a few times, checked independently
+        (:func:`freeladder.check_autocorrelation`); raises NotExpandableError (a ValueError)
+        when the edge expansion does not apply."""
+        return _dynamics(self.model)
+
     def worked(self, steps: str | Sequence[str] = "all") -> WorkedCalculation:
         """The worked calculation (:func:`freeladder.worked_calculation`), kept per steps."""
         return _worked(self.model, steps if isinstance(steps, str) else tuple(steps))
@@ -355,8 +369,10 @@ class Analysis:
         guarantee, ...), ``charge_counts``, ``polynomial``, ``spectrum``
         (:meth:`SpectrumAnswer.to_dict`: the numbers or the refusal) and ``report`` (the
         :func:`freeladder.verify` report with ``ok``, ``problems`` and ``checks``, when
-        ``checks`` is True; else None).  Parts that raise are reported as
-        ``{"error": type, "message": text}``.
+        ``checks`` is True; else None) and ``dynamics`` (the edge autocorrelation: weights,
+        frequencies, plateau, a few time values and how they were verified,
+        :meth:`DynamicsCheck.to_dict`, when ``checks`` is True; else None).  Parts that raise
+        are reported as ``{"error": type, "message": text}``.
         """
         out: dict[str, Any] = {
             "model": str(self.model),
@@ -370,6 +386,7 @@ class Analysis:
             ("polynomial", lambda: self.polynomial),
             ("spectrum", lambda: self.answer()),
             ("report", lambda: self.report() if checks else None),
+            ("dynamics", lambda: self.dynamics() if checks else None),
         ]
         for name, get in parts:
             try:

@@ -12,6 +12,7 @@ from .charge_sweep import (
     inversion_sweep,
     run,
 )
+from .edge_dynamics import DynamicsCheck, check_autocorrelation
 from .verification import (
     ED_AUTO_DIMENSION,
     FLOAT_RTOL,
@@ -37,6 +38,8 @@ from .verification import (
 )
 
 __all__ = [
+    "DynamicsCheck",
+    "check_autocorrelation",
     "Check",
     "ED_AUTO_DIMENSION",
     "FLOAT_RTOL",

@@ -41,7 +41,7 @@ from ..spectra.spectrum import FreeSpectrum
 
 __all__ = ["STEPS", "Cell", "WorkedCalculation", "worked_calculation"]
 
-STEPS = ("model", "verdict", "charges", "polynomial", "spectrum", "levels", "checks")
+STEPS = ("model", "verdict", "charges", "polynomial", "spectrum", "levels", "dynamics", "checks")
 """The steps a worked calculation can hold, in order ("model" is always included)."""
 
 SHOWN_ORDERS = 12
@@ -886,6 +886,166 @@ def _check_cells(f: _Facts) -> list[Cell]:
     return [Cell("markdown", md), Cell("code", code)]
 
 
+SHOWN_MODES = 6
+"""How many edge modes (those of largest weight) the dynamics section exports."""
+
+_KEMP_2017 = "J. Kemp, N. Y. Yao, C. R. Laumann and P. Fendley, J. Stat. Mech. (2017) 063105"
+
+
+def _dynamics_of(f: _Facts) -> tuple[Any, str]:
+    """The checked edge autocorrelation (a part of the analysis), or why there is none."""
+    try:
+        return analyze(f.model).dynamics(), ""
+    except (ValueError, ArithmeticError) as err:
+        return None, str(err)
+
+
+def _dynamics_cells(f: _Facts) -> list[Cell]:
+    """The edge autocorrelation: weights, plateau and a few values, asserted, and checked
+    against dense exact evolution (small models) or the sum rule and C(0) = 1."""
+    dyn, why = _dynamics_of(f)
+    if dyn is None:
+        return [Cell("markdown", f"## Edge dynamics\n\nNot computed: {_sentence(why)}")]
+    a = dyn.autocorrelation
+    e = a.expansion
+    n = f.model.states
+    shown = sorted(int(k) for k in np.argsort(-np.abs(e.weights), kind="stable")[:SHOWN_MODES])
+    rows = ["| k | $\\eta_k$ | $W_k$ | error |", "| --- | --- | --- | --- |"]
+    for k in shown:
+        rows.append(
+            f"| {k} | {_num(e.quasi_energies[k])} | {_num(e.weights[k])} | "
+            f"{display.bound_text(float(e.weight_errors[k]))} |"
+        )
+    values = ", ".join(f"C({_num(t)}) = {_num(v)}" for t, v in zip(a.times, a.values, strict=True))
+    series = (
+        "w_0 + \\sum_k W_k \\cos(2 \\eta_k t)"
+        if e.hermitian
+        else f"w_0 + \\sum_k \\frac{{W_k}}{{{n}}} \\sum_{{s=0}}^{{{n - 1}}} e^{{i t f_{{k,s}}}}"
+    )
+    balls = e.weight_balls
+    exact_note = (
+        f" The couplings are exact: every $W_k$ lies in a proved ball (radius at most "
+        f"{display.bound_text(float(np.max(balls.radii)))}), $w_0 = {balls.zero_weight}$ "
+        "exactly, and the ball of $w_0 + \\sum_k W_k$ holds 1."
+        if balls is not None
+        else ""
+    )
+    md = (
+        "## Edge dynamics\n\n"
+        f"The edge operator $\\chi$ = `{a.operator}` fails to commute with one term only, "
+        f"term {e.term}. Its infinite-temperature autocorrelation is a sum over the modes "
+        f"({refs.FENDLEY_2019}):\n\n"
+        f"$$C(t) = \\mathrm{{Tr}}[\\chi^\\dagger \\chi(t)] / \\dim = {series},$$\n\n"
+        "with $W_k = -P_a(y_k) / (y_k P'(y_k))$ ($P_a$ the polynomial without the edge term) "
+        f"and the plateau $w_0 = {_num(a.plateau)}$, the weight of an exact zero mode (0 "
+        f"without one; {_KEMP_2017}). The {len(shown)} largest of the {e.weights.size} weights:\n\n"
+        + "\n".join(rows)
+        + f"\n\nValues: {values}. Checked: {dyn.method}.{exact_note}"
+    )
+    times = [float(t) for t in a.times]
+    code = (
+        f"times = {_array_literal(times)}\n"
+        f"shown = {shown!r}\n"
+        f"expected_weights = np.array({_array_literal(e.weights[shown])})\n"
+        f"expected_weight_errors = np.array({_array_literal(e.weight_errors[shown])})\n"
+        f"expected_plateau = {_literal(a.plateau)}\n"
+        f"expected_values = np.array({_array_literal(a.values)})\n"
+        f"expected_value_errors = np.array({_array_literal(a.errors)})\n"
+        "dyn = fl.autocorrelation(m, times)\n"
+        "e = dyn.expansion\n"
+        f"assert dyn.operator == {json.dumps(a.operator)}, dyn.operator\n"
+        f"assert len(e.weights) == {e.weights.size}, len(e.weights)\n"
+        f"ulps = {ULPS} * np.spacing(1.0)\n"
+        "weight_tol = expected_weight_errors + e.weight_errors[shown] + ulps\n"
+        "moved = np.abs(e.weights[shown] - expected_weights)\n"
+        'assert np.all(moved <= weight_tol), ("weights moved", moved, weight_tol)\n'
+        "plateau_tol = expected_weight_errors.sum() + ulps\n"
+        'assert abs(dyn.plateau - expected_plateau) <= plateau_tol, ("plateau", dyn.plateau)\n'
+        "value_tol = expected_value_errors + dyn.errors + ulps\n"
+        "moved = np.abs(dyn.values - expected_values)\n"
+        'assert np.all(moved <= value_tol), ("values moved", moved, value_tol)\n'
+        + (
+            "balls = e.weight_balls  # proved balls from the exact polynomial\n"
+            f"assert balls.zero_weight == {_literal(balls.zero_weight)}, balls.zero_weight\n"
+            'assert balls.sum_is_one and balls.agreement <= 1, ("certified weights", balls)\n'
+            if balls is not None and not isinstance(balls.zero_weight, tuple)
+            else ""
+        )
+        + "print(dyn)"
+    )
+    return [Cell("markdown", md), Cell("code", code), Cell("code", _dynamics_check_code(dyn))]
+
+
+def _dynamics_check_code(dyn: Any) -> str:
+    """The independent recomputation: dense exact evolution with numpy, or the identities."""
+    a = dyn.autocorrelation
+    if not dyn.method.startswith("dense"):
+        return (
+            "# the identities of the expansion (the model is too large for dense evolution)\n"
+            "e = dyn.expansion\n"
+            "residual = abs(e.zero_weight + e.weights.sum() - 1)\n"
+            'assert residual <= 1e-9 + e.weight_errors.sum(), ("sum rule", residual)\n'
+            'assert abs(dyn.values[0] - 1) <= 1e-9, ("C(0)", dyn.values[0])\n'
+            'print("sum rule and C(0) = 1 hold")'
+        )
+    times = [float(t) for t in a.times]
+    dense_times = [t for t, c in zip(times, dyn.compared, strict=True) if c]
+    tols = [v for v, c in zip(dyn.tolerances, dyn.compared, strict=True) if c]
+    head = (
+        "# independent: exact evolution of the dense Hamiltonian (numpy, full trace)\n"
+        "h = m.to_sparse().toarray()\n"
+        "chi = fl.parse_model(dyn.operator, states=m.states, sites=m.sites)\n"
+        "chi = chi.to_sparse().toarray()\n"
+        f"dense_times = {_array_literal(dense_times)}\n"
+        f"dense_tol = np.array({_array_literal(tols)})\n"
+    )
+    if dyn.hermitian:
+        body = (
+            "energies, vectors = np.linalg.eigh(h)\n"
+            "overlap = np.abs(vectors.conj().T @ chi @ vectors) ** 2\n"
+            "gaps = energies[:, None] - energies[None, :]\n"
+            "dense = [np.sum(overlap * np.exp(1j * gaps * t)) for t in dense_times]\n"
+        )
+    else:
+        body = (
+            "d, v = np.linalg.eig(h)  # H is not Hermitian: e^{-iHt} = V e^{-iDt} V^-1\n"
+            "vinv = np.linalg.inv(v)\n"
+            "dense = [\n"
+            "    np.trace(chi.conj().T @ (v * np.exp(1j * d * t)) @ vinv @ chi\n"
+            "             @ (v * np.exp(-1j * d * t)) @ vinv)\n"
+            "    for t in dense_times\n"
+            "]\n"
+        )
+    return (
+        head + body + "dense = np.array(dense) / len(h)\n"
+        "compared = expected_values[[times.index(t) for t in dense_times]]\n"
+        "moved = np.abs(dense - compared)\n"
+        'assert np.all(moved <= dense_tol), ("dense evolution differs", moved, dense_tol)\n'
+        'print("dense exact evolution agrees at t =", dense_times)'
+    )
+
+
+def _dynamics_latex(f: _Facts) -> list[str]:
+    """The edge autocorrelation in a paragraph: operator, plateau, values, how checked."""
+    dyn, _ = _dynamics_of(f)
+    if dyn is None:
+        return []
+    a, tex = dyn.autocorrelation, display.tex_escape
+    values = ", ".join(
+        f"$C({display.number_latex(t)}) = {display.number_latex(v)}$"
+        for t, v in zip(a.times, a.values, strict=True)
+    )
+    return [
+        f"\\paragraph{{Edge dynamics.}} The edge operator \\texttt{{{tex(a.operator)}}} has the "
+        "infinite-temperature autocorrelation "
+        "$C(t) = \\mathrm{Tr}[\\chi^\\dagger \\chi(t)]/\\dim$, "
+        f"a sum over {a.expansion.weights.size} modes with plateau "
+        f"$w_0 = {display.number_latex(a.plateau)}$ ({tex(refs.FENDLEY_2019)}; "
+        f"{tex(_KEMP_2017)}): {values}. Checked: {tex(dyn.method)}.",
+        "",
+    ]
+
+
 _LATEX_PREAMBLE = (
     "\\documentclass{article}\n"
     "\\usepackage[margin=2.5cm]{geometry}\n"
@@ -938,6 +1098,7 @@ def _latex_section(f: _Facts) -> str:
             shown = display.number_latex(eta, display.digits_for(eta, float(b)))
             out.append(f"{k} & {shown} & {display.bound_text(float(b))} \\\\")
         out += ["\\end{longtable}"]
+    out += _dynamics_latex(f)
     out += [
         "\\begin{longtable}{p{0.22\\linewidth}p{0.36\\linewidth}p{0.2\\linewidth}"
         "p{0.1\\linewidth}}",
@@ -1038,6 +1199,7 @@ def build_worked(a: Analysis, steps: str | Sequence[str] = "all") -> WorkedCalcu
         "polynomial": _polynomial_cells,
         "spectrum": _spectrum_cells,
         "levels": _level_cells,
+        "dynamics": _dynamics_cells,
         "checks": lambda facts: _exact_cells(facts) + _check_cells(facts),
     }
     for name in STEPS[1:]:
