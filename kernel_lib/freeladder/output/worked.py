@@ -913,7 +913,7 @@ def _dynamics_cells(f: _Facts) -> list[Cell]:
     rows = ["| k | $\\eta_k$ | $W_k$ | error |", "| --- | --- | --- | --- |"]
     for k in shown:
         rows.append(
-            f"| {k} | {_num(e.quasi_energies[k])} | {_num(e.weights[k])} | "
+            f"| {k + 1} | {_num(e.quasi_energies[k])} | {_num(e.weights[k])} | "
             f"{display.bound_text(float(e.weight_errors[k]))} |"
         )
     values = ", ".join(f"C({_num(t)}) = {_num(v)}" for t, v in zip(a.times, a.values, strict=True))
