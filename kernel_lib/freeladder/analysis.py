@@ -391,7 +391,7 @@ class Analysis:
         for name, get in parts:
             try:
                 out[name] = json_ready(get())
-            except (ValueError, TypeError) as err:
+            except (ValueError, TypeError, ArithmeticError) as err:
                 out[name] = {"error": type(err).__name__, "message": str(err)}
         ready: dict[str, Any] = json_ready(out)
         return ready

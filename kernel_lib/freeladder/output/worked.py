@@ -1036,12 +1036,14 @@ def _dynamics_latex(f: _Facts) -> list[str]:
         for t, v in zip(a.times, a.values, strict=True)
     )
     return [
+        "\\begin{sloppypar}",
         f"\\paragraph{{Edge dynamics.}} The edge operator \\texttt{{{tex(a.operator)}}} has the "
         "infinite-temperature autocorrelation "
         "$C(t) = \\mathrm{Tr}[\\chi^\\dagger \\chi(t)]/\\dim$, "
         f"a sum over {a.expansion.weights.size} modes with plateau "
         f"$w_0 = {display.number_latex(a.plateau)}$ ({tex(refs.FENDLEY_2019)}; "
         f"{tex(_KEMP_2017)}): {values}. Checked: {tex(dyn.method)}.",
+        "\\end{sloppypar}",
         "",
     ]
 

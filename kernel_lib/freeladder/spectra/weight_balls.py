@@ -235,7 +235,7 @@ def weight_balls(
     Examples
     --------
     >>> from fractions import Fraction
-    >>> b = weight_balls([Fraction(1, 4), Fraction(1)], [0, 1])  # 0.5 X0 + Z0 Z1: W = 1/5
+    >>> b = weight_balls([Fraction(1), Fraction(1, 4)], [0, 1])  # 0.5 X0 + Z0 Z1, chi = Z0
     >>> b.zero_weight, round(float(b.weights[0]), 12), b.sum_is_one
     (Fraction(4, 5), 0.2, True)
     """
