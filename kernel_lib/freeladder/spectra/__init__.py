@@ -52,6 +52,11 @@ from .matching import (
     LevelMatch,
     match_levels,
 )
+from .sector_dynamics import (
+    SectorCorrelation,
+    sector_autocorrelation,
+    sector_two_point,
+)
 from .spectrum import (
     LEVEL_LIMIT,
     DensityOfStates,
@@ -91,6 +96,7 @@ __all__ = [
     "LevelMatch",
     "LevelTable",
     "SPARSE_LIMIT",
+    "SectorCorrelation",
     "SectorSpectrum",
     "SectorStructure",
     "SpectrumProvenance",
@@ -110,6 +116,8 @@ __all__ = [
     "ladder_operators",
     "log_partition_function",
     "match_levels",
+    "sector_autocorrelation",
+    "sector_two_point",
     "sectors",
     "simplicial_cliques",
     "thermodynamics",
