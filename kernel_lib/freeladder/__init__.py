@@ -57,6 +57,7 @@ from .spectra.charges import (
     charge_series,
     transfer_matrix,
 )
+from .spectra.circuits import CircuitAutocorrelation, circuit_autocorrelation
 from .spectra.dynamics import (
     Autocorrelation,
     EdgeExpansion,
@@ -189,6 +190,8 @@ __all__ = [
     "autocorrelation",
     "two_point",
     "SectorCorrelation",
+    "CircuitAutocorrelation",
+    "circuit_autocorrelation",
     "sector_autocorrelation",
     "sector_two_point",
     "ladder_operators",

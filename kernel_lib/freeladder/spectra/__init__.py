@@ -14,6 +14,10 @@ from .charges import (
     charge_series,
     transfer_matrix,
 )
+from .circuits import (
+    CircuitAutocorrelation,
+    circuit_autocorrelation,
+)
 from .dynamics import (
     Autocorrelation,
     EdgeExpansion,
@@ -73,6 +77,8 @@ from .thermo import (
 )
 
 __all__ = [
+    "CircuitAutocorrelation",
+    "circuit_autocorrelation",
     "Autocorrelation",
     "EdgeExpansion",
     "TwoPoint",
