@@ -42,6 +42,22 @@ def kitaev_ladder(rungs: int, seed: int, complex_part: float = 0.0) -> fl.Model:
     return m
 
 
+def sparse_pauli(g: fl.WeylString, sites: list[int]) -> sps.csr_array:
+    """A Pauli string as a sparse Kronecker product, X|s> = |s+1>, Z|s> = (-1)^s |s>, site 0
+    most significant (the same definitions as helpers.dense_string; common practice)."""
+    x = sps.csr_array(np.array([[0.0, 1.0], [1.0, 0.0]], dtype=complex))
+    z = sps.csr_array(np.diag([1.0, -1.0]).astype(complex))
+    ex = g.exponents()
+    mat = sps.csr_array(np.array([[1.0 + 0j]]))
+    for site in sites:
+        a, b = ex.get(site, (0, 0))
+        one = sps.identity(2, dtype=complex, format="csr")
+        one = one @ x if a else one
+        one = one @ z if b else one
+        mat = sps.csr_array(sps.kron(mat, one, format="csr"))
+    return np.exp(1j * np.pi * g.phase / 2) * mat
+
+
 def dense(m: fl.Model, text: str | None = None) -> np.ndarray:
     sites = list(m.sites)
     if text is None:
@@ -63,7 +79,7 @@ def sector_basis(text: str, label: tuple[int, ...]) -> np.ndarray:
     d = 2 ** len(m.sites)
     proj = sps.identity(d, dtype=complex, format="csr")
     for g, v in zip(st.generators, label, strict=True):
-        gen = sps.csr_array(dense_string(g, list(m.sites)))
+        gen = sparse_pauli(g, list(m.sites))
         proj = proj @ ((sps.identity(d, format="csr") + v * gen) / 2)
     proj = sps.csc_array(proj)
     covered = np.zeros(d, dtype=bool)
@@ -106,10 +122,17 @@ def exact_sector(
 ) -> np.ndarray:
     """``Tr_S[a^dagger e^{iHt} b e^{-iHt}] / dim_S`` with H, a, b projected on the sector."""
     q = sector_basis(str(m), label)
-    hs = q.conj().T @ dense_hamiltonian(str(m)) @ q
-    as_ = q.conj().T @ dense(m, a) @ q
-    bs = q.conj().T @ dense(m, b) @ q
-    return correlation(hs, as_, bs, times)
+    sites = list(m.sites)
+    ham = sum(complex(c) * sparse_pauli(g, sites) for c, g in m.terms)
+    hs = q.conj().T @ (ham @ q)
+
+    def projected(text: str) -> np.ndarray:
+        p = fl.parse_model(text, sites=m.sites)
+        return complex(p.coupling_array()[0]) * (
+            q.conj().T @ (sparse_pauli(p.strings[0], sites) @ q)
+        )
+
+    return correlation(hs, projected(a), projected(b), times)
 
 
 def exact_full(m: fl.Model, a: str, b: str, times: np.ndarray) -> np.ndarray:
