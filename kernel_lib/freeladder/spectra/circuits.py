@@ -180,8 +180,11 @@ def circuit_autocorrelation(
 
     Notes
     -----
-    Products of exponentials of parts of H (Trotter, brickwork) are not diagonal in the
-    hidden modes and are not covered (module docstring).
+    ``T`` and ``U`` are those of the edge term's component of the frustration graph (``T``
+    factorises over components, and the other components' terms commute with ``chi``, so
+    their part of a circuit drops out of the correlation).  Products of exponentials of parts
+    of H (Trotter, brickwork) are not diagonal in the hidden modes and are not covered
+    (module docstring).
 
     References
     ----------

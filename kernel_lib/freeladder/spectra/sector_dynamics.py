@@ -219,7 +219,7 @@ def _coef_text(coef: complex) -> str:
         return ""
     if coef.imag == 0:
         return f"{coef.real:g} "
-    return f"({coef.real:g}{coef.imag:+g}i) "
+    return f"({coef.real:g}{coef.imag:+g}j) "
 
 
 def _zeta(op: _Bilinear, signs: np.ndarray, label: tuple[int, ...]) -> complex:
@@ -382,7 +382,8 @@ def sector_two_point(
         sectors (the message says why: commutes with every term, the wrong commutation
         pattern, modes in two components, or a leftover symmetry the sector does not fix).
     ValueError, TypeError
-        For a sector choice :meth:`SectorStructure.select` refuses, or bad times.
+        For a sector choice :meth:`SectorStructure.select` refuses, "all" with more than
+        ``2^16`` sectors (give a sector instead), or bad times.
 
     Notes
     -----
