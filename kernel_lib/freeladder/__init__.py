@@ -58,6 +58,7 @@ from .spectra.charges import (
     charge_series,
     transfer_matrix,
 )
+from .spectra.circuits import CircuitAutocorrelation, circuit_autocorrelation
 from .spectra.dynamics import (
     Autocorrelation,
     EdgeExpansion,
@@ -79,6 +80,11 @@ from .spectra.majorana import (
     sectors,
 )
 from .spectra.matching import LevelMatch, match_levels
+from .spectra.sector_dynamics import (
+    SectorCorrelation,
+    sector_autocorrelation,
+    sector_two_point,
+)
 from .spectra.spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .spectra.thermo import Thermodynamics, log_partition_function, thermodynamics
 from .spectra.weight_balls import WeightBalls
@@ -190,6 +196,11 @@ __all__ = [
     "autocorrelation",
     "certified_edge_weights",
     "two_point",
+    "SectorCorrelation",
+    "CircuitAutocorrelation",
+    "circuit_autocorrelation",
+    "sector_autocorrelation",
+    "sector_two_point",
     "ladder_operators",
     "verify",
     "LevelMatch",
