@@ -112,7 +112,10 @@ def _answer(m: Model, choice: Hashable, unproven: bool) -> SpectrumAnswer:
         return _sector_answer(m, choice)
     if promise.proven:
         sp = _spectrum(m, "auto", None, False, None)
-        return SpectrumAnswer("proven", sp, "polynomial", sp.provenance.guarantee)
+        reason = sp.provenance.guarantee
+        if sp.exceptional:
+            reason += f" Note, {sp.exceptional_note}."
+        return SpectrumAnswer("proven", sp, "polynomial", reason)
     reason, instead = refusal_text(m, promise)
     if not unproven:
         return SpectrumAnswer("refused", None, "", reason, promise.witness, instead)
