@@ -868,8 +868,9 @@ def exact_diagonalization_check(
     if cluster is not None:
         detail += (
             f"; exceptional point (repeated roots): H may be defective, so eigenvalues within "
-            f"{display.bound_text(cluster)} (about (dimension eps)^(1/m) for Jordan blocks of size m <= "
-            f"{_block_bound(sp)}) are grouped and each group is compared by its count and mean"
+            f"{display.bound_text(cluster)} (about (dimension eps)^(1/m) for Jordan blocks of "
+            f"size m <= {_block_bound(sp)}) are grouped and each group is compared by its count "
+            "and mean"
         )
     method, detail = _probe(why, "exact diagonalization", detail)
     unmatched = match.unmatched_free or match.unmatched_exact

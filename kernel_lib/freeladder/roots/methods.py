@@ -32,8 +32,8 @@ from __future__ import annotations
 import dataclasses
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
-from types import MappingProxyType
 from fractions import Fraction
+from types import MappingProxyType
 from typing import Any, Literal
 
 import flint
@@ -314,7 +314,9 @@ def solve_chain(
         raise ArithmeticError(
             f"the chain roots did not converge ({key}): {found.message}; no quasi-energy is "
             "returned rather than one with an unbounded error (allow_unconverged=True returns "
-            "the result, marked converged=False)"
+            "the result, marked converged=False). Repeated roots (an exceptional point of "
+            "complex couplings) stall the iteration; a component of degree up to "
+            f"{MAX_ROOT_DEGREE} is then solved exactly, larger ones are not"
         )
     found = dataclasses.replace(found, weight_log2=found.weight_log2 + weight_log2)
     return _unscaled(found)

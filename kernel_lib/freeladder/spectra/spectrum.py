@@ -331,10 +331,11 @@ class FreeSpectrum:
         (``provenance.guaranteed``).  A spectrum that is not guaranteed (returned only with
         ``free_spectrum(..., unproven=True)``) says NOT GUARANTEED wherever it prints.
     root_multiplicities : ndarray of int64
-        Per quasi-energy, the multiplicity of its root of ``P`` (all 1 unless the couplings
-        sit at an exceptional point: a repeated root inside one component; such an ``eta``
-        is listed as often as it counts).  :attr:`exceptional` and :attr:`exceptional_note`
-        say what follows.
+        Per quasi-energy, the multiplicity of its root in the polynomial that was solved (one
+        component's on the chain paths, the whole model's on the certified route, where equal
+        components also repeat roots).  All 1 unless roots coincide, as at an exceptional
+        point of complex couplings; such an ``eta`` is listed as often as it counts.
+        :attr:`exceptional` and :attr:`exceptional_note` say what follows.
     parity_constraints : tuple of (tuple of int, int)
         Jordan-Wigner sectors with a fixed Majorana parity (N = 2): positions in
         ``quasi_energies`` and the product ``prod_k (-1)^{s_k}`` every level has over them;
