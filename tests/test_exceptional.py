@@ -23,6 +23,7 @@ import numpy as np
 import pytest
 import sympy
 from helpers import dense_string
+from scipy.optimize import linear_sum_assignment
 
 import freeladder as fl
 from freeladder.roots import certified_roots, solve_chain
@@ -139,10 +140,10 @@ def test_levels_against_mpmath_eigenvalues(name: str) -> None:
 
 def test_ising8_field_i_has_simple_roots_and_is_solved() -> None:
     """``ising_chain(8, field=1j)`` is not at an exceptional point (sympy: discriminant
-    78335713, gcd(P, P') = 1); its fast path failed because the iteration stalled where
-    partial sums of the weights cancel.  Quasi-energies against mpmath's roots of the exact
-    polynomial (50 digits) and the levels against numpy's dense eigenvalues (simple, so
-    well-conditioned: 1e-9)."""
+    78335713, gcd(P, P') = 1); its fast path stalled where partial sums of the weights
+    cancel (now restarted from one circle).  Quasi-energies against mpmath's roots of the
+    exact polynomial (50 digits); verify compares the levels with numpy's dense eigenvalues
+    (simple roots, so the ordinary tolerance)."""
     m = fl.ising_chain(8, field=1j)
     poly = _sympy_polynomial(m, 1, 2)
     assert sympy.discriminant(poly) != 0
@@ -153,11 +154,13 @@ def test_ising8_field_i_has_simple_roots_and_is_solved() -> None:
         roots = [complex(r) for r in mpmath.polyroots(coeffs, maxsteps=200, extraprec=200)]
     finally:
         mpmath.mp.dps = 15
-    want = np.sort_complex(np.array([1 / r for r in roots]))
+    want = np.array([1 / r for r in roots])
     for method in ("auto", "certified"):
         sp = fl.free_spectrum(m, method=method)
-        assert not sp.exceptional
-        np.testing.assert_allclose(np.sort_complex(sp.quasi_energies**2), want, rtol=1e-12)
+        assert not sp.exceptional and sp.provenance.finder["converged"]
+        cost = np.abs((sp.quasi_energies**2)[:, None] - want[None, :])
+        rows, cols = linear_sum_assignment(cost)  # matched one to one
+        assert cost[rows, cols].max() < 1e-12 * np.abs(want).max()
     density = fl.energy_density(lambda size: fl.ising_chain(size, field=1j), [4, 6, 8])
     assert np.isfinite(density.value)
     assert fl.analyze(m).answer().status == "proven"
@@ -194,3 +197,19 @@ def test_fast_chain_roots_report_multiplicities() -> None:
     np.testing.assert_allclose(found.values, [-1, -1], atol=1e-15)
     assert list(found.details["multiplicity"]) == [2, 2]
     assert "repeated roots (multiplicity: count) 2: 1" in found.summary()
+
+
+def test_ising_field_i_beyond_the_exact_limit() -> None:
+    """200 sites (degree 200, above MAX_ROOT_DEGREE = 120): the iteration itself must converge
+    (restarted from one circle).  Reference: the quasi-energies of a reach-1 chain with
+    couplings c_j are the eigenvalues +-eta of the tridiagonal matrix with off-diagonal c_j
+    (the continuant D_k = lam D_(k-1) - c_k^2 D_(k-2); common practice), here from numpy
+    eigvals, whose eigenvalues are simple (error about 1e-14 measured)."""
+    m = fl.ising_chain(200, field=1j)
+    sp = fl.free_spectrum(m)
+    assert sp.provenance.finder["root_method"] == "chain-aberth" and not sp.exceptional
+    c = m.coupling_array()[fl.chain_structure(m).order]
+    lam = np.linalg.eigvals(np.diag(c, 1) + np.diag(c, -1))
+    cost = np.abs((sp.quasi_energies**2)[:, None] - (lam**2)[None, :])
+    rows, cols = linear_sum_assignment(cost)
+    assert cost[rows, cols].max() < 1e-10
