@@ -940,17 +940,20 @@ def sum_rules(poly: ExclusionPolynomial, quasi_energies: Any) -> SumRules:
 
 
 # -- construction --------------------------------------------------------------------------------
-def _chain_sums(ring: _Ring, weights: Sequence[Any], reach: int) -> list[Any]:
+def _chain_sums(
+    ring: _Ring, weights: Sequence[Any], reach: int, top: int | None = None
+) -> list[Any]:
     """C_s of a chain from the recurrence ``I_k = I_{k-1} + x w_k I_{k-p-1}`` (``I = P(-x)``).
 
     Equal weights use the number of independent sets of size s of a path power,
-    ``C(M - p(s-1), s)``, times ``w^s``.
+    ``C(M - p(s-1), s)``, times ``w^s`` (only up to s = ``top`` when given).
     """
     size = len(weights)
     if size and all(w == weights[0] for w in weights):
         out: list[Any] = [1]
         power: Any = 1
-        for s in range(1, (size + reach) // (reach + 1) + 1):
+        last = (size + reach) // (reach + 1)
+        for s in range(1, (last if top is None else min(last, top)) + 1):
             poll()
             power = _times(power, weights[0])
             out.append(_times(power, math.comb(size - reach * (s - 1), s)))
@@ -976,7 +979,7 @@ def _chain_head(ring: _Ring, weights: Sequence[Any], reach: int, order: int) -> 
     O(M order) exact operations instead of O(M S) for the whole polynomial.
     """
     if weights and all(w == weights[0] for w in weights):
-        return _chain_sums(ring, weights, reach)[: order + 1]
+        return _chain_sums(ring, weights, reach, order)
     one = ring.constant(1)
     window = [one] * (reach + 1)
     for wk in weights:
