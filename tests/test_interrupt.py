@@ -29,16 +29,21 @@ def _majorana_energies(c: np.ndarray) -> np.ndarray:
     return np.sort(ev[ev > 1e-12])
 
 
+def _polling_module() -> str:
+    """The library module whose loop polled (called from inside a stop hook)."""
+    frame = sys._getframe(1)
+    while frame.f_globals["__name__"] in (interrupt.__name__, __name__):  # poll, the hooks
+        frame = frame.f_back
+    return str(frame.f_globals["__name__"])
+
+
 def _counting(stop_at: int | None = None) -> tuple[list[str], object]:
     """A stop hook that records the module of every poll, and says stop from its
     ``stop_at``-th call."""
     where: list[str] = []
 
     def hook() -> bool:
-        frame = sys._getframe(1)
-        while frame.f_globals["__name__"] == interrupt.__name__:  # poll, polled
-            frame = frame.f_back
-        where.append(frame.f_globals["__name__"])  # the module that polled
+        where.append(_polling_module())
         return stop_at is not None and len(where) >= stop_at
 
     return where, hook
@@ -160,6 +165,31 @@ def test_keyboard_interrupt_still_passes_through_a_part() -> None:
     energies = np.linalg.eigvalsh(m.to_sparse().toarray())
     levels = fl.free_spectrum(m).levels(1)
     assert levels[0].energy == pytest.approx(energies[0], abs=1e-9)
+
+
+def test_a_report_cut_short_by_ctrl_c_is_returned_but_not_kept() -> None:
+    # verify answers Ctrl-C with the checks finished so far (complete=False); the analysis
+    # hands that report out once and runs the checks again on the next call
+    m = fl.exclusion_chain(6, reach=2, couplings=fl.random_couplings(6, seed=3))
+    a = fl.analyze(m)
+    a.answer()
+    where: list[str] = []
+
+    def hook() -> bool:
+        where.append(_polling_module())
+        if where[-1] == "freeladder.checks.verification" and where.count(where[-1]) == 3:
+            raise KeyboardInterrupt  # once, as Ctrl-C would, early in the checks
+        return False
+
+    with fl.stop_when(hook):
+        cut = a.report()
+    assert not cut.complete
+    full = a.report()
+    assert full.complete and full.ok and len(full.checks) > len(cut.checks)
+    assert a.report() is full  # a complete report is kept
+    # the checks' spectrum is numpy's: the ground level against dense diagonalization
+    ground = np.linalg.eigvalsh(m.to_sparse().toarray())[0]
+    assert a.answer().spectrum.levels(1)[0].energy == pytest.approx(ground, abs=1e-9)
 
 
 def test_a_superseded_workbench_model_stops_inside_the_library() -> None:
