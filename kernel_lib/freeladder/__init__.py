@@ -23,6 +23,7 @@ from .algebra.strings import StringArray, WeylString, make_string, pauli
 from .algebra.syntax import ModelSyntaxError, parse_model
 from .analysis import Analysis, analyze
 from .base.errors import NotExpandableError, NoTheoremError
+from .base.interrupt import Interrupted, stop_when
 from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .checks.verification import Check, Report, verify
 from .graphs.directed import DirectedFrustrationGraph, directed_frustration_graph
@@ -150,6 +151,7 @@ __all__ = [
     "transfer_matrix",
     "ComponentVerdict",
     "Guarantee",
+    "Interrupted",
     "NoTheoremError",
     "NotExpandableError",
     "Relation",
@@ -195,6 +197,7 @@ __all__ = [
     "sector_autocorrelation",
     "sector_two_point",
     "ladder_operators",
+    "stop_when",
     "verify",
     "LevelMatch",
     "match_levels",

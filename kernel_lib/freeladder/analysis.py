@@ -332,8 +332,13 @@ class Analysis:
         return _exact(self.model)
 
     def report(self, **options: Any) -> Report:
-        """The :func:`freeladder.verify` report, kept per set of options."""
-        return _report(self.model, tuple(sorted(options.items())))
+        """The :func:`freeladder.verify` report, kept per set of options (a report cut short by
+        Ctrl-C is returned but not kept: the next call runs the checks again)."""
+        key = tuple(sorted(options.items()))
+        found = _report(self.model, key)
+        if not found.complete:
+            store_of(self.model).forget(_report, (key,))
+        return found
 
     def worked(self, steps: str | Sequence[str] = "all") -> WorkedCalculation:
         """The worked calculation (:func:`freeladder.worked_calculation`), kept per steps."""

@@ -50,6 +50,7 @@ from ..algebra.strings import StringArray
 from ..analysis import Analysis, analyze, sector_route
 from ..base import display
 from ..base.errors import CheckNotApplicable, TooLargeError
+from ..base.interrupt import poll, polled
 from ..base.jsonready import json_ready
 from ..base.references import (
     ALCARAZ_PIMENTA_2020,
@@ -341,6 +342,7 @@ class Report:
 def _run(name: str, fn: Callable[..., Check], *args: Any, required: bool = False) -> Check:
     """Run one check, timed.  Only CheckNotApplicable makes it "not run"; any other exception
     is a failure with its traceback (KeyboardInterrupt passes through)."""
+    poll()
     start = time.perf_counter()
     try:
         check = fn(*args)
@@ -367,6 +369,7 @@ class _Progress:
         self.bar: Any = None
 
     def __call__(self, done: int, total: int) -> None:
+        poll()  # every loop that reports progress can be stopped (freeladder.stop_when)
         if self.bar is None:
             self.bar = tqdm(total=total, desc=self.label, delay=2.0, leave=False)
         self.bar.update(done - self.bar.n)
@@ -1258,7 +1261,7 @@ def _term_shapes(m: Model) -> tuple[list[tuple[Any, ...]], np.ndarray]:
     phase = m.strings.phase.tolist()
     starts = np.zeros(len(m), dtype=np.int64)
     shapes: list[tuple[Any, ...]] = []
-    for t in range(len(m)):
+    for t in polled(range(len(m))):
         cx, cz = xi[xp[t] : xp[t + 1]], zi[zp[t] : zp[t + 1]]
         first = min(cx[:1] + cz[:1], default=0)
         starts[t] = first
@@ -1305,7 +1308,7 @@ def window_check(
     unit = independent_along(m, order)
     shapes, first = _term_shapes(m)
     kinds: dict[tuple[Any, ...], list[int]] = {}
-    for a in range(len(m) - width + 1):
+    for a in polled(range(len(m) - width + 1)):
         terms = order[a : a + width]
         base = int(first[terms].min())
         # equal keys: the same strings up to a shift of the columns, the same algebra
