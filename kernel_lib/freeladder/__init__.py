@@ -23,6 +23,7 @@ from .algebra.strings import StringArray, WeylString, make_string, pauli
 from .algebra.syntax import ModelSyntaxError, parse_model
 from .analysis import Analysis, analyze
 from .base.errors import NotExpandableError, NoTheoremError
+from .base.interrupt import Interrupted, stop_when
 from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .checks.edge_dynamics import DynamicsCheck, check_autocorrelation
 from .checks.verification import Check, Report, verify
@@ -155,6 +156,7 @@ __all__ = [
     "transfer_matrix",
     "ComponentVerdict",
     "Guarantee",
+    "Interrupted",
     "NoTheoremError",
     "NotExpandableError",
     "Relation",
@@ -202,6 +204,7 @@ __all__ = [
     "sector_autocorrelation",
     "sector_two_point",
     "ladder_operators",
+    "stop_when",
     "verify",
     "LevelMatch",
     "match_levels",

@@ -76,6 +76,7 @@ from ..algebra.strings import WeylString
 from ..algebra.syntax import parse_model
 from ..base.errors import NotExpandableError
 from ..base.frozen import readonly_array, readonly_mapping
+from ..base.interrupt import poll
 from ..base.jsonready import json_ready
 from ..base.lazy import njit, prange
 from ..graphs.graph import chain_structure
@@ -681,6 +682,7 @@ def _mode_weights(
     both = np.empty(pm.size, dtype=wm.dtype)
     chunk = max(_LANES, int(_STEPS_PER_CALL / m) // _LANES * _LANES)
     for a in range(0, pm.size, chunk):
+        poll()  # a stop hook (fl.stop_when) is seen between compiled chunks
         _weights(*args, pm[a : a + chunk], pe[a : a + chunk], both[a : a + chunk], _LANES)
     out, moved = both[: ym.size], both[ym.size :]
     errors = np.abs(moved - out) + np.sqrt(m) * _EPS * np.abs(out)
