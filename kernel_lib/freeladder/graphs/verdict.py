@@ -35,6 +35,7 @@ from __future__ import annotations
 from collections import deque
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field, replace
+from types import MappingProxyType
 from typing import Any, Literal
 
 import networkx as nx
@@ -59,7 +60,7 @@ from .graph import (
     chain_structure,
 )
 from .indifference import IndifferenceOrder, order_from_exponents
-from .linegraph import LineGraphRoot, line_graph_root
+from .linegraph import LineGraphRoot, component_root
 from .relations import Relation, Relations, find_relations
 from .switching import DipathSwitching, dipath_from_exponents
 
@@ -201,7 +202,9 @@ class ComponentVerdict:
 
     def __post_init__(self) -> None:
         def ints(values: Any) -> tuple[int, ...]:
-            return tuple(np.fromiter(values, dtype=np.int64).tolist())
+            if isinstance(values, np.ndarray):
+                return tuple(values.astype(np.int64).tolist())
+            return tuple(map(int, values))
 
         fix: dict[str, Any] = {
             "terms": ints(self.terms),
@@ -209,9 +212,11 @@ class ComponentVerdict:
             "witness": ints(self.witness),
             "cycles": tuple(ints(c) for c in self.cycles),
         }
-        if self.majorana_pairs is not None:
+        if self.majorana_pairs is not None and not isinstance(
+            self.majorana_pairs, MappingProxyType
+        ):  # a read-only mapping was normalised when it was made (LineGraphRoot, replace)
             fix["majorana_pairs"] = readonly_mapping(
-                {int(t): ints(ab) for t, ab in self.majorana_pairs.items()}
+                {int(t): (int(a), int(b)) for t, (a, b) in self.majorana_pairs.items()}
             )
         for name in ("simplicial_clique", "even_hole"):
             if getattr(self, name) is not None:
@@ -468,26 +473,27 @@ def VERDICT(m: Model) -> Verdict:
     groups = np.split(order, np.cumsum(np.bincount(labels, minlength=n_comp))[:-1])
     if m.states == 2:
         groups.sort(key=lambda g: int(g[0]))
-        neighbours = [
-            set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist()) for v in range(n_terms)
-        ]
+        neighbours: list[set[int]] = []  # filled only when a component is not a line graph
         comps = []
         next_mode = 0
         for g in groups:
-            comp, next_mode = _pauli_component(m, neighbours, [int(v) for v in g], next_mode)
+            comp, next_mode = _pauli_component(m, adj, neighbours, g, next_mode)
             comps.append(comp)
         whole_chain = chain_structure(m) if n_comp == 1 else None
         if whole_chain is not None:
             comps[0] = _with_chain(comps[0], whole_chain)
     else:
         ex = EXPONENTS(m)
-        grouped = sps.csr_array(ex[order][:, order])
-        grouped.sort_indices()
+        if n_comp == 1:  # one component: the terms are already in order
+            grouped = ex
+        else:
+            grouped = sps.csr_array(ex[order][:, order])
+            grouped.sort_indices()
         comps = []
         start = 0
         for g in groups:
             block = _diagonal_block(grouped, start, start + len(g))
-            comps.append(_clock_component(m, [int(v) for v in g], block))
+            comps.append(_clock_component(m, g.tolist(), block))
             start += len(g)
         comps.sort(key=lambda c: c.terms[0])
     return _combine(m, comps, find_relations(m))
@@ -729,11 +735,11 @@ def _cycles_of_core(pairs: Mapping[int, tuple[int, int]]) -> tuple[int, ...] | N
     if len(even) > 1:
         return None
     ring = core[labels[ends[core, 0]] == even[0]]
-    return tuple(sorted(int(t) for t in terms[ring]))
+    return tuple(np.sort(terms[ring]).tolist())
 
 
 def _refusal(m: Model, reference: str, reason: str, witness: Sequence[int]) -> Guarantee:
-    terms = tuple(int(j) for j in witness)
+    terms = tuple(map(int, witness))
     return Guarantee(False, "", reference, reason, terms, _witness_text(m, terms))
 
 
@@ -802,12 +808,23 @@ def _whole_guarantee(comps: Sequence[ComponentVerdict]) -> Guarantee:
 
 
 def _pauli_component(
-    m: Model, adjacency: list[set[int]], terms: list[int], first_mode: int
+    m: Model,
+    adj: sps.csr_array,
+    adjacency: list[set[int]],
+    group: np.ndarray,
+    first_mode: int,
 ) -> tuple[ComponentVerdict, int]:
+    """Classify one component; ``adjacency`` (neighbour sets) is filled on first need."""
+    terms = group.tolist()
     key = tuple(terms)
-    root = line_graph_root(adjacency, terms)
+    root = component_root(adj, group)
     if isinstance(root, LineGraphRoot):
         return _jordan_wigner(key, root, first_mode), first_mode + root.n_modes
+    if not adjacency:
+        adjacency.extend(
+            set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist())
+            for v in range(adj.shape[0])
+        )
     not_line = (
         f"It is not a line graph: term {root.term} ({_string_text(m, root.term)}) and its "
         f"non-commuting partners among the terms placed before it ({_list(root.partners)}) "
@@ -872,7 +889,9 @@ def _pauli_component(
 
 
 def _jordan_wigner(key: tuple[int, ...], root: LineGraphRoot, first_mode: int) -> ComponentVerdict:
-    pairs = {t: (a + first_mode, b + first_mode) for t, (a, b) in root.pairs.items()}
+    pairs = root.pairs
+    if first_mode:
+        pairs = {t: (a + first_mode, b + first_mode) for t, (a, b) in pairs.items()}
     cycles = tuple(tuple(c) for c in root.cycles())
     reasons = [
         f"The frustration graph is the line graph of a root graph with {root.n_modes} vertices "
@@ -911,7 +930,7 @@ def _clock_component(m: Model, terms: list[int], sub: sps.csr_array) -> Componen
     oriented = order_from_exponents(sub, m.states)
     if oriented is not None:
         order = IndifferenceOrder(
-            tuple(int(idx[j]) for j in oriented.order),
+            tuple(idx[np.asarray(oriented.order, dtype=np.int64)].tolist()),
             oriented.first_neighbour,
             oriented.exponent,
             m.states,
@@ -1168,6 +1187,6 @@ def _term_text(m: Model, j: int) -> str:
 
 
 def _list(values: Any, limit: int = 10) -> str:
-    vals = [int(v) for v in values]
-    text = ", ".join(str(v) for v in vals[:limit])
+    vals = list(values)
+    text = ", ".join(str(int(v)) for v in vals[:limit])
     return text + (", ..." if len(vals) > limit else "")
