@@ -23,7 +23,7 @@ from __future__ import annotations
 from collections import deque
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import Any, cast
 
 import networkx as nx
 import numpy as np
@@ -227,7 +227,8 @@ def component_root(adjacency: sps.csr_array, vertices: np.ndarray) -> LineGraphR
     H. Whitney, Amer. J. Math. 54, 150 (1932); D. G. Degiorgi and K. Simon, WG 1995.
     """
     vertices = np.asarray(vertices, dtype=np.int64)
-    sets = _CsrNeighbours(adjacency)
+    # read one vertex at a time (the algorithm only indexes it): no set per vertex up front
+    sets = cast(Sequence[set[int]], _CsrNeighbours(adjacency))
     if len(vertices) < _FAST_SIZE:
         return line_graph_root(sets, vertices.tolist())
     whole = len(vertices) == adjacency.shape[0]
