@@ -376,11 +376,14 @@ class Verdict:
         components = tuple(replace(c, guarantee=rebound(c.guarantee)) for c in self.components)
         return replace(self, model=m, components=components, guarantee=rebound(self.guarantee))
 
-    def witness_text(self) -> str:
-        """The witness terms in the model's text syntax, or an empty string."""
+    def witness_text(self, limit: int = _SHOWN_WITNESS) -> str:
+        """The witness terms in the model's text syntax, or an empty string.
+
+        At most ``limit`` terms are written; a longer witness ends with how many it holds.
+        """
         if not self.witness:
             return ""
-        return "; ".join(f"[{j}] {text}" for j, text in self.witness_terms())
+        return _witness_text(self.model, self.witness, limit)
 
     def __repr__(self) -> str:
         return (
@@ -388,9 +391,10 @@ class Verdict:
             f"components={len(self.components)}, witness={self.witness!r})"
         )
 
-    def witness_terms(self) -> list[tuple[int, str]]:
-        """The witness terms as ``(index, text)`` pairs (empty when there is no witness)."""
-        return [(j, _term_text(self.model, j)) for j in self.witness]
+    def witness_terms(self, limit: int | None = None) -> list[tuple[int, str]]:
+        """The witness terms as ``(index, text)`` pairs (empty when there is no witness);
+        only the first ``limit`` when it is given."""
+        return [(j, _term_text(self.model, j)) for j in self.witness[:limit]]
 
     # -- display (freeladder.base.display) ----------------------------------------------------
     def __str__(self) -> str:
@@ -759,9 +763,9 @@ def _with_relation(m: Model, base: Guarantee, touching: Sequence[Relation]) -> G
     )
 
 
-def _witness_text(m: Model, terms: tuple[int, ...]) -> str:
-    text = "; ".join(f"[{j}] {_term_text(m, j)}" for j in terms[:_SHOWN_WITNESS])
-    return text + ("; ..." if len(terms) > _SHOWN_WITNESS else "")
+def _witness_text(m: Model, terms: tuple[int, ...], limit: int = _SHOWN_WITNESS) -> str:
+    text = "; ".join(f"[{j}] {_term_text(m, j)}" for j in terms[:limit])
+    return text + (f"; ... ({len(terms)} terms in all)" if len(terms) > limit else "")
 
 
 def _with_guarantees(
