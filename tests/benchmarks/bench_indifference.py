@@ -2,8 +2,9 @@
 
 For Z3 chains of 10^3, 10^4 and 10^5 terms whose reach varies along the chain (random reaches
 1-3 with non-decreasing ends), with the terms relabelled at random, time
-:func:`freeladder.indifference_order` (breadth-first levels, LexBFS when they do not decide, then an exact check of every edge)
-beside the linear-time recognition of a fixed-reach exclusion chain of the same size
+:func:`freeladder.indifference_order` (breadth-first levels, LexBFS when they do not decide,
+then an exact check of every edge) beside the linear-time recognition of a fixed-reach
+exclusion chain of the same size
 (:func:`freeladder.chain_structure`), the baseline; and the whole verdict
 (:func:`freeladder.classify`, from nothing stored; goal under 1 s at 10^5 terms) beside
 scipy's connected components of the same frustration graph (a linear-time floor).  The

@@ -20,12 +20,17 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-import networkx as nx
 import numpy as np
 
 from ..base.jsonready import json_ready
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from ..base.lazy import networkx as nx
+
 
 __all__ = [
     "EXACT_HOLE_BUDGET",

@@ -23,15 +23,20 @@ from __future__ import annotations
 from collections import deque
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
-from typing import Any, cast
+from typing import TYPE_CHECKING, Any, cast
 
-import networkx as nx
 import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
 
 from ..base.frozen import readonly_mapping
 from ..base.jsonready import json_ready
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from ..base.lazy import networkx as nx
+
 
 __all__ = ["LineGraphRoot", "NotALineGraph", "component_root", "line_graph_root"]
 

@@ -36,9 +36,8 @@ from collections import deque
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field, replace
 from types import MappingProxyType
-from typing import Any, Literal
+from typing import TYPE_CHECKING, Any, Literal
 
-import networkx as nx
 import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
@@ -63,6 +62,12 @@ from .indifference import IndifferenceOrder, order_from_exponents
 from .linegraph import LineGraphRoot, component_root
 from .relations import Relation, Relations, find_relations
 from .switching import DipathSwitching, dipath_from_exponents
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from ..base.lazy import networkx as nx
+
 
 __all__ = [
     "KINDS",
