@@ -954,8 +954,15 @@ def _clock_component(m: Model, terms: list[int], sub: sps.csr_array) -> Componen
     dipath = dipath_from_exponents(sub, m.states, terms)
     if dipath.as_written:
         local, why = _clock_obstruction(sub, m.states)
-        witness = tuple(int(idx[j]) for j in local)
-        not_free = why.format(*(f"{j} ({_string_text(m, j)})" for j in witness))
+        witness = tuple(idx[np.asarray(local, dtype=np.int64)].tolist())
+        named = [f"{j} ({_string_text(m, j)})" for j in witness[:_SHOWN_WITNESS]]
+        if why.count("{}") == len(witness):
+            not_free = why.format(*named)
+        else:  # one place for a list of terms, summarised when long
+            more = len(witness) - len(named)
+            not_free = why.format(
+                ", ".join(named) + (f", ... ({len(witness)} terms in all)" if more else "")
+            )
         text = (
             "The frustration graph is claw-free and its exponents form a dipath orientation "
             "(along every induced path a - v - b, g_a g_v = omega^m g_v g_a and g_v g_b = "
@@ -1090,7 +1097,8 @@ def _clock_obstruction(ex: sps.csr_array, n: int) -> tuple[tuple[int, ...], str]
     Checked in turn: a pair whose exponent is not +-1; a triangle with cyclic orientation; a term
     with two partners of the same orientation that commute with each other; a directed cycle.
     ``ex`` holds the exponents of the component's terms (numbered 0 .. M-1), N = ``n``.  The
-    sentence has one ``{}`` per witness term.
+    sentence has one ``{}`` per witness term, or (for a cycle of any length) one ``{}`` for
+    the list of them.
     """
     size = int(ex.shape[0])
     rows = np.repeat(np.arange(size), np.diff(ex.indptr))
@@ -1140,8 +1148,8 @@ def _clock_obstruction(ex: sps.csr_array, n: int) -> tuple[tuple[int, ...], str]
         )
     terms = tuple(int(u) for u, _ in cycle)
     return terms, (
-        "Terms " + ", ".join("{}" for _ in terms) + " form a cycle of omega-orientations "
-        "(each fails to commute with the next by omega), so no ordering of the terms exists."
+        "Terms {} form a cycle of omega-orientations (each fails to commute with the next by "
+        "omega), so no ordering of the terms exists."
     )
 
 
