@@ -30,6 +30,7 @@ import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
 
 from ..base.frozen import readonly_mapping
+from ..base.interrupt import poll
 from ..base.jsonready import json_ready
 
 if TYPE_CHECKING:
@@ -437,6 +438,7 @@ def _cycle_basis(
         pred[root] = root
         stack = [root]
         while stack:
+            poll()
             z = stack.pop()
             uz = up[z]
             ez = extra.get(z)
@@ -470,6 +472,7 @@ def _bfs_order(adjacency: Sequence[set[int]], start: int) -> list[int]:
     order = [start]
     queue = deque([start])
     while queue:
+        poll()
         u = queue.popleft()
         for w in sorted(adjacency[u] - seen):
             seen.add(w)

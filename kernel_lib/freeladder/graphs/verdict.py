@@ -49,6 +49,7 @@ from ..base import display
 from ..base import references as ref
 from ..base.cache import part
 from ..base.frozen import readonly_array, readonly_mapping
+from ..base.interrupt import polled
 from ..base.jsonready import json_ready
 from .clawfree import find_claw, find_even_hole, find_simplicial_clique
 from .graph import (
@@ -832,7 +833,7 @@ def _pauli_component(
     if not adjacency:
         adjacency.extend(
             set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist())
-            for v in range(adj.shape[0])
+            for v in polled(range(adj.shape[0]))
         )
     not_line = (
         f"It is not a line graph: term {root.term} ({_string_text(m, root.term)}) and its "
