@@ -305,10 +305,10 @@ def format_terms(
         pieces.append(_signed(c, extra, text, g.states, display, keep_types))
     if not pieces:
         return "0"
-    out = ("-" if pieces[0][0] else "") + pieces[0][1]
+    out = ["-" if pieces[0][0] else "", pieces[0][1]]
     for neg, body in pieces[1:]:
-        out += (" - " if neg else " + ") + body
-    return out
+        out += (" - " if neg else " + ", body)
+    return "".join(out)
 
 
 def _signed(
