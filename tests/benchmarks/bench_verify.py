@@ -71,7 +71,7 @@ def one(reach: int, terms: int) -> None:
     m = fl.exclusion_chain(terms, reach=reach, couplings=rng.uniform(0.5, 1.5, terms))
     t0 = time.perf_counter()
     analysis = fl.analyze(m)
-    analysis.verdict  # the graph side: classification, computed once and kept
+    verdict = analysis.verdict  # the graph side: classification, computed once and kept
     t_verdict = time.perf_counter() - t0
     analysis.spectrum()
     t_spectrum = time.perf_counter() - t0 - t_verdict
@@ -88,6 +88,7 @@ def one(reach: int, terms: int) -> None:
                 "seconds": seconds,
                 "peak": peak,
                 "ok": report.ok,
+                "kind": verdict.kind,
                 "phases": phases,
                 "slowest": f"{slow.name} ({slow.seconds:.1f} s) | {decisive}",
             }

@@ -352,24 +352,24 @@ class ExclusionPolynomial:
 
     @property
     def _sum_rule_targets(self) -> tuple[Any, Any, int]:
-        # C_1, C_1^2 - 2 C_2 (exact) and e ~ log2 of the largest weight: computed once (the
-        # spectrum's residuals and verify's sum rules both read them)
-        if self._targets is None:
-            with self._lock:
-                if self._targets is None:
-                    t1, t2 = _exact_targets(self)
-                    e = max(
-                        (
-                            v.numerator.bit_length() - v.denominator.bit_length()
-                            for w in self._exact_weights
-                            for v in (w if isinstance(w, tuple) else (w,))
-                            if v != 0
-                        ),
-                        default=0,
-                    )
-                    object.__setattr__(self, "_targets", (t1, t2, e))
-        assert self._targets is not None
-        return self._targets
+        # C_1, C_1^2 - 2 C_2 (exact) and e ~ log2 of the largest weight: kept once computed
+        # (the spectrum's residuals and verify's sum rules both read them).  Computed outside
+        # the lock, which _exact_sums takes; two threads at worst both compute the same values.
+        targets = self._targets
+        if targets is None:
+            t1, t2 = _exact_targets(self)
+            e = max(
+                (
+                    v.numerator.bit_length() - v.denominator.bit_length()
+                    for w in self._exact_weights
+                    for v in (w if isinstance(w, tuple) else (w,))
+                    if v != 0
+                ),
+                default=0,
+            )
+            targets = (t1, t2, e)
+            object.__setattr__(self, "_targets", targets)
+        return targets
 
     @property
     def degree(self) -> int:
