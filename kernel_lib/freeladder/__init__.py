@@ -24,7 +24,7 @@ from .algebra.syntax import ModelSyntaxError, parse_model
 from .analysis import Analysis, analyze
 from .base.errors import NotExpandableError, NoTheoremError
 from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
-from .checks.verification import Check, Report, verify
+from .checks.verification import Check, Report, same_sector_check, verify
 from .graphs.directed import DirectedFrustrationGraph, directed_frustration_graph
 from .graphs.graph import (
     ChainStructure,
@@ -65,7 +65,13 @@ from .spectra.dynamics import (
     edge_expansion,
     two_point,
 )
-from .spectra.ed import ExactSpectrum, exact_spectrum, sector_exact_spectrum, sparse_memory
+from .spectra.ed import (
+    ExactSpectrum,
+    exact_spectrum,
+    sector_dimension,
+    sector_exact_spectrum,
+    sparse_memory,
+)
 from .spectra.edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
 from .spectra.majorana import (
     FluxSector,
@@ -166,6 +172,7 @@ __all__ = [
     "log_partition_function",
     "thermodynamics",
     "exact_spectrum",
+    "sector_dimension",
     "sector_exact_spectrum",
     "sparse_memory",
     "Model",
@@ -184,6 +191,7 @@ __all__ = [
     "autocorrelation",
     "two_point",
     "ladder_operators",
+    "same_sector_check",
     "verify",
     "LevelMatch",
     "match_levels",

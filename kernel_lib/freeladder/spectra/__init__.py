@@ -27,6 +27,7 @@ from .ed import (
     SPARSE_LIMIT,
     ExactSpectrum,
     exact_spectrum,
+    sector_dimension,
     sector_exact_spectrum,
     sparse_memory,
 )
@@ -101,6 +102,7 @@ __all__ = [
     "components",
     "edge_mode",
     "exact_spectrum",
+    "sector_dimension",
     "sector_exact_spectrum",
     "sparse_memory",
     "flux_sector",
