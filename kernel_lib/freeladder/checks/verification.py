@@ -1658,12 +1658,30 @@ def _sector_checks(parts: _Parts, exact_diagonalization: bool | str, checks: lis
     checks.append(_run(CONSERVED, conserved_strings_check, m))
     if exact_diagonalization is False:
         return
-    if _sparse_wanted(m, exact_diagonalization):
+    if _sparse_wanted(m, exact_diagonalization) or (
+        exact_diagonalization == "auto"
+        and m.dimension > ED_AUTO_DIMENSION
+        and _ground_sector_dimension(parts) <= SPARSE_AUTO_DIMENSION
+    ):
         checks.append(_run(LOWEST, sector_lowest_check, m, required=exact_diagonalization is True))
         return
     checks.append(
         _run(SECTORS, sector_spectra_check, parts, required=exact_diagonalization is True)
     )
+
+
+def _ground_sector_dimension(parts: _Parts) -> int:
+    """The ground sector's dimension (:func:`freeladder.sector_dimension`; the whole
+    dimension when no ground sector is found)."""
+    m = parts.model
+    if m.is_symbolic:
+        return m.dimension
+    answer = parts.analysis.answer(sector="ground")
+    if answer.spectrum is None:
+        return m.dimension
+    gens = sectors(m).cycle_operators
+    values = answer.cycle_values
+    return sector_dimension(m, [(g, v) for g, v in zip(gens, values, strict=True) if g.support])
 
 
 def conserved_strings_check(m: Model) -> Check:
