@@ -57,6 +57,7 @@ from .spectra.charges import (
     charge_series,
     transfer_matrix,
 )
+from .spectra.circuits import CircuitAutocorrelation, circuit_autocorrelation
 from .spectra.dynamics import (
     Autocorrelation,
     EdgeExpansion,
@@ -83,6 +84,11 @@ from .spectra.majorana import (
     sectors,
 )
 from .spectra.matching import LevelMatch, match_levels
+from .spectra.sector_dynamics import (
+    SectorCorrelation,
+    sector_autocorrelation,
+    sector_two_point,
+)
 from .spectra.spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .spectra.thermo import Thermodynamics, log_partition_function, thermodynamics
 from .studies.census import census
@@ -190,6 +196,11 @@ __all__ = [
     "edge_expansion",
     "autocorrelation",
     "two_point",
+    "SectorCorrelation",
+    "CircuitAutocorrelation",
+    "circuit_autocorrelation",
+    "sector_autocorrelation",
+    "sector_two_point",
     "ladder_operators",
     "same_sector_check",
     "verify",

@@ -14,6 +14,10 @@ from .charges import (
     charge_series,
     transfer_matrix,
 )
+from .circuits import (
+    CircuitAutocorrelation,
+    circuit_autocorrelation,
+)
 from .dynamics import (
     Autocorrelation,
     EdgeExpansion,
@@ -53,6 +57,11 @@ from .matching import (
     LevelMatch,
     match_levels,
 )
+from .sector_dynamics import (
+    SectorCorrelation,
+    sector_autocorrelation,
+    sector_two_point,
+)
 from .spectrum import (
     LEVEL_LIMIT,
     DensityOfStates,
@@ -69,6 +78,8 @@ from .thermo import (
 )
 
 __all__ = [
+    "CircuitAutocorrelation",
+    "circuit_autocorrelation",
     "Autocorrelation",
     "EdgeExpansion",
     "TwoPoint",
@@ -92,6 +103,7 @@ __all__ = [
     "LevelMatch",
     "LevelTable",
     "SPARSE_LIMIT",
+    "SectorCorrelation",
     "SectorSpectrum",
     "SectorStructure",
     "SpectrumProvenance",
@@ -112,6 +124,8 @@ __all__ = [
     "ladder_operators",
     "log_partition_function",
     "match_levels",
+    "sector_autocorrelation",
+    "sector_two_point",
     "sectors",
     "simplicial_cliques",
     "thermodynamics",
