@@ -587,7 +587,7 @@ def sector_exact_spectrum(
     References
     ----------
     ARPACK Users' Guide (1998); LAPACK Users' Guide (1999).  Symmetry-adapted bases: common
-    practice (A. W. Sandvik, AIP Conf. Proc. 1297, 135 (2010), section 4).
+    practice (A. W. Sandvik, AIP Conf. Proc. 1297, 135 (2010); reference from memory).
     """
     _validate(m, None, tol, "auto")
     for g, v in fixed:
