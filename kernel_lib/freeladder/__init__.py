@@ -23,6 +23,7 @@ from .algebra.strings import StringArray, WeylString, make_string, pauli
 from .algebra.syntax import ModelSyntaxError, parse_model
 from .analysis import Analysis, analyze
 from .base.errors import NotExpandableError, NoTheoremError
+from .base.interrupt import Interrupted, stop_when
 from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .checks.verification import Check, Report, same_sector_check, verify
 from .graphs.directed import DirectedFrustrationGraph, directed_frustration_graph
@@ -156,6 +157,7 @@ __all__ = [
     "transfer_matrix",
     "ComponentVerdict",
     "Guarantee",
+    "Interrupted",
     "NoTheoremError",
     "NotExpandableError",
     "Relation",
@@ -203,6 +205,7 @@ __all__ = [
     "sector_two_point",
     "ladder_operators",
     "same_sector_check",
+    "stop_when",
     "verify",
     "LevelMatch",
     "match_levels",

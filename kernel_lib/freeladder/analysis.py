@@ -26,8 +26,6 @@ from __future__ import annotations
 from collections.abc import Hashable, Iterator, Mapping, Sequence
 from typing import TYPE_CHECKING, Any
 
-import networkx as nx
-
 from .algebra.model import Coupling, Model
 from .base.cache import part, store_of
 from .base.jsonready import json_ready
@@ -42,6 +40,12 @@ from .spectra.charges import ChargeStep, charge_counts, charge_series
 from .spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum, sector_exact_spectrum
 from .spectra.majorana import jordan_wigner_spectrum, sectors
 from .spectra.spectrum import FreeSpectrum, free_spectrum, refusal_text
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from .base.lazy import networkx as nx
+
 
 if TYPE_CHECKING:
     from .checks.verification import Report
@@ -119,7 +123,10 @@ def _answer(m: Model, choice: Hashable, unproven: bool) -> SpectrumAnswer:
         return _sector_answer(m, choice)
     if promise.proven:
         sp = _spectrum(m, "auto", None, False, None)
-        return SpectrumAnswer("proven", sp, "polynomial", sp.provenance.guarantee)
+        reason = sp.provenance.guarantee
+        if sp.exceptional:
+            reason += f" Note, {sp.exceptional_note}."
+        return SpectrumAnswer("proven", sp, "polynomial", reason)
     reason, instead = refusal_text(m, promise)
     if not unproven:
         return SpectrumAnswer("refused", None, "", reason, promise.witness, instead)
@@ -348,8 +355,13 @@ class Analysis:
         return _sector_exact(self.model, tuple(int(v) for v in cycle_values), int(k))
 
     def report(self, **options: Any) -> Report:
-        """The :func:`freeladder.verify` report, kept per set of options."""
-        return _report(self.model, tuple(sorted(options.items())))
+        """The :func:`freeladder.verify` report, kept per set of options (a report cut short by
+        Ctrl-C is returned but not kept: the next call runs the checks again)."""
+        key = tuple(sorted(options.items()))
+        found = _report(self.model, key)
+        if not found.complete:
+            store_of(self.model).forget(_report, (key,))
+        return found
 
     def worked(self, steps: str | Sequence[str] = "all") -> WorkedCalculation:
         """The worked calculation (:func:`freeladder.worked_calculation`), kept per steps."""

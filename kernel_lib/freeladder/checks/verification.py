@@ -46,10 +46,12 @@ from tqdm.auto import tqdm
 
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
+from ..algebra.printing import format_terms
 from ..algebra.strings import StringArray
 from ..analysis import Analysis, analyze, sector_route
 from ..base import display
 from ..base.errors import CheckNotApplicable, TooLargeError
+from ..base.interrupt import poll, polled
 from ..base.jsonready import json_ready
 from ..base.references import (
     ALCARAZ_PIMENTA_2020,
@@ -344,6 +346,7 @@ class Report:
 def _run(name: str, fn: Callable[..., Check], *args: Any, required: bool = False) -> Check:
     """Run one check, timed.  Only CheckNotApplicable makes it "not run"; any other exception
     is a failure with its traceback (KeyboardInterrupt passes through)."""
+    poll()
     start = time.perf_counter()
     try:
         check = fn(*args)
@@ -370,6 +373,7 @@ class _Progress:
         self.bar: Any = None
 
     def __call__(self, done: int, total: int) -> None:
+        poll()  # every loop that reports progress can be stopped (freeladder.stop_when)
         if self.bar is None:
             self.bar = tqdm(total=total, desc=self.label, delay=2.0, leave=False)
         self.bar.update(done - self.bar.n)
@@ -862,15 +866,50 @@ def exact_diagonalization_check(
     bounds = float(np.sum(np.asarray(sp.error_bounds, dtype=float))) if len(free) else 0.0
     scale = max(1.0, float(np.max(np.abs(ed.eigenvalues))))
     tol = max(FLOAT_RTOL * scale, float(ed.error_estimate) + bounds)
-    match = match_levels((free, deg), ed, tol=tol)
+    cluster = _defect_radius(sp, scale, ed.dimension, tol)
+    match = match_levels((free, deg), ed, tol=tol, cluster=cluster)
     detail = (
         f"dimension {ed.dimension} ({ed.method}); {len(free)} free choices x multiplicity {deg}; "
         f"{match}"
     )
+    if cluster is not None:
+        detail += (
+            f"; exceptional point (repeated roots): H may be defective, so eigenvalues within "
+            f"{display.bound_text(cluster)} (about (dimension eps)^(1/m) for Jordan blocks of "
+            f"size m <= {_block_bound(sp)}) are grouped and each group is compared by its count "
+            "and mean"
+        )
     method, detail = _probe(why, "exact diagonalization", detail)
     unmatched = match.unmatched_free or match.unmatched_exact
     value = float("inf") if unmatched else match.distance
     return Check(EXACT, method, tol, value, match.ok, detail, ref)
+
+
+def _block_bound(sp: FreeSpectrum) -> int:
+    """An upper estimate of the largest Jordan block of ``H`` at an exceptional point.
+
+    A root of multiplicity m gives single-mode blocks of size at most m; the many-body ``H``
+    is a sum over the modes, and the Jordan blocks of a sum of commuting pieces add their
+    nilpotent orders, each mode contributing at most ``(N - 1)(m - 1)`` (its N choices):
+    ``1 + (N - 1) sum (m_j - 1)`` over the distinct repeated roots.
+    """
+    mult = np.asarray(sp.root_multiplicities, dtype=float)
+    excess = float(np.sum((mult - 1) / mult))  # each distinct root is listed m times
+    return 1 + (sp.states - 1) * int(round(excess))
+
+
+def _defect_radius(sp: FreeSpectrum, scale: float, dimension: int, tol: float) -> float | None:
+    """How far a backward-stable eigensolver may spread a defective level (None if none).
+
+    ``4 scale (dimension eps)^(1/m)`` with m from :func:`_block_bound`: a perturbation of
+    relative size ``dimension eps`` moves an eigenvalue of a Jordan block of size m by about
+    its m-th root (Lidskii; common practice, an estimate).
+    """
+    if not sp.exceptional:
+        return None
+    m = _block_bound(sp)
+    rel = max(dimension * float(np.finfo(float).eps), 1e-300)
+    return max(tol, 4.0 * scale * rel ** (1.0 / m))
 
 
 # -- the whole report ---------------------------------------------------------------------------
@@ -1215,29 +1254,35 @@ def power_sum_check(
     )
 
 
-def _term_shapes(m: Model) -> tuple[list[tuple[Any, ...]], np.ndarray]:
-    """Per term: its X and Z exponents by column relative to its first column, its phase; and
-    that first column."""
+def _term_shapes(m: Model) -> tuple[np.ndarray, np.ndarray]:
+    """Per term: an integer naming its shape (X and Z exponents by column relative to its
+    first column, and its phase; equal shapes get equal numbers), and that first column."""
     x, z = sps.csr_array(m.strings.x), sps.csr_array(m.strings.z)
     x.sort_indices()
     z.sort_indices()
-    xi, xv, xp = x.indices.tolist(), x.data.tolist(), x.indptr.tolist()
-    zi, zv, zp = z.indices.tolist(), z.data.tolist(), z.indptr.tolist()
-    phase = m.strings.phase.tolist()
-    starts = np.zeros(len(m), dtype=np.int64)
-    shapes: list[tuple[Any, ...]] = []
-    for t in range(len(m)):
-        cx, cz = xi[xp[t] : xp[t + 1]], zi[zp[t] : zp[t + 1]]
-        first = min(cx[:1] + cz[:1], default=0)
-        starts[t] = first
-        shapes.append(
-            (
-                tuple((c - first, v) for c, v in zip(cx, xv[xp[t] : xp[t + 1]], strict=True)),
-                tuple((c - first, v) for c, v in zip(cz, zv[zp[t] : zp[t + 1]], strict=True)),
-                phase[t],
-            )
-        )
-    return shapes, starts
+    n = len(m)
+    support = sps.csr_array(abs(x) + abs(z))  # exponents are >= 0: the union of the columns
+    support.sort_indices()
+    rows = np.flatnonzero(np.diff(support.indptr))
+    first = np.zeros(n, dtype=np.int64)
+    first[rows] = support.indices[support.indptr[rows]]  # sorted: each row's smallest column
+    # terms with the same numbers of X and Z factors, side by side: one row of (column - first,
+    # exponent) pairs and the phase each, equal rows named once
+    cx, cz = np.diff(x.indptr), np.diff(z.indptr)
+    group = cx * (int(cz.max(initial=0)) + 1) + cz
+    by_group = np.argsort(group, kind="stable")
+    cuts = np.flatnonzero(np.diff(group[by_group])) + 1
+    shape = np.zeros(n, dtype=np.int64)
+    named = 0
+    for rows in polled(np.split(by_group, cuts) if n else []):
+        parts = [m.strings.phase[rows][:, None].astype(np.int64)]
+        for mat, count in ((x, int(cx[rows[0]])), (z, int(cz[rows[0]]))):
+            at = mat.indptr[rows][:, None] + np.arange(count)
+            parts += [mat.indices[at] - first[rows][:, None], mat.data[at].astype(np.int64)]
+        _, ids = np.unique(np.concatenate(parts, axis=1), axis=0, return_inverse=True)
+        shape[rows] = ids.ravel() + named
+        named += int(ids.max()) + 1
+    return shape, first
 
 
 def window_check(
@@ -1271,26 +1316,30 @@ def window_check(
     order, back = found
     width = min(len(m), 3 * (int(back.max()) + 1) + 1)
     unit = independent_along(m, order)
-    shapes, first = _term_shapes(m)
-    kinds: dict[tuple[Any, ...], list[int]] = {}
-    for a in range(len(m) - width + 1):
-        terms = order[a : a + width]
-        base = int(first[terms].min())
-        # equal keys: the same strings up to a shift of the columns, the same algebra
-        key: tuple[Any, ...] = tuple((int(first[t]) - base, shapes[t]) for t in terms)
-        if not unit:
-            key += (tuple(m.couplings[int(t)] for t in terms),)
-        kinds.setdefault(key, []).append(a)
-        if len(kinds) > MAX_WINDOW_KINDS:
-            raise CheckNotApplicable(
-                f"more than {MAX_WINDOW_KINDS} distinct windows of {width} terms"
-            )
+    shape, first = _term_shapes(m)
+    # one row per window: its terms' first columns relative to the window's smallest, their
+    # shapes (and, unless the strings are independent, their couplings); equal rows: the same
+    # strings up to a shift of the columns, the same algebra
+    windows = np.lib.stride_tricks.sliding_window_view(np.asarray(order, dtype=np.int64), width)
+    offsets = first[windows]
+    columns = [offsets - offsets.min(axis=1, keepdims=True), shape[windows]]
+    if not unit:
+        names: dict[Any, int] = {}
+        coupling_id = np.array([names.setdefault(c, len(names)) for c in m.couplings])
+        columns.append(coupling_id[windows])
+    _, first_start = np.unique(np.concatenate(columns, axis=1), axis=0, return_index=True)
+    if len(first_start) > MAX_WINDOW_KINDS:
+        raise CheckNotApplicable(f"more than {MAX_WINDOW_KINDS} distinct windows of {width} terms")
+    kinds = np.sort(first_start)  # each kind by its first window, in the order of the chain
     bad: list[tuple[int, int]] = []
     worst = 0.0
-    for done, starts in enumerate(kinds.values(), start=1):
-        terms = order[starts[0] : starts[0] + width]
+    poll()
+    for done, start in enumerate(polled(kinds.tolist(), every=1), start=1):
+        terms = order[start : start + width]
+        x, z = m.strings.x[terms], m.strings.z[terms]
+        used = np.union1d(sps.csr_array(x).indices, sps.csr_array(z).indices)  # sites renumbered
         strings = StringArray(
-            m.strings.x[terms], m.strings.z[terms], m.strings.phase[terms], m.states, m.sites
+            x[:, used], z[:, used], m.strings.phase[terms], m.states, [m.sites[c] for c in used]
         )
         couplings = [1] * width if unit else [m.couplings[int(t)] for t in terms]
         sub = Model(strings, couplings)
@@ -1299,7 +1348,7 @@ def window_check(
             zero, val = _residual(h.commutator(charge(sub, s)))
             worst = max(worst, val) if val == val else worst
             if not zero:
-                bad.append((starts[0], s))
+                bad.append((start, s))
         if progress is not None:
             progress(done, len(kinds))
     how = "unit couplings (independent strings)" if unit else "the model's couplings"
@@ -1642,6 +1691,16 @@ def routes_check(parts: _Parts) -> Check:
         f"{len(jw.sectors)} sector(s), {len(target)} quasi-energies: largest distance between "
         "the squares eta_k^2 of the two routes (matched one to one), extra Majorana modes zero"
     )
+    if poly.exceptional:
+        # the Majorana matrix is defective at a repeated root: its eigenvalues (by a
+        # backward-stable solver) carry errors of about (size eps)^(1/m) relative
+        top = int(np.max(poly.root_multiplicities))
+        size = 2 * len(m.sites)
+        tol = max(tol, 4.0 * scale * (size * float(np.finfo(float).eps)) ** (1.0 / top))
+        detail += (
+            f"; exceptional point (roots of multiplicity up to {top}): the Majorana matrix is "
+            f"defective, so its eigenvalues are compared within about (size eps)^(1/{top})"
+        )
     return Check(
         ROUTES,
         "floating point",
@@ -1754,5 +1813,10 @@ def _dim(m: Model) -> str:
 
 
 def _short(m: Model) -> str:
-    text = str(m)
+    """The model's text, cut to 120 characters (only the terms that show are written)."""
+    count = 0
+    text = format_terms([], m.constant)
+    while count < len(m) and len(text) <= 120:
+        count = min(len(m), 2 * count + 8)
+        text = format_terms([m.term(j) for j in range(count)], m.constant)
     return text if len(text) <= 120 else text[:117] + "..."

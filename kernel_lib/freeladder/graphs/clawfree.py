@@ -20,12 +20,18 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-import networkx as nx
 import numpy as np
 
+from ..base.interrupt import poll, polled
 from ..base.jsonready import json_ready
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from ..base.lazy import networkx as nx
+
 
 __all__ = [
     "EXACT_HOLE_BUDGET",
@@ -38,6 +44,9 @@ __all__ = [
     "is_chordal",
     "is_clique",
 ]
+
+_SMALL_NEIGHBOURHOOD = 12
+"""Neighbourhoods up to this size are searched for a claw triple by triple (no matrices)."""
 
 EXACT_HOLE_LIMIT = 400
 """Components up to this many vertices get the large even-hole search budget."""
@@ -54,6 +63,8 @@ def find_claw(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> tuple[i
 
     For each centre the neighbourhood's non-adjacency matrix ``B`` is formed and a triangle of
     ``B`` (three pairwise non-adjacent neighbours) is read off ``B @ B * B``: O(n Delta^3).
+    Neighbourhoods of at most 12 vertices are searched triple by triple instead (the same first
+    triple, without the matrices' fixed cost).
 
     Examples
     --------
@@ -61,9 +72,15 @@ def find_claw(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> tuple[i
     (0, 1, 2, 3)
     """
     for v in vertices:
+        poll()
         nbrs = sorted(adjacency[v])
         k = len(nbrs)
         if k < 3:
+            continue
+        if k <= _SMALL_NEIGHBOURHOOD:
+            leaves3 = _first_independent_triple(adjacency, nbrs)
+            if leaves3 is not None:
+                return (int(v), *leaves3)
             continue
         index = {u: i for i, u in enumerate(nbrs)}
         apart = np.ones((k, k), dtype=np.int64)
@@ -80,6 +97,23 @@ def find_claw(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> tuple[i
             c = int(np.nonzero(apart[i] * apart[j])[0][0])
             leaves = sorted((nbrs[i], nbrs[j], nbrs[c]))
             return (int(v), *leaves)
+    return None
+
+
+def _first_independent_triple(
+    adjacency: Sequence[set[int]], nbrs: list[int]
+) -> tuple[int, int, int] | None:
+    """The first (lexicographic in ``nbrs``) three pairwise non-adjacent vertices, or None."""
+    k = len(nbrs)
+    for i in range(k - 2):
+        near_i = adjacency[nbrs[i]]
+        for j in range(i + 1, k - 1):
+            if nbrs[j] in near_i:
+                continue
+            near_j = adjacency[nbrs[j]]
+            for c in range(j + 1, k):
+                if nbrs[c] not in near_i and nbrs[c] not in near_j:
+                    return (int(nbrs[i]), int(nbrs[j]), int(nbrs[c]))
     return None
 
 
@@ -108,9 +142,11 @@ def find_simplicial_clique(
     """
     sub = nx.Graph()
     sub.add_nodes_from(vertices)
-    sub.add_edges_from((u, w) for u in vertices for w in adjacency[u] if u < w)
+    for u in polled(vertices):
+        sub.add_edges_from((u, w) for w in adjacency[u] if u < w)
     seen: set[frozenset[int]] = set()
     for clique in nx.find_cliques(sub):
+        poll()
         key = frozenset(clique)
         if key in seen:
             continue
@@ -150,7 +186,7 @@ def is_chordal(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> bool:
     buckets: list[set[int]] = [set(vertices)]
     visit: dict[int, int] = {}
     top = 0
-    for step in range(len(weight)):
+    for step in polled(range(len(weight))):
         while not buckets[top]:
             top -= 1
         v = buckets[top].pop()
@@ -164,7 +200,7 @@ def is_chordal(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> bool:
                 buckets.append(set())
             buckets[weight[w]].add(w)
             top = max(top, weight[w])
-    for v, t in visit.items():
+    for v, t in polled(visit.items()):
         earlier = [w for w in adjacency[v] if visit[w] < t]
         if len(earlier) < 2:
             continue
@@ -235,6 +271,8 @@ def find_even_hole(
         stack = [iter(sorted(w for w in adjacency[s] if w > s))]
         while stack:
             steps += 1
+            if steps % 1024 == 0:
+                poll()
             if steps > budget:
                 return HoleSearch(
                     False,

@@ -46,6 +46,7 @@ from ..algebra.model import Model
 from ..base import display
 from ..base.cache import part
 from ..base.errors import TooLargeError
+from ..base.interrupt import poll, polled
 from ..base.jsonready import json_ready
 from ..base.scalars import exact_to_sympy, exact_value, to_fmpq, to_python_number, to_sympy
 from ..graphs.graph import ADJACENCY, chain_structure
@@ -284,6 +285,7 @@ class ExclusionPolynomial:
     _chain: tuple[tuple[Any, ...], int, tuple[int, ...]] | None
     _degree: int | None
     _truncated_at: int | None
+    _targets: tuple[Any, Any, int] | None
 
     def __init__(
         self,
@@ -307,6 +309,7 @@ class ExclusionPolynomial:
         put(self, "_chain", chain)
         put(self, "_degree", degree)
         put(self, "_truncated_at", truncated_at)
+        put(self, "_targets", None)
 
     def __setattr__(self, name: str, value: Any) -> None:
         raise AttributeError(
@@ -347,6 +350,27 @@ class ExclusionPolynomial:
                     object.__setattr__(self, "_sums", tuple(self._sums_source()))
         assert self._sums is not None
         return self._sums
+
+    @property
+    def _sum_rule_targets(self) -> tuple[Any, Any, int]:
+        # C_1, C_1^2 - 2 C_2 (exact) and e ~ log2 of the largest weight: kept once computed
+        # (the spectrum's residuals and verify's sum rules both read them).  Computed outside
+        # the lock, which _exact_sums takes; two threads at worst both compute the same values.
+        targets = self._targets
+        if targets is None:
+            t1, t2 = _exact_targets(self)
+            e = max(
+                (
+                    v.numerator.bit_length() - v.denominator.bit_length()
+                    for w in self._exact_weights
+                    for v in (w if isinstance(w, tuple) else (w,))
+                    if v != 0
+                ),
+                default=0,
+            )
+            targets = (t1, t2, e)
+            object.__setattr__(self, "_targets", targets)
+        return targets
 
     @property
     def degree(self) -> int:
@@ -862,7 +886,7 @@ def power_sum_targets(poly: ExclusionPolynomial) -> tuple[Any, Any]:
     """
     if not isinstance(poly, ExclusionPolynomial):
         raise TypeError(f"expected an ExclusionPolynomial, got {type(poly).__name__}")
-    t1, t2 = _exact_targets(poly)
+    t1, t2, _ = poly._sum_rule_targets
     return exact_to_sympy(t1), exact_to_sympy(t2)
 
 
@@ -907,18 +931,9 @@ def sum_rules(poly: ExclusionPolynomial, quasi_energies: Any) -> SumRules:
     if poly.kind == "symbolic":
         raise TypeError("sum rules are checked numerically; substitute the couplings first")
     eta = np.asarray(quasi_energies, dtype=complex).ravel()
-    t1, t2 = _exact_targets(poly)
-    n = poly.states
     # e ~ log2 of the largest weight (within 1: only a common scale is needed).
-    e = max(
-        (
-            v.numerator.bit_length() - v.denominator.bit_length()
-            for w in poly._exact_weights
-            for v in (w if isinstance(w, tuple) else (w,))
-            if v != 0
-        ),
-        default=0,
-    )
+    t1, t2, e = poly._sum_rule_targets
+    n = poly.states
     with np.errstate(over="ignore", under="ignore"):
         x = (eta * np.exp2(-e / n)) ** n  # eta^N / 2^e
     sums, residuals = [], []
@@ -939,17 +954,21 @@ def sum_rules(poly: ExclusionPolynomial, quasi_energies: Any) -> SumRules:
 
 
 # -- construction --------------------------------------------------------------------------------
-def _chain_sums(ring: _Ring, weights: Sequence[Any], reach: int) -> list[Any]:
+def _chain_sums(
+    ring: _Ring, weights: Sequence[Any], reach: int, top: int | None = None
+) -> list[Any]:
     """C_s of a chain from the recurrence ``I_k = I_{k-1} + x w_k I_{k-p-1}`` (``I = P(-x)``).
 
     Equal weights use the number of independent sets of size s of a path power,
-    ``C(M - p(s-1), s)``, times ``w^s``.
+    ``C(M - p(s-1), s)``, times ``w^s`` (only up to s = ``top`` when given).
     """
     size = len(weights)
     if size and all(w == weights[0] for w in weights):
         out: list[Any] = [1]
         power: Any = 1
-        for s in range(1, (size + reach) // (reach + 1) + 1):
+        last = (size + reach) // (reach + 1)
+        for s in range(1, (last if top is None else min(last, top)) + 1):
+            poll()
             power = _times(power, weights[0])
             out.append(_times(power, math.comb(size - reach * (s - 1), s)))
         while len(out) > 1 and out[-1] == 0:
@@ -958,6 +977,7 @@ def _chain_sums(ring: _Ring, weights: Sequence[Any], reach: int) -> list[Any]:
     one = ring.constant(1)
     window = [one] * (reach + 1)  # I_{k-1}, ..., I_{k-p-1}
     for wk in weights:
+        poll()
         new = window[0] + ring.monomial(wk) * window[reach]
         window = [new, *window[:reach]]
     return ring.exact_coefficients(window[0])
@@ -973,10 +993,11 @@ def _chain_head(ring: _Ring, weights: Sequence[Any], reach: int, order: int) -> 
     O(M order) exact operations instead of O(M S) for the whole polynomial.
     """
     if weights and all(w == weights[0] for w in weights):
-        return _chain_sums(ring, weights, reach)[: order + 1]
+        return _chain_sums(ring, weights, reach, order)
     one = ring.constant(1)
     window = [one] * (reach + 1)
     for wk in weights:
+        poll()
         new = _cut(window[0] + ring.monomial(wk) * window[reach], order)
         window = [new, *window[:reach]]
     return ring.exact_coefficients(window[0])
@@ -1094,7 +1115,7 @@ def POLYNOMIAL(m: Model) -> ExclusionPolynomial:
     """The part behind :func:`exclusion_polynomial`."""
     n = m.states
     weights: list[Any] = []
-    for j, c in enumerate(m.couplings):
+    for j, c in polled(enumerate(m.couplings)):
         if type(c) is float and math.isfinite(c):  # fast path: long chains of float couplings
             num, den = c.as_integer_ratio()
             weights.append(Fraction(num**n, den**n))
