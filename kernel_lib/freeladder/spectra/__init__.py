@@ -32,6 +32,7 @@ from .ed import (
     SPARSE_LIMIT,
     ExactSpectrum,
     exact_spectrum,
+    sector_dimension,
     sector_exact_spectrum,
     sparse_memory,
 )
@@ -117,6 +118,7 @@ __all__ = [
     "components",
     "edge_mode",
     "exact_spectrum",
+    "sector_dimension",
     "sector_exact_spectrum",
     "sparse_memory",
     "flux_sector",
