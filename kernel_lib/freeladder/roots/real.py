@@ -78,8 +78,25 @@ point whose count shows it is next to root j (count j below it, j + 1 above it) 
 needs.  Every point evaluated in a sweep tightens the brackets of all roots and serves as a
 Laguerre start for its two neighbouring roots.  A sweep evaluates all distinct points at once
 in a compiled loop (numba), vectorised over points and split over the cores, in calls short
-enough that KeyboardInterrupt stops a long run promptly.  Measured
-(tests/benchmarks/bench_roots.py): about 5 point evaluations of O(M) per root.
+enough that KeyboardInterrupt stops a long run promptly.  From a ladder of points alone this
+takes about 5 point evaluations of O(M) per root, so all roots cost O(M^2) with that factor.
+
+Window seeds (all roots of chains of ``_SEED_TERMS`` terms or more).  The chain is cut into
+windows of ``L = max(_SEED_WINDOW, M / 32)`` terms twice, the second cutting shifted by
+``L / 2``, and the roots of every window are found on their own (the same way, seeded again
+when the window is long): O(M L) in all.  Their union (values of the two cuttings within
+``2**-36`` relative taken once) is evaluated once on the whole chain right after the
+ladder: each point tightens every bracket and is a Laguerre start for its two neighbouring
+roots.  In random chains the ratios forget their start within a localisation length
+(Anderson localisation), so a root lying a quarter window from the cuts of one cutting is a
+root of that window to about float64 accuracy, and most roots finish after this one
+evaluation.  The seeds are only start points: every root is still bracketed by counts and
+converged by Laguerre on the whole chain to the same tolerance, so the result and its
+estimates do not depend on them, only the number of evaluations.  Measured
+(tests/benchmarks/bench_roots.py, random weights): 1.05 to 1.4 evaluations of O(M) per
+root for reach 1 to 3 at 10^5 terms (the longer the localisation, the more); a uniform
+chain, whose windows say little about its roots, needs about as many as without seeds.
+Progress: a ``tqdm`` bar counting evaluated points when the work is large.
 
 What is proved and what is tested
 ---------------------------------
@@ -115,6 +132,8 @@ References
 ----------
 W. Barth, R. S. Martin and J. H. Wilkinson, "Calculation of the eigenvalues of a symmetric
 tridiagonal matrix by the method of bisection", Numer. Math. 9, 386 (1967).
+P. W. Anderson, "Absence of diffusion in certain random lattices", Phys. Rev. 109, 1492
+(1958) (localisation: why window roots are good seeds for random chains).
 P. Fendley, J. Phys. A 52, 335002 (2019), arXiv:1901.08078 (the reach-2 chain polynomial).
 F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.14622.
 R. L. Mann, S. J. Elman, D. R. Wood and A. Chapman, arXiv:2408.09684 (2024) (indifference
@@ -147,6 +166,9 @@ _BLOCK = 128
 _STEPS_PER_CALL = 2e8  # chain steps x points per compiled call: keeps Ctrl-C responsive
 _PARALLEL_STEPS = 2e6  # below this, one core is faster than waking the thread pool
 _EPS = float(np.finfo(np.float64).eps)
+_SEED_WINDOW = 4096  # terms per window of the seeding cuttings (see _window_seeds)
+_SEED_TERMS = 4 * _SEED_WINDOW  # shorter chains start from the ladder alone
+_BAR_WORK = 1e10  # chain steps x roots from which a progress bar is shown
 _FLOAT_EXP = 990  # points below 2**990 try the float64 loop first
 _BASE = 2.0**256  # block floating point: value = mantissa * _BASE**exponent
 _INV_BASE = 2.0**-256
@@ -666,6 +688,7 @@ class _Chain:
         self.ring = max(1, int(self.back.max()))
         self.wm, self.we = _blocks(*np.frexp(self.w))
         self.evaluations = 0
+        self.bar: Any = None  # a tqdm bar counting evaluated points, or None
 
     def evaluate(
         self, xm: np.ndarray, xe: np.ndarray, deriv: bool
@@ -719,6 +742,8 @@ class _Chain:
         for a, b, parallel in self._chunks(n):
             sweep = _sweep_parallel if parallel else _sweep_serial
             sweep(self.w, self.back, self.ring, x[a:b], deriv, *(o[a:b] for o in outs))
+            if self.bar is not None:
+                self.bar.update(b - a)
         return outs
 
     def _run_wide(self, xm: np.ndarray, xe: np.ndarray, deriv: bool) -> tuple[np.ndarray, ...]:
@@ -736,6 +761,8 @@ class _Chain:
                 deriv,
                 *(o[a:b] for o in outs),
             )
+            if self.bar is not None:
+                self.bar.update(b - a)
         return outs
 
 
@@ -945,6 +972,103 @@ def _step(br: _Brackets, act: np.ndarray, j: np.ndarray, total: int, rtol: float
     return finished, value, estimate, nxt
 
 
+def _solve(
+    chain: _Chain,
+    total: int,
+    want: np.ndarray,
+    tol: float,
+    max_sweeps: int,
+    progress: ProgressCallback | None,
+    seeds: tuple[np.ndarray, np.ndarray] | None,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray, int]:
+    """The roots ``want`` of ``chain`` (scaled units): ``(rm, re, em, ee, left, sweeps)``.
+
+    Values ``rm 2**re`` and estimates ``em 2**ee``, ascending in ``want``; ``left`` marks the
+    roots not converged within ``max_sweeps`` (their bracket midpoints).  ``seeds`` are extra
+    points (normalised mantissas, exponents) evaluated once after the ladder, before the
+    first step: they tighten every bracket and serve as Laguerre starts.
+    """
+    n_want = want.size
+    br, sweeps = _initial_brackets(chain, total, want)
+    if seeds is not None and seeds[0].size:
+        pm, pe = _unique_points(*seeds)
+        c_u, g_u, h_u = chain.evaluate(pm, pe, True)
+        sweeps += 1
+        _tighten(br, np.arange(n_want), want, total, (pm, pe), c_u, g_u, h_u)
+    rm, re_ = np.full(n_want, np.nan), np.zeros(n_want, dtype=np.int64)
+    em, ee = np.full(n_want, np.inf), np.zeros(n_want, dtype=np.int64)
+    done = np.zeros(n_want, dtype=bool)
+    act = np.arange(n_want)
+    while True:
+        finished, value, estimate, nxt = _step(br, act, want[act], total, tol)
+        rm[act], re_[act] = value
+        em[act], ee[act] = estimate
+        done[act] = finished
+        if progress is not None:
+            progress(sweeps, int(done.sum()), n_want)
+        keep = ~finished
+        act = act[keep]
+        if act.size == 0 or sweeps >= max_sweeps:
+            break
+        pm, pe = _unique_points(nxt[0][keep], nxt[1][keep])
+        c_u, g_u, h_u = chain.evaluate(pm, pe, True)
+        sweeps += 1
+        _tighten(br, act, want[act], total, (pm, pe), c_u, g_u, h_u)
+    left = ~done
+    if np.any(left):
+        mid = _midpoints(br.lm[left], br.le[left], br.hm[left], br.he[left])
+        rm[left], re_[left] = mid
+        wm, we = _difference(br.hm[left], br.he[left], br.lm[left], br.le[left])
+        em[left], ee[left] = _normal(0.5 * wm, we)
+    return rm, re_, em, ee, left, sweeps
+
+
+def _windows(m: int, length: int, offset: int) -> list[tuple[int, int]]:
+    """Consecutive windows ``[a, b)`` of about ``length`` terms covering ``0 .. m``, the
+    first cut at ``offset``; a last piece shorter than half a window joins its neighbour."""
+    cuts = [0, *range(offset if offset else length, m, length), m]
+    cuts = sorted(set(cuts))
+    if len(cuts) > 2 and cuts[-1] - cuts[-2] < length // 2:
+        del cuts[-2]
+    return list(zip(cuts[:-1], cuts[1:], strict=True))
+
+
+def _window_seeds(chain: _Chain, rtol: float, bar: Any = None) -> tuple[np.ndarray, np.ndarray]:
+    """Start points for all roots: the roots of the chain cut into windows, twice.
+
+    The chain is cut into windows of ``_SEED_WINDOW`` terms, once from the start and once
+    shifted by half a window, and each window's roots are found on its own (O(M L) in all).
+    A root whose ``P_k`` sequence settles within a few window lengths (random chains:
+    Anderson localisation) is a root of one window of each cutting to high accuracy, and
+    one of the two cuttings keeps it a quarter window away from any cut.  Seeds are only
+    start points: every root is still found, bracketed and converged on the whole chain,
+    so they change how many whole-chain evaluations are needed, never the result's
+    guarantees.  Values of the two cuttings within ``2**-36`` relative are taken once.
+    """
+    m = chain.w.size
+    length = max(_SEED_WINDOW, m // 32)
+    spans = _windows(m, length, 0) + _windows(m, length, length // 2)
+    parts_m, parts_e = [], []
+    for i, (a, b) in enumerate(spans):
+        if bar is not None:
+            bar.set_postfix_str(f"seeds from window {i + 1} of {len(spans)}")
+        back = np.minimum(chain.back[a:b], np.arange(b - a, dtype=np.int64))
+        sub = _Chain(chain.w[a:b], back)
+        total = chain_root_count(b - a, back)
+        tol = max(rtol, float(np.sqrt(b - a)) * _EPS)
+        seeds = _window_seeds(sub, rtol) if b - a >= _SEED_TERMS else None
+        rm, re_, _, _, _, _ = _solve(sub, total, np.arange(total), tol, 100, None, seeds)
+        parts_m.append(rm)
+        parts_e.append(re_ - sub.shift)  # back to the units of chain.w
+    pm, pe = np.concatenate(parts_m), np.concatenate(parts_e)
+    order = np.argsort(np.log2(pm) + pe)
+    pm, pe = pm[order], pe[order]
+    lg = np.log2(pm) + pe
+    keep = np.ones(pm.size, dtype=bool)
+    keep[1:] = np.diff(lg) > 2.0**-36
+    return pm[keep], pe[keep]
+
+
 def _wanted(total: int, lowest: int | None) -> np.ndarray:
     """0-based indices (ascending y) of the roots asked for: all, or the ``lowest`` largest."""
     if lowest is None:
@@ -1010,7 +1134,10 @@ def chain_real_roots(
 
     Notes
     -----
-    See the module docstring for the method and for what is proved and what is tested.  The
+    See the module docstring for the method and for what is proved and what is tested; all
+    roots of a chain of ``_SEED_TERMS`` (16384) terms or more start from window seeds (module
+    notes), which changes the work (``evaluations`` counts whole-chain evaluations only), not
+    the result.  A ``tqdm`` bar shows progress when M times the roots wanted exceeds 10^10.  The
     weights are first divided by the power of two nearest their largest value (exact), so
     the result does not depend on their overall scale.  Interrupting (KeyboardInterrupt) is
     safe: no state outlives the call.
@@ -1031,36 +1158,25 @@ def chain_real_roots(
     total = chain_root_count(w.size, back)
     want = _wanted(total, lowest)
     n_want = want.size
-    br, sweeps = _initial_brackets(chain, total, want)
     # rounding along the chain: about sqrt(M) eps relative (see the module notes); steps
     # below it are noise, so it is also the least tolerance
     floor = max(_EPS, float(np.sqrt(w.size)) * _EPS)
     tol = max(float(rtol), floor)
-    rm, re_ = np.full(n_want, np.nan), np.zeros(n_want, dtype=np.int64)
-    em, ee = np.full(n_want, np.inf), np.zeros(n_want, dtype=np.int64)
-    done = np.zeros(n_want, dtype=bool)
-    act = np.arange(n_want)
-    while True:
-        finished, value, estimate, nxt = _step(br, act, want[act], total, tol)
-        rm[act], re_[act] = value
-        em[act], ee[act] = estimate
-        done[act] = finished
-        if progress is not None:
-            progress(sweeps, int(done.sum()), n_want)
-        keep = ~finished
-        act = act[keep]
-        if act.size == 0 or sweeps >= max_sweeps:
-            break
-        pm, pe = _unique_points(nxt[0][keep], nxt[1][keep])
-        c_u, g_u, h_u = chain.evaluate(pm, pe, True)
-        sweeps += 1
-        _tighten(br, act, want[act], total, (pm, pe), c_u, g_u, h_u)
-    left = ~done
-    if np.any(left):
-        mid = _midpoints(br.lm[left], br.le[left], br.hm[left], br.he[left])
-        rm[left], re_[left] = mid
-        wm, we = _difference(br.hm[left], br.he[left], br.lm[left], br.le[left])
-        em[left], ee[left] = _normal(0.5 * wm, we)
+    from tqdm.auto import tqdm  # on use
+
+    with tqdm(
+        desc=f"roots of {w.size} terms: points evaluated",
+        unit="pt",
+        delay=2.0,
+        leave=False,
+        disable=w.size * n_want < _BAR_WORK,
+    ) as bar:
+        seeds = None
+        if lowest is None and w.size >= _SEED_TERMS:
+            seeds = _window_seeds(chain, float(rtol), bar)
+            bar.set_postfix_str("")
+        chain.bar = bar
+        rm, re_, em, ee, left, sweeps = _solve(chain, total, want, tol, max_sweeps, progress, seeds)
     rel = np.ldexp(em / rm, np.clip(ee - re_, -2000, 2000).astype(np.int32))
     raise_ = ~(rel >= floor)
     em, ee = np.where(raise_, rm * floor, em), np.where(raise_, re_, ee)
