@@ -356,3 +356,21 @@ def test_one_number_format_for_display() -> None:
     assert "0.16000000000000003" not in latex and latex.endswith("- X_{1}$")
     # the text syntax keeps every digit, so that it reads back exactly
     assert "0.16000000000000003" in str(parse_model("0.16000000000000003 X0"))
+
+
+def test_a_signed_coefficient_after_plus_or_minus() -> None:
+    # Text that joins signed terms with " + " (as a loop printing each term's coupling writes it)
+    # reads as in mathematics: a + -b = a - b and a - -b = a + b (common practice).
+    m = parse_model("X0 X1 + -0.7 Z0 - -0.3 Z1 + +2 Z2")
+    _same(m, parse_model("X0 X1 - 0.7 Z0 + 0.3 Z1 + 2 Z2"))
+    assert parse_model("-+2 X0").couplings == (-2,)
+    assert parse_model("X0 + -Z1").couplings == (1, -1)
+    with pytest.raises(ModelSyntaxError, match="three signs in a row") as err:
+        parse_model("X0 + --Z1")
+    assert "column 7" in str(err.value)
+    # A sign standing apart more likely marks a lost term: still an error.
+    for text in ("X0 + - Z1", "X0 + + Z1", "X0 + - 0.7 Z1"):
+        with pytest.raises(ModelSyntaxError, match="expected a term"):
+            parse_model(text)
+    with pytest.raises(ModelSyntaxError, match="dangling '-'"):
+        parse_model("X0 + -")

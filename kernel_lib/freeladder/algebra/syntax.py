@@ -412,8 +412,7 @@ class _Parser:
         sign = 1
         sign_tok: _Token | None = None
         if self.tok.kind in ("+", "-"):
-            sign_tok = self.advance()
-            sign = -1 if sign_tok.kind == "-" else 1
+            sign_tok, sign = self._signs()
         while True:
             terms.append(self._term(sign, sign_tok))
             t = self.tok
@@ -427,8 +426,7 @@ class _Parser:
                     )
                 return terms
             if t.kind in ("+", "-"):
-                sign_tok = self.advance()
-                sign = -1 if t.kind == "-" else 1
+                sign_tok, sign = self._signs()
                 continue
             if t.kind == ")":
                 raise self.error("unbalanced parentheses: ')' without a matching '('", t.offset)
@@ -439,6 +437,28 @@ class _Parser:
                     t.offset,
                 )
             raise self.error(f"unexpected {self._describe(t)} after a term", t.offset)
+
+    def _signs(self) -> tuple[_Token, int]:
+        """Read the sign joining two terms, and the sign written onto the term after it.
+
+        ``a + -0.7 b`` and ``a - -0.7 b`` read as in mathematics (``a - 0.7 b``, ``a + 0.7 b``),
+        as text that joins signed terms with ``" + "`` writes them. The second sign must touch
+        what follows it (``-0.7``, ``-Z1``): ``a + + b`` or ``a + - b`` more likely lost a term
+        and stays an error, as does a third sign in a row.
+        """
+        first = self.advance()
+        sign = -1 if first.kind == "-" else 1
+        nxt = self.tokens[self.i + 1] if self.tok.kind in ("+", "-") else None
+        if nxt is not None and nxt.kind != "end" and nxt.offset == self.tok.offset + 1:
+            second = self.advance()
+            sign *= -1 if second.kind == "-" else 1
+            if self.tok.kind in ("+", "-"):
+                raise self.error(
+                    "three signs in a row: write at most one sign after '+' or '-'",
+                    self.tok.offset,
+                )
+            return second, sign
+        return first, sign
 
     def _term(self, sign: int, sign_tok: _Token | None) -> tuple[Any, WeylString]:
         start = self.tok
@@ -478,6 +498,14 @@ class _Parser:
                 raise self.error(f"{what}: expected a term after it", at)
             if t.kind == ")":
                 raise self.error("unbalanced parentheses: ')' without a matching '('", t.offset)
+            if t.kind in ("+", "-") and self.tokens[self.i + 1].kind == "end":
+                raise self.error(f"dangling {t.text!r}: expected a term after it", t.offset)
+            if t.kind in ("+", "-"):
+                raise self.error(
+                    f"expected a term, found {self._describe(t)}: was a term lost between the "
+                    "signs? (a sign on the next coefficient touches it, as in '+ -0.7 Z1')",
+                    t.offset,
+                )
             raise self.error(f"expected a term, found {self._describe(t)}", t.offset)
         if has_coef and factors == [] and self.tok.kind in ("number", "name", "("):
             t = self.tok
