@@ -142,7 +142,9 @@ orderings).
 
 from __future__ import annotations
 
+import os
 from collections.abc import Callable
+from concurrent.futures import ThreadPoolExecutor
 from typing import Any
 
 import numpy as np
@@ -383,7 +385,7 @@ def _sweep_parallel(
         _block(w, back, ring, x, b, deriv, counts, first, second, s_max, inv_max)
 
 
-@njit(cache=True)
+@njit(cache=True, nogil=True)
 def _sweep_serial(
     w: np.ndarray,
     back: np.ndarray,
@@ -424,7 +426,7 @@ def _wide_parallel(
         _block_wide(wm, we, back, ring, xm, xe, b, deriv, counts, first, second)
 
 
-@njit(cache=True)
+@njit(cache=True, nogil=True)
 def _wide_serial(
     wm: np.ndarray,
     we: np.ndarray,
@@ -681,7 +683,7 @@ def _laguerre(
 class _Chain:
     """The weights (scaled so that the largest lies in [1/2, 1)), in both layouts, and back."""
 
-    def __init__(self, w: np.ndarray, back: np.ndarray) -> None:
+    def __init__(self, w: np.ndarray, back: np.ndarray, serial: bool = False) -> None:
         self.shift = int(np.frexp(np.max(w))[1])
         self.w = np.ldexp(w, -self.shift)  # exact: roots of the scaled chain are y * 2**shift
         self.back = np.ascontiguousarray(back, dtype=np.int64)
@@ -689,6 +691,7 @@ class _Chain:
         self.wm, self.we = _blocks(*np.frexp(self.w))
         self.evaluations = 0
         self.bar: Any = None  # a tqdm bar counting evaluated points, or None
+        self.serial = serial  # one core per call (the caller runs several chains at once)
 
     def evaluate(
         self, xm: np.ndarray, xe: np.ndarray, deriv: bool
@@ -726,7 +729,8 @@ class _Chain:
         out = []
         for a in range(0, n, chunk):
             b = min(a + chunk, n)
-            out.append((a, b, b - a > _BLOCK and (b - a) * m > _PARALLEL_STEPS))
+            parallel = not self.serial and b - a > _BLOCK and (b - a) * m > _PARALLEL_STEPS
+            out.append((a, b, parallel))
         return out
 
     def _run_float(self, x: np.ndarray, deriv: bool) -> tuple[np.ndarray, ...]:
@@ -1036,37 +1040,53 @@ def _windows(m: int, length: int, offset: int) -> list[tuple[int, int]]:
 def _window_seeds(chain: _Chain, rtol: float, bar: Any = None) -> tuple[np.ndarray, np.ndarray]:
     """Start points for all roots: the roots of the chain cut into windows, twice.
 
-    The chain is cut into windows of ``_SEED_WINDOW`` terms, once from the start and once
-    shifted by half a window, and each window's roots are found on its own (O(M L) in all).
-    A root whose ``P_k`` sequence settles within a few window lengths (random chains:
+    The chain is cut into windows of ``L = max(_SEED_WINDOW, M / 32)`` terms, once from the
+    start and once shifted by half a window, and each window's roots are found on its own
+    (seeded the same way when the window is long; O(M L) in all), the windows spread over
+    the cores.  A root whose ratios settle within a few window lengths (random chains:
     Anderson localisation) is a root of one window of each cutting to high accuracy, and
     one of the two cuttings keeps it a quarter window away from any cut.  Seeds are only
     start points: every root is still found, bracketed and converged on the whole chain,
     so they change how many whole-chain evaluations are needed, never the result's
-    guarantees.  Values of the two cuttings within ``2**-36`` relative are taken once.
+    guarantees.  Values within ``2**-36`` relative are taken once.
     """
     m = chain.w.size
     length = max(_SEED_WINDOW, m // 32)
     spans = _windows(m, length, 0) + _windows(m, length, length // 2)
-    parts_m, parts_e = [], []
-    for i, (a, b) in enumerate(spans):
-        if bar is not None:
-            bar.set_postfix_str(f"seeds from window {i + 1} of {len(spans)}")
-        back = np.minimum(chain.back[a:b], np.arange(b - a, dtype=np.int64))
-        sub = _Chain(chain.w[a:b], back)
-        total = chain_root_count(b - a, back)
-        tol = max(rtol, float(np.sqrt(b - a)) * _EPS)
-        seeds = _window_seeds(sub, rtol) if b - a >= _SEED_TERMS else None
-        rm, re_, _, _, _, _ = _solve(sub, total, np.arange(total), tol, 100, None, seeds)
-        parts_m.append(rm)
-        parts_e.append(re_ - sub.shift)  # back to the units of chain.w
-    pm, pe = np.concatenate(parts_m), np.concatenate(parts_e)
-    order = np.argsort(np.log2(pm) + pe)
-    pm, pe = pm[order], pe[order]
+    workers = 1 if chain.serial else min(len(spans), os.cpu_count() or 1)
+    if workers > 1:
+        with ThreadPoolExecutor(workers) as pool:
+            jobs = [pool.submit(_window_roots, chain, a, b, rtol) for a, b in spans]
+            try:
+                parts = []
+                for i, job in enumerate(jobs):
+                    parts.append(job.result())
+                    if bar is not None:
+                        bar.set_postfix_str(f"seeds from window {i + 1} of {len(spans)}")
+            finally:
+                for job in jobs:
+                    job.cancel()
+    else:
+        parts = [_window_roots(chain, a, b, rtol) for a, b in spans]
+    pm = np.concatenate([p[0] for p in parts])
+    pe = np.concatenate([p[1] for p in parts])
     lg = np.log2(pm) + pe
+    order = np.argsort(lg)
+    pm, pe, lg = pm[order], pe[order], lg[order]
     keep = np.ones(pm.size, dtype=bool)
     keep[1:] = np.diff(lg) > 2.0**-36
     return pm[keep], pe[keep]
+
+
+def _window_roots(chain: _Chain, a: int, b: int, rtol: float) -> tuple[np.ndarray, np.ndarray]:
+    """All roots of the terms ``a .. b - 1`` alone, in the units of ``chain.w``, on one core."""
+    back = np.minimum(chain.back[a:b], np.arange(b - a, dtype=np.int64))
+    sub = _Chain(chain.w[a:b], back, serial=True)
+    total = chain_root_count(b - a, back)
+    tol = max(rtol, float(np.sqrt(b - a)) * _EPS)
+    seeds = _window_seeds(sub, rtol) if b - a >= _SEED_TERMS else None
+    rm, re_, _, _, _, _ = _solve(sub, total, np.arange(total), tol, 100, None, seeds)
+    return rm, re_ - sub.shift  # the roots of sub.w, in the units of chain.w
 
 
 def _wanted(total: int, lowest: int | None) -> np.ndarray:
