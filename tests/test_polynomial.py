@@ -461,3 +461,16 @@ def test_partial_polynomial_of_a_chain_needs_only_its_orders() -> None:
                 )
                 full.coefficients  # noqa: B018 -- expand the whole polynomial first
                 assert full.truncated(s).coefficients == part.coefficients
+
+
+def test_partial_polynomials_of_a_uniform_chain_stop_at_their_order() -> None:
+    # equal couplings take the binomial route; a partial polynomial computes only its own
+    # orders, and they agree with the full polynomial expanded by sympy (C_s counts the
+    # independent s-sets of a path power, common practice)
+    m = fl.exclusion_chain(11, reach=2, couplings=[sympy.Rational(3, 2)] * 11)
+    poly = fl.exclusion_polynomial(m)
+    y = sympy.Symbol("y")
+    full = sympy.Poly(poly.sympy(y).as_expr(), y)
+    for s in range(poly.degree):
+        want = [full.as_expr().coeff(y, r) for r in range(s + 1)]
+        assert list(poly.truncated(s).coefficients) == want

@@ -23,6 +23,7 @@ from .algebra.strings import StringArray, WeylString, make_string, pauli
 from .algebra.syntax import ModelSyntaxError, parse_model
 from .analysis import Analysis, analyze
 from .base.errors import NotExpandableError, NoTheoremError
+from .base.interrupt import Interrupted, stop_when
 from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
 from .checks.verification import Check, Report, verify
 from .graphs.directed import DirectedFrustrationGraph, directed_frustration_graph
@@ -57,6 +58,7 @@ from .spectra.charges import (
     charge_series,
     transfer_matrix,
 )
+from .spectra.circuits import CircuitAutocorrelation, circuit_autocorrelation
 from .spectra.dynamics import (
     Autocorrelation,
     EdgeExpansion,
@@ -77,6 +79,11 @@ from .spectra.majorana import (
     sectors,
 )
 from .spectra.matching import LevelMatch, match_levels
+from .spectra.sector_dynamics import (
+    SectorCorrelation,
+    sector_autocorrelation,
+    sector_two_point,
+)
 from .spectra.spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .spectra.thermo import Thermodynamics, log_partition_function, thermodynamics
 from .studies.census import census
@@ -144,6 +151,7 @@ __all__ = [
     "transfer_matrix",
     "ComponentVerdict",
     "Guarantee",
+    "Interrupted",
     "NoTheoremError",
     "NotExpandableError",
     "Relation",
@@ -183,7 +191,13 @@ __all__ = [
     "edge_expansion",
     "autocorrelation",
     "two_point",
+    "SectorCorrelation",
+    "CircuitAutocorrelation",
+    "circuit_autocorrelation",
+    "sector_autocorrelation",
+    "sector_two_point",
     "ladder_operators",
+    "stop_when",
     "verify",
     "LevelMatch",
     "match_levels",

@@ -112,7 +112,10 @@ def _answer(m: Model, choice: Hashable, unproven: bool) -> SpectrumAnswer:
         return _sector_answer(m, choice)
     if promise.proven:
         sp = _spectrum(m, "auto", None, False, None)
-        return SpectrumAnswer("proven", sp, "polynomial", sp.provenance.guarantee)
+        reason = sp.provenance.guarantee
+        if sp.exceptional:
+            reason += f" Note, {sp.exceptional_note}."
+        return SpectrumAnswer("proven", sp, "polynomial", reason)
     reason, instead = refusal_text(m, promise)
     if not unproven:
         return SpectrumAnswer("refused", None, "", reason, promise.witness, instead)
@@ -329,8 +332,13 @@ class Analysis:
         return _exact(self.model)
 
     def report(self, **options: Any) -> Report:
-        """The :func:`freeladder.verify` report, kept per set of options."""
-        return _report(self.model, tuple(sorted(options.items())))
+        """The :func:`freeladder.verify` report, kept per set of options (a report cut short by
+        Ctrl-C is returned but not kept: the next call runs the checks again)."""
+        key = tuple(sorted(options.items()))
+        found = _report(self.model, key)
+        if not found.complete:
+            store_of(self.model).forget(_report, (key,))
+        return found
 
     def worked(self, steps: str | Sequence[str] = "all") -> WorkedCalculation:
         """The worked calculation (:func:`freeladder.worked_calculation`), kept per steps."""

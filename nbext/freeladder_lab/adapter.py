@@ -6,8 +6,8 @@ reads their imports).  :func:`derive` gathers, in the worker, one :class:`View` 
 :class:`freeladder.Analysis` (each part computed once, the coupling-independent ones shared by
 every model with the same strings), the spectrum or the refusal (:func:`outcome`, the one
 function that reads the spectrum), and what the panels draw beside it.  It calls
-:func:`freeladder_lab.worker.checkpoint` between the parts, so a superseded model stops at the
-next part.
+:func:`checkpoint` (the library's poll of the stop hook the worker installs) between the
+parts, and the library polls it inside long calls, so a superseded model stops promptly.
 
 The partial polynomial ``P_s`` (P truncated after order s) and its certified roots come from
 :meth:`freeladder.ExclusionPolynomial.truncated`, drawn to show the roots settling on those of
@@ -35,10 +35,9 @@ import freeladder as fl
 from freeladder.algebra.operators import StringSum
 from freeladder.algebra.printing import format_terms, format_terms_latex
 from freeladder.base.errors import TooLargeError
+from freeladder.base.interrupt import poll as checkpoint
 from freeladder.base.references import CHUDNOVSKY_SEYMOUR_2007
 from freeladder.checks.verification import Check, hamiltonian_check
-
-from .worker import checkpoint
 
 __all__ = [
     "CLAW_FREE_KINDS",
@@ -48,6 +47,7 @@ __all__ = [
     "SECTOR_CHOICE_LIMIT",
     "Analysis",
     "ExactSpectrum",
+    "Interrupted",
     "Model",
     "ModelSyntaxError",
     "Outcome",
@@ -57,6 +57,7 @@ __all__ = [
     "build_family",
     "chain_reach",
     "charge_step",
+    "checkpoint",
     "derive",
     "exact_overlay",
     "export_calculation",
@@ -76,6 +77,7 @@ __all__ = [
     "sector_choices",
     "spectrum_outcome",
     "star_points",
+    "stop_when",
     "term_labels",
     "term_text",
 ]
@@ -87,6 +89,9 @@ ExactSpectrum = fl.ExactSpectrum
 Report = fl.Report
 FreeSpectrum = fl.FreeSpectrum
 ModelSyntaxError = fl.ModelSyntaxError
+#: The stop hook the worker installs for its threads, and what a stopped library call raises.
+stop_when = fl.stop_when
+Interrupted = fl.Interrupted
 
 #: Largest Hilbert-space dimension for which the ladder shows exact diagonalization beside it.
 ED_OVERLAY_DIMENSION = 1024
@@ -270,8 +275,8 @@ class View:
 def derive(model: fl.Model, numeric: fl.Model, unproven: bool, choice: Any) -> View:
     """Compute every part the panels draw, one part at a time.
 
-    Between parts it calls :func:`~freeladder_lab.worker.checkpoint`: a newer edit stops this
-    one at its next part.
+    Between parts it calls :func:`checkpoint`, and the library polls the same stop hook inside
+    long calls: a newer edit stops this one promptly.
     """
     a = analyze(numeric)
     # (the graph panel asks for the graph itself, only when the strings change)

@@ -49,6 +49,10 @@ SECTIONS: tuple[tuple[str, type[Section]], ...] = (
     ("export", ExportPanel),
 )
 
+#: Lanes whose work is about the model on screen: a new model (or new options) cancels them, so
+#: they do not keep a core busy while the new view is derived.
+_OF_THE_SHOWN_MODEL = ("order", "checks", "dynamics")
+
 
 class Workbench(widgets.VBox):
     """One notebook tool: model, verdict and graph, charge series, roots, ladder, checks.
@@ -205,6 +209,8 @@ class Workbench(widgets.VBox):
         def compute() -> View:
             return derive(model, numeric, options["unproven"], options["sector"])
 
+        for lane in _OF_THE_SHOWN_MODEL:  # their results would be dropped once the new view shows
+            self.worker.cancel(lane)
         self.submit("model", "analysing the model", compute, self._show)
 
     # -- model flow --------------------------------------------------------------------------

@@ -2,10 +2,16 @@
 
 Every request names a *lane* (what kind of work it is: "model", "order", "checks", "export",
 "typing" ...).  A newer request on a lane supersedes the older one: the older one's
-:class:`Job` is cancelled, and its result, if it still arrives, is dropped.  Cancellation is
-cooperative: the work calls :func:`checkpoint` between its parts, which raises
-:class:`Superseded` once the job was cancelled, so a superseded analysis stops at its next part
-instead of keeping a core busy until it ends (a library call in progress runs to its end).
+:class:`Job` is cancelled, and its result, if it still arrives, is dropped.
+
+Cancellation reaches into the library: while a job computes, its thread carries the library's
+stop hook (``freeladder.stop_when``) asking whether the job was cancelled, and the library's
+long loops poll it, so a superseded computation raises ``freeladder.Interrupted`` within a
+fraction of a second even in the middle of one library call (the roots of a long chain, the
+checks), and the worker drops it quietly.  :func:`checkpoint` polls the same hook between the
+parts of an analysis.  An interrupted part is not kept in the model's store: asking for it again
+computes it in full.  ``apply`` runs without the hook (it only sets widget state), so a view is
+never half drawn.
 
 A request may wait before it starts (``delay``): typing uses that to parse only after a pause,
 and the export uses it for the time it waits for the notebook's answer.  A newer request on the
@@ -24,13 +30,9 @@ import traceback
 from collections.abc import Callable
 from typing import Any
 
-__all__ = ["Job", "Superseded", "Worker", "checkpoint"]
+from .adapter import Interrupted, checkpoint, stop_when
 
-_local = threading.local()
-
-
-class Superseded(Exception):
-    """Raised by :func:`checkpoint` in work whose request was superseded or cancelled."""
+__all__ = ["Job", "Worker", "checkpoint"]
 
 
 class Job:
@@ -47,22 +49,12 @@ class Job:
         return self._cancelled.is_set()
 
     def cancel(self) -> None:
-        """Ask the work to stop at its next :func:`checkpoint`."""
+        """Ask the work to stop (at the library's next poll, or its next :func:`checkpoint`)."""
         self._cancelled.set()
 
     def sleep(self, seconds: float) -> bool:
         """Wait ``seconds`` unless cancelled first; True when the wait ran to its end."""
         return not self._cancelled.wait(seconds)
-
-
-def checkpoint() -> None:
-    """Stop here when the job running in this thread was cancelled (raises :class:`Superseded`).
-
-    Call it between the parts of a long computation.  Outside a worker job it does nothing.
-    """
-    job: Job | None = getattr(_local, "job", None)
-    if job is not None and job.cancelled:
-        raise Superseded(f"{job.what}: superseded")
 
 
 class Worker:
@@ -170,23 +162,21 @@ class Worker:
     def _run(
         self, job: Job, compute: Callable[[], Any], apply: Callable[[Any], Any], delay: float
     ) -> None:
-        outer = getattr(_local, "job", None)  # a synchronous request inside another one
-        _local.job = job
         try:
             if delay > 0 and not job.sleep(delay):
                 return
-            checkpoint()
-            result = compute()
+            with stop_when(job._cancelled.is_set):  # the library's loops poll it
+                checkpoint()
+                result = compute()
             with self._apply_lock:
                 if self._current(job):
                     apply(result)
-        except Superseded:
+        except Interrupted:  # cancelled: nothing to show, nothing kept
             pass
         except Exception as exc:  # shown in the widget with its traceback, never swallowed
             if self._current(job):
                 self._on_error(f"{type(exc).__name__}: {exc}", traceback.format_exc())
         finally:
-            _local.job = outer
             with self._lock:
                 finished = self._jobs.get(job.lane) is job
                 if finished:

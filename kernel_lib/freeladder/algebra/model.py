@@ -18,6 +18,7 @@ from typing import TYPE_CHECKING, Any, NamedTuple
 import numpy as np
 
 from ..base import display
+from ..base.interrupt import polled
 from ..base.jsonready import json_ready
 from ..base.scalars import (
     MAX_EXPANDED_TERMS,
@@ -224,7 +225,7 @@ class Model:
     @property
     def terms(self) -> tuple[Term, ...]:
         """The terms as ``(coupling, WeylString)`` pairs."""
-        return tuple(Term(c, self.strings[j]) for j, c in enumerate(self.couplings))
+        return tuple(Term(c, self.strings[j]) for j, c in polled(enumerate(self.couplings)))
 
     def term(self, j: int) -> Term:
         """Term ``j``."""
@@ -258,7 +259,7 @@ class Model:
                 f"the model has symbolic couplings ({names}); use m.subs({{...}}) first"
             )
         vals = np.array(
-            [as_complex(c, f"term {j}") for j, c in enumerate(self.couplings)],
+            [as_complex(c, f"term {j}") for j, c in polled(enumerate(self.couplings))],
             dtype=np.complex128,
         )
         if np.all(vals.imag == 0):

@@ -23,6 +23,7 @@ from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
 from ..base.display import number_latex, number_text, phase_fold, phase_latex, phase_text
+from ..base.interrupt import polled
 from .strings import WeylString
 
 if TYPE_CHECKING:
@@ -300,15 +301,13 @@ def format_terms(
     states = terms[0][1].states if terms else None
     if constant != 0:
         pieces.append(_signed(constant, 0, "", states, display, keep_types))
-    for c, g in terms:
+    for c, g in polled(terms):
         text, _, extra = letters_and_factor(g)
         pieces.append(_signed(c, extra, text, g.states, display, keep_types))
     if not pieces:
         return "0"
-    out = ("-" if pieces[0][0] else "") + pieces[0][1]
-    for neg, body in pieces[1:]:
-        out += (" - " if neg else " + ") + body
-    return out
+    head = ("-" if pieces[0][0] else "") + pieces[0][1]
+    return head + "".join((" - " if neg else " + ") + body for neg, body in pieces[1:])
 
 
 def _signed(

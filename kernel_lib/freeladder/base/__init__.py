@@ -1,5 +1,6 @@
-"""Foundations shared by every part: frozen results, errors, caches, JSON, the display (numbers
-in text, HTML and LaTeX, and the renderings of results), HTML tables, references, scalars.
+"""Foundations shared by every part: frozen results, errors, caches, the stop hook, JSON, the
+display (numbers in text, HTML and LaTeX, and the renderings of results), HTML tables,
+references, scalars.
 """
 
 from .cache import (
@@ -32,6 +33,12 @@ from .htmltable import (
     field_table,
     grid_table,
     is_number_text,
+)
+from .interrupt import (
+    Interrupted,
+    poll,
+    polled,
+    stop_when,
 )
 from .jsonready import (
     json_ready,
@@ -83,6 +90,7 @@ __all__ = [
     "DIGITS",
     "ELMAN_CHAPMAN_FLAMMIA_2021",
     "FENDLEY_2014",
+    "Interrupted",
     "FENDLEY_2019",
     "KITAEV_2006",
     "LIEB_1994",
@@ -109,12 +117,15 @@ __all__ = [
     "is_symbolic",
     "json_ready",
     "number_html",
+    "poll",
+    "polled",
     "number_latex",
     "number_text",
     "readonly_array",
     "readonly_mapping",
     "readonly_sparse",
     "substitute",
+    "stop_when",
     "substitution_map",
     "tex_escape",
     "to_fmpq",

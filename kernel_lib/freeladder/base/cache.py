@@ -14,7 +14,9 @@ The part object is the typed key: ``PART(m)`` returns the part's value type.  Ea
 one :class:`Store` (shared by every analysis of that model object); it holds the values and a
 lock per part and arguments, so two threads asking for one part compute it once.  A part that
 raised a ``ValueError``, ``TypeError`` or ``ArithmeticError`` keeps the error and raises it
-again on every request.
+again on every request; any other exception (``KeyboardInterrupt``,
+:class:`~freeladder.base.interrupt.Interrupted`) leaves nothing behind, so the part is
+computed in full when next asked for.
 
 Values are the library's own frozen results, shared by every caller inside the library;
 public functions that hand out mutable containers (sparse matrices, graphs) copy them.
@@ -131,6 +133,13 @@ class Store:
         """``p(model, *args)``, computed once."""
         shelf = self.strings if p.scope == "strings" else self.couplings
         return shelf.get((p, args), model)
+
+    def forget(self, p: Part[Any], args: tuple[Hashable, ...] = ()) -> None:
+        """Drop the kept value of ``p(model, *args)``: the next request computes it again (a
+        result that stands for an interrupted run, such as a report stopped by Ctrl-C, is
+        handed out once and not kept)."""
+        shelf = self.strings if p.scope == "strings" else self.couplings
+        shelf.values.pop((p, args), None)
 
     def __reduce__(self) -> tuple[Any, tuple[()]]:
         """A pickled or deep-copied model leaves its store behind (locks do not travel); the

@@ -557,6 +557,9 @@ def _spectrum_rows(sp: Any) -> list[tuple[str, str]]:
         rows.append(("sector", str(prov.sector.get("summary", ""))))
     rows.append(("guarantee", prov.guarantee if prov.guaranteed else "NOT GUARANTEED (above)"))
     rows.append(("largest error bound", f"{bound_text(prov.max_error_bound)} ({prov.bounds})"))
+    note = getattr(sp, "exceptional_note", "")
+    if note:
+        rows.append(("exceptional point", note.removeprefix("exceptional point: ")))
     if prov.sum_rules:
         rows.append(
             (

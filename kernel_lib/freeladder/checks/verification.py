@@ -50,6 +50,7 @@ from ..algebra.strings import StringArray
 from ..analysis import Analysis, analyze, sector_route
 from ..base import display
 from ..base.errors import CheckNotApplicable, TooLargeError
+from ..base.interrupt import poll, polled
 from ..base.jsonready import json_ready
 from ..base.references import (
     ALCARAZ_PIMENTA_2020,
@@ -341,6 +342,7 @@ class Report:
 def _run(name: str, fn: Callable[..., Check], *args: Any, required: bool = False) -> Check:
     """Run one check, timed.  Only CheckNotApplicable makes it "not run"; any other exception
     is a failure with its traceback (KeyboardInterrupt passes through)."""
+    poll()
     start = time.perf_counter()
     try:
         check = fn(*args)
@@ -367,6 +369,7 @@ class _Progress:
         self.bar: Any = None
 
     def __call__(self, done: int, total: int) -> None:
+        poll()  # every loop that reports progress can be stopped (freeladder.stop_when)
         if self.bar is None:
             self.bar = tqdm(total=total, desc=self.label, delay=2.0, leave=False)
         self.bar.update(done - self.bar.n)
@@ -859,15 +862,50 @@ def exact_diagonalization_check(
     bounds = float(np.sum(np.asarray(sp.error_bounds, dtype=float))) if len(free) else 0.0
     scale = max(1.0, float(np.max(np.abs(ed.eigenvalues))))
     tol = max(FLOAT_RTOL * scale, float(ed.error_estimate) + bounds)
-    match = match_levels((free, deg), ed, tol=tol)
+    cluster = _defect_radius(sp, scale, ed.dimension, tol)
+    match = match_levels((free, deg), ed, tol=tol, cluster=cluster)
     detail = (
         f"dimension {ed.dimension} ({ed.method}); {len(free)} free choices x multiplicity {deg}; "
         f"{match}"
     )
+    if cluster is not None:
+        detail += (
+            f"; exceptional point (repeated roots): H may be defective, so eigenvalues within "
+            f"{display.bound_text(cluster)} (about (dimension eps)^(1/m) for Jordan blocks of "
+            f"size m <= {_block_bound(sp)}) are grouped and each group is compared by its count "
+            "and mean"
+        )
     method, detail = _probe(why, "exact diagonalization", detail)
     unmatched = match.unmatched_free or match.unmatched_exact
     value = float("inf") if unmatched else match.distance
     return Check(EXACT, method, tol, value, match.ok, detail, ref)
+
+
+def _block_bound(sp: FreeSpectrum) -> int:
+    """An upper estimate of the largest Jordan block of ``H`` at an exceptional point.
+
+    A root of multiplicity m gives single-mode blocks of size at most m; the many-body ``H``
+    is a sum over the modes, and the Jordan blocks of a sum of commuting pieces add their
+    nilpotent orders, each mode contributing at most ``(N - 1)(m - 1)`` (its N choices):
+    ``1 + (N - 1) sum (m_j - 1)`` over the distinct repeated roots.
+    """
+    mult = np.asarray(sp.root_multiplicities, dtype=float)
+    excess = float(np.sum((mult - 1) / mult))  # each distinct root is listed m times
+    return 1 + (sp.states - 1) * int(round(excess))
+
+
+def _defect_radius(sp: FreeSpectrum, scale: float, dimension: int, tol: float) -> float | None:
+    """How far a backward-stable eigensolver may spread a defective level (None if none).
+
+    ``4 scale (dimension eps)^(1/m)`` with m from :func:`_block_bound`: a perturbation of
+    relative size ``dimension eps`` moves an eigenvalue of a Jordan block of size m by about
+    its m-th root (Lidskii; common practice, an estimate).
+    """
+    if not sp.exceptional:
+        return None
+    m = _block_bound(sp)
+    rel = max(dimension * float(np.finfo(float).eps), 1e-300)
+    return max(tol, 4.0 * scale * rel ** (1.0 / m))
 
 
 # -- the whole report ---------------------------------------------------------------------------
@@ -1223,7 +1261,7 @@ def _term_shapes(m: Model) -> tuple[list[tuple[Any, ...]], np.ndarray]:
     phase = m.strings.phase.tolist()
     starts = np.zeros(len(m), dtype=np.int64)
     shapes: list[tuple[Any, ...]] = []
-    for t in range(len(m)):
+    for t in polled(range(len(m))):
         cx, cz = xi[xp[t] : xp[t + 1]], zi[zp[t] : zp[t + 1]]
         first = min(cx[:1] + cz[:1], default=0)
         starts[t] = first
@@ -1270,7 +1308,7 @@ def window_check(
     unit = independent_along(m, order)
     shapes, first = _term_shapes(m)
     kinds: dict[tuple[Any, ...], list[int]] = {}
-    for a in range(len(m) - width + 1):
+    for a in polled(range(len(m) - width + 1)):
         terms = order[a : a + width]
         base = int(first[terms].min())
         # equal keys: the same strings up to a shift of the columns, the same algebra
@@ -1551,6 +1589,16 @@ def routes_check(parts: _Parts) -> Check:
         f"{len(jw.sectors)} sector(s), {len(target)} quasi-energies: largest distance between "
         "the squares eta_k^2 of the two routes (matched one to one), extra Majorana modes zero"
     )
+    if poly.exceptional:
+        # the Majorana matrix is defective at a repeated root: its eigenvalues (by a
+        # backward-stable solver) carry errors of about (size eps)^(1/m) relative
+        top = int(np.max(poly.root_multiplicities))
+        size = 2 * len(m.sites)
+        tol = max(tol, 4.0 * scale * (size * float(np.finfo(float).eps)) ** (1.0 / top))
+        detail += (
+            f"; exceptional point (roots of multiplicity up to {top}): the Majorana matrix is "
+            f"defective, so its eigenvalues are compared within about (size eps)^(1/{top})"
+        )
     return Check(
         ROUTES,
         "floating point",

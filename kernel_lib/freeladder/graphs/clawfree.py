@@ -25,6 +25,7 @@ from typing import Any
 import networkx as nx
 import numpy as np
 
+from ..base.interrupt import poll, polled
 from ..base.jsonready import json_ready
 
 __all__ = [
@@ -61,6 +62,7 @@ def find_claw(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> tuple[i
     (0, 1, 2, 3)
     """
     for v in vertices:
+        poll()
         nbrs = sorted(adjacency[v])
         k = len(nbrs)
         if k < 3:
@@ -108,9 +110,11 @@ def find_simplicial_clique(
     """
     sub = nx.Graph()
     sub.add_nodes_from(vertices)
-    sub.add_edges_from((u, w) for u in vertices for w in adjacency[u] if u < w)
+    for u in polled(vertices):
+        sub.add_edges_from((u, w) for w in adjacency[u] if u < w)
     seen: set[frozenset[int]] = set()
     for clique in nx.find_cliques(sub):
+        poll()
         key = frozenset(clique)
         if key in seen:
             continue
@@ -150,7 +154,7 @@ def is_chordal(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> bool:
     buckets: list[set[int]] = [set(vertices)]
     visit: dict[int, int] = {}
     top = 0
-    for step in range(len(weight)):
+    for step in polled(range(len(weight))):
         while not buckets[top]:
             top -= 1
         v = buckets[top].pop()
@@ -164,7 +168,7 @@ def is_chordal(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> bool:
                 buckets.append(set())
             buckets[weight[w]].add(w)
             top = max(top, weight[w])
-    for v, t in visit.items():
+    for v, t in polled(visit.items()):
         earlier = [w for w in adjacency[v] if visit[w] < t]
         if len(earlier) < 2:
             continue
@@ -235,6 +239,8 @@ def find_even_hole(
         stack = [iter(sorted(w for w in adjacency[s] if w > s))]
         while stack:
             steps += 1
+            if steps % 1024 == 0:
+                poll()
             if steps > budget:
                 return HoleSearch(
                     False,

@@ -28,6 +28,7 @@ from typing import Any
 import networkx as nx
 
 from ..base.frozen import readonly_mapping
+from ..base.interrupt import poll
 from ..base.jsonready import json_ready
 
 __all__ = ["LineGraphRoot", "NotALineGraph", "line_graph_root"]
@@ -254,6 +255,7 @@ def _bfs_order(adjacency: Sequence[set[int]], start: int) -> list[int]:
     order = [start]
     queue = deque([start])
     while queue:
+        poll()
         u = queue.popleft()
         for w in sorted(adjacency[u] - seen):
             seen.add(w)

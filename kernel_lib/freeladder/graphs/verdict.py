@@ -49,6 +49,7 @@ from ..base import display
 from ..base import references as ref
 from ..base.cache import part
 from ..base.frozen import readonly_array, readonly_mapping
+from ..base.interrupt import polled
 from ..base.jsonready import json_ready
 from .clawfree import find_claw, find_even_hole, find_simplicial_clique
 from .graph import (
@@ -469,7 +470,8 @@ def VERDICT(m: Model) -> Verdict:
     if m.states == 2:
         groups.sort(key=lambda g: int(g[0]))
         neighbours = [
-            set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist()) for v in range(n_terms)
+            set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist())
+            for v in polled(range(n_terms))
         ]
         comps = []
         next_mode = 0

@@ -61,9 +61,10 @@ arbitrary-precision midpoint-radius interval arithmetic", IEEE Trans. Comput. 66
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from fractions import Fraction
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import flint
 import numpy as np
@@ -71,6 +72,11 @@ import numpy as np
 from ..base.lazy import njit, prange
 from .real import chain_root_count, check_chain_weights
 from .result import RootTable
+
+if TYPE_CHECKING:
+    import sympy
+else:
+    from ..base.lazy import sympy
 
 __all__ = ["certified_roots", "certify_chain_roots"]
 
@@ -650,16 +656,21 @@ def certified_roots(
     Raises
     ------
     ValueError
-        A coefficient that is not exact, the zero or a constant polynomial, a repeated root
-        of a polynomial with non-real coefficients, or roots that cannot be isolated within
+        A coefficient that is not exact, the zero or a constant polynomial, or roots that
+        cannot be isolated within
         ``max_precision`` bits (roots closer than about ``2**-max_precision`` relative); the
         message says which.
 
     Notes
     -----
     Rational coefficients are split into squarefree factors exactly (python-flint
-    ``fmpq_poly.factor_squarefree``), so multiplicities are found; each factor (or the
-    Gaussian-rational polynomial, which must be squarefree) goes to ``acb_poly.roots``, which
+    ``fmpq_poly.factor_squarefree``), so multiplicities are found.  Gaussian-rational
+    coefficients are first tested for squarefreeness modulo primes ``p = 1 mod 4`` (where
+    ``i`` is an integer mod p): a polynomial that keeps its degree and is squarefree mod p is
+    squarefree over Q(i) (a repeated factor would survive the reduction), which settles the
+    usual case in O(n^2) word operations; otherwise sympy splits it over Q(i) (``sqf_list``
+    on the Gaussian integers; seconds from degree about 40 with large coefficients).  Each
+    squarefree factor goes to ``acb_poly.roots``, which
     returns balls proved to be disjoint and to hold one root each, at a precision doubled
     until it succeeds.  The error bound of a value is an upper bound, computed in ball
     arithmetic, on the distance from the float64 value to any point of its ball.  Practical up
@@ -676,6 +687,8 @@ def certified_roots(
     >>> np.allclose(r.values.real, [(3 - 5**0.5) / 2, (3 + 5**0.5) / 2])
     True
     >>> certified_roots([1, -2, 1]).multiplicities  # (1 - y)**2
+    array([2])
+    >>> certified_roots([1, -2, 0], [0, -2, 2]).multiplicities  # (1 - (1 + i) y)**2
     array([2])
     """
     re_q = [_to_fmpq(c, j) for j, c in enumerate(coefficients)]
@@ -705,7 +718,7 @@ def certified_roots(
             for factor, exponent in flint.fmpq_poly(re_q).factor_squarefree()[1]
         ]
     else:
-        pieces = [(list(zip(re_q, im_q, strict=True)), 1)]
+        pieces = _gaussian_squarefree(re_q, im_q)
     mids: list[complex] = []
     radii: list[float] = []
     mult: list[int] = []
@@ -737,6 +750,57 @@ def certified_roots(
         indices=(np.cumsum(mult) - np.asarray(mult))[order],
         details={"precision": used},
     )
+
+
+# primes p = 1 mod 4 with a square root of -1 mod p, for the modular squarefree test
+_MODULAR = tuple(
+    (p, next(r for g in range(2, 64) if (r := pow(g, (p - 1) // 4, p)) * r % p == p - 1))
+    for p in (1_000_000_009, 998_244_353)
+)
+
+
+def _squarefree_mod(re_q: list[Any], im_q: list[Any], p: int, s: int) -> bool:
+    """True when ``sum (re + i im) y^k`` keeps its degree and is squarefree modulo ``p``, with
+    ``i = s`` (``s^2 = -1 mod p``): then it is squarefree over Q(i).  False proves nothing."""
+    coeffs = []
+    for a, b in zip(re_q, im_q, strict=True):
+        den = int(a.q) * int(b.q)
+        if den % p == 0:
+            return False
+        num = int(a.p) * int(b.q) + s * int(b.p) * int(a.q)
+        coeffs.append(num * pow(den, -1, p) % p)
+    if coeffs[-1] == 0:
+        return False
+    f = flint.nmod_poly(coeffs, p)
+    return bool(f.gcd(f.derivative()).degree() == 0)
+
+
+def _gaussian_squarefree(re_q: list[Any], im_q: list[Any]) -> list[tuple[Any, int]]:
+    """Squarefree factors over Q(i), each as ``[(re, im), ...]`` ascending, with multiplicity.
+
+    The modular test (:func:`_squarefree_mod`) answers "squarefree" in almost every case;
+    when two primes both fail it, sympy's ``sqf_list`` over the Gaussian integers splits the
+    polynomial exactly (denominators cleared first).
+    """
+    if any(_squarefree_mod(re_q, im_q, p, s) for p, s in _MODULAR):
+        return [(list(zip(re_q, im_q, strict=True)), 1)]
+    scale = 1
+    for c in (*re_q, *im_q):
+        scale = scale * int(c.q) // math.gcd(scale, int(c.q))
+    zz = sympy.ZZ_I
+    coeffs = [
+        zz(int(a.p) * (scale // int(a.q)), int(b.p) * (scale // int(b.q)))
+        for a, b in zip(re_q, im_q, strict=True)
+    ]
+    y = sympy.Symbol("y")
+    _, factors = sympy.Poly(coeffs[::-1], y, domain=zz).sqf_list()
+    out: list[tuple[Any, int]] = []
+    for factor, k in factors:
+        if factor.degree() < 1:
+            continue
+        asc = factor.rep.to_list()[::-1]
+        out.append(([(flint.fmpq(int(c.x)), flint.fmpq(int(c.y))) for c in asc], int(k)))
+    return out
 
 
 def _distance_bound(ball: Any, mid: complex) -> float:

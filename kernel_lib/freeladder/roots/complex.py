@@ -43,7 +43,13 @@ over all its pieces (pairwise sums only within a piece).  A root stops being upd
 correction is below ``4 u |x|``, or once ``|P|`` is below its estimated rounding error and
 the correction no longer shrinks; its position still enters the corrections of the others.
 Measured (tests/benchmarks/bench_complex.py): the whole costs 2.3 to 4.4 sweeps over all
-roots on random Z3 chains of 10^3 and 10^4 terms.
+roots on random Z3 chains of 10^3 and 10^4 terms.  When it ends with roots not converged or
+discs not isolated, the iteration is run once more from Aberth's classic start (all roots on
+one circle about the centroid): the divide and conquer can stall where pieces hand it equal
+starts on points at which the recurrence has zero ratios (the Ising chain at field i, whose
+partial weight sums cancel: up to 300 sites the restart converges, at 1000 it does not).
+Repeated roots (exceptional points) stall both; :func:`freeladder.roots.solve_chain` then
+solves the exact polynomial.
 
 Lowest roots: ``lowest=k`` wants the k smallest ``|x|`` (the k smallest ``|eta|``).  A circle
 ``|x| = rho`` holding j roots, k <= j <= 2k + 4 or so, is found by counting roots with the
@@ -645,6 +651,15 @@ def _leaf_start(ch: _Chain, lo: int, hi: int, d: int) -> np.ndarray:
     return centre + radius * np.exp(1j * (2 * np.pi * (np.arange(d) + 0.5) / d + 0.4))
 
 
+def _circle_start(ch: _Chain, n: int) -> np.ndarray:
+    """Aberth's classic start: n points on a circle about the centroid ``sum w / n`` of the
+    roots of ``Q`` (Vieta), of radius the largest ``|w|`` times the widest neighbourhood
+    (at least every ``|x|``: Gershgorin-like bound on the recurrence), angles offset."""
+    centre = ch.w.sum() / n
+    radius = float(ch.aw.max()) * (ch.width + 1)
+    return centre + radius * np.exp(1j * (2 * np.pi * (np.arange(n) + 0.5) / n + 0.4))
+
+
 def _all_roots(
     ch: _Chain, start: np.ndarray | None, max_iter: int, progress: ProgressCallback | None
 ) -> tuple[np.ndarray, np.ndarray, _Pieces, list[int], int, _Values]:
@@ -893,7 +908,8 @@ def aberth_chain_roots(
         returned roots: the backward error relative to the moduli of the monomials, tiny
         where these cancel strongly), ``max_newton_step`` (largest relative Newton
         correction ``|Q / (x Q')|`` at the returned roots: the residual in the root's own
-        scale), ``start``.
+        scale), ``start`` (given, divide and conquer, or one circle after the divide and
+        conquer stalled).
 
     Raises
     ------
@@ -966,6 +982,21 @@ def aberth_chain_roots(
     z, conv, pc, sweeps, evaluations, vals = _all_roots(ch, z0, max_iter, progress)
     evaluations += int((~vals.valid).sum())
     radius, newton, isolated = _radii(ch, z, pc, vals)
+    restarted = False
+    if z0 is None and not (np.all(conv) and np.all(isolated)):
+        # the divide and conquer can stall where pieces hand it equal starts on points at
+        # which the recurrence has zero ratios (partial sums of the weights that cancel, as
+        # in the Ising chain at field i); the classic start on one circle does not
+        circle = _circle_start(ch, n)
+        z2, conv2, pc2, sweeps2, evals2, vals2 = _all_roots(ch, circle, max_iter, progress)
+        evaluations += evals2 + int((~vals2.valid).sum())
+        radius2, newton2, isolated2 = _radii(ch, z2, pc2, vals2)
+        sweeps = sweeps + sweeps2
+        if np.all(conv2) and np.all(isolated2):
+            z, conv, pc, vals, radius, newton, isolated = (
+                z2, conv2, pc2, vals2, radius2, newton2, isolated2
+            )  # fmt: skip
+            restarted = True
     log_cond = vals.log_cond
     sort = np.lexsort((np.angle(z), np.abs(z)))
     ok = bool(np.all(conv) and np.all(isolated))
@@ -1006,7 +1037,11 @@ def aberth_chain_roots(
             "chain_steps": ch.steps,
             "max_residual": float(np.exp(-log_cond.min())),
             "max_newton_step": _max_step(vals.g, z),
-            "start": "given" if z0 is not None else "divide and conquer from single terms",
+            "start": "given"
+            if z0 is not None
+            else "one circle (the divide and conquer stalled)"
+            if restarted
+            else "divide and conquer from single terms",
         },
     )
 
@@ -1104,8 +1139,8 @@ def certified_complex_roots(
     Raises
     ------
     ValueError
-        For the zero polynomial, a repeated root of a polynomial with non-real coefficients,
-        or when flint cannot isolate the roots.
+        For the zero polynomial, or when flint cannot isolate the roots (repeated roots are
+        split off exactly and counted in ``multiplicities``).
 
     References
     ----------

@@ -32,16 +32,18 @@ from __future__ import annotations
 import dataclasses
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
+from fractions import Fraction
 from types import MappingProxyType
 from typing import Any, Literal
 
+import flint
 import numpy as np
 
 from ..algebra.model import Model
 from .certify import certified_roots, certify_chain_roots
 from .complex import aberth_chain_roots
-from .polynomial import exclusion_polynomial
-from .real import chain_back, chain_real_roots, fixed_reach
+from .polynomial import MAX_ROOT_DEGREE, exclusion_polynomial
+from .real import chain_back, chain_real_roots, chain_root_count, fixed_reach
 from .result import RootTable
 
 __all__ = [
@@ -55,6 +57,7 @@ __all__ = [
 ]
 
 _TINY = float(np.finfo(np.float64).tiny)
+_EPS = float(np.finfo(np.float64).eps)
 
 
 @dataclass(frozen=True)
@@ -296,12 +299,14 @@ def solve_chain(
             "(free_spectrum(model, method='certified'))"
         )
     dtype = float if real else complex
-    pieces = [
-        ROOT_METHODS[key].solve(
+    pieces = []
+    for idx, back in parts:
+        piece = ROOT_METHODS[key].solve(
             np.asarray(w[idx], dtype=dtype), back, states, lowest, cs[idx] if real else None
         )
-        for idx, back in parts
-    ]
+        if not piece.converged and not real:
+            piece = _exact_chain_roots(cs[idx], back, states, lowest, piece)
+        pieces.append(piece)
     found = pieces[0] if len(pieces) == 1 else _merged(pieces, lowest)
     if ROOT_METHODS[key].rigorous and not found.rigorous:
         raise ValueError(f"the chain roots could not be certified ({key}): {found.message}")
@@ -309,10 +314,93 @@ def solve_chain(
         raise ArithmeticError(
             f"the chain roots did not converge ({key}): {found.message}; no quasi-energy is "
             "returned rather than one with an unbounded error (allow_unconverged=True returns "
-            "the result, marked converged=False)"
+            "the result, marked converged=False). Repeated roots (an exceptional point of "
+            "complex couplings) stall the iteration; a component of degree up to "
+            f"{MAX_ROOT_DEGREE} is then solved exactly, larger ones are not"
         )
     found = dataclasses.replace(found, weight_log2=found.weight_log2 + weight_log2)
     return _unscaled(found)
+
+
+def _exact_chain_roots(
+    cs: np.ndarray, back: Any, states: int, lowest: int | None, failed: RootTable
+) -> RootTable:
+    """The roots of one component's exact polynomial, as reciprocal roots ``x`` (proved).
+
+    ``cs`` are the scaled couplings (exact binary fractions); the weights ``cs**states`` and
+    the recurrence ``P_k = P_{k-1} - y w_k P_{k-back[k]-1}`` run in Gaussian rationals
+    (pairs of python-flint ``fmpq_poly``).  ``failed`` is the iteration's result, returned
+    unchanged when the degree is above :data:`MAX_ROOT_DEGREE` or the isolation fails.
+    """
+    b = chain_back(back, cs.size)
+    degree = chain_root_count(cs.size, b)
+    if degree > MAX_ROOT_DEGREE:
+        return failed
+    zero = flint.fmpq_poly([0])
+    one = flint.fmpq_poly([1])
+    y = flint.fmpq_poly([0, 1])
+    history: list[tuple[Any, Any]] = []
+    for k, c in enumerate(complex(v) for v in cs):
+        u, v = flint.fmpq(1), flint.fmpq(0)
+        a, bb = Fraction(c.real), Fraction(c.imag)
+        cr = flint.fmpq(a.numerator, a.denominator)
+        ci = flint.fmpq(bb.numerator, bb.denominator)
+        for _ in range(int(states)):
+            u, v = u * cr - v * ci, u * ci + v * cr
+        prev = history[k - 1] if k >= 1 else (one, zero)
+        far = history[k - int(b[k]) - 1] if k - int(b[k]) - 1 >= 0 else (one, zero)
+        history.append(
+            (
+                prev[0] - y * (u * far[0] - v * far[1]),
+                prev[1] - y * (u * far[1] + v * far[0]),
+            )
+        )
+    re_p, im_p = history[-1]
+    size = max(re_p.degree(), im_p.degree()) + 1
+    re_c = [re_p[j] for j in range(size)]
+    im_c = [im_p[j] for j in range(size)]
+    try:
+        exact = certified_roots(re_c, im_c).repeated()
+    except ValueError:
+        return failed
+    if exact.count != degree or np.any(exact.values == 0):
+        return failed
+    yv = exact.values
+    r = exact.error_bounds
+    ay = np.abs(yv)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        x = 1.0 / yv
+        # |1/y - 1/y0| <= r / (|y0| (|y0| - r)), plus the rounding of 1/y0 (4 ulp)
+        bound = np.where(r < ay, r / (ay * (ay - r)), np.inf) + 4 * _EPS * np.abs(x)
+    order = np.lexsort((np.angle(x), np.abs(x)))
+    if lowest is not None:
+        order = order[: int(lowest)]
+    mult = exact.details["multiplicity"]
+    repeated = int(np.sum(mult > 1))
+    return RootTable(
+        values=x[order],
+        error_bounds=bound[order],
+        variable="x",
+        rigorous=True,
+        converged=True,
+        message=(
+            f"the iteration did not converge ({failed.message}); the exact polynomial of "
+            f"the couplings was solved instead: {exact.message}"
+            + (f", {repeated} listed values belong to repeated roots" if repeated else "")
+        ),
+        method="exact-certified",
+        evaluations=failed.evaluations,
+        count=degree,
+        sweeps=failed.sweeps,
+        indices=np.arange(order.size),
+        details={
+            "multiplicity": mult[order],
+            "precision": exact.details["precision"],
+            "polynomial": "exact chain polynomial of the couplings (Gaussian rationals; "
+            "the Aberth iteration did not converge)",
+            "iteration": failed.summary(),
+        },
+    )
 
 
 def _components(w: np.ndarray, reach: Any) -> list[tuple[np.ndarray, Any]]:
@@ -350,6 +438,7 @@ def _merged(pieces: list[RootTable], lowest: int | None) -> RootTable:
     """One result from the roots of independent pieces (their polynomial is the product)."""
     first = pieces[0]
     values = np.concatenate([p.values for p in pieces])
+    mult = np.concatenate([_listed_multiplicity(p) for p in pieces])
     bounds = np.concatenate([p.error_bounds for p in pieces])
     exponents = np.concatenate([p.exponents for p in pieces])
     with np.errstate(divide="ignore"):
@@ -369,14 +458,20 @@ def _merged(pieces: list[RootTable], lowest: int | None) -> RootTable:
         converged=all(p.converged for p in pieces),
         message=f"{len(pieces)} independent pieces (zero couplings or separate components): "
         + "; ".join(p.message for p in pieces if p.message),
-        method=first.method,
+        method=next((p.method for p in pieces if not p.rigorous), first.method),
         evaluations=sum(p.evaluations for p in pieces),
         count=count,
         sweeps=sum(p.sweeps for p in pieces),
         indices=np.arange(start, start + order.size, dtype=np.int64),
-        details={"pieces": len(pieces)},
+        details={"pieces": len(pieces), "multiplicity": mult[order]},
         exponents=exponents[order],
     )
+
+
+def _listed_multiplicity(found: RootTable) -> np.ndarray:
+    """Per listed value, the multiplicity of its root (``details["multiplicity"]``, else 1)."""
+    mult = found.details.get("multiplicity")
+    return np.ones(found.values.size, dtype=np.int64) if mult is None else np.asarray(mult)
 
 
 def _unscaled(found: RootTable) -> RootTable:

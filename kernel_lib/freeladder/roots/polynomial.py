@@ -46,6 +46,7 @@ from ..algebra.model import Model
 from ..base import display
 from ..base.cache import part
 from ..base.errors import TooLargeError
+from ..base.interrupt import poll, polled
 from ..base.jsonready import json_ready
 from ..base.scalars import exact_to_sympy, exact_value, to_fmpq, to_python_number, to_sympy
 from ..graphs.graph import ADJACENCY, chain_structure
@@ -939,17 +940,21 @@ def sum_rules(poly: ExclusionPolynomial, quasi_energies: Any) -> SumRules:
 
 
 # -- construction --------------------------------------------------------------------------------
-def _chain_sums(ring: _Ring, weights: Sequence[Any], reach: int) -> list[Any]:
+def _chain_sums(
+    ring: _Ring, weights: Sequence[Any], reach: int, top: int | None = None
+) -> list[Any]:
     """C_s of a chain from the recurrence ``I_k = I_{k-1} + x w_k I_{k-p-1}`` (``I = P(-x)``).
 
     Equal weights use the number of independent sets of size s of a path power,
-    ``C(M - p(s-1), s)``, times ``w^s``.
+    ``C(M - p(s-1), s)``, times ``w^s`` (only up to s = ``top`` when given).
     """
     size = len(weights)
     if size and all(w == weights[0] for w in weights):
         out: list[Any] = [1]
         power: Any = 1
-        for s in range(1, (size + reach) // (reach + 1) + 1):
+        last = (size + reach) // (reach + 1)
+        for s in range(1, (last if top is None else min(last, top)) + 1):
+            poll()
             power = _times(power, weights[0])
             out.append(_times(power, math.comb(size - reach * (s - 1), s)))
         while len(out) > 1 and out[-1] == 0:
@@ -958,6 +963,7 @@ def _chain_sums(ring: _Ring, weights: Sequence[Any], reach: int) -> list[Any]:
     one = ring.constant(1)
     window = [one] * (reach + 1)  # I_{k-1}, ..., I_{k-p-1}
     for wk in weights:
+        poll()
         new = window[0] + ring.monomial(wk) * window[reach]
         window = [new, *window[:reach]]
     return ring.exact_coefficients(window[0])
@@ -973,10 +979,11 @@ def _chain_head(ring: _Ring, weights: Sequence[Any], reach: int, order: int) -> 
     O(M order) exact operations instead of O(M S) for the whole polynomial.
     """
     if weights and all(w == weights[0] for w in weights):
-        return _chain_sums(ring, weights, reach)[: order + 1]
+        return _chain_sums(ring, weights, reach, order)
     one = ring.constant(1)
     window = [one] * (reach + 1)
     for wk in weights:
+        poll()
         new = _cut(window[0] + ring.monomial(wk) * window[reach], order)
         window = [new, *window[:reach]]
     return ring.exact_coefficients(window[0])
@@ -1094,7 +1101,7 @@ def POLYNOMIAL(m: Model) -> ExclusionPolynomial:
     """The part behind :func:`exclusion_polynomial`."""
     n = m.states
     weights: list[Any] = []
-    for j, c in enumerate(m.couplings):
+    for j, c in polled(enumerate(m.couplings)):
         if type(c) is float and math.isfinite(c):  # fast path: long chains of float couplings
             num, den = c.as_integer_ratio()
             weights.append(Fraction(num**n, den**n))

@@ -151,6 +151,7 @@ from typing import Any
 
 import numpy as np
 
+from ..base.interrupt import poll
 from ..base.lazy import njit, prange
 from .result import RootTable
 
@@ -167,7 +168,7 @@ __all__ = [
 _TINY = 2.0**-256  # a zero ratio becomes -_TINY
 _HUGE = 2.0**256  # |1 / r| is clamped here (the same device, for the derivatives)
 _BLOCK = 128
-_STEPS_PER_CALL = 2e8  # chain steps x points per compiled call: keeps Ctrl-C responsive
+_STEPS_PER_CALL = 5e7  # chain steps x points per compiled call: Ctrl-C and stop hooks act
 _PARALLEL_STEPS = 2e6  # below this, one core is faster than waking the thread pool
 _EPS = float(np.finfo(np.float64).eps)
 _SEED_WINDOW = 4096  # terms per window of the seeding cuttings (see _window_seeds)
@@ -746,6 +747,7 @@ class _Chain:
             np.empty(n),
         )
         for a, b, parallel in self._chunks(n):
+            poll()
             sweep = _sweep_parallel if parallel else _sweep_serial
             sweep(self.w, self.back, self.ring, x[a:b], deriv, *(o[a:b] for o in outs))
             if self.bar is not None:
@@ -756,6 +758,7 @@ class _Chain:
         n = xm.size
         outs = (np.empty(n, dtype=np.int64), np.empty(n), np.empty(n))
         for a, b, parallel in self._chunks(n):
+            poll()
             sweep = _wide_parallel if parallel else _wide_serial
             sweep(
                 self.wm,

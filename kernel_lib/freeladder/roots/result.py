@@ -25,6 +25,7 @@ cannot hold, unless asked to round it.
 
 from __future__ import annotations
 
+import dataclasses
 import warnings
 from collections.abc import Mapping
 from dataclasses import dataclass, field
@@ -86,7 +87,9 @@ class RootTable:
     multiplicities : numpy.ndarray of int64
         Per value, how many roots it stands for (all 1 unless an exact polynomial has a
         repeated root: then ``values`` lists each distinct root once, and
-        :meth:`repeated` lists it as often as it counts).
+        :meth:`repeated` lists it as often as it counts, recording per listed value the
+        multiplicity of its root in ``details["multiplicity"]``; :meth:`repeated_roots`
+        counts them either way).
     exponents : numpy.ndarray of int64
         Per value, a power of two: the root of the scaled problem is
         ``values[i] * 2**exponents[i]`` and its bound ``error_bounds[i] * 2**exponents[i]``
@@ -158,10 +161,16 @@ class RootTable:
             set_(self, name, int(getattr(self, name)))
 
     def repeated(self) -> RootTable:
-        """The same roots with each value listed as often as it counts (multiplicities all 1)."""
-        if np.all(self.multiplicities == 1):
-            return self
+        """The same roots with each value listed as often as it counts (multiplicities all 1).
+
+        ``details["multiplicity"]`` then gives, per listed value, the multiplicity of its root
+        (so a double root is listed twice, each time with 2).
+        """
         k = self.multiplicities
+        if np.all(k == 1):
+            return dataclasses.replace(
+                self, details=dict(self.details, multiplicity=np.ones(k.size, dtype=np.int64))
+            )
         return RootTable(
             values=np.repeat(self.values, k),
             error_bounds=np.repeat(self.error_bounds, k),
@@ -174,7 +183,7 @@ class RootTable:
             count=self.count,
             sweeps=self.sweeps,
             weight_log2=self.weight_log2,
-            details=dict(self.details),
+            details=dict(self.details, multiplicity=np.repeat(k, k)),
             exponents=np.repeat(self.exponents, k),
         )
 
@@ -303,6 +312,25 @@ class RootTable:
         eta_err = np.where(small, np.nextafter(eta_err, np.inf), eta_err)
         return eta, eta_err
 
+    def repeated_roots(self) -> dict[int, int]:
+        """Multiplicity -> number of distinct roots with it, for multiplicities above 1.
+
+        Read from ``multiplicities`` (each distinct root once) or, for a table that lists a
+        root as often as it counts, from ``details["multiplicity"]``.  Empty when every root
+        is simple (or nothing says otherwise).
+        """
+        listed = self.details.get("multiplicity")
+        if listed is not None and np.all(self.multiplicities == 1):
+            k = np.asarray(listed, dtype=np.int64)
+            weights = 1.0 / k  # a root of multiplicity m is listed m times
+        else:
+            k = self.multiplicities
+            weights = np.ones(k.size)
+        out: dict[int, int] = {}
+        for m in np.unique(k[k > 1]).tolist():
+            out[int(m)] = int(round(float(weights[k == m].sum())))
+        return out
+
     def summary(self) -> str:
         """One line: how many roots, method, convergence, and the largest relative bound."""
         with np.errstate(divide="ignore", invalid="ignore"):
@@ -310,6 +338,11 @@ class RootTable:
         worst = float(np.max(rel)) if rel.size else 0.0
         state = "converged" if self.converged else "NOT converged"
         wide = ""
+        repeated = self.repeated_roots()
+        if repeated:
+            wide += "; repeated roots (multiplicity: count) " + ", ".join(
+                f"{k}: {c}" for k, c in sorted(repeated.items())
+            )
         if np.any(self.exponents != 0):
             wide = "; values are mantissas times 2**exponents (roots beyond float64)"
         return (

@@ -14,6 +14,10 @@ from .charges import (
     charge_series,
     transfer_matrix,
 )
+from .circuits import (
+    CircuitAutocorrelation,
+    circuit_autocorrelation,
+)
 from .dynamics import (
     Autocorrelation,
     EdgeExpansion,
@@ -52,6 +56,11 @@ from .matching import (
     LevelMatch,
     match_levels,
 )
+from .sector_dynamics import (
+    SectorCorrelation,
+    sector_autocorrelation,
+    sector_two_point,
+)
 from .spectrum import (
     LEVEL_LIMIT,
     DensityOfStates,
@@ -68,6 +77,8 @@ from .thermo import (
 )
 
 __all__ = [
+    "CircuitAutocorrelation",
+    "circuit_autocorrelation",
     "Autocorrelation",
     "EdgeExpansion",
     "TwoPoint",
@@ -91,6 +102,7 @@ __all__ = [
     "LevelMatch",
     "LevelTable",
     "SPARSE_LIMIT",
+    "SectorCorrelation",
     "SectorSpectrum",
     "SectorStructure",
     "SpectrumProvenance",
@@ -110,6 +122,8 @@ __all__ = [
     "ladder_operators",
     "log_partition_function",
     "match_levels",
+    "sector_autocorrelation",
+    "sector_two_point",
     "sectors",
     "simplicial_cliques",
     "thermodynamics",

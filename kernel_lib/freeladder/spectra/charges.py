@@ -37,6 +37,7 @@ from ..algebra.operators import StringSum
 from ..algebra.printing import format_terms, format_terms_latex
 from ..algebra.strings import StringArray, WeylString
 from ..base.cache import part
+from ..base.interrupt import polled
 from ..base.jsonready import json_ready
 from ..graphs.graph import chain_structure
 from ..graphs.indifference import indifference_order
@@ -144,7 +145,7 @@ def _chain_counts(size: int, reach: int) -> tuple[int, ...]:
     """
     out = [1]
     value = 1
-    for s in range(1, (size + reach) // (reach + 1) + 1):
+    for s in polled(range(1, (size + reach) // (reach + 1) + 1), every=64):
         # C(n - p, s) = C(n, s - 1) * prod_{i<=p} (n - s + 1 - i) / (s * prod_{i<p} (n - i)),
         # with n = M - p(s - 2), the top of the previous binomial (common practice).
         n = size - reach * (s - 2)

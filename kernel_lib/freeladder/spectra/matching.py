@@ -112,7 +112,9 @@ def _value(v: complex) -> complex | float:
     return float(v.real) if v.imag == 0 else complex(v)
 
 
-def match_levels(free: Any, exact: ExactSpectrum, tol: float | None = None) -> LevelMatch:
+def match_levels(
+    free: Any, exact: ExactSpectrum, tol: float | None = None, *, cluster: float | None = None
+) -> LevelMatch:
     """Match free levels with exact levels, multiplicities included.
 
     Parameters
@@ -127,6 +129,15 @@ def match_levels(free: Any, exact: ExactSpectrum, tol: float | None = None) -> L
         compared.
     tol : float, optional
         Absolute tolerance; default ``1e-8 * max(1, max |E|) + exact.error_estimate``.
+    cluster : float, optional
+        For defective (non-diagonalizable) ``H``, at an exceptional point: values within
+        ``cluster`` chain into one level on each side, and each matched pair of levels is
+        compared by the mean of its eigenvalues (within ``tol``) and by its count.  A level
+        whose Jordan blocks have size up to m comes out of a backward-stable eigensolver
+        spread over about ``(eps |H|)^(1/m) |H|^(1 - 1/m)``, but the mean of the group is
+        as well-conditioned as a simple eigenvalue (the weighted mean of a lambda-group is
+        holomorphic in the perturbation: T. Kato, Perturbation Theory for Linear Operators,
+        Springer (1966), II.2.2).
 
     Returns
     -------
@@ -182,12 +193,24 @@ def match_levels(free: Any, exact: ExactSpectrum, tol: float | None = None) -> L
         order = np.argsort(np.real(free_all), kind="stable")
         free_all = free_all[order[: len(exact_all)]]
         compared = f"the lowest {len(exact_all)} eigenvalues (by real part)"
-    return _match(free_all, exact_all, tol, compared)
+    if cluster is not None:
+        cluster = float(cluster)
+        if not (np.isfinite(cluster) and cluster >= tol):
+            raise ValueError(f"cluster must be finite and >= tol ({tol}), got {cluster!r}")
+        compared += f", grouped within {display.bound_text(cluster)} and compared by group means"
+    return _match(free_all, exact_all, tol, compared, cluster)
 
 
-def _match(free_all: np.ndarray, exact_all: np.ndarray, tol: float, compared: str) -> LevelMatch:
-    f_centres, f_groups = _levels(free_all, tol)
-    e_centres, e_groups = _levels(exact_all, tol)
+def _match(
+    free_all: np.ndarray,
+    exact_all: np.ndarray,
+    tol: float,
+    compared: str,
+    cluster: float | None = None,
+) -> LevelMatch:
+    group = tol if cluster is None else cluster
+    f_centres, f_groups = _levels(free_all, group)
+    e_centres, e_groups = _levels(exact_all, group)
     left_e = [len(g) for g in e_groups]
     left_f = [len(g) for g in f_groups]
     matched, distance = 0, 0.0
@@ -196,7 +219,7 @@ def _match(free_all: np.ndarray, exact_all: np.ndarray, tol: float, compared: st
 
         tree = cKDTree(np.column_stack([e_centres.real, e_centres.imag]))
         dist, nearest = tree.query(
-            np.column_stack([f_centres.real, f_centres.imag]), distance_upper_bound=2 * tol
+            np.column_stack([f_centres.real, f_centres.imag]), distance_upper_bound=2 * group
         )
         for i, (d, j) in enumerate(zip(dist, nearest, strict=True)):
             if not np.isfinite(d):
@@ -207,6 +230,9 @@ def _match(free_all: np.ndarray, exact_all: np.ndarray, tol: float, compared: st
             left_f[i] -= take
             left_e[j] -= take
             matched += take
+            if cluster is not None:
+                distance = max(distance, float(abs(f_centres[i] - e_centres[j])))
+                continue
             gap_f = np.abs(f_groups[i][:, None] - e_groups[j][None, :]).min(axis=1).max()
             gap_e = np.abs(e_groups[j][:, None] - f_groups[i][None, :]).min(axis=1).max()
             distance = max(distance, float(gap_f), float(gap_e))

@@ -330,6 +330,12 @@ class FreeSpectrum:
         How the result was obtained, how accurate it is, and whether a theorem guarantees it
         (``provenance.guaranteed``).  A spectrum that is not guaranteed (returned only with
         ``free_spectrum(..., unproven=True)``) says NOT GUARANTEED wherever it prints.
+    root_multiplicities : ndarray of int64
+        Per quasi-energy, the multiplicity of its root in the polynomial that was solved (one
+        component's on the chain paths, the whole model's on the certified route, where equal
+        components also repeat roots).  All 1 unless roots coincide, as at an exceptional
+        point of complex couplings; such an ``eta`` is listed as often as it counts.
+        :attr:`exceptional` and :attr:`exceptional_note` say what follows.
     parity_constraints : tuple of (tuple of int, int)
         Jordan-Wigner sectors with a fixed Majorana parity (N = 2): positions in
         ``quasi_energies`` and the product ``prod_k (-1)^{s_k}`` every level has over them;
@@ -351,6 +357,7 @@ class FreeSpectrum:
         *,
         parity_constraints: Sequence[tuple[Sequence[int], int]] = (),
         log_quasi_energies: np.ndarray | None = None,
+        root_multiplicities: np.ndarray | None = None,
     ) -> None:
         if log_quasi_energies is None:
             with np.errstate(divide="ignore"):
@@ -358,6 +365,13 @@ class FreeSpectrum:
         roots_y, quasi_energies, error_bounds, log_quasi_energies = (
             readonly_array(a) for a in (roots_y, quasi_energies, error_bounds, log_quasi_energies)
         )
+        mult = (
+            np.ones(len(quasi_energies), dtype=np.int64)
+            if root_multiplicities is None
+            else np.asarray(root_multiplicities, dtype=np.int64)
+        )
+        if mult.shape != quasi_energies.shape[:1] or (mult.size and mult.min() < 1):
+            raise ValueError("root_multiplicities must be integers >= 1, one per quasi-energy")
         constraints = tuple((tuple(int(k) for k in ks), int(p)) for ks, p in parity_constraints)
         if constraints and int(states) != 2:
             raise ValueError("parity constraints are for N = 2 (Majorana sectors)")
@@ -375,6 +389,7 @@ class FreeSpectrum:
             complete=bool(complete),
             provenance=provenance,
             parity_constraints=constraints,
+            root_multiplicities=readonly_array(mult),
         )
 
     roots: np.ndarray
@@ -390,6 +405,51 @@ class FreeSpectrum:
     complete: bool
     provenance: SpectrumProvenance
     parity_constraints: tuple[tuple[tuple[int, ...], int], ...]
+    root_multiplicities: np.ndarray
+
+    @property
+    def exceptional(self) -> bool:
+        """True when ``P`` has a repeated root (an exceptional point of the couplings)."""
+        return bool(np.any(self.root_multiplicities > 1))
+
+    @property
+    def exceptional_note(self) -> str:
+        """What a repeated root means for the levels ('' when every root is simple).
+
+        At an exceptional point the levels are still the sums ``constant + sum_k omega^{s_k}
+        eta_k`` over the quasi-energies counted with multiplicity: the eigenvalues of ``H``
+        (with algebraic multiplicity) depend continuously on the couplings, the level formula
+        (Fendley 2019) is continuous in the roots, and it holds on the dense set of nearby
+        couplings where every root is simple, so it holds at the limit point too.  What fails
+        there is the eigenbasis: ``H`` is generally not diagonalizable (for reach 1 with
+        N = 2 a repeated root is a Jordan block of the Majorana matrix, which is an unreduced
+        tridiagonal matrix and so has one eigenvector per eigenvalue).
+
+        References
+        ----------
+        P. Fendley, J. Phys. A 52, 335002 (2019), arXiv:1901.08078 (the level formula);
+        T. Kato, Perturbation Theory for Linear Operators, Springer (1966), chapter II
+        (continuity of eigenvalues; exceptional points).
+        """
+        if not self.exceptional:
+            return ""
+        shown: list[int] = []
+        for k in np.nonzero(self.root_multiplicities > 1)[0].tolist():
+            near = 2 * self.error_bounds[k] + 1e-12 * max(1.0, abs(self.quasi_energies[k]))
+            if all(abs(self.quasi_energies[k] - self.quasi_energies[j]) > near for j in shown):
+                shown.append(k)
+        roots = ", ".join(
+            f"{display.number_text(self.quasi_energies[k])} (x{int(self.root_multiplicities[k])})"
+            for k in shown
+        )
+        return (
+            f"exceptional point: the exclusion polynomial has repeated roots, eta = {roots}; "
+            "the levels are the eigenvalues of H counted with multiplicity (the level formula "
+            "is continuous in the roots), but H need not be diagonalizable there (generally "
+            "it is not when the repeated root lies within one connected piece of the chain): "
+            "the eigenbasis may not exist, and floating-point eigenvalues of H are then only "
+            "accurate to about eps^(1/m) for a Jordan block of size m"
+        )
 
     @property
     def guaranteed(self) -> bool:
@@ -884,12 +944,16 @@ def free_spectrum(
         y_vals = np.asarray(true if found.variable == "y" else 1.0 / true, dtype=complex)
     if n == 2 and promise.proven and np.isrealobj(couplings) and np.iscomplexobj(eta):
         eta = _real_rooted(eta, eta_err)
+    listed = found.details.get("multiplicity")
+    mult = np.ones(len(eta), dtype=np.int64) if listed is None else np.asarray(listed)
     sort = np.argsort(log_eta, kind="stable")
     eta, eta_err, y_vals, log_eta = eta[sort], eta_err[sort], y_vals[sort], log_eta[sort]
+    mult = mult[sort]
     count = int(prov.pop("count", len(eta)))
     if lowest is not None:
         keep = int(lowest)
         eta, eta_err, y_vals, log_eta = eta[:keep], eta_err[:keep], y_vals[:keep], log_eta[:keep]
+        mult = mult[:keep]
     complete = len(eta) == count
     degeneracy, reason = _degeneracy(m, promise.proven, count)
     provenance = SpectrumProvenance(
@@ -920,6 +984,7 @@ def free_spectrum(
         complete,
         provenance,
         log_quasi_energies=log_eta,
+        root_multiplicities=mult,
     )
 
 
