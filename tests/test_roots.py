@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import dataclasses
 import json
+import threading
 import time
 from fractions import Fraction
 
@@ -641,3 +642,24 @@ def test_variable_reach_certified_goes_through_the_exact_polynomial():
         solve_chain(rng.uniform(0.3, 1.7, 5), back, 2, "certified")
     found = solve_chain(rng.uniform(0.3, 1.7, 5), back, 2)
     assert found.count == chain_root_count(5, back)
+
+
+def test_stop_hook_stops_the_window_seeds(monkeypatch):
+    # The seed windows run in worker threads: a stop hook of the calling thread must stop
+    # them too (freeladder.stop_when), and the windows must not run on after the call.
+    monkeypatch.setattr(real, "_SEED_WINDOW", 512)
+    monkeypatch.setattr(real, "_SEED_TERMS", 2048)
+    w = random_weights(6000, 61)
+    polls = []
+
+    def hook() -> bool:
+        polls.append(threading.current_thread().name)
+        return len(polls) > 1
+
+    before = threading.active_count()
+    with pytest.raises(fl.Interrupted), fl.stop_when(hook):
+        chain_real_roots(w, 2)
+    assert threading.active_count() == before
+    assert set(polls) == {threading.current_thread().name}  # asked in the calling thread only
+    full = chain_real_roots(w, 2)
+    assert full.converged and full.count == chain_root_count(6000, 2)

@@ -145,13 +145,14 @@ orderings).
 from __future__ import annotations
 
 import os
+import threading
 from collections.abc import Callable
-from concurrent.futures import ThreadPoolExecutor
+from concurrent.futures import ThreadPoolExecutor, wait
 from typing import Any
 
 import numpy as np
 
-from ..base.interrupt import poll
+from ..base.interrupt import poll, stop_when
 from ..base.lazy import njit, prange
 from .result import RootTable
 
@@ -1060,17 +1061,27 @@ def _window_seeds(chain: _Chain, rtol: float, bar: Any = None) -> tuple[np.ndarr
     spans = _windows(m, length, 0) + _windows(m, length, length // 2)
     workers = 1 if chain.serial else min(len(spans), os.cpu_count() or 1)
     if workers > 1:
+        cancel = threading.Event()  # the windows stop at their next poll once it is set
+
+        def run(a: int, b: int) -> tuple[np.ndarray, np.ndarray]:
+            with stop_when(cancel.is_set):
+                return _window_roots(chain, a, b, rtol)
+
         with ThreadPoolExecutor(workers) as pool:
-            jobs = [pool.submit(_window_roots, chain, a, b, rtol) for a, b in spans]
+            jobs = [pool.submit(run, a, b) for a, b in spans]
             try:
-                parts = []
                 for i, job in enumerate(jobs):
-                    parts.append(job.result())
+                    while not job.done():  # this thread's stop hook and Ctrl-C act meanwhile
+                        poll()
+                        wait([job], timeout=0.1)
                     if bar is not None:
                         bar.set_postfix_str(f"seeds from window {i + 1} of {len(spans)}")
-            finally:
+            except BaseException:
+                cancel.set()
                 for job in jobs:
                     job.cancel()
+                raise
+        parts = [job.result() for job in jobs]
     else:
         parts = [_window_roots(chain, a, b, rtol) for a, b in spans]
     pm = np.concatenate([p[0] for p in parts])
