@@ -636,3 +636,24 @@ def test_root_graph_cycles_match_networkx_cycle_basis() -> None:
             ring = [*cycle, cycle[0]]
             expected.append([graph.edges[u, v]["term"] for u, v in itertools.pairwise(ring)])
         assert root.cycles() == expected
+
+
+def test_claw_search_agrees_with_brute_force_on_small_and_large_neighbourhoods() -> None:
+    # neighbourhoods up to 12 vertices are searched triple by triple, larger ones by matrices:
+    # both against the brute force over all 4-subsets (networkx graphs)
+    from freeladder.graphs.clawfree import find_claw
+
+    rng = np.random.default_rng(11)
+    found = 0
+    for trial in range(60):
+        n = int(rng.integers(5, 18))
+        g = nx.gnp_random_graph(n, float(rng.uniform(0.3, 0.95)), seed=trial)
+        adjacency = [set(g[v]) for v in range(n)]
+        claw = find_claw(adjacency, list(range(n)))
+        assert (claw is not None) == brute_claw(g)
+        if claw is not None:
+            found += 1
+            centre, *leaves = claw
+            assert all(u in adjacency[centre] for u in leaves)
+            assert not any(b in adjacency[a] for a, b in itertools.combinations(leaves, 2))
+    assert 10 < found < 60

@@ -1,4 +1,5 @@
-"""``import freeladder`` leaves its heavy dependencies (sympy, numba, pandas) for first use.
+"""``import freeladder`` leaves its heavy dependencies (sympy, numba, pandas, networkx) for first
+use.
 
 Checked in a fresh interpreter with Python's own import log (``python -X importtime``, common
 practice); no timing is asserted (the machine's load decides that), only which modules load.
@@ -13,7 +14,7 @@ from pathlib import Path
 
 import freeladder
 
-HEAVY = ("sympy", "numba", "pandas")
+HEAVY = ("sympy", "numba", "pandas", "networkx")
 
 
 def _imported(code: str) -> set[str]:
@@ -51,3 +52,5 @@ def test_heavy_dependencies_load_on_use() -> None:
     )
     packages = {n.split(".")[0] for n in names}
     assert "sympy" in packages and "numba" in packages
+    graph = _imported("import freeladder as fl; fl.frustration_graph(fl.ising_chain(3))")
+    assert "networkx" in {n.split(".")[0] for n in graph}

@@ -1,16 +1,18 @@
 """Sparse exact diagonalization in the checks, and exponentially small modes on the sector route.
 
-References: scipy's ARPACK Lanczos (sparse eigenvalues); numpy dense diagonalization; mpmath
-50-digit arithmetic for the smallest singular value of the single-particle matrix of the open
-XY chain in a transverse field (E. Lieb, T. Schultz and D. Mattis, Ann. Phys. 16, 407 (1961):
-the single-particle energies are the singular values of that matrix).
+References: scipy's ARPACK Lanczos (sparse eigenvalues); numpy dense diagonalization;
+python-flint ball arithmetic at 170 bits (about 50 digits) for the smallest singular value of
+the single-particle matrix of the open XY chain in a transverse field (E. Lieb, T. Schultz and
+D. Mattis, Ann. Phys. 16, 407 (1961): the single-particle energies are the singular values of
+that matrix).  The 20-site ring (sector dimension 2^19) is timed in
+tests/benchmarks/bench_verify.py --sparse; here a 14-site ring takes the same sparse path.
 """
 
 from __future__ import annotations
 
-import mpmath
 import numpy as np
 import pytest
+from flint import arb, arb_mat, ctx
 
 import freeladder as fl
 from freeladder.checks import verification
@@ -31,11 +33,12 @@ def _xy_chain(sites: int) -> fl.Model:
     return fl.parse_model(" ".join(bonds + [f"- 0.6 Z{i}" for i in range(sites)]))
 
 
-def test_ground_sector_ladder_of_a_20_site_ring_matches_sparse_ed_in_that_sector() -> None:
-    m = _xy_ring(20)
+def test_ground_sector_ladder_of_a_14_site_ring_matches_sparse_ed_in_that_sector() -> None:
+    m = _xy_ring(14)
     check = verification.sector_lowest_check(m)
     assert check.passed, check.detail
-    assert "ground sector" in check.detail and "524288" in check.detail  # parity halves 2^20
+    assert "ground sector" in check.detail and "8192" in check.detail  # parity halves 2^14
+    assert "sparse" in check.detail  # beyond the dense limit: Lanczos in the sector
     # the same sector by hand: the ground level is the lowest eigenvalue overall here, and
     # the free ladder's second level is not the whole space's second (another sector's)
     sp = fl.free_spectrum(m, sector="ground")
@@ -77,28 +80,37 @@ def test_a_14_site_chain_is_checked_sparsely_when_asked() -> None:
     assert report.ok and lowest.passed and "16384" in lowest.detail
 
 
-def _smallest_singular_value_mpmath(sites: int) -> mpmath.mpf:
+def _smallest_singular_value_flint(sites: int) -> arb:
     """LSM's single-particle matrix N (H = -i sum a_j N_jk b_k) and its smallest singular
-    value by inverse iteration in 50-digit arithmetic."""
-    mpmath.mp.dps = 50
-    n = mpmath.matrix(sites, sites)
-    for j in range(sites):
-        n[j, j] = mpmath.mpf("-0.6")
-    for j in range(sites - 1):
-        n[j + 1, j] = mpmath.mpf("0.7")
-        n[j, j + 1] = mpmath.mpf("0.3")
-    inv = mpmath.inverse(n)
-    x = mpmath.matrix([1] * sites)
-    for _ in range(4):
-        x = inv * (inv.T * x)
-        x = x / mpmath.norm(x)
-    return mpmath.norm(n * x)
+    value by inverse iteration in 170-bit ball arithmetic (python-flint arb_mat)."""
+    old, ctx.prec = ctx.prec, 170
+    try:
+        n = arb_mat(sites, sites)
+        for j in range(sites):
+            n[j, j] = -arb(3) / 5
+        for j in range(sites - 1):
+            n[j + 1, j] = arb(7) / 10
+            n[j, j + 1] = arb(3) / 10
+        inv = n.inv()
+        x = arb_mat([[1]] * sites)
+
+        def norm(v: arb_mat) -> arb:
+            return sum((v[i, 0] ** 2 for i in range(v.nrows())), arb(0)).sqrt()
+
+        for _ in range(4):
+            x = inv * (inv.transpose() * x)
+            x = x * (1 / norm(x))
+        return norm(n * x)
+    finally:
+        ctx.prec = old
 
 
 def test_exponentially_small_edge_mode_is_resolved_on_the_sector_route() -> None:
     m = _xy_chain(100)
     sp = fl.free_spectrum(m, sector="ground")
-    want = float(_smallest_singular_value_mpmath(100))  # 1.90e-19 (the issue's value)
+    ball = _smallest_singular_value_flint(100)
+    want = float(ball.mid())  # 1.90e-19 (the issue's value)
+    assert float(ball.rad()) < 1e-12 * want
     assert want == pytest.approx(1.903e-19, rel=1e-3)
     assert sp.quasi_energies[0] == pytest.approx(want, rel=1e-12)
     assert sp.gap == pytest.approx(2 * want, rel=1e-12) and sp.gap > 0

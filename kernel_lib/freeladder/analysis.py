@@ -26,8 +26,6 @@ from __future__ import annotations
 from collections.abc import Hashable, Iterator, Mapping, Sequence
 from typing import TYPE_CHECKING, Any
 
-import networkx as nx
-
 from .algebra.model import Coupling, Model
 from .base.cache import part, store_of
 from .base.jsonready import json_ready
@@ -42,6 +40,12 @@ from .spectra.charges import ChargeStep, charge_counts, charge_series
 from .spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
 from .spectra.majorana import jordan_wigner_spectrum, sectors
 from .spectra.spectrum import FreeSpectrum, free_spectrum, refusal_text
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from .base.lazy import networkx as nx
+
 
 if TYPE_CHECKING:
     from .checks.verification import Report

@@ -258,6 +258,10 @@ class Model:
             raise ValueError(
                 f"the model has symbolic couplings ({names}); use m.subs({{...}}) first"
             )
+        if all(type(c) is float for c in self.couplings):  # fast path: plain floats
+            plain = np.array(self.couplings, dtype=float)
+            if np.all(np.isfinite(plain)):
+                return plain
         vals = np.array(
             [as_complex(c, f"term {j}") for j, c in polled(enumerate(self.couplings))],
             dtype=np.complex128,

@@ -690,6 +690,10 @@ def _components(v: Any) -> str:
     return f"{len(v.model)} terms, {n} component{'s' if n != 1 else ''}"
 
 
+_WITNESS_SHOWN = 12
+"""How many witness terms a verdict's display writes out (a longer witness is counted)."""
+
+
 def verdict_text(v: Any) -> str:
     """A verdict as text: the kind, its reasons, the witness and the guarantee."""
     lines = [f"Verdict: {v.kind}"]
@@ -706,7 +710,9 @@ def verdict_markdown(v: Any) -> str:
     lines += [f"* {r}" for r in v.reasons]
     if v.witness:
         lines += ["", "Witness terms:", ""]
-        lines += [f"* `[{j}]` `{text}`" for j, text in v.witness_terms()]
+        lines += [f"* `[{j}]` `{text}`" for j, text in v.witness_terms(_WITNESS_SHOWN)]
+        if len(v.witness) > _WITNESS_SHOWN:
+            lines.append(f"* ... ({len(v.witness)} terms in all)")
     lines += ["", f"Single polynomial gives the spectrum: {v.guarantee}"]
     return "\n".join(lines)
 
@@ -721,8 +727,10 @@ def verdict_html(v: Any) -> str:
     if v.witness:
         rows = "".join(
             f"<tr><td>{j}</td><td><code>{esc(text)}</code></td></tr>"
-            for j, text in v.witness_terms()
+            for j, text in v.witness_terms(_WITNESS_SHOWN)
         )
+        if len(v.witness) > _WITNESS_SHOWN:
+            rows += f"<tr><td colspan='2'>... ({len(v.witness)} terms in all)</td></tr>"
         parts.append(f"<table><tr><th>term</th><th>witness</th></tr>{rows}</table>")
     head = "proven" if v.guarantee.proven else "NOT GUARANTEED"
     parts.append(

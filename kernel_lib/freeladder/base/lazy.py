@@ -4,6 +4,9 @@
   that the library only tests against (``isinstance(x, sympy.Basic)``): while sympy has not been
   imported by anyone, no sympy object can exist, so those names give a stand-in class of which
   nothing is an instance (calling it loads sympy and calls the real class).
+* :data:`networkx` stands for the networkx module, imported on first attribute access (graphs
+  are built only when asked for); modules write ``from ..base.lazy import networkx as nx`` under
+  ``if not TYPE_CHECKING``.
 * :func:`njit` marks a function for numba: the first call of any marked function of a module
   imports numba, compiles every marked function of that module and puts the compiled versions
   in the module's namespace (so compiled code calling compiled code finds them), with
@@ -71,6 +74,21 @@ def _stand_in(name: str) -> type:
 
 
 sympy: Any = _LazySympy()
+
+
+class _LazyModule:
+    """A module imported on first attribute access (then kept as an attribute here)."""
+
+    def __init__(self, name: str) -> None:
+        self._name = name
+
+    def __getattr__(self, attr: str) -> Any:
+        value = getattr(importlib.import_module(self._name), attr)
+        setattr(self, attr, value)
+        return value
+
+
+networkx: Any = _LazyModule("networkx")
 
 prange = range
 

@@ -46,6 +46,7 @@ from tqdm.auto import tqdm
 
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
+from ..algebra.printing import format_terms
 from ..algebra.strings import StringArray
 from ..analysis import Analysis, analyze, sector_route
 from ..base import display
@@ -1250,29 +1251,35 @@ def power_sum_check(
     )
 
 
-def _term_shapes(m: Model) -> tuple[list[tuple[Any, ...]], np.ndarray]:
-    """Per term: its X and Z exponents by column relative to its first column, its phase; and
-    that first column."""
+def _term_shapes(m: Model) -> tuple[np.ndarray, np.ndarray]:
+    """Per term: an integer naming its shape (X and Z exponents by column relative to its
+    first column, and its phase; equal shapes get equal numbers), and that first column."""
     x, z = sps.csr_array(m.strings.x), sps.csr_array(m.strings.z)
     x.sort_indices()
     z.sort_indices()
-    xi, xv, xp = x.indices.tolist(), x.data.tolist(), x.indptr.tolist()
-    zi, zv, zp = z.indices.tolist(), z.data.tolist(), z.indptr.tolist()
-    phase = m.strings.phase.tolist()
-    starts = np.zeros(len(m), dtype=np.int64)
-    shapes: list[tuple[Any, ...]] = []
-    for t in polled(range(len(m))):
-        cx, cz = xi[xp[t] : xp[t + 1]], zi[zp[t] : zp[t + 1]]
-        first = min(cx[:1] + cz[:1], default=0)
-        starts[t] = first
-        shapes.append(
-            (
-                tuple((c - first, v) for c, v in zip(cx, xv[xp[t] : xp[t + 1]], strict=True)),
-                tuple((c - first, v) for c, v in zip(cz, zv[zp[t] : zp[t + 1]], strict=True)),
-                phase[t],
-            )
-        )
-    return shapes, starts
+    n = len(m)
+    support = sps.csr_array(abs(x) + abs(z))  # exponents are >= 0: the union of the columns
+    support.sort_indices()
+    rows = np.flatnonzero(np.diff(support.indptr))
+    first = np.zeros(n, dtype=np.int64)
+    first[rows] = support.indices[support.indptr[rows]]  # sorted: each row's smallest column
+    # terms with the same numbers of X and Z factors, side by side: one row of (column - first,
+    # exponent) pairs and the phase each, equal rows named once
+    cx, cz = np.diff(x.indptr), np.diff(z.indptr)
+    group = cx * (int(cz.max(initial=0)) + 1) + cz
+    by_group = np.argsort(group, kind="stable")
+    cuts = np.flatnonzero(np.diff(group[by_group])) + 1
+    shape = np.zeros(n, dtype=np.int64)
+    named = 0
+    for rows in polled(np.split(by_group, cuts) if n else []):
+        parts = [m.strings.phase[rows][:, None].astype(np.int64)]
+        for mat, count in ((x, int(cx[rows[0]])), (z, int(cz[rows[0]]))):
+            at = mat.indptr[rows][:, None] + np.arange(count)
+            parts += [mat.indices[at] - first[rows][:, None], mat.data[at].astype(np.int64)]
+        _, ids = np.unique(np.concatenate(parts, axis=1), axis=0, return_inverse=True)
+        shape[rows] = ids.ravel() + named
+        named += int(ids.max()) + 1
+    return shape, first
 
 
 def window_check(
@@ -1306,26 +1313,30 @@ def window_check(
     order, back = found
     width = min(len(m), 3 * (int(back.max()) + 1) + 1)
     unit = independent_along(m, order)
-    shapes, first = _term_shapes(m)
-    kinds: dict[tuple[Any, ...], list[int]] = {}
-    for a in polled(range(len(m) - width + 1)):
-        terms = order[a : a + width]
-        base = int(first[terms].min())
-        # equal keys: the same strings up to a shift of the columns, the same algebra
-        key: tuple[Any, ...] = tuple((int(first[t]) - base, shapes[t]) for t in terms)
-        if not unit:
-            key += (tuple(m.couplings[int(t)] for t in terms),)
-        kinds.setdefault(key, []).append(a)
-        if len(kinds) > MAX_WINDOW_KINDS:
-            raise CheckNotApplicable(
-                f"more than {MAX_WINDOW_KINDS} distinct windows of {width} terms"
-            )
+    shape, first = _term_shapes(m)
+    # one row per window: its terms' first columns relative to the window's smallest, their
+    # shapes (and, unless the strings are independent, their couplings); equal rows: the same
+    # strings up to a shift of the columns, the same algebra
+    windows = np.lib.stride_tricks.sliding_window_view(np.asarray(order, dtype=np.int64), width)
+    offsets = first[windows]
+    columns = [offsets - offsets.min(axis=1, keepdims=True), shape[windows]]
+    if not unit:
+        names: dict[Any, int] = {}
+        coupling_id = np.array([names.setdefault(c, len(names)) for c in m.couplings])
+        columns.append(coupling_id[windows])
+    _, first_start = np.unique(np.concatenate(columns, axis=1), axis=0, return_index=True)
+    if len(first_start) > MAX_WINDOW_KINDS:
+        raise CheckNotApplicable(f"more than {MAX_WINDOW_KINDS} distinct windows of {width} terms")
+    kinds = np.sort(first_start)  # each kind by its first window, in the order of the chain
     bad: list[tuple[int, int]] = []
     worst = 0.0
-    for done, starts in enumerate(kinds.values(), start=1):
-        terms = order[starts[0] : starts[0] + width]
+    poll()
+    for done, start in enumerate(polled(kinds.tolist(), every=1), start=1):
+        terms = order[start : start + width]
+        x, z = m.strings.x[terms], m.strings.z[terms]
+        used = np.union1d(sps.csr_array(x).indices, sps.csr_array(z).indices)  # sites renumbered
         strings = StringArray(
-            m.strings.x[terms], m.strings.z[terms], m.strings.phase[terms], m.states, m.sites
+            x[:, used], z[:, used], m.strings.phase[terms], m.states, [m.sites[c] for c in used]
         )
         couplings = [1] * width if unit else [m.couplings[int(t)] for t in terms]
         sub = Model(strings, couplings)
@@ -1334,7 +1345,7 @@ def window_check(
             zero, val = _residual(h.commutator(charge(sub, s)))
             worst = max(worst, val) if val == val else worst
             if not zero:
-                bad.append((starts[0], s))
+                bad.append((start, s))
         if progress is not None:
             progress(done, len(kinds))
     how = "unit couplings (independent strings)" if unit else "the model's couplings"
@@ -1693,5 +1704,10 @@ def _dim(m: Model) -> str:
 
 
 def _short(m: Model) -> str:
-    text = str(m)
+    """The model's text, cut to 120 characters (only the terms that show are written)."""
+    count = 0
+    text = format_terms([], m.constant)
+    while count < len(m) and len(text) <= 120:
+        count = min(len(m), 2 * count + 8)
+        text = format_terms([m.term(j) for j in range(count)], m.constant)
     return text if len(text) <= 120 else text[:117] + "..."

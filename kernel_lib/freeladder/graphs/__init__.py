@@ -37,6 +37,7 @@ from .indifference import (
 from .linegraph import (
     LineGraphRoot,
     NotALineGraph,
+    component_root,
     line_graph_root,
 )
 from .relations import (
@@ -98,6 +99,7 @@ __all__ = [
     "indifference_order",
     "is_chordal",
     "is_clique",
+    "component_root",
     "line_graph_root",
     "omega_power_text",
     "order_from_exponents",

@@ -20,13 +20,18 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-import networkx as nx
 import numpy as np
 
 from ..base.interrupt import poll, polled
 from ..base.jsonready import json_ready
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from ..base.lazy import networkx as nx
+
 
 __all__ = [
     "EXACT_HOLE_BUDGET",
@@ -39,6 +44,9 @@ __all__ = [
     "is_chordal",
     "is_clique",
 ]
+
+_SMALL_NEIGHBOURHOOD = 12
+"""Neighbourhoods up to this size are searched for a claw triple by triple (no matrices)."""
 
 EXACT_HOLE_LIMIT = 400
 """Components up to this many vertices get the large even-hole search budget."""
@@ -55,6 +63,8 @@ def find_claw(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> tuple[i
 
     For each centre the neighbourhood's non-adjacency matrix ``B`` is formed and a triangle of
     ``B`` (three pairwise non-adjacent neighbours) is read off ``B @ B * B``: O(n Delta^3).
+    Neighbourhoods of at most 12 vertices are searched triple by triple instead (the same first
+    triple, without the matrices' fixed cost).
 
     Examples
     --------
@@ -66,6 +76,11 @@ def find_claw(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> tuple[i
         nbrs = sorted(adjacency[v])
         k = len(nbrs)
         if k < 3:
+            continue
+        if k <= _SMALL_NEIGHBOURHOOD:
+            leaves3 = _first_independent_triple(adjacency, nbrs)
+            if leaves3 is not None:
+                return (int(v), *leaves3)
             continue
         index = {u: i for i, u in enumerate(nbrs)}
         apart = np.ones((k, k), dtype=np.int64)
@@ -82,6 +97,23 @@ def find_claw(adjacency: Sequence[set[int]], vertices: Sequence[int]) -> tuple[i
             c = int(np.nonzero(apart[i] * apart[j])[0][0])
             leaves = sorted((nbrs[i], nbrs[j], nbrs[c]))
             return (int(v), *leaves)
+    return None
+
+
+def _first_independent_triple(
+    adjacency: Sequence[set[int]], nbrs: list[int]
+) -> tuple[int, int, int] | None:
+    """The first (lexicographic in ``nbrs``) three pairwise non-adjacent vertices, or None."""
+    k = len(nbrs)
+    for i in range(k - 2):
+        near_i = adjacency[nbrs[i]]
+        for j in range(i + 1, k - 1):
+            if nbrs[j] in near_i:
+                continue
+            near_j = adjacency[nbrs[j]]
+            for c in range(j + 1, k):
+                if nbrs[c] not in near_i and nbrs[c] not in near_j:
+                    return (int(nbrs[i]), int(nbrs[j]), int(nbrs[c]))
     return None
 
 

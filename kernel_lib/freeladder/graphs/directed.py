@@ -18,15 +18,20 @@ for Weyl operators).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-import networkx as nx
 import numpy as np
 
 from ..algebra.model import Model
 from ..algebra.printing import format_terms, format_terms_latex
 from ..base.jsonready import json_ready
 from .graph import EXPONENTS
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from ..base.lazy import networkx as nx
+
 
 __all__ = ["DirectedFrustrationGraph", "directed_frustration_graph", "omega_power_text"]
 

@@ -23,9 +23,8 @@ F. C. Alcaraz and R. A. Pimenta, Phys. Rev. B 102, 121101(R) (2020), arXiv:2005.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-import networkx as nx
 import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
@@ -34,6 +33,12 @@ from ..algebra.model import Model
 from ..base.cache import part
 from ..base.frozen import readonly_array, readonly_sparse
 from ..base.jsonready import json_ready
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from ..base.lazy import networkx as nx
+
 
 __all__ = [
     "ChainStructure",

@@ -305,17 +305,42 @@ def order_from_exponents(ex: Any, states: int) -> IndifferenceOrder | None:
 
 
 def _bfs_levels(adj: sps.csr_array, sources: np.ndarray) -> np.ndarray:
-    """Distance of every vertex from the nearest of ``sources`` (one per component)."""
-    n = adj.shape[0]
-    hub = sps.csr_array(
-        (np.ones(len(sources), dtype=bool), (np.full(len(sources), n), sources)),
-        shape=(n + 1, n + 1),
-    )
+    """Distance of every vertex from the nearest of ``sources`` (one per component).
+
+    One breadth-first search from an extra vertex joined to every source; each vertex's depth
+    in the search tree then follows by pointer jumping (log of the depth rounds of array work).
+    """
+    n = int(adj.shape[0])
+    indptr = np.r_[adj.indptr, adj.indptr[-1] + len(sources)]
+    indices = np.r_[adj.indices, np.asarray(sources, dtype=adj.indices.dtype)]
     grown = sps.csr_array(
-        sps.block_diag((adj.astype(bool), sps.csr_array((1, 1), dtype=bool)), format="csr") + hub
+        (np.ones(len(indices), dtype=np.int8), indices, indptr), shape=(n + 1, n + 1)
     )
-    dist = csgraph.shortest_path(grown, unweighted=True, indices=n, directed=True)
-    return np.asarray(dist[:n] - 1, dtype=np.int64)
+    _order, pred = csgraph.breadth_first_order(grown, n, directed=True)
+    up = np.where(pred >= 0, pred, n).astype(np.int64)
+    up[n] = n
+    depth = (up != np.arange(n + 1)).astype(np.int64)
+    while True:
+        higher = up[up]
+        if np.array_equal(higher, up):
+            break
+        depth += depth[up]
+        up = higher
+    return depth[:n] - 1
+
+
+def _pattern(adj: sps.csr_array) -> sps.csr_array:
+    """The boolean pattern of the stored non-zero entries off the diagonal (the same
+    ``adj.astype(bool)`` with the diagonal set to False and zeros removed gives)."""
+    n = int(adj.shape[0])
+    rows = np.repeat(np.arange(n), np.diff(adj.indptr))
+    keep = (rows != adj.indices) & (adj.data != 0)
+    indptr = np.r_[0, np.cumsum(np.bincount(rows[keep], minlength=n))]
+    out = sps.csr_array(
+        (np.ones(int(keep.sum()), dtype=bool), adj.indices[keep], indptr), shape=adj.shape
+    )
+    out.sum_duplicates()
+    return out
 
 
 def _has_hole_component(adj: sps.csr_array) -> bool:
@@ -324,9 +349,7 @@ def _has_hole_component(adj: sps.csr_array) -> bool:
     Indifference graphs are chordal, so such a graph has no indifference ordering (common
     practice); rings of terms are told apart at once instead of by three LexBFS sweeps.
     """
-    sym = sps.csr_array(adj.astype(bool))
-    sym.setdiag(False)
-    sym.eliminate_zeros()
+    sym = _pattern(adj)
     n_comp, labels = csgraph.connected_components(sym, directed=False)
     degree = np.diff(sym.indptr)
     size = np.bincount(labels, minlength=n_comp)
@@ -360,9 +383,7 @@ def _quick_order(adj: sps.csr_array, states: int) -> IndifferenceOrder | None:
     n = int(adj.shape[0])
     if n == 0:
         return None
-    sym = sps.csr_array(adj.astype(bool))
-    sym.setdiag(False)
-    sym.eliminate_zeros()
+    sym = _pattern(adj)
     n_comp, labels = csgraph.connected_components(sym, directed=False)
     degree = np.diff(sym.indptr)
     # one start per component, then twice: the farthest vertex, of least degree

@@ -41,6 +41,7 @@ from fractions import Fraction
 
 import numpy as np
 import scipy.sparse as sps
+import scipy.sparse.csgraph as csgraph
 
 from ..algebra.model import Model
 from ..algebra.printing import format_terms
@@ -195,7 +196,11 @@ def find_relations(m: Model) -> Relations:
         lift = n // p
         for combo in _dependencies(*_entries(m.strings, p), len(m), p):
             terms = tuple(sorted(combo))
-            exps = tuple((combo[j] * lift) % n for j in terms)
+            values = set(combo.values())
+            if len(values) == 1:  # one coefficient throughout (always so for N = 2)
+                exps = ((values.pop() * lift) % n,) * len(terms)
+            else:
+                exps = tuple((combo[j] * lift) % n for j in terms)
             found.append(Relation(terms, exps, p))
     return Relations(tuple(found), n, tuple(primes))
 
@@ -250,6 +255,9 @@ def _dependencies(
     bounds = np.r_[starts, rows.size]
     by_lead = np.argsort(leading, kind="stable")
     if p == 2:
+        paired = _dependencies_paired(rows, cols, n_rows, by_lead, starts)
+        if paired is not None:
+            return out + paired
         return out + _dependencies_gf2(rows, cols, bounds, by_lead)
     # Each reduced row remembers only which pivots it subtracted; the combination of terms is
     # expanded only for the rows that vanish (carrying every combination along is quadratic on
@@ -303,6 +311,49 @@ def _expand(
                 heapq.heappush(pending, -q)
             coef[q] -= c * g
     return out
+
+
+def _dependencies_paired(
+    rows: np.ndarray, cols: np.ndarray, n_rows: int, by_lead: np.ndarray, starts: np.ndarray
+) -> list[dict[int, int]] | None:
+    """The GF(2) elimination's answer when no column holds more than two of the rows.
+
+    Join two rows when they share a column.  A set of rows sums to zero over GF(2) exactly when
+    it holds, with each row, every row joined to it, and no row with a column of its own: so
+    the relations are the connected components with no such column, one relation each (common
+    practice: the cycle space of a graph, here with rows as vertices and columns as edges).
+    Within a component the rows processed first are independent, so the elimination reaches
+    zero at the component's last row in ``by_lead`` order; the relations come in that order,
+    as the elimination gives them.  None when some column holds three or more rows.
+    """
+    counts = np.bincount(cols)
+    if counts.max(initial=0) > 2:
+        return None
+    order = np.argsort(cols, kind="stable")
+    c_sorted = cols[order]
+    r_sorted = rows[order]
+    pair = np.flatnonzero(c_sorted[1:] == c_sorted[:-1])
+    join = sps.csr_array(
+        (np.ones(len(pair), dtype=np.int8), (r_sorted[pair], r_sorted[pair + 1])),
+        shape=(n_rows, n_rows),
+    )
+    _n, labels = csgraph.connected_components(join, directed=False)
+    blocked = np.zeros(int(labels.max(initial=-1)) + 1, dtype=bool)
+    blocked[labels[rows[counts[cols] == 1]]] = True
+    present = np.zeros(n_rows, dtype=bool)
+    present[rows] = True
+    # the last row of each component in elimination order, and the order of those rows
+    lead_rows = rows[starts][by_lead]
+    last_at = np.full(len(blocked), -1, dtype=np.int64)
+    np.maximum.at(last_at, labels[lead_rows], np.arange(len(lead_rows)))
+    found = np.flatnonzero(~blocked & (last_at >= 0))
+    found = found[np.argsort(last_at[found], kind="stable")]
+    members = np.flatnonzero(present)
+    members = members[np.isin(labels[members], found)]
+    groups = members[np.argsort(labels[members], kind="stable")]
+    sizes = np.bincount(labels[members], minlength=len(blocked))
+    offsets = np.r_[0, np.cumsum(sizes)]
+    return [dict.fromkeys(groups[offsets[c] : offsets[c + 1]].tolist(), 1) for c in found.tolist()]
 
 
 def _dependencies_gf2(

@@ -35,9 +35,9 @@ from __future__ import annotations
 from collections import deque
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field, replace
-from typing import Any, Literal
+from types import MappingProxyType
+from typing import TYPE_CHECKING, Any, Literal
 
-import networkx as nx
 import numpy as np
 import scipy.sparse as sps
 import scipy.sparse.csgraph as csgraph
@@ -60,9 +60,15 @@ from .graph import (
     chain_structure,
 )
 from .indifference import IndifferenceOrder, order_from_exponents
-from .linegraph import LineGraphRoot, line_graph_root
+from .linegraph import LineGraphRoot, component_root
 from .relations import Relation, Relations, find_relations
 from .switching import DipathSwitching, dipath_from_exponents
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from ..base.lazy import networkx as nx
+
 
 __all__ = [
     "KINDS",
@@ -202,7 +208,9 @@ class ComponentVerdict:
 
     def __post_init__(self) -> None:
         def ints(values: Any) -> tuple[int, ...]:
-            return tuple(np.fromiter(values, dtype=np.int64).tolist())
+            if isinstance(values, np.ndarray):
+                return tuple(values.astype(np.int64).tolist())
+            return tuple(map(int, values))
 
         fix: dict[str, Any] = {
             "terms": ints(self.terms),
@@ -210,9 +218,11 @@ class ComponentVerdict:
             "witness": ints(self.witness),
             "cycles": tuple(ints(c) for c in self.cycles),
         }
-        if self.majorana_pairs is not None:
+        if self.majorana_pairs is not None and not isinstance(
+            self.majorana_pairs, MappingProxyType
+        ):  # a read-only mapping was normalised when it was made (LineGraphRoot, replace)
             fix["majorana_pairs"] = readonly_mapping(
-                {int(t): ints(ab) for t, ab in self.majorana_pairs.items()}
+                {int(t): (int(a), int(b)) for t, (a, b) in self.majorana_pairs.items()}
             )
         for name in ("simplicial_clique", "even_hole"):
             if getattr(self, name) is not None:
@@ -372,11 +382,14 @@ class Verdict:
         components = tuple(replace(c, guarantee=rebound(c.guarantee)) for c in self.components)
         return replace(self, model=m, components=components, guarantee=rebound(self.guarantee))
 
-    def witness_text(self) -> str:
-        """The witness terms in the model's text syntax, or an empty string."""
+    def witness_text(self, limit: int = _SHOWN_WITNESS) -> str:
+        """The witness terms in the model's text syntax, or an empty string.
+
+        At most ``limit`` terms are written; a longer witness ends with how many it holds.
+        """
         if not self.witness:
             return ""
-        return "; ".join(f"[{j}] {text}" for j, text in self.witness_terms())
+        return _witness_text(self.model, self.witness, limit)
 
     def __repr__(self) -> str:
         return (
@@ -384,9 +397,10 @@ class Verdict:
             f"components={len(self.components)}, witness={self.witness!r})"
         )
 
-    def witness_terms(self) -> list[tuple[int, str]]:
-        """The witness terms as ``(index, text)`` pairs (empty when there is no witness)."""
-        return [(j, _term_text(self.model, j)) for j in self.witness]
+    def witness_terms(self, limit: int | None = None) -> list[tuple[int, str]]:
+        """The witness terms as ``(index, text)`` pairs (empty when there is no witness);
+        only the first ``limit`` when it is given."""
+        return [(j, _term_text(self.model, j)) for j in self.witness[:limit]]
 
     # -- display (freeladder.base.display) ----------------------------------------------------
     def __str__(self) -> str:
@@ -469,27 +483,27 @@ def VERDICT(m: Model) -> Verdict:
     groups = np.split(order, np.cumsum(np.bincount(labels, minlength=n_comp))[:-1])
     if m.states == 2:
         groups.sort(key=lambda g: int(g[0]))
-        neighbours = [
-            set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist())
-            for v in polled(range(n_terms))
-        ]
+        neighbours: list[set[int]] = []  # filled only when a component is not a line graph
         comps = []
         next_mode = 0
         for g in groups:
-            comp, next_mode = _pauli_component(m, neighbours, [int(v) for v in g], next_mode)
+            comp, next_mode = _pauli_component(m, adj, neighbours, g, next_mode)
             comps.append(comp)
         whole_chain = chain_structure(m) if n_comp == 1 else None
         if whole_chain is not None:
             comps[0] = _with_chain(comps[0], whole_chain)
     else:
         ex = EXPONENTS(m)
-        grouped = sps.csr_array(ex[order][:, order])
-        grouped.sort_indices()
+        if n_comp == 1:  # one component: the terms are already in order
+            grouped = ex
+        else:
+            grouped = sps.csr_array(ex[order][:, order])
+            grouped.sort_indices()
         comps = []
         start = 0
         for g in groups:
             block = _diagonal_block(grouped, start, start + len(g))
-            comps.append(_clock_component(m, [int(v) for v in g], block))
+            comps.append(_clock_component(m, g.tolist(), block))
             start += len(g)
         comps.sort(key=lambda c: c.terms[0])
     return _combine(m, comps, find_relations(m))
@@ -731,11 +745,11 @@ def _cycles_of_core(pairs: Mapping[int, tuple[int, int]]) -> tuple[int, ...] | N
     if len(even) > 1:
         return None
     ring = core[labels[ends[core, 0]] == even[0]]
-    return tuple(sorted(int(t) for t in terms[ring]))
+    return tuple(np.sort(terms[ring]).tolist())
 
 
 def _refusal(m: Model, reference: str, reason: str, witness: Sequence[int]) -> Guarantee:
-    terms = tuple(int(j) for j in witness)
+    terms = tuple(map(int, witness))
     return Guarantee(False, "", reference, reason, terms, _witness_text(m, terms))
 
 
@@ -755,9 +769,9 @@ def _with_relation(m: Model, base: Guarantee, touching: Sequence[Relation]) -> G
     )
 
 
-def _witness_text(m: Model, terms: tuple[int, ...]) -> str:
-    text = "; ".join(f"[{j}] {_term_text(m, j)}" for j in terms[:_SHOWN_WITNESS])
-    return text + ("; ..." if len(terms) > _SHOWN_WITNESS else "")
+def _witness_text(m: Model, terms: tuple[int, ...], limit: int = _SHOWN_WITNESS) -> str:
+    text = "; ".join(f"[{j}] {_term_text(m, j)}" for j in terms[:limit])
+    return text + (f"; ... ({len(terms)} terms in all)" if len(terms) > limit else "")
 
 
 def _with_guarantees(
@@ -804,12 +818,23 @@ def _whole_guarantee(comps: Sequence[ComponentVerdict]) -> Guarantee:
 
 
 def _pauli_component(
-    m: Model, adjacency: list[set[int]], terms: list[int], first_mode: int
+    m: Model,
+    adj: sps.csr_array,
+    adjacency: list[set[int]],
+    group: np.ndarray,
+    first_mode: int,
 ) -> tuple[ComponentVerdict, int]:
+    """Classify one component; ``adjacency`` (neighbour sets) is filled on first need."""
+    terms = group.tolist()
     key = tuple(terms)
-    root = line_graph_root(adjacency, terms)
+    root = component_root(adj, group)
     if isinstance(root, LineGraphRoot):
         return _jordan_wigner(key, root, first_mode), first_mode + root.n_modes
+    if not adjacency:
+        adjacency.extend(
+            set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist())
+            for v in polled(range(adj.shape[0]))
+        )
     not_line = (
         f"It is not a line graph: term {root.term} ({_string_text(m, root.term)}) and its "
         f"non-commuting partners among the terms placed before it ({_list(root.partners)}) "
@@ -874,7 +899,9 @@ def _pauli_component(
 
 
 def _jordan_wigner(key: tuple[int, ...], root: LineGraphRoot, first_mode: int) -> ComponentVerdict:
-    pairs = {t: (a + first_mode, b + first_mode) for t, (a, b) in root.pairs.items()}
+    pairs = root.pairs
+    if first_mode:
+        pairs = {t: (a + first_mode, b + first_mode) for t, (a, b) in pairs.items()}
     cycles = tuple(tuple(c) for c in root.cycles())
     reasons = [
         f"The frustration graph is the line graph of a root graph with {root.n_modes} vertices "
@@ -913,7 +940,7 @@ def _clock_component(m: Model, terms: list[int], sub: sps.csr_array) -> Componen
     oriented = order_from_exponents(sub, m.states)
     if oriented is not None:
         order = IndifferenceOrder(
-            tuple(int(idx[j]) for j in oriented.order),
+            tuple(idx[np.asarray(oriented.order, dtype=np.int64)].tolist()),
             oriented.first_neighbour,
             oriented.exponent,
             m.states,
@@ -928,8 +955,15 @@ def _clock_component(m: Model, terms: list[int], sub: sps.csr_array) -> Componen
     dipath = dipath_from_exponents(sub, m.states, terms)
     if dipath.as_written:
         local, why = _clock_obstruction(sub, m.states)
-        witness = tuple(int(idx[j]) for j in local)
-        not_free = why.format(*(f"{j} ({_string_text(m, j)})" for j in witness))
+        witness = tuple(idx[np.asarray(local, dtype=np.int64)].tolist())
+        named = [f"{j} ({_string_text(m, j)})" for j in witness[:_SHOWN_WITNESS]]
+        if why.count("{}") == len(witness):
+            not_free = why.format(*named)
+        else:  # one place for a list of terms, summarised when long
+            more = len(witness) - len(named)
+            not_free = why.format(
+                ", ".join(named) + (f", ... ({len(witness)} terms in all)" if more else "")
+            )
         text = (
             "The frustration graph is claw-free and its exponents form a dipath orientation "
             "(along every induced path a - v - b, g_a g_v = omega^m g_v g_a and g_v g_b = "
@@ -1064,7 +1098,8 @@ def _clock_obstruction(ex: sps.csr_array, n: int) -> tuple[tuple[int, ...], str]
     Checked in turn: a pair whose exponent is not +-1; a triangle with cyclic orientation; a term
     with two partners of the same orientation that commute with each other; a directed cycle.
     ``ex`` holds the exponents of the component's terms (numbered 0 .. M-1), N = ``n``.  The
-    sentence has one ``{}`` per witness term.
+    sentence has one ``{}`` per witness term, or (for a cycle of any length) one ``{}`` for
+    the list of them.
     """
     size = int(ex.shape[0])
     rows = np.repeat(np.arange(size), np.diff(ex.indptr))
@@ -1114,8 +1149,8 @@ def _clock_obstruction(ex: sps.csr_array, n: int) -> tuple[tuple[int, ...], str]
         )
     terms = tuple(int(u) for u, _ in cycle)
     return terms, (
-        "Terms " + ", ".join("{}" for _ in terms) + " form a cycle of omega-orientations "
-        "(each fails to commute with the next by omega), so no ordering of the terms exists."
+        "Terms {} form a cycle of omega-orientations (each fails to commute with the next by "
+        "omega), so no ordering of the terms exists."
     )
 
 
@@ -1170,6 +1205,6 @@ def _term_text(m: Model, j: int) -> str:
 
 
 def _list(values: Any, limit: int = 10) -> str:
-    vals = [int(v) for v in values]
-    text = ", ".join(str(v) for v in vals[:limit])
+    vals = list(values)
+    text = ", ".join(str(int(v)) for v in vals[:limit])
     return text + (", ..." if len(vals) > limit else "")

@@ -285,6 +285,7 @@ class ExclusionPolynomial:
     _chain: tuple[tuple[Any, ...], int, tuple[int, ...]] | None
     _degree: int | None
     _truncated_at: int | None
+    _targets: tuple[Any, Any, int] | None
 
     def __init__(
         self,
@@ -308,6 +309,7 @@ class ExclusionPolynomial:
         put(self, "_chain", chain)
         put(self, "_degree", degree)
         put(self, "_truncated_at", truncated_at)
+        put(self, "_targets", None)
 
     def __setattr__(self, name: str, value: Any) -> None:
         raise AttributeError(
@@ -348,6 +350,27 @@ class ExclusionPolynomial:
                     object.__setattr__(self, "_sums", tuple(self._sums_source()))
         assert self._sums is not None
         return self._sums
+
+    @property
+    def _sum_rule_targets(self) -> tuple[Any, Any, int]:
+        # C_1, C_1^2 - 2 C_2 (exact) and e ~ log2 of the largest weight: kept once computed
+        # (the spectrum's residuals and verify's sum rules both read them).  Computed outside
+        # the lock, which _exact_sums takes; two threads at worst both compute the same values.
+        targets = self._targets
+        if targets is None:
+            t1, t2 = _exact_targets(self)
+            e = max(
+                (
+                    v.numerator.bit_length() - v.denominator.bit_length()
+                    for w in self._exact_weights
+                    for v in (w if isinstance(w, tuple) else (w,))
+                    if v != 0
+                ),
+                default=0,
+            )
+            targets = (t1, t2, e)
+            object.__setattr__(self, "_targets", targets)
+        return targets
 
     @property
     def degree(self) -> int:
@@ -863,7 +886,7 @@ def power_sum_targets(poly: ExclusionPolynomial) -> tuple[Any, Any]:
     """
     if not isinstance(poly, ExclusionPolynomial):
         raise TypeError(f"expected an ExclusionPolynomial, got {type(poly).__name__}")
-    t1, t2 = _exact_targets(poly)
+    t1, t2, _ = poly._sum_rule_targets
     return exact_to_sympy(t1), exact_to_sympy(t2)
 
 
@@ -908,18 +931,9 @@ def sum_rules(poly: ExclusionPolynomial, quasi_energies: Any) -> SumRules:
     if poly.kind == "symbolic":
         raise TypeError("sum rules are checked numerically; substitute the couplings first")
     eta = np.asarray(quasi_energies, dtype=complex).ravel()
-    t1, t2 = _exact_targets(poly)
-    n = poly.states
     # e ~ log2 of the largest weight (within 1: only a common scale is needed).
-    e = max(
-        (
-            v.numerator.bit_length() - v.denominator.bit_length()
-            for w in poly._exact_weights
-            for v in (w if isinstance(w, tuple) else (w,))
-            if v != 0
-        ),
-        default=0,
-    )
+    t1, t2, e = poly._sum_rule_targets
+    n = poly.states
     with np.errstate(over="ignore", under="ignore"):
         x = (eta * np.exp2(-e / n)) ** n  # eta^N / 2^e
     sums, residuals = [], []

@@ -43,11 +43,10 @@ import bisect
 import itertools
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import flint
 import mpmath
-import networkx as nx
 import numpy as np
 import scipy.sparse
 import scipy.sparse.csgraph
@@ -60,6 +59,12 @@ from ..base.frozen import readonly_array, readonly_mapping
 from ..base.jsonready import json_ready
 from ..base.references import KITAEV_2006, LIEB_1994
 from ..graphs.verdict import classify
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from ..base.lazy import networkx as nx
+
 
 __all__ = [
     "FluxSector",

@@ -56,9 +56,8 @@ from __future__ import annotations
 import dataclasses
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-import networkx as nx
 import numpy as np
 import scipy.linalg
 
@@ -69,6 +68,11 @@ from ..base.frozen import readonly_array
 from ..base.jsonready import json_ready
 from . import majorana as mj
 from .dynamics import _as_string, _check_times
+
+if TYPE_CHECKING:
+    import networkx as nx
+else:
+    from ..base.lazy import networkx as nx
 
 __all__ = ["SectorCorrelation", "sector_autocorrelation", "sector_two_point"]
 
