@@ -25,7 +25,7 @@ from .analysis import Analysis, analyze
 from .base.errors import NotExpandableError, NoTheoremError
 from .base.interrupt import Interrupted, stop_when
 from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
-from .checks.verification import Check, Report, verify
+from .checks.verification import Check, Report, same_sector_check, verify
 from .graphs.directed import DirectedFrustrationGraph, directed_frustration_graph
 from .graphs.graph import (
     ChainStructure,
@@ -67,7 +67,13 @@ from .spectra.dynamics import (
     edge_expansion,
     two_point,
 )
-from .spectra.ed import ExactSpectrum, exact_spectrum, sector_exact_spectrum, sparse_memory
+from .spectra.ed import (
+    ExactSpectrum,
+    exact_spectrum,
+    sector_dimension,
+    sector_exact_spectrum,
+    sparse_memory,
+)
 from .spectra.edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
 from .spectra.majorana import (
     FluxSector,
@@ -174,6 +180,7 @@ __all__ = [
     "log_partition_function",
     "thermodynamics",
     "exact_spectrum",
+    "sector_dimension",
     "sector_exact_spectrum",
     "sparse_memory",
     "Model",
@@ -197,6 +204,7 @@ __all__ = [
     "sector_autocorrelation",
     "sector_two_point",
     "ladder_operators",
+    "same_sector_check",
     "stop_when",
     "verify",
     "LevelMatch",

@@ -37,7 +37,7 @@ from .roots.polynomial import ExclusionPolynomial, exclusion_polynomial
 from .roots.result import RootTable
 from .spectra.answer import SectorRow, SpectrumAnswer
 from .spectra.charges import ChargeStep, charge_counts, charge_series
-from .spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
+from .spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum, sector_exact_spectrum
 from .spectra.majorana import jordan_wigner_spectrum, sectors
 from .spectra.spectrum import FreeSpectrum, free_spectrum, refusal_text
 
@@ -92,6 +92,13 @@ def _spectrum(
 @part("exact spectrum", "couplings")
 def _exact(m: Model) -> ExactSpectrum:
     return exact_spectrum(m)
+
+
+@part("sector exact levels", "couplings")
+def _sector_exact(m: Model, values: tuple[int, ...], k: int) -> ExactSpectrum:
+    gens = sectors(m).cycle_operators if values else ()
+    fixed = [(g, int(v)) for g, v in zip(gens, values, strict=True) if g.support]
+    return sector_exact_spectrum(m, k, fixed)
 
 
 @part("answer", "couplings")
@@ -334,6 +341,18 @@ class Analysis:
         if self.model.is_symbolic or self.model.dimension > DENSE_LIMIT:
             return None
         return _exact(self.model)
+
+    def sector_exact(self, cycle_values: Sequence[int] = (), k: int = 8) -> ExactSpectrum:
+        """The ``k`` lowest eigenvalues of H where the conserved cycle strings
+        (``cycle_operators`` of :func:`freeladder.sectors`) have ``cycle_values``; the whole
+        space for ``()`` (:func:`freeladder.sector_exact_spectrum`), kept per arguments.
+
+        Raises
+        ------
+        TooLargeError
+            When the solve would need more memory than is available.
+        """
+        return _sector_exact(self.model, tuple(int(v) for v in cycle_values), int(k))
 
     def report(self, **options: Any) -> Report:
         """The :func:`freeladder.verify` report, kept per set of options (a report cut short by

@@ -27,6 +27,7 @@ import numpy as np
 
 from ..algebra.model import Model
 from ..algebra.printing import format_terms, format_terms_latex
+from ..algebra.strings import WeylString
 from ..algebra.syntax import parse_model
 from ..analysis import Analysis, analyze
 from ..base import display
@@ -37,6 +38,7 @@ from ..graphs.graph import ADJACENCY
 from ..spectra.answer import SpectrumAnswer
 from ..spectra.charges import transfer_matrix
 from ..spectra.ed import ExactSpectrum
+from ..spectra.majorana import sectors
 from ..spectra.spectrum import FreeSpectrum
 
 __all__ = ["STEPS", "Cell", "WorkedCalculation", "worked_calculation"]
@@ -466,7 +468,7 @@ def _collect(a: Analysis) -> _Facts:
     inversion: bool | None = None
     if m.dimension <= DENSE_LIMIT and sum(counts) <= DENSE_SETS:
         inversion = _dense_inversion(m, poly)
-    dense = a.exact
+    dense = a.exact if m.dimension <= DENSE_LIMIT else None
     return _Facts(
         m,
         a.verdict,
@@ -527,11 +529,18 @@ def _intro(f: _Facts) -> list[Cell]:
 def _imports(cells: Sequence[Cell]) -> str:
     """The imports the code cells use, and only those (lint-clean exports)."""
     code = "\n".join(c.source for c in cells if c.kind == "code")
-    lines = ["import hashlib"] if "hashlib." in code else []
+    lines = ["import functools"] if "functools." in code else []
+    if "hashlib." in code:
+        lines.append("import hashlib")
     if "Fraction(" in code:
         lines.append("from fractions import Fraction")
-    if "np." in code:
-        lines += ["", "import numpy as np"]
+    third = ["import numpy as np"] if "np." in code else []
+    if "sps." in code:
+        third.append("import scipy.sparse as sps")
+    if "eigsh(" in code:
+        third.append("from scipy.sparse.linalg import LinearOperator, eigsh")
+    if third:
+        lines += ["", *third]
     lines += ["", "import freeladder as fl"]
     if "NoTheoremError" in code:
         lines.append("from freeladder.base.errors import NoTheoremError")
@@ -810,12 +819,23 @@ SHOWN_EXACT = 4
 """How many of the lowest exact levels are exported."""
 
 
+SPARSE_EXPORT_DIMENSION = 2**16
+"""Largest dimension for which the exported cells diagonalise the Hamiltonian themselves
+(scipy's Lanczos on a matrix of the whole space built in the cell from Kronecker products)."""
+
+SPARSE_EXPORT_LEVELS = 10
+"""How many lowest eigenvalues that cell asks Lanczos for (4 distinct levels and one more
+when each is twofold)."""
+
+
 def _exact_cells(f: _Facts) -> list[Cell]:
     """The lowest levels of exact diagonalization, asserted: they move with any coupling,
-    also where the charges and the polynomial see only the couplings' N-th powers."""
+    also where the charges and the polynomial see only the couplings' N-th powers.  Above
+    dimension :data:`DENSE_LIMIT`, a cell that builds H and the sector itself, without
+    freeladder, and compares its lowest levels with the free ones."""
     ed = f.exact
     if ed is None:
-        return []
+        return _sparse_exact_cells(f)
     shown = min(SHOWN_EXACT, len(ed.levels))
     levels = [complex(v) for v in ed.levels[:shown]]
     mults = [int(d) for d in ed.multiplicities[:shown]]
@@ -843,6 +863,159 @@ def _exact_cells(f: _Facts) -> list[Cell]:
         "print(ed)"
     )
     return [Cell("markdown", md), Cell("code", code)]
+
+
+def _pauli_word(g: WeylString, sites: Sequence[Any]) -> tuple[str, complex]:
+    """The string as one Pauli letter per site, and the phase left over (``Y = i X Z``)."""
+    exps = g.exponents()
+    letters = []
+    for site in sites:
+        a, b = exps.get(site, (0, 0))
+        letters.append("IZXY"[2 * (a % 2) + (b % 2)])
+    phase = (g.phase - letters.count("Y")) % 4
+    return "".join(letters), (1, 1j, -1, -1j)[phase]
+
+
+def _distinct(values: Sequence[float], tol: float) -> list[float]:
+    out: list[float] = []
+    for v in sorted(values):
+        if not out or v - out[-1] > tol:
+            out.append(float(v))
+    return out
+
+
+_SPARSE_SOURCE = """\
+pauli = {
+    "I": sps.identity(2, format="csr"),
+    "X": sps.csr_array(np.array([[0, 1], [1, 0]], dtype=complex)),
+    "Y": sps.csr_array(np.array([[0, -1j], [1j, 0]])),
+    "Z": sps.csr_array(np.array([[1, 0], [0, -1]], dtype=complex)),
+}
+
+
+def word_matrix(word):
+    factors = [pauli[letter] for letter in word]
+    return functools.reduce(lambda a, b: sps.kron(a, b, format="csr"), factors)
+
+
+H = constant * sps.identity(2**len(terms[0][1]), format="csr", dtype=complex)
+for coupling, word in terms:
+    H = H + coupling * word_matrix(word)
+cycle_matrices = [(value, word_matrix(word)) for value, word in cycles]
+if not np.any(H.data.imag) and not any(np.any(w.data.imag) for _, w in cycle_matrices):
+    H = H.real  # real arithmetic: half the work
+    cycle_matrices = [(value, w.real) for value, w in cycle_matrices]
+
+
+def project(v):
+    for value, w in cycle_matrices:
+        v = (v + value * (w @ v)) / 2
+    return v
+
+
+# P (H - shift) P: the sector's levels minus shift (negative), every other vector at 0
+shift = abs(constant) + sum(abs(coupling) for coupling, _ in terms)
+
+
+def apply(v):
+    pv = project(v)
+    return project(H @ pv) - shift * pv
+
+
+operator = LinearOperator(H.shape, matvec=apply, dtype=H.dtype)
+start = project(np.random.default_rng(1).standard_normal(H.shape[0]).astype(H.dtype))
+ritz = np.sort(eigsh(operator, k=LANCZOS_K, which="SA", v0=start, return_eigenvectors=False).real)
+ritz = ritz + shift
+distinct = [ritz[0]]
+for value in ritz[1:]:
+    if value - distinct[-1] > cluster_tol:
+        distinct.append(value)
+compared = min(len(expected_free), len(distinct) - 1)
+sparse_error = np.abs(np.array(distinct[:compared]) - np.array(expected_free[:compared]))
+print("Lanczos levels:", distinct[:compared], "largest difference:", sparse_error.max())
+assert compared >= 1 and np.all(sparse_error <= sparse_tol), (sparse_error, sparse_tol)"""
+
+
+def _sparse_exact_cells(f: _Facts) -> list[Cell]:
+    """Above :data:`DENSE_LIMIT`: the lowest distinct levels of the same sector as the free
+    ones, from a matrix the cell builds with scipy alone (independent of freeladder), or a
+    markdown cell saying why this check is not run."""
+    m, sp, ans = f.model, f.spectrum, f.answer
+    head = "## Exact diagonalization of the same sector\n\n"
+    if sp is None:
+        return []
+    n_sites = len(m.sites)
+    why = ""
+    if m.states != 2 or np.iscomplexobj(sp.quasi_energies):
+        why = "complex levels: the lowest are not ordered on a line"
+    elif m.dimension > SPARSE_EXPORT_DIMENSION:
+        why = (
+            f"dimension 2^{n_sites} above 2^{SPARSE_EXPORT_DIMENSION.bit_length() - 1}, the "
+            "largest a cell diagonalises itself"
+        )
+    elif (sp.degeneracy or 1) > 2 and ans.route != "sector":
+        why = (
+            f"every level {sp.degeneracy} times degenerate (Lanczos finds one vector per "
+            "level: slow and partial there)"
+        )
+    if why:
+        return [Cell("markdown", f"{head}Exact check not run: {why}.")]
+    values = ans.cycle_values if ans.route == "sector" else ()
+    gens = sectors(m).cycle_operators if values else ()
+    cycles = [
+        (int(v), _pauli_word(g, m.sites)) for g, v in zip(gens, values, strict=True) if g.support
+    ]
+    terms = []
+    for c, g in m.terms:
+        word, phase = _pauli_word(g, m.sites)
+        terms.append((complex(c) * phase, word))
+    for _, (word, phase) in cycles:
+        if phase not in (1, -1):
+            return [Cell("markdown", f"{head}Exact check not run: {word} is not Hermitian.")]
+    energies = [float(np.real(e)) for e in sp.levels(4 * SPARSE_EXPORT_LEVELS).energies]
+    scale = max(1.0, max(abs(e) for e in energies))
+    level_tol = float(np.sum(_tolerances(sp)))
+    cluster = 1e-9 * scale
+    free = _distinct(energies, cluster)[:SHOWN_EXACT]
+    where = (
+        "the sector "
+        + ", ".join(f"${g} = {v:+d}$" for g, v in zip(ans.cycle_strings, values, strict=True))
+        + f" ({ans.selection})"
+        if values
+        else "the whole space"
+    )
+    md = (
+        f"{head}The free levels above belong to {where}. This cell checks the lowest "
+        f"{len(free)} distinct ones without freeladder: it builds $H$ "
+        f"({m.dimension} x {m.dimension}) from Kronecker products of 2 x 2 Pauli matrices "
+        "with scipy.sparse, projects onto the sector with $P = \\prod_i (1 + v_i W_i)/2$ "
+        "over its cycle strings $W_i$ (built the same way), and finds the lowest eigenvalues "
+        "of $P (H - s) P$ with scipy's Lanczos (`eigsh`; every vector outside the sector "
+        "sits at 0, above the sector's levels, for $s = \\sum |c_j| \\ge \\|H\\|$). "
+        "Lanczos resolves distinct levels, not multiplicities. Tolerance: the levels' "
+        f"bounds plus $10^{{-8}}$ of the spectral scale (Lanczos converges to rounding; "
+        "common practice)."
+    )
+    cycle_rows = [f"({value}, {json.dumps(word)})" for value, (word, _) in cycles]
+    term_rows = [f"({_literal(_real_if(c))}, {json.dumps(w)})" for c, w in terms]
+    code = (
+        "# H and the sector built from Pauli letters, one per site (no freeladder here)\n"
+        + _wrapped("terms = [", term_rows, "]")
+        + "\n"
+        + _wrapped("cycles = [", cycle_rows, "]")
+        + "\n"
+        + f"constant = {_literal(_real_if(complex(m.constant)))}\n"
+        + f"expected_free = {_array_literal(free)}\n"
+        + f"cluster_tol = {_float_literal(cluster)}\n"
+        + f"sparse_tol = {_float_literal(level_tol)} + 1e-8 * {_float_literal(scale)}\n"
+        + f"LANCZOS_K = {SPARSE_EXPORT_LEVELS}\n"
+        + _SPARSE_SOURCE
+    )
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+def _real_if(c: complex) -> complex | float:
+    return c.real if c.imag == 0 else c
 
 
 def _check_cells(f: _Facts) -> list[Cell]:

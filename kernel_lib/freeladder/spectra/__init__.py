@@ -31,6 +31,7 @@ from .ed import (
     SPARSE_LIMIT,
     ExactSpectrum,
     exact_spectrum,
+    sector_dimension,
     sector_exact_spectrum,
     sparse_memory,
 )
@@ -113,6 +114,7 @@ __all__ = [
     "components",
     "edge_mode",
     "exact_spectrum",
+    "sector_dimension",
     "sector_exact_spectrum",
     "sparse_memory",
     "flux_sector",
