@@ -201,4 +201,6 @@ def test_report_dynamics_refuses_past_its_size_with_the_reason_and_dimensions_st
     assert dimension_text(2**20001) == "2^20001"
     assert dimension_text(3**5000) == "3^5000"
     assert dimension_text(1024) == "1024"
+    assert dimension_text(2**16) == "2^16"
+    assert dimension_text(5000) == "5000"
     assert dimension_text(6**20 * 5 + 1) == "about 10^16"

@@ -369,24 +369,27 @@ def digits_for(value: Any, bound: float) -> int:
 
 
 def dimension_text(dim: int) -> str:
-    """A Hilbert-space dimension in a few characters: ``1024`` up to a million, then ``2^40``
-    (or ``3^30``) for a power of a small base, else ``about 10^k``.
+    """A Hilbert-space dimension in a few characters: ``1024`` and below as the number, above
+    it ``2^16`` (or ``3^30``) for a power of a small base, other numbers up to a million as they
+    are, else ``about 10^k``.
 
     Never converts a huge integer to decimal (Python refuses past 4300 digits, and a chain of
     10^4 sites has dimension 2^10000).
 
     Examples
     --------
-    >>> dimension_text(4096), dimension_text(2**20001), dimension_text(3**30)
-    ('4096', '2^20001', '3^30')
+    >>> dimension_text(1024), dimension_text(65536), dimension_text(2**20001), dimension_text(3**30)
+    ('1024', '2^16', '2^20001', '3^30')
     """
-    if dim < 10**6:
+    if dim <= 1024:
         return str(dim)
     for base in range(2, 11):
         exponent = round((dim.bit_length() - 1) / math.log2(base))
         for e in (exponent - 1, exponent, exponent + 1):
             if e > 0 and base**e == dim:
                 return f"{base}^{e}"
+    if dim < 10**6:
+        return str(dim)
     return f"about 10^{int((dim.bit_length() - 1) * math.log10(2))}"
 
 
