@@ -42,7 +42,6 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sps
-from tqdm.auto import tqdm
 
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
@@ -372,6 +371,8 @@ class _Progress:
     def __call__(self, done: int, total: int) -> None:
         poll()  # every loop that reports progress can be stopped (freeladder.stop_when)
         if self.bar is None:
+            from tqdm.auto import tqdm  # on use: tqdm.auto brings asyncio
+
             self.bar = tqdm(total=total, desc=self.label, delay=2.0, leave=False)
         self.bar.update(done - self.bar.n)
 
