@@ -9,7 +9,9 @@
   their modules, each imported on first attribute access; modules write
   ``from ..base.lazy import networkx as nx`` (or ``flint``, ...) under ``if not TYPE_CHECKING``
   and the real import under ``if TYPE_CHECKING``.  An ``isinstance`` test against one of their
-  classes imports the module, so such tests stay on paths that use the module anyway.
+  classes imports the module, so such tests stay on paths that use the module anyway.  Set
+  attributes on what a stand-in hands out (``flint.ctx.prec = 128``), never on the stand-in
+  itself; numba-compiled code cannot reach these stand-ins.
 * :func:`njit` marks a function for numba: the first call of any marked function of a module
   imports numba, compiles every marked function of that module and puts the compiled versions
   in the module's namespace (so compiled code calling compiled code finds them), with
