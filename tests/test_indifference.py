@@ -17,7 +17,8 @@ import scipy.sparse as sps
 from scipy.optimize import linear_sum_assignment
 
 import freeladder as fl
-from freeladder.graphs.indifference import indifference_order, umbrella_order
+from freeladder.graphs.clawfree import check_order
+from freeladder.graphs.indifference import indifference_order, level_order, umbrella_order
 
 
 def brute_force_has_umbrella(g: nx.Graph) -> bool:
@@ -219,3 +220,113 @@ def test_verdict_and_spectrum_of_a_variable_range_clock_chain():
     cost = np.abs(free[:, None] - exact[None, :])
     rows, cols = linear_sum_assignment(cost)
     assert cost[rows, cols].max() < 1e-8
+
+
+# -- the checks that follow from an indifference ordering (freeladder.graphs.clawfree.check_order)
+
+
+def _brute_claw_free(g: nx.Graph) -> bool:
+    """No vertex with three pairwise non-adjacent neighbours, by trying every triple."""
+    return not any(
+        not (g.has_edge(a, b) or g.has_edge(a, c) or g.has_edge(b, c))
+        for v in g
+        for a, b, c in itertools.combinations(g[v], 3)
+    )
+
+
+def _brute_simplicial(g: nx.Graph, clique: tuple[int, ...]) -> bool:
+    """A clique K with N(v) minus K a clique for every v in K, by trying every pair."""
+    k = set(clique)
+    if not all(g.has_edge(a, b) for a, b in itertools.combinations(k, 2)):
+        return False
+    return all(g.has_edge(a, b) for v in k for a, b in itertools.combinations(set(g[v]) - k, 2))
+
+
+def test_order_check_agrees_with_networkx_on_small_graphs():
+    # a component passes check_order only if it is an indifference graph (brute force over all
+    # orderings), networkx finds it chordal, a brute-force search finds no claw and the clique
+    # offered is simplicial; when the whole graph is an indifference graph, the verified
+    # umbrella_order answer passes on every component
+    rng = np.random.default_rng(11)
+    passed = failed = 0
+    for _ in range(200):
+        n = int(rng.integers(2, 8))
+        g = nx.gnp_random_graph(n, float(rng.uniform(0.2, 0.8)), seed=int(rng.integers(1 << 30)))
+        adj = sps.csr_array(nx.to_scipy_sparse_array(g, nodelist=range(n), dtype=bool))
+        adj.sort_indices()
+        truth = brute_force_has_umbrella(g)
+        umbrella = umbrella_order(adj)
+        orders = [level_order(adj)[0], rng.permutation(n)]
+        if umbrella is not None:
+            orders.append(np.array(umbrella))
+        for order in orders:
+            checked = check_order(adj, order)
+            for comp in nx.connected_components(g):
+                verts = np.array(sorted(comp))
+                clique = checked.simplicial_clique(verts)
+                sub = g.subgraph(comp)
+                if clique is None:
+                    failed += 1
+                    continue
+                passed += 1
+                assert brute_force_has_umbrella(sub)
+                assert nx.is_chordal(sub) and _brute_claw_free(sub)
+                assert set(clique) <= comp and _brute_simplicial(g, clique)
+        if umbrella is not None:
+            checked = check_order(adj, np.array(umbrella))
+            assert all(
+                checked.simplicial_clique(np.array(sorted(c))) is not None
+                for c in nx.connected_components(g)
+            )
+        else:
+            assert not truth
+    assert passed > 100 and failed > 100
+
+
+def _pauli_variable_chain(size: int, rng: np.random.Generator) -> fl.Model:
+    """A reach-varying Pauli chain (reaches 1-3, ends non-decreasing), terms shuffled."""
+    ends = np.maximum.accumulate(np.arange(size) + rng.integers(1, 4, size))
+    chain = fl.exclusion_chain(size, reach=list(ends - np.arange(size)))
+    order = rng.permutation(size)
+    return fl.Model(chain.strings.take(order), [chain.couplings[int(j)] for j in order])
+
+
+@pytest.mark.parametrize("kind", ["variable", "reach 3", "ring"])
+def test_verdict_of_shuffled_pauli_chains_against_networkx(kind):
+    # 1500 shuffled terms: the verdict read off the ordering (claw-free, chordal, simplicial
+    # clique) against networkx's chordality test, a brute-force claw search and a brute-force
+    # check of the clique; the ring (reach 2, closed) has holes and takes the searches instead,
+    # which find no simplicial clique (checked against every clique networkx enumerates)
+    rng = np.random.default_rng(17)
+    size = 1500
+    if kind == "variable":
+        m = _pauli_variable_chain(size, rng)
+    else:
+        reach = 3 if kind == "reach 3" else 2
+        chain = fl.exclusion_chain(size, reach=reach)
+        if kind == "ring":  # two more terms close the chain into a ring of reach 2
+            strings = [chain.strings[j] for j in range(size)]
+            n_sites = len(chain.sites)
+            extra = [
+                fl.pauli("XZ", [n_sites - 2, n_sites - 1]) * fl.pauli("Z", [0]),
+                fl.pauli("X", [n_sites - 1]) * fl.pauli("ZZ", [0, 1]),
+            ]
+            chain = fl.Model.from_terms([(1.0, s) for s in strings + extra])
+        order = rng.permutation(len(chain))
+        m = fl.Model(chain.strings.take(order), [chain.couplings[int(j)] for j in order])
+    g = fl.frustration_graph(m)
+    v = fl.classify(m)
+    (comp,) = v.components
+    chordal = nx.is_chordal(g)
+    assert chordal == (kind != "ring")
+    assert _brute_claw_free(g)
+    if chordal:
+        assert comp.kind == "hidden-free"
+        assert comp.simplicial_clique is not None
+        assert _brute_simplicial(g, comp.simplicial_clique)
+        assert comp.even_hole_free is True and v.guarantee.proven
+        assert "perfect elimination ordering" in " ".join(comp.reasons)
+    else:  # every term's partners i-2, i-1, i+1, i+2 around the ring: no simplicial clique
+        assert comp.kind == "integrable" and comp.simplicial_clique is None
+        assert not any(_brute_simplicial(g, tuple(k)) for k in nx.enumerate_all_cliques(g))
+        assert "perfect elimination ordering" not in " ".join(comp.reasons)

@@ -10,6 +10,8 @@ tests/benchmarks/bench_verify.py --sparse; here a 14-site ring takes the same sp
 
 from __future__ import annotations
 
+import itertools
+
 import numpy as np
 import pytest
 from flint import arb, arb_mat, ctx
@@ -118,3 +120,36 @@ def test_exponentially_small_edge_mode_is_resolved_on_the_sector_route() -> None
     n = np.diag(np.full(100, -0.6)) + np.diag(np.full(99, 0.7), -1) + np.diag(np.full(99, 0.3), 1)
     bulk = np.sort(np.linalg.svd(n, compute_uv=False))[1:]
     assert np.allclose(sp.quasi_energies[1:], bulk, atol=1e-13)
+
+
+@pytest.mark.parametrize(
+    "text",
+    [
+        "X0 X1 + Y1 Y2 + Z2 Z3 + X3 X0 + Z1 Z3",
+        "0.9 X0 X1 + 1.2 Y1 Y2 + 0.7 X3 X4 + 1.1 Y4 Y5 + 0.8 Z0 Z3 + 1.3 Z1 Z4 + 0.6 Z2 Z5 + 0.3",
+    ],
+)
+def test_sector_basis_against_the_projected_hamiltonian(text: str) -> None:
+    # every consistent set of cycle and parity values: the sector's levels are numpy's
+    # eigenvalues of H on the range of the projector prod (1 + v W) / 2 (common practice)
+    m = fl.parse_model(text)
+    strings = [*fl.sectors(m).cycle_operators, *fl.sectors(m).parity_operators]
+    h = m.to_sparse().toarray()
+    seen = 0
+    for values in itertools.product((1, -1), repeat=len(strings)):
+        fixed = [(g, v) for g, v in zip(strings, values, strict=True)]
+        projector = np.eye(m.dimension, dtype=complex)
+        for g, v in fixed:
+            projector = projector @ (np.eye(m.dimension) + v * g.to_sparse(m.sites).toarray()) / 2
+        weights, vectors = np.linalg.eigh(projector)
+        basis = vectors[:, weights > 0.5]
+        assert fl.sector_dimension(m, fixed) == basis.shape[1]
+        if basis.shape[1] == 0:
+            with pytest.raises(ValueError, match="empty"):
+                sector_exact_spectrum(m, 1, fixed)
+            continue
+        want = np.linalg.eigvalsh(basis.conj().T @ h @ basis)
+        got = sector_exact_spectrum(m, len(want), fixed).eigenvalues
+        np.testing.assert_allclose(got, want, atol=1e-10)
+        seen += 1
+    assert seen >= 2

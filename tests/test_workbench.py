@@ -692,8 +692,9 @@ def test_sector_chooser_names_the_cycle_strings() -> None:
     for text, value in wb.roots.sector.options[3:]:
         for name, v in zip(names, value, strict=True):
             assert f"{name} = {'+1' if v > 0 else '-1'}" in text
-    # the ladder says what its exact column holds for one sector
-    assert "whole space" in wb.ladder.title.value
+    # the ladder's exact column holds the same sector as the free levels, and says so
+    assert "exact diag. of the sector" in wb.ladder.title.value
+    assert "whole space" not in wb.ladder.title.value
     assert names[0] in wb.ladder.title.value
 
 

@@ -47,7 +47,15 @@ MODELS = {
 
 # The steps whose exported numbers depend on the couplings (the model's identity among them),
 # and those that do not.
-COUPLING_DEPENDENT = {"identity", "charges", "polynomial", "spectrum", "levels", "exact"}
+COUPLING_DEPENDENT = {
+    "identity",
+    "charges",
+    "polynomial",
+    "spectrum",
+    "levels",
+    "exact",
+    "dynamics",
+}
 COUPLING_FREE = {"model", "verdict", "checks"}
 
 
@@ -60,6 +68,8 @@ def _step_of(source: str) -> str:
     """Which step a code cell holds, read from what it computes."""
     for needle, step in (
         ("fingerprint", "identity"),
+        ("fl.autocorrelation", "dynamics"),
+        ("dense_times", "dynamics"),
         ("fl.parse_model", "model"),
         ("fl.classify", "verdict"),
         ("fl.charge_series", "charges"),

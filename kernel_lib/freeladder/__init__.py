@@ -25,7 +25,8 @@ from .analysis import Analysis, analyze
 from .base.errors import NotExpandableError, NoTheoremError
 from .base.interrupt import Interrupted, stop_when
 from .checks.charge_sweep import SweepResult, Witness, commutator_sweep, inversion_sweep
-from .checks.verification import Check, Report, verify
+from .checks.edge_dynamics import DynamicsCheck, check_autocorrelation
+from .checks.verification import Check, Report, same_sector_check, verify
 from .graphs.directed import DirectedFrustrationGraph, directed_frustration_graph
 from .graphs.graph import (
     ChainStructure,
@@ -64,10 +65,17 @@ from .spectra.dynamics import (
     EdgeExpansion,
     TwoPoint,
     autocorrelation,
+    certified_edge_weights,
     edge_expansion,
     two_point,
 )
-from .spectra.ed import ExactSpectrum, exact_spectrum, sector_exact_spectrum, sparse_memory
+from .spectra.ed import (
+    ExactSpectrum,
+    exact_spectrum,
+    sector_dimension,
+    sector_exact_spectrum,
+    sparse_memory,
+)
 from .spectra.edge import EdgeMode, LadderOperators, edge_mode, ladder_operators
 from .spectra.majorana import (
     FluxSector,
@@ -86,6 +94,7 @@ from .spectra.sector_dynamics import (
 )
 from .spectra.spectrum import FreeSpectrum, Level, LevelTable, SpectrumProvenance, free_spectrum
 from .spectra.thermo import Thermodynamics, log_partition_function, thermodynamics
+from .spectra.weight_balls import WeightBalls
 from .studies.census import census
 from .studies.disorder import (
     LogGapStatistics,
@@ -110,6 +119,8 @@ from .studies.scaling import (
 )
 
 __all__ = [
+    "DynamicsCheck",
+    "check_autocorrelation",
     "census",
     "honeycomb_hexagons",
     "kitaev_torus",
@@ -174,6 +185,7 @@ __all__ = [
     "log_partition_function",
     "thermodynamics",
     "exact_spectrum",
+    "sector_dimension",
     "sector_exact_spectrum",
     "sparse_memory",
     "Model",
@@ -185,11 +197,13 @@ __all__ = [
     "EdgeExpansion",
     "Autocorrelation",
     "TwoPoint",
+    "WeightBalls",
     "LadderOperators",
     "Report",
     "edge_mode",
     "edge_expansion",
     "autocorrelation",
+    "certified_edge_weights",
     "two_point",
     "SectorCorrelation",
     "CircuitAutocorrelation",
@@ -197,6 +211,7 @@ __all__ = [
     "sector_autocorrelation",
     "sector_two_point",
     "ladder_operators",
+    "same_sector_check",
     "stop_when",
     "verify",
     "LevelMatch",

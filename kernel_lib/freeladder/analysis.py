@@ -37,7 +37,7 @@ from .roots.polynomial import ExclusionPolynomial, exclusion_polynomial
 from .roots.result import RootTable
 from .spectra.answer import SectorRow, SpectrumAnswer
 from .spectra.charges import ChargeStep, charge_counts, charge_series
-from .spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum
+from .spectra.ed import DENSE_LIMIT, ExactSpectrum, exact_spectrum, sector_exact_spectrum
 from .spectra.majorana import jordan_wigner_spectrum, sectors
 from .spectra.spectrum import FreeSpectrum, free_spectrum, refusal_text
 
@@ -48,6 +48,7 @@ else:
 
 
 if TYPE_CHECKING:
+    from .checks.edge_dynamics import DynamicsCheck
     from .checks.verification import Report
     from .output.worked import WorkedCalculation
 
@@ -92,6 +93,13 @@ def _spectrum(
 @part("exact spectrum", "couplings")
 def _exact(m: Model) -> ExactSpectrum:
     return exact_spectrum(m)
+
+
+@part("sector exact levels", "couplings")
+def _sector_exact(m: Model, values: tuple[int, ...], k: int) -> ExactSpectrum:
+    gens = sectors(m).cycle_operators if values else ()
+    fixed = [(g, int(v)) for g, v in zip(gens, values, strict=True) if g.support]
+    return sector_exact_spectrum(m, k, fixed)
 
 
 @part("answer", "couplings")
@@ -181,6 +189,13 @@ def _report(m: Model, options: tuple[tuple[str, Any], ...]) -> Report:
     from .checks.verification import verify  # the checks build on the parts above
 
     return verify(Analysis(m), **dict(options))
+
+
+@part("edge dynamics", "couplings")
+def _dynamics(m: Model) -> DynamicsCheck:
+    from .checks.edge_dynamics import check_autocorrelation  # a check: above the parts
+
+    return check_autocorrelation(m)
 
 
 @part("worked calculation", "couplings")
@@ -335,6 +350,18 @@ class Analysis:
             return None
         return _exact(self.model)
 
+    def sector_exact(self, cycle_values: Sequence[int] = (), k: int = 8) -> ExactSpectrum:
+        """The ``k`` lowest eigenvalues of H where the conserved cycle strings
+        (``cycle_operators`` of :func:`freeladder.sectors`) have ``cycle_values``; the whole
+        space for ``()`` (:func:`freeladder.sector_exact_spectrum`), kept per arguments.
+
+        Raises
+        ------
+        TooLargeError
+            When the solve would need more memory than is available.
+        """
+        return _sector_exact(self.model, tuple(int(v) for v in cycle_values), int(k))
+
     def report(self, **options: Any) -> Report:
         """The :func:`freeladder.verify` report, kept per set of options (a report cut short by
         Ctrl-C is returned but not kept: the next call runs the checks again)."""
@@ -343,6 +370,12 @@ class Analysis:
         if not found.complete:
             store_of(self.model).forget(_report, (key,))
         return found
+
+    def dynamics(self) -> DynamicsCheck:
+        """The edge autocorrelation at a few times, checked independently
+        (:func:`freeladder.check_autocorrelation`); raises NotExpandableError (a ValueError)
+        when the edge expansion does not apply."""
+        return _dynamics(self.model)
 
     def worked(self, steps: str | Sequence[str] = "all") -> WorkedCalculation:
         """The worked calculation (:func:`freeladder.worked_calculation`), kept per steps."""
@@ -367,8 +400,10 @@ class Analysis:
         guarantee, ...), ``charge_counts``, ``polynomial``, ``spectrum``
         (:meth:`SpectrumAnswer.to_dict`: the numbers or the refusal) and ``report`` (the
         :func:`freeladder.verify` report with ``ok``, ``problems`` and ``checks``, when
-        ``checks`` is True; else None).  Parts that raise are reported as
-        ``{"error": type, "message": text}``.
+        ``checks`` is True; else None) and ``dynamics`` (the edge autocorrelation: weights,
+        frequencies, plateau, a few time values and how they were verified,
+        :meth:`DynamicsCheck.to_dict`, when ``checks`` is True; else None).  Parts that raise
+        are reported as ``{"error": type, "message": text}``.
         """
         out: dict[str, Any] = {
             "model": str(self.model),
@@ -382,11 +417,12 @@ class Analysis:
             ("polynomial", lambda: self.polynomial),
             ("spectrum", lambda: self.answer()),
             ("report", lambda: self.report() if checks else None),
+            ("dynamics", lambda: self.dynamics() if checks else None),
         ]
         for name, get in parts:
             try:
                 out[name] = json_ready(get())
-            except (ValueError, TypeError) as err:
+            except (ValueError, TypeError, ArithmeticError) as err:
                 out[name] = {"error": type(err).__name__, "message": str(err)}
         ready: dict[str, Any] = json_ready(out)
         return ready

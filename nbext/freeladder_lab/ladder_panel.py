@@ -14,7 +14,7 @@ import bqplot as bq
 import ipywidgets as widgets
 import numpy as np
 
-from .adapter import Outcome, View, multiplicity_text
+from .adapter import ExactOverlay, Outcome, View, multiplicity_text
 from .panel import Host, Section
 from .style import ACCENT, INK, SECOND, TICKS, complex_plane, escape, number_text, origin_guides
 
@@ -72,9 +72,10 @@ class LadderPanel(Section):
 
     Levels closer than a label's height share one label (``3 levels x2``).  When the levels
     differ by less than a hundredth of their size (long chains: E near -1000
-    and gaps near 0.1), the rungs are drawn as ``E - E_0`` and the axis says so.  For one
-    sector of a Jordan-Wigner model the title says that the exact column holds the lowest
-    levels of the whole space (every sector), not of that sector.
+    and gaps near 0.1), the rungs are drawn as ``E - E_0`` and the axis says so.  The exact
+    column holds the lowest levels of the same sector as the free ones (the whole space for a
+    model without sectors), and the title says which; the summary gives their largest
+    difference from the free levels, or why the exact check did not run.
     """
 
     TITLE = "Ladder"
@@ -178,7 +179,8 @@ class LadderPanel(Section):
     def update(self, view: View) -> None:
         """Draw the lowest levels of the outcome (none when refused) and the exact ones."""
         shown = view.outcome
-        exact = view.exact
+        overlay = view.exact
+        exact = overlay.exact
         states = view.analysis.model.states
         free: list[Any] = []
         if shown.spectrum is not None:
@@ -190,7 +192,7 @@ class LadderPanel(Section):
         if exact is not None:
             ex_e = np.asarray(exact.levels[:RUNGS], complex)
             ex_m = [int(v) for v in exact.multiplicities[:RUNGS]]
-        self.title.value = _title(shown, exact is not None)
+        self.title.value = _title(shown, overlay)
         planar = states > 2 or bool(np.any(np.abs(energies.imag) > 1e-12))
         self.children = [self.title, self.plane if planar else self.rung_figure, self.summary]
         if planar:
@@ -204,12 +206,19 @@ class LadderPanel(Section):
                 origin_guides(self.plane_guides, np.concatenate([energies, ex_e]), self.plane)
             self.rungs.x = self.rungs.y = np.zeros((0, 2))
         else:
-            self._draw_rungs(energies.real, mult, ex_e.real, ex_m, states)
+            resolved = exact is not None and exact.method.startswith("dense")
+            self._draw_rungs(energies.real, mult, ex_e.real, ex_m, states, resolved)
             self.levels.x = self.levels.y = []
-        self.summary.value = _summary(shown, exact, states)
+        self.summary.value = _summary(shown, overlay, states)
 
     def _draw_rungs(
-        self, e: np.ndarray, mult: list[Any], x: np.ndarray, ex_m: list[int], states: int
+        self,
+        e: np.ndarray,
+        mult: list[Any],
+        x: np.ndarray,
+        ex_m: list[int],
+        states: int,
+        resolved: bool = True,
     ) -> None:
         both = np.concatenate([e, x])
         offset = 0.0
@@ -226,7 +235,8 @@ class LadderPanel(Section):
         # labels of near-degenerate levels are moved apart; the axis grows to hold them (the
         # spacing depends on the axis range, so grow it until the labels fit)
         e_text = [multiplicity_text(m, states) for m in mult]
-        x_text = [multiplicity_text(m, states) for m in ex_m]
+        # Lanczos does not resolve multiplicities: its levels go unlabelled
+        x_text = [multiplicity_text(m, states) if resolved else "" for m in ex_m]
         top = hi
         for _ in range(60):
             e_at, e_labels = label_groups(e, e_text, lo, top)
@@ -248,14 +258,12 @@ class LadderPanel(Section):
             self.exact_labels.text = x_labels
 
 
-def _title(shown: Outcome, has_exact: bool) -> str:
+def _title(shown: Outcome, overlay: ExactOverlay) -> str:
     free = escape(shown.label) if shown.spectrum is not None else "free spectrum: refused"
-    if not has_exact:
-        exact = "exact diagonalization: not shown"
-    elif shown.sector is not None:
-        exact = "exact diag. of the whole space, every sector (dashed, right)"
+    if overlay.exact is None:
+        exact = "exact diagonalization: not run"
     else:
-        exact = "exact diag. (dashed, right)"
+        exact = f"exact diag. of {escape(overlay.where)} (dashed, right)"
     return (
         f'<div style="font-size:13px; color:{INK}; line-height:1.35;">'
         f"<span style='color:{ACCENT}'>&#9644;</span> {free} (solid, left) &#8195;"
@@ -263,7 +271,7 @@ def _title(shown: Outcome, has_exact: bool) -> str:
     )
 
 
-def _summary(shown: Outcome, exact: Any, states: int) -> str:
+def _summary(shown: Outcome, overlay: ExactOverlay, states: int) -> str:
     parts = []
     spectrum = shown.spectrum
     if spectrum is None:
@@ -281,13 +289,24 @@ def _summary(shown: Outcome, exact: Any, states: int) -> str:
             f"<b>{escape(gap)}</b>; each level {escape(each)}"
             f" ({escape(spectrum.degeneracy_reason)})"
         )
-    if exact is None:
-        parts.append("exact diagonalization: not shown (dimension above the overlay limit)")
+    exact, check = overlay.exact, overlay.check
+    if exact is None or check is None:
+        parts.append(f"<span class='freeladder-exact-agreement'>{escape(overlay.note)}</span>")
     else:
-        whole = " of the whole space (every sector)" if shown.sector is not None else ""
+        resolved = (
+            "every multiplicity resolved"
+            if exact.method.startswith("dense")
+            else "Lanczos: distinct levels, multiplicities not resolved"
+        )
         parts.append(
-            f"exact diagonalization{whole}: {escape(exact.method)}, dimension "
-            f"{exact.dimension}, accuracy about {exact.error_estimate:.2g}"
+            f"exact diagonalization of {escape(overlay.where)}: {escape(exact.method)}, "
+            f"dimension {exact.dimension}, {resolved}, accuracy about "
+            f"{exact.error_estimate:.2g}"
+        )
+        status = "agree" if check.passed else "not compared" if check.passed is None else "DISAGREE"
+        parts.append(
+            f"<span class='freeladder-exact-agreement'>exact check: {status}, largest "
+            f"difference {check.value:.2g} (tolerance {check.tolerance:.2g})</span>"
         )
     return "".join(
         f"<div style='font-size:12.5px; overflow-wrap:anywhere'>{p}</div>" for p in parts

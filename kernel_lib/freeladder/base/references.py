@@ -16,6 +16,8 @@ __all__ = [
     "LIEB_SCHULTZ_MATTIS_1961",
     "MANN_ELMAN_WOOD_CHAPMAN_2024",
     "PFEUTY_1970",
+    "ROBERTS_1969",
+    "ROSE_TARJAN_LUEKER_1976",
 ]
 
 CHAPMAN_FLAMMIA_2020 = "A. Chapman and S. T. Flammia, Quantum 4, 278 (2020), arXiv:2003.05465"
@@ -38,3 +40,7 @@ CHUDNOVSKY_SEYMOUR_2007 = "M. Chudnovsky and P. Seymour, J. Combin. Theory Ser. 
 MANN_ELMAN_WOOD_CHAPMAN_2024 = (
     "R. L. Mann, S. J. Elman, D. R. Wood and A. Chapman, arXiv:2408.09684 (2024)"
 )
+ROBERTS_1969 = (
+    "F. S. Roberts, in Proof Techniques in Graph Theory, ed. F. Harary (Academic Press, 1969)"
+)
+ROSE_TARJAN_LUEKER_1976 = "D. J. Rose, R. E. Tarjan and G. S. Lueker, SIAM J. Comput. 5, 266 (1976)"

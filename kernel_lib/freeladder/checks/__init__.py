@@ -12,6 +12,7 @@ from .charge_sweep import (
     inversion_sweep,
     run,
 )
+from .edge_dynamics import DynamicsCheck, check_autocorrelation
 from .verification import (
     ED_AUTO_DIMENSION,
     FLOAT_RTOL,
@@ -29,6 +30,7 @@ from .verification import (
     lowest_levels_check,
     pairwise_check,
     power_sum_check,
+    same_sector_check,
     sector_lowest_check,
     sum_rule_check,
     transfer_from_charges,
@@ -37,6 +39,8 @@ from .verification import (
 )
 
 __all__ = [
+    "DynamicsCheck",
+    "check_autocorrelation",
     "Check",
     "ED_AUTO_DIMENSION",
     "FLOAT_RTOL",
@@ -62,6 +66,7 @@ __all__ = [
     "lowest_levels_check",
     "pairwise_check",
     "power_sum_check",
+    "same_sector_check",
     "sector_lowest_check",
     "run",
     "sum_rule_check",

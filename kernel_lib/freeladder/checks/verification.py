@@ -64,16 +64,18 @@ from ..roots.real import chain_back, chain_root_count
 from ..spectra.charges import charge
 from ..spectra.ed import (
     DENSE_LIMIT,
+    SECTOR_DENSE_LIMIT,
     SPARSE_CHECK_LIMIT,
     ExactSpectrum,
     exact_spectrum,
+    sector_dimension,
     sector_exact_spectrum,
     sparse_memory,
 )
 from ..spectra.edge import _live_terms, components, ladder_operators
 from ..spectra.majorana import jordan_wigner_spectrum, sectors
 from ..spectra.matching import match_levels
-from ..spectra.spectrum import FreeSpectrum, _ordering, free_spectrum
+from ..spectra.spectrum import FreeSpectrum, _ordering
 from . import charge_sweep
 from .charge_sweep import SweepResult, commutator_sweep, inversion_sweep
 from .hypotheses import independent_along, ordering_hypotheses
@@ -97,6 +99,7 @@ __all__ = [
     "lowest_levels_check",
     "pairwise_check",
     "power_sum_check",
+    "same_sector_check",
     "sector_lowest_check",
     "sum_rule_check",
     "transfer_from_charges",
@@ -1473,12 +1476,17 @@ def _compare_lowest(
     )
     count = len(exact)
     dev = float(np.max(np.abs(free[:count] - exact))) if len(free) >= count > 0 else float("inf")
+    how = (
+        f"{len(ed.eigenvalues)} eigenvalues, multiplicities resolved"
+        if ed.method.startswith("dense")
+        else f"{len(ed.eigenvalues)} Ritz values; Lanczos does not resolve multiplicities"
+    )
     detail = (
         f"{where}: the {count} lowest distinct eigenvalues by {ed.method} of dimension "
-        f"{ed.dimension} ({len(ed.eigenvalues)} Ritz values; Lanczos does not resolve "
-        f"multiplicities) against the lowest distinct free levels; largest difference"
+        f"{ed.dimension} ({how}) against the lowest distinct free levels; largest difference"
     )
-    method, detail = _probe(why, "sparse exact diagonalization", detail)
+    kind = "exact" if ed.method.startswith("dense") else "sparse exact"
+    method, detail = _probe(why, f"{kind} diagonalization", detail)
     return Check(name, method, tol, dev, dev <= tol, detail, ref)
 
 
@@ -1516,30 +1524,113 @@ def lowest_levels_check(
 def sector_lowest_check(m: Model, k: int = SPARSE_LEVELS) -> Check:
     """The ground sector's lowest free levels (``free_spectrum(m, sector="ground")``) against
     sparse exact diagonalization restricted to the same cycle values
-    (:func:`freeladder.spectra.ed.sector_exact_spectrum`), parities included on both sides.
+    (:func:`same_sector_check` up to :data:`freeladder.spectra.ed.SPARSE_CHECK_LIMIT`).
 
     Raises
     ------
     CheckNotApplicable
         As :func:`lowest_levels_check`.
     """
-    if m.dimension > SPARSE_CHECK_LIMIT:
-        raise CheckNotApplicable(
-            f"dimension {_dim(m)} > {SPARSE_CHECK_LIMIT} = 2^22, the largest diagonalised "
-            f"sparsely in the checks{_memory_text(m)}"
-        )
-    sp = free_spectrum(m, sector="ground")
-    if np.iscomplexobj(sp.quasi_energies):
+    return same_sector_check(analyze(m), "ground", k=k, limit=SPARSE_CHECK_LIMIT)[1]
+
+
+def _power_text(dim: int) -> str:
+    """``2^n`` for a power of two, else the number."""
+    return f"2^{dim.bit_length() - 1}" if dim > 0 and dim & (dim - 1) == 0 else str(dim)
+
+
+def same_sector_check(
+    a: Analysis,
+    sector: Any = None,
+    unproven: bool = False,
+    k: int = SPARSE_LEVELS,
+    limit: int = SPARSE_AUTO_DIMENSION,
+) -> tuple[ExactSpectrum, Check]:
+    """The ``k`` lowest exact levels of the sector whose free levels
+    :meth:`Analysis.answer` gives for ``sector``, and the check that they agree.
+
+    The sector is the one of the answer: for a Jordan-Wigner model with cycles, the conserved
+    cycle strings with the answer's values; otherwise the whole space.  The exact levels come
+    from :func:`freeladder.sector_exact_spectrum` in a basis of that sector (dense up to
+    :data:`freeladder.spectra.ed.SECTOR_DENSE_LIMIT`, every multiplicity exact; Lanczos above,
+    distinct levels) and are compared level by level with the lowest distinct free levels.
+
+    Parameters
+    ----------
+    a : Analysis
+    sector, unproven
+        As in :meth:`Analysis.answer`.
+    k : int
+        How many lowest eigenvalues.
+    limit : int
+        Largest sector dimension diagonalised.
+
+    Returns
+    -------
+    (ExactSpectrum, Check)
+        The exact levels and the check (:data:`LOWEST`); its detail names the sector.
+
+    Raises
+    ------
+    CheckNotApplicable
+        When there is no spectrum (refused), the couplings are symbolic, the levels are complex,
+        the sector's dimension is above ``limit`` ("dimension 2^n above 2^m"), a Lanczos solve
+        would meet degenerate levels only, or memory is short.
+
+    References
+    ----------
+    A. Chapman and S. T. Flammia, Quantum 4, 278 (2020) (the sectors); ARPACK Users' Guide
+    (1998).
+    """
+    m = a.model
+    if m.is_symbolic:
+        raise CheckNotApplicable("symbolic couplings")
+    answer = a.answer(sector=sector, unproven=unproven)
+    sp = answer.spectrum
+    if sp is None:
+        raise CheckNotApplicable(f"no free spectrum to compare ({answer.reason})")
+    if np.iscomplexobj(sp.quasi_energies) or sp.states != 2:
         raise CheckNotApplicable("complex levels: the lowest are not ordered on a line")
-    values = tuple((sp.provenance.sector or {}).get("cycle_values", ()))
-    gens = sectors(m).cycle_operators
+    values = answer.cycle_values if answer.route == "sector" else ()
+    gens = sectors(m).cycle_operators if values else ()
     fixed = [(g, int(v)) for g, v in zip(gens, values, strict=True) if g.support]
-    try:
-        ed = sector_exact_spectrum(m, min(k, m.dimension - 2), fixed)
+    dim = sector_dimension(m, fixed)
+    if dim > limit:
+        raise CheckNotApplicable(
+            f"dimension {_power_text(dim)} above {_power_text(limit)}, the largest "
+            f"diagonalised here{_memory_text(m) if not fixed else ''}"
+        )
+    degeneracy = sp.degeneracy or 1
+    dense = dim <= SECTOR_DENSE_LIMIT
+    if not dense and degeneracy > 2 and limit < SPARSE_CHECK_LIMIT:
+        raise CheckNotApplicable(
+            f"every level {degeneracy} times degenerate at dimension {_power_text(dim)} "
+            "(Lanczos finds one vector per level: slow and partial there)"
+        )
+    try:  # a dense solve finds every eigenvalue at the same cost: all multiplicities
+        ed = a.sector_exact(values, dim if dense else min(k, dim - 2))
     except TooLargeError as err:
         raise CheckNotApplicable(str(err)) from err
-    where = f"the ground sector (cycle values {values})"
-    return _compare_lowest(LOWEST, sp, "", ed, CHAPMAN_FLAMMIA_2020, where)
+    lowest = ed
+    if dense:  # compare the k lowest distinct levels
+        count = int(np.sum(ed.multiplicities[:k]))
+        lowest = replace(
+            ed,
+            levels=ed.levels[:k],
+            multiplicities=ed.multiplicities[:k],
+            eigenvalues=ed.eigenvalues[:count],
+        )
+    if values:
+        pairs = ", ".join(
+            f"{g} = {v:+d}" for g, v in zip(answer.cycle_strings, values, strict=True)
+        )
+        where = f"the sector {pairs} ({answer.selection or 'chosen'})"
+        ref = f"{CHAPMAN_FLAMMIA_2020}; scipy/numpy exact diagonalization (common practice)"
+    else:
+        where = "the whole space"
+        ref = "scipy ARPACK (Lehoucq, Sorensen and Yang 1998; common practice)"
+    why = "" if answer.guaranteed else answer.reason
+    return ed, _compare_lowest(LOWEST, sp, why, lowest, ref, where)
 
 
 def _exact_check(parts: _Parts, spectrum: tuple[FreeSpectrum, str]) -> Check:
@@ -1627,12 +1718,30 @@ def _sector_checks(parts: _Parts, exact_diagonalization: bool | str, checks: lis
     checks.append(_run(CONSERVED, conserved_strings_check, m))
     if exact_diagonalization is False:
         return
-    if _sparse_wanted(m, exact_diagonalization):
+    if _sparse_wanted(m, exact_diagonalization) or (
+        exact_diagonalization == "auto"
+        and m.dimension > ED_AUTO_DIMENSION
+        and _ground_sector_dimension(parts) <= SPARSE_AUTO_DIMENSION
+    ):
         checks.append(_run(LOWEST, sector_lowest_check, m, required=exact_diagonalization is True))
         return
     checks.append(
         _run(SECTORS, sector_spectra_check, parts, required=exact_diagonalization is True)
     )
+
+
+def _ground_sector_dimension(parts: _Parts) -> int:
+    """The ground sector's dimension (:func:`freeladder.sector_dimension`; the whole
+    dimension when no ground sector is found)."""
+    m = parts.model
+    if m.is_symbolic:
+        return m.dimension
+    answer = parts.analysis.answer(sector="ground")
+    if answer.spectrum is None:
+        return m.dimension
+    gens = sectors(m).cycle_operators
+    values = answer.cycle_values
+    return sector_dimension(m, [(g, v) for g, v in zip(gens, values, strict=True) if g.support])
 
 
 def conserved_strings_check(m: Model) -> Check:

@@ -50,7 +50,13 @@ if TYPE_CHECKING:
 else:
     from ..base.lazy import csgraph
 
-__all__ = ["IndifferenceOrder", "indifference_order", "order_from_exponents", "umbrella_order"]
+__all__ = [
+    "IndifferenceOrder",
+    "indifference_order",
+    "level_order",
+    "order_from_exponents",
+    "umbrella_order",
+]
 
 
 @dataclass(frozen=True)
@@ -377,10 +383,7 @@ def _row_extent(
 def _quick_order(adj: sps.csr_array, states: int) -> IndifferenceOrder | None:
     """An oriented indifference ordering found in linear time by breadth-first levels, or None.
 
-    In a connected indifference graph, distances from an end of the ordering grow along it,
-    and within one level the vertices are ordered by how far back and how far forward their
-    neighbourhoods reach (common practice).  An end is sought as the farthest vertex of two
-    breadth-first searches.  The candidate is checked exactly (every closed neighbourhood a
+    The candidate (:func:`level_order`) is checked exactly (every closed neighbourhood a
     contiguous block, every edge forward with one exponent); None means only that this quick
     route did not find one (the LexBFS route then decides).
     """
@@ -388,6 +391,44 @@ def _quick_order(adj: sps.csr_array, states: int) -> IndifferenceOrder | None:
     if n == 0:
         return None
     sym = _pattern(adj)
+    order, labels = level_order(sym)
+    degree = np.diff(sym.indptr)
+    cols = sym.indices
+    pos = np.empty(n, dtype=np.int64)
+    pos[order] = np.arange(n)
+    # every closed neighbourhood a contiguous block: [lo, hi] holds exactly degree + 1 vertices
+    lo, hi = _row_extent(sym.indptr, pos[cols], pos)
+    if np.any(hi - lo != degree):
+        return None
+    if states == 2:
+        first = lo[order]
+        return IndifferenceOrder(tuple(order.tolist()), tuple(first.tolist()), 1, states)
+    return _quick_orientation(adj, states, order, pos, lo, hi, labels)
+
+
+def level_order(sym: sps.csr_array) -> tuple[np.ndarray, np.ndarray]:
+    """A candidate indifference ordering by breadth-first levels, in linear time, unchecked.
+
+    In a connected indifference graph, distances from an end of the ordering grow along it,
+    and within one level the vertices are ordered by how far back and how far forward their
+    neighbourhoods reach (common practice).  An end is sought as the farthest vertex of two
+    breadth-first searches.  Components follow one another (by label); a component that is
+    not an indifference graph still gets a (wrong) place in the list, so the caller must
+    check the answer, e.g. that every closed neighbourhood is a contiguous block.
+
+    Parameters
+    ----------
+    sym : scipy.sparse.csr_array
+        Symmetric boolean adjacency without diagonal (as :func:`_pattern` gives).
+
+    Returns
+    -------
+    order : numpy.ndarray of int64
+        The vertices in candidate order.
+    labels : numpy.ndarray
+        The connected-component label of every vertex.
+    """
+    n = int(sym.shape[0])
     n_comp, labels = csgraph.connected_components(sym, directed=False)
     degree = np.diff(sym.indptr)
     # one start per component, then twice: the farthest vertex, of least degree
@@ -402,21 +443,9 @@ def _quick_order(adj: sps.csr_array, states: int) -> IndifferenceOrder | None:
     rows = np.repeat(np.arange(n), degree)
     cols = sym.indices
     step = dist[cols] - dist[rows]
-    if np.any(np.abs(step) > 1):
-        return None
     back = np.bincount(rows[step < 0], minlength=n)
     ahead = np.bincount(rows[step > 0], minlength=n)
-    order = np.lexsort((ahead, -back, dist, labels))
-    pos = np.empty(n, dtype=np.int64)
-    pos[order] = np.arange(n)
-    # every closed neighbourhood a contiguous block: [lo, hi] holds exactly degree + 1 vertices
-    lo, hi = _row_extent(sym.indptr, pos[cols], pos)
-    if np.any(hi - lo != degree):
-        return None
-    if states == 2:
-        first = lo[order]
-        return IndifferenceOrder(tuple(order.tolist()), tuple(first.tolist()), 1, states)
-    return _quick_orientation(adj, states, order, pos, lo, hi, labels)
+    return np.lexsort((ahead, -back, dist, labels)).astype(np.int64), labels
 
 
 def _quick_orientation(

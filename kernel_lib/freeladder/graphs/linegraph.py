@@ -197,6 +197,14 @@ def line_graph_root(
     order = _bfs_order(adjacency, start)
     if len(order) != len(vertices):
         raise ValueError("line_graph_root needs the vertices of one connected component")
+    return _root_along(adjacency, order)
+
+
+def _root_along(
+    adjacency: Sequence[set[int]], order: Sequence[int]
+) -> LineGraphRoot | NotALineGraph:
+    """:func:`line_graph_root` given its breadth-first order (from the least vertex, each
+    vertex's new neighbours in ascending order)."""
     grown = _grow(adjacency, order, whitney_stop=False)
     if isinstance(grown, NotALineGraph):
         return grown
@@ -246,16 +254,18 @@ def component_root(adjacency: sps.csr_array, vertices: np.ndarray) -> LineGraphR
     local = csgraph.breadth_first_order(sub, 0, directed=True, return_predecessors=False)
     if len(local) != len(vertices):
         raise ValueError("component_root needs the vertices of one connected component")
+    # scipy's breadth-first order from the least vertex, neighbours in ascending (sorted CSR)
+    # order, is the one line_graph_root takes: the incremental algorithm can run along it
+    order = vertices[local]
     ends = _root_ends(sub)
     if ends is None:
-        return line_graph_root(sets, vertices.tolist())
-    order = vertices[local]
+        return _root_along(sets, order.tolist())
     early = _grow(sets, order.tolist(), whitney_stop=True)
     if isinstance(early, NotALineGraph):
-        return line_graph_root(sets, vertices.tolist())
+        return _root_along(sets, order.tolist())
     names = _mode_names(ends, local, early, vertices)
     if names is None:
-        return line_graph_root(sets, vertices.tolist())
+        return _root_along(sets, order.tolist())
     named = names[ends[local]]
     lo, hi = np.minimum(named[:, 0], named[:, 1]), np.maximum(named[:, 0], named[:, 1])
     pairs = dict(zip(order.tolist(), zip(lo.tolist(), hi.tolist(), strict=True), strict=True))

@@ -50,7 +50,14 @@ from ..base.cache import part
 from ..base.frozen import readonly_array, readonly_mapping
 from ..base.interrupt import polled
 from ..base.jsonready import json_ready
-from .clawfree import find_claw, find_even_hole, find_simplicial_clique
+from .clawfree import (
+    HoleSearch,
+    OrderCheck,
+    check_order,
+    find_claw,
+    find_even_hole,
+    find_simplicial_clique,
+)
 from .graph import (
     ADJACENCY,
     EXPONENTS,
@@ -58,7 +65,7 @@ from .graph import (
     chain_from_exponents,
     chain_structure,
 )
-from .indifference import IndifferenceOrder, order_from_exponents
+from .indifference import IndifferenceOrder, level_order, order_from_exponents
 from .linegraph import LineGraphRoot, component_root
 from .relations import Relation, Relations, find_relations
 from .switching import DipathSwitching, dipath_from_exponents
@@ -442,16 +449,21 @@ def classify(m: Model) -> Verdict:
     Notes
     -----
     Costs: line-graph recognition O(n + m) (incremental, see
-    :mod:`freeladder.graphs.linegraph`); claw
-    search O(n Delta^3); simplicial cliques by pruning the maximal cliques; even holes exact for
-    chordal graphs and by a budgeted search otherwise (its reason says when it did not decide).
+    :mod:`freeladder.graphs.linegraph`).  A component with an indifference ordering (found by
+    breadth-first levels and checked term by term, :func:`freeladder.graphs.clawfree.check_order`)
+    is claw-free and chordal with a simplicial clique read off the order, in O(n + m) (Roberts
+    1969; Rose, Tarjan and Lueker 1976).  Otherwise: claw search O(n Delta^3); simplicial
+    cliques by pruning the maximal cliques; even holes exact for chordal graphs and by a
+    budgeted search otherwise (its reason says when it did not decide).
 
     References
     ----------
     A. Chapman and S. T. Flammia, Quantum 4, 278 (2020);
     S. J. Elman, A. Chapman and S. T. Flammia, Commun. Math. Phys. 388, 969 (2021);
     A. Chapman, S. J. Elman and R. L. Mann, arXiv:2305.15625 (2023);
-    R. L. Mann, S. J. Elman, D. R. Wood and A. Chapman, arXiv:2408.09684 (2024).
+    R. L. Mann, S. J. Elman, D. R. Wood and A. Chapman, arXiv:2408.09684 (2024);
+    F. S. Roberts, in *Proof Techniques in Graph Theory* (Academic Press, 1969);
+    D. J. Rose, R. E. Tarjan and G. S. Lueker, SIAM J. Comput. 5, 266 (1976).
 
     Examples
     --------
@@ -484,11 +496,12 @@ def VERDICT(m: Model) -> Verdict:
     groups = np.split(order, np.cumsum(np.bincount(labels, minlength=n_comp))[:-1])
     if m.states == 2:
         groups.sort(key=lambda g: int(g[0]))
-        neighbours: list[set[int]] = []  # filled only when a component is not a line graph
+        neighbours: list[set[int]] = []  # filled only when a component needs the searches
+        checked: list[OrderCheck] = []  # filled only when a component is not a line graph
         comps = []
         next_mode = 0
         for g in groups:
-            comp, next_mode = _pauli_component(m, adj, neighbours, g, next_mode)
+            comp, next_mode = _pauli_component(m, adj, neighbours, checked, g, next_mode)
             comps.append(comp)
         whole_chain = chain_structure(m) if n_comp == 1 else None
         if whole_chain is not None:
@@ -822,26 +835,49 @@ def _pauli_component(
     m: Model,
     adj: sps.csr_array,
     adjacency: list[set[int]],
+    checked: list[OrderCheck],
     group: np.ndarray,
     first_mode: int,
 ) -> tuple[ComponentVerdict, int]:
-    """Classify one component; ``adjacency`` (neighbour sets) is filled on first need."""
+    """Classify one component; ``adjacency`` (neighbour sets) and ``checked`` (a candidate
+    indifference ordering of the whole graph, checked vertex by vertex) are filled on first
+    need."""
     terms = group.tolist()
     key = tuple(terms)
     root = component_root(adj, group)
     if isinstance(root, LineGraphRoot):
         return _jordan_wigner(key, root, first_mode), first_mode + root.n_modes
-    if not adjacency:
-        adjacency.extend(
-            set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist())
-            for v in polled(range(adj.shape[0]))
-        )
     not_line = (
         f"It is not a line graph: term {root.term} ({_string_text(m, root.term)}) and its "
         f"non-commuting partners among the terms placed before it ({_list(root.partners)}) "
         "admit no pair of Majorana modes, so no Jordan-Wigner-type map exists "
         f"({ref.CHAPMAN_FLAMMIA_2020})."
     )
+    if not checked:
+        checked.append(check_order(adj, level_order(adj)[0]))
+    clique = checked[0].simplicial_clique(group)
+    if clique is not None:
+        start = int(checked[0].position[group].min())
+        shown = checked[0].order[start : start + len(terms)]
+        found = (
+            f"In the order {_list(shown, 12)} each term's non-commuting partners form a "
+            "contiguous block around it, and the order is a perfect elimination ordering "
+            "(both checked term by term): the frustration graph is an indifference graph, "
+            f"hence claw-free ({ref.ROBERTS_1969}) and chordal ({ref.ROSE_TARJAN_LUEKER_1976}; "
+            "proofs in freeladder.graphs.clawfree.check_order). Its first "
+            f"term with its partners, {{{_list(clique)}}}, is a simplicial clique (for each "
+            "of these terms, its other non-commuting partners all fail to commute with each "
+            f"other), so the model is free in each symmetry sector ({ref.CHAPMAN_ELMAN_MANN_2023})."
+        )
+        holes = HoleSearch(
+            True, None, "the order is a perfect elimination ordering, so it has no holes at all"
+        )
+        return _hidden_free(key, (not_line, found), clique, holes), first_mode
+    if not adjacency:
+        adjacency.extend(
+            set(adj.indices[adj.indptr[v] : adj.indptr[v + 1]].tolist())
+            for v in polled(range(adj.shape[0]))
+        )
     claw = find_claw(adjacency, terms)
     if claw is not None:
         centre, *leaves = claw
@@ -862,13 +898,20 @@ def _pauli_component(
             f"({ref.CHAPMAN_ELMAN_MANN_2023})."
         )
         return ComponentVerdict(key, "integrable", (not_line, text)), first_mode
-    reasons = [
-        not_line,
+    found = (
         f"It is claw-free and has the simplicial clique {{{_list(clique)}}} (for each of these "
         "terms, its other non-commuting partners all fail to commute with each other), so the "
-        f"model is free in each symmetry sector ({ref.CHAPMAN_ELMAN_MANN_2023}).",
-    ]
+        f"model is free in each symmetry sector ({ref.CHAPMAN_ELMAN_MANN_2023})."
+    )
     holes = find_even_hole(adjacency, terms)
+    return _hidden_free(key, (not_line, found), clique, holes), first_mode
+
+
+def _hidden_free(
+    key: tuple[int, ...], found: tuple[str, ...], clique: tuple[int, ...], holes: HoleSearch
+) -> ComponentVerdict:
+    """A claw-free component with a simplicial clique, and what is known of its even holes."""
+    reasons = list(found)
     witness: tuple[int, ...] = ()
     if holes.hole is not None:
         witness = holes.hole
@@ -887,7 +930,7 @@ def _pauli_component(
     else:
         reasons.append(f"Whether it has an even hole was {holes.reason}.")
         free = None
-    comp = ComponentVerdict(
+    return ComponentVerdict(
         key,
         "hidden-free",
         tuple(reasons),
@@ -896,7 +939,6 @@ def _pauli_component(
         even_hole_free=free,
         even_hole=holes.hole,
     )
-    return comp, first_mode
 
 
 def _jordan_wigner(key: tuple[int, ...], root: LineGraphRoot, first_mode: int) -> ComponentVerdict:

@@ -27,6 +27,7 @@ import numpy as np
 
 from ..algebra.model import Model
 from ..algebra.printing import format_terms, format_terms_latex
+from ..algebra.strings import WeylString
 from ..algebra.syntax import parse_model
 from ..analysis import Analysis, analyze
 from ..base import display
@@ -37,11 +38,12 @@ from ..graphs.graph import ADJACENCY
 from ..spectra.answer import SpectrumAnswer
 from ..spectra.charges import transfer_matrix
 from ..spectra.ed import ExactSpectrum
+from ..spectra.majorana import sectors
 from ..spectra.spectrum import FreeSpectrum
 
 __all__ = ["STEPS", "Cell", "WorkedCalculation", "worked_calculation"]
 
-STEPS = ("model", "verdict", "charges", "polynomial", "spectrum", "levels", "checks")
+STEPS = ("model", "verdict", "charges", "polynomial", "spectrum", "levels", "dynamics", "checks")
 """The steps a worked calculation can hold, in order ("model" is always included)."""
 
 SHOWN_ORDERS = 12
@@ -466,7 +468,7 @@ def _collect(a: Analysis) -> _Facts:
     inversion: bool | None = None
     if m.dimension <= DENSE_LIMIT and sum(counts) <= DENSE_SETS:
         inversion = _dense_inversion(m, poly)
-    dense = a.exact
+    dense = a.exact if m.dimension <= DENSE_LIMIT else None
     return _Facts(
         m,
         a.verdict,
@@ -527,11 +529,18 @@ def _intro(f: _Facts) -> list[Cell]:
 def _imports(cells: Sequence[Cell]) -> str:
     """The imports the code cells use, and only those (lint-clean exports)."""
     code = "\n".join(c.source for c in cells if c.kind == "code")
-    lines = ["import hashlib"] if "hashlib." in code else []
+    lines = ["import functools"] if "functools." in code else []
+    if "hashlib." in code:
+        lines.append("import hashlib")
     if "Fraction(" in code:
         lines.append("from fractions import Fraction")
-    if "np." in code:
-        lines += ["", "import numpy as np"]
+    third = ["import numpy as np"] if "np." in code else []
+    if "sps." in code:
+        third.append("import scipy.sparse as sps")
+    if "eigsh(" in code:
+        third.append("from scipy.sparse.linalg import LinearOperator, eigsh")
+    if third:
+        lines += ["", *third]
     lines += ["", "import freeladder as fl"]
     if "NoTheoremError" in code:
         lines.append("from freeladder.base.errors import NoTheoremError")
@@ -810,12 +819,23 @@ SHOWN_EXACT = 4
 """How many of the lowest exact levels are exported."""
 
 
+SPARSE_EXPORT_DIMENSION = 2**16
+"""Largest dimension for which the exported cells diagonalise the Hamiltonian themselves
+(scipy's Lanczos on a matrix of the whole space built in the cell from Kronecker products)."""
+
+SPARSE_EXPORT_LEVELS = 10
+"""How many lowest eigenvalues that cell asks Lanczos for (4 distinct levels and one more
+when each is twofold)."""
+
+
 def _exact_cells(f: _Facts) -> list[Cell]:
     """The lowest levels of exact diagonalization, asserted: they move with any coupling,
-    also where the charges and the polynomial see only the couplings' N-th powers."""
+    also where the charges and the polynomial see only the couplings' N-th powers.  Above
+    dimension :data:`DENSE_LIMIT`, a cell that builds H and the sector itself, without
+    freeladder, and compares its lowest levels with the free ones."""
     ed = f.exact
     if ed is None:
-        return []
+        return _sparse_exact_cells(f)
     shown = min(SHOWN_EXACT, len(ed.levels))
     levels = [complex(v) for v in ed.levels[:shown]]
     mults = [int(d) for d in ed.multiplicities[:shown]]
@@ -843,6 +863,159 @@ def _exact_cells(f: _Facts) -> list[Cell]:
         "print(ed)"
     )
     return [Cell("markdown", md), Cell("code", code)]
+
+
+def _pauli_word(g: WeylString, sites: Sequence[Any]) -> tuple[str, complex]:
+    """The string as one Pauli letter per site, and the phase left over (``Y = i X Z``)."""
+    exps = g.exponents()
+    letters = []
+    for site in sites:
+        a, b = exps.get(site, (0, 0))
+        letters.append("IZXY"[2 * (a % 2) + (b % 2)])
+    phase = (g.phase - letters.count("Y")) % 4
+    return "".join(letters), (1, 1j, -1, -1j)[phase]
+
+
+def _distinct(values: Sequence[float], tol: float) -> list[float]:
+    out: list[float] = []
+    for v in sorted(values):
+        if not out or v - out[-1] > tol:
+            out.append(float(v))
+    return out
+
+
+_SPARSE_SOURCE = """\
+pauli = {
+    "I": sps.identity(2, format="csr"),
+    "X": sps.csr_array(np.array([[0, 1], [1, 0]], dtype=complex)),
+    "Y": sps.csr_array(np.array([[0, -1j], [1j, 0]])),
+    "Z": sps.csr_array(np.array([[1, 0], [0, -1]], dtype=complex)),
+}
+
+
+def word_matrix(word):
+    factors = [pauli[letter] for letter in word]
+    return functools.reduce(lambda a, b: sps.kron(a, b, format="csr"), factors)
+
+
+H = constant * sps.identity(2**len(terms[0][1]), format="csr", dtype=complex)
+for coupling, word in terms:
+    H = H + coupling * word_matrix(word)
+cycle_matrices = [(value, word_matrix(word)) for value, word in cycles]
+if not np.any(H.data.imag) and not any(np.any(w.data.imag) for _, w in cycle_matrices):
+    H = H.real  # real arithmetic: half the work
+    cycle_matrices = [(value, w.real) for value, w in cycle_matrices]
+
+
+def project(v):
+    for value, w in cycle_matrices:
+        v = (v + value * (w @ v)) / 2
+    return v
+
+
+# P (H - shift) P: the sector's levels minus shift (negative), every other vector at 0
+shift = abs(constant) + sum(abs(coupling) for coupling, _ in terms)
+
+
+def apply(v):
+    pv = project(v)
+    return project(H @ pv) - shift * pv
+
+
+operator = LinearOperator(H.shape, matvec=apply, dtype=H.dtype)
+start = project(np.random.default_rng(1).standard_normal(H.shape[0]).astype(H.dtype))
+ritz = np.sort(eigsh(operator, k=LANCZOS_K, which="SA", v0=start, return_eigenvectors=False).real)
+ritz = ritz + shift
+distinct = [ritz[0]]
+for value in ritz[1:]:
+    if value - distinct[-1] > cluster_tol:
+        distinct.append(value)
+compared = min(len(expected_free), len(distinct) - 1)
+sparse_error = np.abs(np.array(distinct[:compared]) - np.array(expected_free[:compared]))
+print("Lanczos levels:", distinct[:compared], "largest difference:", sparse_error.max())
+assert compared >= 1 and np.all(sparse_error <= sparse_tol), (sparse_error, sparse_tol)"""
+
+
+def _sparse_exact_cells(f: _Facts) -> list[Cell]:
+    """Above :data:`DENSE_LIMIT`: the lowest distinct levels of the same sector as the free
+    ones, from a matrix the cell builds with scipy alone (independent of freeladder), or a
+    markdown cell saying why this check is not run."""
+    m, sp, ans = f.model, f.spectrum, f.answer
+    head = "## Exact diagonalization of the same sector\n\n"
+    if sp is None:
+        return []
+    n_sites = len(m.sites)
+    why = ""
+    if m.states != 2 or np.iscomplexobj(sp.quasi_energies):
+        why = "complex levels: the lowest are not ordered on a line"
+    elif m.dimension > SPARSE_EXPORT_DIMENSION:
+        why = (
+            f"dimension 2^{n_sites} above 2^{SPARSE_EXPORT_DIMENSION.bit_length() - 1}, the "
+            "largest a cell diagonalises itself"
+        )
+    elif (sp.degeneracy or 1) > 2 and ans.route != "sector":
+        why = (
+            f"every level {sp.degeneracy} times degenerate (Lanczos finds one vector per "
+            "level: slow and partial there)"
+        )
+    if why:
+        return [Cell("markdown", f"{head}Exact check not run: {why}.")]
+    values = ans.cycle_values if ans.route == "sector" else ()
+    gens = sectors(m).cycle_operators if values else ()
+    cycles = [
+        (int(v), _pauli_word(g, m.sites)) for g, v in zip(gens, values, strict=True) if g.support
+    ]
+    terms = []
+    for c, g in m.terms:
+        word, phase = _pauli_word(g, m.sites)
+        terms.append((complex(c) * phase, word))
+    for _, (word, phase) in cycles:
+        if phase not in (1, -1):
+            return [Cell("markdown", f"{head}Exact check not run: {word} is not Hermitian.")]
+    energies = [float(np.real(e)) for e in sp.levels(4 * SPARSE_EXPORT_LEVELS).energies]
+    scale = max(1.0, max(abs(e) for e in energies))
+    level_tol = float(np.sum(_tolerances(sp)))
+    cluster = 1e-9 * scale
+    free = _distinct(energies, cluster)[:SHOWN_EXACT]
+    where = (
+        "the sector "
+        + ", ".join(f"${g} = {v:+d}$" for g, v in zip(ans.cycle_strings, values, strict=True))
+        + f" ({ans.selection})"
+        if values
+        else "the whole space"
+    )
+    md = (
+        f"{head}The free levels above belong to {where}. This cell checks the lowest "
+        f"{len(free)} distinct ones without freeladder: it builds $H$ "
+        f"({m.dimension} x {m.dimension}) from Kronecker products of 2 x 2 Pauli matrices "
+        "with scipy.sparse, projects onto the sector with $P = \\prod_i (1 + v_i W_i)/2$ "
+        "over its cycle strings $W_i$ (built the same way), and finds the lowest eigenvalues "
+        "of $P (H - s) P$ with scipy's Lanczos (`eigsh`; every vector outside the sector "
+        "sits at 0, above the sector's levels, for $s = \\sum |c_j| \\ge \\|H\\|$). "
+        "Lanczos resolves distinct levels, not multiplicities. Tolerance: the levels' "
+        f"bounds plus $10^{{-8}}$ of the spectral scale (Lanczos converges to rounding; "
+        "common practice)."
+    )
+    cycle_rows = [f"({value}, {json.dumps(word)})" for value, (word, _) in cycles]
+    term_rows = [f"({_literal(_real_if(c))}, {json.dumps(w)})" for c, w in terms]
+    code = (
+        "# H and the sector built from Pauli letters, one per site (no freeladder here)\n"
+        + _wrapped("terms = [", term_rows, "]")
+        + "\n"
+        + _wrapped("cycles = [", cycle_rows, "]")
+        + "\n"
+        + f"constant = {_literal(_real_if(complex(m.constant)))}\n"
+        + f"expected_free = {_array_literal(free)}\n"
+        + f"cluster_tol = {_float_literal(cluster)}\n"
+        + f"sparse_tol = {_float_literal(level_tol)} + 1e-8 * {_float_literal(scale)}\n"
+        + f"LANCZOS_K = {SPARSE_EXPORT_LEVELS}\n"
+        + _SPARSE_SOURCE
+    )
+    return [Cell("markdown", md), Cell("code", code)]
+
+
+def _real_if(c: complex) -> complex | float:
+    return c.real if c.imag == 0 else c
 
 
 def _check_cells(f: _Facts) -> list[Cell]:
@@ -884,6 +1057,168 @@ def _check_cells(f: _Facts) -> list[Cell]:
         )
     )
     return [Cell("markdown", md), Cell("code", code)]
+
+
+SHOWN_MODES = 6
+"""How many edge modes (those of largest weight) the dynamics section exports."""
+
+_KEMP_2017 = "J. Kemp, N. Y. Yao, C. R. Laumann and P. Fendley, J. Stat. Mech. (2017) 063105"
+
+
+def _dynamics_of(f: _Facts) -> tuple[Any, str]:
+    """The checked edge autocorrelation (a part of the analysis), or why there is none."""
+    try:
+        return analyze(f.model).dynamics(), ""
+    except (ValueError, ArithmeticError) as err:
+        return None, str(err)
+
+
+def _dynamics_cells(f: _Facts) -> list[Cell]:
+    """The edge autocorrelation: weights, plateau and a few values, asserted, and checked
+    against dense exact evolution (small models) or the sum rule and C(0) = 1."""
+    dyn, why = _dynamics_of(f)
+    if dyn is None:
+        return [Cell("markdown", f"## Edge dynamics\n\nNot computed: {_sentence(why)}")]
+    a = dyn.autocorrelation
+    e = a.expansion
+    n = f.model.states
+    shown = sorted(int(k) for k in np.argsort(-np.abs(e.weights), kind="stable")[:SHOWN_MODES])
+    rows = ["| k | $\\eta_k$ | $W_k$ | error |", "| --- | --- | --- | --- |"]
+    for k in shown:
+        rows.append(
+            f"| {k + 1} | {_num(e.quasi_energies[k])} | {_num(e.weights[k])} | "
+            f"{display.bound_text(float(e.weight_errors[k]))} |"
+        )
+    values = ", ".join(f"C({_num(t)}) = {_num(v)}" for t, v in zip(a.times, a.values, strict=True))
+    series = (
+        "w_0 + \\sum_k W_k \\cos(2 \\eta_k t)"
+        if e.hermitian
+        else f"w_0 + \\sum_k \\frac{{W_k}}{{{n}}} \\sum_{{s=0}}^{{{n - 1}}} e^{{i t f_{{k,s}}}}"
+    )
+    balls = e.weight_balls
+    exact_note = (
+        f" The couplings are exact: every $W_k$ lies in a proved ball (radius at most "
+        f"{display.bound_text(float(np.max(balls.radii)))}), $w_0 = {balls.zero_weight}$ "
+        "exactly, and the ball of $w_0 + \\sum_k W_k$ holds 1."
+        if balls is not None
+        else ""
+    )
+    md = (
+        "## Edge dynamics\n\n"
+        f"The edge operator $\\chi$ = `{a.operator}` fails to commute with one term only, "
+        f"term {e.term}. Its infinite-temperature autocorrelation is a sum over the modes "
+        f"({refs.FENDLEY_2019}):\n\n"
+        f"$$C(t) = \\mathrm{{Tr}}[\\chi^\\dagger \\chi(t)] / \\dim = {series},$$\n\n"
+        "with $W_k = -P_a(y_k) / (y_k P'(y_k))$ ($P_a$ the polynomial without the edge term) "
+        f"and the plateau $w_0 = {_num(a.plateau)}$, the weight of an exact zero mode (0 "
+        f"without one; {_KEMP_2017}). The {len(shown)} largest of the {e.weights.size} weights:\n\n"
+        + "\n".join(rows)
+        + f"\n\nValues: {values}. Checked: {dyn.method}.{exact_note}"
+    )
+    times = [float(t) for t in a.times]
+    code = (
+        f"times = {_array_literal(times)}\n"
+        f"shown = {shown!r}\n"
+        f"expected_weights = np.array({_array_literal(e.weights[shown])})\n"
+        f"expected_weight_errors = np.array({_array_literal(e.weight_errors[shown])})\n"
+        f"expected_plateau = {_literal(a.plateau)}\n"
+        f"expected_values = np.array({_array_literal(a.values)})\n"
+        f"expected_value_errors = np.array({_array_literal(a.errors)})\n"
+        "dyn = fl.autocorrelation(m, times)\n"
+        "e = dyn.expansion\n"
+        f"assert dyn.operator == {json.dumps(a.operator)}, dyn.operator\n"
+        f"assert len(e.weights) == {e.weights.size}, len(e.weights)\n"
+        f"ulps = {ULPS} * np.spacing(1.0)\n"
+        "weight_tol = expected_weight_errors + e.weight_errors[shown] + ulps\n"
+        "moved = np.abs(e.weights[shown] - expected_weights)\n"
+        'assert np.all(moved <= weight_tol), ("weights moved", moved, weight_tol)\n'
+        "plateau_tol = expected_weight_errors.sum() + ulps\n"
+        'assert abs(dyn.plateau - expected_plateau) <= plateau_tol, ("plateau", dyn.plateau)\n'
+        "value_tol = expected_value_errors + dyn.errors + ulps\n"
+        "moved = np.abs(dyn.values - expected_values)\n"
+        'assert np.all(moved <= value_tol), ("values moved", moved, value_tol)\n'
+        + (
+            "balls = e.weight_balls  # proved balls from the exact polynomial\n"
+            f"assert balls.zero_weight == {_literal(balls.zero_weight)}, balls.zero_weight\n"
+            'assert balls.sum_is_one and balls.agreement <= 1, ("certified weights", balls)\n'
+            if balls is not None and not isinstance(balls.zero_weight, tuple)
+            else ""
+        )
+        + "print(dyn)"
+    )
+    return [Cell("markdown", md), Cell("code", code), Cell("code", _dynamics_check_code(dyn))]
+
+
+def _dynamics_check_code(dyn: Any) -> str:
+    """The independent recomputation: dense exact evolution with numpy, or the identities."""
+    a = dyn.autocorrelation
+    if not dyn.method.startswith("dense"):
+        return (
+            "# the identities of the expansion (the model is too large for dense evolution)\n"
+            "e = dyn.expansion\n"
+            "residual = abs(e.zero_weight + e.weights.sum() - 1)\n"
+            'assert residual <= 1e-9 + e.weight_errors.sum(), ("sum rule", residual)\n'
+            'assert abs(dyn.values[0] - 1) <= 1e-9, ("C(0)", dyn.values[0])\n'
+            'print("sum rule and C(0) = 1 hold")'
+        )
+    times = [float(t) for t in a.times]
+    dense_times = [t for t, c in zip(times, dyn.compared, strict=True) if c]
+    tols = [v for v, c in zip(dyn.tolerances, dyn.compared, strict=True) if c]
+    head = (
+        "# independent: exact evolution of the dense Hamiltonian (numpy, full trace)\n"
+        "h = m.to_sparse().toarray()\n"
+        "chi = fl.parse_model(dyn.operator, states=m.states, sites=m.sites)\n"
+        "chi = chi.to_sparse().toarray()\n"
+        f"dense_times = {_array_literal(dense_times)}\n"
+        f"dense_tol = np.array({_array_literal(tols)})\n"
+    )
+    if dyn.hermitian:
+        body = (
+            "energies, vectors = np.linalg.eigh(h)\n"
+            "overlap = np.abs(vectors.conj().T @ chi @ vectors) ** 2\n"
+            "gaps = energies[:, None] - energies[None, :]\n"
+            "dense = [np.sum(overlap * np.exp(1j * gaps * t)) for t in dense_times]\n"
+        )
+    else:
+        body = (
+            "d, v = np.linalg.eig(h)  # H is not Hermitian: e^{-iHt} = V e^{-iDt} V^-1\n"
+            "vinv = np.linalg.inv(v)\n"
+            "dense = [\n"
+            "    np.trace(chi.conj().T @ (v * np.exp(1j * d * t)) @ vinv @ chi\n"
+            "             @ (v * np.exp(-1j * d * t)) @ vinv)\n"
+            "    for t in dense_times\n"
+            "]\n"
+        )
+    return (
+        head + body + "dense = np.array(dense) / len(h)\n"
+        "compared = expected_values[[times.index(t) for t in dense_times]]\n"
+        "moved = np.abs(dense - compared)\n"
+        'assert np.all(moved <= dense_tol), ("dense evolution differs", moved, dense_tol)\n'
+        'print("dense exact evolution agrees at t =", dense_times)'
+    )
+
+
+def _dynamics_latex(f: _Facts) -> list[str]:
+    """The edge autocorrelation in a paragraph: operator, plateau, values, how checked."""
+    dyn, _ = _dynamics_of(f)
+    if dyn is None:
+        return []
+    a, tex = dyn.autocorrelation, display.tex_escape
+    values = ", ".join(
+        f"$C({display.number_latex(t)}) = {display.number_latex(v)}$"
+        for t, v in zip(a.times, a.values, strict=True)
+    )
+    return [
+        "\\begin{sloppypar}",
+        f"\\paragraph{{Edge dynamics.}} The edge operator \\texttt{{{tex(a.operator)}}} has the "
+        "infinite-temperature autocorrelation "
+        "$C(t) = \\mathrm{Tr}[\\chi^\\dagger \\chi(t)]/\\dim$, "
+        f"a sum over {a.expansion.weights.size} modes with plateau "
+        f"$w_0 = {display.number_latex(a.plateau)}$ ({tex(refs.FENDLEY_2019)}; "
+        f"{tex(_KEMP_2017)}): {values}. Checked: {tex(dyn.method)}.",
+        "\\end{sloppypar}",
+        "",
+    ]
 
 
 _LATEX_PREAMBLE = (
@@ -938,6 +1273,7 @@ def _latex_section(f: _Facts) -> str:
             shown = display.number_latex(eta, display.digits_for(eta, float(b)))
             out.append(f"{k} & {shown} & {display.bound_text(float(b))} \\\\")
         out += ["\\end{longtable}"]
+    out += _dynamics_latex(f)
     out += [
         "\\begin{longtable}{p{0.22\\linewidth}p{0.36\\linewidth}p{0.2\\linewidth}"
         "p{0.1\\linewidth}}",
@@ -1038,6 +1374,7 @@ def build_worked(a: Analysis, steps: str | Sequence[str] = "all") -> WorkedCalcu
         "polynomial": _polynomial_cells,
         "spectrum": _spectrum_cells,
         "levels": _level_cells,
+        "dynamics": _dynamics_cells,
         "checks": lambda facts: _exact_cells(facts) + _check_cells(facts),
     }
     for name in STEPS[1:]:

@@ -23,6 +23,7 @@ from .dynamics import (
     EdgeExpansion,
     TwoPoint,
     autocorrelation,
+    certified_edge_weights,
     edge_expansion,
     two_point,
 )
@@ -31,6 +32,7 @@ from .ed import (
     SPARSE_LIMIT,
     ExactSpectrum,
     exact_spectrum,
+    sector_dimension,
     sector_exact_spectrum,
     sparse_memory,
 )
@@ -75,6 +77,7 @@ from .thermo import (
     log_partition_function,
     thermodynamics,
 )
+from .weight_balls import WeightBalls
 
 __all__ = [
     "CircuitAutocorrelation",
@@ -82,7 +85,9 @@ __all__ = [
     "Autocorrelation",
     "EdgeExpansion",
     "TwoPoint",
+    "WeightBalls",
     "autocorrelation",
+    "certified_edge_weights",
     "edge_expansion",
     "two_point",
     "SectorRow",
@@ -113,6 +118,7 @@ __all__ = [
     "components",
     "edge_mode",
     "exact_spectrum",
+    "sector_dimension",
     "sector_exact_spectrum",
     "sparse_memory",
     "flux_sector",

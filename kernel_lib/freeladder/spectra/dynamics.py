@@ -76,6 +76,7 @@ from ..algebra.strings import WeylString
 from ..algebra.syntax import parse_model
 from ..base.errors import NotExpandableError
 from ..base.frozen import readonly_array, readonly_mapping
+from ..base.interrupt import poll
 from ..base.jsonready import json_ready
 from ..base.lazy import njit, prange
 from ..graphs.graph import chain_structure
@@ -83,13 +84,16 @@ from ..graphs.indifference import indifference_order
 from ..graphs.relations import find_relations
 from ..roots import real as real_roots
 from ..roots.methods import scaled_weights, solve_chain
+from . import weight_balls as _balls
 from .edge import component_model, components, edge_mode
+from .weight_balls import WeightBalls
 
 __all__ = [
     "Autocorrelation",
     "EdgeExpansion",
     "TwoPoint",
     "autocorrelation",
+    "certified_edge_weights",
     "edge_expansion",
     "two_point",
 ]
@@ -97,9 +101,11 @@ __all__ = [
 _EPS = float(np.finfo(np.float64).eps)
 _CHUNK = 2_000_000  # modes x times per block of the time series
 _TINY = 2.0**-256  # a zero ratio becomes -_TINY (as in roots.real)
-_S_MAX = 2.0**1000  # the float64 ratio loop gives up beyond this
-_P_HI = 2.0**500  # prefix mantissas are renormalised outside [_P_LO, _P_HI]
-_P_LO = 2.0**-500
+_S_MAX = 2.0**900  # the float64 ratio loop gives up beyond this
+_P_HI = 2.0**64  # prefix mantissas are renormalised outside [_P_LO, _P_HI]
+_P_LO = 2.0**-64
+_LANES = 16  # points evaluated side by side along the chain
+_STEPS_PER_CALL = 1e8  # points x terms per compiled call of the weights (Ctrl-C stays prompt)
 
 
 @dataclass(frozen=True)
@@ -145,6 +151,10 @@ class EdgeExpansion:
         size of its terms.
     method : str
         How the roots and weights were computed.
+    weight_balls : WeightBalls or None
+        For exact couplings and a polynomial of degree up to 24: the weights in proved balls,
+        the exact ``w_0`` and the check of the float weights against them
+        (:func:`certified_edge_weights`); None otherwise.
     """
 
     operator: str
@@ -161,6 +171,7 @@ class EdgeExpansion:
     frequencies: np.ndarray
     sum_rules: Mapping[str, float]
     method: str
+    weight_balls: WeightBalls | None = None
 
     def __post_init__(self) -> None:
         for name in (
@@ -202,7 +213,8 @@ class EdgeExpansion:
     def __repr__(self) -> str:
         return (
             f"EdgeExpansion(chi = {self.operator}, {len(self.weights)} modes, zero weight "
-            f"{_short(self.zero_weight)}, largest weight error {_worst(self.weight_errors)})"
+            f"{_short(self.zero_weight)}, largest weight error {_worst(self.weight_errors)}"
+            f"{_balls_note(self.weight_balls)})"
         )
 
 
@@ -343,6 +355,14 @@ def _short(v: Any) -> str:
     return f"{float(v):.6g}"
 
 
+def _balls_note(b: WeightBalls | None) -> str:
+    if b is None:
+        return ""
+    if not b.verified:
+        return "; CERTIFIED WEIGHTS DISAGREE (see weight_balls)"
+    return f"; certified in balls of radius <= {_worst(b.radii)}"
+
+
 def _worst(errors: np.ndarray) -> str:
     return f"{float(np.max(errors)):.2g}" if errors.size else "0"
 
@@ -367,12 +387,16 @@ def _as_string(m: Model, op: str | WeylString, what: str) -> tuple[WeylString, c
 
 
 def _hits(m: Model, chi: WeylString) -> list[tuple[int, int]]:
-    out = []
-    for j, g in enumerate(m.strings):
-        e = chi.commutation_exponent(g)
-        if e:
-            out.append((j, e))
-    return out
+    """``(j, e)`` for every term ``g_j`` with ``chi g_j = omega^e g_j chi``, e != 0."""
+    col = {site: j for j, site in enumerate(m.sites)}
+    xc = np.zeros(len(col), dtype=np.int64)
+    zc = np.zeros(len(col), dtype=np.int64)
+    for site, (a, b) in chi.exponents().items():
+        if site in col:  # a site no term acts on commutes with every term
+            xc[col[site]], zc[col[site]] = a, b
+    g = m.strings
+    e = np.asarray(g.x @ zc - g.z @ xc) % m.states
+    return [(int(j), int(e[j])) for j in np.nonzero(e)[0]]
 
 
 def _reverse_back(back: np.ndarray) -> np.ndarray:
@@ -391,7 +415,7 @@ class _Edge:
             raise TypeError(f"expected a freeladder Model, got {type(m).__name__}")
         if len(m) == 0:
             raise NotExpandableError("the model has no terms")
-        m.coupling_array()  # a clear error for symbolic couplings
+        couplings = np.asarray(m.coupling_array())  # a clear error for symbolic couplings
         if operator is None:
             found = edge_mode(m)
             if not found.found or found.string is None:
@@ -427,8 +451,7 @@ class _Edge:
         self.model = m
         self.terms = np.asarray(comp, dtype=np.int64)[order]
         self.back = back
-        c = np.asarray(m.coupling_array())[self.terms]
-        self.couplings = c
+        self.couplings = couplings[self.terms]
 
     @staticmethod
     def _ordering(sub: Model) -> tuple[np.ndarray, np.ndarray]:
@@ -502,88 +525,120 @@ def _prefix_values(wm, we, back, ym, ye, pm, pe):  # type: ignore[no-untyped-def
 
 
 @njit(cache=True, boundscheck=False, error_model="numpy")
-def _prefix_fast(wm, we, back, ym, ye, pm, pe):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
-    """:func:`_prefix_values` with plain float64 ratios (y and every ``s_k`` in range).
+def _prefix_lanes(w, back, ring, y, pm, pe, ok):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """:func:`_prefix_values` with plain float64 ratios at several points ``y`` at once.
 
-    Returns False when some ``|s_k|`` left ``[0, 2**1000]`` or was not finite (then the caller
-    uses :func:`_prefix_values`); prefix values keep a mantissa and a power of two,
-    renormalised only when the mantissa leaves ``[2**-500, 2**500]``.
+    ``P_k(y_l)`` is stored at ``pm[k + 1, l] * 2**pe[k + 1, l]``, the mantissa renormalised
+    only when it leaves ``[2**-64, 2**64]``.  The points (lanes) run side by side in the inner
+    loop, so the division chains of different points overlap.  ``ok[l]`` is False when some
+    ``|s_k|`` left ``[0, 2**900]`` or was not finite (the caller then uses
+    :func:`_prefix_values` for that point).
     """
-    m = wm.size
-    ring = 1
+    m = w.size
+    lanes = y.size
+    inv = np.ones((ring, lanes), dtype=pm.dtype)
+    cur = np.ones(lanes, dtype=pm.dtype)
+    ce = np.zeros(lanes, dtype=np.int64)
+    s = np.empty(lanes, dtype=pm.dtype)
+    for j in range(lanes):
+        pm[0, j] = cur[j]
+        pe[0, j] = 0
+        ok[j] = True
     for k in range(m):
-        ring = max(ring, back[k])
-    inv = np.ones(ring, dtype=wm.dtype)
-    y = ym * math.ldexp(1.0, ye)
-    wy = np.empty(m, dtype=wm.dtype)
-    for k in range(m):
-        wy[k] = y * wm[k] * math.ldexp(1.0, we[k])
-    cur = inv[0]
-    ce = 0
-    pm[0] = cur
-    pe[0] = 0
-    for k in range(m):
-        sk = wy[k]
+        wk = w[k]
+        for j in range(lanes):
+            s[j] = y[j] * wk
         for i in range(1, back[k] + 1):
-            sk = sk * inv[(k - i) % ring]
-        if not abs(sk) <= _S_MAX:
-            return False
-        r = 1.0 - sk
-        if abs(r) < _TINY:
-            r = r * 0.0 - _TINY
-        inv[k % ring] = 1.0 / r
-        cur = cur * r
-        a = abs(cur)
-        if a > _P_HI or a < _P_LO:
-            cur, d = _norm(cur)
-            ce += d
-        pm[k + 1] = cur
-        pe[k + 1] = ce
-    return True
+            slot = (k - i) % ring
+            for j in range(lanes):
+                s[j] = s[j] * inv[slot, j]
+        here = k % ring
+        for j in range(lanes):
+            sk = s[j]
+            if not abs(sk) <= _S_MAX:
+                ok[j] = False
+                sk = wk * 0.0
+            r = 1.0 - sk
+            if abs(r) < _TINY:
+                r = r * 0.0 - _TINY
+            inv[here, j] = 1.0 / r
+            c = cur[j] * r
+            a = abs(c)
+            if a > _P_HI or a < _P_LO:
+                c, d = _norm(c)
+                ce[j] += d
+            cur[j] = c
+            pm[k + 1, j] = c
+            pe[k + 1, j] = ce[j]
 
 
 @njit(cache=True, boundscheck=False, error_model="numpy")
-def _weight_at(wm, we, back, wm_rev, we_rev, back_rev, last, ym, ye):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
-    """``W = P_{M-2}(y) / (y sum_j w_j P_{L(j)}(y) P_{R(j)}(y))`` (the edge term last).
+def _weights_lanes(w, wm, we, back, w_rev, wm_rev, we_rev, back_rev, last, ym, ye, out):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """``W = P_{M-2}(y) / (y sum_j w_j P_{L(j)}(y) P_{R(j)}(y))`` (the edge term last) at the
+    points ``y = ym 2**ye`` of one block.
 
     ``L(j)`` are the terms before j's first neighbour (a prefix, evaluated from the far end)
     and ``R(j)`` those after its last neighbour (a suffix, evaluated from the edge end); the
     sum is ``-P_M'(y)``.
     """
     m = wm.size
-    pm = np.empty(m + 1, dtype=wm.dtype)
-    pe = np.empty(m + 1, dtype=np.int64)
-    qm = np.empty(m + 1, dtype=wm.dtype)
-    qe = np.empty(m + 1, dtype=np.int64)
-    if not (abs(ye) < 900 and _prefix_fast(wm, we, back, ym, ye, pm, pe)):
-        _prefix_values(wm, we, back, ym, ye, pm, pe)
-    if not (abs(ye) < 900 and _prefix_fast(wm_rev, we_rev, back_rev, ym, ye, qm, qe)):
-        _prefix_values(wm_rev, we_rev, back_rev, ym, ye, qm, qe)
-    top = -(2**62)
-    for j in range(m):
-        top = max(top, we[j] + pe[j - back[j]] + qe[m - 1 - last[j]])
-    total = wm[0] * 0.0
-    e_now = 0
-    scale = 1.0
-    for j in range(m):
-        e = we[j] + pe[j - back[j]] + qe[m - 1 - last[j]] - top
-        if e > -1100:
-            if e != e_now:
-                e_now = e
-                scale = math.ldexp(1.0, e)
-            total += wm[j] * pm[j - back[j]] * qm[m - 1 - last[j]] * scale
-    tm, te = _norm(total)
-    if tm == 0.0:
-        return tm + np.inf
-    ratio, dr = _norm(pm[m - 1] / (ym * tm))
-    e = pe[m - 1] + dr - ye - top - te
-    return ratio * math.ldexp(1.0, max(min(e, 1100), -1100))
+    lanes = ym.size
+    ring = 1
+    for k in range(m):
+        ring = max(ring, back[k], back_rev[k])
+    pm = np.empty((m + 1, lanes), dtype=wm.dtype)
+    pe = np.empty((m + 1, lanes), dtype=np.int64)
+    qm = np.empty((m + 1, lanes), dtype=wm.dtype)
+    qe = np.empty((m + 1, lanes), dtype=np.int64)
+    ok = np.empty(lanes, dtype=np.bool_)
+    ok_rev = np.empty(lanes, dtype=np.bool_)
+    y = np.empty(lanes, dtype=wm.dtype)
+    for j in range(lanes):
+        y[j] = ym[j] * math.ldexp(1.0, ye[j]) if abs(ye[j]) < 900 else ym[j] * 0.0
+    _prefix_lanes(w, back, ring, y, pm, pe, ok)
+    _prefix_lanes(w_rev, back_rev, ring, y, qm, qe, ok_rev)
+    one_m = np.empty(m + 1, dtype=wm.dtype)
+    one_e = np.empty(m + 1, dtype=np.int64)
+    for j in range(lanes):
+        if abs(ye[j]) >= 900 or not ok[j]:
+            _prefix_values(wm, we, back, ym[j], ye[j], one_m, one_e)
+            pm[:, j] = one_m
+            pe[:, j] = one_e
+        if abs(ye[j]) >= 900 or not ok_rev[j]:
+            _prefix_values(wm_rev, we_rev, back_rev, ym[j], ye[j], one_m, one_e)
+            qm[:, j] = one_m
+            qe[:, j] = one_e
+    top = np.full(lanes, -(2**62), dtype=np.int64)
+    for k in range(m):
+        a, b = k - back[k], m - 1 - last[k]
+        for j in range(lanes):
+            top[j] = max(top[j], we[k] + pe[a, j] + qe[b, j])
+    total = np.zeros(lanes, dtype=wm.dtype)
+    for k in range(m):
+        a, b = k - back[k], m - 1 - last[k]
+        for j in range(lanes):
+            e = we[k] + pe[a, j] + qe[b, j] - top[j]
+            if e > -1100:
+                total[j] += wm[k] * pm[a, j] * qm[b, j] * math.ldexp(1.0, e)
+    for j in range(lanes):
+        tm, te = _norm(total[j])
+        if tm == 0.0:
+            out[j] = tm + np.inf
+            continue
+        ratio, dr = _norm(pm[m - 1, j] / (ym[j] * tm))
+        e = pe[m - 1, j] + dr - ye[j] - top[j] - te
+        out[j] = ratio * math.ldexp(1.0, max(min(e, 1100), -1100))
 
 
 @njit(cache=True, parallel=True)
-def _weights(wm, we, back, wm_rev, we_rev, back_rev, last, ym, ye, out):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
-    for j in prange(ym.size):
-        out[j] = _weight_at(wm, we, back, wm_rev, we_rev, back_rev, last, ym[j], ye[j])
+def _weights(w, wm, we, back, w_rev, wm_rev, we_rev, back_rev, last, ym, ye, out, lanes):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    blocks = (ym.size + lanes - 1) // lanes
+    for i in prange(blocks):
+        a = i * lanes
+        b = min(a + lanes, ym.size)
+        _weights_lanes(
+            w, wm, we, back, w_rev, wm_rev, we_rev, back_rev, last, ym[a:b], ye[a:b], out[a:b]
+        )
 
 
 def _split(v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -609,21 +664,27 @@ def _mode_weights(
     wr = np.ascontiguousarray(w[::-1])
     wm_rev, we_rev = _split(wr)
     args = (
+        np.ascontiguousarray(w),
         wm,
         we,
         np.ascontiguousarray(back, dtype=np.int64),
+        wr,
         wm_rev,
         we_rev,
         _reverse_back(back),
         np.ascontiguousarray(last, dtype=np.int64),
     )
-    ym = np.ascontiguousarray(ym.astype(wm.dtype))
-    ye = np.ascontiguousarray(ye, dtype=np.int64)
-    out = np.empty(ym.size, dtype=wm.dtype)
-    moved = np.empty(ym.size, dtype=wm.dtype)
     step = np.maximum(rel, np.sqrt(m) * _EPS)
-    _weights(*args, ym, ye, out)
-    _weights(*args, np.ascontiguousarray(ym * (1.0 + step)), ye, moved)
+    ym = ym.astype(wm.dtype)
+    # the roots and the roots moved by their error, evaluated together
+    pm = np.ascontiguousarray(np.concatenate([ym, ym * (1.0 + step)]))
+    pe = np.ascontiguousarray(np.concatenate([ye, ye]), dtype=np.int64)
+    both = np.empty(pm.size, dtype=wm.dtype)
+    chunk = max(_LANES, int(_STEPS_PER_CALL / m) // _LANES * _LANES)
+    for a in range(0, pm.size, chunk):
+        poll()  # a stop hook (fl.stop_when) is seen between compiled chunks
+        _weights(*args, pm[a : a + chunk], pe[a : a + chunk], both[a : a + chunk], _LANES)
+    out, moved = both[: ym.size], both[ym.size :]
     errors = np.abs(moved - out) + np.sqrt(m) * _EPS * np.abs(out)
     return out, errors
 
@@ -665,47 +726,54 @@ def _weights_real(e: _Edge) -> tuple[Any, ...]:
     )
 
 
-def _top_coefficient(w: np.ndarray, back: np.ndarray, n: int) -> tuple[int, complex, int]:
-    """Degree d, and the top coefficient ``(-1)^d a_d`` of ``P_n`` as ``mantissa * 2**exponent``.
+@njit(cache=True, boundscheck=False, error_model="numpy")
+def _top_coefficients(w, back):  # type: ignore[no-untyped-def]  # pragma: no cover - compiled
+    """Degree d and top coefficient ``(-1)^d a_d`` (``mantissa * 2**exponent``) of every
+    prefix ``P_k`` (index k + 1; index 0 holds ``P_{-1} = 1``).
 
     ``a_d`` sums the weight products of the maximum independent sets; along the recurrence
     ``P_k = P_{k-1} - y w_k P_{k-b-1}`` the top coefficient is that of ``P_{k-1}``, of
     ``w_k P_{k-b-1}``, or their sum, whichever has the larger degree (both when equal).
     """
-    deg = [0] * (n + 1)  # index k + 1 holds P_k; index 0 is P_{-1} = 1
-    man: list[complex] = [1.0] * (n + 1)
-    ex = [0] * (n + 1)
+    n = w.size
+    deg = np.zeros(n + 1, dtype=np.int64)
+    man = np.ones(n + 1, dtype=np.complex128)
+    ex = np.zeros(n + 1, dtype=np.int64)
     for k in range(n):
-        i_prev, i_old = k, k - int(back[k])
-        d_a, d_b = deg[i_prev], deg[i_old] + 1
-        d = max(d_a, d_b)
-        parts = []
-        if d_a == d:
-            parts.append((man[i_prev], ex[i_prev]))
-        if d_b == d:
-            parts.append((complex(w[k]) * man[i_old], ex[i_old]))
-        top = max(e for _, e in parts)
-        total = sum(v * 2.0 ** max(e - top, -1100) for v, e in parts)
+        i_prev, i_old = k, k - back[k]
+        d = max(deg[i_prev], deg[i_old] + 1)
+        top = max(
+            ex[i_prev] if deg[i_prev] == d else -(2**62),
+            ex[i_old] if deg[i_old] + 1 == d else -(2**62),
+        )
+        total = 0j
+        if deg[i_prev] == d:
+            total += man[i_prev] * math.ldexp(1.0, max(ex[i_prev] - top, -1100))
+        if deg[i_old] + 1 == d:
+            total += w[k] * man[i_old] * math.ldexp(1.0, max(ex[i_old] - top, -1100))
         mag = abs(total)
-        shift = int(np.frexp(mag)[1]) if mag > 0 else 0
-        deg[k + 1], man[k + 1], ex[k + 1] = d, total * 2.0**-shift, top + shift
-    return deg[n], man[n], ex[n]
+        shift = math.frexp(mag)[1] if mag > 0 else 0
+        deg[k + 1] = d
+        man[k + 1] = total * math.ldexp(1.0, -shift)
+        ex[k + 1] = top + shift
+    return deg, man, ex
 
 
 def _zero_weight(w: np.ndarray, back: np.ndarray) -> complex:
     """``w_0 = lim_{y -> oo} P_{M-1}(y) / P_M(y)``: the ratio of the top coefficients when the
     degrees agree, else 0 (computed from the weights, independently of the roots)."""
     m = w.size
-    d_a, man_a, ex_a = _top_coefficient(w, back, m - 1)
-    d, man, ex = _top_coefficient(w, back, m)
-    if man == 0:  # e.g. couplings (1, 1j): the top coefficient cancels, a quasi-energy is 0
+    deg, man, ex = _top_coefficients(
+        np.ascontiguousarray(w, dtype=np.complex128), np.ascontiguousarray(back, dtype=np.int64)
+    )
+    if man[m] == 0:  # e.g. couplings (1, 1j): the top coefficient cancels, a quasi-energy is 0
         raise ValueError(
             "the exclusion polynomial's top coefficient cancels (a quasi-energy is exactly 0): "
             "the edge expansion divides by it and does not apply"
         )
-    if d_a != d:
+    if deg[m - 1] != deg[m]:
         return 0.0
-    return complex(man_a / man * 2.0 ** max(ex_a - ex, -1100))
+    return complex(man[m - 1] / man[m] * 2.0 ** max(int(ex[m - 1] - ex[m]), -1100))
 
 
 def _weights_complex(e: _Edge) -> tuple[Any, ...]:
@@ -796,6 +864,7 @@ def edge_expansion(m: Model, operator: str | WeylString | None = None) -> EdgeEx
         freqs = lead * omega[None, :] * np.asarray(eta, dtype=complex)[:, None]
     rules = _sum_rules_simple(e, weights, eta, log_eta, zero, n, real)
     coupling = complex(e.couplings[-1])
+    balls = _auto_balls(e, eta, weights, errors)
     return EdgeExpansion(
         operator=str(e.chi),
         term=int(e.term),
@@ -811,7 +880,101 @@ def edge_expansion(m: Model, operator: str | WeylString | None = None) -> EdgeEx
         frequencies=freqs,
         sum_rules=rules,
         method=method,
+        weight_balls=balls,
     )
+
+
+def _float_roots(eta: np.ndarray, n: int) -> np.ndarray:
+    """``y_k = eta_k^-N`` of the float expansion."""
+    z = np.asarray(eta, dtype=complex)
+    with np.errstate(over="ignore", divide="ignore"):
+        return np.exp(-n * (np.log(np.abs(z)) + 1j * np.angle(z)))
+
+
+def _auto_balls(
+    e: _Edge, eta: np.ndarray, weights: np.ndarray, errors: np.ndarray
+) -> WeightBalls | None:
+    """The certified weights when the couplings are exact and the polynomial small, compared
+    with the float weights; None otherwise."""
+    if e.terms.size > 4 * _balls.AUTO_DEGREE:
+        return None
+    exact = _balls.exact_chain_weights([e.model.couplings[j] for j in e.terms], e.model.states)
+    if exact is None:
+        return None
+    try:
+        b = _balls.weight_balls(exact, e.back, max_degree=_balls.AUTO_DEGREE)
+    except ValueError:
+        return None  # too large, or a repeated root: the float weights stand alone
+    agree = _balls.compare_weights(b, _float_roots(eta, e.model.states), weights, errors)
+    return dataclasses.replace(b, agreement=agree)
+
+
+def certified_edge_weights(
+    m: Model,
+    operator: str | WeylString | None = None,
+    *,
+    max_degree: int = 160,
+    floats: bool = False,
+) -> WeightBalls:
+    """The edge weights ``W_k`` in proved balls, for exact couplings (int, Fraction, sympy
+    rationals or Gaussian rationals).
+
+    Parameters
+    ----------
+    m : Model
+        As for :func:`edge_expansion`, with exact couplings on the edge term's component.
+    operator : str or WeylString, optional
+        ``chi``; by default :func:`freeladder.edge_mode`.
+    max_degree : int
+        Largest degree of the exclusion polynomial (the root isolation grows like the cube
+        of the degree: about a second at degree 60 with small rationals).
+    floats : bool
+        Take float and complex couplings as the binary fractions they are (the model's
+        couplings exactly as stored; a model keeps complex couplings as floats).  The balls
+        then hold the weights of those binary fractions, not of the decimals typed.
+
+    Returns
+    -------
+    WeightBalls
+        Balls proved to hold ``W_k = -P_a(y_k) / (y_k P'(y_k))``, the exact ``w_0``, and
+        whether the ball of ``w_0 + sum W_k`` holds 1; ``agreement`` compares the float
+        weights of :func:`edge_expansion` with the balls.
+
+    Raises
+    ------
+    NotExpandableError
+        As :func:`edge_expansion`.
+    ValueError
+        A coupling that is not exact, a polynomial above ``max_degree``, or a repeated root.
+
+    References
+    ----------
+    P. Fendley, J. Phys. A 52, 335002 (2019); F. Johansson, IEEE Trans. Comput. 66, 1281
+    (2017).
+
+    Examples
+    --------
+    >>> import freeladder as fl
+    >>> from fractions import Fraction
+    >>> b = fl.certified_edge_weights(fl.parse_model("1/2 X0 + Z0 Z1"))  # chi = Z0
+    >>> b.zero_weight, b.sum_is_one
+    (Fraction(4, 5), True)
+    """
+    e = _Edge(m, operator)
+    exact = _balls.exact_chain_weights([m.couplings[j] for j in e.terms], m.states, floats)
+    if exact is None:
+        raise ValueError(
+            "certified weights need exact couplings (int, Fraction, sympy rationals or "
+            "Gaussian rationals) on the edge term's component, or floats=True to take float "
+            "couplings as the binary fractions they are; this model has a float or an "
+            "algebraic one"
+        )
+    b = _balls.weight_balls(exact, e.back, max_degree=max_degree)
+    x = edge_expansion(m, e.chi)
+    agree = _balls.compare_weights(
+        b, _float_roots(x.quasi_energies, m.states), x.weights, x.weight_errors
+    )
+    return dataclasses.replace(b, agreement=agree)
 
 
 def _sum_rules_simple(
@@ -878,6 +1041,9 @@ def _series(
     coef, dcoef = (p * factor).ravel(), (dp * np.abs(factor)).ravel()
     ff, phase_err = f.ravel(), (np.abs(p * factor) * df).ravel()
     herm = e.hermitian
+    if herm:  # +-f carry equal weights (odd powers: and odd factors): one term per mode, twice
+        coef, dcoef = 2.0 * coef[0::2], 2.0 * dcoef[0::2]
+        ff, phase_err = ff[0::2], 2.0 * phase_err[0::2]
     values = np.zeros(t.size, dtype=float if herm and power % 2 == 0 else complex)
     errors = np.zeros(t.size)
     rows = max(1, _CHUNK // max(ff.size, 1))
