@@ -526,9 +526,10 @@ def test_workbench_reads_at_scale_and_says_what_it_shows(
             big.locator(".freeladder-ladder-figure text", has_text="x 2^").first.wait_for(
                 timeout=180_000
             )
-            ladder.locator(".freeladder-ladder-title", has_text="whole space").wait_for(
-                timeout=120_000
-            )
+            # the exact column is the same sector as the free levels, and the title names it
+            ladder.locator(
+                ".freeladder-ladder-title", has_text="exact diag. of the sector"
+            ).wait_for(timeout=120_000)
             page.wait_for_timeout(2000)  # the figures settle their layout
 
             # 1, 2: multiplicities as powers; labels and ticks never overlap

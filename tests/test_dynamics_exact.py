@@ -184,3 +184,21 @@ def test_dense_reference_of_the_check_matches_scipy_expm_and_can_fail() -> None:
     c = fl.check_autocorrelation(m, t)
     assert c.passed and all(c.compared) and c.tolerance < 1e-6
     assert not c.hermitian
+
+
+def test_report_dynamics_refuses_past_its_size_with_the_reason_and_dimensions_stay_short() -> None:
+    # The report's dynamics stops at DYNAMICS_TERMS (its cost grows as the square of the terms);
+    # the refusal comes before any work.  Dimensions are written as powers: a chain of 2*10^4
+    # sites has 6021 decimal digits, past Python's 4300-digit limit for int -> str, which made
+    # the check crash (fact of the language; common practice).
+    from freeladder.analysis import DYNAMICS_TERMS
+    from freeladder.base.display import dimension_text
+    from freeladder.base.errors import TooLargeError
+
+    m = fl.exclusion_chain(DYNAMICS_TERMS + 1, reach=2)
+    with pytest.raises(TooLargeError, match="fl.autocorrelation"):
+        fl.analyze(m).dynamics()
+    assert dimension_text(2**20001) == "2^20001"
+    assert dimension_text(3**5000) == "3^5000"
+    assert dimension_text(1024) == "1024"
+    assert dimension_text(6**20 * 5 + 1) == "about 10^16"

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import dataclasses
 import json
+import threading
 import time
 from fractions import Fraction
 
@@ -13,6 +14,7 @@ import pytest
 import scipy.linalg
 
 import freeladder as fl
+from freeladder.roots import real
 from freeladder.roots.certify import certified_roots, certify_chain_roots
 from freeladder.roots.methods import ROOT_METHODS, choose_method, solve_chain, solve_general
 from freeladder.roots.real import (
@@ -85,6 +87,55 @@ def test_reach_one_against_scipy_tridiagonal():
     r = chain_real_roots(c**2, 1)
     eta = np.sort(r.values**-0.5)
     np.testing.assert_allclose(eta, np.sort(ev)[-r.count :], rtol=0, atol=1e-13 * ev.max())
+
+
+def test_window_seeded_roots_against_scipy_tridiagonal(monkeypatch):
+    # Windows of 1024 terms (4096 by default), so that 8000 terms take the seeded path (and
+    # the test stays short).  Reference: the
+    # eigenvalues 1 / y_k = eta_k**2 of C^T C, where the zero-diagonal (M + 1) tridiagonal with
+    # off-diagonals sqrt(w) reads [[0, C], [C^T, 0]] in even / odd order with C bidiagonal
+    # (common practice).  Squaring costs LAPACK relative accuracy on the smallest eta, so
+    # the comparison is absolute in eta**2.
+    monkeypatch.setattr(real, "_SEED_WINDOW", 1024)
+    monkeypatch.setattr(real, "_SEED_TERMS", 4096)
+    m = 8000
+    w = random_weights(m, 25)
+    r = chain_real_roots(w, 1)
+    ev = scipy.linalg.eigvalsh_tridiagonal(w[0::2] + w[1::2], np.sqrt(w[1:-1:2] * w[2::2]))
+    assert r.converged and r.count == ev.size == m // 2
+    np.testing.assert_allclose(np.sort(1 / r.values), np.sort(ev), rtol=0, atol=1e-13 * ev.max())
+    # the seeds leave about one whole-chain evaluation per root (about 5 from the ladder alone)
+    assert r.evaluations < 1.5 * r.count
+
+
+@pytest.mark.parametrize(("reach", "m"), [(2, 64), (3, 76)])
+def test_window_seeded_roots_against_mpmath(monkeypatch, reach, m):
+    # Windows of 12 terms, so that a short chain (mpmath can expand it) takes the seeded path.
+    monkeypatch.setattr(real, "_SEED_WINDOW", 12)
+    monkeypatch.setattr(real, "_SEED_TERMS", 48)
+    w = random_weights(m, 40 + reach)
+    ref = np.array([float(v) for v in mpmath_roots(w, reach)])
+    r = chain_real_roots(w, reach)
+    assert r.converged and r.count == ref.size
+    np.testing.assert_allclose(r.values, ref, rtol=1e-14)
+    assert np.all(r.error_bounds < 1e-13 * r.values)
+
+
+@pytest.mark.parametrize("reach", [2, 3])
+def test_nested_window_seeds_certified(monkeypatch, reach):
+    # Windows of 4 terms and seeded windows from 16 terms: a 900-term chain is seeded from
+    # windows of 28 terms, themselves seeded from windows of 4.  Checked by the certified
+    # enclosures (sign changes in ball arithmetic, python-flint) of every root.
+    monkeypatch.setattr(real, "_SEED_WINDOW", 4)
+    monkeypatch.setattr(real, "_SEED_TERMS", 16)
+    w = random_weights(900, 50 + reach)
+    r = chain_real_roots(w, reach)
+    assert r.converged and r.count == chain_root_count(900, reach)
+    enc = certify_chain_roots(w, reach, r.values, r.error_bounds)
+    assert enc.rigorous, enc.message
+    assert np.all(np.abs(r.values - enc.values) <= enc.error_bounds + r.error_bounds)
+    # widened intervals (the float64 interval test needs a margin near localised roots)
+    assert np.all(enc.error_bounds <= 1e-10 * r.values)
 
 
 @pytest.mark.parametrize("reach", [1, 2, 3])
@@ -591,3 +642,24 @@ def test_variable_reach_certified_goes_through_the_exact_polynomial():
         solve_chain(rng.uniform(0.3, 1.7, 5), back, 2, "certified")
     found = solve_chain(rng.uniform(0.3, 1.7, 5), back, 2)
     assert found.count == chain_root_count(5, back)
+
+
+def test_stop_hook_stops_the_window_seeds(monkeypatch):
+    # The seed windows run in worker threads: a stop hook of the calling thread must stop
+    # them too (freeladder.stop_when), and the windows must not run on after the call.
+    monkeypatch.setattr(real, "_SEED_WINDOW", 512)
+    monkeypatch.setattr(real, "_SEED_TERMS", 2048)
+    w = random_weights(6000, 61)
+    polls = []
+
+    def hook() -> bool:
+        polls.append(threading.current_thread().name)
+        return len(polls) > 1
+
+    before = threading.active_count()
+    with pytest.raises(fl.Interrupted), fl.stop_when(hook):
+        chain_real_roots(w, 2)
+    assert threading.active_count() == before
+    assert set(polls) == {threading.current_thread().name}  # asked in the calling thread only
+    full = chain_real_roots(w, 2)
+    assert full.converged and full.count == chain_root_count(6000, 2)

@@ -28,6 +28,7 @@ from typing import TYPE_CHECKING, Any
 
 from .algebra.model import Coupling, Model
 from .base.cache import part, store_of
+from .base.errors import TooLargeError
 from .base.jsonready import json_ready
 from .graphs.graph import ChainStructure, chain_structure, frustration_graph
 from .graphs.indifference import IndifferenceOrder, indifference_order
@@ -55,6 +56,11 @@ if TYPE_CHECKING:
 __all__ = ["Analysis", "analyze"]
 
 SectorChoice = str | Sequence[int] | Mapping[Any, int] | None
+
+DYNAMICS_TERMS = 10_000
+"""Most terms for which :meth:`Analysis.dynamics` (the report's and the export's edge dynamics)
+runs: its cost grows as the square of the terms (about 2 s at 10^4 terms, minutes at 10^5);
+:func:`freeladder.autocorrelation` has no such limit."""
 
 
 # -- the parts that depend on the couplings (those of the strings live with their modules) -------
@@ -195,6 +201,12 @@ def _report(m: Model, options: tuple[tuple[str, Any], ...]) -> Report:
 def _dynamics(m: Model) -> DynamicsCheck:
     from .checks.edge_dynamics import check_autocorrelation  # a check: above the parts
 
+    if len(m) > DYNAMICS_TERMS:
+        raise TooLargeError(
+            f"not computed for {len(m)} terms: the report and the export compute the edge "
+            f"dynamics up to {DYNAMICS_TERMS} terms (the cost grows as the square of the terms); "
+            "fl.autocorrelation(m, times) computes it at any size"
+        )
     return check_autocorrelation(m)
 
 
@@ -374,7 +386,8 @@ class Analysis:
     def dynamics(self) -> DynamicsCheck:
         """The edge autocorrelation at a few times, checked independently
         (:func:`freeladder.check_autocorrelation`); raises NotExpandableError (a ValueError)
-        when the edge expansion does not apply."""
+        when the edge expansion does not apply, and TooLargeError (a ValueError) above
+        :data:`DYNAMICS_TERMS` terms."""
         return _dynamics(self.model)
 
     def worked(self, steps: str | Sequence[str] = "all") -> WorkedCalculation:

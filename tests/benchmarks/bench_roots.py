@@ -4,10 +4,17 @@ against baselines run in the same process.
 Run: bash tools/bench.sh tests/benchmarks/bench_roots.py
 (or, quicker: .venv/bin/python tests/benchmarks/bench_roots.py --quick)
 Prints times and their ratios; the machines are noisy, so compare only within one run.
+
+``--large`` times all roots of random chains of reach 1, 2 and 3 at 10^4 and 10^5 terms
+(``--huge``: also 10^6), each in a fresh process (peak resident memory), beside LAPACK's
+eigenvalue-only routine dsterf on the equivalent tridiagonal of the reach-1 chain and beside
+the ladder-only start (no window seeds, the method before seeding) at 10^5; ``--large-only``
+skips the rest.
 """
 
 from __future__ import annotations
 
+import json
 import os
 import subprocess
 import sys
@@ -176,5 +183,91 @@ def main(quick: bool) -> None:
         )
 
 
+_ONE_RUN = """
+import json, resource, sys, time
+import numpy as np
+from freeladder.roots import real
+m, reach, seeded = int(sys.argv[1]), int(sys.argv[2]), sys.argv[3] == "1"
+if not seeded:
+    real._SEED_TERMS = 10**12
+real.chain_real_roots(np.ones(4000), reach)  # compile or load every kernel the run uses
+w = np.random.default_rng(10 + reach).uniform(0.3, 1.7, m) ** 2
+start = time.perf_counter()
+r = real.chain_real_roots(w, reach)
+seconds = time.perf_counter() - start
+s1, s2 = real.chain_inverse_power_sums(w, reach)
+y = r.true_values()[0]
+print(json.dumps(dict(
+    seconds=seconds, roots=int(r.count), converged=bool(r.converged), sweeps=int(r.sweeps),
+    per_root=r.evaluations / r.count, est=float(np.max(r.error_bounds / r.values)),
+    sum1=float(abs(np.sum(1 / y) - s1) / s1),
+    rss=resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024,
+)))
+"""
+
+_STERF_RUN = """
+import json, resource, sys, time
+import numpy as np, scipy.linalg
+m = int(sys.argv[1])
+w = np.random.default_rng(11).uniform(0.3, 1.7, m) ** 2
+# The S x S tridiagonal C^T C with eigenvalues 1 / y_k of the reach-1 chain (M even, S = M / 2):
+# the zero-diagonal (M + 1) tridiagonal with off-diagonals sqrt(w) has eigenvalues +-eta,
+# ordered even / odd it is [[0, C], [C^T, 0]] with C bidiagonal (common practice).
+d = w[0::2] + w[1::2]
+e = np.sqrt(w[1:-1:2] * w[2::2])
+start = time.perf_counter()
+out = scipy.linalg.lapack.dsterf(d, e)
+seconds = time.perf_counter() - start
+assert out[-1] == 0
+rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+print(json.dumps(dict(seconds=seconds, rss=rss)))
+"""
+
+
+def _child(code: str, *args: object) -> dict:
+    out = subprocess.run(
+        [sys.executable, "-c", code, *map(str, args)], capture_output=True, text=True, check=False
+    )
+    if out.returncode:
+        raise RuntimeError(out.stderr[-2000:])
+    return json.loads(out.stdout.strip().splitlines()[-1])
+
+
+def large(sizes: tuple[int, ...]) -> None:
+    """All roots at 10^4 .. 10^6 terms, one process per run (see the module docstring)."""
+    print(f"load average before: {os.getloadavg()}")
+    print("reach    terms  seconds  sweeps  evals/root  peak MiB  max est.  sum-rule residual")
+    sterf = {}
+    for m in sizes:
+        if m <= 10**5:
+            sterf[m] = _child(_STERF_RUN, m)
+        for reach in (1, 2, 3):
+            r = _child(_ONE_RUN, m, reach, 1)
+            print(
+                f"{reach:5d} {m:8d} {r['seconds']:8.1f} {r['sweeps']:7d} {r['per_root']:11.2f} "
+                f"{r['rss']:9.0f} {r['est']:9.1e} {r['sum1']:9.1e}   {os.getloadavg()[0]:.1f} load",
+                flush=True,
+            )
+            if m in sterf:
+                ratio = r["seconds"] / sterf[m]["seconds"]
+                print(
+                    f"      dsterf on the {m // 2} x {m // 2} equivalent tridiagonal "
+                    f"{sterf[m]['seconds']:.1f} s: ratio ours / dsterf {ratio:.2f}",
+                    flush=True,
+                )
+            if m == 10**5:
+                p = _child(_ONE_RUN, m, reach, 0)
+                print(
+                    f"      ladder-only start (no seeds) {p['seconds']:.1f} s, "
+                    f"{p['per_root']:.2f} evals/root: seeded is {p['seconds'] / r['seconds']:.2f}x"
+                    " faster",
+                    flush=True,
+                )
+    print(f"load average after: {os.getloadavg()}")
+
+
 if __name__ == "__main__":
-    main("--quick" in sys.argv)
+    if "--large" in sys.argv or "--huge" in sys.argv or "--large-only" in sys.argv:
+        large((10**4, 10**5, 10**6) if "--huge" in sys.argv else (10**4, 10**5))
+    if "--large-only" not in sys.argv:
+        main("--quick" in sys.argv)

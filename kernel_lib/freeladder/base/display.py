@@ -45,6 +45,7 @@ __all__ = [
     "bound_text",
     "check_cells",
     "digits_for",
+    "dimension_text",
     "exact_spectrum_html",
     "exact_spectrum_repr",
     "level_table_repr",
@@ -365,6 +366,28 @@ def digits_for(value: Any, bound: float) -> int:
         return DIGITS
     digits = math.floor(math.log10(size)) - math.floor(math.log10(bound)) + 1
     return max(2, min(15, digits))
+
+
+def dimension_text(dim: int) -> str:
+    """A Hilbert-space dimension in a few characters: ``1024`` up to a million, then ``2^40``
+    (or ``3^30``) for a power of a small base, else ``about 10^k``.
+
+    Never converts a huge integer to decimal (Python refuses past 4300 digits, and a chain of
+    10^4 sites has dimension 2^10000).
+
+    Examples
+    --------
+    >>> dimension_text(4096), dimension_text(2**20001), dimension_text(3**30)
+    ('4096', '2^20001', '3^30')
+    """
+    if dim < 10**6:
+        return str(dim)
+    for base in range(2, 11):
+        exponent = round((dim.bit_length() - 1) / math.log2(base))
+        for e in (exponent - 1, exponent, exponent + 1):
+            if e > 0 and base**e == dim:
+                return f"{base}^{e}"
+    return f"about 10^{int((dim.bit_length() - 1) * math.log10(2))}"
 
 
 def bound_text(bound: float) -> str:

@@ -23,6 +23,7 @@ import numpy as np
 
 from ..algebra.model import Model
 from ..algebra.syntax import parse_model
+from ..base.display import dimension_text
 from ..base.jsonready import json_ready
 from ..spectra.dynamics import Autocorrelation, autocorrelation
 
@@ -191,7 +192,7 @@ def check_autocorrelation(
         skipped = ", ".join(f"{v:g}" for v in t[~usable])
         method = (
             f"dense exact evolution (eigendecomposition of H, full trace, dimension "
-            f"{m.dimension}) at {int(usable.sum())} times"
+            f"{dimension_text(m.dimension)}) at {int(usable.sum())} times"
             + (f"; not at t = {skipped} (growing terms: reference too inexact)" if skipped else "")
             + note
         )
@@ -214,7 +215,7 @@ def check_autocorrelation(
     tol = _IDENTITY_TOL + float(np.sum(e.weight_errors))
     method = (
         "sum rule w_0 + sum W_k = 1" + (" and C(0) = 1" if at_zero.size else "") + " (identities "
-        f"of the expansion; dimension {m.dimension} is above the dense limit){note}"
+        f"of the expansion; dimension {dimension_text(m.dimension)} is above the dense limit){note}"
     )
     return DynamicsCheck(
         a,

@@ -1534,11 +1534,6 @@ def sector_lowest_check(m: Model, k: int = SPARSE_LEVELS) -> Check:
     return same_sector_check(analyze(m), "ground", k=k, limit=SPARSE_CHECK_LIMIT)[1]
 
 
-def _power_text(dim: int) -> str:
-    """``2^n`` for a power of two, else the number."""
-    return f"2^{dim.bit_length() - 1}" if dim > 0 and dim & (dim - 1) == 0 else str(dim)
-
-
 def same_sector_check(
     a: Analysis,
     sector: Any = None,
@@ -1597,14 +1592,15 @@ def same_sector_check(
     dim = sector_dimension(m, fixed)
     if dim > limit:
         raise CheckNotApplicable(
-            f"dimension {_power_text(dim)} above {_power_text(limit)}, the largest "
+            f"dimension {display.dimension_text(dim)} above {display.dimension_text(limit)}, "
+            "the largest "
             f"diagonalised here{_memory_text(m) if not fixed else ''}"
         )
     degeneracy = sp.degeneracy or 1
     dense = dim <= SECTOR_DENSE_LIMIT
     if not dense and degeneracy > 2 and limit < SPARSE_CHECK_LIMIT:
         raise CheckNotApplicable(
-            f"every level {degeneracy} times degenerate at dimension {_power_text(dim)} "
+            f"every level {degeneracy} times degenerate at dimension {display.dimension_text(dim)} "
             "(Lanczos finds one vector per level: slow and partial there)"
         )
     try:  # a dense solve finds every eigenvalue at the same cost: all multiplicities

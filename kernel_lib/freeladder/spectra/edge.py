@@ -393,7 +393,8 @@ def _check_ladder_model(m: Model) -> None:
         )
     if m.dimension > LADDER_MAX_DIMENSION:
         raise ValueError(
-            f"dimension {m.dimension} exceeds {LADDER_MAX_DIMENSION}: ladder operators are dense "
+            f"dimension {display.dimension_text(m.dimension)} exceeds {LADDER_MAX_DIMENSION}: "
+            "ladder operators are dense "
             "in general; use a smaller system"
         )
     m.coupling_array()  # raises a clear error for symbolic couplings
