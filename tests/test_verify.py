@@ -345,7 +345,7 @@ def test_long_checks_drive_a_delayed_tqdm_bar(monkeypatch: pytest.MonkeyPatch) -
             progress(done, 5)
         return Check("slow", "exact", 0.0, 0.0, True, "fine")
 
-    monkeypatch.setattr(verification, "tqdm", FakeBar)
+    monkeypatch.setattr(verification, "_bar", FakeBar)  # tqdm.auto.tqdm, imported on use
     check = verification._shown("slow", slow, fl.ising_chain(2))
     assert check.passed
     assert len(made) == 1 and made[0]["kwargs"]["delay"] == 2.0  # shown only after 2 s

@@ -4,9 +4,14 @@
   that the library only tests against (``isinstance(x, sympy.Basic)``): while sympy has not been
   imported by anyone, no sympy object can exist, so those names give a stand-in class of which
   nothing is an instance (calling it loads sympy and calls the real class).
-* :data:`networkx` stands for the networkx module, imported on first attribute access (graphs
-  are built only when asked for); modules write ``from ..base.lazy import networkx as nx`` under
-  ``if not TYPE_CHECKING``.
+* :data:`networkx`, :data:`flint` (python-flint), :data:`mpmath` and :data:`csgraph`
+  (``scipy.sparse.csgraph``, which brings ``scipy.sparse.linalg`` and ``scipy.linalg``) stand for
+  their modules, each imported on first attribute access; modules write
+  ``from ..base.lazy import networkx as nx`` (or ``flint``, ...) under ``if not TYPE_CHECKING``
+  and the real import under ``if TYPE_CHECKING``.  An ``isinstance`` test against one of their
+  classes imports the module, so such tests stay on paths that use the module anyway.  Set
+  attributes on what a stand-in hands out (``flint.ctx.prec = 128``), never on the stand-in
+  itself; numba-compiled code cannot reach these stand-ins.
 * :func:`njit` marks a function for numba: the first call of any marked function of a module
   imports numba, compiles every marked function of that module and puts the compiled versions
   in the module's namespace (so compiled code calling compiled code finds them), with
@@ -89,6 +94,9 @@ class _LazyModule:
 
 
 networkx: Any = _LazyModule("networkx")
+flint: Any = _LazyModule("flint")
+mpmath: Any = _LazyModule("mpmath")
+csgraph: Any = _LazyModule("scipy.sparse.csgraph")
 
 prange = range
 

@@ -45,8 +45,6 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.sparse as sps
-import scipy.sparse.csgraph as csgraph
-from flint import fmpq, fmpq_mat
 
 from ..algebra.cyclotomic import CyclotomicField, Element
 from ..algebra.model import Model
@@ -60,9 +58,11 @@ from ..roots.polynomial import exclusion_polynomial
 from ..spectra.charges import charge_series
 
 if TYPE_CHECKING:
+    import flint
+    import scipy.sparse.csgraph as csgraph
     import sympy
 else:
-    from ..base.lazy import sympy
+    from ..base.lazy import csgraph, flint, sympy
 
 __all__ = [
     "MAX_COORDINATES",
@@ -293,7 +293,7 @@ class _Plan:
                 weight = field.scale(field.mul(weight, c), -1)
         return tuple(mono), field.mul(weight, field.root(turn * self.omega))
 
-    def matrices(self, j: int, n_vars: int) -> dict[int, dict[Monomial, fmpq_mat]]:
+    def matrices(self, j: int, n_vars: int) -> dict[int, dict[Monomial, flint.fmpq_mat]]:
         """Transfer matrices of step j over the rationals: letter -> monomial -> matrix."""
         d = self.field.d
         n_in, n_out = self.sizes[j], self.sizes[j + 1]
@@ -317,27 +317,27 @@ class _Plan:
             put(
                 0, (), len(self.products) * n_in * d, len(self.products) * n_out * d, self.field.one
             )
-        out_mats: dict[int, dict[Monomial, fmpq_mat]] = {}
+        out_mats: dict[int, dict[Monomial, flint.fmpq_mat]] = {}
         for (letter, mono), entries in blocks.items():
-            mat = fmpq_mat(rows, cols)
+            mat = flint.fmpq_mat(rows, cols)
             for (r, c), val in entries.items():
                 mat[r, c] = to_fmpq(val)
             out_mats.setdefault(letter, {})[mono] = mat
         return out_mats
 
-    def initial(self, scalar_value: Element | None) -> fmpq_mat:
+    def initial(self, scalar_value: Element | None) -> flint.fmpq_mat:
         entries: list[Any] = []
         for prod in self.products:
             entries.extend(self.field.rational(prod.sign))
         if scalar_value is not None:
             entries.extend(scalar_value)
-        return fmpq_mat(1, len(entries), [to_fmpq(x) for x in entries])
+        return flint.fmpq_mat(1, len(entries), [to_fmpq(x) for x in entries])
 
-    def readout(self) -> fmpq_mat:
+    def readout(self) -> flint.fmpq_mat:
         """Sum of the blocks' final values, coordinate by coordinate."""
         d = self.field.d
         blocks = len(self.products) + int(self.scalar)
-        return fmpq_mat(
+        return flint.fmpq_mat(
             blocks * d, d, [int(r % d == c) for r in range(blocks * d) for c in range(d)]
         )
 
@@ -379,18 +379,18 @@ def _width(adj: sps.csr_array, order: np.ndarray) -> int:
     return int(np.cumsum(live).max())
 
 
-def _rref(mat: fmpq_mat) -> tuple[fmpq_mat, int]:
+def _rref(mat: flint.fmpq_mat) -> tuple[flint.fmpq_mat, int]:
     reduced, rank = mat.rref()
     cols = mat.ncols()
-    return fmpq_mat(rank, cols, reduced.entries()[: rank * cols]), rank
+    return flint.fmpq_mat(rank, cols, reduced.entries()[: rank * cols]), rank
 
 
-def _stack(mats: Sequence[fmpq_mat]) -> fmpq_mat:
+def _stack(mats: Sequence[flint.fmpq_mat]) -> flint.fmpq_mat:
     cols = mats[0].ncols()
     entries: list[Any] = []
     for mat in mats:
         entries.extend(mat.entries())
-    return fmpq_mat(len(entries) // cols if cols else 0, cols, entries)
+    return flint.fmpq_mat(len(entries) // cols if cols else 0, cols, entries)
 
 
 def _power(point: Sequence[int], mono: Monomial) -> int:
@@ -403,13 +403,13 @@ class _Run:
 
     vanishes: bool
     rank: int
-    bases: list[fmpq_mat]
-    steps: list[dict[int, fmpq_mat]]
+    bases: list[flint.fmpq_mat]
+    steps: list[dict[int, flint.fmpq_mat]]
 
 
 def _forward(
     plan: _Plan,
-    mats: list[dict[int, dict[Monomial, fmpq_mat]]],
+    mats: list[dict[int, dict[Monomial, flint.fmpq_mat]]],
     point: Sequence[int],
     scalar: dict[Monomial, Element] | None,
 ) -> _Run:
@@ -424,7 +424,7 @@ def _forward(
     for step in mats:
         evaluated = {}
         for letter, by_mono in step.items():
-            terms = [mat * fmpq(_power(point, mono)) for mono, mat in by_mono.items()]
+            terms = [mat * flint.fmpq(_power(point, mono)) for mono, mat in by_mono.items()]
             total = terms[0]
             for t in terms[1:]:
                 total = total + t
@@ -511,7 +511,7 @@ def _witness(
     readout = plan.readout()
     final = fwd.bases[-1] * readout
     col = next(c for c in range(final.ncols()) if any(final[r, c] for r in range(final.nrows())))
-    r = fmpq_mat(readout.nrows(), 1, [readout[i, col] for i in range(readout.nrows())])
+    r = flint.fmpq_mat(readout.nrows(), 1, [readout[i, col] for i in range(readout.nrows())])
     letters = [0] * len(fwd.steps)
     for j in range(len(fwd.steps) - 1, -1, -1):
         for letter, w in sorted(fwd.steps[j].items()):

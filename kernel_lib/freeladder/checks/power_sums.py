@@ -27,10 +27,14 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-from flint import acb, arb, ctx
+
+if TYPE_CHECKING:
+    import flint
+else:
+    from ..base.lazy import flint
 
 __all__ = ["MOMENTS", "MomentComparison", "compare_moments"]
 
@@ -75,13 +79,13 @@ class MomentComparison:
 def _ball(v: Any, complex_: bool) -> Any:
     """The exact value of a float / complex / Fraction / int as a ball."""
     if isinstance(v, complex):
-        return acb(arb(v.real), arb(v.imag))
+        return flint.acb(flint.arb(v.real), flint.arb(v.imag))
     if hasattr(v, "numerator") and not isinstance(v, float):
         num, den = int(v.numerator), int(v.denominator)
-        out = arb(num) / den if den != 1 else arb(num)
+        out = flint.arb(num) / den if den != 1 else flint.arb(num)
     else:
-        out = arb(float(v))
-    return acb(out) if complex_ else out
+        out = flint.arb(float(v))
+    return flint.acb(out) if complex_ else out
 
 
 def _newton(e: Sequence[Any], count: int) -> list[Any]:
@@ -106,7 +110,7 @@ def _windows(
     size = len(weights)
     keep = moments + 1
     span = int(back.max()) + 2 if size else 2
-    zero = weights[0] * 0 if size else arb(0)
+    zero = weights[0] * 0 if size else flint.arb(0)
     one = zero + 1
     # ring buffers of the prefixes I_{k}, k = -1 .. M-1 (index k + 1 modulo span)
     low: list[list[Any]] = [[zero] * keep for _ in range(span)]
@@ -173,9 +177,9 @@ def compare_moments(
     """
     size = len(couplings)
     complex_ = np.iscomplexobj(eta) or any(isinstance(c, complex) for c in couplings)
-    old = ctx.prec
+    old = flint.ctx.prec
     # Newton's identities cancel about log2(C_i p_{j-i} / p_j) <= j log2(M + 2) bits
-    ctx.prec = 96 + 2 * moments * max(1, math.ceil(math.log2(size + 2)))
+    flint.ctx.prec = 96 + 2 * moments * max(1, math.ceil(math.log2(size + 2)))
     try:
         w = [_ball(c, complex_) ** states for c in couplings]
         low, high, degree = _windows(w, np.asarray(back, dtype=np.int64), moments, progress)
@@ -200,9 +204,12 @@ def compare_moments(
         bounds = np.maximum(np.asarray(bounds, float), floor)
         for e, r in zip(eta.tolist(), bounds.tolist(), strict=True):
             if complex_:
-                xs.append(acb(arb(complex(e).real, r), arb(complex(e).imag, r)) ** states)
+                xs.append(
+                    flint.acb(flint.arb(complex(e).real, r), flint.arb(complex(e).imag, r))
+                    ** states
+                )
             else:
-                xs.append(arb(float(e), float(r)) ** states)
+                xs.append(flint.arb(float(e), float(r)) ** states)
         sums_pos = [xs[0] * 0 if xs else w[0] * 0 for _ in range(count)]
         sums_neg = list(sums_pos) if negative else []
         half = max(1, len(xs) // 8)
@@ -234,10 +241,10 @@ def compare_moments(
             if ratio > worst_ratio:
                 worst_ratio, worst = ratio, order
         return MomentComparison(
-            tuple(orders), dev_max, rad_max, overlap, worst, skipped, int(ctx.prec)
+            tuple(orders), dev_max, rad_max, overlap, worst, skipped, int(flint.ctx.prec)
         )
     finally:
-        ctx.prec = old
+        flint.ctx.prec = old
 
 
 def _mid_abs(v: Any, complex_: bool) -> float:

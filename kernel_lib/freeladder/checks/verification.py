@@ -42,7 +42,6 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sps
-from tqdm.auto import tqdm
 
 from ..algebra.model import Model
 from ..algebra.operators import StringSum
@@ -365,6 +364,13 @@ def _run(name: str, fn: Callable[..., Check], *args: Any, required: bool = False
     return replace(check, seconds=time.perf_counter() - start, required=required)
 
 
+def _bar(**options: Any) -> Any:
+    """``tqdm.auto.tqdm(**options)``, imported on first use (tqdm.auto brings asyncio)."""
+    from tqdm.auto import tqdm
+
+    return tqdm(**options)
+
+
 class _Progress:
     """A ``progress(done, total)`` callback that shows a ``tqdm.auto`` bar after 2 seconds."""
 
@@ -375,7 +381,7 @@ class _Progress:
     def __call__(self, done: int, total: int) -> None:
         poll()  # every loop that reports progress can be stopped (freeladder.stop_when)
         if self.bar is None:
-            self.bar = tqdm(total=total, desc=self.label, delay=2.0, leave=False)
+            self.bar = _bar(total=total, desc=self.label, delay=2.0, leave=False)
         self.bar.update(done - self.bar.n)
 
     def close(self) -> None:

@@ -27,7 +27,6 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.sparse as sps
-import scipy.sparse.csgraph as csgraph
 
 from ..algebra.model import Model
 from ..base.cache import part
@@ -36,7 +35,9 @@ from ..base.jsonready import json_ready
 
 if TYPE_CHECKING:
     import networkx as nx
+    import scipy.sparse.csgraph as csgraph
 else:
+    from ..base.lazy import csgraph
     from ..base.lazy import networkx as nx
 
 

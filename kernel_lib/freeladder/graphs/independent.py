@@ -36,11 +36,15 @@ from __future__ import annotations
 
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
-from typing import Any, Generic, TypeVar
+from typing import TYPE_CHECKING, Any, Generic, TypeVar
 
 import numpy as np
 import scipy.sparse as sps
-import scipy.sparse.csgraph as csgraph
+
+if TYPE_CHECKING:
+    import scipy.sparse.csgraph as csgraph
+else:
+    from ..base.lazy import csgraph
 
 __all__ = ["Algebra", "IndependenceGraph"]
 

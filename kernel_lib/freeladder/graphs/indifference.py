@@ -35,16 +35,20 @@ import math
 from collections import OrderedDict
 from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.sparse as sps
-import scipy.sparse.csgraph as csgraph
 
 from ..algebra.model import Model
 from ..base.cache import part
 from ..base.jsonready import json_ready
 from .graph import EXPONENTS
+
+if TYPE_CHECKING:
+    import scipy.sparse.csgraph as csgraph
+else:
+    from ..base.lazy import csgraph
 
 __all__ = [
     "IndifferenceOrder",

@@ -27,7 +27,6 @@ from typing import TYPE_CHECKING, Any, cast
 
 import numpy as np
 import scipy.sparse as sps
-import scipy.sparse.csgraph as csgraph
 
 from ..base.frozen import readonly_mapping
 from ..base.interrupt import poll
@@ -35,7 +34,9 @@ from ..base.jsonready import json_ready
 
 if TYPE_CHECKING:
     import networkx as nx
+    import scipy.sparse.csgraph as csgraph
 else:
+    from ..base.lazy import csgraph
     from ..base.lazy import networkx as nx
 
 

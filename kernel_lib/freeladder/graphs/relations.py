@@ -38,16 +38,21 @@ import math
 from collections.abc import Iterator
 from dataclasses import dataclass
 from fractions import Fraction
+from typing import TYPE_CHECKING
 
 import numpy as np
 import scipy.sparse as sps
-import scipy.sparse.csgraph as csgraph
 
 from ..algebra.model import Model
 from ..algebra.printing import format_terms
 from ..algebra.strings import StringArray, make_string
 from ..base import display
 from ..base.jsonready import json_ready
+
+if TYPE_CHECKING:
+    import scipy.sparse.csgraph as csgraph
+else:
+    from ..base.lazy import csgraph
 
 __all__ = ["Relation", "Relations", "find_relations"]
 

@@ -40,7 +40,6 @@ from typing import TYPE_CHECKING, Any, Literal
 
 import numpy as np
 import scipy.sparse as sps
-import scipy.sparse.csgraph as csgraph
 
 from ..algebra.model import Model
 from ..algebra.printing import format_terms
@@ -73,7 +72,9 @@ from .switching import DipathSwitching, dipath_from_exponents
 
 if TYPE_CHECKING:
     import networkx as nx
+    import scipy.sparse.csgraph as csgraph
 else:
+    from ..base.lazy import csgraph
     from ..base.lazy import networkx as nx
 
 

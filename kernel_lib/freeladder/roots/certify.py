@@ -66,7 +66,6 @@ from collections.abc import Sequence
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
-import flint
 import numpy as np
 
 from ..base.lazy import njit, prange
@@ -74,9 +73,10 @@ from .real import chain_root_count, check_chain_weights
 from .result import RootTable
 
 if TYPE_CHECKING:
+    import flint
     import sympy
 else:
-    from ..base.lazy import sympy
+    from ..base.lazy import flint, sympy
 
 __all__ = ["certified_roots", "certify_chain_roots"]
 

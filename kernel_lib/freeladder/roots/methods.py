@@ -34,9 +34,8 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 from types import MappingProxyType
-from typing import Any, Literal
+from typing import TYPE_CHECKING, Any, Literal
 
-import flint
 import numpy as np
 
 from ..algebra.model import Model
@@ -45,6 +44,11 @@ from .complex import aberth_chain_roots
 from .polynomial import MAX_ROOT_DEGREE, exclusion_polynomial
 from .real import chain_back, chain_real_roots, chain_root_count, fixed_reach
 from .result import RootTable
+
+if TYPE_CHECKING:
+    import flint
+else:
+    from ..base.lazy import flint
 
 __all__ = [
     "ROOT_METHODS",

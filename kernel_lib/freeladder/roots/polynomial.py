@@ -39,7 +39,6 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any, NamedTuple
 
-import flint
 import numpy as np
 
 from ..algebra.model import Model
@@ -55,9 +54,10 @@ from .certify import certified_roots
 from .result import RootTable
 
 if TYPE_CHECKING:
+    import flint
     import sympy
 else:
-    from ..base.lazy import sympy
+    from ..base.lazy import flint, sympy
 
 __all__ = [
     "MAX_ROOT_DEGREE",

@@ -28,7 +28,6 @@ from fractions import Fraction
 from itertools import islice
 from typing import TYPE_CHECKING, Any, NamedTuple
 
-import flint
 import numpy as np
 import scipy.sparse as sps
 
@@ -44,9 +43,10 @@ from ..graphs.indifference import indifference_order
 from ..roots.polynomial import exclusion_polynomial, independence_graph, independent_set_counts
 
 if TYPE_CHECKING:
+    import flint
     import sympy
 else:
-    from ..base.lazy import sympy
+    from ..base.lazy import flint, sympy
 
 __all__ = [
     "DEFAULT_LIMIT",

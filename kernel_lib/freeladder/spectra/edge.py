@@ -26,11 +26,10 @@ import html
 import itertools
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.sparse as sps
-import scipy.sparse.csgraph as csgraph
 
 from ..algebra.model import Model
 from ..algebra.strings import StringArray, WeylString
@@ -42,6 +41,11 @@ from ..graphs.clawfree import find_simplicial_clique
 from ..graphs.graph import ADJACENCY, chain_structure
 from .charges import transfer_matrix
 from .spectrum import free_spectrum
+
+if TYPE_CHECKING:
+    import scipy.sparse.csgraph as csgraph
+else:
+    from ..base.lazy import csgraph
 
 __all__ = [
     "EdgeMode",

@@ -45,11 +45,8 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any
 
-import flint
-import mpmath
 import numpy as np
 import scipy.sparse
-import scipy.sparse.csgraph
 
 from ..algebra.model import Model
 from ..algebra.strings import WeylString, make_string
@@ -61,8 +58,12 @@ from ..base.references import KITAEV_2006, LIEB_1994
 from ..graphs.verdict import classify
 
 if TYPE_CHECKING:
+    import flint
+    import mpmath
     import networkx as nx
+    import scipy.sparse.csgraph as csgraph
 else:
+    from ..base.lazy import csgraph, flint, mpmath
     from ..base.lazy import networkx as nx
 
 
@@ -1115,7 +1116,7 @@ def _two_colouring(h: np.ndarray) -> np.ndarray | None:
     for root in range(n):
         if colour[root] >= 0:
             continue
-        order, pred = scipy.sparse.csgraph.breadth_first_order(
+        order, pred = csgraph.breadth_first_order(
             graph, root, directed=False, return_predecessors=True
         )
         colour[root] = 0

@@ -59,7 +59,6 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import scipy.linalg
 
 from ..algebra.model import Model
 from ..algebra.strings import WeylString
@@ -318,6 +317,8 @@ def _rows(
         phases = np.exp(-2j * np.outer(t, lam))  # (T, V)
         out = np.einsum("tk,rk,ck->rct", phases, u[ri, :], np.conj(u[ci, :]))
         return np.real(out)
+    import scipy.linalg  # on use: scipy.linalg is slow to import
+
     out = np.empty((len(ri), len(ci), t.size), dtype=complex)
     for k, tk in enumerate(t):
         r = scipy.linalg.expm(2.0 * tk * h)

@@ -29,7 +29,6 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
-import flint
 import numpy as np
 
 from ..base.frozen import readonly_array
@@ -38,9 +37,10 @@ from ..base.scalars import is_exact_scalar, to_fmpq
 from ..roots import certify
 
 if TYPE_CHECKING:
+    import flint
     import sympy
 else:
-    from ..base.lazy import sympy
+    from ..base.lazy import flint, sympy
 
 __all__ = ["WeightBalls"]
 
