@@ -17,14 +17,17 @@ False
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Mapping
 from types import MappingProxyType
-from typing import Any
+from typing import Any, ClassVar, cast
 
 import numpy as np
 import scipy.sparse as sps
 
-__all__ = ["readonly_array", "readonly_mapping", "readonly_sparse"]
+from .jsonready import json_ready
+
+__all__ = ["ArrayRecord", "readonly_array", "readonly_mapping", "readonly_sparse"]
 
 
 def readonly_array(values: Any, dtype: Any = None) -> np.ndarray:
@@ -75,3 +78,30 @@ def readonly_sparse(matrix: Any) -> sps.csr_array:
     out.indices = readonly_array(out.indices)
     out.indptr = readonly_array(out.indptr)
     return out
+
+
+class ArrayRecord:
+    """Base of frozen dataclass results with array fields.
+
+    The fields named in ``ARRAYS`` are stored through :func:`readonly_array` and those in
+    ``MAPPINGS`` through :func:`readonly_mapping` (in ``__post_init__``); :meth:`fields` gives
+    every field by name and :meth:`to_dict` every field JSON-ready (complex numbers as
+    ``[re, im]``).
+    """
+
+    ARRAYS: ClassVar[tuple[str, ...]] = ()
+    MAPPINGS: ClassVar[tuple[str, ...]] = ()
+
+    def __post_init__(self) -> None:
+        for name in self.ARRAYS:
+            object.__setattr__(self, name, readonly_array(getattr(self, name)))
+        for name in self.MAPPINGS:
+            object.__setattr__(self, name, readonly_mapping(getattr(self, name)))
+
+    def fields(self) -> dict[str, Any]:
+        """Every dataclass field by name."""
+        return {f.name: getattr(self, f.name) for f in dataclasses.fields(cast(Any, self))}
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready fields (complex numbers as ``[re, im]``)."""
+        return json_ready(self.fields())  # type: ignore[no-any-return]

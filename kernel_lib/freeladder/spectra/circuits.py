@@ -47,7 +47,6 @@ I. Vona, M. Mestyan and B. Pozsgay, arXiv:2405.20832 (2024) (discrete-time dynam
 
 from __future__ import annotations
 
-import dataclasses
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -58,8 +57,7 @@ import numpy as np
 from ..algebra.model import Model
 from ..algebra.strings import WeylString
 from ..base.errors import NotExpandableError
-from ..base.frozen import readonly_array
-from ..base.jsonready import json_ready
+from ..base.frozen import ArrayRecord
 from .dynamics import EdgeExpansion, edge_expansion
 
 __all__ = ["CircuitAutocorrelation", "circuit_autocorrelation"]
@@ -68,7 +66,7 @@ _EPS = float(np.finfo(np.float64).eps)
 
 
 @dataclass(frozen=True)
-class CircuitAutocorrelation:
+class CircuitAutocorrelation(ArrayRecord):
     """The edge autocorrelation under ``U(theta) = T(i theta) / |...|`` (result of
     :func:`circuit_autocorrelation`).
 
@@ -105,15 +103,7 @@ class CircuitAutocorrelation:
     expansion: EdgeExpansion
     circuit: str
 
-    def __post_init__(self) -> None:
-        for name in ("steps", "values", "errors", "phases"):
-            object.__setattr__(self, name, readonly_array(getattr(self, name)))
-
-    def to_dict(self) -> dict[str, Any]:
-        """JSON-ready fields."""
-        return json_ready(  # type: ignore[no-any-return]
-            {f.name: getattr(self, f.name) for f in dataclasses.fields(self)}
-        )
+    ARRAYS = ("steps", "values", "errors", "phases")
 
     def __repr__(self) -> str:
         worst = f"{float(np.max(self.errors)):.2g}" if self.errors.size else "0"

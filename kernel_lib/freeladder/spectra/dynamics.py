@@ -75,7 +75,7 @@ from ..algebra.model import Model
 from ..algebra.strings import WeylString
 from ..algebra.syntax import parse_model
 from ..base.errors import NotExpandableError
-from ..base.frozen import readonly_array, readonly_mapping
+from ..base.frozen import ArrayRecord
 from ..base.interrupt import poll
 from ..base.jsonready import json_ready
 from ..base.lazy import njit, prange
@@ -109,7 +109,7 @@ _STEPS_PER_CALL = 1e8  # points x terms per compiled call of the weights (Ctrl-C
 
 
 @dataclass(frozen=True)
-class EdgeExpansion:
+class EdgeExpansion(ArrayRecord):
     """The edge operator in the hidden modes (result of :func:`edge_expansion`).
 
     ``Tr[chi^dagger chi(t)] / dim = zero_weight + sum_k (weights[k] / N) sum_s
@@ -173,17 +173,15 @@ class EdgeExpansion:
     method: str
     weight_balls: WeightBalls | None = None
 
-    def __post_init__(self) -> None:
-        for name in (
-            "quasi_energies",
-            "log_quasi_energies",
-            "weights",
-            "weight_errors",
-            "log_errors",
-            "frequencies",
-        ):
-            object.__setattr__(self, name, readonly_array(getattr(self, name)))
-        object.__setattr__(self, "sum_rules", readonly_mapping(self.sum_rules))
+    ARRAYS = (
+        "quasi_energies",
+        "log_quasi_energies",
+        "weights",
+        "weight_errors",
+        "log_errors",
+        "frequencies",
+    )
+    MAPPINGS = ("sum_rules",)
 
     @property
     def hermitian(self) -> bool:
@@ -204,12 +202,6 @@ class EdgeExpansion:
         total = self.zero_weight + self.weights[slow].sum()
         return float(total.real) if self.hermitian else complex(total)
 
-    def to_dict(self) -> dict[str, Any]:
-        """JSON-ready fields (complex numbers as ``[re, im]``)."""
-        return json_ready(  # type: ignore[no-any-return]
-            {f.name: getattr(self, f.name) for f in dataclasses.fields(self)}
-        )
-
     def __repr__(self) -> str:
         return (
             f"EdgeExpansion(chi = {self.operator}, {len(self.weights)} modes, zero weight "
@@ -219,7 +211,7 @@ class EdgeExpansion:
 
 
 @dataclass(frozen=True)
-class Autocorrelation:
+class Autocorrelation(ArrayRecord):
     """Infinite-temperature autocorrelation of the edge operator (result of
     :func:`autocorrelation`).
 
@@ -252,9 +244,7 @@ class Autocorrelation:
     expansion: EdgeExpansion
     growth_rates: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
 
-    def __post_init__(self) -> None:
-        for name in ("times", "values", "errors", "growth_rates"):
-            object.__setattr__(self, name, readonly_array(getattr(self, name)))
+    ARRAYS = ("times", "values", "errors", "growth_rates")
 
     @property
     def frequencies(self) -> np.ndarray:
@@ -311,7 +301,7 @@ class Autocorrelation:
 
 
 @dataclass(frozen=True)
-class TwoPoint:
+class TwoPoint(ArrayRecord):
     """``Tr[a^dagger b(t)] / dim`` through the modes (result of :func:`two_point`).
 
     Attributes
@@ -332,15 +322,7 @@ class TwoPoint:
     formula: str
     expansion: EdgeExpansion
 
-    def __post_init__(self) -> None:
-        for name in ("times", "values", "errors"):
-            object.__setattr__(self, name, readonly_array(getattr(self, name)))
-
-    def to_dict(self) -> dict[str, Any]:
-        """JSON-ready fields (complex numbers as ``[re, im]``)."""
-        return json_ready(  # type: ignore[no-any-return]
-            {f.name: getattr(self, f.name) for f in dataclasses.fields(self)}
-        )
+    ARRAYS = ("times", "values", "errors")
 
     def __repr__(self) -> str:
         return (

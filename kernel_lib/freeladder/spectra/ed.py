@@ -408,6 +408,16 @@ def _masks(g: WeylString, index: dict[Any, int]) -> _Pauli:
     return _Pauli(x, z, g.phase % 4, 1)
 
 
+def _fixed_paulis(m: Model, fixed: Sequence[tuple[WeylString, int]]) -> list[_Pauli]:
+    """The fixed strings as bit masks over ``m.sites``, each with its value."""
+    index = {site: j for j, site in enumerate(m.sites)}
+    out = []
+    for g, v in fixed:
+        p = _masks(g, index)
+        out.append(_Pauli(p.x, p.z, p.phase, int(v)))
+    return out
+
+
 def _split(fixed: list[_Pauli]) -> tuple[list[tuple[int, _Pauli]], list[_Pauli]]:
     """Products of the fixed strings in reduced row-echelon form of their X parts: ``(pivot
     bit, string)`` pairs (each pivot set in its own X part only) and the diagonal ones left."""
@@ -432,12 +442,7 @@ def sector_dimension(m: Model, fixed: Sequence[tuple[WeylString, int]] = ()) -> 
     contradict a relation among the strings.  No matrix is built."""
     if not fixed:
         return m.dimension
-    index = {site: j for j, site in enumerate(m.sites)}
-    strings = []
-    for g, v in fixed:
-        p = _masks(g, index)
-        strings.append(_Pauli(p.x, p.z, p.phase, int(v)))
-    basis, diagonal = _split(strings)
+    basis, diagonal = _split(_fixed_paulis(m, fixed))
     # representatives have every pivot bit 0: a diagonal string acts through its other bits
     free = (1 << len(m.sites)) - 1
     for q, _ in basis:
@@ -471,12 +476,7 @@ def _sector_matrix(m: Model, fixed: Sequence[tuple[WeylString, int]]) -> sps.csr
     n = len(m.sites)
     if n > 62:
         raise TooLargeError(f"{n} sites: the sector basis is indexed by 62-bit integers")
-    index = {site: j for j, site in enumerate(m.sites)}
-    strings = []
-    for g, v in fixed:
-        p = _masks(g, index)
-        strings.append(_Pauli(p.x, p.z, p.phase, int(v)))
-    basis, diagonal = _split(strings)
+    basis, diagonal = _split(_fixed_paulis(m, fixed))
     free_bits = [j for j in range(n) if j not in {q for q, _ in basis}]
     need = 8.0 * 4 * 2 ** len(free_bits)
     if len(free_bits) > 31 or need > available_memory():

@@ -53,7 +53,6 @@ arXiv:2003.05465 (every term a Majorana bilinear when the frustration graph is a
 
 from __future__ import annotations
 
-import dataclasses
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
@@ -63,8 +62,7 @@ import numpy as np
 from ..algebra.model import Model
 from ..algebra.strings import WeylString
 from ..base.errors import NotExpandableError
-from ..base.frozen import readonly_array
-from ..base.jsonready import json_ready
+from ..base.frozen import ArrayRecord
 from . import majorana as mj
 from .dynamics import _as_string, _check_times
 
@@ -79,7 +77,7 @@ _EPS = float(np.finfo(np.float64).eps)
 
 
 @dataclass(frozen=True)
-class SectorCorrelation:
+class SectorCorrelation(ArrayRecord):
     """``Tr_S[a^dagger b(t)] / dim_S`` over Jordan-Wigner sectors (result of
     :func:`sector_two_point` and :func:`sector_autocorrelation`).
 
@@ -112,15 +110,7 @@ class SectorCorrelation:
     majoranas: tuple[tuple[int, int], tuple[int, int]]
     formula: str
 
-    def __post_init__(self) -> None:
-        for name in ("times", "values", "errors"):
-            object.__setattr__(self, name, readonly_array(getattr(self, name)))
-
-    def to_dict(self) -> dict[str, Any]:
-        """JSON-ready fields (complex numbers as ``[re, im]``)."""
-        return json_ready(  # type: ignore[no-any-return]
-            {f.name: getattr(self, f.name) for f in dataclasses.fields(self)}
-        )
+    ARRAYS = ("times", "values", "errors")
 
     def __repr__(self) -> str:
         worst = f"{float(np.max(self.errors)):.2g}" if self.errors.size else "0"

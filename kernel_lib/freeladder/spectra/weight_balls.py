@@ -23,7 +23,6 @@ Comput. 66, 1281 (2017).
 
 from __future__ import annotations
 
-import dataclasses
 from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
@@ -31,7 +30,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
-from ..base.frozen import readonly_array
+from ..base.frozen import ArrayRecord
 from ..base.jsonready import json_ready
 from ..base.scalars import is_exact_scalar, to_fmpq
 from ..roots import certify
@@ -50,7 +49,7 @@ _Exact = Fraction | tuple[Fraction, Fraction]
 
 
 @dataclass(frozen=True)
-class WeightBalls:
+class WeightBalls(ArrayRecord):
     """The edge weights ``W_k`` in proved balls (see the module docstring).
 
     Attributes
@@ -91,9 +90,7 @@ class WeightBalls:
     precision: int
     agreement: float | None = None
 
-    def __post_init__(self) -> None:
-        for name in ("roots", "root_radii", "weights", "radii"):
-            object.__setattr__(self, name, readonly_array(getattr(self, name)))
+    ARRAYS = ("roots", "root_radii", "weights", "radii")
 
     @property
     def verified(self) -> bool:
@@ -102,7 +99,7 @@ class WeightBalls:
 
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready fields (complex numbers as ``[re, im]``; the exact ``w_0`` also as text)."""
-        out = {f.name: getattr(self, f.name) for f in dataclasses.fields(self)}
+        out = self.fields()
         out["zero_weight_exact"] = _exact_text(self.zero_weight)
         out["verified"] = self.verified
         return json_ready(out)  # type: ignore[no-any-return]
