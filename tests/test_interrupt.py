@@ -125,17 +125,24 @@ def test_an_interrupted_part_is_not_kept_and_is_computed_in_full_when_asked_agai
 
 
 def test_a_stop_from_another_thread_ends_a_long_call_promptly() -> None:
-    # a reach-1 chain of 2 * 10^4 terms takes seconds; the stop arrives while it runs (a small
-    # chain first, so that numba's compilation, which cannot be stopped, is behind us)
+    # verify of a reach-1 chain of 2 * 10^4 terms polls about 70 times over a few seconds; the
+    # stop is asked for from this thread once the call has polled 10 times, so it arrives while
+    # the call runs however fast the machine is (a small chain first, so that numba's
+    # compilation, which cannot be stopped, is behind us)
     fl.verify(fl.exclusion_chain(40, reach=1, couplings=fl.random_couplings(40, seed=4)))
     m = fl.exclusion_chain(20_000, reach=1, couplings=fl.random_couplings(20_000, seed=4))
     stop = threading.Event()
+    polls = [0]
     outcome: list[str] = []
     ended: list[float] = []
 
+    def hook() -> bool:
+        polls[0] += 1
+        return stop.is_set()
+
     def run() -> None:
         try:
-            with fl.stop_when(stop.is_set):
+            with fl.stop_when(hook):
                 fl.verify(m)
             outcome.append("finished")
         except fl.Interrupted:
@@ -144,11 +151,12 @@ def test_a_stop_from_another_thread_ends_a_long_call_promptly() -> None:
 
     t = threading.Thread(target=run)
     t.start()
-    time.sleep(1.0)
+    while polls[0] < 10 and t.is_alive():
+        time.sleep(0.001)
     asked = time.perf_counter()
     stop.set()
     t.join(60)
-    assert outcome == ["interrupted"]
+    assert outcome == ["interrupted"], f"{polls[0]} polls"
     latency = ended[0] - asked
     print(f"stopped {latency:.3f} s after the stop was asked for")
     assert latency < 5.0  # well under 0.5 s on an idle machine; generous for a loaded one
