@@ -87,7 +87,7 @@ class RootTable:
     multiplicities : numpy.ndarray of int64
         Per value, how many roots it stands for (all 1 unless an exact polynomial has a
         repeated root: then ``values`` lists each distinct root once, and
-        :meth:`repeated` lists it as often as it counts, recording per listed value the
+        :meth:`repeated` lists it as often as it counts, storing per listed value the
         multiplicity of its root in ``details["multiplicity"]``; :meth:`repeated_roots`
         counts them either way).
     exponents : numpy.ndarray of int64
