@@ -59,6 +59,8 @@ def test_sector_exact_spectrum_against_numpy_dense() -> None:
         want = np.linalg.eigvalsh(block)[:6]
         got = sector_exact_spectrum(m, 6, [(parity, value)]).eigenvalues
         assert np.allclose(got, want, atol=1e-10)
+        with pytest.raises(ValueError):  # results are stored: no caller may reopen them
+            got.setflags(write=True)
         assert set(np.round(want, 8)) <= set(np.round(dense, 8))
 
 

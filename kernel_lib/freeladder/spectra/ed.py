@@ -223,9 +223,7 @@ def exact_spectrum(
     dense = solver == "dense" or (solver == "auto" and m.dimension <= DENSE_LIMIT)
     _check_size(m, k, dense, solver)
     mat = m.to_sparse()
-    scale_h = float(abs(mat).max()) if mat.nnz else 0.0
-    diff = mat - mat.conj().T
-    hermitian = (float(abs(diff).max()) if diff.nnz else 0.0) <= 1e-12 * max(scale_h, 1e-300)
+    hermitian = _is_hermitian(mat)
     if dense:
         vals, error, method = _dense_solve(mat, hermitian)
         if k is not None:
@@ -233,21 +231,7 @@ def exact_spectrum(
     else:
         assert k is not None
         vals, error, method = _sparse_lowest(mat, k, hermitian)
-    scale = max(1.0, float(np.abs(vals).max())) if len(vals) else 1.0
-    levels, mult = _cluster(vals, tol * scale)
-    # the result is immutable, like every freeladder object
-    levels, mult, vals = readonly_array(levels), readonly_array(mult), readonly_array(vals)
-    return ExactSpectrum(
-        levels=levels,
-        multiplicities=mult,
-        eigenvalues=vals,
-        method=method,
-        tolerance=tol * scale,
-        dimension=m.dimension,
-        complete=len(vals) == m.dimension,
-        hermitian=hermitian,
-        error_estimate=float(error),
-    )
+    return _exact_result(vals, error, method, tol, m.dimension, hermitian)
 
 
 def _validate(m: Model, k: int | None, tol: float, solver: str) -> int | None:
@@ -406,6 +390,33 @@ def _masks(g: WeylString, index: dict[Any, int]) -> _Pauli:
         x |= (a % 2) << index[site]
         z |= (b % 2) << index[site]
     return _Pauli(x, z, g.phase % 4, 1)
+
+
+def _is_hermitian(mat: Any) -> bool:
+    """``mat`` equals its conjugate transpose to 1e-12 of its largest entry."""
+    scale = float(abs(mat).max()) if mat.nnz else 0.0
+    diff = mat - mat.conj().T
+    return (float(abs(diff).max()) if diff.nnz else 0.0) <= 1e-12 * max(scale, 1e-300)
+
+
+def _exact_result(
+    vals: np.ndarray, error: float, method: str, tol: float, dimension: int, hermitian: bool
+) -> ExactSpectrum:
+    """The eigenvalues found, clustered into levels within ``tol`` (relative), as an immutable
+    result (its arrays sit on immutable buffers, like every freeladder result)."""
+    scale = max(1.0, float(np.abs(vals).max())) if len(vals) else 1.0
+    levels, mult = _cluster(vals, tol * scale)
+    return ExactSpectrum(
+        levels=readonly_array(levels),
+        multiplicities=readonly_array(mult),
+        eigenvalues=readonly_array(vals),
+        method=method,
+        tolerance=tol * scale,
+        dimension=dimension,
+        complete=len(vals) == dimension,
+        hermitian=hermitian,
+        error_estimate=float(error),
+    )
 
 
 def _fixed_paulis(m: Model, fixed: Sequence[tuple[WeylString, int]]) -> list[_Pauli]:
@@ -616,29 +627,13 @@ def sector_exact_spectrum(
         dim = mat.shape[0]
         if not 1 <= k <= dim:
             raise ValueError(f"k must be in 1..{dim} (the dimension), got {k!r}")
-    scale_h = float(abs(mat).max()) if mat.nnz else 0.0
-    diff = mat - mat.conj().T
-    hermitian = (float(abs(diff).max()) if diff.nnz else 0.0) <= 1e-12 * max(scale_h, 1e-300)
+    hermitian = _is_hermitian(mat)
     if dim <= SECTOR_DENSE_LIMIT or k > dim - 2:
         vals, error, method = _dense_solve(mat, hermitian)
         vals = vals[:k]
     else:
         vals, error, method = _sparse_lowest(mat, int(k), hermitian)
-    scale = max(1.0, float(np.abs(vals).max())) if len(vals) else 1.0
-    levels, mult = _cluster(vals, tol * scale)
-    for arr in (levels, mult, vals):
-        arr.setflags(write=False)
-    return ExactSpectrum(
-        levels=levels,
-        multiplicities=mult,
-        eigenvalues=vals,
-        method=method,
-        tolerance=tol * scale,
-        dimension=dim,
-        complete=len(vals) == dim,
-        hermitian=hermitian,
-        error_estimate=float(error),
-    )
+    return _exact_result(vals, error, method, tol, dim, hermitian)
 
 
 def _sorted(vals: np.ndarray, hermitian: bool) -> np.ndarray:
