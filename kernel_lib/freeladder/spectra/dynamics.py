@@ -678,6 +678,22 @@ def _common_phase(c: np.ndarray, n: int) -> float | None:
     return float(angles[0]) if np.all(np.abs(turn) < 1e-13) else None
 
 
+def _by_frequency(
+    eta: np.ndarray,
+    log_eta: np.ndarray,
+    log_err: np.ndarray,
+    weights: np.ndarray,
+    errors: np.ndarray,
+    zero: Any,
+    text: str,
+) -> tuple[Any, ...]:
+    """The modes' arrays ordered by ``ln |eta|`` (slowest first), then the zero weight and the
+    method text."""
+    order = np.argsort(log_eta, kind="stable")
+    arrays = (eta, log_eta, log_err, weights, errors)
+    return (*(a[order] for a in arrays), zero, text)
+
+
 def _weights_real(e: _Edge) -> tuple[Any, ...]:
     """The real-root path: weights ``|c_j|^N`` (all of one phase theta; then
     ``P(y) = P_|w|(exp(i theta) y)`` and the weights ``W_k`` are those of the moduli)."""
@@ -696,16 +712,8 @@ def _weights_real(e: _Edge) -> tuple[Any, ...]:
     log_eta, log_err = true.log_quasi_energies(n)
     eta, _ = true.quasi_energies(n, beyond_float="round")
     zero = _zero_weight(w, back).real
-    order = np.argsort(log_eta, kind="stable")
-    return (
-        eta[order],
-        log_eta[order],
-        log_err[order],
-        weights[order],
-        errors[order],
-        zero,
-        f"real chain roots ({found.method}; {found.bound_kind}), weights from the recurrence",
-    )
+    text = f"real chain roots ({found.method}; {found.bound_kind}), weights from the recurrence"
+    return _by_frequency(eta, log_eta, log_err, weights, errors, zero, text)
 
 
 @njit(cache=True, boundscheck=False, error_model="numpy")
@@ -773,16 +781,8 @@ def _weights_complex(e: _Edge) -> tuple[Any, ...]:
     log_eta = np.log(np.abs(x)) / n
     log_err = rel / n
     zero = _zero_weight(w, back)
-    order = np.argsort(log_eta, kind="stable")
-    return (
-        eta[order],
-        log_eta[order],
-        log_err[order],
-        weights[order],
-        errors[order],
-        zero,
-        f"complex chain roots ({found.method}; {found.bound_kind}), weights from the recurrence",
-    )
+    text = f"complex chain roots ({found.method}; {found.bound_kind}), weights from the recurrence"
+    return _by_frequency(eta, log_eta, log_err, weights, errors, zero, text)
 
 
 def edge_expansion(m: Model, operator: str | WeylString | None = None) -> EdgeExpansion:
